@@ -1,0 +1,24 @@
+import { styleTags, tags as t } from "@lezer/highlight";
+
+/** Highlighting of the Rill syntax tree: one table, read by the generated parser. */
+export const rillHighlighting = styleTags({
+  "network set param rail nfet pfet inject probe sweep mismatch": t.definitionKeyword,
+  "for in": t.controlKeyword,
+  "from to step points log values runs seed avt": t.keyword,
+  Comment: t.lineComment,
+  Number: t.number,
+  "Definition/...": t.definition(t.variableName),
+  Identifier: t.variableName,
+  "InterpolatedName/...": t.special(t.variableName),
+  VariableName: t.local(t.variableName),
+  FunctionName: t.function(t.variableName),
+  PinName: t.propertyName,
+  SettingName: t.propertyName,
+  ArithOp: t.arithmeticOperator,
+  "=": t.definitionOperator,
+  "..": t.punctuation,
+  ", ": t.separator,
+  "( )": t.paren,
+  "[ ]": t.squareBracket,
+  "{ }": t.brace,
+});
