@@ -1,0 +1,45 @@
+import { spawn, type ChildProcess } from "node:child_process";
+import fs from "node:fs";
+import { databasePath, openDatabase } from "../../db";
+import { assertPortFree, fail } from "./fail";
+
+export interface ServeOptions {
+  host: string;
+  port: number;
+  env?: Record<string, string>;
+}
+
+/** Parses `--port N` / `--host H` (defaults: $PORT or 3000, 127.0.0.1). */
+export function serveOptions(argv: string[]): ServeOptions {
+  let port = process.env.PORT ?? "3000";
+  let host = "127.0.0.1";
+  for (let i = 0; i < argv.length; i++) {
+    if (argv[i] === "--port") port = argv[++i] ?? "";
+    else if (argv[i] === "--host") host = argv[++i] ?? "";
+    else fail(`unknown option ${argv[i]} (expected --port N or --host H)`, 2);
+  }
+  const n = Number(port);
+  if (!Number.isInteger(n) || n <= 0 || n > 65535) fail(`port ${JSON.stringify(port)} is not a port number`, 2);
+  return { host, port: n };
+}
+
+/**
+ * Checks the build, the database (migrating it) and the port, then runs
+ * `next start` in a child process that ends with this one.
+ */
+export async function startNext(options: ServeOptions): Promise<ChildProcess> {
+  if (!fs.existsSync(".next/BUILD_ID")) fail("no build found in .next/: run `npm run build` first");
+  const file = databasePath();
+  openDatabase(file).$client.close();
+  await assertPortFree(options.host, options.port).catch((e: Error) => fail(e.message));
+  const child = spawn(
+    process.execPath,
+    ["node_modules/next/dist/bin/next", "start", "-H", options.host, "-p", String(options.port)],
+    { stdio: "inherit", env: { ...process.env, ...options.env, RILL_DB: file, NEXT_TELEMETRY_DISABLED: "1" } },
+  );
+  const stop = () => child.kill("SIGTERM");
+  process.on("SIGINT", stop);
+  process.on("SIGTERM", stop);
+  child.on("exit", (code, signal) => process.exit(code ?? (signal ? 1 : 0)));
+  return child;
+}

@@ -1,0 +1,26 @@
+import { expect, test } from "@playwright/test";
+
+test("the home page shows the shell and the demo workspace", async ({ page }) => {
+  const errors: string[] = [];
+  page.on("pageerror", (e) => errors.push(e.message));
+  await page.goto("/");
+  await expect(page.getByRole("link", { name: "Rill home" })).toBeVisible();
+  await expect(page.getByRole("heading", { name: "Workspaces" })).toBeVisible();
+  await expect(page.getByRole("list", { name: "Workspaces" }).getByRole("link", { name: "LM-64 edge row" })).toBeVisible();
+  await expect(page.getByText("Results in Rill are model estimates")).toBeVisible();
+  const fonts = await page.evaluate(async () => {
+    await document.fonts.ready;
+    return [...document.fonts].filter((f) => f.status === "loaded").length;
+  });
+  expect(fonts).toBeGreaterThan(0);
+  await page.screenshot({ path: "test-results/browser/home.png", fullPage: true });
+  expect(errors).toEqual([]);
+});
+
+test("the health route answers with the version and db ok", async ({ request }) => {
+  const res = await request.get("/api/health");
+  expect(res.status()).toBe(200);
+  const body = await res.json();
+  expect(body.db).toBe("ok");
+  expect(body.version).toMatch(/^\d+\.\d+\.\d+/);
+});
