@@ -4,6 +4,7 @@ import Database from "better-sqlite3";
 import { drizzle, type BetterSQLite3Database } from "drizzle-orm/better-sqlite3";
 import { migrate } from "drizzle-orm/better-sqlite3/migrator";
 import * as schema from "./schema";
+// db/schema.ts re-exports every table module (auth-schema.ts, work-schema.ts, ...), so drizzle-kit and the app see one schema.
 
 export type DB = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
 

@@ -54,3 +54,6 @@ export const memberships = sqliteTable(
     index("memberships_user_idx").on(t.userId),
   ],
 );
+
+// Table modules owned by later features are re-exported here (one line each), so that
+// drizzle-kit (drizzle.config.ts points at this file) and db/index.ts see one schema.
