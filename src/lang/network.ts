@@ -57,6 +57,16 @@ export interface ParamDef {
   /** Value at the default point. */
   value: number;
   span: Span;
+  /**
+   * Names this param's expression depends on, transitively (params, "temp",
+   * "ut", "kappa"); absent or empty for a constant param.
+   */
+  dependsOn?: string[];
+  /**
+   * Re-evaluates the param's expression for a point; `scope` must already hold
+   * the values of every earlier param and of temp, ut, kappa. Absent for a constant param.
+   */
+  evaluate?(scope: Readonly<Record<string, number>>): number;
 }
 
 export interface NodeTable {
@@ -178,4 +188,6 @@ export interface ElaborationResult {
   diagnostics: Diagnostic[];
   /** True when no diagnostic is an error. */
   ok: boolean;
+  /** The `network NAME` statement's name, also when `network` is null. */
+  name?: string | null;
 }

@@ -10,15 +10,30 @@ export function thermalVoltage(temp: number): number {
   return (BOLTZMANN * temp) / ELEMENTARY_CHARGE;
 }
 
-/** The full scope of a point: every param, plus temp, ut and kappa. */
+/**
+ * The full scope of a point: every param, plus temp, ut and kappa.
+ * Params not in `overrides` are re-evaluated in their statement order, so a
+ * param derived from a swept one (`param b = 2*a`, sweep of `a`) follows it.
+ * kappa is re-evaluated (when `set kappa` depends on a param) before the first
+ * param that uses it; the language guarantees its own inputs come earlier.
+ */
 export function pointScope(net: Network, overrides: Readonly<Record<string, number>> = {}): Record<string, number> {
   const scope: Record<string, number> = {};
-  for (const p of net.params) scope[p.name] = p.value;
-  for (const [k, v] of Object.entries(overrides)) if (k !== "temp") scope[k] = v;
   const temp = overrides.temp ?? net.settings.temp;
   scope.temp = temp;
   scope.ut = thermalVoltage(temp);
   scope.kappa = net.settings.kappa;
+  const kappaBinding = net.bindings.find((b) => b.target.kind === "setting" && b.target.name === "kappa");
+  let kappaDone = kappaBinding === undefined;
+  for (const p of net.params) {
+    if (!kappaDone && kappaBinding && p.dependsOn?.includes("kappa")) {
+      scope.kappa = kappaBinding.evaluate(scope);
+      kappaDone = true;
+    }
+    if (Object.prototype.hasOwnProperty.call(overrides, p.name)) scope[p.name] = overrides[p.name];
+    else scope[p.name] = p.evaluate ? p.evaluate(scope) : p.value;
+  }
+  if (!kappaDone && kappaBinding) scope.kappa = kappaBinding.evaluate(scope);
   return scope;
 }
 
@@ -26,39 +41,28 @@ export function pointScope(net: Network, overrides: Readonly<Record<string, numb
  * The network at one sweep point: params (and `temp`) overridden, every binding
  * that depends on a changed name re-evaluated. Tables that do not change are
  * shared with `net`, tables that change are copied, so `net` is never mutated.
- * Params that are not overridden keep their default values.
+ * Params that are not overridden keep their default values, or follow the
+ * params they are derived from.
  */
 export function applyPoint(net: Network, overrides: Readonly<Record<string, number>>): Network {
+  const scope = pointScope(net, overrides);
   const changed = new Set<string>();
-  for (const p of net.params) if (p.name in overrides && overrides[p.name] !== p.value) changed.add(p.name);
-  const settings: Settings = { ...net.settings };
-  if ("temp" in overrides && overrides.temp !== net.settings.temp) {
-    settings.temp = overrides.temp;
-    settings.ut = thermalVoltage(overrides.temp);
+  for (const p of net.params) if (scope[p.name] !== p.value) changed.add(p.name);
+  if (scope.temp !== net.settings.temp) {
     changed.add("temp");
     changed.add("ut");
   }
+  if (scope.kappa !== net.settings.kappa) changed.add("kappa");
   if (changed.size === 0) return net;
 
-  const scope = pointScope(net, overrides);
-  // Settings first: other bindings may read kappa.
+  const settings: Settings = { ...net.settings, temp: scope.temp, ut: scope.ut, kappa: scope.kappa };
   const affected = net.bindings.filter((b) => b.dependsOn.some((d) => changed.has(d)));
-  for (const b of affected) {
-    if (b.target.kind !== "setting") continue;
-    const v = b.evaluate(scope);
-    (settings as unknown as Record<string, number>)[b.target.name] = v;
-    if (b.target.name === "kappa") {
-      scope.kappa = v;
-      changed.add("kappa");
-    }
-  }
-  const all = changed.has("kappa") ? net.bindings.filter((b) => b.dependsOn.some((d) => changed.has(d))) : affected;
 
   let railValue = net.nodes.railValue;
   let injectValue = net.injects.value;
   let w = net.devices.w;
   let l = net.devices.l;
-  for (const b of all) {
+  for (const b of affected) {
     const t = b.target;
     switch (t.kind) {
       case "rail":
@@ -78,13 +82,15 @@ export function applyPoint(net: Network, overrides: Readonly<Record<string, numb
         l[t.index] = b.evaluate(scope);
         break;
       case "setting":
+        // kappa is already in `scope` (pointScope evaluated it in statement order).
+        if (t.name !== "kappa") settings[t.name] = b.evaluate(scope);
         break;
     }
   }
   return {
     ...net,
     settings,
-    params: net.params.map((p) => (p.name in overrides ? { ...p, value: overrides[p.name] } : p)),
+    params: net.params.map((p) => (scope[p.name] !== p.value ? { ...p, value: scope[p.name] } : p)),
     nodes: railValue === net.nodes.railValue ? net.nodes : { ...net.nodes, railValue },
     injects: injectValue === net.injects.value ? net.injects : { ...net.injects, value: injectValue },
     devices: w === net.devices.w && l === net.devices.l ? net.devices : { ...net.devices, w, l },

@@ -1,0 +1,525 @@
+import type { SyntaxNode } from "@lezer/common";
+import { all, create, type EvalFunction, type MathNode } from "mathjs/number";
+import * as T from "./parser.terms";
+import {
+  addDim,
+  compatible,
+  describeDim,
+  DIMENSIONLESS,
+  type Dim,
+  hasUnit,
+  LOOSE,
+  mulDim,
+  powDim,
+  UNKNOWN,
+  unitDim,
+} from "./units";
+
+/**
+ * Expressions: the syntax tree's expression nodes become a small immutable IR
+ * (built once per syntax node, never per loop iteration), which is checked for
+ * names and dimensions and then compiled to a math.js evaluation function.
+ */
+
+const math = create(all);
+
+interface Base {
+  from: number;
+  to: number;
+}
+export interface NumExpr extends Base {
+  k: "num";
+  value: number;
+  unit: "" | "V" | "A" | "K";
+}
+export interface NameExpr extends Base {
+  k: "name";
+  name: string;
+}
+/** A name with `{expr}` pieces: literal strings alternate with integer expressions. */
+export interface InterpExpr extends Base {
+  k: "interp";
+  parts: (string | Expr)[];
+}
+export interface UnaryExpr extends Base {
+  k: "unary";
+  op: "-" | "+";
+  arg: Expr;
+}
+export type BinaryOp = "+" | "-" | "*" | "/" | "^";
+export interface BinaryExpr extends Base {
+  k: "binary";
+  op: BinaryOp;
+  left: Expr;
+  right: Expr;
+  opFrom: number;
+  opTo: number;
+}
+export interface CallExpr extends Base {
+  k: "call";
+  fn: string;
+  fnFrom: number;
+  fnTo: number;
+  args: Expr[];
+}
+/** A part with a syntax error or beyond the depth limit: already reported, never evaluated. */
+export interface BadExpr extends Base {
+  k: "bad";
+}
+export type Expr = NumExpr | NameExpr | InterpExpr | UnaryExpr | BinaryExpr | CallExpr | BadExpr;
+
+const PREFIX: Record<string, number> = { f: -15, p: -12, n: -9, u: -6, "µ": -6, m: -3, k: 3, M: 6, G: 9 };
+const NUMBER = /^((?:\d+(?:\.\d+)?|\.\d+))(?:[eE]([+-]?\d+))?([fpnuµmkMG])?([VAK])?$/;
+
+/** Value and unit symbol of a number literal such as `450mV`, `1e-15`, `2u`; null if malformed. */
+export function parseNumber(text: string): { value: number; unit: "" | "V" | "A" | "K" } | null {
+  const m = NUMBER.exec(text);
+  if (!m) return null;
+  const exponent = (m[2] ? parseInt(m[2], 10) : 0) + (m[3] ? PREFIX[m[3]] : 0);
+  // Decimal mantissa and one decimal exponent: correctly rounded, so 450m === 0.45.
+  const value = Number(`${m[1]}e${exponent}`);
+  return { value, unit: (m[4] ?? "") as "" | "V" | "A" | "K" };
+}
+
+function expressionChildren(node: SyntaxNode): SyntaxNode[] {
+  const out: SyntaxNode[] = [];
+  for (let c = node.firstChild; c; c = c.nextSibling) if (c.type.is("Expression") || c.type.isError) out.push(c);
+  return out;
+}
+
+/** True if the subtree of `node` holds a syntax error node. */
+export function containsError(node: SyntaxNode): boolean {
+  const cur = node.cursor();
+  let depth = 0;
+  for (;;) {
+    if (cur.type.isError) return true;
+    if (cur.firstChild()) {
+      depth++;
+      continue;
+    }
+    for (;;) {
+      if (depth === 0) return false;
+      if (cur.nextSibling()) break;
+      cur.parent();
+      depth--;
+    }
+  }
+}
+
+export interface BuildContext {
+  text: string;
+  maxDepth: number;
+  /** Called once for an expression nested deeper than `maxDepth`. */
+  tooDeep(from: number, to: number): void;
+}
+
+/**
+ * The IR of an expression node. Syntax errors inside become `bad` parts (the
+ * syntax pass reports them); nesting beyond `maxDepth` becomes `bad` after one
+ * call of `tooDeep`. Recursion depth is bounded by `maxDepth`.
+ */
+export function buildExpr(node: SyntaxNode, ctx: BuildContext, depth = 0): Expr {
+  const { from, to } = node;
+  if (node.type.isError) return { k: "bad", from, to };
+  if (depth > ctx.maxDepth) {
+    ctx.tooDeep(from, to);
+    return { k: "bad", from, to };
+  }
+  switch (node.type.id) {
+    case T.Number: {
+      const n = parseNumber(ctx.text.slice(from, to));
+      return n ? { k: "num", from, to, value: n.value, unit: n.unit } : { k: "bad", from, to };
+    }
+    case T.Identifier:
+      return { k: "name", from, to, name: ctx.text.slice(from, to) };
+    case T.ParenthesizedExpression: {
+      const [inner] = expressionChildren(node);
+      const close = node.lastChild;
+      if (!inner || !close || close.name !== ")") return { k: "bad", from, to };
+      return buildExpr(inner, ctx, depth + 1);
+    }
+    case T.UnaryExpression: {
+      const op = node.getChild("ArithOp");
+      const [arg] = expressionChildren(node);
+      if (!op || !arg) return { k: "bad", from, to };
+      const sign = ctx.text.slice(op.from, op.to) === "-" ? "-" : "+";
+      return { k: "unary", from, to, op: sign, arg: buildExpr(arg, ctx, depth + 1) };
+    }
+    case T.BinaryExpression: {
+      const op = node.getChild("ArithOp");
+      const kids = expressionChildren(node);
+      if (!op || kids.length !== 2) return { k: "bad", from, to };
+      return {
+        k: "binary",
+        from,
+        to,
+        op: ctx.text.slice(op.from, op.to) as BinaryOp,
+        opFrom: op.from,
+        opTo: op.to,
+        left: buildExpr(kids[0], ctx, depth + 1),
+        right: buildExpr(kids[1], ctx, depth + 1),
+      };
+    }
+    case T.CallExpression: {
+      const fn = node.getChild("FunctionName");
+      const list = node.getChild("ArgList");
+      if (!fn || !list || list.lastChild?.name !== ")") return { k: "bad", from, to };
+      const args = expressionChildren(list).map((a) => buildExpr(a, ctx, depth + 1));
+      return { k: "call", from, to, fn: ctx.text.slice(fn.from, fn.to), fnFrom: fn.from, fnTo: fn.to, args };
+    }
+    case T.InterpolatedName:
+      return buildInterp(node, ctx, depth);
+    default:
+      return { k: "bad", from, to };
+  }
+}
+
+function buildInterp(node: SyntaxNode, ctx: BuildContext, depth: number): Expr {
+  const { text } = ctx;
+  const { from, to } = node;
+  if (containsError(node)) return { k: "bad", from, to };
+  const kids = expressionChildren(node);
+  const parts: (string | Expr)[] = [];
+  const open = text.indexOf("{", from);
+  parts.push(text.slice(from, open));
+  for (let i = 0; i < kids.length; i++) {
+    parts.push(buildExpr(kids[i], ctx, depth + 1));
+    // Between this piece and the next (or the end): "}" name characters, then "{" unless last.
+    const close = text.indexOf("}", kids[i].to);
+    const end = i + 1 < kids.length ? text.lastIndexOf("{", kids[i + 1].from) : to;
+    const literal = text.slice(close + 1, end);
+    if (literal) parts.push(literal);
+  }
+  return { k: "interp", from, to, parts };
+}
+
+/** Every sub-expression of `e` (pre-order), including `e`. */
+export function* walk(e: Expr): Generator<Expr> {
+  yield e;
+  switch (e.k) {
+    case "unary":
+      yield* walk(e.arg);
+      break;
+    case "binary":
+      yield* walk(e.left);
+      yield* walk(e.right);
+      break;
+    case "call":
+      for (const a of e.args) yield* walk(a);
+      break;
+    case "interp":
+      for (const p of e.parts) if (typeof p !== "string") yield* walk(p);
+      break;
+  }
+}
+
+export function isBad(e: Expr): boolean {
+  for (const x of walk(e)) if (x.k === "bad") return true;
+  return false;
+}
+
+/** The value of a name-free arithmetic expression, NaN otherwise (used for constant exponents). */
+export function constantValue(e: Expr): number {
+  switch (e.k) {
+    case "num":
+      return e.value;
+    case "unary":
+      return e.op === "-" ? -constantValue(e.arg) : constantValue(e.arg);
+    case "binary": {
+      const a = constantValue(e.left);
+      const b = constantValue(e.right);
+      switch (e.op) {
+        case "+":
+          return a + b;
+        case "-":
+          return a - b;
+        case "*":
+          return a * b;
+        case "/":
+          return a / b;
+        case "^":
+          return Math.pow(a, b);
+      }
+      return NaN;
+    }
+    default:
+      return NaN;
+  }
+}
+
+type FnDim = (args: Dim[], call: CallExpr, report: DimReport) => Dim;
+type DimReport = (from: number, to: number, message: string, hint?: string) => void;
+
+function dimensionlessArg(name: string): FnDim {
+  return (args, call, report) => {
+    const a = args[0];
+    if (hasUnit(a)) {
+      const arg = call.args[0];
+      report(
+        arg.from,
+        arg.to,
+        `${name}() needs a dimensionless argument, but this is ${describeDim(a)}`,
+        "divide a voltage by ut (or a current by a current) first, e.g. exp(v/ut)",
+      );
+      return UNKNOWN;
+    }
+    return a.kind === "loose" ? LOOSE : a.kind === "known" ? DIMENSIONLESS : UNKNOWN;
+  };
+}
+
+function sameDims(name: string): FnDim {
+  return (args, call, report) => {
+    let d: Dim = args[0];
+    for (let i = 1; i < args.length; i++) {
+      if (!compatible(d, args[i])) {
+        const arg = call.args[i];
+        report(arg.from, arg.to, `${name}() mixes ${describeDim(d)} with ${describeDim(args[i])}`);
+        return UNKNOWN;
+      }
+      d = addDim(d, args[i]);
+    }
+    return d;
+  };
+}
+
+const passFirst: FnDim = (args) => args[0];
+
+/** The math.js functions an expression may call, with their arity and dimension rule. */
+export const FUNCTIONS: Record<string, { min: number; max: number; dim: FnDim }> = {
+  exp: { min: 1, max: 1, dim: dimensionlessArg("exp") },
+  log: { min: 1, max: 2, dim: dimensionlessArg("log") },
+  log10: { min: 1, max: 1, dim: dimensionlessArg("log10") },
+  log2: { min: 1, max: 1, dim: dimensionlessArg("log2") },
+  sinh: { min: 1, max: 1, dim: dimensionlessArg("sinh") },
+  cosh: { min: 1, max: 1, dim: dimensionlessArg("cosh") },
+  tanh: { min: 1, max: 1, dim: dimensionlessArg("tanh") },
+  asinh: { min: 1, max: 1, dim: dimensionlessArg("asinh") },
+  acosh: { min: 1, max: 1, dim: dimensionlessArg("acosh") },
+  atanh: { min: 1, max: 1, dim: dimensionlessArg("atanh") },
+  sin: { min: 1, max: 1, dim: dimensionlessArg("sin") },
+  cos: { min: 1, max: 1, dim: dimensionlessArg("cos") },
+  tan: { min: 1, max: 1, dim: dimensionlessArg("tan") },
+  asin: { min: 1, max: 1, dim: dimensionlessArg("asin") },
+  acos: { min: 1, max: 1, dim: dimensionlessArg("acos") },
+  atan: { min: 1, max: 1, dim: dimensionlessArg("atan") },
+  atan2: { min: 2, max: 2, dim: (a, c, r) => (sameDims("atan2")(a, c, r).kind === "unknown" ? UNKNOWN : LOOSE) },
+  sqrt: { min: 1, max: 1, dim: (a) => powDim(a[0], 0.5) },
+  cbrt: { min: 1, max: 1, dim: (a) => powDim(a[0], 1 / 3) },
+  abs: { min: 1, max: 1, dim: passFirst },
+  sign: { min: 1, max: 1, dim: () => LOOSE },
+  floor: { min: 1, max: 1, dim: passFirst },
+  ceil: { min: 1, max: 1, dim: passFirst },
+  round: { min: 1, max: 2, dim: passFirst },
+  min: { min: 1, max: 64, dim: sameDims("min") },
+  max: { min: 1, max: 64, dim: sameDims("max") },
+  hypot: { min: 1, max: 64, dim: sameDims("hypot") },
+  mod: { min: 2, max: 2, dim: sameDims("mod") },
+  pow: {
+    min: 2,
+    max: 2,
+    dim: (a, c, r) => {
+      if (hasUnit(a[1])) {
+        r(c.args[1].from, c.args[1].to, `an exponent must be dimensionless, but this is ${describeDim(a[1])}`);
+        return UNKNOWN;
+      }
+      return powDim(a[0], constantValue(c.args[1]));
+    },
+  },
+};
+
+/** Built-in names usable in any expression, with their dimensions. */
+export const BUILTINS: Record<string, Dim> = {
+  ut: { kind: "known", v: 1, a: 0, k: 0 },
+  kappa: DIMENSIONLESS,
+  temp: { kind: "known", v: 0, a: 0, k: 1 },
+  pi: LOOSE,
+  e: LOOSE,
+};
+
+/** Names that exist only inside probes. */
+export const PROBE_FUNCTIONS = new Set(["voltage", "current"]);
+
+export interface DimContext {
+  /** Dimension of a plain name, or null after reporting it. */
+  name(e: NameExpr): Dim | null;
+  /** A probe call voltage(...)/current(...): its dimension, or null after reporting it. */
+  probeCall(e: CallExpr): Dim | null;
+  /** An interpolated name used as a value (only valid as a probe argument). */
+  interp(e: InterpExpr): void;
+  report: DimReport;
+}
+
+/**
+ * The dimension of `e`, reporting unknown names, bad calls and dimension
+ * clashes through `ctx`. Returns null when something was reported (the
+ * expression must then not be evaluated).
+ */
+export function inferDim(e: Expr, ctx: DimContext): Dim | null {
+  switch (e.k) {
+    case "bad":
+      return null;
+    case "num":
+      return e.unit ? unitDim(e.unit) : LOOSE;
+    case "name":
+      return ctx.name(e);
+    case "interp":
+      ctx.interp(e);
+      return null;
+    case "unary":
+      return inferDim(e.arg, ctx);
+    case "binary": {
+      const l = inferDim(e.left, ctx);
+      const r = inferDim(e.right, ctx);
+      if (!l || !r) return null;
+      switch (e.op) {
+        case "+":
+        case "-":
+          if (!compatible(l, r)) {
+            ctx.report(
+              e.opFrom,
+              e.opTo,
+              `cannot ${e.op === "+" ? "add" : "subtract"} ${describeDim(r)} ${e.op === "+" ? "to" : "from"} ${describeDim(l)}`,
+              "both sides of + and - must have the same unit",
+            );
+            return null;
+          }
+          return addDim(l, r);
+        case "*":
+          return mulDim(l, r, 1);
+        case "/":
+          return mulDim(l, r, -1);
+        case "^":
+          if (hasUnit(r)) {
+            ctx.report(e.right.from, e.right.to, `an exponent must be dimensionless, but this is ${describeDim(r)}`);
+            return null;
+          }
+          return powDim(l, constantValue(e.right));
+      }
+      return UNKNOWN;
+    }
+    case "call": {
+      if (PROBE_FUNCTIONS.has(e.fn)) return ctx.probeCall(e);
+      const f = FUNCTIONS[e.fn];
+      if (!f) {
+        ctx.report(
+          e.fnFrom,
+          e.fnTo,
+          `unknown function '${e.fn}'`,
+          `functions: ${Object.keys(FUNCTIONS).join(", ")}; in a probe also voltage() and current()`,
+        );
+        return null;
+      }
+      if (e.args.length < f.min || e.args.length > f.max) {
+        const want = f.min === f.max ? `${f.min}` : f.max > 8 ? `at least ${f.min}` : `${f.min} or ${f.max}`;
+        ctx.report(e.fnFrom, e.fnTo, `${e.fn}() takes ${want} argument${want === "1" ? "" : "s"}, not ${e.args.length}`);
+        return null;
+      }
+      const dims: Dim[] = [];
+      let ok = true;
+      for (const a of e.args) {
+        const d = inferDim(a, ctx);
+        if (!d) ok = false;
+        else dims.push(d);
+      }
+      if (!ok) return null;
+      return f.dim(dims, e, ctx.report);
+    }
+  }
+}
+
+/**
+ * A canonical text of `e` (fully parenthesised): the compile-cache key.
+ * Probe calls appear as their placeholder symbols.
+ */
+export function exprKey(e: Expr, placeholder?: (c: CallExpr) => string): string {
+  switch (e.k) {
+    case "num":
+      return String(e.value);
+    case "name":
+      return e.name;
+    case "unary":
+      return `${e.op}(${exprKey(e.arg, placeholder)})`;
+    case "binary":
+      return `(${exprKey(e.left, placeholder)})${e.op}(${exprKey(e.right, placeholder)})`;
+    case "call":
+      if (placeholder && PROBE_FUNCTIONS.has(e.fn)) return placeholder(e);
+      return `${e.fn}(${e.args.map((a) => exprKey(a, placeholder)).join(",")})`;
+    default:
+      return "?";
+  }
+}
+
+const OPERATOR: Record<BinaryOp, string> = { "+": "add", "-": "subtract", "*": "multiply", "/": "divide", "^": "pow" };
+
+function toMathNode(e: Expr, placeholder?: (c: CallExpr) => string): MathNode {
+  switch (e.k) {
+    case "num":
+      return new math.ConstantNode(e.value);
+    case "name":
+      return new math.SymbolNode(e.name);
+    case "unary": {
+      const arg = toMathNode(e.arg, placeholder);
+      return e.op === "-" ? new math.OperatorNode("-", "unaryMinus", [arg]) : arg;
+    }
+    case "binary":
+      return new math.OperatorNode(e.op as "+", OPERATOR[e.op] as "add", [
+        toMathNode(e.left, placeholder),
+        toMathNode(e.right, placeholder),
+      ]);
+    case "call":
+      if (placeholder && PROBE_FUNCTIONS.has(e.fn)) return new math.SymbolNode(placeholder(e));
+      return new math.FunctionNode(
+        new math.SymbolNode(e.fn),
+        e.args.map((a) => toMathNode(a, placeholder)),
+      );
+    default:
+      throw new Error("internal: a bad expression reached compilation");
+  }
+}
+
+/** Compiles expressions to math.js evaluation functions, once per canonical text. */
+export class ExprCompiler {
+  private readonly cache = new Map<string, EvalFunction>();
+
+  compile(e: Expr, placeholder?: (c: CallExpr) => string): EvalFunction {
+    const key = exprKey(e, placeholder);
+    let fn = this.cache.get(key);
+    if (!fn) {
+      fn = toMathNode(e, placeholder).compile();
+      this.cache.set(key, fn);
+    }
+    return fn;
+  }
+}
+
+/** A read-only scope for math.js: loop variables over a record of point values. */
+export class LayeredScope {
+  constructor(
+    private readonly base: Readonly<Record<string, number>>,
+    private readonly names: readonly string[],
+    private readonly values: readonly number[],
+  ) {}
+  get(key: string): number | undefined {
+    const i = this.names.indexOf(key);
+    return i >= 0 ? this.values[i] : this.base[key];
+  }
+  has(key: string): boolean {
+    return this.names.includes(key) || Object.prototype.hasOwnProperty.call(this.base, key);
+  }
+  set(): this {
+    throw new Error("a Rill scope is read-only");
+  }
+  keys(): IterableIterator<string> {
+    return [...this.names, ...Object.keys(this.base)][Symbol.iterator]();
+  }
+}
+
+/** Evaluates a compiled expression to a number; NaN when it throws or is not a real number. */
+export function evaluateNumber(fn: EvalFunction, scope: unknown): number {
+  try {
+    const v: unknown = fn.evaluate(scope as Map<string, number>);
+    return typeof v === "number" ? v : NaN;
+  } catch {
+    return NaN;
+  }
+}

@@ -1,0 +1,229 @@
+import type { SyntaxNode, Tree } from "@lezer/common";
+import type { DiagnosticSink, LineIndex } from "./diagnostics";
+
+/** The statement words, in the order a designer meets them. */
+export const STATEMENT_WORDS = [
+  "network",
+  "set",
+  "param",
+  "rail",
+  "nfet",
+  "pfet",
+  "inject",
+  "probe",
+  "for",
+  "sweep",
+  "mismatch",
+] as const;
+
+const STATEMENT_HINT = `a statement starts with one of: ${STATEMENT_WORDS.join(", ")}`;
+const NAMED_KEYWORDS = new Set(["network", "param", "rail", "nfet", "pfet", "inject", "probe"]);
+const EXPRESSIONS = new Set([
+  "Number",
+  "Identifier",
+  "InterpolatedName",
+  "CallExpression",
+  "ParenthesizedExpression",
+  "UnaryExpression",
+  "BinaryExpression",
+]);
+
+interface Token {
+  from: number;
+  to: number;
+  /** How the message names it: `'x'`, "the end of the line", "the end of the file". */
+  found: string;
+}
+
+function isNameChar(c: string): boolean {
+  return /[A-Za-z0-9_]/.test(c);
+}
+
+/** The token at or after `pos` (spaces skipped, a comment counts as the end of the line). */
+function tokenAt(text: string, pos: number): Token {
+  let i = pos;
+  while (i < text.length && (text[i] === " " || text[i] === "\t" || text[i] === "\r" || text[i] === "\uFEFF")) i++;
+  if (i < text.length && text[i] === "#") while (i < text.length && text[i] !== "\n") i++;
+  if (i >= text.length) return { from: text.length, to: text.length, found: "the end of the file" };
+  if (text[i] === "\n") return { from: i, to: i, found: "the end of the line" };
+  let j = i + 1;
+  if (isNameChar(text[i]) || (text[i] === "." && /[0-9]/.test(text[i + 1] ?? ""))) {
+    while (j < text.length && (isNameChar(text[j]) || text[j] === "." || text[j] === "µ")) j++;
+    if (text.slice(i, j).includes("..") && /[0-9]/.test(text[i])) j = text.indexOf("..", i);
+  } else if (text.startsWith("..", i)) j = i + 2;
+  else if (text.charCodeAt(i) >= 0xd800 && text.charCodeAt(i) < 0xdc00 && i + 1 < text.length) j = i + 2;
+  return { from: i, to: j, found: `'${text.slice(i, j)}'` };
+}
+
+function significantPrev(node: SyntaxNode): SyntaxNode | null {
+  let p = node.prevSibling;
+  while (p && (p.name === "Comment" || p.type.isError)) p = p.prevSibling;
+  return p;
+}
+
+function startsLine(text: string, pos: number): boolean {
+  for (let i = pos - 1; i >= 0; i--) {
+    const c = text[i];
+    if (c === "\n") return true;
+    if (c !== " " && c !== "\t" && c !== "\r" && c !== "\uFEFF") return false;
+  }
+  return true;
+}
+
+function describeStatement(name: string | undefined): string {
+  switch (name) {
+    case "DeviceStatement":
+      return "device statement";
+    case "ForStatement":
+      return "for block";
+    case undefined:
+      return "statement";
+    default:
+      return `${name.replace("Statement", "").toLowerCase()} statement`;
+  }
+}
+
+interface Explained {
+  from: number;
+  to: number;
+  message: string;
+  hint?: string;
+}
+
+function explain(err: SyntaxNode, text: string): Explained {
+  const tok = tokenAt(text, err.from);
+  const at = (message: string, hint?: string): Explained => ({ from: tok.from, to: tok.to, message, hint });
+  const expected = (what: string, hint?: string) => at(`expected ${what}, found ${tok.found}`, hint);
+  const parent = err.parent;
+  const pname = parent?.name ?? "Network";
+  const prev = significantPrev(err);
+  const prevName = prev?.name;
+  const prevText = prev ? text.slice(prev.from, prev.to) : "";
+
+  if (pname === "Network" || pname === "Block") {
+    if (pname === "Block" && tok.found === "the end of the file" && parent) {
+      const open = parent.from;
+      return {
+        from: open,
+        to: open + 1,
+        message: "this '{' is never closed: expected '}' after the loop body",
+        hint: "put '}' on a line after the last statement of the loop",
+      };
+    }
+    if (startsLine(text, tok.from) || !prev) {
+      if (tok.found === "'}'") return at("unmatched '}'", "every '}' closes a for block opened with '{'");
+      if (/^'[A-Za-z_]/.test(tok.found)) return at(`unknown statement ${tok.found}`, STATEMENT_HINT);
+      return at(`a statement cannot start with ${tok.found}`, STATEMENT_HINT);
+    }
+    if (tok.found === "','") return at("unexpected ','", "pins are separated by spaces, not commas");
+    return at(
+      `unexpected ${tok.found} after the end of the ${describeStatement(prevName)}`,
+      "each statement goes on its own line",
+    );
+  }
+
+  if (parent && pname.endsWith("Statement") && !prev) {
+    if (/^'[A-Za-z_]/.test(tok.found)) return at(`unknown statement ${tok.found}`, STATEMENT_HINT);
+    return at(`a statement cannot start with ${tok.found}`, STATEMENT_HINT);
+  }
+
+  if (tok.found === "','" && (pname === "DeviceStatement" || pname === "InjectStatement" || pname === "Pin"))
+    return at("unexpected ','", "pins are separated by spaces, not commas");
+
+  switch (pname) {
+    case "NetworkStatement":
+    case "ParamStatement":
+    case "RailStatement":
+    case "ProbeStatement":
+    case "SetStatement":
+      if (prevName && NAMED_KEYWORDS.has(prevName)) return expected(`a name after '${prevName}'`);
+      if (prevName === "set") return expected("a setting name after 'set'", "settings: kappa, temp, i0, vt0, ispec, model");
+      if (prevName === "Definition" || prevName === "SettingName") return expected(`'=' after '${prevText}'`);
+      if (prevName === "=") return expected("a value after '='");
+      break;
+    case "DeviceStatement":
+    case "InjectStatement": {
+      if (prevName && NAMED_KEYWORDS.has(prevName)) return expected(`a name after '${prevName}'`);
+      const kind = parent?.firstChild?.name ?? "nfet";
+      const pins =
+        kind === "inject" ? "from, to, value" : kind === "pfet" ? "gate, source, drain, well, w, l" : "gate, source, drain, bulk, w, l";
+      return expected(`a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`, `${kind} pins: ${pins}, written key=value`);
+    }
+    case "Pin":
+      if (prevName === "PinName") return expected(`'=' after the pin name '${prevText}'`);
+      if (prevName === "=") {
+        const key = parent?.firstChild ? text.slice(parent.firstChild.from, parent.firstChild.to) : "";
+        return expected(`a value after '${key}='`);
+      }
+      break;
+    case "ForStatement":
+      if (prevName === "for") return expected("a loop variable after 'for'");
+      if (prevName === "VariableName") return expected("'in' after the loop variable");
+      if (prevName === "in") return expected("a range such as 0..63 after 'in'");
+      if (prevName === "Range") return expected("'{' to open the loop body on this line");
+      break;
+    case "Range":
+      if (prevName === "..") return expected("the last value of the range after '..'");
+      if (prevName && EXPRESSIONS.has(prevName)) return expected("'..' between the first and last value of the range");
+      return expected("a range such as 0..63");
+    case "SweepStatement":
+      if (prevName === "sweep") return expected("the name of a param (or temp) after 'sweep'");
+      return expected("'from A to B step S', 'from A to B points N' or 'values [a, b, ...]'");
+    case "SweepRange":
+      if (prevName === "from") return expected("the first value after 'from'");
+      if (prevName === "to") return expected("the last value after 'to'");
+      if (prevName && EXPRESSIONS.has(prevName)) {
+        const seenTo = parent?.getChild("to");
+        return seenTo ? expected("'step S' or 'points N'") : expected("'to' and the last value");
+      }
+      break;
+    case "SweepStep":
+      return expected("the step size after 'step'");
+    case "SweepPoints":
+      if (prevName === "points") return expected("the number of points after 'points'");
+      return expected("'log' or the end of the line");
+    case "SweepList":
+      if (prevName === "values") return expected("'[' after 'values'");
+      return expected("a value, ',' or ']'");
+    case "MismatchStatement":
+      return expected("'runs N', 'seed S' or 'avt A'", "mismatch runs N seed S avt A");
+    case "MismatchOption":
+      return expected(`a value after '${prevText}'`);
+    case "BinaryExpression":
+    case "UnaryExpression":
+      return expected(`a value after '${prevText}'`);
+    case "ParenthesizedExpression":
+      if (prevName && EXPRESSIONS.has(prevName)) return expected("')'");
+      return expected("an expression after '('");
+    case "ArgList":
+      if (prevName && EXPRESSIONS.has(prevName)) return expected("',' or ')'");
+      return expected("an argument");
+    case "InterpolatedName":
+      if (prevName && EXPRESSIONS.has(prevName)) return expected("'}' to close the {…} piece of the name");
+      return expected("an integer expression inside {…}");
+  }
+  return at(`unexpected ${tok.found}`);
+}
+
+/**
+ * One error per syntax-error node of `tree`, at most one per line (the first
+ * error on a line explains it; later ones on that line are consequences).
+ */
+export function reportSyntaxErrors(tree: Tree, text: string, sink: DiagnosticSink, lines: LineIndex): number {
+  const seenLines = new Set<number>();
+  let count = 0;
+  tree.iterate({
+    enter(n) {
+      if (!n.type.isError) return true;
+      const e = explain(n.node, text);
+      const line = lines.position(e.from).line;
+      if (!seenLines.has(line)) {
+        seenLines.add(line);
+        sink.error(e.from, e.to, e.message, e.hint);
+        count++;
+      }
+      return false;
+    },
+  });
+  return count;
+}

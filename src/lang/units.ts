@@ -1,0 +1,101 @@
+/**
+ * Dimensions of values in Rill expressions: powers of volt, ampere and kelvin.
+ *
+ * Soundness rule: only a clash between two KNOWN dimensions is an error.
+ * - `known`: a literal with a unit symbol (`450mV`), `ut`, `kappa`, `temp`,
+ *   voltage(), current(), and whatever is derived from them.
+ * - `loose`: a bare number (`0.45`) or a loop variable. It adapts: in `+`/`-`
+ *   it takes the other side's dimension, in `*`/`/` it is a plain scalar.
+ * - `unknown`: nothing can be said (e.g. `x ^ y` with a non-constant y); never an error.
+ */
+export type Dim =
+  | { kind: "unknown" }
+  | { kind: "loose" }
+  | { kind: "known"; v: number; a: number; k: number };
+
+export const UNKNOWN: Dim = { kind: "unknown" };
+export const LOOSE: Dim = { kind: "loose" };
+export const DIMENSIONLESS: Dim = { kind: "known", v: 0, a: 0, k: 0 };
+export const VOLT: Dim = { kind: "known", v: 1, a: 0, k: 0 };
+export const AMPERE: Dim = { kind: "known", v: 0, a: 1, k: 0 };
+export const KELVIN: Dim = { kind: "known", v: 0, a: 0, k: 1 };
+
+export function known(v: number, a: number, k: number): Dim {
+  return { kind: "known", v, a, k };
+}
+
+export function unitDim(symbol: string): Dim {
+  return symbol === "V" ? VOLT : symbol === "A" ? AMPERE : symbol === "K" ? KELVIN : LOOSE;
+}
+
+function isDimensionless(d: Dim): boolean {
+  return d.kind === "known" && d.v === 0 && d.a === 0 && d.k === 0;
+}
+
+/** True when `d` is known and not dimensionless (a physical quantity). */
+export function hasUnit(d: Dim): boolean {
+  return d.kind === "known" && !isDimensionless(d);
+}
+
+export function sameDim(x: Dim, y: Dim): boolean {
+  return x.kind === "known" && y.kind === "known" && x.v === y.v && x.a === y.a && x.k === y.k;
+}
+
+/** Two dimensions are compatible unless both are known and differ. */
+export function compatible(x: Dim, y: Dim): boolean {
+  return x.kind !== "known" || y.kind !== "known" || sameDim(x, y);
+}
+
+export function mulDim(x: Dim, y: Dim, sign: 1 | -1): Dim {
+  if (x.kind === "unknown" || y.kind === "unknown") return UNKNOWN;
+  if (x.kind === "loose" && y.kind === "loose") return LOOSE;
+  const xv = x.kind === "known" ? x : DIMENSIONLESS;
+  const yv = y.kind === "known" ? y : DIMENSIONLESS;
+  if (xv.kind !== "known" || yv.kind !== "known") return UNKNOWN;
+  return known(xv.v + sign * yv.v, xv.a + sign * yv.a, xv.k + sign * yv.k);
+}
+
+/** Sum of two compatible dimensions (caller checks `compatible` first). */
+export function addDim(x: Dim, y: Dim): Dim {
+  if (x.kind === "known") return x;
+  if (y.kind === "known") return y;
+  if (x.kind === "unknown" || y.kind === "unknown") return UNKNOWN;
+  return LOOSE;
+}
+
+/** x ^ e for a constant exponent e (NaN when not constant). */
+export function powDim(x: Dim, e: number): Dim {
+  if (x.kind !== "known") return x.kind === "loose" ? LOOSE : UNKNOWN;
+  if (isDimensionless(x)) return DIMENSIONLESS;
+  if (!Number.isFinite(e)) return UNKNOWN;
+  const v = x.v * e, a = x.a * e, k = x.k * e;
+  if (!Number.isInteger(v) || !Number.isInteger(a) || !Number.isInteger(k)) return UNKNOWN;
+  return known(v, a, k);
+}
+
+function power(symbol: string, n: number): string {
+  return n === 1 ? symbol : `${symbol}^${n}`;
+}
+
+/** Symbolic form: "V", "A", "V/K", "V·A", "1/A", "dimensionless". */
+export function formatDim(d: Dim): string {
+  if (d.kind !== "known") return "a plain number";
+  if (isDimensionless(d)) return "dimensionless";
+  const num: string[] = [];
+  const den: string[] = [];
+  for (const [s, n] of [["V", d.v], ["A", d.a], ["K", d.k]] as const) {
+    if (n > 0) num.push(power(s, n));
+    else if (n < 0) den.push(power(s, -n));
+  }
+  const top = num.length ? num.join("·") : "1";
+  return den.length ? `${top}/${den.join("·")}` : top;
+}
+
+/** Words for messages: "volts (V)", "amperes (A)", "kelvin (K)", or the symbolic form. */
+export function describeDim(d: Dim): string {
+  if (sameDim(d, VOLT)) return "volts (V)";
+  if (sameDim(d, AMPERE)) return "amperes (A)";
+  if (sameDim(d, KELVIN)) return "kelvin (K)";
+  if (d.kind === "known" && isDimensionless(d)) return "a dimensionless number";
+  return formatDim(d);
+}
