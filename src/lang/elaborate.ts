@@ -1683,13 +1683,16 @@ class Elaborator {
   }
 }
 
+/** The result for a text longer than the limit: one error at 1:1, nothing parsed. */
+export function tooLargeResult(size: number, unit: "characters" | "bytes", limit = DEFAULT_LIMITS.maxSourceLength): ElaborationResult {
+  const sink = new DiagnosticSink("", 1);
+  const mb = limit / (1024 * 1024);
+  sink.error(0, 0, `the file is too large: ${size.toLocaleString("en-US")} ${unit}, the limit is ${mb.toLocaleString("en-US")} MB`, "use for loops instead of writing every device out");
+  return { network: null, diagnostics: sink.finish(), ok: false, name: null };
+}
+
 export function elaborateText(text: string, options: ElaborateOptions = {}): ElaborationResult {
   const limits: Limits = { ...DEFAULT_LIMITS, ...options.limits };
-  if (text.length > limits.maxSourceLength) {
-    const sink = new DiagnosticSink(text, 1);
-    sink.error(0, 0, `the file is too large: ${text.length.toLocaleString("en-US")} characters, the limit is ${limits.maxSourceLength.toLocaleString("en-US")} (2 MB)`, "use for loops instead of writing every device out");
-    return { network: null, diagnostics: sink.finish(), ok: false, name: null };
-  }
-  const e = new Elaborator(text, limits);
-  return e.run();
+  if (text.length > limits.maxSourceLength) return tooLargeResult(text.length, "characters", limits.maxSourceLength);
+  return new Elaborator(text, limits).run();
 }

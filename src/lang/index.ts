@@ -10,7 +10,7 @@ import { parser } from "./parser";
 export type * from "./network";
 export { NFET, PFET, SUBSTRATE } from "./network";
 export { applyPoint, pointScope, thermalVoltage, BOLTZMANN, ELEMENTARY_CHARGE } from "./point";
-export { DEFAULT_LIMITS, type ElaborateOptions, type Limits } from "./elaborate";
+export { DEFAULT_LIMITS, tooLargeResult, type ElaborateOptions, type Limits } from "./elaborate";
 export {
   diagnosticsDocument,
   formatDiagnostic,

@@ -1,0 +1,117 @@
+/**
+ * The `rill` command line: `rill check FILE [--json]`, `rill solve FILE --json`.
+ * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file).
+ * File reading lives here only; src/lang has no I/O.
+ */
+import { readFileSync, statSync } from "node:fs";
+import { DEFAULT_LIMITS, diagnosticsDocument, elaborate, type ElaborationResult, formatDiagnostics, tooLargeResult } from "../src/lang/index";
+
+const EXIT_OK = 0;
+const EXIT_ERRORS = 1;
+const EXIT_USAGE = 2;
+
+interface Io {
+  out(text: string): void;
+  err(text: string): void;
+}
+
+/** A subcommand gets its arguments (after the subcommand word) and returns the exit status. */
+type Subcommand = { usage: string; summary: string; run(args: string[], io: Io): number };
+
+class UsageError extends Error {}
+
+/** Splits `args` into one FILE and the flags in `allowed`. */
+function fileAndFlags(args: string[], allowed: string[]): { file: string; flags: Set<string> } {
+  const flags = new Set<string>();
+  const files: string[] = [];
+  for (const a of args) {
+    if (a.startsWith("--")) {
+      if (!allowed.includes(a)) throw new UsageError(`unknown option ${a}`);
+      flags.add(a);
+    } else files.push(a);
+  }
+  if (files.length !== 1) throw new UsageError(files.length === 0 ? "missing FILE" : "give exactly one FILE");
+  return { file: files[0], flags };
+}
+
+/**
+ * Elaborates a network file. An unreadable file is a usage error; a file far
+ * beyond the language's size limit is refused without being read whole.
+ */
+export function elaborateFile(file: string): ElaborationResult {
+  let size: number;
+  try {
+    const st = statSync(file);
+    if (!st.isFile()) throw new UsageError(`${file}: not a file`);
+    size = st.size;
+  } catch (e) {
+    if (e instanceof UsageError) throw e;
+    throw new UsageError(`${file}: cannot read the file (${(e as NodeJS.ErrnoException).code ?? "error"})`);
+  }
+  // A file far beyond the language's limit is not read whole: elaboration reports the limit.
+  if (size > DEFAULT_LIMITS.maxSourceLength * 4) return tooLargeResult(size, "bytes");
+  let text: string;
+  try {
+    text = readFileSync(file, "utf8");
+  } catch (e) {
+    throw new UsageError(`${file}: cannot read the file (${(e as NodeJS.ErrnoException).code ?? "error"})`);
+  }
+  return elaborate(text);
+}
+
+const check: Subcommand = {
+  usage: "rill check FILE [--json]",
+  summary: "print the diagnostics of a network file",
+  run(args, io) {
+    const { file, flags } = fileAndFlags(args, ["--json"]);
+    const result = elaborateFile(file);
+    if (flags.has("--json")) io.out(JSON.stringify(diagnosticsDocument(result), null, 2));
+    else if (result.diagnostics.length) io.out(formatDiagnostics(file, result.diagnostics));
+    return result.ok ? EXIT_OK : EXIT_ERRORS;
+  },
+};
+
+const solve: Subcommand = {
+  usage: "rill solve FILE --json",
+  summary: "solve every point and print one JSON document",
+  run(_args, io) {
+    io.err("solve: not available yet");
+    return EXIT_USAGE;
+  },
+};
+
+/** The subcommands; adding one is one entry here. */
+const SUBCOMMANDS: Record<string, Subcommand> = { check, solve };
+
+function usage(): string {
+  const lines = Object.values(SUBCOMMANDS).map((c) => `  ${c.usage.padEnd(28)} ${c.summary}`);
+  return `usage:\n${lines.join("\n")}`;
+}
+
+export function main(argv: string[], io: Io): number {
+  const [name, ...rest] = argv;
+  if (!name || name === "--help" || name === "-h") {
+    io.err(usage());
+    return EXIT_USAGE;
+  }
+  const cmd = Object.prototype.hasOwnProperty.call(SUBCOMMANDS, name) ? SUBCOMMANDS[name] : undefined;
+  if (!cmd) {
+    io.err(`rill: unknown command '${name}'\n${usage()}`);
+    return EXIT_USAGE;
+  }
+  try {
+    return cmd.run(rest, io);
+  } catch (e) {
+    if (e instanceof UsageError) {
+      io.err(`rill ${name}: ${e.message}\nusage: ${cmd.usage}`);
+      return EXIT_USAGE;
+    }
+    throw e;
+  }
+}
+
+const io: Io = {
+  out: (t) => process.stdout.write(t.endsWith("\n") ? t : `${t}\n`),
+  err: (t) => process.stderr.write(t.endsWith("\n") ? t : `${t}\n`),
+};
+process.exitCode = main(process.argv.slice(2), io);
