@@ -1,0 +1,168 @@
+/**
+ * The workbench tables: networks, their commits, runs of a commit, and the
+ * stored results of every point of a run.
+ *
+ * Invariants
+ * - A commit is immutable. `id` = SHA-256 hex of (parent id, or "network:" +
+ *   network id for a first commit) + "\n" + text, so the same text on two
+ *   different parents (or in two networks) makes two distinct commits, and a
+ *   commit id names its whole history. `text_sha256` = SHA-256 hex of the text alone.
+ * - A run belongs to one commit; `workspace_id` and `network_id` are copies of
+ *   the commit's, so the policy check of a run needs no join.
+ * - Run states: queued → running → done | failed | canceled | interrupted
+ *   (interrupted: the server stopped while the run was running).
+ * - `run_points` holds one row per solved point, typed-array columns as
+ *   little-endian blobs whose element order is the run's `layout` (node,
+ *   device, rail, probe and param names, fixed when the run starts).
+ */
+import { sql } from "drizzle-orm";
+import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { users, workspaces } from "./schema";
+
+const now = sql`(cast(unixepoch('subsec') * 1000 as integer))`;
+const createdAt = () => integer("created_at", { mode: "timestamp_ms" }).notNull().default(now);
+
+export const RUN_STATES = ["queued", "running", "done", "failed", "canceled", "interrupted"] as const;
+export type RunState = (typeof RUN_STATES)[number];
+/** States a run never leaves. */
+export const FINAL_RUN_STATES: readonly RunState[] = ["done", "failed", "canceled", "interrupted"];
+
+export const networks = sqliteTable(
+  "networks",
+  {
+    id: text("id").primaryKey(),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    /** URL name, unique in the workspace: /w/[ws]/n/[slug]. */
+    slug: text("slug").notNull(),
+    name: text("name").notNull(),
+    /** Newest commit, null before the first one. */
+    headCommitId: text("head_commit_id"),
+    createdBy: text("created_by")
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    updatedAt: integer("updated_at", { mode: "timestamp_ms" }).notNull().default(now),
+  },
+  (t) => [
+    // "the network /w/[ws]/n/[slug]" and the workspace's network list
+    uniqueIndex("networks_workspace_slug_idx").on(t.workspaceId, t.slug),
+  ],
+);
+
+export const commits = sqliteTable(
+  "commits",
+  {
+    id: text("id").primaryKey(),
+    networkId: text("network_id")
+      .notNull()
+      .references(() => networks.id, { onDelete: "cascade" }),
+    parentId: text("parent_id"),
+    text: text("text").notNull(),
+    textSha256: text("text_sha256").notNull(),
+    message: text("message").notNull(),
+    authorId: text("author_id")
+      .notNull()
+      .references(() => users.id),
+    /** Elaborated without errors: only such a commit can be run. */
+    ok: integer("ok", { mode: "boolean" }).notNull(),
+    errorCount: integer("error_count").notNull(),
+    warningCount: integer("warning_count").notNull(),
+    /** The diagnostics at commit time, JSON (LANGUAGE.md's diagnostic objects). */
+    diagnostics: text("diagnostics", { mode: "json" }).notNull().$type<CommitDiagnostic[]>(),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    // a network's history, newest first
+    index("commits_network_created_idx").on(t.networkId, t.createdAt),
+  ],
+);
+
+export interface CommitDiagnostic {
+  severity: "error" | "warning";
+  line: number;
+  column: number;
+  message: string;
+}
+
+export const runs = sqliteTable(
+  "runs",
+  {
+    id: text("id").primaryKey(),
+    commitId: text("commit_id")
+      .notNull()
+      .references(() => commits.id, { onDelete: "cascade" }),
+    networkId: text("network_id")
+      .notNull()
+      .references(() => networks.id, { onDelete: "cascade" }),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    createdBy: text("created_by")
+      .notNull()
+      .references(() => users.id),
+    state: text("state", { enum: RUN_STATES }).notNull().default("queued"),
+    /** Why a run failed, was canceled or interrupted; null otherwise. */
+    reason: text("reason"),
+    pointsTotal: integer("points_total").notNull(),
+    pointsDone: integer("points_done").notNull().default(0),
+    /** Per-run time limit in milliseconds. */
+    timeLimitMs: integer("time_limit_ms").notNull(),
+    /** Set by the supervisor to ask the worker to stop; the worker then ends the run canceled. */
+    cancelRequested: integer("cancel_requested", { mode: "boolean" }).notNull().default(false),
+    /** Names of nodes, devices, rails, probes and params (JSON RunLayout), written when the run starts. */
+    layout: text("layout"),
+    /** Model settings of the commit (JSON), written when the run starts. */
+    model: text("model"),
+    /** Counts over all points, written when the run ends. */
+    newtonPoints: integer("newton_points"),
+    devicesNotWeak: integer("devices_not_weak"),
+    devicesNotSaturated: integer("devices_not_saturated"),
+    maxResidual: real("max_residual"),
+    /** Solver's reason for its method (same for every point of a run), null before the first point. */
+    solverReason: text("solver_reason"),
+    createdAt: createdAt(),
+    startedAt: integer("started_at", { mode: "timestamp_ms" }),
+    finishedAt: integer("finished_at", { mode: "timestamp_ms" }),
+  },
+  (t) => [
+    // the runs of a commit (network page), newest first
+    index("runs_commit_created_idx").on(t.commitId, t.createdAt),
+    // the supervisor's start-up scan of queued and running runs
+    index("runs_state_idx").on(t.state),
+  ],
+);
+
+export const runPoints = sqliteTable(
+  "run_points",
+  {
+    runId: text("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    /** 0-based point index: grid point × mismatch sample, outer sweep slowest, sample fastest. */
+    point: integer("point").notNull(),
+    /** Mismatch sample 0..N-1, or 0 without mismatch. */
+    sample: integer("sample").notNull(),
+    // Small columns first: SQLite then reads a curve over all points (params,
+    // probes, solver) without touching the overflow pages of the big blobs.
+    /** Float64, one per layout.params. */
+    params: blob("params", { mode: "buffer" }).notNull(),
+    /** Float64, one per layout.probes. */
+    probes: blob("probes", { mode: "buffer" }).notNull(),
+    method: text("method", { enum: ["linear", "newton"] }).notNull(),
+    iterations: integer("iterations").notNull(),
+    residual: real("residual").notNull(),
+    /** Float64, one per layout.rails (current delivered into the network). */
+    rails: blob("rails", { mode: "buffer" }).notNull(),
+    /** Float64, one per layout.nodes (absolute voltage). */
+    nodes: blob("nodes", { mode: "buffer" }).notNull(),
+    /** Float64, one per layout.devices (current, LANGUAGE.md sign convention). */
+    current: blob("current", { mode: "buffer" }).notNull(),
+    /** Float32, one per layout.devices; NaN where the inversion coefficient is unknown. */
+    ic: blob("ic", { mode: "buffer" }).notNull(),
+    /** Uint8, one per layout.devices: 1 saturated, 0 not. */
+    saturated: blob("saturated", { mode: "buffer" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.point] })],
+);
