@@ -253,17 +253,18 @@ function editDistance(a: string, b: string): number {
   return row[b.length];
 }
 
+/** "did you mean 'x'?" for a close candidate: distance 1 for names of 3-4 characters, 2 for longer ones. */
 function suggest(name: string, candidates: Iterable<string>): string | undefined {
-  if (name.length > 40) return undefined;
+  if (name.length > 40 || name.length < 3) return undefined;
+  const limit = name.length <= 4 ? 1 : 2;
   let best: string | undefined;
-  let bestD = 3;
+  let bestD = limit + 1;
   for (const c of candidates) {
+    if (c.length < 2) continue;
     const d = editDistance(name, c);
-    if (d < bestD || (d === bestD && best !== undefined && c < best)) {
-      if (d <= Math.max(1, Math.min(2, name.length - 2))) {
-        best = c;
-        bestD = d;
-      }
+    if (d < bestD) {
+      best = c;
+      bestD = d;
     }
   }
   return best === undefined ? undefined : `did you mean '${best}'?`;
@@ -287,6 +288,8 @@ class Elaborator {
   private readonly setDecl = new Map<string, { from: number; to: number }>();
   private readonly swept = new Set<string>();
   private readonly brokenNames = new Set<string>();
+  /** Kind of every rail, inject, probe and param name ("a rail", ...): one namespace. */
+  private readonly kindByName = new Map<string, string>();
 
   private name: string | null = null;
   private readonly settings: Settings = {
@@ -394,7 +397,10 @@ class Elaborator {
     for (const s of statements) {
       if (s.type.id === T.ParamStatement) {
         const d = s.getChild("Definition");
-        if (d && !this.paramDecl.has(this.src(d))) this.paramDecl.set(this.src(d), d.from);
+        if (d && !this.paramDecl.has(this.src(d))) {
+          this.paramDecl.set(this.src(d), d.from);
+          this.kindByName.set(this.src(d), "a param");
+        }
       } else if (s.type.id === T.SetStatement) {
         const n = s.getChild("SettingName");
         if (n && !this.setDecl.has(this.src(n))) this.setDecl.set(this.src(n), { from: s.from, to: s.to });
@@ -460,7 +466,7 @@ class Elaborator {
         return this.mismatchStatement(s);
       default: {
         const t = this.compileStatement(s, []);
-        if (!t) return;
+        if (!t) return this.noteBroken(s);
         if (t.k === "for") this.outerFor = { from: t.from, to: t.to };
         this.exec([t]);
         this.outerFor = null;
@@ -839,6 +845,7 @@ class Elaborator {
       }
       const t = this.compileStatement(st, inner);
       if (t) body.push(t);
+      else this.noteBroken(st);
     }
     if (!ok || !first || !last) return null;
     return {
@@ -1260,18 +1267,28 @@ class Elaborator {
     throw new Aborted();
   }
 
+  /** Silences follow-up diagnostics about the names a skipped body mentions. */
+  private suppressTpl(ts: Tpl[]): void {
+    for (const t of ts) {
+      if (t.k === "device") this.suppressRefs(t.nodes);
+      else if (t.k === "inject") this.suppressRefs([t.from, t.to]);
+      else if (t.k === "rail") this.suppressRefs([t.name]);
+      else if (t.k === "for") this.suppressTpl(t.body);
+    }
+  }
+
   private execFor(t: ForTpl): void {
     const a = this.valueOf(t.first!);
     const b = this.valueOf(t.last!);
     for (const [v, s] of [[a, t.first!], [b, t.last!]] as const) {
       if (!Number.isSafeInteger(v)) {
         this.sink.error(s.from, s.to, `a loop bound must be a whole number, but this is ${fmt(v)}`, "use round(), floor() or ceil()");
-        return;
+        return this.suppressTpl(t.body);
       }
     }
     if (b < a) {
       this.sink.error(t.rangeFrom, t.rangeTo, `reversed range ${a}..${b}: a range runs upward and includes both ends`, `write ${b}..${a}`);
-      return;
+      return this.suppressTpl(t.body);
     }
     const count = b - a + 1;
     if (this.work + count * (1 + t.body.length) > this.limits.maxWork) {
@@ -1323,13 +1340,10 @@ class Elaborator {
   }
 
   /** What else carries `name` (rail, device, inject, probe, param), for one-namespace checks. */
-  private otherKind(name: string, self: string): string | null {
-    const node = this.nodeIndex.get(name);
-    if (self !== "rail" && node !== undefined && this.isRail[node]) return "a rail";
-    if (self !== "device" && this.devIndex.has(name)) return "a device";
-    if (self !== "inject" && this.injIndex.has(name)) return "an inject";
-    if (self !== "probe" && this.probeNames.has(name)) return "a probe";
-    if (this.params.has(name) || this.paramDecl.has(name)) return "a param";
+  private otherKind(name: string, self: "a rail" | "a device" | "an inject" | "a probe"): string | null {
+    const k = this.kindByName.get(name);
+    if (k !== undefined && k !== self) return k;
+    if (self !== "a device" && this.devIndex.has(name)) return "a device";
     return null;
   }
 
@@ -1376,16 +1390,16 @@ class Elaborator {
     if (g < 0 || s < 0 || d < 0 || (t.nodes[3] && b < 0)) return;
     const w = this.length(t.w, "w", DEFAULT_W);
     const l = this.length(t.l, "l", DEFAULT_L);
+    const i = this.devNames.length;
     const first = this.devIndex.get(name);
     if (first !== undefined) return this.duplicate("device", name, t.name, this.devAt.data[first]);
-    const other = this.otherKind(name, "device");
+    const other = this.kindByName.size ? this.otherKind(name, "a device") : null;
     if (other) return this.clash("device", name, t.name, other);
-    if (this.devNames.length >= this.limits.maxDevices) {
+    if (i >= this.limits.maxDevices) {
       this.overflow(t, `more than ${this.limits.maxDevices.toLocaleString("en-US")} devices (the limit)`);
     }
-    const i = this.devNames.length;
-    this.devNames.push(name);
     this.devIndex.set(name, i);
+    this.devNames.push(name);
     this.devType.push(t.type);
     this.gate.push(g);
     this.source.push(s);
@@ -1413,13 +1427,14 @@ class Elaborator {
     }
     const first = this.injIndex.get(name);
     if (first !== undefined) return this.duplicate("inject", name, t.name, this.injAt.data[first]);
-    const other = this.otherKind(name, "inject");
+    const other = this.otherKind(name, "an inject");
     if (other) return this.clash("inject", name, t.name, other);
     if (f === to) this.sink.warning(t.to!.from, t.to!.to, `inject '${name}' goes from node '${this.nodeNames[f]}' to itself`, "its current has no effect");
     if (this.injNames.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} injects (the limit)`);
     const i = this.injNames.length;
     this.injNames.push(name);
     this.injIndex.set(name, i);
+    this.kindByName.set(name, "an inject");
     this.injFrom.push(f);
     this.injTo.push(to);
     this.injValue.push(v);
@@ -1439,7 +1454,7 @@ class Elaborator {
       const first = this.rails.find((r) => r.node === existing);
       return this.duplicate("rail", name, t.name, first ? first.span.from : t.at);
     }
-    const other = this.otherKind(name, "rail");
+    const other = this.otherKind(name, "a rail");
     if (other) return this.clash("rail", name, t.name, other);
     if (this.rails.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} rails (the limit)`);
     const i = this.nodeOf(t.name);
@@ -1451,6 +1466,7 @@ class Elaborator {
     this.isRail[i] = 1;
     this.railValue.data[i] = v;
     this.rails.push({ name, node: i, span: { from: t.name.from, to: t.name.to } });
+    this.kindByName.set(name, "a rail");
     if (t.value) this.bind(t.value, { kind: "rail", node: i });
   }
 
@@ -1459,7 +1475,7 @@ class Elaborator {
     if (name === null) return;
     const first = this.probeNames.get(name);
     if (first !== undefined) return this.duplicate("probe", name, t.name, first);
-    const other = this.otherKind(name, "probe");
+    const other = this.otherKind(name, "a probe");
     if (other) return this.clash("probe", name, t.name, other);
     if (this.pendingProbes.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} probes (the limit)`);
     const args: PendingProbe["args"] = [];
@@ -1469,6 +1485,7 @@ class Elaborator {
       args.push({ kind: a.kind, name: n, from: a.name.from, to: a.name.to });
     }
     this.probeNames.set(name, t.at);
+    this.kindByName.set(name, "a probe");
     this.pendingProbes.push({
       name,
       span: { from: t.name.from, to: t.name.to },

@@ -94,11 +94,18 @@ function explain(err: SyntaxNode, text: string): Explained {
   const tok = tokenAt(text, err.from);
   const at = (message: string, hint?: string): Explained => ({ from: tok.from, to: tok.to, message, hint });
   const expected = (what: string, hint?: string) => at(`expected ${what}, found ${tok.found}`, hint);
-  const parent = err.parent;
+  let parent = err.parent;
+  let prev = significantPrev(err);
+  // An error trailing a leaf value (`Identifier(⚠)`) is explained from the value's place.
+  if (parent && (parent.name === "Identifier" || parent.name === "Number") && parent.parent) {
+    prev = parent;
+    parent = parent.parent;
+  }
   const pname = parent?.name ?? "Network";
-  const prev = significantPrev(err);
   const prevName = prev?.name;
   const prevText = prev ? text.slice(prev.from, prev.to) : "";
+  const afterValue = prevName !== undefined && EXPRESSIONS.has(prevName);
+  const valueHint = "put an operator between values (2*x, not 2 x); one statement per line";
 
   if (pname === "Network" || pname === "Block") {
     if (pname === "Block" && tok.found === "the end of the file" && parent) {
@@ -140,6 +147,7 @@ function explain(err: SyntaxNode, text: string): Explained {
       if (prevName === "set") return expected("a setting name after 'set'", "settings: kappa, temp, i0, vt0, ispec, model");
       if (prevName === "Definition" || prevName === "SettingName") return expected(`'=' after '${prevText}'`);
       if (prevName === "=") return expected("a value after '='");
+      if (afterValue) return at(`unexpected ${tok.found} after the value`, valueHint);
       break;
     case "DeviceStatement":
     case "InjectStatement": {
@@ -155,6 +163,10 @@ function explain(err: SyntaxNode, text: string): Explained {
         const key = parent?.firstChild ? text.slice(parent.firstChild.from, parent.firstChild.to) : "";
         return expected(`a value after '${key}='`);
       }
+      if (afterValue) {
+        const kind = parent?.parent?.firstChild?.name ?? "nfet";
+        return expected(`a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`, "pins are written key=value and separated by spaces");
+      }
       break;
     case "ForStatement":
       if (prevName === "for") return expected("a loop variable after 'for'");
@@ -164,7 +176,8 @@ function explain(err: SyntaxNode, text: string): Explained {
       break;
     case "Range":
       if (prevName === "..") return expected("the last value of the range after '..'");
-      if (prevName && EXPRESSIONS.has(prevName)) return expected("'..' between the first and last value of the range");
+      if (afterValue && parent?.getChild("..")) return expected("'{' to open the loop body on this line");
+      if (afterValue) return expected("'..' between the first and last value of the range");
       return expected("a range such as 0..63");
     case "SweepStatement":
       if (prevName === "sweep") return expected("the name of a param (or temp) after 'sweep'");
@@ -184,10 +197,12 @@ function explain(err: SyntaxNode, text: string): Explained {
       return expected("'log' or the end of the line");
     case "SweepList":
       if (prevName === "values") return expected("'[' after 'values'");
+      if (prevName === ",") return expected("a value after ','");
       return expected("a value, ',' or ']'");
     case "MismatchStatement":
       return expected("'runs N', 'seed S' or 'avt A'", "mismatch runs N seed S avt A");
     case "MismatchOption":
+      if (afterValue) return expected("'runs N', 'seed S' or 'avt A'", "mismatch runs N seed S avt A");
       return expected(`a value after '${prevText}'`);
     case "BinaryExpression":
     case "UnaryExpression":
