@@ -1,0 +1,515 @@
+/**
+ * Fill-reducing orderings of a symmetric sparse matrix, given as its
+ * adjacency graph: `ap`/`ai` in compressed-column form, the pattern of A + Aᵀ
+ * without the diagonal and without repeated entries.
+ *
+ * Each function returns `perm`: perm[k] is the vertex eliminated k-th.
+ *
+ * - `amd`: approximate minimum degree on the quotient graph (Amestoy, Davis,
+ *   Duff, "An approximate minimum degree ordering algorithm", SIAM J. Matrix
+ *   Anal. Appl. 17(4), 1996): elements absorb eliminated neighbourhoods,
+ *   external degrees are bounded instead of computed exactly, indistinguishable
+ *   variables merge into supervariables, variables adjacent only to the pivot
+ *   are eliminated with it (mass elimination), and elements wholly inside the
+ *   new element are absorbed (aggressive absorption).
+ * - `nestedDissection`: recursive vertex separators from breadth-first level
+ *   structures rooted at pseudo-peripheral vertices (George 1973; George & Liu
+ *   1981), separators ordered last, small parts finished with `amd`.
+ */
+
+export type OrderingName = "amd" | "nd" | "natural";
+
+const VARIABLE = 0;
+const ELEMENT = 1;
+const DEAD = 2;
+
+/** Approximate minimum degree ordering. */
+export function amd(n: number, ap: Int32Array, ai: Int32Array): Int32Array {
+  const perm = new Int32Array(n);
+  if (n === 0) return perm;
+  const nnz = ap[n];
+  let iw = new Int32Array(Math.max(nnz + 2 * n, 16));
+  iw.set(ai.subarray(0, nnz));
+  let pfree = nnz;
+  const pe = new Int32Array(n);
+  const len = new Int32Array(n);
+  const elen = new Int32Array(n);
+  const nv = new Int32Array(n);
+  const degree = new Int32Array(n);
+  const status = new Uint8Array(n);
+  const head = new Int32Array(n + 1).fill(-1);
+  const next = new Int32Array(n);
+  const last = new Int32Array(n);
+  const w = new Float64Array(n);
+  const hhead = new Int32Array(n).fill(-1);
+  const hnext = new Int32Array(n);
+  const hashOf = new Int32Array(n);
+  const flag = new Int32Array(n);
+  const memNext = new Int32Array(n).fill(-1);
+  const memTail = new Int32Array(n);
+  const tmp = new Int32Array(n + 1);
+  let stamp = 0;
+  let wflg = 1;
+  let nel = 0;
+  let out = 0;
+
+  const ensure = (extra: number): void => {
+    if (pfree + extra <= iw.length) return;
+    const grown = new Int32Array(Math.max(2 * iw.length, pfree + extra));
+    grown.set(iw.subarray(0, pfree));
+    iw = grown;
+  };
+
+  for (let i = 0; i < n; i++) {
+    pe[i] = ap[i];
+    len[i] = ap[i + 1] - ap[i];
+    nv[i] = 1;
+    degree[i] = len[i];
+    memTail[i] = i;
+    if (len[i] === 0) {
+      // An isolated vertex costs nothing: eliminate it first.
+      status[i] = DEAD;
+      nv[i] = 0;
+      perm[out++] = i;
+      nel++;
+      continue;
+    }
+    const d = degree[i];
+    next[i] = head[d];
+    last[i] = -1;
+    if (head[d] !== -1) last[head[d]] = i;
+    head[d] = i;
+  }
+
+  let mindeg = 0;
+  while (nel < n) {
+    while (head[mindeg] === -1) mindeg++;
+    const p = head[mindeg];
+    head[mindeg] = next[p];
+    if (next[p] !== -1) last[next[p]] = -1;
+    const nvp = nv[p];
+    nel += nvp;
+
+    // L_p = (A_p ∪ ⋃_{e ∈ E_p} L_e) \ {p}, principal variables only; E_p is absorbed into p.
+    let bound = len[p];
+    const pp = pe[p];
+    for (let t = 0; t < elen[p]; t++) {
+      const e = iw[pp + t];
+      if (status[e] === ELEMENT) bound += len[e];
+    }
+    ensure(bound);
+    const start = pfree;
+    nv[p] = -nvp;
+    let degme = 0;
+    for (let t = 0; t < len[p]; t++) {
+      const isElement = t < elen[p];
+      const v = iw[pp + t];
+      if (isElement) {
+        if (status[v] !== ELEMENT) continue;
+        const ev = pe[v];
+        for (let q = ev; q < ev + len[v]; q++) {
+          const i = iw[q];
+          const nvi = nv[i];
+          if (nvi <= 0) continue;
+          degme += nvi;
+          nv[i] = -nvi;
+          iw[pfree++] = i;
+          // Remove i from its degree list.
+          if (last[i] !== -1) next[last[i]] = next[i];
+          else head[degree[i]] = next[i];
+          if (next[i] !== -1) last[next[i]] = last[i];
+        }
+        status[v] = DEAD;
+        pe[v] = -1;
+      } else {
+        const i = v;
+        const nvi = nv[i];
+        if (nvi <= 0) continue;
+        degme += nvi;
+        nv[i] = -nvi;
+        iw[pfree++] = i;
+        if (last[i] !== -1) next[last[i]] = next[i];
+        else head[degree[i]] = next[i];
+        if (next[i] !== -1) last[next[i]] = last[i];
+      }
+    }
+    const end = pfree;
+    status[p] = ELEMENT;
+    pe[p] = start;
+    len[p] = end - start;
+    elen[p] = 0;
+
+    // w[e] - wflg = |L_e \ L_p| (weighted) for every element e adjacent to L_p.
+    for (let q = start; q < end; q++) {
+      const i = iw[q];
+      const nvi = -nv[i];
+      const pi = pe[i];
+      for (let t = 0; t < elen[i]; t++) {
+        const e = iw[pi + t];
+        if (status[e] !== ELEMENT) continue;
+        const we = w[e];
+        w[e] = we >= wflg ? we - nvi : degree[e] + wflg - nvi;
+      }
+    }
+
+    // New lists and degree bounds for each i in L_p.
+    let relocated = false;
+    for (let q = start; q < end; q++) {
+      const i = iw[q];
+      const nvi = -nv[i];
+      const pi = pe[i];
+      let ntmp = 0;
+      tmp[ntmp++] = p;
+      let hash = p;
+      let deg = 0;
+      for (let t = 0; t < elen[i]; t++) {
+        const e = iw[pi + t];
+        if (status[e] !== ELEMENT) continue;
+        const dext = w[e] - wflg;
+        if (dext > 0) {
+          deg += dext;
+          tmp[ntmp++] = e;
+          hash += e;
+        } else {
+          // L_e ⊆ L_p: aggressive absorption into p.
+          status[e] = DEAD;
+          pe[e] = -1;
+        }
+      }
+      const newElen = ntmp;
+      for (let t = elen[i]; t < len[i]; t++) {
+        const j = iw[pi + t];
+        const nvj = nv[j];
+        if (nvj <= 0 || status[j] !== VARIABLE) continue;
+        deg += nvj;
+        tmp[ntmp++] = j;
+        hash += j;
+      }
+      if (deg === 0) {
+        // Adjacent only to p: mass elimination together with p.
+        status[i] = DEAD;
+        pe[i] = -1;
+        nv[i] = 0;
+        nel += nvi;
+        degme -= nvi;
+        memNext[memTail[p]] = i;
+        memTail[p] = memTail[i];
+        continue;
+      }
+      degree[i] = Math.min(degree[i], deg);
+      if (ntmp <= len[i]) {
+        for (let t = 0; t < ntmp; t++) iw[pi + t] = tmp[t];
+      } else {
+        ensure(ntmp);
+        pe[i] = pfree;
+        for (let t = 0; t < ntmp; t++) iw[pfree + t] = tmp[t];
+        pfree += ntmp;
+        relocated = true;
+      }
+      len[i] = ntmp;
+      elen[i] = newElen;
+      const h = hash % n;
+      hashOf[i] = h;
+      hnext[i] = hhead[h];
+      hhead[h] = i;
+    }
+
+    // Supervariables: variables of L_p with identical lists merge.
+    for (let q = start; q < end; q++) {
+      const i = iw[q];
+      if (nv[i] >= 0) continue;
+      const h = hashOf[i];
+      let a = hhead[h];
+      if (a === -1) continue;
+      hhead[h] = -1;
+      for (; a !== -1; a = hnext[a]) {
+        if (nv[a] === 0) continue;
+        stamp++;
+        const pa = pe[a];
+        for (let t = 0; t < len[a]; t++) flag[iw[pa + t]] = stamp;
+        for (let b = hnext[a]; b !== -1; b = hnext[b]) {
+          if (nv[b] === 0 || len[b] !== len[a] || elen[b] !== elen[a]) continue;
+          const pb = pe[b];
+          let same = true;
+          for (let t = 0; t < len[b]; t++) {
+            if (flag[iw[pb + t]] !== stamp) {
+              same = false;
+              break;
+            }
+          }
+          if (!same) continue;
+          nv[a] += nv[b];
+          nv[b] = 0;
+          status[b] = DEAD;
+          pe[b] = -1;
+          memNext[memTail[a]] = b;
+          memTail[a] = memTail[b];
+        }
+      }
+    }
+
+    // Final degrees, back into the degree lists; compact L_p.
+    let np = start;
+    for (let q = start; q < end; q++) {
+      const i = iw[q];
+      const nvi = -nv[i];
+      if (nvi <= 0) continue;
+      nv[i] = nvi;
+      let d = degree[i] + degme - nvi;
+      const cap = n - nel - nvi;
+      if (d > cap) d = cap;
+      if (d < 0) d = 0;
+      degree[i] = d;
+      next[i] = head[d];
+      last[i] = -1;
+      if (head[d] !== -1) last[head[d]] = i;
+      head[d] = i;
+      if (d < mindeg) mindeg = d;
+      iw[np++] = i;
+    }
+    len[p] = np - start;
+    degree[p] = degme;
+    nv[p] = nvp;
+    if (!relocated) pfree = np;
+    wflg += n + 1;
+
+    for (let v = p; v !== -1; v = memNext[v]) perm[out++] = v;
+  }
+  return perm;
+}
+
+/** The identity ordering. */
+export function natural(n: number): Int32Array {
+  const perm = new Int32Array(n);
+  for (let k = 0; k < n; k++) perm[k] = k;
+  return perm;
+}
+
+/** Induced subgraph of `verts[s .. s+m)`; `local` maps a global vertex to its local index (caller-owned, length n, -1 outside). */
+function inducedAmd(ap: Int32Array, ai: Int32Array, verts: Int32Array, s: number, m: number, local: Int32Array): Int32Array {
+  for (let k = 0; k < m; k++) local[verts[s + k]] = k;
+  const sp = new Int32Array(m + 1);
+  let nz = 0;
+  for (let k = 0; k < m; k++) {
+    const v = verts[s + k];
+    for (let q = ap[v]; q < ap[v + 1]; q++) if (local[ai[q]] >= 0) nz++;
+    sp[k + 1] = nz;
+  }
+  const si = new Int32Array(nz);
+  nz = 0;
+  for (let k = 0; k < m; k++) {
+    const v = verts[s + k];
+    for (let q = ap[v]; q < ap[v + 1]; q++) {
+      const u = local[ai[q]];
+      if (u >= 0) si[nz++] = u;
+    }
+  }
+  const lp = amd(m, sp, si);
+  for (let k = 0; k < m; k++) local[verts[s + k]] = -1;
+  return lp;
+}
+
+/**
+ * Breadth-first search from `root` over the vertices u with part[u] = id.
+ * Returns the number reached; they are queue[0..count) in visiting order with
+ * their distance from root in `level`. `seen` entries equal to `stamp` mark visits.
+ */
+function breadthFirst(
+  ap: Int32Array,
+  ai: Int32Array,
+  part: Int32Array,
+  root: number,
+  id: number,
+  stamp: number,
+  seen: Int32Array,
+  level: Int32Array,
+  queue: Int32Array,
+): number {
+  let qh = 0;
+  let qt = 0;
+  queue[qt++] = root;
+  seen[root] = stamp;
+  level[root] = 0;
+  while (qh < qt) {
+    const v = queue[qh++];
+    const lv = level[v] + 1;
+    const end = ap[v + 1];
+    for (let q = ap[v]; q < end; q++) {
+      const u = ai[q];
+      if (part[u] !== id || seen[u] === stamp) continue;
+      seen[u] = stamp;
+      level[u] = lv;
+      queue[qt++] = u;
+    }
+  }
+  return qt;
+}
+
+/** Nested dissection ordering; parts of at most `leaf` vertices are ordered by `amd`. */
+export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf = 96, maxIter = 6): Int32Array {
+  const perm = new Int32Array(n);
+  if (n === 0) return perm;
+  const verts = new Int32Array(n);
+  for (let k = 0; k < n; k++) verts[k] = k;
+  // part[v]: id of the part v currently belongs to; a BFS stays inside one part.
+  const part = new Int32Array(n);
+  const level = new Int32Array(n);
+  const seen = new Int32Array(n).fill(-1);
+  const queue = new Int32Array(n);
+  const local = new Int32Array(n).fill(-1);
+  const side = new Uint8Array(n);
+  const buf = new Int32Array(n);
+  let nextPart = 1;
+  let bfsStamp = 0;
+  // Work stack of parts: (segment start, size, part id, first position in perm,
+  // suggested root or -1). A child part's suggested root is the parent's BFS
+  // root (for A) or its deepest vertex (for B): both far from the separator.
+  const stack: number[] = [0, n, 0, 0, -1];
+
+  const bfs = (root: number, id: number): number => breadthFirst(ap, ai, part, root, id, ++bfsStamp, seen, level, queue);
+
+  while (stack.length > 0) {
+    const hint = stack.pop() as number;
+    const off = stack.pop() as number;
+    const id = stack.pop() as number;
+    const m = stack.pop() as number;
+    const s = stack.pop() as number;
+    if (m === 0) continue;
+    if (m <= leaf) {
+      const lp = inducedAmd(ap, ai, verts, s, m, local);
+      for (let k = 0; k < m; k++) perm[off + k] = verts[s + lp[k]];
+      continue;
+    }
+    // Pseudo-peripheral root: repeat BFS from a minimum-degree vertex of the last level.
+    let root = hint >= 0 ? hint : verts[s];
+    let reached = bfs(root, id);
+    let height = level[queue[reached - 1]];
+    for (let iter = 0; iter < maxIter && reached === m; iter++) {
+      const deepest = level[queue[reached - 1]];
+      let best = -1;
+      let bestDeg = Infinity;
+      for (let k = reached - 1; k >= 0 && level[queue[k]] === deepest; k--) {
+        const v = queue[k];
+        const d = ap[v + 1] - ap[v];
+        if (d < bestDeg) {
+          bestDeg = d;
+          best = v;
+        }
+      }
+      const r2 = bfs(best, id);
+      const h2 = level[queue[r2 - 1]];
+      if (h2 <= height) {
+        reached = bfs(root, id);
+        break;
+      }
+      root = best;
+      height = h2;
+      reached = r2;
+    }
+    if (reached < m) {
+      // Disconnected part: split off the component of root; no separator needed.
+      const idA = nextPart++;
+      const idB = nextPart++;
+      for (let k = 0; k < reached; k++) part[queue[k]] = idA;
+      let a = 0;
+      let b = reached;
+      for (let k = 0; k < m; k++) {
+        const v = verts[s + k];
+        if (part[v] === idA) buf[a++] = v;
+        else {
+          part[v] = idB;
+          buf[b++] = v;
+        }
+      }
+      verts.set(buf.subarray(0, m), s);
+      stack.push(s, reached, idA, off, root, s + reached, m - reached, idB, off + reached, -1);
+      continue;
+    }
+    height = level[queue[m - 1]];
+    if (height < 2) {
+      const lp = inducedAmd(ap, ai, verts, s, m, local);
+      for (let k = 0; k < m; k++) perm[off + k] = verts[s + lp[k]];
+      continue;
+    }
+    // Level sizes; pick the separator level minimising |S| / (|A|·|B|).
+    const sizes = new Int32Array(height + 1);
+    for (let k = 0; k < m; k++) sizes[level[queue[k]]]++;
+    let below = sizes[0];
+    let sepLevel = 1;
+    let bestScore = Infinity;
+    for (let l = 1; l < height; l++) {
+      const above = m - below - sizes[l];
+      const score = sizes[l] / (below * above);
+      if (score < bestScore) {
+        bestScore = score;
+        sepLevel = l;
+      }
+      below += sizes[l];
+    }
+    // side: 0 = A (levels < sep), 1 = B (levels > sep), 2 = separator.
+    for (let k = 0; k < m; k++) {
+      const v = queue[k];
+      const l = level[v];
+      side[v] = l < sepLevel ? 0 : l > sepLevel ? 1 : 2;
+    }
+    // Thin the separator: a separator vertex with no neighbour in B can join A.
+    for (let k = 0; k < m; k++) {
+      const v = queue[k];
+      if (side[v] !== 2) continue;
+      let touchesB = false;
+      for (let q = ap[v]; q < ap[v + 1]; q++) {
+        const u = ai[q];
+        if (part[u] === id && side[u] === 1) {
+          touchesB = true;
+          break;
+        }
+      }
+      if (!touchesB) side[v] = 0;
+    }
+    const idA = nextPart++;
+    const idB = nextPart++;
+    let na = 0;
+    let nb = 0;
+    let ns = 0;
+    for (let k = 0; k < m; k++) {
+      const sv = side[verts[s + k]];
+      if (sv === 0) na++;
+      else if (sv === 1) nb++;
+      else ns++;
+    }
+    let ia = 0;
+    let ib = na;
+    let is = na + nb;
+    for (let k = 0; k < m; k++) {
+      const v = verts[s + k];
+      const sv = side[v];
+      if (sv === 0) {
+        buf[ia++] = v;
+        part[v] = idA;
+      } else if (sv === 1) {
+        buf[ib++] = v;
+        part[v] = idB;
+      } else {
+        buf[is++] = v;
+        part[v] = -1;
+      }
+    }
+    verts.set(buf.subarray(0, m), s);
+    for (let k = 0; k < ns; k++) perm[off + na + nb + k] = verts[s + na + nb + k];
+    const deepest = queue[m - 1];
+    stack.push(s, na, idA, off, side[root] === 0 ? root : -1, s + na, nb, idB, off + na, side[deepest] === 1 ? deepest : -1);
+  }
+  return perm;
+}
+
+/** The ordering called `name`. */
+export function order(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array): Int32Array {
+  switch (name) {
+    case "amd":
+      return amd(n, ap, ai);
+    case "nd":
+      return nestedDissection(n, ap, ai);
+    case "natural":
+      return natural(n);
+  }
+}
