@@ -1,0 +1,30 @@
+import { describe, expect, it } from "vitest";
+import { formatDuration, formatEng, formatNumber } from "@/app/lib/format";
+
+describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th ed. 2019, prefix table)", () => {
+  it.each([
+    [1.234e-8, "A", "12.3 nA"],
+    [-1.234e-8, "A", "−12.3 nA"],
+    [0.45, "V", "450 mV"],
+    [1, "V", "1 V"],
+    [2.5e-15, "A", "2.5 fA"],
+    [3.5e-6, "A", "3.5 µA"],
+    [999.96e-6, "A", "1 mA"],
+    [0, "A", "0 A"],
+    [12345, "", "12.3k"],
+    [1e-30, "A", "1.00e-30 A"],
+  ])("%s %s → %s", (v, unit, text) => {
+    expect(formatEng(v, unit)).toBe(text);
+  });
+  it("shows unknown as a dash and infinities as ∞", () => {
+    expect(formatEng(NaN, "A")).toBe("—");
+    expect(formatEng(Infinity, "V")).toBe("∞ V");
+  });
+  it("formats plain numbers and durations", () => {
+    expect(formatNumber(0.000012)).toBe("1.200e-5");
+    expect(formatNumber(0.5)).toBe("0.5");
+    expect(formatDuration(850)).toBe("850 ms");
+    expect(formatDuration(12_400)).toBe("12.4 s");
+    expect(formatDuration(185_000)).toBe("3 min 5 s");
+  });
+});
