@@ -58,3 +58,4 @@ export const memberships = sqliteTable(
 // Table modules owned by later features are re-exported here (one line each), so that
 // drizzle-kit (drizzle.config.ts points at this file) and db/index.ts see one schema.
 export * from "./work-schema";
+export * from "./auth-schema";
