@@ -1,0 +1,433 @@
+/**
+ * Completion for Rill, driven by the syntax tree: the slot at the cursor is
+ * found from the token before it (`resolveInner(pos, -1)`) and its ancestors,
+ * and the names offered are collected from the tree of the current document
+ * (cheap: one pass over statements, no elaboration). Names the elaboration
+ * produced (loop-expanded nodes such as x1..x64) are added when a linter run
+ * has published them through `elaboratedNames`.
+ */
+import type { Completion, CompletionContext, CompletionResult, CompletionSource } from "@codemirror/autocomplete";
+import { syntaxTree } from "@codemirror/language";
+import { type EditorState, StateEffect, StateField } from "@codemirror/state";
+import type { SyntaxNode, Tree } from "@lezer/common";
+import { BUILTINS, FUNCTIONS, PROBE_FUNCTIONS } from "../lang/expr";
+import { STATEMENT_WORDS } from "../lang/syntax";
+
+/** Pins of each element kind, in the order they are usually written. */
+export const FET_PINS = ["gate", "source", "drain", "bulk", "well", "w", "l"] as const;
+export const NFET_PINS = ["gate", "source", "drain", "bulk", "w", "l"] as const;
+export const PFET_PINS = ["gate", "source", "drain", "well", "w", "l"] as const;
+export const INJECT_PINS = ["from", "to", "value"] as const;
+/** Pins whose value is a node name (all others take an expression). */
+export const NODE_PINS: ReadonlySet<string> = new Set(["gate", "source", "drain", "bulk", "well", "from", "to"]);
+export const SETTING_NAMES = ["kappa", "temp", "i0", "vt0", "ispec", "model"] as const;
+export const MODELS = ["weak", "ekv"] as const;
+const MISMATCH_OPTIONS = ["runs", "seed", "avt"] as const;
+
+const SETTING_INFO: Record<(typeof SETTING_NAMES)[number], string> = {
+  kappa: "subthreshold slope factor (default 0.7)",
+  temp: "temperature in kelvin (default 300K)",
+  i0: "pre-exponential current of a W/L = 1 device (default 1f)",
+  vt0: "threshold voltage for the all-region model",
+  ispec: "specific current of a W/L = 1 device",
+  model: "weak (default) or ekv",
+};
+
+const PIN_INFO: Record<string, string> = {
+  gate: "node",
+  source: "node",
+  drain: "node",
+  bulk: "node (default: substrate at 0 V)",
+  well: "node the pfet's voltages are referenced to",
+  w: "width in metres (default 1u)",
+  l: "length in metres (default 1u)",
+  from: "node the current leaves",
+  to: "node the current enters",
+  value: "amperes",
+};
+
+/** Names a document defines or uses, read from its syntax tree. */
+export interface DocumentNames {
+  /** Params with the offset of their statement (for "earlier params only"). */
+  params: { name: string; at: number }[];
+  rails: string[];
+  /** Names used as node pins that are not rails. */
+  nodes: string[];
+  /** nfet/pfet names with their kind. */
+  devices: { name: string; kind: "nfet" | "pfet" }[];
+  injects: string[];
+  /** Interpolated names used as node pins inside `for` bodies, as written (`x{k+1}`). */
+  patterns: string[];
+}
+
+/** Names the elaborated network holds (after loops were expanded); published by the linter. */
+export interface ElaboratedNames {
+  nodes: string[];
+  elements: string[];
+}
+
+export const setElaboratedNames = StateEffect.define<ElaboratedNames | null>();
+
+/** The last elaborated names for this document; kept across edits until the next lint run replaces them. */
+export const elaboratedNames = StateField.define<ElaboratedNames | null>({
+  create: () => null,
+  update(value, tr) {
+    for (const e of tr.effects) if (e.is(setElaboratedNames)) return e.value;
+    return value;
+  },
+});
+
+const collected = new WeakMap<Tree, DocumentNames>();
+
+/** The names of a document, from its syntax tree (memoised per tree). */
+export function documentNames(state: EditorState): DocumentNames {
+  const tree = syntaxTree(state);
+  let names = collected.get(tree);
+  if (!names) {
+    names = collectNames(tree, (from, to) => state.sliceDoc(from, to));
+    collected.set(tree, names);
+  }
+  return names;
+}
+
+/** One pass over the statements of `tree`; expressions are not entered except pin values. */
+export function collectNames(tree: Tree, text: (from: number, to: number) => string): DocumentNames {
+  const params: DocumentNames["params"] = [];
+  const rails = new Set<string>();
+  const used = new Set<string>();
+  const patterns = new Set<string>();
+  const devices: DocumentNames["devices"] = [];
+  const injects: string[] = [];
+  const plainDefinition = (stmt: SyntaxNode): string | null => {
+    const def = stmt.getChild("Definition");
+    return def && !def.firstChild ? text(def.from, def.to) : null;
+  };
+  const pins = (stmt: SyntaxNode) => {
+    for (let pin = stmt.getChild("Pin"); pin; pin = pin.nextSibling) {
+      if (pin.name !== "Pin") continue;
+      const pinName = pin.getChild("PinName");
+      const value = pin.lastChild;
+      if (!pinName || !value || value === pinName || !NODE_PINS.has(text(pinName.from, pinName.to))) continue;
+      if (value.name === "Identifier") used.add(text(value.from, value.to));
+      else if (value.name === "InterpolatedName" && !containsError(value)) patterns.add(text(value.from, value.to));
+    }
+  };
+  tree.iterate({
+    enter(ref) {
+      switch (ref.name) {
+        case "Network":
+        case "ForStatement":
+        case "Block":
+          return true;
+        case "ParamStatement": {
+          const name = plainDefinition(ref.node);
+          if (name) params.push({ name, at: ref.from });
+          return false;
+        }
+        case "RailStatement": {
+          const name = plainDefinition(ref.node);
+          if (name) rails.add(name);
+          return false;
+        }
+        case "DeviceStatement": {
+          const node = ref.node;
+          const name = plainDefinition(node);
+          if (name) devices.push({ name, kind: node.firstChild?.name === "pfet" ? "pfet" : "nfet" });
+          pins(node);
+          return false;
+        }
+        case "InjectStatement": {
+          const node = ref.node;
+          const name = plainDefinition(node);
+          if (name) injects.push(name);
+          pins(node);
+          return false;
+        }
+        default:
+          return false;
+      }
+    },
+  });
+  const nodes = [...used].filter((n) => !rails.has(n));
+  return { params, rails: [...rails], nodes, devices, injects, patterns: [...patterns] };
+}
+
+function containsError(node: SyntaxNode): boolean {
+  let found = false;
+  node.toTree().iterate({
+    enter(n) {
+      if (n.type.isError) found = true;
+      return !found;
+    },
+  });
+  return found;
+}
+
+const WORD = /^[A-Za-z_][A-Za-z0-9_]*$/;
+const OPERATORS = new Set(["+", "-", "*", "/", "^", "ArithOp"]);
+const EXPRESSION_KEYWORDS = new Set(["in", "from", "to", "step", "points", "runs", "seed", "avt"]);
+
+/** What kind of name the cursor's slot takes. */
+type Slot =
+  | { kind: "statement" }
+  | { kind: "pin"; statement: SyntaxNode }
+  | { kind: "setting" }
+  | { kind: "model" }
+  | { kind: "expression"; at: SyntaxNode }
+  | { kind: "node" }
+  | { kind: "element" }
+  | { kind: "sweepParam" }
+  | { kind: "keywords"; words: readonly string[] };
+
+function ancestor(node: SyntaxNode | null, name: string): SyntaxNode | null {
+  for (let n = node; n; n = n.parent) if (n.name === name) return n;
+  return null;
+}
+
+function isStatement(node: SyntaxNode): boolean {
+  return node.type.is("Statement");
+}
+
+/** The word being typed: a name-like leaf (or error run) that ends at `pos`. */
+function wordBefore(state: EditorState, tree: Tree, pos: number): { from: number; node: SyntaxNode } | null {
+  const node = tree.resolveInner(pos, -1);
+  if (node.to !== pos || node.from === pos) return null;
+  if (node.type.isError) {
+    const m = /[A-Za-z_][A-Za-z0-9_]*$/.exec(state.sliceDoc(node.from, pos));
+    if (!m) return null;
+    const from = pos - m[0].length;
+    const before = state.sliceDoc(from - 1, from);
+    return /[0-9.µ]/.test(before) ? null : { from, node };
+  }
+  if (node.firstChild) return null;
+  return WORD.test(state.sliceDoc(node.from, pos)) ? { from: node.from, node } : null;
+}
+
+/** Only spaces between the start of the line and `pos`. */
+function atLineStart(state: EditorState, pos: number): boolean {
+  const line = state.doc.lineAt(pos);
+  return /^[ \t\r\uFEFF]*$/.test(state.sliceDoc(line.from, pos));
+}
+
+/** The last keyword child of `parent` (or of its nested step/points parts) that starts before `pos`. */
+function lastKeyword(parent: SyntaxNode, pos: number, words: ReadonlySet<string>): string | null {
+  let found: string | null = null;
+  const scan = (n: SyntaxNode) => {
+    for (let c = n.firstChild; c && c.from < pos; c = c.nextSibling) {
+      if (words.has(c.name)) found = c.name;
+      else if (c.name === "SweepStep" || c.name === "SweepPoints") scan(c);
+    }
+  };
+  scan(parent);
+  return found;
+}
+
+/** Classifies the slot at `anchor` (the start of the word being typed, or the cursor). */
+function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
+  if (atLineStart(state, anchor)) return { kind: "statement" };
+  let p = anchor;
+  while (p > 0 && /[ \t\r\uFEFF]/.test(state.sliceDoc(p - 1, p))) p--;
+  const prev = tree.resolveInner(p, -1);
+  if (prev.name === "Comment") return null;
+  const parent = prev.parent;
+  const name = prev.name;
+
+  if (name === "{" && parent?.name === "Block") return { kind: "statement" };
+  if (name === "InterpolatedName" && (p < prev.to || state.sliceDoc(p - 1, p) === "{")) return { kind: "expression", at: prev };
+  if (name === "=") {
+    if (parent?.name === "SetStatement") {
+      const setting = parent.getChild("SettingName");
+      return setting && state.sliceDoc(setting.from, setting.to) === "model" ? { kind: "model" } : { kind: "expression", at: prev };
+    }
+    if (parent?.name === "Pin") {
+      const pin = parent.getChild("PinName");
+      return pin && NODE_PINS.has(state.sliceDoc(pin.from, pin.to)) ? { kind: "node" } : { kind: "expression", at: prev };
+    }
+    return { kind: "expression", at: prev };
+  }
+  if (name === "(" || name === ",") {
+    if (parent?.name === "ArgList") {
+      const fn = parent.parent?.getChild("FunctionName");
+      const fnName = fn ? state.sliceDoc(fn.from, fn.to) : "";
+      if (fnName === "voltage") return { kind: "node" };
+      if (fnName === "current") return { kind: "element" };
+    }
+    return { kind: "expression", at: prev };
+  }
+  if (name === "[" || name === ".." || OPERATORS.has(name) || (parent && OPERATORS.has(parent.name))) {
+    return { kind: "expression", at: prev };
+  }
+  if (EXPRESSION_KEYWORDS.has(name)) return { kind: "expression", at: prev };
+  if (name === "set") return { kind: "setting" };
+  if (name === "sweep") return { kind: "sweepParam" };
+  if (name === "mismatch") return { kind: "keywords", words: MISMATCH_OPTIONS };
+  if (name === "VariableName" && parent?.name === "ForStatement") return { kind: "keywords", words: ["in"] };
+  if (name === "Identifier" && parent?.name === "SweepStatement") return { kind: "keywords", words: ["from", "values"] };
+
+  // The token before ends an expression or a name: what may follow depends on the statement part.
+  const statement = ancestorStatement(prev);
+  if (!statement) return null;
+  if (statement.name === "DeviceStatement" || statement.name === "InjectStatement") {
+    const def = statement.getChild("Definition");
+    if (def && p >= def.to) return { kind: "pin", statement };
+    return null;
+  }
+  if (statement.name === "SweepStatement") {
+    const range = ancestor(prev, "SweepRange");
+    if (!range) return null;
+    switch (lastKeyword(range, p, new Set(["from", "to", "step", "points", "log"]))) {
+      case "from":
+        return { kind: "keywords", words: ["to"] };
+      case "to":
+        return { kind: "keywords", words: ["step", "points"] };
+      case "points":
+        return { kind: "keywords", words: ["log"] };
+      default:
+        return null;
+    }
+  }
+  if (statement.name === "MismatchStatement") return { kind: "keywords", words: MISMATCH_OPTIONS };
+  return null;
+}
+
+function ancestorStatement(node: SyntaxNode): SyntaxNode | null {
+  for (let n: SyntaxNode | null = node; n; n = n.parent) if (isStatement(n)) return n;
+  return null;
+}
+
+/** Loop variables of the `for` blocks around `node`, innermost first. */
+function loopVariables(state: EditorState, node: SyntaxNode, pos: number): string[] {
+  const out: string[] = [];
+  for (let n: SyntaxNode | null = node; n; n = n.parent) {
+    if (n.name !== "ForStatement") continue;
+    const block = n.getChild("Block");
+    const v = n.getChild("VariableName");
+    if (v && block && pos > block.from) out.push(state.sliceDoc(v.from, v.to));
+  }
+  return out;
+}
+
+function insideFor(node: SyntaxNode): boolean {
+  return ancestor(node, "Block") !== null;
+}
+
+function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNode | null): Completion[] {
+  const names = documentNames(state);
+  const elaborated = state.field(elaboratedNames, false) ?? null;
+  const own = typed && typed.name !== "⚠" ? state.sliceDoc(typed.from, typed.to) : null;
+  switch (slot.kind) {
+    case "statement":
+      return STATEMENT_WORDS.map((w) => ({ label: w, type: "keyword", apply: `${w} ` }));
+    case "pin": {
+      const kind = slot.statement.firstChild?.name;
+      const all = kind === "nfet" ? NFET_PINS : kind === "pfet" ? PFET_PINS : kind === "inject" ? INJECT_PINS : FET_PINS;
+      const present = new Set<string>();
+      for (let pin = slot.statement.getChild("Pin"); pin; pin = pin.nextSibling) {
+        const pn = pin.name === "Pin" ? pin.getChild("PinName") : null;
+        if (pn && pn.from !== typed?.from) present.add(state.sliceDoc(pn.from, pn.to));
+      }
+      return all
+        .filter((p) => !present.has(p))
+        .map((p, i) => ({ label: p, type: "property", apply: `${p}=`, detail: PIN_INFO[p], boost: -i }));
+    }
+    case "setting":
+      return SETTING_NAMES.map((s) => ({ label: s, type: "property", detail: SETTING_INFO[s], apply: `${s} = ` }));
+    case "model":
+      return MODELS.map((m) => ({
+        label: m,
+        type: "enum",
+        detail: m === "weak" ? "weak-inversion exponential" : "all-region EKV interpolation",
+      }));
+    case "sweepParam":
+      return [
+        ...names.params.map((p) => ({ label: p.name, type: "variable", detail: "param" })),
+        { label: "temp", type: "constant", detail: "temperature, kelvin" },
+      ];
+    case "keywords":
+      return slot.words.map((w) => ({ label: w, type: "keyword", apply: `${w} ` }));
+    case "node": {
+      const seen = new Set<string>();
+      const out: Completion[] = [];
+      const add = (label: string, detail: string, boost: number) => {
+        if (seen.has(label) || label === own) return;
+        seen.add(label);
+        out.push({ label, type: "variable", detail, boost });
+      };
+      for (const r of names.rails) add(r, "rail", 2);
+      for (const n of names.nodes) add(n, "node", 1);
+      if (typed ? insideFor(typed) : insideFor(syntaxTree(state).resolveInner(pos, -1))) {
+        for (const n of names.patterns) add(n, "node pattern", 0);
+      }
+      if (elaborated) for (const n of elaborated.nodes) add(n, "node", -1);
+      return out;
+    }
+    case "element": {
+      const seen = new Set<string>();
+      const out: Completion[] = [];
+      const add = (label: string, detail: string) => {
+        if (seen.has(label) || label === own) return;
+        seen.add(label);
+        out.push({ label, type: "variable", detail });
+      };
+      for (const d of names.devices) add(d.name, d.kind);
+      for (const i of names.injects) add(i, "inject");
+      for (const r of names.rails) add(r, "rail");
+      if (elaborated) for (const e of elaborated.elements) add(e, "element");
+      return out;
+    }
+    case "expression": {
+      const at = slot.at;
+      const paramStatement = ancestor(at, "ParamStatement");
+      const inProbe = ancestor(at, "ProbeStatement") !== null;
+      const out: Completion[] = [];
+      for (const v of loopVariables(state, at, pos)) out.push({ label: v, type: "variable", detail: "loop variable", boost: 3 });
+      for (const p of names.params) {
+        if (paramStatement && p.at >= paramStatement.from) continue;
+        out.push({ label: p.name, type: "variable", detail: "param", boost: 2 });
+      }
+      for (const b of Object.keys(BUILTINS)) out.push({ label: b, type: "constant", detail: BUILTIN_INFO[b], boost: 1 });
+      if (inProbe) {
+        for (const f of PROBE_FUNCTIONS) out.push({ label: f, type: "function", apply: `${f}(`, detail: PROBE_INFO[f], boost: 1 });
+      }
+      for (const f of Object.keys(FUNCTIONS)) out.push({ label: f, type: "function", apply: `${f}(` });
+      return out;
+    }
+  }
+}
+
+const BUILTIN_INFO: Record<string, string> = {
+  ut: "thermal voltage k·temp/q, volts",
+  kappa: "subthreshold slope factor",
+  temp: "temperature, kelvin",
+  pi: "π",
+  e: "Euler's number",
+};
+
+const PROBE_INFO: Record<string, string> = {
+  voltage: "voltage(node), volts",
+  current: "current(device, inject or rail), amperes",
+};
+
+/**
+ * The completion source. Without a typed word it answers only when asked
+ * explicitly, right after `=`, `(` or `,`, or after the `{` of an
+ * interpolation, so the list does not pop up on every space or block brace.
+ */
+export const rillCompletionSource: CompletionSource = (context: CompletionContext): CompletionResult | null => {
+  const { state, pos } = context;
+  const tree = syntaxTree(state);
+  const here = tree.resolveInner(pos, -1);
+  if (here.name === "Comment" || here.name === "Number") return null;
+  const word = wordBefore(state, tree, pos);
+  const anchor = word ? word.from : pos;
+  const slot = slotAt(state, tree, anchor);
+  if (!slot) return null;
+  if (!word && !context.explicit) {
+    const before = state.sliceDoc(pos - 1, pos);
+    const trigger = before === "=" || before === "(" || before === "," || (before === "{" && slot.kind === "expression");
+    if (!trigger) return null;
+  }
+  const options = optionsFor(state, slot, pos, word?.node ?? null);
+  if (options.length === 0) return null;
+  return { from: anchor, options, validFor: /^[A-Za-z_][A-Za-z0-9_]*$/ };
+};
