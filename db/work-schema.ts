@@ -122,6 +122,10 @@ export const runs = sqliteTable(
     maxResidual: real("max_residual"),
     /** Solver's reason for its method (same for every point of a run), null before the first point. */
     solverReason: text("solver_reason"),
+    /** Validity warnings aggregated over the points (JSON RunWarning[]), written when the run ends. */
+    warnings: text("warnings"),
+    /** Points that could not be solved (JSON, at most 50: point, message), written when the run ends. */
+    failures: text("failures"),
     createdAt: createdAt(),
     startedAt: integer("started_at", { mode: "timestamp_ms" }),
     finishedAt: integer("finished_at", { mode: "timestamp_ms" }),
@@ -153,6 +157,8 @@ export const runPoints = sqliteTable(
     method: text("method", { enum: ["linear", "newton"] }).notNull(),
     iterations: integer("iterations").notNull(),
     residual: real("residual").notNull(),
+    /** Why the point could not be solved (its arrays are then NaN); null for a solved point. */
+    error: text("error"),
     /** Float64, one per layout.rails (current delivered into the network). */
     rails: blob("rails", { mode: "buffer" }).notNull(),
     /** Float64, one per layout.nodes (absolute voltage). */
