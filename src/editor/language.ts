@@ -26,7 +26,7 @@ export const rillLanguage = LRLanguage.define({
         ArgList: delimitedIndent({ closing: ")" }),
         SweepList: delimitedIndent({ closing: "]" }),
       }),
-      // @detectDelim marks ( ) and { }; the list brackets follow a keyword, so mark them here.
+      // @detectDelim marks ( ) and { } only; marking [ ] too makes all bracket matching follow the tree.
       NodeProp.closedBy.add({ "[": ["]"] }),
       NodeProp.openedBy.add({ "]": ["["] }),
     ],
