@@ -1392,9 +1392,15 @@ class Elaborator {
     const l = this.length(t.l, "l", DEFAULT_L);
     const i = this.devNames.length;
     const first = this.devIndex.get(name);
-    if (first !== undefined) return this.duplicate("device", name, t.name, this.devAt.data[first]);
+    if (first !== undefined) {
+      this.suppressRefs(t.nodes);
+      return this.duplicate("device", name, t.name, this.devAt.data[first]);
+    }
     const other = this.kindByName.size ? this.otherKind(name, "a device") : null;
-    if (other) return this.clash("device", name, t.name, other);
+    if (other) {
+      this.suppressRefs(t.nodes);
+      return this.clash("device", name, t.name, other);
+    }
     if (i >= this.limits.maxDevices) {
       this.overflow(t, `more than ${this.limits.maxDevices.toLocaleString("en-US")} devices (the limit)`);
     }
@@ -1426,9 +1432,15 @@ class Elaborator {
       return;
     }
     const first = this.injIndex.get(name);
-    if (first !== undefined) return this.duplicate("inject", name, t.name, this.injAt.data[first]);
+    if (first !== undefined) {
+      this.suppressRefs([t.from, t.to]);
+      return this.duplicate("inject", name, t.name, this.injAt.data[first]);
+    }
     const other = this.otherKind(name, "an inject");
-    if (other) return this.clash("inject", name, t.name, other);
+    if (other) {
+      this.suppressRefs([t.from, t.to]);
+      return this.clash("inject", name, t.name, other);
+    }
     if (f === to) this.sink.warning(t.to!.from, t.to!.to, `inject '${name}' goes from node '${this.nodeNames[f]}' to itself`, "its current has no effect");
     if (this.injNames.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} injects (the limit)`);
     const i = this.injNames.length;
@@ -1533,7 +1545,8 @@ class Elaborator {
             s.param === "kappa" || s.param === "ut"
               ? `only params and temp can be swept: write param k = 0.7, set kappa = k, and sweep k`
               : (suggest(s.param, this.params.keys()) ?? "declare it with param NAME = VALUE");
-          this.sink.error(s.nameFrom, s.nameTo, `sweep of unknown param '${s.param}'`, hint);
+          const what = s.param === "kappa" || s.param === "ut" ? `'${s.param}' cannot be swept directly` : `sweep of unknown param '${s.param}'`;
+          this.sink.error(s.nameFrom, s.nameTo, what, hint);
           continue;
         }
         if (!compatible(p.dim, s.dim)) {

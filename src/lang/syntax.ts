@@ -92,7 +92,14 @@ interface Explained {
 
 function explain(err: SyntaxNode, text: string): Explained {
   const tok = tokenAt(text, err.from);
-  const at = (message: string, hint?: string): Explained => ({ from: tok.from, to: tok.to, message, hint });
+  const word = text.slice(tok.from, tok.to);
+  const reserved = (STATEMENT_WORDS as readonly string[]).includes(word) && !startsLine(text, tok.from);
+  const at = (message: string, hint?: string): Explained => ({
+    from: tok.from,
+    to: tok.to,
+    message,
+    hint: reserved ? `'${word}' is a statement word and cannot be used as a name` : hint,
+  });
   const expected = (what: string, hint?: string) => at(`expected ${what}, found ${tok.found}`, hint);
   let parent = err.parent;
   let prev = significantPrev(err);
