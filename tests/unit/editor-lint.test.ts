@@ -90,7 +90,7 @@ describe("diagnostics", () => {
 
 /** A worker stand-in answering each request on the next macrotask, in order. */
 class FakeWorker implements LintPort {
-  private listeners = new Map<string, ((e: MessageEvent<LintReply> | Event) => void)[]>();
+  private listeners = new Map<string, ((e: MessageEvent<LintReply>) => void)[]>();
   received: LintRequest[] = [];
   terminated = false;
   answer = true;
@@ -98,11 +98,11 @@ class FakeWorker implements LintPort {
     this.received.push(message);
     if (this.answer) setTimeout(() => this.emit("message", { data: answerLintRequest(message) } as MessageEvent<LintReply>), 0);
   }
-  addEventListener(type: string, listener: (e: MessageEvent<LintReply> | Event) => void): void {
+  addEventListener(type: string, listener: (e: MessageEvent<LintReply>) => void): void {
     this.listeners.set(type, [...(this.listeners.get(type) ?? []), listener]);
   }
   emit(type: string, e: MessageEvent<LintReply> | Event): void {
-    for (const l of this.listeners.get(type) ?? []) l(e);
+    for (const l of this.listeners.get(type) ?? []) l(e as MessageEvent<LintReply>);
   }
   terminate(): void {
     this.terminated = true;
