@@ -59,3 +59,4 @@ export const memberships = sqliteTable(
 // drizzle-kit (drizzle.config.ts points at this file) and db/index.ts see one schema.
 export * from "./work-schema";
 export * from "./auth-schema";
+export * from "./review-schema";
