@@ -1379,8 +1379,15 @@ class Elaborator {
     return v;
   }
 
+  /** A statement that cannot make its element: its own name and its nodes stop follow-up diagnostics. */
+  private skipElement(name: NameTpl, refs: (NameTpl | null)[]): void {
+    const n = this.nameOf(name);
+    if (n !== null) this.brokenNames.add(n);
+    this.suppressRefs(refs);
+  }
+
   private execDevice(t: DeviceTpl): void {
-    if (t.broken) return this.suppressRefs(t.nodes);
+    if (t.broken) return this.skipElement(t.name, t.nodes);
     const name = this.nameOf(t.name);
     if (name === null) return this.suppressRefs(t.nodes);
     const g = this.nodeOf(t.nodes[0]!);
@@ -1420,7 +1427,7 @@ class Elaborator {
   }
 
   private execInject(t: InjectTpl): void {
-    if (t.broken) return this.suppressRefs([t.from, t.to]);
+    if (t.broken) return this.skipElement(t.name, [t.from, t.to]);
     const name = this.nameOf(t.name);
     if (name === null) return this.suppressRefs([t.from, t.to]);
     const f = this.nodeOf(t.from!);
@@ -1457,6 +1464,7 @@ class Elaborator {
   private execRail(t: RailTpl): void {
     const name = this.nameOf(t.name);
     if (name === null) return;
+    if (!t.value) this.brokenNames.add(name);
     let v = t.value ? this.valueOf(t.value) : NaN;
     if (t.value && !Number.isFinite(v)) {
       this.sink.error(t.value.from, t.value.to, `a rail value must be a finite voltage, but it is ${fmt(v)}`);
@@ -1693,6 +1701,7 @@ class Elaborator {
   private resolveProbes(): void {
     for (const p of this.pendingProbes) {
       for (const a of p.args) {
+        if (this.brokenNames.has(a.name)) continue;
         if (a.kind === "voltage") {
           if (this.nodeIndex.has(a.name)) continue;
           const hint = this.devIndex.has(a.name) || this.injIndex.has(a.name) ? `'${a.name}' is a ${this.devIndex.has(a.name) ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames : []);

@@ -263,7 +263,7 @@ function dimensionlessArg(name: string): FnDim {
       );
       return UNKNOWN;
     }
-    return a.kind === "loose" ? LOOSE : a.kind === "known" ? DIMENSIONLESS : UNKNOWN;
+    return a.kind === "unknown" ? UNKNOWN : LOOSE;
   };
 }
 

@@ -4,8 +4,9 @@
  * Soundness rule: only a clash between two KNOWN dimensions is an error.
  * - `known`: a literal with a unit symbol (`450mV`), `ut`, `kappa`, `temp`,
  *   voltage(), current(), and whatever is derived from them.
- * - `loose`: a bare number (`0.45`) or a loop variable. It adapts: in `+`/`-`
- *   it takes the other side's dimension, in `*`/`/` it is a plain scalar.
+ * - `loose`: a bare number (`0.45`), a loop variable or a function result
+ *   (`exp(...)`). It adapts: in `+`/`-` it takes the other side's dimension,
+ *   in `*`/`/` it is a plain scalar.
  * - `unknown`: nothing can be said (e.g. `x ^ y` with a non-constant y); never an error.
  */
 export type Dim =
@@ -46,9 +47,14 @@ export function compatible(x: Dim, y: Dim): boolean {
   return x.kind !== "known" || y.kind !== "known" || sameDim(x, y);
 }
 
+/**
+ * x·y (sign 1) or x/y (sign -1). A bare number times a dimensionless quantity
+ * stays a bare number: `2*kappa` may stand for volts as much as `2` does.
+ */
 export function mulDim(x: Dim, y: Dim, sign: 1 | -1): Dim {
   if (x.kind === "unknown" || y.kind === "unknown") return UNKNOWN;
-  if (x.kind === "loose" && y.kind === "loose") return LOOSE;
+  if (x.kind === "loose" && (y.kind === "loose" || isDimensionless(y))) return LOOSE;
+  if (y.kind === "loose" && isDimensionless(x)) return LOOSE;
   const xv = x.kind === "known" ? x : DIMENSIONLESS;
   const yv = y.kind === "known" ? y : DIMENSIONLESS;
   if (xv.kind !== "known" || yv.kind !== "known") return UNKNOWN;
