@@ -257,3 +257,46 @@ export function permutedTriangle(A: Csc, pinv: Int32Array, triangle: "upper" | "
   }
   return { m: n, n, p: cp, i: ci, x: cx };
 }
+
+/**
+ * Pattern of an m×n matrix from (row, column) pairs, duplicates merged, rows
+ * sorted in each column; `map[k]` is the position in C.i of pair k, so a value
+ * for pair k is accumulated with C.x[map[k]] += value.
+ */
+export function compressPattern(m: number, n: number, ti: Int32Array, tj: Int32Array, nz: number): { C: Csc; map: Int32Array } {
+  // Counting sort by row, then stable counting sort by column: sorted (column, row) order.
+  const byRow = new Int32Array(nz);
+  const rc = new Int32Array(m + 1);
+  for (let k = 0; k < nz; k++) rc[ti[k] + 1]++;
+  for (let i = 0; i < m; i++) rc[i + 1] += rc[i];
+  for (let k = 0; k < nz; k++) byRow[rc[ti[k]]++] = k;
+  const order = new Int32Array(nz);
+  const cc = new Int32Array(n + 1);
+  for (let k = 0; k < nz; k++) cc[tj[k] + 1]++;
+  for (let j = 0; j < n; j++) cc[j + 1] += cc[j];
+  for (let q = 0; q < nz; q++) {
+    const k = byRow[q];
+    order[cc[tj[k]]++] = k;
+  }
+  const p = new Int32Array(n + 1);
+  const idx = new Int32Array(nz);
+  const map = new Int32Array(nz);
+  let out = 0;
+  let q = 0;
+  for (let j = 0; j < n; j++) {
+    p[j] = out;
+    let last = -1;
+    const end = cc[j];
+    for (; q < end; q++) {
+      const k = order[q];
+      const i = ti[k];
+      if (i !== last) {
+        idx[out++] = i;
+        last = i;
+      }
+      map[k] = out - 1;
+    }
+  }
+  p[n] = out;
+  return { C: { m, n, p, i: idx.slice(0, out), x: new Float64Array(out) }, map };
+}

@@ -1,0 +1,321 @@
+/**
+ * Damped Newton solve of KCL on internal node voltages, for networks outside
+ * the linear class (a gate, bulk or well on an internal node; a node joining
+ * n- and p-channel devices) and for the all-region EKV model.
+ *
+ * F_k(V) = Σ currents entering internal node k (device equations of
+ * device.ts, injects); J = ∂F/∂V is assembled into a fixed sparse pattern and
+ * factorised by the sparse LU with partial pivoting of lu.ts, columns in
+ * approximate-minimum-degree order of J + Jᵀ.
+ *
+ * Damping: each step δ = −J⁻¹F is scaled so that no node moves more than
+ * MAX_STEP_UT thermal voltages (common practice for exponential devices).
+ * Convergence: the largest KCL error is below 1e-15 A or 1e-9 of the largest
+ * device current, AND the last step moved no node more than STEP_TOL volts.
+ * When plain Newton fails, source stepping (continuation): rails and injects
+ * scaled by α from 0 (where V = 0 solves KCL exactly) to 1, each stage
+ * started from the previous one. A point that does not converge is a failure
+ * naming the node with the largest KCL error, never a result.
+ */
+
+import type { Network } from "../lang/network";
+import { type DeviceParams, deviceCurrent, polarity } from "./device";
+import { lu, luSolve } from "./lu";
+import { amd } from "./order";
+import { compressPattern, type Csc, symmetricAdjacency } from "./sparse";
+
+const MAX_STEP_UT = 4;
+const MAX_ITER = 200;
+const STEP_TOL = 1e-9;
+const ABS_TOL = 1e-15;
+const REL_TOL = 1e-9;
+
+export interface NewtonPlan {
+  rows: number;
+  rowOf: Int32Array;
+  nodeOfRow: Int32Array;
+  /** Jacobian pattern (rows × rows); values refilled at every iteration. */
+  J: Csc;
+  /** Per device 8 slots: [source row × (g, s, d, b), drain row × (g, s, d, b)] → position in J.x, or -1. */
+  slots: Int32Array;
+  /** Column order for the LU. */
+  q: Int32Array;
+  F: Float64Array;
+  delta: Float64Array;
+  work: Float64Array;
+  analyseMs: number;
+}
+
+export interface NewtonOk {
+  ok: true;
+  iterations: number;
+  residual: number;
+  continuation: boolean;
+}
+
+export interface NewtonFail {
+  ok: false;
+  iterations: number;
+  residual: number;
+  node: number;
+  message: string;
+}
+
+export function planNewton(net: Network): NewtonPlan {
+  const t0 = performance.now();
+  const { nodes, devices } = net;
+  const nn = nodes.names.length;
+  const m = devices.count;
+  const rowOf = new Int32Array(nn);
+  let rows = 0;
+  for (let k = 0; k < nn; k++) rowOf[k] = Number.isFinite(nodes.railValue[k]) ? -1 : rows++;
+  const nodeOfRow = new Int32Array(rows);
+  for (let k = 0; k < nn; k++) if (rowOf[k] >= 0) nodeOfRow[rowOf[k]] = k;
+  const { gate, source, drain, bulk } = devices;
+  // Pattern pairs: a diagonal for every row (so no column is structurally empty), then 8 per device.
+  const cap = rows + 8 * m;
+  const ti = new Int32Array(cap);
+  const tj = new Int32Array(cap);
+  let nz = 0;
+  for (let r = 0; r < rows; r++) {
+    ti[nz] = r;
+    tj[nz++] = r;
+  }
+  const slotPair = new Int32Array(8 * m).fill(-1);
+  for (let d = 0; d < m; d++) {
+    const b = bulk[d];
+    const cols = [rowOf[gate[d]], rowOf[source[d]], rowOf[drain[d]], b >= 0 ? rowOf[b] : -1];
+    const rs = [rowOf[source[d]], rowOf[drain[d]]];
+    for (let a = 0; a < 2; a++) {
+      if (rs[a] < 0) continue;
+      for (let c = 0; c < 4; c++) {
+        if (cols[c] < 0) continue;
+        ti[nz] = rs[a];
+        tj[nz] = cols[c];
+        slotPair[8 * d + 4 * a + c] = nz++;
+      }
+    }
+  }
+  const { C: J, map } = compressPattern(rows, rows, ti, tj, nz);
+  const slots = new Int32Array(8 * m);
+  for (let k = 0; k < 8 * m; k++) slots[k] = slotPair[k] < 0 ? -1 : map[slotPair[k]];
+  const adj = symmetricAdjacency(J);
+  const q = amd(rows, adj.p, adj.i);
+  return {
+    rows,
+    rowOf,
+    nodeOfRow,
+    J,
+    slots,
+    q,
+    F: new Float64Array(rows),
+    delta: new Float64Array(rows),
+    work: new Float64Array(rows),
+    analyseMs: performance.now() - t0,
+  };
+}
+
+/**
+ * F (currents entering each internal row) and, when `withJacobian`, J.x, at
+ * node voltages V with rails scaled by alpha (already applied to V) and injects by alpha.
+ * Returns [max |F|, max |device current|].
+ */
+function assemble(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, alpha: number, withJacobian: boolean, out4: Float64Array): [number, number] {
+  const { devices, injects } = net;
+  const { type, gate, source, drain, bulk } = devices;
+  const { rowOf, F, slots } = plan;
+  const jx = plan.J.x as Float64Array;
+  F.fill(0);
+  if (withJacobian) jx.fill(0);
+  let imax = 0;
+  for (let d = 0; d < devices.count; d++) {
+    const sg = polarity(type[d]);
+    const b = bulk[d];
+    const vb = b >= 0 ? V[b] : 0;
+    const s = source[d];
+    const t = drain[d];
+    deviceCurrent(P, d, sg * (V[gate[d]] - vb), sg * (V[s] - vb), sg * (V[t] - vb), out4);
+    const i = out4[0];
+    const a = Math.abs(i);
+    if (a > imax) imax = a;
+    const rs = rowOf[s];
+    const rt = rowOf[t];
+    if (rs >= 0) F[rs] += sg * i;
+    if (rt >= 0) F[rt] -= sg * i;
+    if (!withJacobian) continue;
+    // ∂(σI)/∂V_t = ∂I/∂x_t for t = g, s, d; ∂(σI)/∂V_b = −(∂I/∂x_g + ∂I/∂x_s + ∂I/∂x_d).
+    const dg = out4[1];
+    const ds = out4[2];
+    const dd = out4[3];
+    const db = -(dg + ds + dd);
+    const base = 8 * d;
+    if (rs >= 0) {
+      let q = slots[base];
+      if (q >= 0) jx[q] += dg;
+      q = slots[base + 1];
+      if (q >= 0) jx[q] += ds;
+      q = slots[base + 2];
+      if (q >= 0) jx[q] += dd;
+      q = slots[base + 3];
+      if (q >= 0) jx[q] += db;
+    }
+    if (rt >= 0) {
+      let q = slots[base + 4];
+      if (q >= 0) jx[q] -= dg;
+      q = slots[base + 5];
+      if (q >= 0) jx[q] -= ds;
+      q = slots[base + 6];
+      if (q >= 0) jx[q] -= dd;
+      q = slots[base + 7];
+      if (q >= 0) jx[q] -= db;
+    }
+  }
+  for (let j = 0; j < injects.count; j++) {
+    const v = alpha * injects.value[j];
+    const rf = rowOf[injects.from[j]];
+    const rt = rowOf[injects.to[j]];
+    if (rf >= 0) F[rf] -= v;
+    if (rt >= 0) F[rt] += v;
+  }
+  let fmax = 0;
+  for (let r = 0; r < plan.rows; r++) {
+    const f = Math.abs(F[r]);
+    if (!(f <= fmax)) fmax = f;
+  }
+  return [fmax, imax];
+}
+
+/** Damped Newton from V (internal entries are the start; rails must hold alpha·railValue). Updates V in place. */
+function newtonLoop(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, alpha: number, maxIter: number): { converged: boolean; iterations: number; residual: number; worstRow: number } {
+  const out4 = new Float64Array(4);
+  const maxStep = MAX_STEP_UT * P.ut;
+  let lastStep = Infinity;
+  let residual = Infinity;
+  for (let it = 0; it <= maxIter; it++) {
+    const [fmax, imax] = assemble(plan, net, P, V, alpha, true, out4);
+    residual = fmax;
+    if (!Number.isFinite(fmax)) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
+    if (lastStep <= STEP_TOL && (fmax < ABS_TOL || fmax <= REL_TOL * imax)) return { converged: true, iterations: it, residual: fmax, worstRow: -1 };
+    if (it === maxIter) break;
+    const res = lu(plan.J, plan.q);
+    if (!res.ok) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
+    const { F, delta, work } = plan;
+    for (let r = 0; r < plan.rows; r++) F[r] = -F[r];
+    luSolve(res.factor, F, delta, work);
+    let dmax = 0;
+    for (let r = 0; r < plan.rows; r++) {
+      const a = Math.abs(delta[r]);
+      if (!(a <= dmax)) dmax = a;
+    }
+    if (!Number.isFinite(dmax)) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
+    const lambda = dmax > maxStep ? maxStep / dmax : 1;
+    for (let r = 0; r < plan.rows; r++) V[plan.nodeOfRow[r]] += lambda * delta[r];
+    lastStep = lambda * dmax;
+  }
+  assemble(plan, net, P, V, alpha, false, out4);
+  return { converged: false, iterations: maxIter, residual, worstRow: worstRow(plan) };
+}
+
+function worstRow(plan: NewtonPlan): number {
+  let w = -1;
+  let best = -1;
+  for (let r = 0; r < plan.rows; r++) {
+    const f = Math.abs(plan.F[r]);
+    if (!(f <= best)) {
+      best = f;
+      w = r;
+    }
+  }
+  return w;
+}
+
+/**
+ * Solves the point: V holds the start for internal nodes on entry (rails are
+ * overwritten with their values) and the solution on success.
+ */
+export function solveNewton(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, opts: { forceContinuation?: boolean } = {}): NewtonOk | NewtonFail {
+  const rv = net.nodes.railValue;
+  const nn = rv.length;
+  for (let k = 0; k < nn; k++) if (plan.rowOf[k] < 0) V[k] = rv[k];
+  // Where a failure is reported from: the end of the plain attempt (or the start).
+  const report = Float64Array.from(V);
+  let total = 0;
+  if (!opts.forceContinuation) {
+    const r = newtonLoop(plan, net, P, V, 1, MAX_ITER);
+    total += r.iterations;
+    if (r.converged) return { ok: true, iterations: total, residual: r.residual, continuation: false };
+    let finite = true;
+    for (let k = 0; k < nn; k++) if (!Number.isFinite(V[k])) finite = false;
+    if (finite) report.set(V);
+  }
+  // Source stepping: α from 0 to 1, V = 0 solves α = 0 exactly.
+  V.fill(0);
+  let alpha = 0;
+  let step = 0.1;
+  let last = { converged: false, iterations: 0, residual: Infinity, worstRow: -1 };
+  const saved = new Float64Array(nn);
+  while (alpha < 1) {
+    const next = Math.min(1, alpha + step);
+    saved.set(V);
+    for (let k = 0; k < nn; k++) if (plan.rowOf[k] < 0) V[k] = next * rv[k];
+    last = newtonLoop(plan, net, P, V, next, 60);
+    total += last.iterations;
+    if (last.converged) {
+      alpha = next;
+      step = Math.min(0.5, step * 2);
+    } else {
+      V.set(saved);
+      step /= 4;
+      if (step < 1e-6) break;
+    }
+  }
+  if (alpha >= 1 && last.converged) return { ok: true, iterations: total, residual: last.residual, continuation: true };
+  V.set(report);
+  const out4 = new Float64Array(4);
+  const [fmax] = assemble(plan, net, P, V, 1, false, out4);
+  const row = worstRow(plan);
+  const node = row >= 0 ? plan.nodeOfRow[row] : -1;
+  const name = node >= 0 ? net.nodes.names[node] : "?";
+  return {
+    ok: false,
+    iterations: total,
+    residual: fmax,
+    node,
+    message: `Newton did not converge (${total} iterations, with source-stepping continuation to α = ${alpha.toFixed(3)}): the largest KCL error is ${plan.F[row] !== undefined ? Math.abs(plan.F[row]).toExponential(2) : "?"} A at node ${name}`,
+  };
+}
+
+/**
+ * A starting point for Newton: each internal node at the mean of the rails its
+ * channels touch, or the mean of all rails when none.
+ */
+export function initialGuess(net: Network, V: Float64Array): void {
+  const { nodes, devices } = net;
+  const rv = nodes.railValue;
+  const nn = rv.length;
+  const sum = new Float64Array(nn);
+  const cnt = new Int32Array(nn);
+  let all = 0;
+  let nr = 0;
+  for (let k = 0; k < nn; k++) {
+    if (Number.isFinite(rv[k])) {
+      all += rv[k];
+      nr++;
+    }
+  }
+  const mean = nr > 0 ? all / nr : 0;
+  const { source, drain } = devices;
+  for (let d = 0; d < devices.count; d++) {
+    const s = source[d];
+    const t = drain[d];
+    if (Number.isFinite(rv[t]) && !Number.isFinite(rv[s])) {
+      sum[s] += rv[t];
+      cnt[s]++;
+    }
+    if (Number.isFinite(rv[s]) && !Number.isFinite(rv[t])) {
+      sum[t] += rv[s];
+      cnt[t]++;
+    }
+  }
+  for (let k = 0; k < nn; k++) V[k] = Number.isFinite(rv[k]) ? rv[k] : cnt[k] > 0 ? sum[k] / cnt[k] : mean;
+}

@@ -1,0 +1,359 @@
+/**
+ * Results of a solve: per-point typed arrays, their evaluation from node
+ * voltages with the device equations (never from the linear system), and the
+ * LANGUAGE.md `solve --json` document.
+ *
+ * Sign conventions (LANGUAGE.md): device current nfet drain→source, pfet
+ * source→drain; a rail's current is what it delivers into the network; the
+ * residual is the largest KCL error over internal nodes, in amperes.
+ */
+
+import type { Diagnostic, Network } from "../lang/network";
+import { LineIndex } from "../lang/diagnostics";
+import type { Classification } from "./classify";
+import { type DeviceParams, deviceCurrent, polarity } from "./device";
+
+export type Method = "linear" | "newton";
+
+export interface SolverInfo {
+  method: Method;
+  iterations: number;
+  /** Largest KCL error over internal nodes, amperes, from the device equations in voltage form. */
+  residual: number;
+  /** Why this method: the classification reason. */
+  reason: string;
+  /** Fill-reducing ordering of the linear system (linear method), or of the Jacobian (Newton). */
+  ordering?: string;
+  /** Newton only: whether source-stepping continuation was needed. */
+  continuation?: boolean;
+  /** Linear only: whether this point reused the previous numeric factorisation. */
+  reusedFactor?: boolean;
+}
+
+export type WarningKind = "junction" | "inversion";
+
+/** A validity warning, aggregated over devices of one point. */
+export interface SolverWarning {
+  kind: WarningKind;
+  /** First device concerned. */
+  device: number;
+  /** How many devices. */
+  count: number;
+  /** Largest forward bias (junction, volts) or inversion coefficient (inversion). */
+  worst: number;
+  message: string;
+}
+
+export interface PointResult {
+  /** Position in the run: grid point (outer sweep slowest) × sample. */
+  index: number;
+  /** Param values of this point (all params), plus temp when it is swept. */
+  params: Record<string, number>;
+  /** Mismatch sample 0..N-1, or null without mismatch. */
+  sample: number | null;
+  ok: boolean;
+  /** When !ok: what failed, naming the node. */
+  error: string | null;
+  /** Node voltages (volts, every node; rails at their values). */
+  voltages: Float64Array;
+  /** Device currents (sign convention above). */
+  currents: Float64Array;
+  /** Inversion coefficient I_F/(ispec·W/L); NaN when not available (reported as null). */
+  ic: Float64Array;
+  /** 1 when V_DS > 4·U_T (pfet: V_SD). */
+  saturated: Uint8Array;
+  /** Per node: current a rail delivers into the network; NaN for internal nodes. */
+  railCurrents: Float64Array;
+  probes: Record<string, number>;
+  solver: SolverInfo;
+  warnings: SolverWarning[];
+}
+
+export interface ProbeSummary {
+  probe: string;
+  /** Index of the grid point (outer sweep slowest), and its params. */
+  gridPoint: number;
+  params: Record<string, number>;
+  samples: number;
+  mean: number;
+  std: number;
+  min: number;
+  max: number;
+  /** Percentiles (linear interpolation between order statistics). */
+  p1: number;
+  p5: number;
+  p50: number;
+  p95: number;
+  p99: number;
+}
+
+/** Milliseconds per phase, summed over the run's points. */
+export interface RunTimings {
+  /** Structure: graph, ordering, symbolic analysis (linear) or Jacobian pattern and ordering (Newton). */
+  analyseMs: number;
+  /** Linear: conductances and numeric factorisation (zero for a point that reuses it). Newton: the start. */
+  factorMs: number;
+  /** Linear: right-hand side, triangular solves, voltages. Newton: the iterations. */
+  solveMs: number;
+  /** Currents, inversion coefficients, rail currents, KCL residual, probes. */
+  evaluateMs: number;
+}
+
+export interface RunResult {
+  ok: boolean;
+  /** Points in run order (only the retained ones when `keepPoints` is false). */
+  points: PointResult[];
+  /** Points solved (including failed ones). */
+  solved: number;
+  /** Points the run would have: grid points × samples (before maxPoints). */
+  total: number;
+  classification: Classification;
+  method: Method;
+  reason: string;
+  /** One entry per failed point (or a structural problem, point -1). */
+  failures: { point: number; node: number; message: string }[];
+  /** Per probe and grid point, over mismatch samples (empty without mismatch). */
+  summaries: ProbeSummary[];
+  stopped: boolean;
+  timings: RunTimings;
+}
+
+/** Tolerance below which a junction counts as forward-biased, volts. */
+const JUNCTION_TOLERANCE = 1e-6;
+/** Inversion coefficient above which the weak-inversion model no longer holds. */
+const WEAK_LIMIT = 0.1;
+
+export interface Evaluation {
+  currents: Float64Array;
+  ic: Float64Array;
+  saturated: Uint8Array;
+  railCurrents: Float64Array;
+  residual: number;
+  /** Node with the largest KCL error (-1 if none). */
+  worstNode: number;
+  /** Largest |device current|. */
+  maxCurrent: number;
+  warnings: SolverWarning[];
+}
+
+/**
+ * Everything reported for one point, from node voltages V (every node) and
+ * the device constants P, with the device equations in voltage form.
+ * `kcl` (length = nodes) is scratch.
+ */
+export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array): Evaluation {
+  const { devices, injects, nodes, settings } = net;
+  const m = devices.count;
+  const nn = nodes.names.length;
+  const { type, gate, source, drain, bulk, w, l } = devices;
+  const currents = new Float64Array(m);
+  const ic = new Float64Array(m);
+  const saturated = new Uint8Array(m);
+  const entering = kcl ?? new Float64Array(nn);
+  entering.fill(0);
+  const ispec = settings.ispec;
+  const hasIc = ispec !== null && (settings.model === "weak" || settings.vt0 !== null);
+  const satLimit = 4 * settings.ut;
+  const out = new Float64Array(4);
+  let maxCurrent = 0;
+  let junctionCount = 0;
+  let junctionFirst = -1;
+  let junctionWorst = 0;
+  let invCount = 0;
+  let invFirst = -1;
+  let invWorst = 0;
+  const checkWeak = hasIc && settings.model === "weak";
+  for (let d = 0; d < m; d++) {
+    const sg = polarity(type[d]);
+    const b = bulk[d];
+    const vb = b >= 0 ? V[b] : 0;
+    const xs = sg * (V[source[d]] - vb);
+    const xd = sg * (V[drain[d]] - vb);
+    const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
+    const i = out[0];
+    currents[d] = i;
+    const a = Math.abs(i);
+    if (a > maxCurrent) maxCurrent = a;
+    entering[source[d]] += sg * i;
+    entering[drain[d]] -= sg * i;
+    saturated[d] = xd - xs > satLimit ? 1 : 0;
+    const icd = hasIc ? iF / (((ispec as number) * w[d]) / l[d]) : NaN;
+    ic[d] = icd;
+    if (checkWeak && icd > WEAK_LIMIT) {
+      if (invFirst < 0) invFirst = d;
+      invCount++;
+      if (icd > invWorst) invWorst = icd;
+    }
+    // x < 0 at source or drain: the junction to the bulk/well is forward-biased.
+    const fwd = -Math.min(xs, xd);
+    if (fwd > JUNCTION_TOLERANCE) {
+      if (junctionFirst < 0) junctionFirst = d;
+      junctionCount++;
+      if (fwd > junctionWorst) junctionWorst = fwd;
+    }
+  }
+  for (let j = 0; j < injects.count; j++) {
+    const v = injects.value[j];
+    entering[injects.from[j]] -= v;
+    entering[injects.to[j]] += v;
+  }
+  const railCurrents = new Float64Array(nn);
+  let residual = 0;
+  let worstNode = -1;
+  const rv = nodes.railValue;
+  for (let k = 0; k < nn; k++) {
+    if (Number.isFinite(rv[k])) {
+      railCurrents[k] = -entering[k];
+    } else {
+      railCurrents[k] = NaN;
+      const e = Math.abs(entering[k]);
+      if (e > residual || worstNode < 0) {
+        residual = e;
+        worstNode = k;
+      }
+    }
+  }
+  const warnings: SolverWarning[] = [];
+  if (junctionCount > 0) {
+    const first = devices.names[junctionFirst];
+    const others = junctionCount > 1 ? ` and ${junctionCount - 1} other device${junctionCount > 2 ? "s" : ""}` : "";
+    warnings.push({
+      kind: "junction",
+      device: junctionFirst,
+      count: junctionCount,
+      worst: junctionWorst,
+      message: `${first}${others}: source or drain beyond the ${type[junctionFirst] === 0 ? "bulk" : "well"} (junction forward-biased by up to ${formatVolts(junctionWorst)}); the model has no junction current`,
+    });
+  }
+  if (invCount > 0) {
+    const first = devices.names[invFirst];
+    const others = invCount > 1 ? ` and ${invCount - 1} other device${invCount > 2 ? "s" : ""}` : "";
+    warnings.push({
+      kind: "inversion",
+      device: invFirst,
+      count: invCount,
+      worst: invWorst,
+      message: `${first}${others}: inversion coefficient up to ${invWorst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`,
+    });
+  }
+  return { currents, ic, saturated, railCurrents, residual, worstNode, maxCurrent, warnings };
+}
+
+function formatVolts(v: number): string {
+  return v >= 0.1 ? `${v.toFixed(3)} V` : `${(v * 1000).toPrecision(3)} mV`;
+}
+
+/** Probe values of a solved point (NaN for a probe whose evaluation throws or is not finite). */
+export function evaluateProbes(
+  net: Network,
+  V: Float64Array,
+  currents: Float64Array,
+  railCurrents: Float64Array,
+  params: Record<string, number>,
+): Record<string, number> {
+  const out: Record<string, number> = {};
+  if (net.probes.length === 0) return out;
+  const ctx = {
+    voltage: (node: number) => V[node],
+    deviceCurrent: (device: number) => currents[device],
+    injectCurrent: (inject: number) => net.injects.value[inject],
+    railCurrent: (node: number) => railCurrents[node],
+  };
+  for (const p of net.probes) {
+    let v: number;
+    try {
+      v = p.evaluate(ctx, params, net.settings);
+    } catch {
+      v = NaN;
+    }
+    out[p.name] = Number.isFinite(v) ? v : NaN;
+  }
+  return out;
+}
+
+// ---------------------------------------------------------------------------
+// The `solve --json` document (LANGUAGE.md).
+
+export interface JsonDiagnostic {
+  severity: "error" | "warning";
+  line: number;
+  column: number;
+  message: string;
+}
+
+export interface JsonPoint {
+  params: Record<string, number>;
+  nodes: Record<string, number>;
+  rails: Record<string, number>;
+  devices: Record<string, { current: number; ic: number | null; saturated: boolean }>;
+  probes: Record<string, number | null>;
+  solver: { method: Method; iterations: number; residual: number; reason: string };
+  sample: number;
+}
+
+export interface SolveJson {
+  network: string | null;
+  ok: boolean;
+  diagnostics: JsonDiagnostic[];
+  points: JsonPoint[];
+}
+
+const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
+
+/** One point as LANGUAGE.md specifies (names as keys, null for missing numbers). */
+export function pointJson(net: Network, p: PointResult): JsonPoint {
+  const nodes: Record<string, number> = {};
+  const names = net.nodes.names;
+  for (let k = 0; k < names.length; k++) nodes[names[k]] = p.voltages[k];
+  const rails: Record<string, number> = {};
+  for (const r of net.rails) rails[r.name] = p.railCurrents[r.node];
+  const devices: JsonPoint["devices"] = {};
+  const dn = net.devices.names;
+  for (let d = 0; d < dn.length; d++) devices[dn[d]] = { current: p.currents[d], ic: finiteOrNull(p.ic[d]), saturated: p.saturated[d] === 1 };
+  const probes: Record<string, number | null> = {};
+  for (const [k, v] of Object.entries(p.probes)) probes[k] = finiteOrNull(v);
+  const { method, iterations, residual, reason } = p.solver;
+  return { params: p.params, nodes, rails, devices, probes, solver: { method, iterations, residual, reason }, sample: p.sample ?? 0 };
+}
+
+/**
+ * The `rill solve --json` document. `diagnostics` are the elaboration's;
+ * solver failures become errors and validity warnings become warnings, placed
+ * at the device's statement when `text` is given. `ok` is false, with no
+ * points, when any diagnostic is an error or any point failed.
+ */
+export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run: RunResult | null, text?: string, name?: string | null): SolveJson {
+  const out: JsonDiagnostic[] = diagnostics.map((d) => ({ severity: d.severity, line: d.line, column: d.column, message: d.message }));
+  const lines = text !== undefined ? new LineIndex(text) : null;
+  const at = (offset: number): { line: number; column: number } => (lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 });
+  let ok = !diagnostics.some((d) => d.severity === "error") && net !== null && run !== null;
+  if (net && run) {
+    const seen = new Set<string>();
+    for (const f of run.failures) {
+      const dev = f.node >= 0 ? firstDeviceAt(net, f.node) : -1;
+      out.push({ severity: "error", ...at(dev >= 0 ? net.devices.at[dev] : -1), message: f.message });
+    }
+    for (const p of run.points) {
+      for (const w of p.warnings) {
+        const key = `${w.kind}:${w.device}`;
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const where = run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+        out.push({ severity: "warning", ...at(net.devices.at[w.device]), message: w.message + where });
+      }
+    }
+    if (!run.ok) ok = false;
+  }
+  return {
+    network: net ? net.name : (name ?? null),
+    ok,
+    diagnostics: out,
+    points: ok && net && run ? run.points.map((p) => pointJson(net, p)) : [],
+  };
+}
+
+function firstDeviceAt(net: Network, node: number): number {
+  const { source, drain, gate, count } = net.devices;
+  for (let d = 0; d < count; d++) if (source[d] === node || drain[d] === node || gate[d] === node) return d;
+  return -1;
+}
