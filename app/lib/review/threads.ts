@@ -1,0 +1,213 @@
+/**
+ * Review threads on a commit: comments (Markdown, rendered safely on read),
+ * run cards, mentions that notify members by e-mail, and verdicts.
+ *
+ * Contracts
+ * - Functions take already-authorised arguments; `addComment` with a verdict
+ *   must only be called after `authorize(actor, "commit.signoff", ws)`.
+ * - A mention `@handle` names a member by the local part of their e-mail
+ *   address (lower case): `@ruth` for ruth@larkspur.example. Each mentioned
+ *   member other than the author gets exactly one message per comment,
+ *   whatever the number of times they are mentioned in it; a handle that is
+ *   no member of the workspace notifies nobody.
+ * - A run card shows a run only when it belongs to the thread's workspace;
+ *   any other id is shown as "not found" (nothing leaks).
+ */
+import { and, asc, desc, eq, inArray } from "drizzle-orm";
+import { db } from "@/db";
+import { comments, commits, memberships, networks, reviews, runs, threads, users, workspaces, type Verdict } from "@/db/schema";
+import { RequestError } from "../http";
+import { newId, type Q } from "../networks";
+import { commitBadges, type ReviewState } from "./diffs";
+import { extractMentions, extractRunRefs, renderComment } from "./markdown";
+import { keyProbes } from "./run-tables";
+
+export const MAX_COMMENT_LENGTH = 20_000;
+export const MAX_TITLE_LENGTH = 200;
+
+/** What sends a notification (app/lib/mail.ts `sendMail` in the app; a recorder in tests). */
+export type Notify = (mail: { to: string; subject: string; text: string; html?: string }) => Promise<unknown>;
+
+/** The handle of a member: the local part of their address, lower case. */
+export function handleOf(email: string): string {
+  return email.split("@")[0].toLowerCase();
+}
+
+/** The absolute origin for links in e-mails. */
+function origin(): string {
+  return (process.env.RILL_ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, "");
+}
+
+function checkBody(body: string, verdict: Verdict | null): string {
+  const b = body.replace(/\r\n/g, "\n").trim();
+  if (b.length > MAX_COMMENT_LENGTH) throw new RequestError(400, `body: at most ${MAX_COMMENT_LENGTH} characters (this one has ${b.length})`);
+  if (b.length === 0 && !verdict) throw new RequestError(400, "body: write a comment");
+  return b;
+}
+
+export interface ThreadRef {
+  id: string;
+  workspaceId: string;
+  networkId: string;
+  commitId: string;
+  runId: string | null;
+  title: string;
+}
+
+export function getThreadRef(id: string, d: Q = db()): ThreadRef | null {
+  return d.select({ id: threads.id, workspaceId: threads.workspaceId, networkId: threads.networkId, commitId: threads.commitId, runId: threads.runId, title: threads.title }).from(threads).where(eq(threads.id, id)).get() ?? null;
+}
+
+/**
+ * Opens a thread on a commit (optionally pinned to a run of it) with its first
+ * comment. 404 for an unknown commit, 422 for a run of another commit.
+ */
+export async function createThread(
+  input: { commitId: string; runId?: string | null; title: string; body: string; authorId: string },
+  notify: Notify,
+  d: Q = db(),
+): Promise<{ thread: ThreadRef; commentId: string; notified: string[] }> {
+  const title = input.title.trim();
+  if (title.length === 0) throw new RequestError(400, "title: give the thread a title");
+  if (title.length > MAX_TITLE_LENGTH) throw new RequestError(400, `title: at most ${MAX_TITLE_LENGTH} characters`);
+  const body = checkBody(input.body, null);
+  const commit = d.select({ id: commits.id, networkId: commits.networkId, workspaceId: networks.workspaceId }).from(commits).innerJoin(networks, eq(networks.id, commits.networkId)).where(eq(commits.id, input.commitId)).get();
+  if (!commit) throw new RequestError(404, `commit ${input.commitId} not found`);
+  if (input.runId) {
+    const run = d.select({ commitId: runs.commitId }).from(runs).where(eq(runs.id, input.runId)).get();
+    if (!run || run.commitId !== commit.id) throw new RequestError(422, `runId: run ${input.runId} is not a run of this commit`);
+  }
+  const id = newId("t");
+  d.insert(threads).values({ id, workspaceId: commit.workspaceId, networkId: commit.networkId, commitId: commit.id, runId: input.runId ?? null, title, createdBy: input.authorId }).run();
+  const c = await addComment({ threadId: id, body, authorId: input.authorId }, notify, d);
+  return { thread: getThreadRef(id, d)!, commentId: c.commentId, notified: c.notified };
+}
+
+/**
+ * Adds a comment, and with `verdict` records the author's verdict on the
+ * thread's commit. Sends the mention e-mails after the comment is stored;
+ * a failed e-mail is reported in `mailErrors`, the comment stays.
+ */
+export async function addComment(
+  input: { threadId: string; body: string; authorId: string; verdict?: Verdict | null },
+  notify: Notify,
+  d: Q = db(),
+): Promise<{ commentId: string; notified: string[]; mailErrors: string[] }> {
+  const verdict = input.verdict ?? null;
+  const body = checkBody(input.body, verdict);
+  const thread = getThreadRef(input.threadId, d);
+  if (!thread) throw new RequestError(404, `thread ${input.threadId} not found`);
+  const commentId = newId("c");
+
+  const handles = extractMentions(body);
+  const members = handles.length
+    ? d.select({ userId: users.id, email: users.email, name: users.name }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.workspaceId, thread.workspaceId)).all()
+    : [];
+  const byHandle = new Map(members.map((m) => [handleOf(m.email), m]));
+  const targets = [...new Map(handles.map((h) => byHandle.get(h)).filter((m) => m !== undefined && m.userId !== input.authorId).map((m) => [m!.userId, m!])).values()];
+
+  d.transaction((tx) => {
+    tx.insert(comments).values({ id: commentId, threadId: thread.id, workspaceId: thread.workspaceId, authorId: input.authorId, body, notified: targets.map((t) => handleOf(t.email)) }).run();
+    if (verdict) tx.insert(reviews).values({ id: newId("rv"), commitId: thread.commitId, workspaceId: thread.workspaceId, reviewerId: input.authorId, verdict, threadId: thread.id, commentId }).run();
+    tx.update(threads).set({ updatedAt: new Date() }).where(eq(threads.id, thread.id)).run();
+  });
+
+  const author = d.select({ name: users.name }).from(users).where(eq(users.id, input.authorId)).get();
+  const link = `${origin()}/threads/${thread.id}#${commentId}`;
+  const mailErrors: string[] = [];
+  for (const t of targets) {
+    const excerpt = body.length > 600 ? `${body.slice(0, 600)}…` : body;
+    try {
+      await notify({
+        to: t.email,
+        subject: `[Rill] ${author?.name ?? "Someone"} mentioned you in "${thread.title}"`,
+        text: `${author?.name ?? "Someone"} mentioned you in the thread "${thread.title}":\n\n${excerpt}\n\nOpen the thread: ${link}\n`,
+      });
+    } catch (e) {
+      mailErrors.push(`${t.email}: ${(e as Error).message}`);
+    }
+  }
+  return { commentId, notified: targets.map((t) => handleOf(t.email)), mailErrors };
+}
+
+export interface RunCard {
+  id: string;
+  found: boolean;
+  state?: string;
+  pointsDone?: number;
+  pointsTotal?: number;
+  commitId?: string;
+  commitMessage?: string;
+  probes?: { name: string; first: number; min: number; max: number }[];
+}
+
+/** Cards for run ids referenced in a workspace's comments (see the module contract). */
+export function runCards(ids: string[], workspaceId: string, d: Q = db()): RunCard[] {
+  if (ids.length === 0) return [];
+  const found = new Map(
+    d
+      .select({ id: runs.id, workspaceId: runs.workspaceId, state: runs.state, pointsDone: runs.pointsDone, pointsTotal: runs.pointsTotal, commitId: runs.commitId, commitMessage: commits.message })
+      .from(runs)
+      .innerJoin(commits, eq(commits.id, runs.commitId))
+      .where(inArray(runs.id, ids))
+      .all()
+      .filter((r) => r.workspaceId === workspaceId)
+      .map((r) => [r.id, r]),
+  );
+  return ids.map((id) => {
+    const r = found.get(id);
+    if (!r) return { id, found: false };
+    return { id, found: true, state: r.state, pointsDone: r.pointsDone, pointsTotal: r.pointsTotal, commitId: r.commitId, commitMessage: r.commitMessage, probes: keyProbes(id, 4, d) };
+  });
+}
+
+export interface ThreadView {
+  thread: ThreadRef & { createdAt: number; authorName: string };
+  workspace: { id: string; slug: string; name: string };
+  network: { id: string; slug: string; name: string };
+  commit: { id: string; parentId: string | null; message: string; authorName: string; createdAt: number };
+  review: ReviewState;
+  verdicts: { reviewerName: string; verdict: Verdict; at: number }[];
+  comments: { id: string; authorId: string; authorName: string; html: string; body: string; createdAt: number; verdict: Verdict | null }[];
+  runCards: RunCard[];
+}
+
+/** Everything the thread page shows; null for an unknown id. */
+export function getThread(id: string, d: Q = db()): ThreadView | null {
+  const t = d
+    .select({ thread: threads, authorName: users.name, ws: { id: workspaces.id, slug: workspaces.slug, name: workspaces.name }, net: { id: networks.id, slug: networks.slug, name: networks.name } })
+    .from(threads)
+    .innerJoin(users, eq(users.id, threads.createdBy))
+    .innerJoin(workspaces, eq(workspaces.id, threads.workspaceId))
+    .innerJoin(networks, eq(networks.id, threads.networkId))
+    .where(eq(threads.id, id))
+    .get();
+  if (!t) return null;
+  const commit = d.select({ id: commits.id, parentId: commits.parentId, message: commits.message, authorName: users.name, createdAt: commits.createdAt }).from(commits).innerJoin(users, eq(users.id, commits.authorId)).where(eq(commits.id, t.thread.commitId)).get()!;
+  const rows = d.select({ c: comments, authorName: users.name }).from(comments).innerJoin(users, eq(users.id, comments.authorId)).where(eq(comments.threadId, id)).orderBy(asc(comments.createdAt), asc(comments.id)).all();
+  const verdictOf = new Map(d.select({ commentId: reviews.commentId, verdict: reviews.verdict }).from(reviews).where(eq(reviews.threadId, id)).all().map((r) => [r.commentId, r.verdict]));
+  const refs = [...new Set([...(t.thread.runId ? [t.thread.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))])];
+  const badge = commitBadges([commit.id], d).get(commit.id)!;
+  return {
+    thread: { id: t.thread.id, workspaceId: t.thread.workspaceId, networkId: t.thread.networkId, commitId: t.thread.commitId, runId: t.thread.runId, title: t.thread.title, createdAt: t.thread.createdAt.getTime(), authorName: t.authorName },
+    workspace: t.ws,
+    network: t.net,
+    commit: { ...commit, createdAt: commit.createdAt.getTime() },
+    review: badge.review,
+    verdicts: badge.verdicts.map((v) => ({ reviewerName: v.reviewerName, verdict: v.verdict, at: v.at })),
+    comments: rows.map((r) => ({ id: r.c.id, authorId: r.c.authorId, authorName: r.authorName, body: r.c.body, html: renderComment(r.c.body), createdAt: r.c.createdAt.getTime(), verdict: verdictOf.get(r.c.id) ?? null })),
+    runCards: runCards(refs, t.thread.workspaceId, d),
+  };
+}
+
+/** Threads of a network (or of one commit), newest activity first. */
+export function listThreads(where: { networkId: string; commitId?: string }, d: Q = db()) {
+  return d
+    .select({ id: threads.id, title: threads.title, commitId: threads.commitId, runId: threads.runId, updatedAt: threads.updatedAt, authorName: users.name })
+    .from(threads)
+    .innerJoin(users, eq(users.id, threads.createdBy))
+    .where(where.commitId ? and(eq(threads.networkId, where.networkId), eq(threads.commitId, where.commitId)) : eq(threads.networkId, where.networkId))
+    .orderBy(desc(threads.updatedAt))
+    .all()
+    .map((t) => ({ ...t, updatedAt: t.updatedAt.getTime() }));
+}
