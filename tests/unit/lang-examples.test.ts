@@ -1,0 +1,120 @@
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { describe, expect, it } from "vitest";
+import { elaborate, PFET } from "../../src/lang/index";
+import type { Network } from "../../src/lang/network";
+
+const root = join(__dirname, "../..");
+const examplesDir = join(root, "examples");
+const files = readdirSync(examplesDir).filter((f) => f.endsWith(".rill"));
+
+function load(name: string): Network {
+  const r = elaborate(readFileSync(join(examplesDir, name), "utf8"));
+  expect(r.diagnostics).toEqual([]);
+  return r.network!;
+}
+
+describe("examples", () => {
+  it("there are at least six", () => {
+    expect(files.length).toBeGreaterThanOrEqual(6);
+    for (const f of ["row64.rill", "grid32.rill", "divider.rill", "mirror.rill", "biassweep.rill", "mismatch.rill"]) expect(files).toContain(f);
+  });
+
+  it.each(files)("%s checks clean: no errors, no warnings", (f) => {
+    const r = elaborate(readFileSync(join(examplesDir, f), "utf8"));
+    expect(r.diagnostics).toEqual([]);
+    expect(r.ok).toBe(true);
+    expect(r.network).not.toBeNull();
+  });
+
+  it("row64: 63 lateral and 64 output devices, 64 injects, 66 probes", () => {
+    const n = load("row64.rill");
+    expect(n.name).toBe("row64");
+    expect(n.devices.count).toBe(127);
+    expect(n.injects.count).toBe(64);
+    expect(n.probes).toHaveLength(66);
+  });
+
+  it("grid32: a 32 x 32 grid from nested loops", () => {
+    const n = load("grid32.rill");
+    expect(n.devices.count).toBe(32 * 31 * 2 + 32 * 32);
+    expect(n.nodes.index.has("n31_31")).toBe(true);
+    expect(n.injects.count).toBe(32 * 32 + 1);
+  });
+
+  it("mirror: a pfet in its well and four copies with W/L 1, 2, 4, 8", () => {
+    const n = load("mirror.rill");
+    const ref = n.devices.index.get("ref")!;
+    expect(n.devices.type[ref]).toBe(PFET);
+    expect(n.nodes.names[n.devices.bulk[ref]]).toBe("vdd");
+    const ratios = [0, 1, 2, 3].map((k) => {
+      const i = n.devices.index.get(`copy${k}`)!;
+      return n.devices.w[i] / n.devices.l[i] / 1e0;
+    });
+    expect(ratios).toEqual([1, 2, 4, 8]);
+    expect(n.settings).toMatchObject({ i0: 0.5e-12, vt0: 0.45, ispec: 1e-7 });
+  });
+
+  it("biassweep: a bias sweep by a temperature sweep", () => {
+    const n = load("biassweep.rill");
+    expect(n.sweeps.map((s) => [s.param, s.values.length])).toEqual([
+      ["vh", 11],
+      ["temp", 3],
+    ]);
+    expect(n.bindings.some((b) => b.target.kind === "rail" && b.dependsOn.includes("vh"))).toBe(true);
+  });
+
+  it("mismatch: seeded Monte Carlo over a small sweep", () => {
+    const n = load("mismatch.rill");
+    expect(n.mismatch).toMatchObject({ runs: 200, seed: 7, avt: 3.5e-3 });
+    expect(n.sweeps[0].values).toEqual([0, 0.01, 0.02]);
+  });
+});
+
+function rill(...args: string[]) {
+  return spawnSync(join(root, "node_modules/.bin/tsx"), [join(root, "scripts/rill.ts"), ...args], { encoding: "utf8", cwd: root });
+}
+
+describe("rill command", () => {
+  const dir = mkdtempSync(join(tmpdir(), "rill-cli-"));
+  const broken = join(dir, "broken.rill");
+  writeFileSync(broken, "network broken\nrail v = 1\nnfet m1 gate=v source=x drain=v colour=red\nparam p = q\n");
+
+  it("check --json on a broken file prints ok:false with diagnostics and exits 1", () => {
+    const r = rill("check", broken, "--json");
+    expect(r.status).toBe(1);
+    const doc = JSON.parse(r.stdout);
+    expect(doc).toEqual({
+      network: "broken",
+      ok: false,
+      diagnostics: [
+        { severity: "error", line: 3, column: 33, message: "nfet has no pin 'colour'", hint: "nfet pins: gate, source, drain, bulk, w, l" },
+        { severity: "warning", line: 3, column: 23, message: "node 'x' is touched by only one terminal", hint: "a node joins at least two terminals: check the spelling of its name" },
+        { severity: "error", line: 4, column: 11, message: "unknown name 'q'", hint: "declare it with param NAME = VALUE above this line" },
+      ].sort((a, b) => a.line - b.line || a.column - b.column),
+    });
+  });
+
+  it("check prints FILE:LINE:COLUMN: severity: message, hints indented", () => {
+    const r = rill("check", broken);
+    expect(r.status).toBe(1);
+    expect(r.stdout.split("\n").slice(0, 2)).toEqual([`${broken}:3:23: warning: node 'x' is touched by only one terminal`, "  hint: a node joins at least two terminals: check the spelling of its name"]);
+  });
+
+  it("a clean example exits 0; --json says ok", () => {
+    const j = rill("check", join(examplesDir, "row64.rill"), "--json");
+    expect(j.status).toBe(0);
+    expect(JSON.parse(j.stdout)).toEqual({ network: "row64", ok: true, diagnostics: [] });
+  });
+
+  it("usage errors exit 2: unreadable file, solve not yet there", () => {
+    const missing = rill("check", join(dir, "missing.rill"));
+    expect(missing.status).toBe(2);
+    expect(missing.stderr).toMatch(/cannot read the file/);
+    const solve = rill("solve", broken, "--json");
+    expect(solve.status).toBe(2);
+    expect(solve.stderr.trim()).toBe("solve: not available yet");
+  });
+});
