@@ -9,7 +9,7 @@
 import type { Completion, CompletionContext, CompletionResult, CompletionSource } from "@codemirror/autocomplete";
 import { syntaxTree } from "@codemirror/language";
 import { type EditorState, StateEffect, StateField } from "@codemirror/state";
-import type { SyntaxNode, Tree } from "@lezer/common";
+import { NodeType, type SyntaxNode, Tree, type TreeBuffer } from "@lezer/common";
 import { BUILTINS, FUNCTIONS, PROBE_FUNCTIONS } from "../lang/expr";
 import { STATEMENT_WORDS } from "../lang/syntax";
 
@@ -79,7 +79,7 @@ export const elaboratedNames = StateField.define<ElaboratedNames | null>({
 
 const collected = new WeakMap<Tree, DocumentNames>();
 
-/** The names of a document, from its syntax tree (memoised per tree). */
+/** The names of a document, from its syntax tree (memoised per tree, and per reused subtree inside it). */
 export function documentNames(state: EditorState): DocumentNames {
   const tree = syntaxTree(state);
   let names = collected.get(tree);
@@ -90,14 +90,71 @@ export function documentNames(state: EditorState): DocumentNames {
   return names;
 }
 
-/** One pass over the statements of `tree`; expressions are not entered except pin values. */
+/** Names found in one subtree; `at` offsets are relative to the subtree's start. */
+interface PartialNames {
+  params: { name: string; at: number }[];
+  rails: string[];
+  used: string[];
+  patterns: string[];
+  devices: DocumentNames["devices"];
+  injects: string[];
+}
+
+/**
+ * Partial names per subtree object. Lezer reuses a subtree (Tree or
+ * TreeBuffer) across incremental parses only where its text is unchanged, so
+ * a subtree's names stay valid wherever it moves; after an edit only the
+ * subtrees along the edit are read again.
+ */
+const partials = new WeakMap<Tree | TreeBuffer, PartialNames>();
+
+/** Subtrees that hold statements: read their children one by one (each memoised). */
+const CONTAINERS = new Set(["Network", "Block", "ForStatement"]);
+
+/** The names `tree` defines or uses (its text read through `text`, in document offsets). */
 export function collectNames(tree: Tree, text: (from: number, to: number) => string): DocumentNames {
+  const parts: { part: PartialNames; base: number }[] = [];
+  gather(tree, 0, text, parts);
   const params: DocumentNames["params"] = [];
   const rails = new Set<string>();
   const used = new Set<string>();
   const patterns = new Set<string>();
   const devices: DocumentNames["devices"] = [];
   const injects: string[] = [];
+  for (const { part, base } of parts) {
+    for (const p of part.params) params.push({ name: p.name, at: base + p.at });
+    for (const r of part.rails) rails.add(r);
+    for (const u of part.used) used.add(u);
+    for (const q of part.patterns) patterns.add(q);
+    for (const d of part.devices) devices.push(d);
+    for (const i of part.injects) injects.push(i);
+  }
+  const nodes = [...used].filter((n) => !rails.has(n));
+  return { params, rails: [...rails], nodes, devices, injects, patterns: [...patterns] };
+}
+
+function gather(
+  chunk: Tree | TreeBuffer,
+  base: number,
+  text: (from: number, to: number) => string,
+  out: { part: PartialNames; base: number }[],
+): void {
+  if (chunk instanceof Tree && (chunk.type.isAnonymous || CONTAINERS.has(chunk.type.name))) {
+    for (let i = 0; i < chunk.children.length; i++) gather(chunk.children[i], base + chunk.positions[i], text, out);
+    return;
+  }
+  let part = partials.get(chunk);
+  if (!part) {
+    const tree = chunk instanceof Tree ? chunk : new Tree(NodeType.none, [chunk], [0], chunk.length);
+    part = readStatements(tree, (from, to) => text(base + from, base + to));
+    partials.set(chunk, part);
+  }
+  out.push({ part, base });
+}
+
+/** Names in the statements of `tree` (offsets relative to it); expressions are not entered except pin values. */
+function readStatements(tree: Tree, text: (from: number, to: number) => string): PartialNames {
+  const part: PartialNames = { params: [], rails: [], used: [], patterns: [], devices: [], injects: [] };
   const plainDefinition = (stmt: SyntaxNode): string | null => {
     const def = stmt.getChild("Definition");
     return def && !def.firstChild ? text(def.from, def.to) : null;
@@ -108,38 +165,35 @@ export function collectNames(tree: Tree, text: (from: number, to: number) => str
       const pinName = pin.getChild("PinName");
       const value = pin.lastChild;
       if (!pinName || !value || value === pinName || !NODE_PINS.has(text(pinName.from, pinName.to))) continue;
-      if (value.name === "Identifier") used.add(text(value.from, value.to));
-      else if (value.name === "InterpolatedName" && !containsError(value)) patterns.add(text(value.from, value.to));
+      if (value.name === "Identifier") part.used.push(text(value.from, value.to));
+      else if (value.name === "InterpolatedName" && !containsError(value)) part.patterns.push(text(value.from, value.to));
     }
   };
   tree.iterate({
     enter(ref) {
+      if (ref.type === NodeType.none || ref.type.isAnonymous || CONTAINERS.has(ref.name)) return true;
       switch (ref.name) {
-        case "Network":
-        case "ForStatement":
-        case "Block":
-          return true;
         case "ParamStatement": {
           const name = plainDefinition(ref.node);
-          if (name) params.push({ name, at: ref.from });
+          if (name) part.params.push({ name, at: ref.from });
           return false;
         }
         case "RailStatement": {
           const name = plainDefinition(ref.node);
-          if (name) rails.add(name);
+          if (name) part.rails.push(name);
           return false;
         }
         case "DeviceStatement": {
           const node = ref.node;
           const name = plainDefinition(node);
-          if (name) devices.push({ name, kind: node.firstChild?.name === "pfet" ? "pfet" : "nfet" });
+          if (name) part.devices.push({ name, kind: node.firstChild?.name === "pfet" ? "pfet" : "nfet" });
           pins(node);
           return false;
         }
         case "InjectStatement": {
           const node = ref.node;
           const name = plainDefinition(node);
-          if (name) injects.push(name);
+          if (name) part.injects.push(name);
           pins(node);
           return false;
         }
@@ -148,8 +202,7 @@ export function collectNames(tree: Tree, text: (from: number, to: number) => str
       }
     },
   });
-  const nodes = [...used].filter((n) => !rails.has(n));
-  return { params, rails: [...rails], nodes, devices, injects, patterns: [...patterns] };
+  return part;
 }
 
 function containsError(node: SyntaxNode): boolean {

@@ -2,7 +2,8 @@ import { type CompletionResult, type CompletionSource, CompletionContext } from 
 import { ensureSyntaxTree } from "@codemirror/language";
 import { EditorState } from "@codemirror/state";
 import { describe, expect, it } from "vitest";
-import { rill, setElaboratedNames } from "../../src/editor/index";
+import { collectNames, rill, setElaboratedNames } from "../../src/editor/index";
+import { parser } from "../../src/lang/parser";
 
 /** Completion at the `|` in `doc` through the language's own completion source. */
 function completeAt(doc: string, explicit = false): CompletionResult | null {
@@ -171,5 +172,35 @@ describe("sweeps and loops", () => {
     expect(completeAt("nfet m1 gate=a |")).toBeNull();
     expect(completeAt("nfet m1 gate=a |", true)).not.toBeNull();
     expect(completeAt("for k in 1..3 {|")).toBeNull();
+  });
+});
+
+describe("names collected from the tree", () => {
+  it("stay exact across incremental edits (reused subtrees are read once)", () => {
+    const lines = ["rail vdd = 1", "rail gnd = 0", "param p0 = 1"];
+    for (let k = 1; k <= 1500; k++) {
+      lines.push(`nfet m${k} gate=vdd source=x${k} drain=x${k + 1}`);
+      if (k % 100 === 0) lines.push(`for j in 1..2 {\n  inject i${k}_{j} from=vdd to=y${k}\n}`, `param p${k} = ${k}`);
+    }
+    let state = EditorState.create({ doc: lines.join("\n") + "\n", extensions: [rill()] });
+    // The editor's own (incrementally parsed) tree, against a fresh parse of the same text.
+    const incremental = (st: EditorState) => collectNames(ensureSyntaxTree(st, st.doc.length, 10_000)!, (a, b) => st.sliceDoc(a, b));
+    const fresh = (st: EditorState) => collectNames(parser.parse(st.doc.toString()), (a, b) => st.sliceDoc(a, b));
+    expect(incremental(state)).toEqual(fresh(state));
+    const edits = [
+      (st: EditorState) => ({ from: st.doc.line(2).from + 5, to: st.doc.line(2).from + 8, insert: "ground" }),
+      (st: EditorState) => ({ from: st.doc.line(700).from, insert: "rail vmid = 0.5\nnfet extra gate=vmid source=q1 drain=q2\n" }),
+      (st: EditorState) => ({ from: st.doc.line(1200).from, to: st.doc.line(1203).to }),
+    ];
+    for (const edit of edits) {
+      state = state.update({ changes: edit(state) }).state;
+      expect(incremental(state)).toEqual(fresh(state));
+    }
+    const names = incremental(state);
+    expect(names.rails).toEqual(expect.arrayContaining(["vdd", "ground", "vmid"]));
+    expect(names.nodes).toEqual(expect.arrayContaining(["q1", "q2", "y100", "x1501"]));
+    expect(names.rails).not.toContain("gnd");
+    expect(names.devices.find((d) => d.name === "extra")).toEqual({ name: "extra", kind: "nfet" });
+    expect(names.params.map((p) => p.name)).toEqual(expect.arrayContaining(["p0", "p100", "p1500"]));
   });
 });
