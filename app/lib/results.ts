@@ -1,0 +1,308 @@
+/**
+ * Stored results of a run: the layout (names, fixed when the run starts) and
+ * one `run_points` row per solved point whose columns are typed arrays in
+ * little-endian blobs (see db/work-schema.ts). Used by the run worker (writes),
+ * the seed (writes, in-process) and the routes (reads).
+ *
+ * Why blobs per point and not a narrow (run, point, entity, value) table:
+ * `npm run bench -- --only api-storage` measures both on the same data; the
+ * numbers are in README.md's Performance section.
+ */
+import { and, asc, eq, gte, lt } from "drizzle-orm";
+import type { Network } from "@/src/lang/index";
+import { NFET } from "@/src/lang/index";
+import { runPoints, runs } from "@/db/schema";
+import type { Q } from "./networks";
+
+/** Names of everything a point stores, in the order of the blob columns. */
+export interface RunLayout {
+  network: string | null;
+  nodes: string[];
+  /** True where the node is a rail (fixed voltage). */
+  nodeIsRail: boolean[];
+  devices: string[];
+  /** "n" or "p" per device. */
+  deviceTypes: string;
+  rails: string[];
+  probes: string[];
+  /** Every param (the point's values, swept or derived), then "temp". */
+  params: string[];
+  sweeps: { param: string; values: number[]; log: boolean }[];
+  mismatch: { runs: number; seed: number; avt: number } | null;
+}
+
+/** One solved point, in the layout's order. */
+export interface PointRecord {
+  point: number;
+  sample: number;
+  params: Float64Array;
+  probes: Float64Array;
+  method: "linear" | "newton";
+  iterations: number;
+  residual: number;
+  /** Why the point could not be solved (its arrays are then NaN); null when solved. */
+  error: string | null;
+  rails: Float64Array;
+  nodes: Float64Array;
+  current: Float64Array;
+  /** NaN where unknown. */
+  ic: Float32Array;
+  /** 1 saturated, 0 not. */
+  saturated: Uint8Array;
+}
+
+/** Limits checked before a run is queued (POST /api/runs answers 422 with the numbers). */
+export const RUN_LIMITS = {
+  pointsPerRun: Number(process.env.RILL_MAX_POINTS ?? 20_000),
+  valuesPerRun: Number(process.env.RILL_MAX_VALUES ?? 50_000_000),
+};
+
+export function layoutOf(net: Network): RunLayout {
+  let types = "";
+  for (let k = 0; k < net.devices.count; k++) types += net.devices.type[k] === NFET ? "n" : "p";
+  return {
+    network: net.name,
+    nodes: net.nodes.names,
+    nodeIsRail: Array.from(net.nodes.railValue, (v) => Number.isFinite(v)),
+    devices: net.devices.names,
+    deviceTypes: types,
+    rails: net.rails.map((r) => r.name),
+    probes: net.probes.map((p) => p.name),
+    params: [...net.params.map((p) => p.name), "temp"],
+    sweeps: net.sweeps.map((s) => ({ param: s.param, values: s.values, log: s.log })),
+    mismatch: net.mismatch ? { runs: net.mismatch.runs, seed: net.mismatch.seed, avt: net.mismatch.avt } : null,
+  };
+}
+
+/** Points of a run: the product of the sweep lengths, times the mismatch samples. */
+export function pointsOf(net: Pick<Network, "sweeps" | "mismatch">): number {
+  let n = 1;
+  for (const s of net.sweeps) n *= s.values.length;
+  return n * (net.mismatch?.runs ?? 1);
+}
+
+/** Values stored per point: node voltages, rail currents, probes, params, and current, ic, saturation per device. */
+export function valuesPerPoint(net: Network): number {
+  return net.nodes.names.length + net.rails.length + net.probes.length + net.params.length + 1 + 3 * net.devices.count;
+}
+
+/** The grid indices of point `k` (outer sweep first) and its mismatch sample. */
+export function gridIndex(layout: Pick<RunLayout, "sweeps" | "mismatch">, k: number): { indices: number[]; sample: number } {
+  const samples = layout.mismatch?.runs ?? 1;
+  const sample = k % samples;
+  let rest = Math.floor(k / samples);
+  const indices = new Array<number>(layout.sweeps.length);
+  for (let s = layout.sweeps.length - 1; s >= 0; s--) {
+    const n = layout.sweeps[s].values.length;
+    indices[s] = rest % n;
+    rest = Math.floor(rest / n);
+  }
+  return { indices, sample };
+}
+
+function bytes(a: ArrayBufferView): Buffer {
+  return Buffer.from(a.buffer, a.byteOffset, a.byteLength);
+}
+
+/** A typed array over a blob; copies only when the blob is not aligned for the element size. */
+function view<T extends Float64Array | Float32Array | Uint8Array>(b: Buffer, Kind: { new (buf: ArrayBuffer, off: number, len: number): T; BYTES_PER_ELEMENT: number }): T {
+  const size = Kind.BYTES_PER_ELEMENT;
+  if (b.byteOffset % size === 0) return new Kind(b.buffer as ArrayBuffer, b.byteOffset, b.byteLength / size);
+  const copy = new ArrayBuffer(b.byteLength);
+  new Uint8Array(copy).set(b);
+  return new Kind(copy, 0, b.byteLength / size);
+}
+
+/** Inserts points (one statement per point; call inside a transaction for speed). */
+export function insertPoints(d: Q, runId: string, points: readonly PointRecord[]): void {
+  for (const p of points) {
+    d.insert(runPoints)
+      .values({
+        runId,
+        point: p.point,
+        sample: p.sample,
+        params: bytes(p.params),
+        probes: bytes(p.probes),
+        method: p.method,
+        iterations: p.iterations,
+        residual: p.residual,
+        error: p.error,
+        rails: bytes(p.rails),
+        nodes: bytes(p.nodes),
+        current: bytes(p.current),
+        ic: bytes(p.ic),
+        saturated: bytes(p.saturated),
+      })
+      .run();
+  }
+}
+
+/** One whole point, or null when it is not stored. */
+export function readPoint(d: Q, runId: string, point: number): PointRecord | null {
+  const r = d
+    .select()
+    .from(runPoints)
+    .where(and(eq(runPoints.runId, runId), eq(runPoints.point, point)))
+    .get();
+  if (!r) return null;
+  return {
+    point: r.point,
+    sample: r.sample,
+    params: view(r.params, Float64Array),
+    probes: view(r.probes, Float64Array),
+    method: r.method,
+    iterations: r.iterations,
+    residual: r.residual,
+    error: r.error,
+    rails: view(r.rails, Float64Array),
+    nodes: view(r.nodes, Float64Array),
+    current: view(r.current, Float64Array),
+    ic: view(r.ic, Float32Array),
+    saturated: view(r.saturated, Uint8Array),
+  };
+}
+
+/** Per-point columns over a range of points: what probe curves, maps and histograms need. */
+export interface SeriesColumns {
+  point: number[];
+  sample: number[];
+  /** params[j][k]: param j at the k-th returned point. */
+  params: number[][];
+  probes: number[][];
+  method: string[];
+  iterations: number[];
+  residual: number[];
+  error: (string | null)[];
+}
+
+/**
+ * Params, probes and solver figures of points [from, to), column by column.
+ * Reads only the small leading columns of each row, never the big blobs.
+ */
+export function readSeries(d: Q, runId: string, layout: Pick<RunLayout, "params" | "probes">, from = 0, to = Number.MAX_SAFE_INTEGER): SeriesColumns {
+  const rows = d
+    .select({ point: runPoints.point, sample: runPoints.sample, params: runPoints.params, probes: runPoints.probes, method: runPoints.method, iterations: runPoints.iterations, residual: runPoints.residual, error: runPoints.error })
+    .from(runPoints)
+    .where(and(eq(runPoints.runId, runId), gte(runPoints.point, from), lt(runPoints.point, to)))
+    .orderBy(asc(runPoints.point))
+    .all();
+  const out: SeriesColumns = {
+    point: [],
+    sample: [],
+    params: layout.params.map(() => []),
+    probes: layout.probes.map(() => []),
+    method: [],
+    iterations: [],
+    residual: [],
+    error: [],
+  };
+  for (const r of rows) {
+    out.point.push(r.point);
+    out.sample.push(r.sample);
+    const pa = view(r.params, Float64Array);
+    for (let j = 0; j < out.params.length; j++) out.params[j].push(pa[j]);
+    const pr = view(r.probes, Float64Array);
+    for (let j = 0; j < out.probes.length; j++) out.probes[j].push(pr[j]);
+    out.method.push(r.method);
+    out.iterations.push(r.iterations);
+    out.residual.push(r.residual);
+    out.error.push(r.error);
+  }
+  return out;
+}
+
+/** JSON cannot carry NaN or ±Infinity: they become null. */
+export function jsonNumbers(a: ArrayLike<number>): (number | null)[] {
+  const out = new Array<number | null>(a.length);
+  for (let i = 0; i < a.length; i++) out[i] = Number.isFinite(a[i]) ? a[i] : null;
+  return out;
+}
+
+const layoutCache = new Map<string, RunLayout>();
+const LAYOUT_CACHE_SIZE = 32;
+
+/** A run's layout (immutable once written), parsed once per process; null before the run started. */
+export function runLayout(d: Q, runId: string): RunLayout | null {
+  const hit = layoutCache.get(runId);
+  if (hit) return hit;
+  const text = d.select({ layout: runs.layout }).from(runs).where(eq(runs.id, runId)).get()?.layout;
+  if (!text) return null;
+  const layout = JSON.parse(text) as RunLayout;
+  if (layoutCache.size >= LAYOUT_CACHE_SIZE) layoutCache.delete(layoutCache.keys().next().value!);
+  layoutCache.set(runId, layout);
+  return layout;
+}
+
+/** What the run page's tables show for one point (GET /api/runs/[id]/results?view=point). */
+export interface PointView {
+  point: number;
+  sample: number;
+  grid: number[];
+  params: Record<string, number | null>;
+  solver: { method: string; iterations: number; residual: number };
+  error: string | null;
+  nodes: { names: string[]; isRail: boolean[]; voltage: (number | null)[] };
+  devices: { names: string[]; types: string; current: (number | null)[]; ic: (number | null)[]; saturated: number[] };
+  rails: { names: string[]; current: (number | null)[] };
+  probes: { names: string[]; value: (number | null)[] };
+}
+
+export function pointView(d: Q, runId: string, layout: RunLayout, point: number): PointView | null {
+  const p = readPoint(d, runId, point);
+  if (!p) return null;
+  return {
+    point: p.point,
+    sample: p.sample,
+    grid: gridIndex(layout, p.point).indices,
+    params: Object.fromEntries(layout.params.map((name, j) => [name, Number.isFinite(p.params[j]) ? p.params[j] : null])),
+    solver: { method: p.method, iterations: p.iterations, residual: p.residual },
+    error: p.error,
+    nodes: { names: layout.nodes, isRail: layout.nodeIsRail, voltage: jsonNumbers(p.nodes) },
+    devices: { names: layout.devices, types: layout.deviceTypes, current: jsonNumbers(p.current), ic: jsonNumbers(p.ic), saturated: Array.from(p.saturated) },
+    rails: { names: layout.rails, current: jsonNumbers(p.rails) },
+    probes: { names: layout.probes, value: jsonNumbers(p.probes) },
+  };
+}
+
+/** Per-point columns for curves, maps and histograms (GET /api/runs/[id]/results?view=series). */
+export interface SeriesView {
+  params: string[];
+  probes: string[];
+  sweeps: RunLayout["sweeps"];
+  mismatch: RunLayout["mismatch"];
+  point: number[];
+  sample: number[];
+  paramValues: (number | null)[][];
+  probeValues: (number | null)[][];
+  method: string[];
+  iterations: number[];
+  residual: (number | null)[];
+  error: (string | null)[];
+}
+
+export function seriesView(d: Q, runId: string, layout: RunLayout, from = 0, to = Number.MAX_SAFE_INTEGER): SeriesView {
+  const s = readSeries(d, runId, layout, from, to);
+  return {
+    params: layout.params,
+    probes: layout.probes,
+    sweeps: layout.sweeps,
+    mismatch: layout.mismatch,
+    point: s.point,
+    sample: s.sample,
+    paramValues: s.params.map(jsonNumbers),
+    probeValues: s.probes.map(jsonNumbers),
+    method: s.method,
+    iterations: s.iterations,
+    residual: jsonNumbers(s.residual),
+    error: s.error,
+  };
+}
+
+/** Stored points of a run, in order (export). */
+export function* eachPoint(d: Q, runId: string): Generator<PointRecord> {
+  const ids = d.select({ point: runPoints.point }).from(runPoints).where(eq(runPoints.runId, runId)).orderBy(asc(runPoints.point)).all();
+  for (const { point } of ids) {
+    const p = readPoint(d, runId, point);
+    if (p) yield p;
+  }
+}
