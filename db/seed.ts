@@ -1,6 +1,14 @@
-import { sql } from "drizzle-orm";
+import { and, inArray, isNotNull, isNull, sql } from "drizzle-orm";
+import { hashPasswordSync } from "../app/lib/passwords";
 import type { DB } from "./index";
 import { memberships, users, workspaces, type Role } from "./schema";
+
+/**
+ * The password of every demo account: documented in the README ("Demo
+ * accounts") and shown on /signin in demo mode (RILL_DEMO=1). It is the only
+ * credential in the repository; real accounts choose their own.
+ */
+export const DEMO_PASSWORD = "larkspur-demo";
 
 /**
  * The invented demo scenario of PRODUCT.md: a fictitious team, "Larkspur
@@ -24,12 +32,20 @@ export const DEMO_WORKSPACES = [
   },
 ];
 
-/** Loads the demo scenario. Idempotent: a second run changes nothing. */
+/**
+ * Loads the demo scenario. Idempotent: a second run changes nothing (a demo
+ * account gets its password hash only while it has none).
+ */
 export function seedDemo(db: DB): { users: number; workspaces: number } {
+  const ids = DEMO_USERS.map((u) => u.id);
+  const hashed = db.select({ id: users.id }).from(users).where(and(inArray(users.id, ids), isNotNull(users.passwordHash))).all();
+  // argon2id takes tens of milliseconds: hash once, and only while some demo account lacks a hash.
+  const hash = hashed.length < ids.length ? hashPasswordSync(DEMO_PASSWORD) : null;
   db.transaction((tx) => {
     for (const u of DEMO_USERS) {
-      tx.insert(users).values({ id: u.id, email: u.email, name: u.name }).onConflictDoNothing().run();
+      tx.insert(users).values({ id: u.id, email: u.email, name: u.name, passwordHash: hash }).onConflictDoNothing().run();
     }
+    if (hash) tx.update(users).set({ passwordHash: hash }).where(and(inArray(users.id, ids), isNull(users.passwordHash))).run();
     for (const w of DEMO_WORKSPACES) tx.insert(workspaces).values(w).onConflictDoNothing().run();
     for (const u of DEMO_USERS) {
       tx.insert(memberships).values({ workspaceId: "ws_lm64", userId: u.id, role: u.role }).onConflictDoNothing().run();

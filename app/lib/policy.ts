@@ -8,7 +8,7 @@
  */
 import { and, eq } from "drizzle-orm";
 import { db } from "@/db";
-import { memberships, type Role } from "@/db/schema";
+import { memberships, workspaces, type Role } from "@/db/schema";
 
 export const ACTIONS = [
   "workspace.read", // see the workspace, its networks, commits, runs, threads, measurements
@@ -67,6 +67,12 @@ export function can(actor: Actor | null, action: Action, workspaceId: string): b
   return role !== null && roleAllows(role, action);
 }
 
+/** For account-level actions (own tokens, creating a workspace): the actor, or PolicyError 401. */
+export function authenticated(actor: Actor | null): Actor {
+  if (!actor) throw new PolicyError(401, "sign in first");
+  return actor;
+}
+
 /**
  * Throws PolicyError unless the actor may do `action` in the workspace;
  * returns the actor's role. Not a member → 404; member without the right → 403.
@@ -83,4 +89,28 @@ export function authorize(actor: Actor | null, action: Action, workspaceId: stri
 export function policyResponse(e: unknown): Response {
   if (e instanceof PolicyError) return Response.json({ error: e.message }, { status: e.status });
   throw e;
+}
+
+/** A workspace as the policy resolves it from a URL. */
+export interface WorkspaceRef {
+  id: string;
+  slug: string;
+  name: string;
+  description: string;
+}
+
+/**
+ * `authorize` for a workspace named by its URL slug (/w/[slug], /api/w/[slug]/…):
+ * anonymous → 401; an unknown slug → 404, exactly like a workspace the actor is
+ * not a member of; then as `authorize`. Returns the workspace and the actor's role.
+ */
+export function authorizeSlug(actor: Actor | null, action: Action, slug: string): { workspace: WorkspaceRef; role: Role } {
+  if (!actor) throw new PolicyError(401, "sign in first");
+  const workspace = db()
+    .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name, description: workspaces.description })
+    .from(workspaces)
+    .where(eq(workspaces.slug, slug))
+    .get();
+  if (!workspace) throw new PolicyError(404, "not found");
+  return { workspace, role: authorize(actor, action, workspace.id) };
 }
