@@ -2,6 +2,8 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import type { ReactNode } from "react";
 import { inter, jetbrains } from "./fonts";
+import { mailboxEnabled } from "./lib/mail";
+import { AccountSlot } from "./ui/account-slot";
 import "./globals.css";
 
 export const metadata: Metadata = {
@@ -21,11 +23,12 @@ export default function RootLayout({ children }: { children: ReactNode }) {
             </Link>
             <nav className="flex-1 text-sm text-stone-600">
               <Link href="/" className="hover:text-moss-700">Workspaces</Link>
+              {mailboxEnabled() ? (
+                <Link href="/dev/mailbox" className="ml-4 hover:text-moss-700">Mailbox (dev)</Link>
+              ) : null}
             </nav>
             <div data-slot="account" className="text-sm">
-              <Link href="/signin" className="rounded border border-moss-600 px-3 py-1 text-moss-700 hover:bg-moss-50">
-                Sign in
-              </Link>
+              <AccountSlot />
             </div>
           </div>
         </header>

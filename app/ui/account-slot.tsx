@@ -1,0 +1,27 @@
+import Link from "next/link";
+import { signOut } from "@/app/(account)/actions";
+import { getActor } from "@/app/lib/auth";
+
+/** The header's account corner: the signed-in person with settings and sign-out, or a sign-in link. */
+export async function AccountSlot() {
+  const actor = await getActor();
+  if (!actor) {
+    return (
+      <Link href="/signin" className="rounded border border-moss-600 px-3 py-1 text-moss-700 hover:bg-moss-50">
+        Sign in
+      </Link>
+    );
+  }
+  return (
+    <div className="flex items-center gap-3">
+      <Link href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
+        <span data-testid="signed-in-as">{actor.name}</span>
+      </Link>
+      <form action={signOut}>
+        <button type="submit" className="rounded border border-stone-300 px-3 py-1 text-stone-700 hover:bg-stone-100">
+          Sign out
+        </button>
+      </form>
+    </div>
+  );
+}
