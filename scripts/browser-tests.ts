@@ -17,7 +17,7 @@ const run = (cmd: string, args: string[]) => spawnSync(cmd, args, { stdio: "inhe
 
 fs.rmSync("test-results/e2e", { recursive: true, force: true });
 fs.mkdirSync("test-results/e2e", { recursive: true });
-if (run(process.execPath, ["node_modules/next/dist/bin/next", "build"]) !== 0) {
+if (run(process.execPath, ["scripts/build-worker.mjs"]) !== 0 || run(process.execPath, ["node_modules/next/dist/bin/next", "build"]) !== 0) {
   console.error("browser tests: the build failed");
   process.exit(1);
 }

@@ -1,0 +1,3 @@
+/** Types of scripts/build-worker.mjs. */
+export declare const WORKER_OUT: string;
+export declare function buildWorker(): Promise<string>;
