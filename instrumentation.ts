@@ -1,0 +1,16 @@
+/**
+ * Next's start-up hook (runs once per server process, before any request):
+ * runs left `running` by a stopped server are marked interrupted, and queued
+ * runs are queued again (app/lib/runs.ts).
+ */
+export async function register(): Promise<void> {
+  if (process.env.NEXT_RUNTIME !== "nodejs" || process.env.NEXT_PHASE === "phase-production-build") return;
+  const { recoverRuns } = await import("./app/lib/runs");
+  try {
+    const r = recoverRuns();
+    if (r.interrupted || r.requeued) console.log(`rill: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again`);
+  } catch (e) {
+    // A database that cannot be opened is reported by the start script and /api/health; do not crash start-up here.
+    console.error(`rill: could not recover runs: ${(e as Error).message}`);
+  }
+}
