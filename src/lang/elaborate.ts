@@ -230,7 +230,9 @@ class Aborted extends Error {}
 function fmt(v: number): string {
   if (Number.isNaN(v)) return "not a number";
   if (!Number.isFinite(v)) return v > 0 ? "infinite" : "-infinite";
-  return String(Number(v.toPrecision(6)));
+  const r = Number(v.toPrecision(6));
+  const a = Math.abs(r);
+  return a === 0 || (a >= 1e-3 && a < 1e6) ? String(r) : r.toExponential();
 }
 
 /** Rounds away binary noise (0.30000000000000004) while keeping 12 significant digits. */
@@ -1607,10 +1609,61 @@ class Elaborator {
   }
 
   private result(): ElaborationResult {
+    let net: Network | null = null;
+    if (this.sink.errors === 0 && !this.aborted) {
+      net = this.network();
+      this.checkSweepPoints(net);
+    }
     const diagnostics = this.sink.finish();
-    const ok = this.sink.errors === 0;
-    if (!ok || this.aborted) return { network: null, diagnostics, ok: false, name: this.name };
-    return { network: this.network(), diagnostics, ok, name: this.name };
+    const ok = this.sink.errors === 0 && !this.aborted;
+    return { network: ok ? net : null, diagnostics, ok, name: this.name };
+  }
+
+  /**
+   * Every sweep value, one sweep at a time with the others at their defaults,
+   * must give valid params, rails, injects, lengths and settings. Bounded:
+   * a sweep whose bindings times values exceed the budget is not checked here.
+   */
+  private checkSweepPoints(net: Network): void {
+    const budget = 200_000;
+    for (const s of net.sweeps) {
+      const deps = s.param === "temp" ? ["temp", "ut"] : [s.param];
+      const affected = net.bindings.filter((b) => b.dependsOn.some((d) => deps.includes(d)));
+      if ((affected.length + net.params.length) * s.values.length > budget) continue;
+      const at = (v: number, what: string) =>
+        this.sink.error(s.span.from, this.lines.lineEnd(s.span.from), `at ${s.param} = ${fmt(v)}, ${what}`, "narrow the sweep range");
+      check: for (const v of s.values) {
+        const scope = pointScope(net, { [s.param]: v });
+        for (const p of net.params) {
+          if (!Number.isFinite(scope[p.name])) {
+            at(v, `param '${p.name}' is ${fmt(scope[p.name])}`);
+            break check;
+          }
+        }
+        if (!(scope.kappa > 0 && scope.kappa <= 1)) {
+          at(v, `kappa is ${fmt(scope.kappa)}, outside 0 to 1`);
+          break;
+        }
+        for (const b of affected) {
+          const t = b.target;
+          const x = b.evaluate(scope);
+          let bad: string | null = null;
+          if (t.kind === "w" || t.kind === "l") {
+            if (!(x > 0 && Number.isFinite(x))) bad = `${t.kind} of device '${net.devices.names[t.index]}' is ${fmt(x)}; a length must be positive`;
+          } else if (t.kind === "rail") {
+            if (!Number.isFinite(x)) bad = `rail '${net.nodes.names[t.node]}' is ${fmt(x)}`;
+          } else if (t.kind === "inject") {
+            if (!Number.isFinite(x)) bad = `inject '${net.injects.names[t.index]}' is ${fmt(x)}`;
+          } else if (t.name === "i0" || t.name === "ispec") {
+            if (!(x > 0 && Number.isFinite(x))) bad = `${t.name} is ${fmt(x)}; it must be a positive current`;
+          } else if (t.name === "vt0" && !Number.isFinite(x)) bad = `vt0 is ${fmt(x)}`;
+          if (bad) {
+            at(v, bad);
+            break check;
+          }
+        }
+      }
+    }
   }
 
   private network(): Network {
