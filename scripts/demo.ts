@@ -1,7 +1,9 @@
 /**
  * `npm run demo`: builds the app when the build is missing or older than the
- * sources, migrates and seeds the demo database, and serves it on
- * http://127.0.0.1:3000 (or --port N).
+ * sources, migrates and seeds the demo database, starts the local SMTP sink on
+ * 127.0.0.1 (port $RILL_MAIL_SINK_PORT, or a free one) whose messages the dev
+ * mailbox (/dev/mailbox) lists, and serves the app on http://127.0.0.1:3000
+ * (or --port N) in demo mode (RILL_DEMO=1: demo accounts shown on /signin).
  */
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
@@ -9,6 +11,7 @@ import path from "node:path";
 import { databasePath, openDatabase } from "../db";
 import { seedDemo } from "../db/seed";
 import { fail, runScript } from "./lib/fail";
+import { startMailSink, storeInMailbox } from "./lib/mail-sink";
 import { serveOptions, startNext } from "./lib/server";
 
 const SOURCES = ["app", "src", "db", "grammar", "migrations", "next.config.ts", "package.json", "postcss.config.mjs"];
@@ -39,8 +42,13 @@ await runScript(async () => {
   const file = databasePath();
   const db = openDatabase(file);
   const counts = seedDemo(db);
-  db.$client.close();
   console.log(`rill demo: ${counts.users} users, ${counts.workspaces} workspaces in ${file}`);
-  console.log(`rill demo: open http://${options.host === "0.0.0.0" ? "localhost" : options.host}:${options.port}/`);
-  await startNext({ ...options, env: { RILL_DEMO: "1" } });
+  // The sink keeps this connection to store what it receives; it lives as long as this process.
+  const sink = await startMailSink({ port: Number(process.env.RILL_MAIL_SINK_PORT ?? 0), onMessage: storeInMailbox(db) }).catch((e: Error) =>
+    fail(`cannot start the local mail sink on 127.0.0.1: ${e.message}`),
+  );
+  const site = `http://${options.host === "0.0.0.0" ? "localhost" : options.host}:${options.port}`;
+  console.log(`rill demo: mail goes to the local sink on 127.0.0.1:${sink.port}; read it at ${site}/dev/mailbox`);
+  console.log(`rill demo: open ${site}/ (demo accounts and their password are on the sign-in page)`);
+  await startNext({ ...options, env: { RILL_DEMO: "1", RILL_MAIL_SINK_PORT: String(sink.port), RILL_SMTP_URL: "" } });
 });
