@@ -349,6 +349,8 @@ class Elaborator {
   private readonly loopValues: number[] = [];
   private work = 0;
   private outerFor: Span | null = null;
+  /** The innermost running loop's variable (for hints). */
+  private loopVar = "k";
   private syntaxErrors = 0;
   private aborted = false;
 
@@ -540,6 +542,7 @@ class Elaborator {
         if (!(v > 0 && Number.isFinite(v))) return bad(`temp must be a positive temperature in kelvin, but it is ${fmt(v)}`, "for example set temp = 300K");
         const s2 = this.sweptDep(t);
         if (s2) return bad(`temp cannot depend on '${s2}', which is swept`, "to vary the temperature, write sweep temp ...");
+        if (v < 150) this.sink.warning(t.from, t.to, `temp is ${fmt(v)} K: temperatures are in kelvin`, "room temperature is about 300K");
         this.settings.temp = v;
         this.settings.ut = thermalVoltage(v);
         this.scope.set("temp", v);
@@ -708,6 +711,8 @@ class Elaborator {
     if (param === "temp") {
       for (const v of values)
         if (!(v > 0)) return this.sink.error(span.from, span.to, `a temperature sweep needs positive kelvin values, but one is ${fmt(v)}`);
+      const cold = values.find((v) => v < 150);
+      if (cold !== undefined) this.sink.warning(n.from, n.to, `temp reaches ${fmt(cold)} K: temperatures are in kelvin`, "room temperature is about 300K");
     }
     this.pendingSweeps.push({ param, nameFrom: n.from, nameTo: n.to, values, log, span, dim, dimFrom, dimTo });
   }
@@ -1297,12 +1302,15 @@ class Elaborator {
       this.overflow(t, `${(count * (1 + t.body.length)).toLocaleString("en-US")} statement runs, more than the limit of ${this.limits.maxWork.toLocaleString("en-US")}`);
     }
     const lv = this.loopValues;
+    const outerVar = this.loopVar;
+    this.loopVar = t.variable;
     for (let v = a; v <= b; v++) {
       lv[t.slot] = v;
       this.scope.set(t.variable, v);
       this.work++;
       this.exec(t.body);
     }
+    this.loopVar = outerVar;
     this.scope.delete(t.variable);
   }
 
@@ -1350,7 +1358,11 @@ class Elaborator {
   }
 
   private duplicate(kind: string, name: string, t: NameTpl, firstAt: number): void {
-    this.sink.error(t.from, t.to, `${kind} '${name}' is defined twice (first on line ${this.line(firstAt)})`, "every name means one thing");
+    const hint =
+      t.fixed !== null && this.outerFor !== null
+        ? `inside a for block a name needs a {…} piece, e.g. ${name}{${this.loopVar}}`
+        : "every name means one thing";
+    this.sink.error(t.from, t.to, `${kind} '${name}' is defined twice (first on line ${this.line(firstAt)})`, hint);
   }
 
   private clash(kind: string, name: string, t: NameTpl, other: string): void {
