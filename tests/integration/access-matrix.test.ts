@@ -22,7 +22,11 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import { invitations } from "@/db/schema";
+import { comments, invitations, runs, threads } from "@/db/schema";
+import { saveMeasurement } from "@/app/lib/review/measurement-store";
+import { dividerHistory } from "../helpers/review-fixtures";
+import { createNetwork } from "@/app/lib/networks";
+import { executeRun } from "@/app/lib/run-exec";
 import type { DB } from "@/db";
 import { secretHash } from "@/app/lib/secrets";
 import { buildAccountsFixture, WHO, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
@@ -66,6 +70,31 @@ const withInvitation: Setup = (db) => {
   return { invitationId: "inv_case", invitationToken: token };
 };
 
+/** A network with one commit and one finished run (solved in-process), for the workbench rows. */
+const DIVIDER = "rail vdd = 1.8\nrail gnd = 0\nrail g1 = 0.71\nrail g2 = 0.69\nnfet m1 gate=g1 source=tail drain=vdd\nnfet m2 gate=g2 source=tail drain=vdd\ninject tailsink from=tail to=gnd value=20n\nprobe ratio = current(m1) / current(m2)\n";
+const withRun: Setup = (db) => {
+  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" }, db);
+  db.insert(runs).values({ id: "r_case", commitId: commit!.id, networkId: network.id, workspaceId: WORKSPACE.id, createdBy: "u_designer1", pointsTotal: 1, timeLimitMs: 60_000 }).run();
+  executeRun(db, "r_case");
+  return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
+};
+/** As withRun, but the run is still queued (cancel rows). */
+const withQueuedRun: Setup = (db) => {
+  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" }, db);
+  db.insert(runs).values({ id: "r_case", commitId: commit!.id, networkId: network.id, workspaceId: WORKSPACE.id, createdBy: "u_designer1", pointsTotal: 1, timeLimitMs: 60_000 }).run();
+  return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
+};
+
+/** Review rows: the divider with two commits and a done sweep run of each, a thread on the newer commit, a measurement. */
+const withReview: Setup = (db) => {
+  const h = dividerHistory(db);
+  db.insert(threads).values({ id: "t_case", workspaceId: WORKSPACE.id, networkId: h.network.id, commitId: h.second.id, runId: h.run2, title: "m2 width", createdBy: "u_designer1" }).run();
+  db.insert(comments).values({ id: "c_case", threadId: "t_case", workspaceId: WORKSPACE.id, authorId: "u_designer1", body: `Widened m2, see [[run ${h.run2}]]` }).run();
+  const m = saveMeasurement({ networkId: h.network.id, name: "bench.csv", bytes: new TextEncoder().encode(BENCH_CSV), createdBy: "u_designer1" }, db);
+  return { networkId: h.network.id, fromId: h.first.id, toId: h.second.id, runId: h.run2, threadId: "t_case", measurementId: m.id };
+};
+const BENCH_CSV = "iin [nA], ratio [1]\n1, 0.51\n10, 0.5\n100, 0.49\n";
+
 // prettier-ignore
 const ROUTES: RouteRow[] = [
   //  file                                              method    url / params / body                                                          [anon, non-m, viewer, review, design, owner]
@@ -84,6 +113,45 @@ const ROUTES: RouteRow[] = [
                                                                                                                                                 expect: [401, 404, 403, 403, 403, 201] },
   { file: "app/api/w/[slug]/invitations/[id]/route.ts", method: "DELETE", url: `/api/w/${S}/invitations/{invitationId}`, params: { slug: S, id: "{invitationId}" }, setup: withInvitation,
                                                                                                                                                 expect: [401, 404, 403, 403, 403, 204] },
+  // workbench: networks, commits, runs, results
+  { file: "app/api/w/[slug]/networks/route.ts",         method: "GET",    url: `/api/w/${S}/networks`, params: { slug: S },                   expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/w/[slug]/networks/route.ts",         method: "POST",   url: `/api/w/${S}/networks`, params: { slug: S }, body: { name: "Mirror bank C", text: DIVIDER },
+                                                                                                                                                expect: [401, 404, 403, 403, 201, 201] },
+  { file: "app/api/networks/[id]/route.ts",             method: "GET",    url: "/api/networks/{networkId}", params: { id: "{networkId}" }, setup: withRun, expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/networks/[id]/route.ts",             method: "PATCH",  url: "/api/networks/{networkId}", params: { id: "{networkId}" }, setup: withRun, body: { name: "Renamed" },
+                                                                                                                                                expect: [401, 404, 403, 403, 200, 200] },
+  { file: "app/api/networks/[id]/commits/route.ts",     method: "GET",    url: "/api/networks/{networkId}/commits", params: { id: "{networkId}" }, setup: withRun,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/networks/[id]/commits/route.ts",     method: "POST",   url: "/api/networks/{networkId}/commits", params: { id: "{networkId}" }, setup: withRun,
+                                                        body: { parent: "{commitId}", text: `${DIVIDER}# wider tail next\n`, message: "note" },   expect: [401, 404, 403, 403, 201, 201] },
+  { file: "app/api/commits/[id]/route.ts",              method: "GET",    url: "/api/commits/{commitId}", params: { id: "{commitId}" }, setup: withRun, expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/runs/route.ts",                      method: "GET",    url: "/api/runs?commit={commitId}", setup: withRun,                 expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/runs/route.ts",                      method: "POST",   url: "/api/runs", body: { commit: "{commitId}" }, setup: withRun,   expect: [401, 404, 403, 201, 201, 201] },
+  { file: "app/api/runs/[id]/route.ts",                 method: "GET",    url: "/api/runs/{runId}", params: { id: "{runId}" }, setup: withRun, expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/runs/[id]/cancel/route.ts",          method: "POST",   url: "/api/runs/{runId}/cancel", params: { id: "{runId}" }, setup: withQueuedRun,
+                                                                                                                                                expect: [401, 404, 403, 200, 200, 200] },
+  { file: "app/api/runs/[id]/results/route.ts",         method: "GET",    url: "/api/runs/{runId}/results?view=point&point=0", params: { id: "{runId}" }, setup: withRun,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/runs/[id]/export/route.ts",          method: "GET",    url: "/api/runs/{runId}/export?format=csv", params: { id: "{runId}" }, setup: withRun,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
+  // review: comparisons, threads, verdicts, measurements
+  { file: "app/api/compare/route.ts",                   method: "GET",    url: "/api/compare?from={fromId}&to={toId}", setup: withReview,    expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/threads/route.ts",                   method: "GET",    url: "/api/threads?networkId={networkId}", setup: withReview,      expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/threads/route.ts",                   method: "POST",   url: "/api/threads", setup: withReview, body: { commitId: "{toId}", runId: "{runId}", title: "ratio", body: "Is 1:2 intended?" },
+                                                                                                                                                expect: [401, 404, 403, 201, 201, 201] },
+  { file: "app/api/threads/[id]/route.ts",              method: "GET",    url: "/api/threads/{threadId}", params: { id: "{threadId}" }, setup: withReview, expect: [401, 404, 200, 200, 200, 200] },
+  // a verdict needs commit.signoff: a viewer and a designer cannot sign off
+  { file: "app/api/threads/[id]/comments/route.ts",     method: "POST",   url: "/api/threads/{threadId}/comments", params: { id: "{threadId}" }, setup: withReview, body: { body: "Looks right.", verdict: "signed_off" },
+                                                                                                                                                expect: [401, 404, 403, 201, 403, 201] },
+  { file: "app/api/commits/[id]/review/route.ts",       method: "GET",    url: "/api/commits/{toId}/review", params: { id: "{toId}" }, setup: withReview, expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/networks/[id]/measurements/route.ts", method: "GET",   url: "/api/networks/{networkId}/measurements", params: { id: "{networkId}" }, setup: withReview,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/networks/[id]/measurements/route.ts", method: "POST",  url: "/api/networks/{networkId}/measurements", params: { id: "{networkId}" }, setup: withReview, body: { name: "b.csv", csv: BENCH_CSV },
+                                                                                                                                                expect: [401, 404, 403, 403, 201, 201] },
+  { file: "app/api/measurements/[id]/route.ts",         method: "GET",    url: "/api/measurements/{measurementId}", params: { id: "{measurementId}" }, setup: withReview, expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/measurements/[id]/route.ts",         method: "DELETE", url: "/api/measurements/{measurementId}", params: { id: "{measurementId}" }, setup: withReview, expect: [401, 404, 403, 403, 204, 204] },
+  { file: "app/api/measurements/[id]/overlay/route.ts", method: "GET",    url: "/api/measurements/{measurementId}/overlay?run={runId}", params: { id: "{measurementId}" }, setup: withReview,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
 ];
 
 // prettier-ignore

@@ -1,0 +1,69 @@
+import { reviewAccess as guard } from "@/app/lib/review/access";
+import { handle, readJson, RequestError } from "@/app/lib/http";
+import { getCommit, getNetwork } from "@/app/lib/networks";
+import { MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
+import { listMeasurements, saveMeasurement } from "@/app/lib/review/measurement-store";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ id: string }> };
+
+/** GET /api/networks/[id]/measurements (workspace.read): the network's measurements, newest first. */
+export function GET(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const n = getNetwork((await ctx.params).id);
+    await guard(request, "workspace.read", n?.workspaceId);
+    return Response.json({ measurements: listMeasurements(n!.id) });
+  });
+}
+
+/**
+ * POST /api/networks/[id]/measurements (measurement.write), multipart form:
+ * `file` (CSV, at most 10 MB), optional `name`, `note`, `commitId` (the
+ * measured revision); or JSON {csv, name?, note?, commitId?} for scripts
+ * (the JSON body limit applies). 201 with the stored measurement; 422 naming row and
+ * column of the first problem (and `errors`), nothing stored; 413 when too large.
+ */
+export function POST(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const n = getNetwork((await ctx.params).id);
+    const { actor } = await guard(request, "measurement.write", n?.workspaceId);
+    const length = Number(request.headers.get("content-length") ?? "0");
+    if (length > MAX_MEASUREMENT_BYTES + 64 * 1024) throw new RequestError(413, `the upload is ${(length / 1048576).toFixed(1)} MB; a measurement CSV may be at most 10 MB`);
+    const upload = (request.headers.get("content-type") ?? "").startsWith("application/json") ? await fromJson(request) : await fromForm(request);
+    if (upload.commitId && getCommit(upload.commitId)?.networkId !== n!.id) throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
+    const m = saveMeasurement({ networkId: n!.id, ...upload, createdBy: actor.userId });
+    return Response.json({ measurement: m }, { status: 201 });
+  });
+}
+
+interface Upload {
+  name: string;
+  note: string;
+  commitId: string | null;
+  bytes: Uint8Array;
+}
+
+async function fromForm(request: Request): Promise<Upload> {
+  let form: FormData;
+  try {
+    form = await request.formData();
+  } catch {
+    throw new RequestError(400, "send the CSV as multipart/form-data with a field named file (or JSON with a csv field)");
+  }
+  const file = form.get("file");
+  if (!(file instanceof Blob)) throw new RequestError(400, "file: attach the CSV in a field named file");
+  if (file.size > MAX_MEASUREMENT_BYTES) throw new RequestError(413, `the file is ${(file.size / 1048576).toFixed(1)} MB; at most 10 MB is accepted`);
+  return {
+    name: String(form.get("name") ?? "") || (file instanceof File ? file.name : "") || "measurement.csv",
+    note: String(form.get("note") ?? ""),
+    commitId: String(form.get("commitId") ?? "") || null,
+    bytes: new Uint8Array(await file.arrayBuffer()),
+  };
+}
+
+const JsonUpload = z.object({ csv: z.string(), name: z.string().max(200).optional(), note: z.string().max(2000).optional(), commitId: z.string().min(1).nullish() });
+
+async function fromJson(request: Request): Promise<Upload> {
+  const b = await readJson(request, JsonUpload);
+  return { name: b.name ?? "measurement.csv", note: b.note ?? "", commitId: b.commitId ?? null, bytes: new TextEncoder().encode(b.csv) };
+}

@@ -1,0 +1,44 @@
+import { z } from "zod";
+import { db } from "@/db";
+import { csvStream, jsonStream } from "@/app/lib/export";
+import { guard } from "@/app/lib/guard";
+import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
+import { getCommit, getNetwork } from "@/app/lib/networks";
+import { runLayout } from "@/app/lib/results";
+import { getRun } from "@/app/lib/runs";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ id: string }> };
+
+const Query = z.object({
+  format: z.enum(["csv", "json"]).default("csv"),
+  /** CSV only: which table (probes: one row per point; nodes, devices, rails: one row per point and name). */
+  table: z.enum(["probes", "nodes", "devices", "rails"]).default("probes"),
+  point: z.coerce.number().int().min(0).optional(),
+});
+
+/**
+ * GET /api/runs/[id]/export?format=csv|json[&table=probes|nodes|devices|rails][&point=K] (workspace.read):
+ * the stored results as a download, streamed point by point. JSON has the shape of `rill solve --json`
+ * (LANGUAGE.md), plus a `run` member naming the run and commit.
+ */
+export function GET(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const run = getRun((await ctx.params).id);
+    await guard(request, "workspace.read", run?.workspaceId);
+    const q = parseInput(Query, queryOf(request));
+    const layout = runLayout(db(), run!.id);
+    if (!layout) throw new RequestError(409, `the run has no results yet (${run!.state})`, { state: run!.state });
+    const network = getNetwork(run!.networkId)!;
+    const commit = getCommit(run!.commitId)!;
+    const base = `${network.slug}-${run!.id}`;
+    if (q.format === "json") {
+      return new Response(jsonStream(db(), run!, commit, layout), {
+        headers: { "content-type": "application/json; charset=utf-8", "content-disposition": `attachment; filename="${base}.json"`, "cache-control": "no-store" },
+      });
+    }
+    return new Response(csvStream(db(), run!.id, layout, q.table, q.point), {
+      headers: { "content-type": "text/csv; charset=utf-8", "content-disposition": `attachment; filename="${base}-${q.table}.csv"`, "cache-control": "no-store" },
+    });
+  });
+}

@@ -1,0 +1,34 @@
+import { z } from "zod";
+import { db } from "@/db";
+import { guard } from "@/app/lib/guard";
+import { fresh, handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
+import { pointView, runLayout, seriesView } from "@/app/lib/results";
+import { getRun } from "@/app/lib/runs";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ id: string }> };
+
+const Query = z.discriminatedUnion("view", [
+  z.object({ view: z.literal("series"), from: z.coerce.number().int().min(0).optional(), to: z.coerce.number().int().min(0).optional() }),
+  z.object({ view: z.literal("point"), point: z.coerce.number().int().min(0).default(0) }),
+]);
+
+/**
+ * GET /api/runs/[id]/results (workspace.read)
+ * - `?view=series[&from=A&to=B]`: params, probes and solver figures of every stored point, column by column;
+ * - `?view=point&point=K`: every node, device, rail and probe of point K.
+ * Results never change once stored; a live run's series grows as points are stored.
+ */
+export function GET(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const run = getRun((await ctx.params).id);
+    await guard(request, "workspace.read", run?.workspaceId);
+    const q = parseInput(Query, { view: "series", ...queryOf(request) });
+    const layout = runLayout(db(), run!.id);
+    if (!layout) throw new RequestError(409, `the run has no results yet (${run!.state})`, { state: run!.state });
+    if (q.view === "series") return fresh({ run: { id: run!.id, state: run!.state }, series: seriesView(db(), run!.id, layout, q.from, q.to) });
+    const point = pointView(db(), run!.id, layout, q.point);
+    if (!point) throw new RequestError(404, `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`);
+    return fresh({ run: { id: run!.id, state: run!.state }, point });
+  });
+}

@@ -1,0 +1,34 @@
+import { z } from "zod";
+import { guard } from "@/app/lib/guard";
+import { fresh, handle, readJson } from "@/app/lib/http";
+import { createNetwork, listNetworks, workspaceBySlug } from "@/app/lib/networks";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ slug: string }> };
+
+/** GET /api/w/[slug]/networks (workspace.read): the workspace's networks with their head commit and newest run. */
+export function GET(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const ws = workspaceBySlug((await ctx.params).slug);
+    await guard(request, "workspace.read", ws?.id);
+    return fresh({ workspace: ws, networks: listNetworks(ws!.id) });
+  });
+}
+
+const CreateNetwork = z.object({
+  name: z.string().max(200),
+  /** Starting text (an uploaded .rill file): makes the first commit. */
+  text: z.string().optional(),
+  message: z.string().max(2000).optional(),
+});
+
+/** POST /api/w/[slug]/networks (network.write): create a network, optionally with a first commit of `text`. */
+export function POST(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const ws = workspaceBySlug((await ctx.params).slug);
+    const { actor } = await guard(request, "network.write", ws?.id);
+    const input = await readJson(request, CreateNetwork);
+    const created = createNetwork({ workspaceId: ws!.id, name: input.name, text: input.text, message: input.message, authorId: actor.userId });
+    return fresh(created, { status: 201 });
+  });
+}
