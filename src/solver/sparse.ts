@@ -141,10 +141,10 @@ export function multiply(A: Csc, x: Float64Array, y: Float64Array): void {
 }
 
 /**
- * y = A·x where only the upper triangle (rows ≤ column) of a symmetric A is
- * stored; entries below the diagonal are ignored.
+ * y = A·x for a symmetric A of which one triangle is stored (either one: an
+ * off-diagonal entry (i, j) stands for both (i, j) and (j, i)).
  */
-export function multiplySymmetricUpper(A: Csc, x: Float64Array, y: Float64Array): void {
+export function multiplySymmetric(A: Csc, x: Float64Array, y: Float64Array): void {
   const { n, p, i } = A;
   const ax = A.x as Float64Array;
   y.fill(0);
@@ -153,11 +153,11 @@ export function multiplySymmetricUpper(A: Csc, x: Float64Array, y: Float64Array)
     let s = 0;
     for (let k = p[j]; k < p[j + 1]; k++) {
       const r = i[k];
-      if (r < j) {
-        y[r] += ax[k] * xj;
-        s += ax[k] * x[r];
-      } else if (r === j) {
-        s += ax[k] * xj;
+      const a = ax[k];
+      if (r === j) s += a * xj;
+      else {
+        y[r] += a * xj;
+        s += a * x[r];
       }
     }
     y[j] += s;
