@@ -3,14 +3,15 @@
  * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file).
  * File reading lives here only; src/lang has no I/O.
  */
-import { readFileSync, statSync } from "node:fs";
+import { readFileSync, realpathSync, statSync } from "node:fs";
+import { pathToFileURL } from "node:url";
 import { DEFAULT_LIMITS, diagnosticsDocument, elaborate, type ElaborationResult, formatDiagnostics, tooLargeResult } from "../src/lang/index";
 
 const EXIT_OK = 0;
 const EXIT_ERRORS = 1;
 const EXIT_USAGE = 2;
 
-interface Io {
+export interface Io {
   out(text: string): void;
   err(text: string): void;
 }
@@ -114,4 +115,8 @@ const io: Io = {
   out: (t) => process.stdout.write(t.endsWith("\n") ? t : `${t}\n`),
   err: (t) => process.stderr.write(t.endsWith("\n") ? t : `${t}\n`),
 };
-process.exitCode = main(process.argv.slice(2), io);
+
+// Run when executed as a script (not when a test imports `main`).
+if (process.argv[1] && import.meta.url === pathToFileURL(realpathSync(process.argv[1])).href) {
+  process.exitCode = main(process.argv.slice(2), io);
+}

@@ -3,6 +3,7 @@ import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
+import { main } from "../../scripts/rill";
 import { elaborate, PFET } from "../../src/lang/index";
 import type { Network } from "../../src/lang/network";
 
@@ -77,44 +78,63 @@ function rill(...args: string[]) {
   return spawnSync(join(root, "node_modules/.bin/tsx"), [join(root, "scripts/rill.ts"), ...args], { encoding: "utf8", cwd: root });
 }
 
+/** `main` in-process: the same code the script runs, without a process start per case. */
+function run(...args: string[]) {
+  let stdout = "";
+  let stderr = "";
+  const status = main(args, { out: (t) => (stdout += `${t}\n`), err: (t) => (stderr += `${t}\n`) });
+  return { status, stdout, stderr };
+}
+
 describe("rill command", () => {
   const dir = mkdtempSync(join(tmpdir(), "rill-cli-"));
   const broken = join(dir, "broken.rill");
   writeFileSync(broken, "network broken\nrail v = 1\nnfet m1 gate=v source=x drain=v colour=red\nparam p = q\n");
 
-  it("check --json on a broken file prints ok:false with diagnostics and exits 1", () => {
+  it("check --json on a broken file prints ok:false with diagnostics and exits 1 (spawned)", () => {
     const r = rill("check", broken, "--json");
     expect(r.status).toBe(1);
-    const doc = JSON.parse(r.stdout);
-    expect(doc).toEqual({
+    expect(JSON.parse(r.stdout)).toEqual({
       network: "broken",
       ok: false,
       diagnostics: [
-        { severity: "error", line: 3, column: 33, message: "nfet has no pin 'colour'", hint: "nfet pins: gate, source, drain, bulk, w, l" },
         { severity: "warning", line: 3, column: 23, message: "node 'x' is touched by only one terminal", hint: "a node joins at least two terminals: check the spelling of its name" },
+        { severity: "error", line: 3, column: 33, message: "nfet has no pin 'colour'", hint: "nfet pins: gate, source, drain, bulk, w, l" },
         { severity: "error", line: 4, column: 11, message: "unknown name 'q'", hint: "declare it with param NAME = VALUE above this line" },
-      ].sort((a, b) => a.line - b.line || a.column - b.column),
+      ],
     });
   });
 
   it("check prints FILE:LINE:COLUMN: severity: message, hints indented", () => {
-    const r = rill("check", broken);
+    const r = run("check", broken);
     expect(r.status).toBe(1);
-    expect(r.stdout.split("\n").slice(0, 2)).toEqual([`${broken}:3:23: warning: node 'x' is touched by only one terminal`, "  hint: a node joins at least two terminals: check the spelling of its name"]);
+    expect(r.stdout.split("\n").slice(0, 3)).toEqual([
+      `${broken}:3:23: warning: node 'x' is touched by only one terminal`,
+      "  hint: a node joins at least two terminals: check the spelling of its name",
+      `${broken}:3:33: error: nfet has no pin 'colour'`,
+    ]);
   });
 
-  it("a clean example exits 0; --json says ok", () => {
-    const j = rill("check", join(examplesDir, "row64.rill"), "--json");
-    expect(j.status).toBe(0);
-    expect(JSON.parse(j.stdout)).toEqual({ network: "row64", ok: true, diagnostics: [] });
+  it("a clean example exits 0 and prints nothing; --json says ok", () => {
+    const r = run("check", join(examplesDir, "row64.rill"));
+    expect(r).toEqual({ status: 0, stdout: "", stderr: "" });
+    expect(JSON.parse(run("check", join(examplesDir, "row64.rill"), "--json").stdout)).toEqual({ network: "row64", ok: true, diagnostics: [] });
   });
 
-  it("usage errors exit 2: unreadable file, solve not yet there", () => {
-    const missing = rill("check", join(dir, "missing.rill"));
+  it("usage errors exit 2: unreadable file, no file, unknown option or command", () => {
+    const missing = run("check", join(dir, "missing.rill"));
     expect(missing.status).toBe(2);
-    expect(missing.stderr).toMatch(/cannot read the file/);
-    const solve = rill("solve", broken, "--json");
-    expect(solve.status).toBe(2);
-    expect(solve.stderr.trim()).toBe("solve: not available yet");
+    expect(missing.stderr).toMatch(/missing\.rill: cannot read the file \(ENOENT\)/);
+    expect(run("check", dir).status).toBe(2);
+    expect(run("check").status).toBe(2);
+    expect(run("check", broken, "--yaml").status).toBe(2);
+    expect(run("frobnicate").status).toBe(2);
+    expect(run().status).toBe(2);
+  });
+
+  it("solve is not there yet: exit 2", () => {
+    const r = run("solve", broken, "--json");
+    expect(r.status).toBe(2);
+    expect(r.stderr.trim()).toBe("solve: not available yet");
   });
 });
