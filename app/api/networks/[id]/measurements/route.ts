@@ -1,3 +1,4 @@
+import { z } from "zod";
 import { reviewAccess as guard } from "@/app/lib/review/access";
 import { handle, readJson, RequestError } from "@/app/lib/http";
 import { getCommit, getNetwork } from "@/app/lib/networks";

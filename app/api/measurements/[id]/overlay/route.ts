@@ -1,0 +1,23 @@
+import { z } from "zod";
+import { reviewAccess as guard } from "@/app/lib/review/access";
+import { handle, parseInput, queryOf } from "@/app/lib/http";
+import { getMeasurement, overlay } from "@/app/lib/review/measurement-store";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ id: string }> };
+
+const Query = z.object({ run: z.string().min(1, "name the run"), x: z.string().min(1).optional() });
+
+/**
+ * GET /api/measurements/[id]/overlay?run=R[&x=param] (workspace.read): measured
+ * and simulated curves per series and their agreement (RMS of the log ratio,
+ * largest absolute error). 422 when the run does not sweep the measurement's x.
+ */
+export function GET(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const q = parseInput(Query, queryOf(request));
+    const m = getMeasurement((await ctx.params).id);
+    await guard(request, "workspace.read", m?.workspaceId);
+    return Response.json(overlay(m!.id, q.run, { xParam: q.x }));
+  });
+}

@@ -1,0 +1,28 @@
+import { z } from "zod";
+import { reviewAccess as guard } from "@/app/lib/review/access";
+import { handle, readJson } from "@/app/lib/http";
+import { sendMail } from "@/app/lib/mail";
+import { authorize } from "@/app/lib/policy";
+import { addComment, getThreadRef, MAX_COMMENT_LENGTH } from "@/app/lib/review/threads";
+import { VERDICTS } from "@/db/schema";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ id: string }> };
+
+const Body = z.object({ body: z.string().max(MAX_COMMENT_LENGTH), verdict: z.enum(VERDICTS).nullish() });
+
+/**
+ * POST /api/threads/[id]/comments {body, verdict?} (thread.comment; with a
+ * verdict — "signed_off" or "changes_asked" — also commit.signoff): adds a
+ * comment and sends the mention e-mails. 201.
+ */
+export function POST(request: Request, ctx: Ctx) {
+  return handle(async () => {
+    const input = await readJson(request, Body);
+    const ref = getThreadRef((await ctx.params).id);
+    const { actor } = await guard(request, "thread.comment", ref?.workspaceId);
+    if (input.verdict) authorize(actor, "commit.signoff", ref!.workspaceId);
+    const r = await addComment({ threadId: ref!.id, body: input.body, verdict: input.verdict ?? null, authorId: actor.userId }, sendMail);
+    return Response.json(r, { status: 201 });
+  });
+}

@@ -1,0 +1,39 @@
+import { z } from "zod";
+import { reviewAccess as guard } from "@/app/lib/review/access";
+import { handle, parseInput, queryOf, readJson } from "@/app/lib/http";
+import { sendMail } from "@/app/lib/mail";
+import { getCommit, getNetwork } from "@/app/lib/networks";
+import { createThread, listThreads, MAX_COMMENT_LENGTH, MAX_TITLE_LENGTH } from "@/app/lib/review/threads";
+
+export const dynamic = "force-dynamic";
+
+const Body = z.object({
+  commitId: z.string().min(1),
+  runId: z.string().min(1).nullish(),
+  title: z.string().max(MAX_TITLE_LENGTH),
+  body: z.string().max(MAX_COMMENT_LENGTH),
+});
+
+/** POST /api/threads {commitId, runId?, title, body} (thread.comment): opens a thread on a commit; 201 with its permalink. */
+export function POST(request: Request) {
+  return handle(async () => {
+    const input = await readJson(request, Body);
+    const c = getCommit(input.commitId);
+    const n = c ? getNetwork(c.networkId) : null;
+    const { actor } = await guard(request, "thread.comment", n?.workspaceId);
+    const r = await createThread({ ...input, authorId: actor.userId }, sendMail);
+    return Response.json({ thread: r.thread, commentId: r.commentId, notified: r.notified, url: `/threads/${r.thread.id}` }, { status: 201 });
+  });
+}
+
+const Query = z.object({ networkId: z.string().min(1), commitId: z.string().min(1).optional() });
+
+/** GET /api/threads?networkId=N[&commitId=C] (workspace.read): the threads of a network or one of its commits. */
+export function GET(request: Request) {
+  return handle(async () => {
+    const q = parseInput(Query, queryOf(request));
+    const n = getNetwork(q.networkId);
+    await guard(request, "workspace.read", n?.workspaceId);
+    return Response.json({ threads: listThreads(q) });
+  });
+}

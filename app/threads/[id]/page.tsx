@@ -1,0 +1,83 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { requireActor } from "@/app/lib/auth";
+import { roleAllows, roleIn } from "@/app/lib/policy";
+import { getThread, getThreadRef } from "@/app/lib/review/threads";
+import { runsOfCommit } from "@/app/lib/review/run-tables";
+import { ReviewStateBadge } from "@/app/ui/review/badges";
+import { CommentBody, RunCard } from "@/app/ui/review/comment-body";
+import { CommentForm } from "@/app/ui/review/comment-form";
+
+export const dynamic = "force-dynamic";
+type Props = { params: Promise<{ id: string }> };
+
+export const metadata: Metadata = { title: "Thread" };
+
+const VERDICT_TEXT = { signed_off: "signed the commit off", changes_asked: "asked for changes" } as const;
+
+/** /threads/[id]: a review thread's permalink. A non-member (or an unknown id) gets 404. */
+export default async function ThreadPage({ params }: Props) {
+  const { id } = await params;
+  const actor = await requireActor(`/threads/${id}`);
+  const ref = getThreadRef(id);
+  const role = ref ? roleIn(actor, ref.workspaceId) : null;
+  if (!ref || !role || !roleAllows(role, "workspace.read")) notFound();
+  const t = getThread(id)!;
+  const netPath = `/w/${t.workspace.slug}/n/${t.network.slug}`;
+  const runs = runsOfCommit(t.commit.id).map((r) => ({ id: r.id, label: `${r.id.slice(0, 10)} · ${r.analysis ?? "not started"} · ${r.state}` }));
+  const pinned = t.thread.runId ? t.runCards.find((c) => c.id === t.thread.runId) : undefined;
+  return (
+    <div className="space-y-6">
+      <nav className="text-sm text-stone-600" aria-label="Breadcrumb">
+        <Link href={`/w/${t.workspace.slug}`} className="hover:underline">{t.workspace.name}</Link> /{" "}
+        <Link href={netPath} className="hover:underline">{t.network.name}</Link> / thread
+      </nav>
+      <header className="space-y-2 border-b border-stone-200 pb-4">
+        <h1 className="text-2xl font-semibold">{t.thread.title}</h1>
+        <p className="flex flex-wrap items-center gap-2 text-sm text-stone-600">
+          <span>
+            on commit <span className="font-mono">{t.commit.id.slice(0, 10)}</span> “{t.commit.message}” by {t.commit.authorName}
+          </span>
+          <ReviewStateBadge state={t.review} />
+          {t.commit.parentId ? (
+            <Link href={`${netPath}/compare?from=${t.commit.parentId}&to=${t.commit.id}`} className="text-moss-700 hover:underline">
+              Compare with parent
+            </Link>
+          ) : null}
+        </p>
+        {t.verdicts.length ? (
+          <ul className="text-xs text-stone-600" aria-label="Verdicts">
+            {t.verdicts.map((v) => (
+              <li key={v.reviewerName}>
+                {v.reviewerName} {VERDICT_TEXT[v.verdict]} ({new Date(v.at).toISOString().slice(0, 16).replace("T", " ")} UTC)
+              </li>
+            ))}
+          </ul>
+        ) : null}
+        {pinned ? (
+          <div className="text-sm">
+            Pinned run: <RunCard card={pinned} />
+          </div>
+        ) : null}
+      </header>
+      <ol className="space-y-4" aria-label="Comments">
+        {t.comments.map((c) => (
+          <li key={c.id} id={c.id} className="rounded border border-stone-200 bg-white p-3 shadow-sm">
+            <p className="mb-2 flex flex-wrap items-center gap-2 text-xs text-stone-500">
+              <span className="font-medium text-stone-700">{c.authorName}</span>
+              <a href={`#${c.id}`} className="hover:underline">{new Date(c.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC</a>
+              {c.verdict ? <ReviewStateBadge state={c.verdict} /> : null}
+            </p>
+            {c.body ? <CommentBody html={c.html} cards={t.runCards} /> : <p className="text-sm italic text-stone-500">{VERDICT_TEXT[c.verdict!]}</p>}
+          </li>
+        ))}
+      </ol>
+      {roleAllows(role, "thread.comment") ? (
+        <CommentForm threadId={t.thread.id} canSignOff={roleAllows(role, "commit.signoff")} runs={runs} />
+      ) : (
+        <p className="text-sm text-stone-500">As a {role} you can read this thread but not reply.</p>
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,47 @@
+import type { CommitBadge, ReviewState } from "@/app/lib/review/diffs";
+
+const REVIEW: Record<ReviewState, { label: string; style: string }> = {
+  open: { label: "awaiting review", style: "border-stone-300 bg-white text-stone-600" },
+  changes_asked: { label: "changes asked", style: "border-ember-500 bg-ember-50 text-ember-500" },
+  signed_off: { label: "signed off", style: "border-moss-600 bg-moss-600 text-white" },
+};
+
+/** A commit's review state as a small label. */
+export function ReviewStateBadge({ state }: { state: ReviewState }) {
+  const r = REVIEW[state];
+  return (
+    <span data-review={state} className={`inline-block rounded border px-1.5 py-0.5 text-xs font-medium ${r.style}`}>
+      {r.label}
+    </span>
+  );
+}
+
+/** "N values moved" from the stored diffs of a commit's runs against its parent's. */
+export function MovedBadge({ diffs }: { diffs: CommitBadge["diffs"] }) {
+  if (diffs.length === 0) return null;
+  return (
+    <>
+      {diffs.map((d) => {
+        const title = d.note ?? (d.beyond ? `${d.analysis}: ${d.names.join(", ")}${d.beyond > d.names.length ? ", …" : ""}` : `${d.analysis}: every value within tolerance`);
+        const style = d.compared === 0 ? "border-stone-300 text-stone-500" : d.beyond > 0 ? "border-amber-500 bg-amber-50 text-amber-800" : "border-moss-500 text-moss-700";
+        return (
+          <span key={d.runId} title={title} data-moved={d.beyond} className={`inline-block rounded border px-1.5 py-0.5 text-xs ${style}`}>
+            {d.compared === 0 ? "no base run" : `${d.beyond.toLocaleString("en-US")} ${d.beyond === 1 ? "value" : "values"} moved`}
+            {d.beyond > 0 && d.names.length ? <span className="ml-1 font-mono">({d.names.slice(0, 3).join(", ")}{d.names.length > 3 ? ", …" : ""})</span> : null}
+          </span>
+        );
+      })}
+    </>
+  );
+}
+
+/** Both badges of a commit, for history rows. */
+export function CommitReviewBadges({ badge }: { badge: CommitBadge | undefined }) {
+  if (!badge) return null;
+  return (
+    <span className="inline-flex flex-wrap items-center gap-1">
+      <ReviewStateBadge state={badge.review} />
+      <MovedBadge diffs={badge.diffs} />
+    </span>
+  );
+}

@@ -1,0 +1,139 @@
+"use client";
+
+/** The reply box of a thread: comment, and for those who may, ask for changes or sign off. */
+import { useRouter } from "next/navigation";
+import { useState } from "react";
+import { postJson } from "./send";
+
+type Verdict = "signed_off" | "changes_asked" | null;
+
+export function CommentForm({ threadId, canSignOff, runs }: { threadId: string; canSignOff: boolean; runs: { id: string; label: string }[] }) {
+  const router = useRouter();
+  const [body, setBody] = useState("");
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  const [note, setNote] = useState<string | null>(null);
+
+  async function send(verdict: Verdict) {
+    setBusy(true);
+    setError(null);
+    setNote(null);
+    try {
+      const r = await postJson<{ notified: string[]; mailErrors: string[] }>(`/api/threads/${threadId}/comments`, { body, verdict });
+      setBody("");
+      if (r.notified.length) setNote(`Notified ${r.notified.map((h) => "@" + h).join(", ")} by e-mail.`);
+      if (r.mailErrors.length) setError(`Comment saved, but e-mail failed: ${r.mailErrors.join("; ")}`);
+      router.refresh();
+    } catch (e) {
+      setError((e as Error).message);
+    } finally {
+      setBusy(false);
+    }
+  }
+
+  return (
+    <form
+      className="space-y-2 rounded border border-stone-300 bg-white p-3"
+      onSubmit={(e) => {
+        e.preventDefault();
+        void send(null);
+      }}
+    >
+      <label htmlFor="comment" className="block text-sm font-medium">
+        Reply
+      </label>
+      <textarea
+        id="comment"
+        value={body}
+        onChange={(e) => setBody(e.target.value)}
+        rows={4}
+        maxLength={20000}
+        className="w-full rounded border border-stone-300 p-2 font-mono text-sm"
+        placeholder="Markdown. Link a run with [[run ID]]; mention a member with @handle (the part of their address before @)."
+      />
+      <div className="flex flex-wrap items-center gap-2">
+        {runs.length ? (
+          <select
+            aria-label="Link a run"
+            className="rounded border border-stone-300 px-2 py-1 text-sm"
+            value=""
+            onChange={(e) => {
+              if (e.target.value) setBody((b) => `${b}${b && !b.endsWith(" ") ? " " : ""}[[run ${e.target.value}]]`);
+            }}
+          >
+            <option value="">Link a run…</option>
+            {runs.map((r) => (
+              <option key={r.id} value={r.id}>
+                {r.label}
+              </option>
+            ))}
+          </select>
+        ) : null}
+        <span className="flex-1" />
+        <button type="submit" disabled={busy || body.trim() === ""} className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:opacity-50">
+          Comment
+        </button>
+        {canSignOff ? (
+          <>
+            <button type="button" disabled={busy} onClick={() => void send("changes_asked")} className="rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50 disabled:opacity-50">
+              Ask for changes
+            </button>
+            <button type="button" disabled={busy} onClick={() => void send("signed_off")} className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+              Sign off
+            </button>
+          </>
+        ) : null}
+      </div>
+      {error ? <p role="alert" className="text-sm text-ember-500">{error}</p> : null}
+      {note ? <p role="status" className="text-sm text-moss-700">{note}</p> : null}
+    </form>
+  );
+}
+
+/** Opens a thread on a commit (optionally pinned to a run); goes to the new thread's permalink. */
+export function NewThreadForm({ commitId, runs }: { commitId: string; runs: { id: string; label: string }[] }) {
+  const router = useRouter();
+  const [title, setTitle] = useState("");
+  const [body, setBody] = useState("");
+  const [runId, setRunId] = useState("");
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+  return (
+    <form
+      className="space-y-2 rounded border border-stone-300 bg-white p-3"
+      onSubmit={async (e) => {
+        e.preventDefault();
+        setBusy(true);
+        setError(null);
+        try {
+          const r = await postJson<{ url: string }>("/api/threads", { commitId, runId: runId || null, title, body });
+          router.push(r.url);
+        } catch (err) {
+          setError((err as Error).message);
+          setBusy(false);
+        }
+      }}
+    >
+      <h3 className="text-sm font-medium">Open a thread on this commit</h3>
+      <input aria-label="Thread title" value={title} onChange={(e) => setTitle(e.target.value)} maxLength={200} placeholder="Title" className="w-full rounded border border-stone-300 px-2 py-1 text-sm" />
+      <textarea aria-label="First comment" value={body} onChange={(e) => setBody(e.target.value)} rows={3} placeholder="Markdown; [[run ID]] links a run, @handle mentions a member" className="w-full rounded border border-stone-300 p-2 font-mono text-sm" />
+      <div className="flex items-center gap-2">
+        {runs.length ? (
+          <select aria-label="Pin to run" value={runId} onChange={(e) => setRunId(e.target.value)} className="rounded border border-stone-300 px-2 py-1 text-sm">
+            <option value="">Not pinned to a run</option>
+            {runs.map((r) => (
+              <option key={r.id} value={r.id}>
+                {r.label}
+              </option>
+            ))}
+          </select>
+        ) : null}
+        <span className="flex-1" />
+        <button type="submit" disabled={busy} className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+          Open thread
+        </button>
+      </div>
+      {error ? <p role="alert" className="text-sm text-ember-500">{error}</p> : null}
+    </form>
+  );
+}
