@@ -203,7 +203,7 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   const rv = nodes.railValue;
   for (let k = 0; k < nn; k++) {
     if (Number.isFinite(rv[k])) {
-      railCurrents[k] = -entering[k];
+      railCurrents[k] = 0 - entering[k]; // not -0 for an idle rail
     } else {
       railCurrents[k] = NaN;
       const e = Math.abs(entering[k]);
