@@ -2,6 +2,7 @@ import { and, inArray, isNotNull, isNull, sql } from "drizzle-orm";
 import { hashPasswordSync } from "../app/lib/passwords";
 import type { DB } from "./index";
 import { memberships, users, workspaces, type Role } from "./schema";
+import { seedWork } from "./seed-work";
 
 /**
  * The password of every demo account: documented in the README ("Demo
@@ -51,6 +52,7 @@ export function seedDemo(db: DB): { users: number; workspaces: number } {
       tx.insert(memberships).values({ workspaceId: "ws_lm64", userId: u.id, role: u.role }).onConflictDoNothing().run();
     }
   });
+  seedWork(db); // the workbench's demo networks, commits and finished runs (db/seed-work.ts)
   const count = (t: typeof users | typeof workspaces) => db.select({ n: sql<number>`count(*)` }).from(t).get()!.n;
   return { users: count(users), workspaces: count(workspaces) };
 }

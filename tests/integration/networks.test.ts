@@ -1,17 +1,18 @@
-import { afterEach, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { DB } from "@/db";
 import { seedDemo } from "@/db/seed";
 import { commitIdOf, commitText, createNetwork, getCommit, listCommits, listNetworks, renameNetwork, sha256Hex, slugify } from "@/app/lib/networks";
 import { RequestError } from "@/app/lib/http";
 import { freshDatabase } from "../helpers/db";
 
-const cleanups: (() => void)[] = [];
-afterEach(() => cleanups.splice(0).forEach((f) => f()));
-function fresh() {
-  const t = freshDatabase();
-  cleanups.push(t.dispose);
-  seedDemo(t.db);
-  return t.db;
-}
+// One seeded database for the file (the demo seed solves its runs, so it is not free); every test makes its own networks.
+let shared: { db: DB; dispose(): void };
+beforeAll(() => {
+  shared = freshDatabase();
+  seedDemo(shared.db);
+});
+afterAll(() => shared.dispose());
+const fresh = () => shared.db;
 
 const DIVIDER = `network divider
 rail vdd = 1
@@ -38,15 +39,15 @@ describe("networks and commits", () => {
 
   it("creates a network with a first commit, content-addressed", () => {
     const db = fresh();
-    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Bias divider", text: DIVIDER, message: "Upload divider.rill", authorId: "u_designer1" }, db);
-    expect(network.slug).toBe("bias-divider");
+    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, message: "Upload divider.rill", authorId: "u_designer1" }, db);
+    expect(network.slug).toBe("test-divider");
     expect(commit!.id).toBe(commitIdOf(network.id, null, DIVIDER));
     expect(commit!.id).toBe(sha256Hex(`network:${network.id}\n${DIVIDER}`));
     expect(commit!.textSha256).toBe(sha256Hex(DIVIDER));
     expect(commit!.ok).toBe(true);
     expect(network.headCommitId).toBe(commit!.id);
-    const second = createNetwork({ workspaceId: "ws_lm64", name: "Bias divider", text: DIVIDER, authorId: "u_designer1" }, db);
-    expect(second.network.slug).toBe("bias-divider-2");
+    const second = createNetwork({ workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, authorId: "u_designer1" }, db);
+    expect(second.network.slug).toBe("test-divider-2");
     // same text, different network: a different commit, the same text hash
     expect(second.commit!.id).not.toBe(commit!.id);
     expect(second.commit!.textSha256).toBe(commit!.textSha256);
@@ -74,14 +75,30 @@ describe("networks and commits", () => {
     expect(c3.id).not.toBe(commit!.id);
     expect(listCommits(network.id, db).map((c) => c.id)).toEqual([c3.id, c2.id, commit!.id]);
     expect(getCommit(c3.id, db)!.text).toBe(DIVIDER);
-    const [summary] = listNetworks("ws_lm64", db);
+    const summary = listNetworks("ws_lm64", db).find((n) => n.id === network.id);
     expect(summary).toMatchObject({ id: network.id, commitCount: 3, head: { id: c3.id, message: "drop m2" } });
   });
 
   it("renames without changing the URL name, and refuses an empty name", () => {
     const db = fresh();
     const { network } = createNetwork({ workspaceId: "ws_lm64", name: "row", authorId: "u_designer1" }, db);
-    expect(renameNetwork(network.id, "  LM-64   row ", db)).toMatchObject({ name: "LM-64 row", slug: "row" });
+    expect(renameNetwork(network.id, "  LM-64   test row ", db)).toMatchObject({ name: "LM-64 test row", slug: "row" });
     expect(errorOf(() => renameNetwork(network.id, " ", db)).message).toBe("name: must not be empty");
+  });
+});
+
+describe("the demo seed", () => {
+  it("commits the example networks with a finished run each, idempotently", async () => {
+    const db = fresh();
+    const { listRuns } = await import("@/app/lib/runs");
+    const { DEMO_NETWORKS, seedWork } = await import("@/db/seed-work");
+    const demo = listNetworks("ws_lm64", db).filter((n) => DEMO_NETWORKS.some((d) => slugify(d.name) === n.slug));
+    expect(demo).toHaveLength(DEMO_NETWORKS.length);
+    for (const n of demo) {
+      const runs = listRuns({ commitId: n.headCommitId! }, db);
+      expect(runs.map((r) => [n.slug, r.state, r.pointsDone === r.pointsTotal])).toEqual([[n.slug, "done", true]]);
+    }
+    expect(demo.find((n) => n.slug === "lm-64-edge-row")!.commitCount).toBe(2);
+    expect(seedWork(db)).toEqual({ networks: 0, runs: 0 });
   });
 });

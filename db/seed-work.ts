@@ -1,0 +1,72 @@
+/**
+ * The workbench part of the demo: the example networks (examples/*.rill,
+ * invented LM-64 demo data) committed into the demo workspace by the demo
+ * designers, each with a finished run solved in-process at seed time, so a
+ * first visit shows real tables and plots. Idempotent: a network that exists
+ * is left alone; a network without a finished run gets one.
+ */
+import fs from "node:fs";
+import path from "node:path";
+import { and, eq } from "drizzle-orm";
+import { commitText, createNetwork, newId, networkBySlug, slugify } from "@/app/lib/networks";
+import { pointsOf } from "@/app/lib/results";
+import { executeRun } from "@/app/lib/run-exec";
+import { elaborate } from "@/src/lang/index";
+import type { DB } from "./index";
+import { runs } from "./schema";
+
+/** Demo networks: file, display name, author, commit message, and an earlier version to make a history. */
+export const DEMO_NETWORKS: { file: string; name: string; author: string; message: string; earlier?: { edit: (text: string) => string; message: string } }[] = [
+  {
+    file: "row64.rill",
+    name: "LM-64 edge row",
+    author: "u_designer1",
+    message: "Lateral gate at 0.74 V for a space constant of about 4 taps",
+    earlier: { edit: (t) => t.replace(/param vh = [^\n#]+/, "param vh = 0.70"), message: "First cut of the 64-tap row" },
+  },
+  { file: "grid32.rill", name: "Smoothing grid 32 × 32", author: "u_designer2", message: "Bright spot in the middle of a 32 × 32 grid" },
+  { file: "divider.rill", name: "Bias divider", author: "u_designer1", message: "Differential-pair divider, 20 mV gate difference" },
+  { file: "mirror.rill", name: "Mirror bank", author: "u_designer2", message: "Binary-weighted mirror bank fed by a pfet source" },
+  { file: "biassweep.rill", name: "Bias sweep", author: "u_designer1", message: "Lateral gate sweep at three temperatures" },
+  { file: "mismatch.rill", name: "Divider mismatch study", author: "u_designer2", message: "Pelgrom mismatch, 200 samples per gate difference" },
+];
+
+export function examplesFolder(): string {
+  return path.resolve(/*turbopackIgnore: true*/ process.env.RILL_EXAMPLES ?? "examples");
+}
+
+/** Commits and runs the demo networks into `workspaceId`; returns how many networks and runs it added. */
+export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; runs: number } {
+  let addedNetworks = 0;
+  let addedRuns = 0;
+  const folder = examplesFolder();
+  for (const demo of DEMO_NETWORKS) {
+    const file = path.join(folder, demo.file);
+    if (!fs.existsSync(file)) continue;
+    const text = fs.readFileSync(file, "utf8");
+    let network = networkBySlug(workspaceId, slugify(demo.name), db);
+    if (!network) {
+      if (demo.earlier) {
+        const first = createNetwork({ workspaceId, name: demo.name, text: demo.earlier.edit(text), message: demo.earlier.message, authorId: demo.author }, db);
+        commitText({ networkId: first.network.id, parentId: first.commit!.id, text, message: demo.message, authorId: demo.author }, db);
+      } else {
+        createNetwork({ workspaceId, name: demo.name, text, message: demo.message, authorId: demo.author }, db);
+      }
+      network = networkBySlug(workspaceId, slugify(demo.name), db)!;
+      addedNetworks++;
+    }
+    const head = network.headCommitId;
+    if (!head) continue;
+    const done = db.select({ id: runs.id }).from(runs).where(and(eq(runs.commitId, head), eq(runs.state, "done"))).get();
+    if (done) continue;
+    const result = elaborate(text);
+    if (!result.network) continue;
+    const id = newId("r");
+    db.insert(runs)
+      .values({ id, commitId: head, networkId: network.id, workspaceId, createdBy: demo.author, pointsTotal: pointsOf(result.network), timeLimitMs: 10 * 60_000 })
+      .run();
+    executeRun(db, id);
+    addedRuns++;
+  }
+  return { networks: addedNetworks, runs: addedRuns };
+}
