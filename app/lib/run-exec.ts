@@ -21,6 +21,7 @@ import type { PointResult, RunResult } from "@/src/solver/results";
 import { solveNetwork } from "@/src/solver/index";
 import type { Q } from "./networks";
 import { insertPoints, layoutOf, type PointRecord, type RunLayout } from "./results";
+import { storeCommitDiff } from "./review/diffs";
 
 /** Values of the shared stop flag. */
 export const STOP_NONE = 0;
@@ -161,7 +162,14 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
     const structural = run.failures.find((f) => f.point < 0);
     if (structural) return end("failed", `the network cannot be solved: ${structural.message}`, done);
     if (done === 0 && run.failures.length) return end("failed", `no point could be solved: ${run.failures[0].message}`, done);
-    return end("done", null, done);
+    const finished = end("done", null, done);
+    // Review: the results diff against the parent commit's run, computed once (app/lib/review/diffs.ts); it never fails the run.
+    try {
+      storeCommitDiff(runId, d);
+    } catch (e) {
+      console.error(`run ${runId}: storing its commit diff failed: ${(e as Error).message}`);
+    }
+    return finished;
   } catch (e) {
     return end("failed", `the run failed: ${((e as Error).message ?? String(e)).split("\n")[0]}`, stored);
   }
