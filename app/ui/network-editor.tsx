@@ -38,6 +38,8 @@ export function NetworkEditor({ value, onChange, onSave, onRun, readOnly = false
   const [readOnlySetting] = useState(() => new Compartment());
   const callbacks = useRef({ onChange, onSave, onRun, onDiagnostics });
   const initial = useRef({ value, readOnly });
+  /** The text last handed to onChange: when it comes back as `value` it is our own echo, not a new document. */
+  const reported = useRef<string | null>(null);
 
   useEffect(() => {
     callbacks.current = { onChange, onSave, onRun, onDiagnostics };
@@ -52,7 +54,10 @@ export function NetworkEditor({ value, onChange, onSave, onRun, readOnly = false
         extensions: rillEditorExtensions({
           onSave: () => call(callbacks.current.onSave),
           onRun: () => call(callbacks.current.onRun),
-          onChange: (text) => callbacks.current.onChange?.(text),
+          onChange: (text) => {
+            reported.current = text;
+            callbacks.current.onChange?.(text);
+          },
           lint: { onDiagnostics: (d) => callbacks.current.onDiagnostics?.(d) },
           readOnly: readOnlySetting,
           initiallyReadOnly: initial.current.readOnly,
@@ -67,7 +72,8 @@ export function NetworkEditor({ value, onChange, onSave, onRun, readOnly = false
   }, [readOnlySetting]);
 
   useEffect(() => {
-    if (view.current) replaceText(view.current, value);
+    // An echo of an earlier keystroke must not undo the ones typed since.
+    if (view.current && value !== reported.current) replaceText(view.current, value);
   }, [value]);
 
   useEffect(() => {
