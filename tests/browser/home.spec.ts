@@ -1,11 +1,19 @@
 import { expect, test } from "@playwright/test";
 
-test("the home page shows the shell and the demo workspace", async ({ page }) => {
+test("the home page shows the shell, the demo accounts, and after sign-in the demo workspace", async ({ page }) => {
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
   await page.goto("/");
   await expect(page.getByRole("link", { name: "Rill home" })).toBeVisible();
   await expect(page.getByRole("heading", { name: "Workspaces" })).toBeVisible();
+  // signed out in demo mode: a sign-in prompt and the demo accounts, no workspaces
+  await expect(page.getByRole("region", { name: "Demo accounts" })).toContainText("owner@larkspur.example");
+  await expect(page.getByRole("list", { name: "Workspaces" })).toHaveCount(0);
+  await page.getByRole("link", { name: "Sign in" }).first().click();
+  await page.getByLabel("E-mail").fill("owner@larkspur.example");
+  await page.getByLabel("Password").fill("larkspur-demo");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByTestId("signed-in-as")).toHaveText("Ada Marlow");
   await expect(page.getByRole("list", { name: "Workspaces" }).getByRole("link", { name: "LM-64 edge row" })).toBeVisible();
   await expect(page.getByText("Results in Rill are model estimates")).toBeVisible();
   const fonts = await page.evaluate(async () => {
