@@ -6,6 +6,7 @@
 import { readFileSync, realpathSync, statSync } from "node:fs";
 import { pathToFileURL } from "node:url";
 import { DEFAULT_LIMITS, diagnosticsDocument, elaborate, type ElaborationResult, formatDiagnostics, tooLargeResult } from "../src/lang/index";
+import { solveNetwork, toSolveJson } from "../src/solver/index";
 
 const EXIT_OK = 0;
 const EXIT_ERRORS = 1;
@@ -75,9 +76,19 @@ const check: Subcommand = {
 const solve: Subcommand = {
   usage: "rill solve FILE --json",
   summary: "solve every point and print one JSON document",
-  run(_args, io) {
-    io.err("solve: not available yet");
-    return EXIT_USAGE;
+  run(args, io) {
+    const { file, flags } = fileAndFlags(args, ["--json"]);
+    const result = elaborateFile(file);
+    const run = result.network ? solveNetwork(result.network) : null;
+    // The text places solver diagnostics at their device's line (the file was readable a moment ago).
+    const text = result.network ? readFileSync(file, "utf8") : undefined;
+    const doc = toSolveJson(result.network, result.diagnostics, run, text, result.name);
+    if (flags.has("--json")) io.out(JSON.stringify(doc, null, 2));
+    else {
+      if (doc.diagnostics.length) io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));
+      if (run) io.out(`${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`);
+    }
+    return doc.ok ? EXIT_OK : EXIT_ERRORS;
   },
 };
 

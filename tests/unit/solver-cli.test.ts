@@ -1,0 +1,78 @@
+/**
+ * `rill solve FILE --json` on every example (LANGUAGE.md, Command line): one
+ * JSON document, ok, every point with its method, and KCL residuals that are
+ * negligible against the network's currents. The mirror bank is solved by
+ * Newton and says why; the exact published check values are in
+ * solver-physics.test.ts.
+ */
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readdirSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { describe, expect, it } from "vitest";
+import { main } from "../../scripts/rill";
+import type { SolveJson } from "../../src/solver/results";
+
+const root = join(__dirname, "../..");
+const examples = readdirSync(join(root, "examples")).filter((f) => f.endsWith(".rill"));
+
+function solveJson(file: string): { code: number; doc: SolveJson; err: string } {
+  let out = "";
+  let err = "";
+  const code = main(["solve", file, "--json"], { out: (t) => (out += t), err: (t) => (err += t) });
+  return { code, doc: JSON.parse(out) as SolveJson, err };
+}
+
+describe("rill solve --json on the examples", () => {
+  it("there are examples to solve", () => {
+    expect(examples.length).toBeGreaterThanOrEqual(6);
+  });
+
+  it.each(examples)("%s solves: ok, exit 0, a method on every point, KCL residual ≤ 1e-9 of the largest current", (f) => {
+    const { code, doc } = solveJson(join(root, "examples", f));
+    expect(doc.diagnostics.filter((d) => d.severity === "error")).toEqual([]);
+    expect(code).toBe(0);
+    expect(doc.ok).toBe(true);
+    expect(doc.points.length).toBeGreaterThan(0);
+    for (const p of doc.points) {
+      expect(["linear", "newton"]).toContain(p.solver.method);
+      expect(p.solver.reason.length).toBeGreaterThan(10);
+      let imax = 0;
+      for (const d of Object.values(p.devices)) imax = Math.max(imax, Math.abs(d.current));
+      expect(p.solver.residual).toBeLessThanOrEqual(1e-9 * imax);
+    }
+  });
+
+  it("the mirror bank is solved by Newton, saying which gate is on an internal node", () => {
+    const { doc } = solveJson(join(root, "examples", "mirror.rill"));
+    expect(doc.points[0].solver.method).toBe("newton");
+    expect(doc.points[0].solver.reason).toBe("gate of diode is on internal node x");
+    // W/L ratios 1, 2, 4, 8: gain = ratio·(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}) (PHYSICS.md §8; Mead 1989 [confirmed record; formula derived]).
+    const p = doc.points[0];
+    const ut = (1.380649e-23 * 300) / 1.602176634e-19;
+    const factor = (1 - Math.exp(-p.nodes.vout / ut)) / (1 - Math.exp(-p.nodes.x / ut));
+    for (let k = 0; k < 4; k++) expect(p.probes[`gain${k}`]! / (2 ** k * factor)).toBeCloseTo(1, 9);
+  });
+
+  it("the exact command line prints one document and exits 0 (spawned)", () => {
+    const r = spawnSync("npm", ["run", "--silent", "rill", "--", "solve", "examples/divider.rill", "--json"], { cwd: root, encoding: "utf8" });
+    expect(r.status).toBe(0);
+    const doc = JSON.parse(r.stdout) as SolveJson;
+    expect(doc).toMatchObject({ network: "divider", ok: true });
+    expect(doc.points[0].solver.method).toBe("linear");
+  });
+
+  it("usage errors exit 2; an unsolvable network exits 1 with ok false and no points", () => {
+    const io = { out: () => undefined, err: () => undefined };
+    expect(main(["solve"], io)).toBe(2);
+    expect(main(["solve", join(root, "examples", "nope.rill"), "--json"], io)).toBe(2);
+    const dir = mkdtempSync(join(tmpdir(), "rill-solve-"));
+    const file = join(dir, "push.rill");
+    writeFileSync(file, "rail gnd = 0\nrail vd = 1\nrail vg = 0.5\nnfet m gate=vg source=x drain=vd\ninject push from=gnd to=x value=1n\n");
+    const { code, doc } = solveJson(file);
+    expect(code).toBe(1);
+    expect(doc.ok).toBe(false);
+    expect(doc.points).toEqual([]);
+    expect(doc.diagnostics[0]).toMatchObject({ severity: "error", line: 4 });
+  });
+});
