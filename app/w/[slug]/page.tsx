@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { workspacePage } from "@/app/lib/pages";
+import { NetworkList } from "@/app/ui/workbench/network-list";
 
 export const dynamic = "force-dynamic";
 
@@ -13,7 +14,7 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 /** /w/[slug]: a workspace. The header is the accounts feature's; the networks region belongs to the workbench. */
 export default async function WorkspacePageView({ params }: Props) {
   const { slug } = await params;
-  const { workspace, role } = await workspacePage(slug, `/w/${slug}`);
+  const { workspace, role, can } = await workspacePage(slug, `/w/${slug}`);
   return (
     <div className="space-y-8">
       <header className="flex flex-wrap items-baseline justify-between gap-4 border-b border-stone-200 pb-4">
@@ -30,7 +31,7 @@ export default async function WorkspacePageView({ params }: Props) {
           </Link>
         </nav>
       </header>
-      {/* networks */}
+      <NetworkList slug={workspace.slug} canWrite={can("network.write")} />
     </div>
   );
 }

@@ -1,0 +1,60 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { requireActor } from "@/app/lib/auth";
+import { getCommit, getNetwork } from "@/app/lib/networks";
+import { roleAllows, roleIn } from "@/app/lib/policy";
+import { getRun } from "@/app/lib/runs";
+import { db } from "@/db";
+import { workspaces } from "@/db/schema";
+import { eq } from "drizzle-orm";
+import { RunView } from "@/app/ui/workbench/run-view";
+
+export const dynamic = "force-dynamic";
+type Props = { params: Promise<{ id: string }> };
+
+export async function generateMetadata({ params }: Props): Promise<Metadata> {
+  return { title: `Run ${(await params).id}` };
+}
+
+/** /runs/[id]: the permalink of a run, for members of its workspace (others get 404). */
+export default async function RunPage({ params }: Props) {
+  const { id } = await params;
+  const actor = await requireActor(`/runs/${id}`);
+  const run = getRun(id);
+  const role = run ? roleIn(actor, run.workspaceId) : null;
+  if (!run || !role) notFound();
+  const network = getNetwork(run.networkId)!;
+  const commit = getCommit(run.commitId)!;
+  const ws = db().select({ slug: workspaces.slug, name: workspaces.name }).from(workspaces).where(eq(workspaces.id, run.workspaceId)).get()!;
+  return (
+    <div className="space-y-4">
+      <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
+        <Link href={`/w/${ws.slug}`} className="hover:text-moss-700">
+          {ws.name}
+        </Link>{" "}
+        /{" "}
+        <Link href={`/w/${ws.slug}/n/${network.slug}`} className="hover:text-moss-700">
+          {network.name}
+        </Link>{" "}
+        / run
+      </nav>
+      <header className="space-y-1">
+        <h1 className="text-2xl font-semibold">
+          Run <span className="font-mono text-xl">{run.id}</span>
+        </h1>
+        <p className="text-sm text-stone-600">
+          of commit{" "}
+          <Link href={`/w/${ws.slug}/n/${network.slug}?commit=${commit.id}`} className="font-mono text-moss-700 hover:underline">
+            {commit.id.slice(0, 12)}
+          </Link>{" "}
+          “{commit.message}” by {commit.authorName} ·{" "}
+          <a href={`/api/commits/${commit.id}?download`} className="text-moss-700 hover:underline">
+            download its text
+          </a>
+        </p>
+      </header>
+      <RunView runId={run.id} canRun={roleAllows(role, "run.start")} />
+    </div>
+  );
+}

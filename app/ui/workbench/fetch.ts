@@ -1,0 +1,29 @@
+/**
+ * Client-side access to the workbench API: SWR's fetcher and a JSON sender.
+ * Both throw ApiError carrying the server's one-line `error` message and status.
+ */
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    message: string,
+    readonly body: Record<string, unknown>,
+  ) {
+    super(message);
+  }
+}
+
+async function parse<T>(res: Response): Promise<T> {
+  const body = (await res.json().catch(() => ({}))) as Record<string, unknown>;
+  if (!res.ok) throw new ApiError(res.status, typeof body.error === "string" ? body.error : `request failed (${res.status})`, body);
+  return body as T;
+}
+
+/** SWR fetcher: GET `url` as JSON. */
+export async function getJson<T>(url: string): Promise<T> {
+  return parse<T>(await fetch(url, { headers: { accept: "application/json" } }));
+}
+
+/** POST/PATCH a JSON body; resolves to the JSON answer. */
+export async function sendJson<T>(method: "POST" | "PATCH", url: string, body: unknown): Promise<T> {
+  return parse<T>(await fetch(url, { method, headers: { "content-type": "application/json", accept: "application/json" }, body: JSON.stringify(body) }));
+}

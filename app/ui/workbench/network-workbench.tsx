@@ -1,0 +1,379 @@
+"use client";
+
+/**
+ * The network page's live part: the editor with live diagnostics, commit
+ * (Ctrl/⌘+S) and run (Ctrl/⌘+Enter), the history beside it and the runs of the
+ * selected commit with their progress. Leaving with uncommitted edits asks
+ * first. Data from /api/networks/…, /api/commits/…, /api/runs… through SWR.
+ */
+import Link from "next/link";
+import { useCallback, useEffect, useMemo, useRef, useState } from "react";
+import useSWR from "swr";
+import type { CommitRow, CommitSummary, NetworkRow } from "@/app/lib/networks";
+import type { RunRow } from "@/app/lib/runs";
+import { NetworkEditor } from "@/app/ui/network-editor";
+import type { Diagnostic } from "@/src/lang/network";
+import { getJson, sendJson } from "./fetch";
+import { ProgressBar, RunStateBadge } from "./run-state";
+
+export interface NetworkWorkbenchProps {
+  workspaceSlug: string;
+  network: NetworkRow;
+  commits: CommitSummary[];
+  /** The commit shown first (?commit=…, else the head), with its text; null for a network without commits. */
+  selected: CommitRow | null;
+  canWrite: boolean;
+  canRun: boolean;
+}
+
+const LIVE = new Set(["queued", "running"]);
+
+function starterText(name: string): string {
+  return `network ${name.replace(/[^A-Za-z0-9_]/g, "_").replace(/^[^A-Za-z_]/, "n_$&")}\n\nrail vdd = 1.8\nrail gnd = 0\n`;
+}
+
+export function NetworkWorkbench({ workspaceSlug, network, commits: initialCommits, selected: initialSelected, canWrite, canRun }: NetworkWorkbenchProps) {
+  const history = useSWR<{ commits: CommitSummary[]; network: NetworkRow }>(`/api/networks/${network.id}/commits`, getJson, {
+    fallbackData: { commits: initialCommits, network },
+  });
+  const commits = history.data?.commits ?? initialCommits;
+  const headId = history.data?.network.headCommitId ?? network.headCommitId;
+  const [selectedId, setSelectedId] = useState<string | null>(initialSelected?.id ?? headId);
+  const selected = useSWR<{ commit: CommitRow }>(selectedId ? `/api/commits/${selectedId}` : null, getJson, {
+    fallbackData: initialSelected && initialSelected.id === selectedId ? { commit: initialSelected } : undefined,
+    revalidateOnFocus: false,
+  });
+  const head = useSWR<{ commit: CommitRow }>(headId ? `/api/commits/${headId}` : null, getJson, {
+    fallbackData: initialSelected && initialSelected.id === headId ? { commit: initialSelected } : undefined,
+    revalidateOnFocus: false,
+  });
+  const headText = headId ? head.data?.commit.text : starterText(network.name);
+  const viewingHead = selectedId === headId;
+
+  /** The editor's text while editing on the head; what a commit sends. */
+  const [draft, setDraft] = useState<string | null>(null);
+  /** What the editor is told to show (changes only when another commit is opened). */
+  const [shown, setShown] = useState<string>(initialSelected?.text ?? (headId ? "" : starterText(network.name)));
+  const baseText = headText ?? "";
+  const dirty = draft !== null && draft !== baseText;
+  const [diagnostics, setDiagnostics] = useState<Diagnostic[]>([]);
+  const [message, setMessage] = useState("");
+  const [notice, setNotice] = useState<{ kind: "ok" | "problem"; text: string } | null>(null);
+  const [busy, setBusy] = useState(false);
+  const messageInput = useRef<HTMLInputElement>(null);
+
+  // Show the selected commit's text when it arrives (a read-only view unless it is the head).
+  const selectedText = selected.data?.commit.text;
+  useEffect(() => {
+    if (selectedText === undefined) return;
+    if (viewingHead && draft !== null) return;
+    setShown(selectedText);
+  }, [selectedText, viewingHead, draft]);
+
+  // Ask before leaving with uncommitted edits: closing or reloading the tab, and links inside the app.
+  useEffect(() => {
+    if (!dirty) return;
+    const beforeUnload = (e: BeforeUnloadEvent) => {
+      e.preventDefault();
+      e.returnValue = "";
+    };
+    const click = (e: MouseEvent) => {
+      const a = (e.target as HTMLElement | null)?.closest?.("a[href]") as HTMLAnchorElement | null;
+      if (!a || a.target === "_blank" || a.hasAttribute("download") || a.getAttribute("href")?.startsWith("#")) return;
+      if (!window.confirm("This network has uncommitted edits. Leave and lose them?")) {
+        e.preventDefault();
+        e.stopPropagation();
+      }
+    };
+    window.addEventListener("beforeunload", beforeUnload);
+    document.addEventListener("click", click, true);
+    return () => {
+      window.removeEventListener("beforeunload", beforeUnload);
+      document.removeEventListener("click", click, true);
+    };
+  }, [dirty]);
+
+  const errors = diagnostics.filter((d) => d.severity === "error").length;
+  const warnings = diagnostics.length - errors;
+
+  const commit = useCallback(async () => {
+    if (!canWrite) return;
+    if (!viewingHead) {
+      setNotice({ kind: "problem", text: "You are viewing an older commit: open the newest one (or restore this text) to edit and commit." });
+      return;
+    }
+    if (!dirty || draft === null) {
+      setNotice({ kind: "problem", text: "Nothing to commit: the text is the same as the newest commit." });
+      return;
+    }
+    if (!message.trim()) {
+      setNotice({ kind: "problem", text: "Write a commit message (what changed), then press Enter or Ctrl+S again." });
+      messageInput.current?.focus();
+      return;
+    }
+    setBusy(true);
+    try {
+      const r = await sendJson<{ commit: CommitRow }>("POST", `/api/networks/${network.id}/commits`, { parent: headId ?? null, text: draft, message });
+      await history.mutate();
+      setSelectedId(r.commit.id);
+      setDraft(null);
+      setShown(r.commit.text);
+      setMessage("");
+      setNotice({
+        kind: r.commit.ok ? "ok" : "problem",
+        text: r.commit.ok ? `Committed ${r.commit.id.slice(0, 8)}.` : `Committed ${r.commit.id.slice(0, 8)} with ${r.commit.errorCount} error(s): it can be kept but not run.`,
+      });
+    } catch (e) {
+      setNotice({ kind: "problem", text: (e as Error).message });
+    } finally {
+      setBusy(false);
+    }
+  }, [canWrite, viewingHead, dirty, draft, message, network.id, headId, history]);
+
+  const selectedCommit = selected.data?.commit ?? null;
+  const runBlocked: string | null = !canRun
+    ? "your role cannot start runs"
+    : !selectedCommit
+      ? "commit the network first"
+      : viewingHead && dirty
+        ? "commit your edits first (Ctrl+S): runs are of commits"
+        : !selectedCommit.ok
+          ? `commit ${selectedCommit.id.slice(0, 8)} has ${selectedCommit.errorCount} error(s): fix and commit before running`
+          : null;
+
+  const runs = useSWR<{ runs: RunRow[] }>(selectedId ? `/api/runs?commit=${selectedId}` : null, getJson, {
+    refreshInterval: (d) => (d?.runs.some((r) => LIVE.has(r.state)) ? 1000 : 0),
+  });
+
+  const run = useCallback(async () => {
+    if (runBlocked || !selectedCommit) {
+      if (runBlocked) setNotice({ kind: "problem", text: `Cannot run: ${runBlocked}.` });
+      return;
+    }
+    setBusy(true);
+    try {
+      await sendJson<{ run: RunRow }>("POST", "/api/runs", { commit: selectedCommit.id });
+      await runs.mutate();
+      setNotice({ kind: "ok", text: `Run of ${selectedCommit.id.slice(0, 8)} queued.` });
+    } catch (e) {
+      setNotice({ kind: "problem", text: `Cannot run: ${(e as Error).message}` });
+    } finally {
+      setBusy(false);
+    }
+  }, [runBlocked, selectedCommit, runs]);
+
+  const open = (id: string) => {
+    setSelectedId(id);
+    setNotice(null);
+    if (id === headId && draft !== null) setShown(draft);
+  };
+
+  const restore = () => {
+    if (!selectedCommit || !headId) return;
+    const text = selectedCommit.text;
+    setSelectedId(headId);
+    setDraft(text);
+    setShown(text);
+    setMessage(`Restore ${selectedCommit.id.slice(0, 8)}`);
+  };
+
+  const readOnly = !canWrite || !viewingHead;
+  const onChange = useCallback(
+    (text: string) => {
+      if (!readOnly) setDraft(text);
+    },
+    [readOnly],
+  );
+
+  return (
+    <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(18rem,1fr)]">
+      <div className="space-y-3">
+        <div className="flex flex-wrap items-center gap-2">
+          {canWrite ? (
+            <form
+              className="flex flex-1 items-center gap-2"
+              onSubmit={(e) => {
+                e.preventDefault();
+                void commit();
+              }}
+            >
+              <input
+                ref={messageInput}
+                value={message}
+                onChange={(e) => setMessage(e.target.value)}
+                placeholder="Commit message: what changed"
+                aria-label="Commit message"
+                disabled={!viewingHead}
+                className="min-w-40 flex-1 rounded border border-stone-300 bg-white px-2 py-1 text-sm disabled:bg-stone-100"
+              />
+              <button type="submit" disabled={busy || !viewingHead || !dirty} title="Ctrl+S / ⌘S" className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+                Commit
+              </button>
+            </form>
+          ) : (
+            <span className="flex-1 text-sm text-stone-500">Read only: your role cannot commit.</span>
+          )}
+          <button
+            type="button"
+            onClick={() => void run()}
+            disabled={busy || runBlocked !== null}
+            title={runBlocked ? `Cannot run: ${runBlocked}` : "Run every analysis of this commit (Ctrl+Enter / ⌘Enter)"}
+            className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:cursor-not-allowed disabled:opacity-50"
+          >
+            Run
+          </button>
+          {selectedId ? (
+            <a href={`/api/commits/${selectedId}?download`} download className="text-sm text-stone-600 hover:text-moss-700">
+              Download
+            </a>
+          ) : null}
+        </div>
+        {runBlocked && selectedCommit ? <p className="text-xs text-stone-500" data-slot="run-blocked">Run: {runBlocked}.</p> : null}
+        {!viewingHead && selectedCommit ? (
+          <div className="flex flex-wrap items-center gap-3 rounded border border-stone-300 bg-stone-100 px-3 py-2 text-sm">
+            <span>
+              Viewing older commit <span className="font-mono">{selectedCommit.id.slice(0, 8)}</span> (read only).
+            </span>
+            {headId ? (
+              <button type="button" className="text-moss-700 hover:underline" onClick={() => open(headId)}>
+                Back to the newest
+              </button>
+            ) : null}
+            {canWrite ? (
+              <button type="button" className="text-moss-700 hover:underline" onClick={restore}>
+                Restore this text as a new edit
+              </button>
+            ) : null}
+          </div>
+        ) : null}
+        <NetworkEditor
+          value={shown}
+          onChange={onChange}
+          onSave={() => void commit()}
+          onRun={() => void run()}
+          readOnly={readOnly}
+          onDiagnostics={setDiagnostics}
+          className="h-[60vh] min-h-80 overflow-hidden rounded border border-stone-300 bg-white"
+        />
+        <div className="flex flex-wrap items-center gap-4 text-xs" aria-live="polite">
+          <span data-slot="diagnostic-count" className={errors ? "text-ember-500" : warnings ? "text-amber-700" : "text-moss-700"}>
+            {errors || warnings ? `${errors} error${errors === 1 ? "" : "s"}, ${warnings} warning${warnings === 1 ? "" : "s"}` : "no problems"}
+          </span>
+          {dirty ? <span className="text-amber-700" data-slot="dirty">uncommitted edits</span> : null}
+          <span className="text-stone-500">Ctrl+S commit · Ctrl+Enter run · Ctrl+Space complete</span>
+        </div>
+        {diagnostics.length ? (
+          <ul aria-label="Diagnostics" className="max-h-40 space-y-0.5 overflow-auto text-xs">
+            {diagnostics.slice(0, 50).map((d, i) => (
+              <li key={i} className={d.severity === "error" ? "text-ember-500" : "text-amber-700"}>
+                line {d.line}:{d.column} {d.severity}: {d.message}
+              </li>
+            ))}
+          </ul>
+        ) : null}
+        {notice ? (
+          <p role={notice.kind === "problem" ? "alert" : "status"} className={`text-sm ${notice.kind === "problem" ? "text-ember-500" : "text-moss-700"}`}>
+            {notice.text}
+          </p>
+        ) : null}
+      </div>
+      <aside className="space-y-6">
+        <HistoryPanel commits={commits} headId={headId} selectedId={selectedId} onOpen={open} />
+        <RunsPanel runs={runs.data?.runs} commitId={selectedId} onCanceled={() => void runs.mutate()} canRun={canRun} />
+        {commits.length > 1 ? (
+          <Link href={`/w/${workspaceSlug}/n/${network.slug}/compare`} className="block text-sm text-moss-700 hover:underline">
+            Compare commits →
+          </Link>
+        ) : null}
+      </aside>
+    </div>
+  );
+}
+
+function HistoryPanel({ commits, headId, selectedId, onOpen }: { commits: CommitSummary[]; headId: string | null; selectedId: string | null; onOpen(id: string): void }) {
+  return (
+    <section aria-labelledby="history-heading" className="space-y-2">
+      <h2 id="history-heading" className="text-sm font-semibold">
+        History
+      </h2>
+      {commits.length === 0 ? (
+        <p className="text-sm text-stone-500">No commits yet.</p>
+      ) : (
+        <ol aria-label="Commits" className="max-h-80 divide-y divide-stone-100 overflow-auto rounded border border-stone-200 bg-white">
+          {commits.map((c) => (
+            <li key={c.id}>
+              <button
+                type="button"
+                onClick={() => onOpen(c.id)}
+                aria-current={c.id === selectedId ? "true" : undefined}
+                className={`block w-full px-3 py-2 text-left text-sm hover:bg-moss-50 ${c.id === selectedId ? "bg-moss-50" : ""}`}
+              >
+                <span className="flex items-baseline justify-between gap-2">
+                  <span className="truncate">{c.message}</span>
+                  <span className="font-mono text-xs text-stone-500">{c.id.slice(0, 8)}</span>
+                </span>
+                <span className="flex items-baseline justify-between gap-2 text-xs text-stone-500">
+                  <span>
+                    {c.authorName} · {new Date(c.createdAt).toLocaleString("en-GB", { dateStyle: "short", timeStyle: "short" })}
+                  </span>
+                  <span>
+                    {c.id === headId ? <span className="mr-1 rounded bg-moss-100 px-1 text-moss-700">newest</span> : null}
+                    {c.ok ? null : <span className="text-ember-500">{c.errorCount} error(s)</span>}
+                  </span>
+                </span>
+              </button>
+            </li>
+          ))}
+        </ol>
+      )}
+    </section>
+  );
+}
+
+function RunsPanel({ runs, commitId, onCanceled, canRun }: { runs: RunRow[] | undefined; commitId: string | null; onCanceled(): void; canRun: boolean }) {
+  const list = useMemo(() => runs ?? [], [runs]);
+  return (
+    <section aria-labelledby="runs-heading" className="space-y-2">
+      <h2 id="runs-heading" className="text-sm font-semibold">
+        Runs{commitId ? <span className="font-normal text-stone-500"> of {commitId.slice(0, 8)}</span> : null}
+      </h2>
+      {list.length === 0 ? (
+        <p className="text-sm text-stone-500">No runs of this commit yet.</p>
+      ) : (
+        <ul aria-label="Runs" className="divide-y divide-stone-100 rounded border border-stone-200 bg-white">
+          {list.map((r) => (
+            <li key={r.id} className="space-y-1 px-3 py-2 text-sm">
+              <div className="flex items-center justify-between gap-2">
+                <Link href={`/runs/${r.id}`} className="font-mono text-xs text-moss-700 hover:underline">
+                  {r.id}
+                </Link>
+                <RunStateBadge state={r.state} />
+              </div>
+              {LIVE.has(r.state) ? (
+                <div className="flex items-center gap-2">
+                  <div className="flex-1">
+                    <ProgressBar done={r.pointsDone} total={r.pointsTotal} label={`Progress of run ${r.id}`} />
+                  </div>
+                  {canRun ? (
+                    <button
+                      type="button"
+                      className="text-xs text-ember-500 hover:underline"
+                      onClick={() => void sendJson("POST", `/api/runs/${r.id}/cancel`, {}).then(onCanceled, onCanceled)}
+                    >
+                      Cancel
+                    </button>
+                  ) : null}
+                </div>
+              ) : (
+                <p className="text-xs text-stone-500">
+                  {r.pointsDone.toLocaleString("en-US")} point{r.pointsDone === 1 ? "" : "s"} · {r.createdByName}
+                  {r.reason ? ` · ${r.reason}` : ""}
+                </p>
+              )}
+            </li>
+          ))}
+        </ul>
+      )}
+    </section>
+  );
+}

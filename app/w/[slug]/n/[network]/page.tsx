@@ -1,0 +1,45 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { getCommit, listCommits, networkBySlug } from "@/app/lib/networks";
+import { workspacePage } from "@/app/lib/pages";
+import { NetworkWorkbench } from "@/app/ui/workbench/network-workbench";
+
+export const dynamic = "force-dynamic";
+
+type Props = { params: Promise<{ slug: string; network: string }>; searchParams: Promise<{ commit?: string }> };
+
+export async function generateMetadata({ params }: Props): Promise<Metadata> {
+  return { title: (await params).network };
+}
+
+/** /w/[slug]/n/[network][?commit=ID]: the editor, the history and the runs of the selected commit. */
+export default async function NetworkPage({ params, searchParams }: Props) {
+  const { slug, network: networkSlug } = await params;
+  const { commit: wanted } = await searchParams;
+  const { workspace, can } = await workspacePage(slug, `/w/${slug}/n/${networkSlug}`);
+  const network = networkBySlug(workspace.id, networkSlug);
+  if (!network) notFound();
+  const commits = listCommits(network.id);
+  const pick = wanted && commits.some((c) => c.id === wanted) ? wanted : network.headCommitId;
+  const selected = pick ? getCommit(pick) : null;
+  return (
+    <div className="space-y-4">
+      <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
+        <Link href={`/w/${workspace.slug}`} className="hover:text-moss-700">
+          {workspace.name}
+        </Link>{" "}
+        / network
+      </nav>
+      <h1 className="text-2xl font-semibold">{network.name}</h1>
+      <NetworkWorkbench
+        workspaceSlug={workspace.slug}
+        network={network}
+        commits={commits}
+        selected={selected}
+        canWrite={can("network.write")}
+        canRun={can("run.start")}
+      />
+    </div>
+  );
+}
