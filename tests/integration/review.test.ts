@@ -37,7 +37,7 @@ describe("stored commit diffs", () => {
     expect([...new Set(d2.summary.rows.map((r) => r.name))].sort()).toEqual(["m1", "m2", "ratio", "x"]);
     // computed once: a second call returns the stored row, nothing new is written
     expect(storeCommitDiff(run2, db)!.createdAt).toEqual(d2.createdAt);
-    expect(db.select().from(commitDiffs).all()).toHaveLength(2);
+    expect(db.select().from(commitDiffs).all().filter((r) => r.runId === run1 || r.runId === run2)).toHaveLength(2);
     const badge = commitBadges([second.id], db).get(second.id)!;
     expect(badge.diffs[0]).toMatchObject({ analysis: "sweep iin", beyond: 12 });
     expect(badge.review).toBe("open");
@@ -93,6 +93,14 @@ describe("threads", () => {
     expect(b.get(second.id)!.review).toBe("signed_off");
     expect(b.get(second.id)!.verdicts[0]).toMatchObject({ reviewerName: "Ruth Calder", verdict: "signed_off" });
     expect(getThread(t2.thread.id, db)!.review).toBe("signed_off");
+    // a verdict in the first thread about the fix commit; a commit of another network is refused
+    await addComment({ threadId: thread.id, body: "The fix is good.", authorId: "u_owner", verdict: "signed_off", verdictCommitId: second.id }, notify, db);
+    const view = getThread(thread.id, db)!;
+    expect(view.commitStates.map((c) => [c.commitId, c.review])).toEqual([
+      [first.id, "changes_asked"],
+      [second.id, "signed_off"],
+    ]);
+    await expect(addComment({ threadId: thread.id, body: "x", authorId: "u_owner", verdict: "signed_off", verdictCommitId: "elsewhere" }, notify, db)).rejects.toThrow(/not a commit of this thread's network/);
   });
 
   it("refuses an empty comment, an over-long one, a run of another commit, and hides runs of other workspaces", async () => {

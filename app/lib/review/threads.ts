@@ -89,7 +89,7 @@ export async function createThread(
  * a failed e-mail is reported in `mailErrors`, the comment stays.
  */
 export async function addComment(
-  input: { threadId: string; body: string; authorId: string; verdict?: Verdict | null },
+  input: { threadId: string; body: string; authorId: string; verdict?: Verdict | null; verdictCommitId?: string | null },
   notify: Notify,
   d: Q = db(),
 ): Promise<{ commentId: string; notified: string[]; mailErrors: string[] }> {
@@ -98,6 +98,12 @@ export async function addComment(
   const thread = getThreadRef(input.threadId, d);
   if (!thread) throw new RequestError(404, `thread ${input.threadId} not found`);
   const commentId = newId("c");
+  // A verdict is about the thread's commit, or about a later commit of the same network (the fix a reply links).
+  const verdictCommit = input.verdictCommitId ?? thread.commitId;
+  if (verdict && verdictCommit !== thread.commitId) {
+    const c = d.select({ networkId: commits.networkId }).from(commits).where(eq(commits.id, verdictCommit)).get();
+    if (!c || c.networkId !== thread.networkId) throw new RequestError(422, `commitId: ${verdictCommit} is not a commit of this thread's network`);
+  }
 
   const handles = extractMentions(body);
   const members = handles.length
@@ -108,7 +114,7 @@ export async function addComment(
 
   d.transaction((tx) => {
     tx.insert(comments).values({ id: commentId, threadId: thread.id, workspaceId: thread.workspaceId, authorId: input.authorId, body, notified: targets.map((t) => handleOf(t.email)) }).run();
-    if (verdict) tx.insert(reviews).values({ id: newId("rv"), commitId: thread.commitId, workspaceId: thread.workspaceId, reviewerId: input.authorId, verdict, threadId: thread.id, commentId }).run();
+    if (verdict) tx.insert(reviews).values({ id: newId("rv"), commitId: verdictCommit, workspaceId: thread.workspaceId, reviewerId: input.authorId, verdict, threadId: thread.id, commentId }).run();
     tx.update(threads).set({ updatedAt: new Date() }).where(eq(threads.id, thread.id)).run();
   });
 
@@ -168,7 +174,9 @@ export interface ThreadView {
   commit: { id: string; parentId: string | null; message: string; authorName: string; createdAt: number };
   review: ReviewState;
   verdicts: { reviewerName: string; verdict: Verdict; at: number }[];
-  comments: { id: string; authorId: string; authorName: string; html: string; body: string; createdAt: number; verdict: Verdict | null }[];
+  comments: { id: string; authorId: string; authorName: string; html: string; body: string; createdAt: number; verdict: Verdict | null; verdictCommitId: string | null }[];
+  /** Review state of each commit a verdict in this thread is about (the thread's commit first). */
+  commitStates: { commitId: string; message: string; review: ReviewState }[];
   runCards: RunCard[];
 }
 
@@ -185,9 +193,12 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
   if (!t) return null;
   const commit = d.select({ id: commits.id, parentId: commits.parentId, message: commits.message, authorName: users.name, createdAt: commits.createdAt }).from(commits).innerJoin(users, eq(users.id, commits.authorId)).where(eq(commits.id, t.thread.commitId)).get()!;
   const rows = d.select({ c: comments, authorName: users.name }).from(comments).innerJoin(users, eq(users.id, comments.authorId)).where(eq(comments.threadId, id)).orderBy(asc(comments.createdAt), asc(comments.id)).all();
-  const verdictOf = new Map(d.select({ commentId: reviews.commentId, verdict: reviews.verdict }).from(reviews).where(eq(reviews.threadId, id)).all().map((r) => [r.commentId, r.verdict]));
+  const verdictOf = new Map(d.select({ commentId: reviews.commentId, verdict: reviews.verdict, commitId: reviews.commitId }).from(reviews).where(eq(reviews.threadId, id)).all().map((r) => [r.commentId, r]));
   const refs = [...new Set([...(t.thread.runId ? [t.thread.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))])];
-  const badge = commitBadges([commit.id], d).get(commit.id)!;
+  const verdictCommits = [...new Set([commit.id, ...[...verdictOf.values()].map((v) => v.commitId)])];
+  const badgeMap = commitBadges(verdictCommits, d);
+  const badge = badgeMap.get(commit.id)!;
+  const messages = new Map(d.select({ id: commits.id, message: commits.message }).from(commits).where(inArray(commits.id, verdictCommits)).all().map((c) => [c.id, c.message]));
   return {
     thread: { id: t.thread.id, workspaceId: t.thread.workspaceId, networkId: t.thread.networkId, commitId: t.thread.commitId, runId: t.thread.runId, title: t.thread.title, createdAt: t.thread.createdAt.getTime(), authorName: t.authorName },
     workspace: t.ws,
@@ -195,8 +206,9 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
     commit: { ...commit, createdAt: commit.createdAt.getTime() },
     review: badge.review,
     verdicts: badge.verdicts.map((v) => ({ reviewerName: v.reviewerName, verdict: v.verdict, at: v.at })),
-    comments: rows.map((r) => ({ id: r.c.id, authorId: r.c.authorId, authorName: r.authorName, body: r.c.body, html: renderComment(r.c.body), createdAt: r.c.createdAt.getTime(), verdict: verdictOf.get(r.c.id) ?? null })),
+    comments: rows.map((r) => ({ id: r.c.id, authorId: r.c.authorId, authorName: r.authorName, body: r.c.body, html: renderComment(r.c.body), createdAt: r.c.createdAt.getTime(), verdict: verdictOf.get(r.c.id)?.verdict ?? null, verdictCommitId: verdictOf.get(r.c.id)?.commitId ?? null })),
     runCards: runCards(refs, t.thread.workspaceId, d),
+    commitStates: verdictCommits.map((id) => ({ commitId: id, message: messages.get(id) ?? "", review: badgeMap.get(id)!.review })),
   };
 }
 

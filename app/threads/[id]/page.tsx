@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { requireActor } from "@/app/lib/auth";
+import { listCommits } from "@/app/lib/networks";
 import { roleAllows, roleIn } from "@/app/lib/policy";
 import { getThread, getThreadRef } from "@/app/lib/review/threads";
 import { runsOfCommit } from "@/app/lib/review/run-tables";
@@ -26,6 +27,12 @@ export default async function ThreadPage({ params }: Props) {
   const t = getThread(id)!;
   const netPath = `/w/${t.workspace.slug}/n/${t.network.slug}`;
   const runs = runsOfCommit(t.commit.id).map((r) => ({ id: r.id, label: `${r.id.slice(0, 10)} · ${r.analysis ?? "not started"} · ${r.state}` }));
+  // A verdict may be about the thread's commit or a later one (the fix a reply links); default: the newest linked one.
+  const history = listCommits(t.network.id);
+  const threadCommitAt = history.findIndex((c) => c.id === t.commit.id);
+  const eligible = history.slice(0, threadCommitAt + 1).map((c) => ({ id: c.id, label: `${c.id.slice(0, 10)} ${c.message.slice(0, 40)}` }));
+  const linked = new Set(t.runCards.filter((c) => c.found).map((c) => c.commitId));
+  const defaultCommitId = eligible.find((c) => linked.has(c.id))?.id ?? t.commit.id;
   const pinned = t.thread.runId ? t.runCards.find((c) => c.id === t.thread.runId) : undefined;
   return (
     <div className="space-y-6">
@@ -46,6 +53,15 @@ export default async function ThreadPage({ params }: Props) {
             </Link>
           ) : null}
         </p>
+        {t.commitStates.length > 1 ? (
+          <ul className="flex flex-wrap gap-3 text-xs text-stone-600" aria-label="Commits reviewed in this thread">
+            {t.commitStates.map((c) => (
+              <li key={c.commitId} className="flex items-center gap-1">
+                <span className="font-mono">{c.commitId.slice(0, 10)}</span> “{c.message}” <ReviewStateBadge state={c.review} />
+              </li>
+            ))}
+          </ul>
+        ) : null}
         {t.verdicts.length ? (
           <ul className="text-xs text-stone-600" aria-label="Verdicts">
             {t.verdicts.map((v) => (
@@ -68,13 +84,14 @@ export default async function ThreadPage({ params }: Props) {
               <span className="font-medium text-stone-700">{c.authorName}</span>
               <a href={`#${c.id}`} className="hover:underline">{new Date(c.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC</a>
               {c.verdict ? <ReviewStateBadge state={c.verdict} /> : null}
+              {c.verdict && c.verdictCommitId && c.verdictCommitId !== t.commit.id ? <span>on commit <span className="font-mono">{c.verdictCommitId.slice(0, 10)}</span></span> : null}
             </p>
             {c.body ? <CommentBody html={c.html} cards={t.runCards} /> : <p className="text-sm italic text-stone-500">{VERDICT_TEXT[c.verdict!]}</p>}
           </li>
         ))}
       </ol>
       {roleAllows(role, "thread.comment") ? (
-        <CommentForm threadId={t.thread.id} canSignOff={roleAllows(role, "commit.signoff")} runs={runs} />
+        <CommentForm threadId={t.thread.id} canSignOff={roleAllows(role, "commit.signoff")} runs={runs} commits={eligible} defaultCommitId={defaultCommitId} />
       ) : (
         <p className="text-sm text-stone-500">As a {role} you can read this thread but not reply.</p>
       )}

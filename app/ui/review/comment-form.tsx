@@ -7,7 +7,21 @@ import { postJson } from "./send";
 
 type Verdict = "signed_off" | "changes_asked" | null;
 
-export function CommentForm({ threadId, canSignOff, runs }: { threadId: string; canSignOff: boolean; runs: { id: string; label: string }[] }) {
+export function CommentForm({
+  threadId,
+  canSignOff,
+  runs,
+  commits = [],
+  defaultCommitId,
+}: {
+  threadId: string;
+  canSignOff: boolean;
+  runs: { id: string; label: string }[];
+  /** Commits a verdict may be about (the thread's and later ones of the network). */
+  commits?: { id: string; label: string }[];
+  defaultCommitId?: string;
+}) {
+  const [commitId, setCommitId] = useState(defaultCommitId ?? commits[0]?.id ?? "");
   const router = useRouter();
   const [body, setBody] = useState("");
   const [busy, setBusy] = useState(false);
@@ -19,7 +33,7 @@ export function CommentForm({ threadId, canSignOff, runs }: { threadId: string; 
     setError(null);
     setNote(null);
     try {
-      const r = await postJson<{ notified: string[]; mailErrors: string[] }>(`/api/threads/${threadId}/comments`, { body, verdict });
+      const r = await postJson<{ notified: string[]; mailErrors: string[] }>(`/api/threads/${threadId}/comments`, { body, verdict, commitId: verdict && commitId ? commitId : null });
       setBody("");
       if (r.notified.length) setNote(`Notified ${r.notified.map((h) => "@" + h).join(", ")} by e-mail.`);
       if (r.mailErrors.length) setError(`Comment saved, but e-mail failed: ${r.mailErrors.join("; ")}`);
@@ -75,6 +89,15 @@ export function CommentForm({ threadId, canSignOff, runs }: { threadId: string; 
         </button>
         {canSignOff ? (
           <>
+            {commits.length > 1 ? (
+              <select aria-label="Verdict about commit" value={commitId} onChange={(e) => setCommitId(e.target.value)} className="rounded border border-stone-300 px-2 py-1 font-mono text-sm">
+                {commits.map((c) => (
+                  <option key={c.id} value={c.id}>
+                    {c.label}
+                  </option>
+                ))}
+              </select>
+            ) : null}
             <button type="button" disabled={busy} onClick={() => void send("changes_asked")} className="rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50 disabled:opacity-50">
               Ask for changes
             </button>

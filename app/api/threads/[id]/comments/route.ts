@@ -9,12 +9,13 @@ import { VERDICTS } from "@/db/schema";
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
 
-const Body = z.object({ body: z.string().max(MAX_COMMENT_LENGTH), verdict: z.enum(VERDICTS).nullish() });
+const Body = z.object({ body: z.string().max(MAX_COMMENT_LENGTH), verdict: z.enum(VERDICTS).nullish(), commitId: z.string().min(1).nullish() });
 
 /**
  * POST /api/threads/[id]/comments {body, verdict?} (thread.comment; with a
  * verdict — "signed_off" or "changes_asked" — also commit.signoff): adds a
- * comment and sends the mention e-mails. 201.
+ * comment and sends the mention e-mails. `commitId` names the commit the
+ * verdict is about (default the thread's; a later fix of the same network). 201.
  */
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
@@ -22,7 +23,7 @@ export function POST(request: Request, ctx: Ctx) {
     const ref = getThreadRef((await ctx.params).id);
     const { actor } = await guard(request, "thread.comment", ref?.workspaceId);
     if (input.verdict) authorize(actor, "commit.signoff", ref!.workspaceId);
-    const r = await addComment({ threadId: ref!.id, body: input.body, verdict: input.verdict ?? null, authorId: actor.userId }, sendMail);
+    const r = await addComment({ threadId: ref!.id, body: input.body, verdict: input.verdict ?? null, verdictCommitId: input.commitId ?? null, authorId: actor.userId }, sendMail);
     return Response.json(r, { status: 201 });
   });
 }
