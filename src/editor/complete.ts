@@ -2,7 +2,8 @@
  * Completion for Rill, driven by the syntax tree: the slot at the cursor is
  * found from the token before it (`resolveInner(pos, -1)`) and its ancestors,
  * and the names offered are collected from the tree of the current document
- * (cheap: one pass over statements, no elaboration). Names the elaboration
+ * (no elaboration; statements are read once per reused subtree, so an edit
+ * costs only the subtrees it touched). Names the elaboration
  * produced (loop-expanded nodes such as x1..x64) are added when a linter run
  * has published them through `elaboratedNames`.
  */
