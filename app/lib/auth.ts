@@ -110,6 +110,7 @@ export async function startSession(userId: string): Promise<void> {
   const jar = await cookies();
   const previous = jar.get(l.sessionCookieName)?.value;
   if (previous) await l.invalidateSession(previous);
+  await l.deleteExpiredSessions();
   const session = await l.createSession(userId, {});
   const cookie = l.createSessionCookie(session.id);
   jar.set(cookie.name, cookie.value, cookie.attributes);

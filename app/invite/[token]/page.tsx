@@ -6,7 +6,8 @@ import { PASSWORD_MIN } from "@/app/lib/passwords";
 import { AcceptForm } from "./accept-form";
 
 export const dynamic = "force-dynamic";
-export const metadata: Metadata = { title: "Invitation", robots: { index: false } };
+// The token is in the URL: never send it on as a Referer.
+export const metadata: Metadata = { title: "Invitation", robots: { index: false }, referrer: "no-referrer" };
 
 const HEADINGS = {
   unknown: "Invitation not found",
