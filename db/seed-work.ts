@@ -41,9 +41,9 @@ export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; r
   let addedRuns = 0;
   const folder = examplesFolder();
   for (const demo of DEMO_NETWORKS) {
-    const file = path.join(folder, demo.file);
-    if (!fs.existsSync(file)) continue;
-    const text = fs.readFileSync(file, "utf8");
+    const file = path.join(/*turbopackIgnore: true*/ folder, demo.file);
+    if (!fs.existsSync(/*turbopackIgnore: true*/ file)) continue;
+    const text = fs.readFileSync(/*turbopackIgnore: true*/ file, "utf8");
     let network = networkBySlug(workspaceId, slugify(demo.name), db);
     if (!network) {
       if (demo.earlier) {
