@@ -40,7 +40,9 @@ export function formatEng(value: number, unit = "", digits = 3): string {
   }
   const prefix = PREFIXES.find(([e]) => e === exp3);
   if (!prefix) return `${sign}${a.toExponential(digits - 1)}${sep}${unit}`;
-  return `${sign}${trimZeros(mantissa.toPrecision(digits))}${sep}${prefix[1]}${unit}`;
+  // toPrecision would switch to e-notation for a mantissa like 783 at 2 digits: fix the decimals instead.
+  const decimals = Math.max(0, digits - (Math.floor(Math.log10(mantissa)) + 1));
+  return `${sign}${trimZeros(mantissa.toFixed(decimals))}${sep}${prefix[1]}${unit}`;
 }
 
 /** "12.30" → "12.3", "1.00" → "1", "120" stays. */

@@ -16,6 +16,11 @@ describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th
   ])("%s %s → %s", (v, unit, text) => {
     expect(formatEng(v, unit)).toBe(text);
   });
+  it("rounds to fewer digits than the mantissa has without e-notation", () => {
+    expect(formatEng(7.83e-22, "A", 2)).toBe("780 yA");
+    expect(formatEng(0.1234, "V", 2)).toBe("120 mV");
+    expect(formatEng(1.5, "V", 1)).toBe("2 V");
+  });
   it("shows unknown as a dash and infinities as ∞", () => {
     expect(formatEng(NaN, "A")).toBe("—");
     expect(formatEng(Infinity, "V")).toBe("∞ V");
