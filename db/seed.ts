@@ -3,6 +3,7 @@ import { hashPasswordSync } from "../app/lib/passwords";
 import type { DB } from "./index";
 import { memberships, users, workspaces, type Role } from "./schema";
 import { seedWork } from "./seed-work";
+import { seedReview } from "./seed-review";
 
 /**
  * The password of every demo account: documented in the README ("Demo
@@ -53,6 +54,7 @@ export function seedDemo(db: DB): { users: number; workspaces: number } {
     }
   });
   seedWork(db); // the workbench's demo networks, commits and finished runs (db/seed-work.ts)
+  seedReview(db); // the review demo: a thread with changes asked, the fix and its run, the sign-off (db/seed-review.ts)
   const count = (t: typeof users | typeof workspaces) => db.select({ n: sql<number>`count(*)` }).from(t).get()!.n;
   return { users: count(users), workspaces: count(workspaces) };
 }

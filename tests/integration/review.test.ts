@@ -144,6 +144,34 @@ describe("measurements", () => {
     }
     expect(err?.status).toBe(422);
     expect(err?.message).toBe('row 3, column 2 (ratio): "half" is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)');
-    expect(db.$client.prepare("select count(*) as n from measurements").get()).toEqual({ n: 0 });
+    expect(db.$client.prepare("select count(*) as n from measurements where network_id = ?").get(network.id)).toEqual({ n: 0 });
+  });
+});
+
+describe("demo review seed", () => {
+  it("tells the story once: changes asked, the fix with its run linked, the sign-off; bench data overlays the fix run", async () => {
+    const db = fresh(); // seedDemo ran once
+    const { seedDemo: again } = await import("@/db/seed");
+    again(db); // and a second time changes nothing
+    const { DEMO_THREAD_ID } = await import("@/db/seed-review");
+    const view = getThread(DEMO_THREAD_ID, db)!;
+    expect(view.comments.map((c) => [c.authorName, c.verdict])).toEqual([
+      ["Ruth Calder", "changes_asked"],
+      ["Teo Brandt", null],
+      ["Ruth Calder", "signed_off"],
+    ]);
+    expect(view.commitStates.map((c) => c.review)).toEqual(["changes_asked", "signed_off"]);
+    const fixCard = view.runCards.find((c) => c.commitId === view.commitStates[1].commitId)!;
+    expect(fixCard).toMatchObject({ found: true, state: "done" });
+    const badge = commitBadges([view.commitStates[1].commitId], db).get(view.commitStates[1].commitId)!;
+    expect(badge.diffs[0].beyond).toBeGreaterThan(0);
+    const ms = db.$client.prepare("select id, commit_id as commitId from measurements").all() as { id: string; commitId: string }[];
+    expect(ms).toHaveLength(1);
+    const rowRun = db.$client.prepare("select id from runs where commit_id = ? and state = 'done'").get(ms[0].commitId) as { id: string };
+    const o = overlay(ms[0].id, rowRun.id, {}, db);
+    expect(o.series[0].against).toBe("i{k}");
+    expect(o.series[0].agreement.n).toBe(22);
+    expect(o.series[0].agreement.rmsLogRatio).toBeGreaterThan(0.01);
+    expect(o.series[0].agreement.rmsLogRatio).toBeLessThan(0.2);
   });
 });

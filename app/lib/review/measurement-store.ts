@@ -123,7 +123,8 @@ export function overlay(measurementId: string, runId: string, opts: { xParam?: s
   if (!m || !run || m.workspaceId !== run.workspaceId) throw new RequestError(404, "measurement or run not found");
   const layout = parseLayout(run.layout);
   if (!layout) throw new RequestError(422, "the run has no results yet");
-  if (layout.sweeps.length !== 1) throw new RequestError(422, `the run sweeps ${layout.sweeps.length} params; an overlay needs a run that sweeps exactly one`);
+  if (layout.sweeps.length === 0) return profileOverlay(m, runId, layout, opts, d);
+  if (layout.sweeps.length !== 1) throw new RequestError(422, `the run sweeps ${layout.sweeps.length} params; an overlay needs a run that sweeps one param, or an operating point with indexed probes`);
   const sweep = layout.sweeps[0];
   const xParam = opts.xParam ?? m.x.name;
   if (sweep.param !== xParam) throw new RequestError(422, `the run sweeps ${sweep.param}, the measurement's x is ${xParam}; pick a run that sweeps ${xParam}`);
@@ -170,4 +171,31 @@ export function overlay(measurementId: string, runId: string, opts: { xParam?: s
     return { name: s.name, unit: s.unit, against, measured: { x: m.x.values, y: s.values }, simulated: curve, agreement: compareToSimulation(m.x.values, s.values, curve) };
   });
   return { measurementId, runId, x: { param: sweep.param, unit: m.x.unit }, series };
+}
+
+/**
+ * A profile: an operating-point run whose probes are indexed (`i0`, `i1`, …,
+ * as a `for` loop writes them) against a measurement whose x is that index
+ * (unit `1`), e.g. the output current along a row of taps. Series `i` (or
+ * `against[series]`) is compared with probes `i{k}` at x = k; mismatch samples are averaged.
+ */
+function profileOverlay(m: MeasurementView, runId: string, layout: NonNullable<ReturnType<typeof parseLayout>>, opts: { against?: Record<string, string> }, d: Q): Overlay {
+  if (m.x.dimension !== "1") throw new RequestError(422, `the run is an operating point; its x would be a tap index, but the measurement's x (${m.x.name}) is in ${m.x.unit}; use [1] for an index column`);
+  const rows = d.select({ probes: runPoints.probes }).from(runPoints).where(eq(runPoints.runId, runId)).all();
+  if (rows.length === 0) throw new RequestError(422, "the run has no stored points");
+  const means = new Float64Array(layout.probes.length);
+  for (const r of rows) {
+    const c = new Uint8Array(r.probes.byteLength);
+    c.set(r.probes);
+    new Float64Array(c.buffer).forEach((v, j) => (means[j] += v / rows.length));
+  }
+  const series = m.series.map((s) => {
+    const against = opts.against?.[s.name] ?? s.name;
+    const pattern = new RegExp(`^${against.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}(\\d+)$`);
+    const pts = layout.probes.map((p, j) => ({ k: pattern.exec(p)?.[1], j })).filter((p) => p.k !== undefined).map((p) => ({ x: Number(p.k), y: means[p.j] })).sort((a, b) => a.x - b.x);
+    if (pts.length < 2) throw new RequestError(422, `series ${s.name}: the run has no indexed probes ${against}0, ${against}1, …`);
+    const curve = { x: pts.map((p) => p.x), y: pts.map((p) => p.y) };
+    return { name: s.name, unit: s.unit, against: `${against}{k}`, measured: { x: m.x.values, y: s.values }, simulated: curve, agreement: compareToSimulation(m.x.values, s.values, curve) };
+  });
+  return { measurementId: m.id, runId, x: { param: m.x.name, unit: m.x.unit }, series };
 }
