@@ -1,0 +1,123 @@
+import fs from "node:fs";
+import { expect, test, type Page } from "@playwright/test";
+
+/**
+ * The workbench in the browser, as a demo designer: open a network, edit it,
+ * see a diagnostic appear and disappear, commit, run a sweep, watch the
+ * progress bar finish, read the plot and the table, export CSV. Screenshots
+ * go to test-results/browser/workbench-*.png.
+ */
+
+const ROW = `network browser_row
+param vh = 0.72
+rail vdd = 1.8
+rail gnd = 0
+rail gh = vh
+rail gv = 0.65
+for k in 0..14 {
+  nfet lat{k} gate=gh source=x{k} drain=x{k+1}
+}
+for k in 0..15 {
+  nfet out{k} gate=gv source=x{k} drain=vdd
+}
+inject light from=x0 to=gnd value=1n
+probe far = current(out15) / current(out0)
+sweep vh from 0.6 to 0.8 points 400
+`;
+
+const shot = (page: Page, name: string) => page.screenshot({ path: `test-results/browser/workbench-${name}.png`, fullPage: true });
+
+async function signIn(page: Page) {
+  await page.goto("/signin");
+  await page.getByLabel("E-mail").fill("designer@larkspur.example");
+  await page.getByLabel("Password").fill("larkspur-demo");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
+}
+
+/** Replaces the editor's whole text (insertText bypasses completion and bracket closing). */
+async function setText(page: Page, text: string) {
+  await page.locator(".cm-content").click();
+  await page.keyboard.press("ControlOrMeta+a");
+  await page.keyboard.insertText(text);
+}
+
+test("edit, commit, run a sweep, read the plot and the table, export CSV", async ({ page }) => {
+  test.setTimeout(120_000);
+  const errors: string[] = [];
+  page.on("pageerror", (e) => errors.push(e.message));
+  await signIn(page);
+
+  // the demo workspace lists the seeded networks; the seeded runs are finished
+  await page.goto("/w/lm64-edge-row");
+  const list = page.getByRole("list", { name: "Networks" });
+  await expect(list.getByRole("link", { name: "LM-64 edge row", exact: true })).toBeVisible();
+  await expect(list.getByRole("link", { name: /Newest run of Smoothing grid .*: done/ })).toBeVisible();
+  await shot(page, "workspace");
+
+  // a new network
+  await page.getByLabel("New network name").fill("Browser row");
+  await page.getByRole("button", { name: "Create" }).click();
+  await expect(page).toHaveURL(/\/w\/lm64-edge-row\/n\/browser-row(-\d+)?$/);
+  await expect(page.locator(".cm-content")).toBeVisible();
+
+  // a diagnostic appears, then disappears
+  await setText(page, `${ROW}nfet stray gate=nowhere source=x3 drain=vdd\n`);
+  await expect(page.locator('[data-slot="diagnostic-count"]')).toHaveText(/^[1-9]\d* errors?/);
+  await expect(page.getByRole("list", { name: "Diagnostics" })).toContainText("line 16:17 error: node 'nowhere'");
+  await expect(page.locator(".cm-lintRange-error").first()).toBeVisible();
+  await shot(page, "diagnostic");
+  await setText(page, ROW);
+  await expect(page.locator('[data-slot="diagnostic-count"]')).toHaveText("no problems");
+  await expect(page.locator('[data-slot="dirty"]')).toBeVisible();
+
+  // commit with the keyboard: the message first, then Ctrl+S in the editor
+  await page.getByLabel("Commit message").fill("Sixteen taps, lateral gate sweep");
+  await page.locator(".cm-content").click();
+  await page.keyboard.press("ControlOrMeta+s");
+  await expect(page.getByRole("status")).toHaveText(/^Committed [0-9a-f]{8}\.$/);
+  await expect(page.getByRole("list", { name: "Commits" })).toContainText("Sixteen taps, lateral gate sweep");
+  await expect(page.locator('[data-slot="dirty"]')).toHaveCount(0);
+
+  // run with the keyboard; the progress bar fills and the run finishes
+  await page.locator(".cm-content").click();
+  await page.keyboard.press("ControlOrMeta+Enter");
+  const runs = page.getByRole("list", { name: "Runs" });
+  await expect(runs.locator("[data-state]").first()).toBeVisible();
+  await shot(page, "running");
+  await expect(runs.locator('[data-state="done"]')).toBeVisible({ timeout: 60_000 });
+  await expect(runs).toContainText("400 points");
+
+  // the run page: progress complete, caution, plot, table
+  await runs.getByRole("link").first().click();
+  await expect(page).toHaveURL(/\/runs\/r_[a-z2-7]+$/);
+  const bar = page.getByRole("progressbar", { name: "Run progress" });
+  await expect(bar).toHaveAttribute("aria-valuenow", "400");
+  await expect(bar).toHaveAttribute("aria-valuemax", "400");
+  await expect(page.getByText("Results are model estimates.")).toBeVisible();
+  await expect(page.locator('[data-slot="solver-method"]')).toContainText("one sparse symmetric solve");
+  await expect(page.getByRole("img", { name: "far over vh" }).locator("canvas").first()).toBeVisible();
+  const table = page.getByRole("table", { name: "Probes by point" });
+  await expect(table.locator("tbody tr")).toHaveCount(25);
+  await expect(page.getByText("400 rows")).toBeVisible();
+  await shot(page, "run-probes");
+
+  // sort by the probe, descending: the strongest coupling (largest vh) comes first
+  const farHeader = table.locator("th", { has: page.getByRole("button", { name: "far" }) });
+  while ((await farHeader.getAttribute("aria-sort")) !== "descending") await table.getByRole("button", { name: "far" }).click();
+  await expect(table.locator("tbody tr").first().locator("td").nth(1)).toHaveText("800m");
+
+  // the spatial profile of the output currents
+  await page.getByRole("tab", { name: "Profile" }).click();
+  await expect(page.getByRole("img", { name: /along the index/ }).locator("canvas").first()).toBeVisible();
+  await shot(page, "run-profile");
+
+  // export CSV
+  const download = page.waitForEvent("download");
+  await page.getByRole("link", { name: "Probes CSV" }).click();
+  const file = await (await download).path();
+  const csv = fs.readFileSync(file, "utf8").trim().split("\r\n");
+  expect(csv[0]).toBe("point,sample,vh,temp,far,method,iterations,residual_A,error");
+  expect(csv).toHaveLength(401);
+  expect(errors).toEqual([]);
+});
