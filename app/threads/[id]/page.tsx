@@ -58,6 +58,11 @@ export default async function ThreadPage({ params }: Props) {
             {t.commitStates.map((c) => (
               <li key={c.commitId} className="flex items-center gap-1">
                 <span className="font-mono">{c.commitId.slice(0, 10)}</span> “{c.message}” <ReviewStateBadge state={c.review} />
+                {c.commitId !== t.commit.id ? (
+                  <Link href={`${netPath}/compare?from=${t.commit.id}&to=${c.commitId}`} className="text-moss-700 hover:underline">
+                    Compare {t.commit.id.slice(0, 10)} → {c.commitId.slice(0, 10)}
+                  </Link>
+                ) : null}
               </li>
             ))}
           </ul>

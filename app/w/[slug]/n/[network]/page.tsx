@@ -4,6 +4,7 @@ import { notFound } from "next/navigation";
 import { getCommit, listCommits, networkBySlug } from "@/app/lib/networks";
 import { workspacePage } from "@/app/lib/pages";
 import { NetworkWorkbench } from "@/app/ui/workbench/network-workbench";
+import { ReviewPanel } from "@/app/ui/review/review-panel";
 
 export const dynamic = "force-dynamic";
 
@@ -40,6 +41,8 @@ export default async function NetworkPage({ params, searchParams }: Props) {
         canWrite={can("network.write")}
         canRun={can("run.start")}
       />
+      {/* review: threads, sign-off state, moved values, measurements (app/ui/review) */}
+      <ReviewPanel workspaceSlug={workspace.slug} network={network} canMeasure={can("measurement.write")} />
     </div>
   );
 }

@@ -1,0 +1,76 @@
+import { expect, test, type Page } from "@playwright/test";
+
+/**
+ * Review in the browser, on the seeded demo thread (db/seed-review.ts): the
+ * reviewer opens the thread from its link, follows the run card to the run,
+ * compares the fix with its parent, and signs off; a viewer sees the thread
+ * without the sign-off buttons. Screenshots go to test-results/browser/review-*.png.
+ */
+const THREAD = "/threads/t_demo_divider_ratio";
+const shot = (page: Page, name: string) => page.screenshot({ path: `test-results/browser/review-${name}.png`, fullPage: true });
+
+async function signIn(page: Page, email: string) {
+  await page.goto(`/signin?next=${encodeURIComponent(THREAD)}`);
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill("larkspur-demo");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
+}
+
+test("a reviewer opens a thread from its link, follows the run card, compares two commits, signs off", async ({ page }) => {
+  const errors: string[] = [];
+  page.on("pageerror", (e) => errors.push(e.message));
+  await signIn(page, "reviewer@larkspur.example");
+
+  await page.goto(THREAD);
+  await expect(page.getByRole("heading", { name: "Split ratio at dv = 20 mV is short of 2:1" })).toBeVisible();
+  const comments = page.getByRole("list", { name: "Comments" }).getByRole("listitem");
+  await expect(comments).toHaveCount(3);
+  await expect(comments.nth(0).locator("[data-review=changes_asked]")).toBeVisible();
+  await expect(comments.nth(2).locator("[data-review=signed_off]")).toBeVisible();
+  // the run reference in the designer's reply became a card with the run's state and probes
+  const card = comments.nth(1).locator("[data-run-card]");
+  await expect(card).toBeVisible();
+  await expect(card).toContainText("done");
+  await expect(card).toContainText("ratio =");
+  await shot(page, "thread");
+
+  // follow the run card to the run's permalink
+  const runId = await card.getAttribute("data-run-card");
+  await card.click();
+  await expect(page).toHaveURL(new RegExp(`/runs/${runId}$`));
+  await page.goBack();
+
+  // compare the questioned commit with the fix: the changed line and the values that moved
+  // the thread is on the commit the reviewer questioned; the header links the comparison with the fix
+  await page.getByRole("link", { name: /^Compare \w+ → \w+$/ }).click();
+  await expect(page).toHaveURL(/\/compare\?from=.*&to=/);
+  const fixRunCompare = page.getByRole("table", { name: "Side-by-side diff" });
+  await expect(fixRunCompare.locator('[data-line="changed"]')).toContainText("26mV");
+  await expect(page.getByTestId("moved-summary")).toContainText("values moved beyond tolerance");
+  const ratioRow = page.getByRole("table", { name: "Results diff" }).locator('tr[data-beyond="1"]', { hasText: "ratio" }).first();
+  await expect(ratioRow).toBeVisible();
+  await page.getByRole("link", { name: "Unified view" }).click();
+  await expect(page.getByRole("table", { name: "Unified diff" }).locator('[data-line="added"]')).toContainText("26mV");
+  await shot(page, "compare");
+
+  // back to the thread, sign off the fix with a comment
+  await page.goto(THREAD);
+  await page.getByLabel("Reply").fill("Checked the compare page once more: only the divider moved.");
+  await page.getByRole("button", { name: "Sign off" }).click();
+  await expect(comments).toHaveCount(4);
+  await expect(comments.nth(3)).toContainText("Checked the compare page once more");
+  await expect(comments.nth(3).locator("[data-review=signed_off]")).toBeVisible();
+  await shot(page, "signed-off");
+  expect(errors).toEqual([]);
+});
+
+test("a viewer reads the thread without sign-off buttons; an unknown thread is a 404", async ({ page }) => {
+  await signIn(page, "viewer@larkspur.example");
+  await page.goto(THREAD);
+  await expect(page.getByRole("heading", { name: "Split ratio at dv = 20 mV is short of 2:1" })).toBeVisible();
+  await expect(page.getByRole("button", { name: "Sign off" })).toHaveCount(0);
+  await expect(page.getByText("you can read this thread but not reply")).toBeVisible();
+  const res = await page.goto("/threads/t_no_such_thread");
+  expect(res?.status()).toBe(404);
+});
