@@ -13,6 +13,7 @@ import type { Network } from "@/src/lang/index";
 import { NFET } from "@/src/lang/index";
 import { runPoints, runs } from "@/db/schema";
 import type { Q } from "./networks";
+import { encodePoint, type PointHeader } from "./point-codec";
 
 /** Names of everything a point stores, in the order of the blob columns. */
 export interface RunLayout {
@@ -305,4 +306,25 @@ export function* eachPoint(d: Q, runId: string): Generator<PointRecord> {
     const p = readPoint(d, runId, point);
     if (p) yield p;
   }
+}
+
+/** One point's stored blobs in the binary form of app/lib/point-codec.ts, or null when it is not stored. */
+export function pointBinary(d: Q, runId: string, layout: RunLayout, point: number): Uint8Array<ArrayBuffer> | null {
+  const r = d
+    .select()
+    .from(runPoints)
+    .where(and(eq(runPoints.runId, runId), eq(runPoints.point, point)))
+    .get();
+  if (!r) return null;
+  const header: PointHeader = {
+    point: r.point,
+    sample: r.sample,
+    grid: gridIndex(layout, r.point).indices,
+    method: r.method,
+    iterations: r.iterations,
+    residual: r.residual,
+    error: r.error,
+    counts: { nodes: layout.nodes.length, rails: layout.rails.length, probes: layout.probes.length, params: layout.params.length, devices: layout.devices.length },
+  };
+  return encodePoint(header, [r.nodes, r.rails, r.probes, r.params, r.current, r.ic, r.saturated]);
 }

@@ -14,6 +14,7 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { DB } from "@/db";
 import { runs } from "@/db/schema";
+import { decodePoint } from "@/app/lib/point-codec";
 import { buildAccountsFixture, type AccountsFixture, type Who } from "../helpers/accounts";
 import { SITE } from "../helpers/request-context";
 
@@ -150,6 +151,15 @@ describe("runs through the API", () => {
     expect(p.devices.names).toEqual(["m1", "m2"]);
     expect(p.devices.current[0] + p.devices.current[1]).toBeCloseTo(40e-9, 15);
     expect(p.probes.value[0]).toBeCloseTo(s.probeValues[0][8], 12);
+    // the binary form the run page reads carries the same numbers; the names come once, from view=layout
+    const mod = await import("@/app/api/runs/[id]/results/route");
+    const binRes = await mod.GET(new Request(`${SITE}/api/runs/${run.id}/results?view=point&point=8&format=binary`, { headers: { cookie: fixture.actors.viewer!.cookie } }), { params: Promise.resolve({ id: run.id }) });
+    expect(binRes.headers.get("content-type")).toBe("application/octet-stream");
+    const bin = decodePoint(await binRes.arrayBuffer());
+    expect(Array.from(bin.current)).toEqual(p.devices.current);
+    expect(bin.probes[0]).toBe(p.probes.value[0]);
+    const layout = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=layout`, { id: run.id });
+    expect((layout.json as { layout: { devices: string[] } }).layout.devices).toEqual(["m1", "m2"]);
     expect((await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=point&point=99`, { id: run.id })).status).toBe(404);
     expect((await call("outsider", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, { id: run.id })).status).toBe(404);
 

@@ -27,3 +27,10 @@ export async function getJson<T>(url: string): Promise<T> {
 export async function sendJson<T>(method: "POST" | "PATCH", url: string, body: unknown): Promise<T> {
   return parse<T>(await fetch(url, { method, headers: { "content-type": "application/json", accept: "application/json" }, body: JSON.stringify(body) }));
 }
+
+/** SWR fetcher for binary answers (a point of a run): the body's bytes, or ApiError with the server's message. */
+export async function getBytes(url: string): Promise<ArrayBuffer> {
+  const res = await fetch(url);
+  if (!res.ok) await parse(res);
+  return res.arrayBuffer();
+}

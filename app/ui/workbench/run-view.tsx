@@ -12,10 +12,11 @@ import { useMemo, useState } from "react";
 import useSWR from "swr";
 import { formatDuration, formatEng, formatNumber } from "@/app/lib/format";
 import { indexedGroups } from "@/app/lib/indexed-names";
-import type { PointView, SeriesView } from "@/app/lib/results";
+import { decodePoint, pointData, type PointData } from "@/app/lib/point-codec";
+import type { RunLayout, SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
 import { DataTable } from "./data-table";
-import { getJson, sendJson } from "./fetch";
+import { getBytes, getJson, sendJson } from "./fetch";
 import { HeatMap, Histogram, LinePlot, type Curve } from "./plots";
 import { ModelCaution, ProgressBar, RunStateBadge } from "./run-state";
 
@@ -198,7 +199,9 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
   const [sample, setSample] = useState(0);
   const point = Math.min(gridPoint * samples + sample, Math.max(0, series.point.length - 1));
   const [tab, setTab] = useState<Tab>(series.sweeps.length ? "probes" : "operating");
-  const pv = useSWR<{ point: PointView }>(`/api/runs/${runId}/results?view=point&point=${point}`, getJson, { keepPreviousData: true });
+  const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, { revalidateOnFocus: false });
+  const bytes = useSWR<ArrayBuffer>(`/api/runs/${runId}/results?view=point&point=${point}&format=binary`, getBytes, { keepPreviousData: true, revalidateOnFocus: false });
+  const current = useMemo(() => (layout.data && bytes.data ? pointData(layout.data.layout, decodePoint(bytes.data)) : undefined), [layout.data, bytes.data]);
   const tabs: [Tab, string][] = [
     ["probes", "Probes"],
     ["operating", "Operating point"],
@@ -207,7 +210,6 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
     ["map", "Map"],
   ];
   if (series.mismatch) tabs.push(["spread", "Spread"]);
-  const current = pv.data?.point;
   return (
     <section aria-label="Results" className="space-y-4">
       {run.pointsTotal > 1 ? (
@@ -229,7 +231,7 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
           ) : null}
           {current ? (
             <span className="tabular text-stone-700" data-slot="point-params">
-              {series.sweeps.map((s) => `${s.param} = ${formatEng(current.params[s.param] ?? NaN, paramUnit(s.param), 4)}`).join(", ")}
+              {series.sweeps.map((s) => `${s.param} = ${formatEng(current.params[s.param], paramUnit(s.param), 4)}`).join(", ")}
               {samples > 1 ? ` · sample ${current.sample}` : ""}
             </span>
           ) : null}
@@ -362,7 +364,7 @@ function ProbesPanel({ series }: { series: SeriesView }) {
   );
 }
 
-function OperatingPanel({ point }: { point: PointView }) {
+function OperatingPanel({ point }: { point: PointData }) {
   const nodes = useMemo(() => point.nodes.names.map((name, k) => ({ name, rail: point.nodes.isRail[k], voltage: point.nodes.voltage[k] })), [point]);
   const rails = useMemo(() => point.rails.names.map((name, k) => ({ name, current: point.rails.current[k] })), [point]);
   const probes = useMemo(() => point.probes.names.map((name, k) => ({ name, value: point.probes.value[k] })), [point]);
@@ -370,21 +372,21 @@ function OperatingPanel({ point }: { point: PointView }) {
     () => [
       { id: "name", header: "node", accessorKey: "name" },
       { id: "kind", header: "kind", accessorFn: (r) => (r.rail ? "rail" : "internal") },
-      { id: "voltage", header: "voltage", accessorFn: (r) => r.voltage ?? NaN, cell: (c) => formatEng(c.getValue<number>(), "V", 4) },
+      { id: "voltage", header: "voltage", accessorFn: (r) => r.voltage, cell: (c) => formatEng(c.getValue<number>(), "V", 4) },
     ],
     [],
   );
   const railCols = useMemo<ColumnDef<(typeof rails)[number]>[]>(
     () => [
       { id: "name", header: "rail", accessorKey: "name" },
-      { id: "current", header: "current delivered", accessorFn: (r) => r.current ?? NaN, cell: (c) => formatEng(c.getValue<number>(), "A", 4) },
+      { id: "current", header: "current delivered", accessorFn: (r) => r.current, cell: (c) => formatEng(c.getValue<number>(), "A", 4) },
     ],
     [],
   );
   const probeCols = useMemo<ColumnDef<(typeof probes)[number]>[]>(
     () => [
       { id: "name", header: "probe", accessorKey: "name" },
-      { id: "value", header: "value", accessorFn: (r) => r.value ?? NaN, cell: (c) => formatEng(c.getValue<number>(), "", 5) },
+      { id: "value", header: "value", accessorFn: (r) => r.value, cell: (c) => formatEng(c.getValue<number>(), "", 5) },
     ],
     [],
   );
@@ -413,14 +415,14 @@ function OperatingPanel({ point }: { point: PointView }) {
   );
 }
 
-function region(ic: number | null): string {
-  if (ic === null) return "—";
+function region(ic: number): string {
+  if (Number.isNaN(ic)) return "—";
   if (ic < WEAK_IC) return "weak";
   if (ic <= STRONG_IC) return "moderate";
   return "strong";
 }
 
-function DevicesPanel({ point }: { point: PointView }) {
+function DevicesPanel({ point }: { point: PointData }) {
   const rows = useMemo(
     () =>
       point.devices.names.map((name, k) => ({
@@ -433,13 +435,13 @@ function DevicesPanel({ point }: { point: PointView }) {
     [point],
   );
   const [onlyFlagged, setOnlyFlagged] = useState(false);
-  const shown = useMemo(() => (onlyFlagged ? rows.filter((r) => !r.saturated || (r.ic !== null && r.ic > WEAK_IC)) : rows), [rows, onlyFlagged]);
+  const shown = useMemo(() => (onlyFlagged ? rows.filter((r) => !r.saturated || r.ic > WEAK_IC) : rows), [rows, onlyFlagged]);
   const cols = useMemo<ColumnDef<(typeof rows)[number]>[]>(
     () => [
       { id: "name", header: "device", accessorKey: "name" },
       { id: "type", header: "type", accessorKey: "type" },
-      { id: "current", header: "current", accessorFn: (r) => r.current ?? NaN, cell: (c) => formatEng(c.getValue<number>(), "A", 4) },
-      { id: "ic", header: "inversion coeff.", accessorFn: (r) => r.ic ?? NaN, cell: (c) => formatNumber(c.getValue<number>(), 3) },
+      { id: "current", header: "current", accessorFn: (r) => r.current, cell: (c) => formatEng(c.getValue<number>(), "A", 4) },
+      { id: "ic", header: "inversion coeff.", accessorFn: (r) => r.ic, cell: (c) => formatNumber(c.getValue<number>(), 3) },
       { id: "region", header: "region", accessorFn: (r) => region(r.ic) },
       { id: "saturated", header: "saturated", accessorFn: (r) => (r.saturated ? "yes" : "no") },
     ],
@@ -450,12 +452,12 @@ function DevicesPanel({ point }: { point: PointView }) {
       <label className="flex items-center gap-2 text-sm">
         <input type="checkbox" checked={onlyFlagged} onChange={(e) => setOnlyFlagged(e.target.checked)} /> only devices outside weak inversion or not saturated
       </label>
-      <DataTable label="Devices" rows={shown} columns={cols} filterPlaceholder="Filter devices" rowClass={(r) => (!r.saturated || (r.ic !== null && r.ic > WEAK_IC) ? "bg-amber-50" : "")} />
+      <DataTable label="Devices" rows={shown} columns={cols} filterPlaceholder="Filter devices" rowClass={(r) => (!r.saturated || r.ic > WEAK_IC ? "bg-amber-50" : "")} />
     </div>
   );
 }
 
-function ProfilePanel({ point }: { point: PointView }) {
+function ProfilePanel({ point }: { point: PointData }) {
   const groups = useMemo(() => {
     const nodes = indexedGroups(point.nodes.names).profiles.map((p) => ({ key: `node:${p.stem}`, label: `voltage(${p.stem}·)`, unit: "V", index: p.index, values: p.at.map((k) => point.nodes.voltage[k]) }));
     const devs = indexedGroups(point.devices.names).profiles.map((p) => ({ key: `device:${p.stem}`, label: `current(${p.stem}·)`, unit: "A", index: p.index, values: p.at.map((k) => point.devices.current[k]) }));
@@ -465,7 +467,7 @@ function ProfilePanel({ point }: { point: PointView }) {
   const [log, setLog] = useState(true);
   const g = groups.find((x) => x.key === key) ?? groups.find((x) => x.unit === "A") ?? groups[0];
   if (!g) return <p className="text-stone-600">No indexed names here: a profile needs nodes or devices named with an index (x1, x2, … as a for loop makes them).</p>;
-  const curves: Curve[] = [{ label: g.label, values: g.unit === "A" ? g.values.map((v) => (v === null ? null : Math.abs(v))) : g.values }];
+  const curves: Curve[] = [{ label: g.label, values: g.unit === "A" ? g.values.map((v) => Math.abs(v)) : g.values }];
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
@@ -489,14 +491,14 @@ function ProfilePanel({ point }: { point: PointView }) {
   );
 }
 
-function MapPanel({ point, series }: { point: PointView; series: SeriesView }) {
+function MapPanel({ point, series }: { point: PointData; series: SeriesView }) {
   const maps = useMemo(() => {
     const out: { key: string; label: string; unit: string; values: (number | null)[][]; rowLabel: string; colLabel: string }[] = [];
     for (const gr of indexedGroups(point.nodes.names).grids) {
       out.push({ key: `node:${gr.stem}`, label: `voltage(${gr.stem}·_·)`, unit: "V", values: gr.at.map((row) => row.map((k) => (k < 0 ? null : point.nodes.voltage[k]))), rowLabel: "row", colLabel: "column" });
     }
     for (const gr of indexedGroups(point.devices.names).grids) {
-      out.push({ key: `device:${gr.stem}`, label: `|current(${gr.stem}·_·)|`, unit: "A", values: gr.at.map((row) => row.map((k) => (k < 0 || point.devices.current[k] === null ? null : Math.abs(point.devices.current[k]!)))), rowLabel: "row", colLabel: "column" });
+      out.push({ key: `device:${gr.stem}`, label: `|current(${gr.stem}·_·)|`, unit: "A", values: gr.at.map((row) => row.map((k) => (k < 0 ? null : Math.abs(point.devices.current[k])))), rowLabel: "row", colLabel: "column" });
     }
     if (series.sweeps.length >= 2) {
       const [a, b] = series.sweeps.slice(-2);

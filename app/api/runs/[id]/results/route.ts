@@ -2,7 +2,7 @@ import { z } from "zod";
 import { db } from "@/db";
 import { guard } from "@/app/lib/guard";
 import { fresh, handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { pointView, runLayout, seriesView } from "@/app/lib/results";
+import { pointBinary, pointView, runLayout, seriesView } from "@/app/lib/results";
 import { getRun } from "@/app/lib/runs";
 
 export const dynamic = "force-dynamic";
@@ -10,13 +10,16 @@ type Ctx = { params: Promise<{ id: string }> };
 
 const Query = z.discriminatedUnion("view", [
   z.object({ view: z.literal("series"), from: z.coerce.number().int().min(0).optional(), to: z.coerce.number().int().min(0).optional() }),
-  z.object({ view: z.literal("point"), point: z.coerce.number().int().min(0).default(0) }),
+  z.object({ view: z.literal("point"), point: z.coerce.number().int().min(0).default(0), format: z.enum(["json", "binary"]).default("json") }),
+  z.object({ view: z.literal("layout") }),
 ]);
 
 /**
  * GET /api/runs/[id]/results (workspace.read)
  * - `?view=series[&from=A&to=B]`: params, probes and solver figures of every stored point, column by column;
- * - `?view=point&point=K`: every node, device, rail and probe of point K.
+ * - `?view=point&point=K`: every node, device, rail and probe of point K (names included);
+ *   `&format=binary`: the same numbers without names as stored (app/lib/point-codec.ts), what the run page reads;
+ * - `?view=layout`: the names (nodes, devices, rails, probes, params), sweeps and mismatch of the run.
  * Results never change once stored; a live run's series grows as points are stored.
  */
 export function GET(request: Request, ctx: Ctx) {
@@ -27,6 +30,14 @@ export function GET(request: Request, ctx: Ctx) {
     const layout = runLayout(db(), run!.id);
     if (!layout) throw new RequestError(409, `the run has no results yet (${run!.state})`, { state: run!.state });
     if (q.view === "series") return fresh({ run: { id: run!.id, state: run!.state }, series: seriesView(db(), run!.id, layout, q.from, q.to) });
+    // The layout and a stored point never change: the browser may keep them.
+    const keep = { "cache-control": "private, max-age=86400" };
+    if (q.view === "layout") return Response.json({ layout }, { headers: keep });
+    if (q.format === "binary") {
+      const bin = pointBinary(db(), run!.id, layout, q.point);
+      if (!bin) throw new RequestError(404, `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`);
+      return new Response(bin, { headers: { ...keep, "content-type": "application/octet-stream" } });
+    }
     const point = pointView(db(), run!.id, layout, q.point);
     if (!point) throw new RequestError(404, `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`);
     return fresh({ run: { id: run!.id, state: run!.state }, point });
