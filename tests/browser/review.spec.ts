@@ -74,3 +74,17 @@ test("a viewer reads the thread without sign-off buttons; an unknown thread is a
   const res = await page.goto("/threads/t_no_such_thread");
   expect(res?.status()).toBe(404);
 });
+
+test("a designer sees the bench data against the run, and a bad CSV is refused with its row and column", async ({ page }) => {
+  const errors: string[] = [];
+  page.on("pageerror", (e) => errors.push(e.message));
+  await signIn(page, "designer@larkspur.example");
+  await page.goto("/w/lm64-edge-row/n/lm-64-edge-row");
+  const panel = page.getByRole("region", { name: "Measurements" });
+  await expect(panel.getByTestId("agreement-i")).toContainText("RMS of the log ratio");
+  await panel.getByLabel("Measurement CSV").setInputFiles({ name: "bad.csv", mimeType: "text/csv", buffer: Buffer.from("tap [1], i [nA]\n0, 0.5\n1, half\n") });
+  await panel.getByRole("button", { name: "Upload" }).click();
+  await expect(panel.getByRole("alert")).toContainText('row 3, column 2 (i): "half" is not a number');
+  await shot(page, "measurements");
+  expect(errors).toEqual([]);
+});
