@@ -132,6 +132,7 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
   const { count: ns, start, of, rowPtr, rows, valPtr } = sn;
   const lx = into ? into.lx : new Float64Array(sn.values);
   const rel = w.mark;
+  const relMap = w.stack;
   const U = w.update;
   const ptr = w.next;
   const link = w.link;
@@ -168,6 +169,8 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
       while (p1 < nrd && rows[rd0 + p1] < l) p1++;
       const m1 = p1 - p0;
       const mu = nrd - p0;
+      // Positions of d's rows p0.. inside s's block, once per update.
+      for (let r = 0; r < mu; r++) relMap[r] = rel[rows[rd0 + p0 + r]];
       if (kd <= 2) {
         // Few columns: subtract the products straight into the block.
         for (let t = 0; t < kd; t++) {
@@ -176,7 +179,7 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
             const lc = lx[base + c];
             if (lc === 0) continue;
             const dst = v0 + (rows[rd0 + p0 + c] - f) * nr;
-            for (let r = c; r < mu; r++) lx[dst + rel[rows[rd0 + p0 + r]]] -= lx[base + r] * lc;
+            for (let r = c; r < mu; r++) lx[dst + relMap[r]] -= lx[base + r] * lc;
           }
         }
       } else {
@@ -232,7 +235,7 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
         for (let c = 0; c < m1; c++) {
           const dst = v0 + (rows[rd0 + p0 + c] - f) * nr;
           const uc = c * mu;
-          for (let r = c; r < mu; r++) lx[dst + rel[rows[rd0 + p0 + r]]] -= U[uc + r];
+          for (let r = c; r < mu; r++) lx[dst + relMap[r]] -= U[uc + r];
         }
       }
       ptr[d] = p1;

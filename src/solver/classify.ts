@@ -53,16 +53,17 @@ export function classify(net: Network): Classification {
     const b = bulk[d];
     if (b >= 0 && !isRail(b)) add(`${type[d] === NFET ? "bulk" : "well"} of ${devices.names[d]} is on internal node ${nodes.names[b]}`);
   }
+  // First n- and p-channel device on each node, to name both sides of a mixed node.
+  const firstN = new Int32Array(nn).fill(-1);
+  const firstP = new Int32Array(nn).fill(-1);
+  for (let d = 0; d < devices.count; d++) {
+    const first = type[d] === NFET ? firstN : firstP;
+    if (first[source[d]] < 0) first[source[d]] = d;
+    if (first[drain[d]] < 0) first[drain[d]] = d;
+  }
   for (let k = 0; k < nn; k++) {
     if (isRail(k) || nodeClass[k] !== CLASS_MIXED) continue;
-    let nName = "";
-    let pName = "";
-    for (let d = 0; d < devices.count && (nName === "" || pName === ""); d++) {
-      if (source[d] !== k && drain[d] !== k) continue;
-      if (type[d] === NFET && nName === "") nName = devices.names[d];
-      if (type[d] !== NFET && pName === "") pName = devices.names[d];
-    }
-    add(`node ${nodes.names[k]} joins n-channel ${nName} and p-channel ${pName}`);
+    add(`node ${nodes.names[k]} joins n-channel ${devices.names[firstN[k]]} and p-channel ${devices.names[firstP[k]]}`);
   }
   const problems = structuralProblems(net);
   const linear = reasons.length === 0;

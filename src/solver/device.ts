@@ -18,8 +18,12 @@ import { ekvF, ekvFPrime } from "./ekv";
 
 /** Per-device constants of one point and mismatch sample. */
 export interface DeviceParams {
-  /** Weak model: ln(i0·W/L) − κ·dVT/U_T. */
+  /** Weak model: ln(i0·W/L) − κ·dVT/U_T (filled on first use by deviceCurrent: the linear path never needs it). */
   lnScale: Float64Array;
+  lnReady: boolean;
+  /** (W/L)·e^{−κ·dVT/U_T}. */
+  size: Float64Array;
+  i0: number;
   /** EKV: ispec·W/L. */
   ekvScale: Float64Array;
   /** EKV: VT0 + dVT. */
@@ -37,12 +41,15 @@ export function deviceParams(net: Network, dvt: Float64Array | null): DevicePara
   const { kappa, ut, i0 } = settings;
   const ekv = settings.model === "ekv";
   const lnScale = new Float64Array(m);
+  const size = new Float64Array(m);
   const ekvScale = new Float64Array(ekv ? m : 0);
   const vt = new Float64Array(ekv ? m : 0);
   const off = dvt ?? new Float64Array(m);
-  const lnI0 = Math.log(i0);
   const { w, l } = devices;
-  for (let d = 0; d < m; d++) lnScale[d] = lnI0 + Math.log(w[d] / l[d]) - (kappa * off[d]) / ut;
+  for (let d = 0; d < m; d++) {
+    const e = off[d] === 0 ? 1 : Math.exp((-kappa * off[d]) / ut);
+    size[d] = (w[d] / l[d]) * e;
+  }
   if (ekv) {
     const ispec = settings.ispec as number;
     const vt0 = settings.vt0 as number;
@@ -51,7 +58,13 @@ export function deviceParams(net: Network, dvt: Float64Array | null): DevicePara
       vt[d] = vt0 + off[d];
     }
   }
-  return { lnScale, ekvScale, vt, dvt: off, kappa, ut, ekv };
+  return { lnScale, lnReady: false, size, i0, ekvScale, vt, dvt: off, kappa, ut, ekv };
+}
+
+function fillLn(P: DeviceParams): void {
+  const lnI0 = Math.log(P.i0);
+  for (let d = 0; d < P.size.length; d++) P.lnScale[d] = lnI0 + Math.log(P.size[d]);
+  P.lnReady = true;
 }
 
 /** σ for a device type. */
@@ -67,6 +80,7 @@ export function deviceCurrent(P: DeviceParams, d: number, xg: number, xs: number
   const ut = P.ut;
   const kappa = P.kappa;
   if (!P.ekv) {
+    if (!P.lnReady) fillLn(P);
     const base = P.lnScale[d] + (kappa * xg) / ut;
     const iF = Math.exp(base - xs / ut);
     const iR = Math.exp(base - xd / ut);

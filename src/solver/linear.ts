@@ -59,6 +59,8 @@ export interface LinearPlan {
   nodeOfRow: Int32Array;
   /** Row of each node, -1 for a rail. */
   rowOf: Int32Array;
+  /** The rail nodes. */
+  railNodes: Int32Array;
   /** 1 when row r is an n-channel node, 0 for p-channel. */
   rowIsN: Uint8Array;
   ordering: OrderingName;
@@ -76,6 +78,20 @@ export interface LinearPlan {
   factor: Factor | null;
   /** Scaled conductance ĝ of every device at the last factorisation. */
   g: Float64Array;
+  /** g·gs_c: the device's pseudo-conductance in amperes (I = c·(û_s − û_d)), for the evaluation. */
+  c: Float64Array;
+  /** Superposition state for points that change only inject values. */
+  sup: Superposition;
+  /** Per-node caches of the gate factor exp(gate exponent − Λ_c) within one factorisation. */
+  gateStamp: Int32Array;
+  gateValue: Float64Array;
+  gateWell: Int32Array;
+  stamp: number;
+  /** Node touched by an n-channel (1) / p-channel (2) source or drain. */
+  nodeTouch: Uint8Array;
+  /** Scratch for pseudoCurrents (overwritten by the next point). */
+  en: Float64Array;
+  ep: Float64Array;
   /** Right-hand side from the rails at the last factorisation (scaled). */
   rhsRails: Float64Array;
   /** Scaling of the last factorisation: reference voltages and ln gs per class (index 0 = p, 1 = n). */
@@ -91,6 +107,27 @@ export interface LinearPlan {
 }
 
 export type LinearFailure = { ok: false; node: number; message: string };
+
+/** Most injects a factorisation follows by superposition before it falls back to full solves. */
+const MAX_SUPERPOSED = 16;
+
+/**
+ * Superposition (the solution is linear in the inject values, PHYSICS.md §3):
+ * after the first solve of a factorisation, a point whose injects differ from
+ * the reference values only in `changed` is û = rest + Σ_j v_j·z_j, with
+ * `rest` the solution for the rails and the unchanged injects and z_j the
+ * response to 1 A in inject j (both in permuted order). A sink on an n-channel
+ * node adds with one sign everywhere, so no cancellation is introduced.
+ */
+interface Superposition {
+  fresh: boolean;
+  disabled: boolean;
+  ref: Float64Array;
+  isChanged: Uint8Array;
+  changed: number[];
+  z: Float64Array[];
+  rest: Float64Array;
+}
 
 /** Structure of the linear system for `net` (which must be in the linear class, without structural problems). */
 export function planLinear(net: Network, cls: Classification, opts: LinearOptions = {}): LinearPlan {
@@ -110,6 +147,12 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     rowIsN[r] = cls.nodeClass[k] & CLASS_N ? 1 : 0;
   }
   const { source, drain } = devices;
+  const nodeTouch = new Uint8Array(nn);
+  for (let d = 0; d < m; d++) {
+    const bit = devices.type[d] === NFET ? 1 : 2;
+    nodeTouch[source[d]] |= bit;
+    nodeTouch[drain[d]] |= bit;
+  }
   // Adjacency graph of the internal rows (both directions, duplicates merged).
   const deg = new Int32Array(rows);
   let railCount = 0;
@@ -144,97 +187,68 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   let ordering: OrderingName;
   let symbolic: Symbolic;
   if (choice === "auto") {
-    symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel });
+    // The natural order when it has no fill at all (column counts only: cheap, and exact).
+    symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: "simple" });
     ordering = "natural";
     if (symbolic.lnz > rows + adj.p[rows] / 2) {
       ordering = DEFAULT_ORDERING;
       symbolic = analyse(rows, adj.p, adj.i, orderBy(ordering, rows, adj.p, adj.i), { kernel: opts.kernel });
+    } else if (opts.kernel === "supernodal") {
+      symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel });
     }
   } else {
     ordering = choice;
     symbolic = analyse(rows, adj.p, adj.i, orderBy(choice, rows, adj.p, adj.i), { kernel: opts.kernel });
   }
-  // Permuted triangle pattern and the device → entry maps.
+  // Permuted triangle: a diagonal entry per column and one off-diagonal entry
+  // per device between two internal rows (parallel devices give repeated
+  // entries, which every kernel sums), in the column the triangle puts it.
   const lower = matrixTriangle(symbolic) === "lower";
   const pinv = symbolic.pinv;
-  const colOf = (a: number, b: number): number => (lower ? Math.min(a, b) : Math.max(a, b));
-  const cnt = new Int32Array(rows);
-  // Diagonal entries first in each column, then the off-diagonal ones.
-  for (let r = 0; r < rows; r++) cnt[r] = 1 + (adj.p[r + 1] - adj.p[r]);
-  // Each undirected edge appears twice in adj; it belongs to one column only.
-  for (let r = 0; r < rows; r++) {
-    const pr = pinv[r];
-    for (let q = adj.p[r]; q < adj.p[r + 1]; q++) {
-      const ps = pinv[adj.i[q]];
-      if (colOf(pr, ps) !== pr) cnt[r]--;
-    }
+  const colCount = new Int32Array(rows).fill(1);
+  for (let d = 0; d < m; d++) {
+    const a = rowOf[source[d]];
+    const b = rowOf[drain[d]];
+    if (a < 0 || b < 0 || a === b) continue;
+    const pa = pinv[a];
+    const pb = pinv[b];
+    colCount[lower ? (pa < pb ? pa : pb) : pa > pb ? pa : pb]++;
   }
-  const colCount = new Int32Array(rows);
-  for (let r = 0; r < rows; r++) colCount[pinv[r]] = cnt[r];
   const cp = new Int32Array(rows + 1);
   cumsum(cp, colCount, rows);
   const ci = new Int32Array(cp[rows]);
   const cx = new Float64Array(cp[rows]);
-  const posS = new Int32Array(m).fill(-1);
-  const posD = new Int32Array(m).fill(-1);
-  const posOff = new Int32Array(m).fill(-1);
   const diagPos = new Int32Array(rows);
   for (let c = 0; c < rows; c++) {
     diagPos[c] = colCount[c]++;
     ci[diagPos[c]] = c;
   }
-  // Edge slots: row r owns the entries with its neighbours s whose column is pinv[r].
-  const slotOf = new Int32Array(adj.p[rows]);
-  for (let r = 0; r < rows; r++) {
-    const pr = pinv[r];
-    for (let q = adj.p[r]; q < adj.p[r + 1]; q++) {
-      const ps = pinv[adj.i[q]];
-      if (colOf(pr, ps) !== pr) continue;
-      const slot = colCount[pr]++;
-      ci[slot] = ps;
-      slotOf[q] = slot;
-    }
-  }
-  // Device maps: diagonal positions, and the off-diagonal slot looked up in the owner row's list.
-  const owner = new Int32Array(rows).fill(-1);
-  const ownerSlot = new Int32Array(rows);
-  // Devices grouped by owning row; a per-row marker resolves their slots in O(devices + edges).
-  const devHead = new Int32Array(rows).fill(-1);
-  const devNext = new Int32Array(m);
-  for (let d = m - 1; d >= 0; d--) {
-    const a = rowOf[source[d]];
-    const b = rowOf[drain[d]];
+  const posS = new Int32Array(m).fill(-1);
+  const posD = new Int32Array(m).fill(-1);
+  const posOff = new Int32Array(m).fill(-1);
+  for (let d = 0; d < m; d++) {
     // A channel from a node to itself carries no current: no entry.
     if (source[d] === drain[d]) continue;
+    const a = rowOf[source[d]];
+    const b = rowOf[drain[d]];
     if (a >= 0) posS[d] = diagPos[pinv[a]];
     if (b >= 0) posD[d] = diagPos[pinv[b]];
-    if (a >= 0 && b >= 0 && a !== b) {
-      const own = colOf(pinv[a], pinv[b]) === pinv[a] ? a : b;
-      devNext[d] = devHead[own];
-      devHead[own] = d;
-    }
-  }
-  for (let r = 0; r < rows; r++) {
-    if (devHead[r] === -1) continue;
-    const pr = pinv[r];
-    for (let q = adj.p[r]; q < adj.p[r + 1]; q++) {
-      const s = adj.i[q];
-      if (colOf(pr, pinv[s]) !== pr) continue;
-      owner[s] = r;
-      ownerSlot[s] = slotOf[q];
-    }
-    for (let d = devHead[r]; d !== -1; d = devNext[d]) {
-      const a = rowOf[source[d]];
-      const other = a === r ? rowOf[drain[d]] : a;
-      if (owner[other] !== r) throw new Error("linear: internal error, device edge missing from the matrix pattern");
-      posOff[d] = ownerSlot[other];
-    }
+    if (a < 0 || b < 0) continue;
+    const pa = pinv[a];
+    const pb = pinv[b];
+    const col = lower ? (pa < pb ? pa : pb) : pa > pb ? pa : pb;
+    const slot = colCount[col]++;
+    ci[slot] = col === pa ? pb : pa;
+    posOff[d] = slot;
   }
   const C: Csc = { m: rows, n: rows, p: cp, i: ci, x: cx };
+  const railNodes = new Int32Array(nn - rows);
+  for (let k = 0, t = 0; k < nn; k++) if (rowOf[k] < 0) railNodes[t++] = k;
   return {
     rows,
     nodeOfRow,
     rowOf,
+    railNodes,
     rowIsN,
     ordering,
     symbolic,
@@ -246,6 +260,15 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     work: choleskyWork(symbolic),
     factor: null,
     g: new Float64Array(m),
+    c: new Float64Array(m),
+    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: new Float64Array(rows) },
+    gateStamp: new Int32Array(nn),
+    gateValue: new Float64Array(nn),
+    gateWell: new Int32Array(nn),
+    stamp: 0,
+    nodeTouch,
+    en: new Float64Array(nn),
+    ep: new Float64Array(nn),
     rhsRails: new Float64Array(rows),
     vref: new Float64Array(2),
     lnScale: new Float64Array(2),
@@ -301,7 +324,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   if (!Number.isFinite(vrefP)) vrefP = 0;
   if (!Number.isFinite(lamN)) lamN = 0;
   if (!Number.isFinite(lamP)) lamP = 0;
-  const lnI0 = Math.log(net.settings.i0);
+  const lnI0 = Math.log(P.i0);
   plan.vref[0] = vrefP;
   plan.vref[1] = vrefN;
   // ln gs_c = ln i0 + Λ_c + ln u(Vref_c)
@@ -310,31 +333,56 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   const cx = plan.C.x as Float64Array;
   cx.fill(0);
   const { posS, posD, posOff } = plan;
-  const lnm = P.lnScale;
+  const size = P.size;
+  const cOut = plan.c;
+  const gsN = Math.exp(plan.lnScale[1]);
+  const gsP = Math.exp(plan.lnScale[0]);
+  // Gate factor exp(e − Λ_c), cached per gate node (and well, for a pfet) within this factorisation.
+  const stamp = ++plan.stamp;
+  const { gateStamp, gateValue, gateWell } = plan;
   for (let d = 0; d < m; d++) {
-    // ĝ = (W/L)·e^{−κ·dVT/U_T}·exp(e − Λ_c) = exp(lnScale_d − ln i0 + e − Λ_c)
-    const lam = type[d] === NFET ? lamN : lamP;
-    const g = Math.exp(lnm[d] - lnI0 + gl[d] - lam);
+    const isN = type[d] === NFET;
+    const gn = gate[d];
+    const b = bulk[d];
+    let f: number;
+    if (isN && b >= 0) f = Math.exp(gl[d] - lamN);
+    else if (gateStamp[gn] === stamp && gateWell[gn] === (isN ? -1 : b)) f = gateValue[gn];
+    else {
+      f = Math.exp(gl[d] - (isN ? lamN : lamP));
+      if (gateStamp[gn] !== stamp) {
+        gateStamp[gn] = stamp;
+        gateWell[gn] = isN ? -1 : b;
+        gateValue[gn] = f;
+      }
+    }
+    // ĝ = (W/L)·e^{−κ·dVT/U_T}·exp(e − Λ_c)
+    const g = size[d] * f;
     gl[d] = g;
+    cOut[d] = g * (isN ? gsN : gsP);
     const a = posS[d];
-    const b = posD[d];
+    const bb = posD[d];
     if (a >= 0) cx[a] += g;
-    if (b >= 0) cx[b] += g;
+    if (bb >= 0) cx[bb] += g;
     const o = posOff[d];
     if (o >= 0) cx[o] -= g;
   }
   const rhs = plan.rhsRails;
   rhs.fill(0);
   const rd = plan.railDevices;
+  // û(rail) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity (plan.en/ep as scratch).
+  const uN = plan.en;
+  const uP = plan.ep;
+  for (const r of plan.railNodes) {
+    uN[r] = Math.exp(-(V[r] - vrefN) / ut);
+    uP[r] = Math.exp((V[r] - vrefP) / ut);
+  }
   for (let k = 0; k < rd.length; k++) {
     const d = rd[k];
     const s = source[d];
     const rs = plan.rowOf[s];
     const row = rs >= 0 ? rs : plan.rowOf[drain[d]];
     const rail = rs >= 0 ? drain[d] : s;
-    // û(rail) = exp(∓(V − Vref)/U_T) ≤ 1
-    const u = type[d] === NFET ? Math.exp(-(V[rail] - vrefN) / ut) : Math.exp((V[rail] - vrefP) / ut);
-    rhs[row] += gl[d] * u;
+    rhs[row] += gl[d] * (type[d] === NFET ? uN[rail] : uP[rail]);
   }
   const res = cholesky(plan.C, plan.symbolic, plan.factor ?? undefined, plan.work);
   if (!res.ok) {
@@ -343,36 +391,36 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
     return { ok: false, node, message: `the linear system is singular at node ${net.nodes.names[node]} (pivot ${res.pivot.toPrecision(3)}); it has no conductance to a rail` };
   }
   plan.factor = res.factor;
+  plan.sup.fresh = true;
   return { ok: true };
 }
 
-/**
- * Node voltages for the current inject values, with the last factorisation.
- * Writes every node of V (rails at their values). û ≤ 0 at a node means its
- * current sources ask more than its channels can carry: no physical operating
- * point, reported naming the node.
- */
-export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
-  const factor = plan.factor;
-  if (!factor) throw new Error("solveLinear: no factorisation");
-  const { rows, rowOf, rowIsN, nodeOfRow } = plan;
-  const { injects, nodes, settings } = net;
-  const ut = settings.ut;
+/** b (unpermuted, scaled) = rails' part (when withRails) + the injects with value(j). */
+function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j: number) => number): Float64Array {
   const b = plan.b;
-  const y = plan.y;
-  const perm = plan.symbolic.perm;
-  // b = rails' part + injects: drawn out of an n-channel node, pushed into a p-channel node.
-  b.set(plan.rhsRails);
+  if (withRails) b.set(plan.rhsRails);
+  else b.fill(0);
+  const { rowOf, rowIsN } = plan;
+  const { injects } = net;
+  // Injects: drawn out of an n-channel node, pushed into a p-channel node.
   const invN = Math.exp(-plan.lnScale[1]);
   const invP = Math.exp(-plan.lnScale[0]);
   for (let j = 0; j < injects.count; j++) {
-    const v = injects.value[j];
+    const v = value(j);
+    if (v === 0) continue;
     const rf = rowOf[injects.from[j]];
     const rt = rowOf[injects.to[j]];
     if (rf >= 0) b[rf] += rowIsN[rf] ? v * invN : -v * invP;
     if (rt >= 0) b[rt] += rowIsN[rt] ? -v * invN : v * invP;
   }
-  // y = P·b; y = L \ y; y = Lᵀ \ y (û = Pᵀ·y); then refinement: y += C \ (P·b − C·y).
+  return b;
+}
+
+/** y = C⁻¹·(P·b) in permuted order: y = L \ (P·b); y = Lᵀ \ y; then refinement steps. */
+function solvePermuted(plan: LinearPlan, b: Float64Array, y: Float64Array): void {
+  const factor = plan.factor as Factor;
+  const perm = plan.symbolic.perm;
+  const rows = plan.rows;
   for (let k = 0; k < rows; k++) y[k] = b[perm[k]];
   lsolve(factor, y);
   ltsolve(factor, y);
@@ -384,6 +432,67 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
     ltsolve(factor, r);
     for (let k = 0; k < rows; k++) y[k] += r[k];
   }
+}
+
+/**
+ * Node voltages for the current inject values, with the last factorisation
+ * (by superposition when only a few inject values changed since it).
+ * Writes every node of V (rails at their values). û ≤ 0 at a node means its
+ * current sources ask more than its channels can carry: no physical operating
+ * point, reported naming the node.
+ */
+export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
+  if (!plan.factor) throw new Error("solveLinear: no factorisation");
+  const { rows, rowOf, rowIsN, nodeOfRow } = plan;
+  const { injects, nodes, settings } = net;
+  const values = injects.value;
+  const ut = settings.ut;
+  const y = plan.y;
+  const sup = plan.sup;
+  const all = (j: number) => values[j];
+  if (sup.fresh || sup.disabled) {
+    solvePermuted(plan, buildRhs(plan, net, true, all), y);
+    if (sup.fresh) {
+      sup.fresh = false;
+      sup.disabled = false;
+      sup.ref.set(values);
+      sup.isChanged.fill(0);
+      sup.changed = [];
+      sup.z = [];
+    }
+  } else {
+    const before = sup.changed.length;
+    for (let j = 0; j < injects.count && !sup.disabled; j++) {
+      if (values[j] === sup.ref[j] || sup.isChanged[j]) continue;
+      if (sup.changed.length >= MAX_SUPERPOSED) sup.disabled = true;
+      else {
+        sup.isChanged[j] = 1;
+        sup.changed.push(j);
+      }
+    }
+    if (sup.disabled) {
+      solvePermuted(plan, buildRhs(plan, net, true, all), y);
+    } else {
+      if (sup.changed.length > before) {
+        // rest: rails and the injects still at their reference values; z_j: 1 A in inject j.
+        solvePermuted(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j])), sup.rest);
+        for (let t = before; t < sup.changed.length; t++) {
+          const jj = sup.changed[t];
+          const z = new Float64Array(rows);
+          solvePermuted(plan, buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0)), z);
+          sup.z.push(z);
+        }
+      }
+      y.set(sup.rest);
+      for (let t = 0; t < sup.changed.length; t++) {
+        const v = values[sup.changed[t]];
+        if (v === 0) continue;
+        const z = sup.z[t];
+        for (let k = 0; k < rows; k++) y[k] += v * z[k];
+      }
+    }
+  }
+  const perm = plan.symbolic.perm;
   const vrefN = plan.vref[1];
   const vrefP = plan.vref[0];
   let worst = -1;
@@ -412,4 +521,30 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
     };
   }
   return { ok: true };
+}
+
+/**
+ * The per-node exponentials of the voltage-form device equation for the last
+ * factorisation (in scratch arrays of the plan, valid until the next call): en[k] = exp(−(V_k − Vref_n)/U_T), ep[k] = exp((V_k − Vref_p)/U_T)
+ * at the nodes channels of that type touch; with plan.c they give
+ * I_F = c·e(source), I_R = c·e(drain) (LANGUAGE.md device equations).
+ */
+export function pseudoCurrents(plan: LinearPlan, net: Network, V: Float64Array): { c: Float64Array; en: Float64Array; ep: Float64Array } | null {
+  const ut = net.settings.ut;
+  if (!(Math.abs(plan.lnScale[0]) < 700 && Math.abs(plan.lnScale[1]) < 700)) return null;
+  const nn = V.length;
+  if (plan.en.length !== nn) {
+    plan.en = new Float64Array(nn);
+    plan.ep = new Float64Array(nn);
+  }
+  const { en, ep } = plan;
+  const vrefN = plan.vref[1];
+  const vrefP = plan.vref[0];
+  const touch = plan.nodeTouch;
+  for (let k = 0; k < nn; k++) {
+    const t = touch[k];
+    if (t & 1) en[k] = Math.exp(-(V[k] - vrefN) / ut);
+    if (t & 2) ep[k] = Math.exp((V[k] - vrefP) / ut);
+  }
+  return { c: plan.c, en, ep };
 }

@@ -23,8 +23,52 @@ const VARIABLE = 0;
 const ELEMENT = 1;
 const DEAD = 2;
 
-/** Approximate minimum degree ordering. */
+/**
+ * Approximate minimum degree ordering. Dense vertices (degree above
+ * max(16, 10·√n), as AMD implementations commonly treat them) are taken out
+ * of the graph and ordered last: they would otherwise make every elimination
+ * scan their long lists.
+ */
 export function amd(n: number, ap: Int32Array, ai: Int32Array): Int32Array {
+  const limit = Math.max(16, 10 * Math.sqrt(n));
+  let dense = 0;
+  for (let v = 0; v < n; v++) if (ap[v + 1] - ap[v] > limit) dense++;
+  if (dense === 0) return amdQuotient(n, ap, ai);
+  // Order the sparse part on its own, then append the dense vertices.
+  const local = new Int32Array(n).fill(-1);
+  const global = new Int32Array(n - dense);
+  let m = 0;
+  for (let v = 0; v < n; v++) {
+    if (ap[v + 1] - ap[v] > limit) continue;
+    local[v] = m;
+    global[m++] = v;
+  }
+  const sp = new Int32Array(m + 1);
+  let nz = 0;
+  for (let k = 0; k < m; k++) {
+    const v = global[k];
+    for (let q = ap[v]; q < ap[v + 1]; q++) if (local[ai[q]] >= 0) nz++;
+    sp[k + 1] = nz;
+  }
+  const si = new Int32Array(nz);
+  nz = 0;
+  for (let k = 0; k < m; k++) {
+    const v = global[k];
+    for (let q = ap[v]; q < ap[v + 1]; q++) {
+      const u = local[ai[q]];
+      if (u >= 0) si[nz++] = u;
+    }
+  }
+  const sub = amdQuotient(m, sp, si);
+  const perm = new Int32Array(n);
+  for (let k = 0; k < m; k++) perm[k] = global[sub[k]];
+  let k = m;
+  for (let v = 0; v < n; v++) if (local[v] < 0) perm[k++] = v;
+  return perm;
+}
+
+/** Approximate minimum degree on the quotient graph (no dense-vertex handling). */
+function amdQuotient(n: number, ap: Int32Array, ai: Int32Array): Int32Array {
   const perm = new Int32Array(n);
   if (n === 0) return perm;
   const nnz = ap[n];

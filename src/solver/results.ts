@@ -141,18 +141,30 @@ export interface Evaluation {
  * the device constants P, with the device equations in voltage form.
  * `kcl` (length = nodes) is scratch.
  */
-export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array): Evaluation {
+/**
+ * With `pseudo` (linear class, weak model) the channel currents are
+ * I_F = c·e(source), I_R = c·e(drain) from per-node exponentials of the
+ * voltages (the same device equation, factored: see linear.ts pseudoCurrents).
+ */
+export interface PseudoCurrents {
+  c: Float64Array;
+  en: Float64Array;
+  ep: Float64Array;
+}
+
+export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array, pseudo?: PseudoCurrents | null): Evaluation {
   const { devices, injects, nodes, settings } = net;
   const m = devices.count;
   const nn = nodes.names.length;
   const { type, gate, source, drain, bulk, w, l } = devices;
+  const ispec = settings.ispec;
+  const hasIc = ispec !== null && (settings.model === "weak" || settings.vt0 !== null);
   const currents = new Float64Array(m);
-  const ic = new Float64Array(m);
+  // Without ispec every ic is null: one shared all-NaN array per network (results are read-only).
+  const ic = hasIc ? new Float64Array(m) : noIc(net);
   const saturated = new Uint8Array(m);
   const entering = kcl ?? new Float64Array(nn);
   entering.fill(0);
-  const ispec = settings.ispec;
-  const hasIc = ispec !== null && (settings.model === "weak" || settings.vt0 !== null);
   const satLimit = 4 * settings.ut;
   const out = new Float64Array(4);
   let maxCurrent = 0;
@@ -169,8 +181,17 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
     const vb = b >= 0 ? V[b] : 0;
     const xs = sg * (V[source[d]] - vb);
     const xd = sg * (V[drain[d]] - vb);
-    const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
-    const i = out[0];
+    let iF: number;
+    let i: number;
+    if (pseudo) {
+      const e = sg > 0 ? pseudo.en : pseudo.ep;
+      const c = pseudo.c[d];
+      iF = c * e[source[d]];
+      i = iF - c * e[drain[d]];
+    } else {
+      iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
+      i = out[0];
+    }
     currents[d] = i;
     const a = Math.abs(i);
     if (a > maxCurrent) maxCurrent = a;
@@ -178,7 +199,7 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
     entering[drain[d]] -= sg * i;
     saturated[d] = xd - xs > satLimit ? 1 : 0;
     const icd = hasIc ? iF / (((ispec as number) * w[d]) / l[d]) : NaN;
-    ic[d] = icd;
+    if (hasIc) ic[d] = icd;
     if (checkWeak && icd > WEAK_LIMIT) {
       if (invFirst < 0) invFirst = d;
       invCount++;
@@ -237,6 +258,18 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
     });
   }
   return { currents, ic, saturated, railCurrents, residual, worstNode, maxCurrent, warnings };
+}
+
+const noIcCache = new WeakMap<object, Float64Array>();
+
+/** The all-NaN inversion-coefficient array of a network's device table. */
+function noIc(net: Network): Float64Array {
+  let a = noIcCache.get(net.devices.type);
+  if (!a || a.length !== net.devices.count) {
+    a = new Float64Array(net.devices.count).fill(NaN);
+    noIcCache.set(net.devices.type, a);
+  }
+  return a;
 }
 
 function formatVolts(v: number): string {

@@ -11,8 +11,8 @@
 import type { Network } from "../lang/network";
 import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
-import { deviceParams } from "./device";
-import { factorLinear, type LinearOptions, type LinearPlan, planLinear, solveLinear } from "./linear";
+import { type DeviceParams, deviceParams } from "./device";
+import { factorLinear, type LinearOptions, type LinearPlan, planLinear, pseudoCurrents, solveLinear } from "./linear";
 import { MismatchSampler, summarize } from "./mismatch";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
 import { evaluate, evaluateProbes, type Method, type PointResult, type ProbeSummary, type RunResult, type RunTimings } from "./results";
@@ -76,19 +76,28 @@ interface FactorKey {
   ut: number;
   i0: number;
   sample: number | null;
+  ispec: number | null;
+  vt0: number | null;
 }
 
-function sameKey(a: FactorKey | null, b: FactorKey): boolean {
+/** Same device constants: sizes, settings and mismatch sample. */
+function sameDeviceKey(a: FactorKey | null, b: FactorKey): boolean {
   return (
     a !== null &&
     a.kappa === b.kappa &&
     a.ut === b.ut &&
     a.i0 === b.i0 &&
+    a.ispec === b.ispec &&
+    a.vt0 === b.vt0 &&
     a.sample === b.sample &&
-    sameArray(a.rails, b.rails) &&
     sameArray(a.w, b.w) &&
     sameArray(a.l, b.l)
   );
+}
+
+/** Same numeric factorisation: the device constants and the rails. */
+function sameKey(a: FactorKey | null, b: FactorKey): boolean {
+  return a !== null && sameDeviceKey(a, b) && sameArray(a.rails, b.rails);
 }
 
 /** Solves every point of `net` (see the module comment). Never throws for a bad network: failures are in the result. */
@@ -146,6 +155,8 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
   const nn = net.nodes.names.length;
   const kcl = new Float64Array(nn);
   let key: FactorKey | null = null;
+  let pKey: FactorKey | null = null;
+  let P: DeviceParams | null = null;
   let previous: Float64Array | null = null;
   const probeValues: Record<string, number[]> = {};
   for (const p of net.probes) probeValues[p.name] = [];
@@ -165,7 +176,12 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
       }
       const sample = sampler ? s : null;
       const tf = performance.now();
-      const P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
+      const k: FactorKey = { rails: pnet.nodes.railValue, w: pnet.devices.w, l: pnet.devices.l, kappa: pnet.settings.kappa, ut: pnet.settings.ut, i0: pnet.settings.i0, sample, ispec: pnet.settings.ispec, vt0: pnet.settings.vt0 };
+      // Device constants depend on sizes, settings and the sample, not on rails or injects.
+      if (!P || !sameDeviceKey(pKey, k)) {
+        P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
+        pKey = k;
+      }
       const V = new Float64Array(nn);
       let ok = true;
       let error: string | null = null;
@@ -174,7 +190,6 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
       let continuation = false;
       let reused = false;
       if (lplan) {
-        const k: FactorKey = { rails: pnet.nodes.railValue, w: pnet.devices.w, l: pnet.devices.l, kappa: pnet.settings.kappa, ut: pnet.settings.ut, i0: pnet.settings.i0, sample };
         if (sameKey(key, k) && lplan.factor) {
           reused = true;
         } else {
@@ -222,7 +237,7 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
         timings.solveMs += performance.now() - ts;
       }
       const te = performance.now();
-      const ev = evaluate(pnet, V, P, kcl);
+      const ev = evaluate(pnet, V, P, kcl, lplan && ok ? pseudoCurrents(lplan, pnet, V) : null);
       const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
       for (const name in probes) probeValues[name].push(probes[name]);
       const where = describePoint(grid[g], sample);

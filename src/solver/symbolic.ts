@@ -12,7 +12,6 @@
  * the numeric phase must use: row/column k of C = P·A·Pᵀ is perm[k] of A.
  */
 
-import { cumsum } from "./sparse";
 
 export type Kernel = "simple" | "supernodal";
 
@@ -306,24 +305,35 @@ export function analyse(n: number, ap: Int32Array, ai: Int32Array, order: Int32A
   for (let k = 0; k < n; k++) pinv0[order[k]] = k;
   const parent0 = etreeOfGraph(n, ap, ai, order, pinv0);
   const post = postorder(parent0);
-  // Relabel in postorder: new label t is old label post[t].
-  const postInv = new Int32Array(n);
-  for (let t = 0; t < n; t++) postInv[post[t]] = t;
-  const perm = new Int32Array(n);
-  const pinv = new Int32Array(n);
-  const parent = new Int32Array(n);
-  for (let t = 0; t < n; t++) {
-    const old = post[t];
-    perm[t] = order[old];
-    pinv[order[old]] = t;
-    parent[t] = parent0[old] === -1 ? -1 : postInv[parent0[old]];
+  let identity = true;
+  for (let t = 0; t < n && identity; t++) if (post[t] !== t) identity = false;
+  let perm = order;
+  let pinv = pinv0;
+  let parent = parent0;
+  if (!identity) {
+    // Relabel in postorder: new label t is old label post[t].
+    const postInv = new Int32Array(n);
+    for (let t = 0; t < n; t++) postInv[post[t]] = t;
+    perm = new Int32Array(n);
+    pinv = new Int32Array(n);
+    parent = new Int32Array(n);
+    for (let t = 0; t < n; t++) {
+      const old = post[t];
+      perm[t] = order[old];
+      pinv[order[old]] = t;
+      parent[t] = parent0[old] === -1 ? -1 : postInv[parent0[old]];
+    }
   }
   const counts = columnCounts(n, ap, ai, perm, pinv, parent);
   let flops = 0;
   for (let j = 0; j < n; j++) flops += counts[j] * counts[j];
   const lp = new Int32Array(n + 1);
-  const tmp = Int32Array.from(counts);
-  const lnz = cumsum(lp, tmp, n);
+  let lnz = 0;
+  for (let j = 0; j < n; j++) {
+    lp[j] = lnz;
+    lnz += counts[j];
+  }
+  lp[n] = lnz;
   const want = opts.kernel ?? "auto";
   const kernel: Kernel = want === "auto" ? (flops > 40 * n ? "supernodal" : "simple") : want;
   const supernodes = kernel === "supernodal" ? findSupernodes(n, ap, ai, perm, pinv, parent, counts) : null;

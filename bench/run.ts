@@ -1,0 +1,320 @@
+/**
+ * Rill benchmarks: `npm run bench [-- --json] [--only NAME] [--reps N] [--quick]`.
+ *
+ * Every workload is generated as .rill TEXT with for-loops and goes through
+ * the language's `elaborate()` (timed as elaborate_ms: this doubles as the
+ * parse + elaborate benchmark), then `solveNetwork()` with points streamed,
+ * not retained. Phases are timed separately and summed over a sweep's points:
+ *   analyse_ms  graph, fill-reducing ordering, symbolic analysis (Newton: Jacobian pattern, ordering)
+ *   factor_ms   conductances and numeric factorisation (zero for points that reuse it)
+ *   solve_ms    right-hand side, triangular solves, back to voltages (Newton: the iterations)
+ *   evaluate_ms currents, inversion coefficients, rail currents, KCL residual from the device equations
+ * total_ms = elaborate_ms + wall time of solveNetwork. Each number is the
+ * median of several runs. With --json: one JSON array, an entry per workload.
+ */
+
+import { cpus, loadavg } from "node:os";
+import { elaborate } from "../src/lang/index";
+import type { Network } from "../src/lang/network";
+import { applyPoint } from "../src/lang/point";
+import { solveNetwork, type SolveOptions } from "../src/solver/index";
+import type { OrderingName } from "../src/solver/order";
+
+interface Phases {
+  elaborate_ms: number;
+  analyse_ms: number;
+  factor_ms: number;
+  solve_ms: number;
+  evaluate_ms: number;
+}
+
+interface Entry {
+  workload: string;
+  nodes: number;
+  devices: number;
+  points: number;
+  phases: Phases;
+  total_ms: number;
+  method: string;
+  ordering: string;
+}
+
+interface Workload {
+  name: string;
+  text: () => string;
+  reps: number;
+}
+
+/** Diffuser grid n×n (bench contract): lateral nfets between 4-neighbours on gate rail gh, an output nfet at every node (gate gv, drain on a 1 V rail), one inject at the centre. */
+function gridText(name: string, n: number, extra = "", injectValue = "1n"): string {
+  const c = Math.floor(n / 2);
+  return `network ${name}
+param vh = 0.7
+param vv = 0.6
+param iin = ${injectValue}
+rail gh = vh
+rail gv = vv
+rail vd = 1
+rail gnd = 0
+for i in 0..${n - 1} {
+  for j in 0..${n - 1} {
+    nfet o{i}_{j} gate=gv source=n{i}_{j} drain=vd
+  }
+}
+for i in 0..${n - 1} {
+  for j in 0..${n - 2} {
+    nfet h{i}_{j} gate=gh source=n{i}_{j} drain=n{i}_{j+1}
+    nfet v{j}_{i} gate=gh source=n{j}_{i} drain=n{j+1}_{i}
+  }
+}
+inject spot from=n${c}_${c} to=gnd value=iin
+${extra}`;
+}
+
+function chainText(n: number): string {
+  return `network chain
+rail gh = 0.7
+rail gv = 0.6
+rail vd = 1
+rail gnd = 0
+for k in 0..${n - 1} {
+  nfet o{k} gate=gv source=n{k} drain=vd
+}
+for k in 0..${n - 2} {
+  nfet h{k} gate=gh source=n{k} drain=n{k+1}
+}
+inject spot from=n${Math.floor(n / 2)} to=gnd value=1n
+`;
+}
+
+/** A 1,000-branch mirror bank: a pfet reference into a diode nfet; each branch an nfet copy into a diode-connected pfet load. */
+function mirrorText(branches: number): string {
+  return `network mirror_bank
+rail vdd = 1.8
+rail gnd = 0
+rail gp = 1.4
+pfet ref gate=gp source=vdd drain=x well=vdd
+nfet diode gate=x source=gnd drain=x
+for k in 0..${branches - 1} {
+  nfet copy{k} gate=x source=gnd drain=y{k} w=(1 + k - 4*floor(k/4)) * 1u
+  pfet load{k} gate=y{k} source=vdd drain=y{k} well=vdd
+}
+`;
+}
+
+const WORKLOADS: Workload[] = [
+  { name: "chain1e6", text: () => chainText(1_000_000), reps: 3 },
+  { name: "grid256", text: () => gridText("grid256", 256), reps: 5 },
+  { name: "grid512", text: () => gridText("grid512", 512), reps: 3 },
+  { name: "sweep_vh_grid64", text: () => gridText("sweep_vh", 64, "sweep vh from 0.6 to 0.8 points 1000\n"), reps: 3 },
+  { name: "sweep_inject_grid64", text: () => gridText("sweep_inject", 64, "sweep iin from 100p to 10n points 1000 log\n"), reps: 5 },
+  { name: "mismatch200_grid64", text: () => gridText("mismatch200", 64, "mismatch runs 200 seed 1 avt 3m\n"), reps: 3 },
+  { name: "newton_mirror1000", text: () => mirrorText(1000), reps: 5 },
+];
+
+function median(xs: number[]): number {
+  const s = xs.slice().sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+function elaborateOrThrow(text: string, name: string): { net: Network; ms: number } {
+  const t0 = performance.now();
+  const r = elaborate(text);
+  const ms = performance.now() - t0;
+  if (!r.network) throw new Error(`${name}: does not elaborate: ${r.diagnostics.map((d) => `${d.line}:${d.column} ${d.message}`).join("; ")}`);
+  return { net: r.network, ms };
+}
+
+interface Sample {
+  phases: Phases;
+  total: number;
+  method: string;
+  ordering: string;
+  points: number;
+}
+
+function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}): Sample {
+  let ordering = "";
+  const t0 = performance.now();
+  const run = solveNetwork(net, {
+    ...opts,
+    keepPoints: false,
+    onPoint: (p) => {
+      if (!ordering) ordering = p.solver.ordering ?? "";
+    },
+  });
+  const wall = performance.now() - t0;
+  if (!run.ok) throw new Error(`solve failed: ${run.failures[0]?.message}`);
+  const t = run.timings;
+  return {
+    phases: { elaborate_ms: elaborateMs, analyse_ms: t.analyseMs, factor_ms: t.factorMs, solve_ms: t.solveMs, evaluate_ms: t.evaluateMs },
+    total: elaborateMs + wall,
+    method: run.method,
+    ordering,
+    points: run.solved,
+  };
+}
+
+function medianSample(samples: Sample[]): Sample {
+  const keys = Object.keys(samples[0].phases) as (keyof Phases)[];
+  const phases = {} as Phases;
+  for (const k of keys) phases[k] = median(samples.map((s) => s.phases[k]));
+  return { ...samples[0], phases, total: median(samples.map((s) => s.total)) };
+}
+
+function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } {
+  const text = w.text();
+  const samples: Sample[] = [];
+  let net: Network | null = null;
+  for (let r = 0; r < reps; r++) {
+    const el = elaborateOrThrow(text, w.name);
+    net = el.net;
+    samples.push(solveTimed(el.net, el.ms));
+  }
+  const m = medianSample(samples);
+  const n = net as Network;
+  const round = (x: number) => Math.round(x * 100) / 100;
+  return {
+    net: n,
+    entry: {
+      workload: w.name,
+      nodes: n.nodes.names.length,
+      devices: n.devices.count,
+      points: m.points,
+      phases: {
+        elaborate_ms: round(m.phases.elaborate_ms),
+        analyse_ms: round(m.phases.analyse_ms),
+        factor_ms: round(m.phases.factor_ms),
+        solve_ms: round(m.phases.solve_ms),
+        evaluate_ms: round(m.phases.evaluate_ms),
+      },
+      total_ms: round(m.total),
+      method: m.method,
+      ordering: m.ordering,
+    },
+  };
+}
+
+/** analyse + factor + solve of one network under a forced ordering (median of reps). */
+function orderingCost(net: Network, ordering: OrderingName, reps: number): { analyse: number; factor: number; solve: number; sum: number } {
+  const s: Sample[] = [];
+  for (let r = 0; r < reps; r++) s.push(solveTimed(net, 0, { ordering }));
+  const m = medianSample(s);
+  const p = m.phases;
+  return { analyse: p.analyse_ms, factor: p.factor_ms, solve: p.solve_ms, sum: p.analyse_ms + p.factor_ms + p.solve_ms };
+}
+
+/** The vh sweep's points solved as independent networks: a fresh analysis every time. */
+function independentSolves(net: Network): number {
+  const sweep = net.sweeps[0];
+  let total = 0;
+  for (const v of sweep.values) {
+    const single = { ...applyPoint(net, { [sweep.param]: v }), sweeps: [] };
+    const t0 = performance.now();
+    const run = solveNetwork(single, { keepPoints: false });
+    total += performance.now() - t0;
+    if (!run.ok) throw new Error("independent solve failed");
+  }
+  return total;
+}
+
+function main(argv: string[]): number {
+  const json = argv.includes("--json");
+  const quick = argv.includes("--quick");
+  const onlyAt = argv.indexOf("--only");
+  const only = onlyAt >= 0 ? argv[onlyAt + 1] : null;
+  const repsAt = argv.indexOf("--reps");
+  const repsOverride = repsAt >= 0 ? Number(argv[repsAt + 1]) : null;
+  if (only !== null && !WORKLOADS.some((w) => w.name === only)) {
+    process.stderr.write(`bench: unknown workload '${only}' (one of ${WORKLOADS.map((w) => w.name).join(", ")})\n`);
+    return 2;
+  }
+  if (repsOverride !== null && !(Number.isInteger(repsOverride) && repsOverride >= 1)) {
+    process.stderr.write("bench: --reps needs a positive integer\n");
+    return 2;
+  }
+  const selected = WORKLOADS.filter((w) => only === null || w.name === only);
+  const entries: Entry[] = [];
+  const nets = new Map<string, Network>();
+  for (const w of selected) {
+    const reps = repsOverride ?? (quick ? 1 : w.reps);
+    const { entry, net } = runWorkload(w, reps);
+    entries.push(entry);
+    nets.set(w.name, net);
+    if (!json) process.stderr.write(`  ${w.name}: ${entry.total_ms.toFixed(0)} ms\n`);
+  }
+  if (json) {
+    process.stdout.write(`${JSON.stringify(entries, null, 2)}\n`);
+    return 0;
+  }
+  printTable(entries, nets, quick);
+  return 0;
+}
+
+function fmt(x: number): string {
+  return x >= 100 ? x.toFixed(0) : x >= 10 ? x.toFixed(1) : x.toFixed(2);
+}
+
+function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean): void {
+  const cpu = cpus();
+  const out: string[] = [];
+  const load = loadavg();
+  out.push(`Machine: ${cpu[0]?.model ?? "unknown cpu"}, ${cpu.length} cores, node ${process.version}; load average ${load.map((x) => x.toFixed(1)).join(" ")} (other work on the machine inflates wall times)`);
+  out.push("Medians of several runs (ms); sweep phases summed over points; total = elaborate + solveNetwork wall time.");
+  out.push("");
+  out.push("| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total |");
+  out.push("|---|---:|---:|---:|---|---|---:|---:|---:|---:|---:|---:|");
+  for (const e of entries) {
+    const p = e.phases;
+    out.push(`| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} |`);
+  }
+  out.push("");
+  const by = new Map(entries.map((e) => [e.workload, e]));
+  const solver = (e: Entry) => e.phases.analyse_ms + e.phases.factor_ms + e.phases.solve_ms;
+  const goals: string[] = [];
+  const g256 = by.get("grid256");
+  if (g256) goals.push(`grid256: analyse + factor + solve = ${fmt(solver(g256))} ms (goal ≤ 285 ms): ${solver(g256) <= 285 ? "met" : "NOT met"}`);
+  const ch = by.get("chain1e6");
+  if (ch) goals.push(`chain1e6: analyse + factor + solve = ${fmt(solver(ch))} ms (goal ≤ 60 ms): ${solver(ch) <= 60 ? "met" : "NOT met"}`);
+  const vh = by.get("sweep_vh_grid64");
+  const vhNet = nets.get("sweep_vh_grid64");
+  if (vh && vhNet) {
+    // One run of 1,000 independent solves (itself an aggregate of 1,000 timings).
+    const base = independentSolves(vhNet);
+    const sweepSolve = vh.total_ms - vh.phases.elaborate_ms;
+    goals.push(`sweep_vh_grid64: ${fmt(sweepSolve)} ms against ${fmt(base)} ms for 1,000 independent solves = ${(sweepSolve / base).toFixed(3)}× (goal ≤ 0.25×): ${sweepSolve / base <= 0.25 ? "met" : "NOT met"}`);
+  }
+  const inj = by.get("sweep_inject_grid64");
+  if (vh && inj) {
+    const total = (vh.total_ms - vh.phases.elaborate_ms) / (inj.total_ms - inj.phases.elaborate_ms);
+    const solverOnly = solver(vh) / solver(inj);
+    goals.push(`sweep_inject_grid64 vs sweep_vh_grid64: ${total.toFixed(1)}× faster in total, ${solverOnly.toFixed(1)}× in analyse + factor + solve (goal ≥ 20×): ${total >= 20 ? "met" : solverOnly >= 20 ? "met for the solver phases only" : "NOT met"}`);
+  }
+  if (goals.length) {
+    out.push("Goals:");
+    for (const g of goals) out.push(`- ${g}`);
+    out.push("");
+  }
+  // Ordering comparison on the big linear workloads (forced orderings).
+  const cmp: string[] = [];
+  for (const name of ["grid256", "grid512", "chain1e6"]) {
+    const net = nets.get(name);
+    if (!net) continue;
+    const reps = quick ? 1 : 3;
+    for (const o of (name === "chain1e6" ? ["natural", "amd", "nd"] : ["amd", "nd"]) as OrderingName[]) {
+      const c = orderingCost(net, o, reps);
+      cmp.push(`| ${name} | ${o} | ${fmt(c.analyse)} | ${fmt(c.factor)} | ${fmt(c.solve)} | ${fmt(c.sum)} |`);
+    }
+  }
+  if (cmp.length) {
+    out.push("Orderings (forced; analyse includes the ordering itself):");
+    out.push("");
+    out.push("| workload | ordering | analyse | factor | solve | sum |");
+    out.push("|---|---|---:|---:|---:|---:|");
+    out.push(...cmp);
+  }
+  process.stdout.write(`${out.join("\n")}\n`);
+}
+
+process.exitCode = main(process.argv.slice(2));
