@@ -328,3 +328,65 @@ export function pointBinary(d: Q, runId: string, layout: RunLayout, point: numbe
   };
   return encodePoint(header, [r.nodes, r.rails, r.probes, r.params, r.current, r.ic, r.saturated]);
 }
+
+/**
+ * The whole series of a run as its JSON text, cached per run: stored points
+ * never change, so a later request reads only the points stored since (by
+ * point order; points are stored in order) and re-serialises. The run page's
+ * readers poll this every few seconds while a run is live.
+ */
+const seriesCache = new Map<string, { columns: SeriesColumns; count: number; /** The SeriesView as JSON. */ json: string }>();
+const SERIES_CACHE_SIZE = 16;
+
+export function seriesJson(d: Q, runId: string, layout: RunLayout, head: Record<string, unknown>): string {
+  let entry = seriesCache.get(runId);
+  const next = entry ? readSeries(d, runId, layout, entry.columns.point.length) : readSeries(d, runId, layout);
+  const wrap = (series: string) => `${JSON.stringify(head).slice(0, -1)},"series":${series}}`;
+  if (entry && next.point.length === 0) return wrap(entry.json);
+  if (!entry) {
+    if (seriesCache.size >= SERIES_CACHE_SIZE) seriesCache.delete(seriesCache.keys().next().value!);
+    entry = { columns: next, count: 0, json: "" };
+    seriesCache.set(runId, entry);
+  } else {
+    const c = entry.columns;
+    c.point.push(...next.point);
+    c.sample.push(...next.sample);
+    c.params.forEach((col, j) => col.push(...next.params[j]));
+    c.probes.forEach((col, j) => col.push(...next.probes[j]));
+    c.method.push(...next.method);
+    c.iterations.push(...next.iterations);
+    c.residual.push(...next.residual);
+    c.error.push(...next.error);
+  }
+  const c = entry.columns;
+  entry.count = c.point.length;
+  const view: SeriesView = {
+    params: layout.params,
+    probes: layout.probes,
+    sweeps: layout.sweeps,
+    mismatch: layout.mismatch,
+    point: c.point,
+    sample: c.sample,
+    paramValues: c.params.map(jsonNumbers),
+    probeValues: c.probes.map(jsonNumbers),
+    method: c.method,
+    iterations: c.iterations,
+    residual: jsonNumbers(c.residual),
+    error: c.error,
+  };
+  entry.json = JSON.stringify(view);
+  return wrap(entry.json);
+}
+
+const layoutJsonCache = new Map<string, string>();
+
+/** `{ "layout": … }` as JSON text, serialised once per run and process. */
+export function layoutJson(runId: string, layout: RunLayout): string {
+  let s = layoutJsonCache.get(runId);
+  if (!s) {
+    if (layoutJsonCache.size >= LAYOUT_CACHE_SIZE) layoutJsonCache.delete(layoutJsonCache.keys().next().value!);
+    s = JSON.stringify({ layout });
+    layoutJsonCache.set(runId, s);
+  }
+  return s;
+}

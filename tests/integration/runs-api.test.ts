@@ -138,6 +138,9 @@ describe("runs through the API", () => {
     expect(series.status).toBe(200);
     const s = (series.json as { series: { probes: string[]; params: string[]; paramValues: number[][]; probeValues: number[][]; method: string[] } }).series;
     expect(s.probes).toEqual(["ratio"]);
+    // a second read comes from the per-run cache and says the same
+    expect((await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, { id: run.id })).json).toEqual(series.json);
+    expect((series.json as { run: { state: string } }).run.state).toBe("done");
     const dv = s.paramValues[s.params.indexOf("dv")];
     expect(dv).toHaveLength(9);
     expect(dv[0]).toBeCloseTo(-0.04, 12);

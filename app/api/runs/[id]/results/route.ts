@@ -2,7 +2,7 @@ import { z } from "zod";
 import { db } from "@/db";
 import { guard } from "@/app/lib/guard";
 import { fresh, handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { pointBinary, pointView, runLayout, seriesView } from "@/app/lib/results";
+import { layoutJson, pointBinary, pointView, runLayout, seriesJson, seriesView } from "@/app/lib/results";
 import { getRun } from "@/app/lib/runs";
 
 export const dynamic = "force-dynamic";
@@ -29,10 +29,16 @@ export function GET(request: Request, ctx: Ctx) {
     const q = parseInput(Query, { view: "series", ...queryOf(request) });
     const layout = runLayout(db(), run!.id);
     if (!layout) throw new RequestError(409, `the run has no results yet (${run!.state})`, { state: run!.state });
-    if (q.view === "series") return fresh({ run: { id: run!.id, state: run!.state }, series: seriesView(db(), run!.id, layout, q.from, q.to) });
+    if (q.view === "series") {
+      const head = { run: { id: run!.id, state: run!.state } };
+      if (q.from === undefined && q.to === undefined) {
+        return new Response(seriesJson(db(), run!.id, layout, head), { headers: { "content-type": "application/json", "cache-control": "no-store" } });
+      }
+      return fresh({ ...head, series: seriesView(db(), run!.id, layout, q.from, q.to) });
+    }
     // The layout and a stored point never change: the browser may keep them.
     const keep = { "cache-control": "private, max-age=86400" };
-    if (q.view === "layout") return Response.json({ layout }, { headers: keep });
+    if (q.view === "layout") return new Response(layoutJson(run!.id, layout), { headers: { ...keep, "content-type": "application/json" } });
     if (q.format === "binary") {
       const bin = pointBinary(db(), run!.id, layout, q.point);
       if (!bin) throw new RequestError(404, `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`);
