@@ -71,6 +71,17 @@ test("edit, commit, run a sweep, read the plot and the table, export CSV", async
   await expect(page.locator('[data-slot="diagnostic-count"]')).toHaveText("no problems");
   await expect(page.locator('[data-slot="dirty"]')).toBeVisible();
 
+  // leaving with uncommitted edits asks first; declining stays on the page
+  let asked = "";
+  page.once("dialog", (d) => {
+    asked = d.message();
+    void d.dismiss();
+  });
+  const here = page.url();
+  await page.getByRole("navigation", { name: "Breadcrumb" }).getByRole("link", { name: "LM-64 edge row" }).click();
+  await expect.poll(() => asked).toMatch(/uncommitted edits/);
+  expect(page.url()).toBe(here);
+
   // commit with the keyboard: the message first, then Ctrl+S in the editor
   await page.getByLabel("Commit message").fill("Sixteen taps, lateral gate sweep");
   await page.locator(".cm-content").click();

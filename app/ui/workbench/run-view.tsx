@@ -295,20 +295,33 @@ function ProbesPanel({ series }: { series: SeriesView }) {
   const [logX, setLogX] = useState(series.sweeps[series.sweeps.length - 1]?.log ?? false);
   const [logY, setLogY] = useState(false);
   const samples = series.mismatch?.runs ?? 1;
+  const [xSweep, setXSweep] = useState(series.sweeps.length - 1);
   const plot = useMemo(() => {
     if (series.sweeps.length === 0 || series.probes.length === 0) return null;
-    const inner = series.sweeps[series.sweeps.length - 1];
-    const outer = series.sweeps.length > 1 ? series.sweeps[series.sweeps.length - 2] : null;
+    const sweeps = series.sweeps;
+    const xs = sweeps[xSweep];
     const values = meanOverSamples(series.probeValues[probe] ?? [], samples);
-    const n = inner.values.length;
-    const curves: Curve[] = [];
-    const groups = Math.ceil(values.length / n);
-    for (let g = 0; g < groups; g++) {
-      const label = outer ? `${outer.param} = ${formatEng(outer.values[g % outer.values.length], paramUnit(outer.param), 3)}` : series.probes[probe];
-      curves.push({ label, values: values.slice(g * n, (g + 1) * n) });
+    // One curve per combination of the other sweeps' values (outer sweep slowest in the grid order).
+    const curves = new Map<string, Curve>();
+    for (let g = 0; g < values.length; g++) {
+      let rest = g;
+      const idx = new Array<number>(sweeps.length);
+      for (let k = sweeps.length - 1; k >= 0; k--) {
+        idx[k] = rest % sweeps[k].values.length;
+        rest = Math.floor(rest / sweeps[k].values.length);
+      }
+      const others = sweeps.map((sw, k) => (k === xSweep ? null : `${sw.param} = ${formatEng(sw.values[idx[k]], paramUnit(sw.param), 3)}`)).filter((x): x is string => x !== null);
+      const key = others.join(", ") || series.probes[probe];
+      let c = curves.get(key);
+      if (!c) {
+        if (curves.size >= 12) continue;
+        c = { label: key, values: new Array<number | null>(xs.values.length).fill(null) };
+        curves.set(key, c);
+      }
+      c.values[idx[xSweep]] = values[g];
     }
-    return { x: inner.values, xLabel: inner.param, xUnit: paramUnit(inner.param), curves: curves.slice(0, 12) };
-  }, [series, probe, samples]);
+    return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(xs.param), curves: [...curves.values()] };
+  }, [series, probe, samples, xSweep]);
   const rows = useMemo(
     () =>
       series.point.map((p, k) => ({
@@ -348,6 +361,18 @@ function ProbesPanel({ series }: { series: SeriesView }) {
                 ))}
               </select>
             </label>
+            {series.sweeps.length > 1 ? (
+              <label className="flex items-center gap-2">
+                along
+                <select value={xSweep} onChange={(e) => setXSweep(Number(e.target.value))} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label="Sweep along the x axis">
+                  {series.sweeps.map((sw, k) => (
+                    <option key={sw.param} value={k}>
+                      {sw.param}
+                    </option>
+                  ))}
+                </select>
+              </label>
+            ) : null}
             <label className="flex items-center gap-1">
               <input type="checkbox" checked={logX} onChange={(e) => setLogX(e.target.checked)} /> log {plot.xLabel}
             </label>
