@@ -9,10 +9,14 @@
  *   factor_ms   conductances and numeric factorisation (zero for points that reuse it)
  *   solve_ms    right-hand side, triangular solves, back to voltages (Newton: the iterations)
  *   evaluate_ms currents, inversion coefficients, rail currents, KCL residual from the device equations
- * total_ms = elaborate_ms + wall time of solveNetwork. Each number is the
- * median of several runs. With --json: one JSON array, an entry per workload.
+ * total_ms = elaborate_ms + wall time of solveNetwork; cpu_ms = process CPU
+ * time of solveNetwork (a better estimate of the unloaded time when other work
+ * shares the machine). Each number is the median of several runs. The garbage
+ * of one phase is collected before the next is timed (the script re-runs
+ * itself with --expose-gc). With --json: one JSON array, an entry per workload.
  */
 
+import { spawnSync } from "node:child_process";
 import { cpus, loadavg } from "node:os";
 import { elaborate } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
@@ -35,8 +39,15 @@ interface Entry {
   points: number;
   phases: Phases;
   total_ms: number;
+  cpu_ms: number;
   method: string;
   ordering: string;
+}
+
+/** Collects garbage when the script runs with --expose-gc (it re-runs itself so). */
+function collect(): void {
+  const g = (globalThis as { gc?: () => void }).gc;
+  if (g) g();
 }
 
 interface Workload {
@@ -129,6 +140,7 @@ function elaborateOrThrow(text: string, name: string): { net: Network; ms: numbe
 interface Sample {
   phases: Phases;
   total: number;
+  cpu: number;
   method: string;
   ordering: string;
   points: number;
@@ -136,6 +148,8 @@ interface Sample {
 
 function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}): Sample {
   let ordering = "";
+  collect();
+  const c0 = process.cpuUsage();
   const t0 = performance.now();
   const run = solveNetwork(net, {
     ...opts,
@@ -145,11 +159,13 @@ function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}):
     },
   });
   const wall = performance.now() - t0;
+  const cu = process.cpuUsage(c0);
   if (!run.ok) throw new Error(`solve failed: ${run.failures[0]?.message}`);
   const t = run.timings;
   return {
     phases: { elaborate_ms: elaborateMs, analyse_ms: t.analyseMs, factor_ms: t.factorMs, solve_ms: t.solveMs, evaluate_ms: t.evaluateMs },
     total: elaborateMs + wall,
+    cpu: (cu.user + cu.system) / 1000,
     method: run.method,
     ordering,
     points: run.solved,
@@ -160,7 +176,7 @@ function medianSample(samples: Sample[]): Sample {
   const keys = Object.keys(samples[0].phases) as (keyof Phases)[];
   const phases = {} as Phases;
   for (const k of keys) phases[k] = median(samples.map((s) => s.phases[k]));
-  return { ...samples[0], phases, total: median(samples.map((s) => s.total)) };
+  return { ...samples[0], phases, total: median(samples.map((s) => s.total)), cpu: median(samples.map((s) => s.cpu)) };
 }
 
 function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } {
@@ -168,6 +184,8 @@ function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } 
   const samples: Sample[] = [];
   let net: Network | null = null;
   for (let r = 0; r < reps; r++) {
+    net = null;
+    collect();
     const el = elaborateOrThrow(text, w.name);
     net = el.net;
     samples.push(solveTimed(el.net, el.ms));
@@ -190,6 +208,7 @@ function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } 
         evaluate_ms: round(m.phases.evaluate_ms),
       },
       total_ms: round(m.total),
+      cpu_ms: round(m.cpu),
       method: m.method,
       ordering: m.ordering,
     },
@@ -263,11 +282,11 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   out.push(`Machine: ${cpu[0]?.model ?? "unknown cpu"}, ${cpu.length} cores, node ${process.version}; load average ${load.map((x) => x.toFixed(1)).join(" ")} (other work on the machine inflates wall times)`);
   out.push("Medians of several runs (ms); sweep phases summed over points; total = elaborate + solveNetwork wall time.");
   out.push("");
-  out.push("| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total |");
-  out.push("|---|---:|---:|---:|---|---|---:|---:|---:|---:|---:|---:|");
+  out.push("| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total | solve CPU |");
+  out.push("|---|---:|---:|---:|---|---|---:|---:|---:|---:|---:|---:|---:|");
   for (const e of entries) {
     const p = e.phases;
-    out.push(`| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} |`);
+    out.push(`| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} | ${fmt(e.cpu_ms)} |`);
   }
   out.push("");
   const by = new Map(entries.map((e) => [e.workload, e]));
@@ -317,4 +336,13 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   process.stdout.write(`${out.join("\n")}\n`);
 }
 
-process.exitCode = main(process.argv.slice(2));
+if ((globalThis as { gc?: unknown }).gc === undefined && !process.env.RILL_BENCH_CHILD) {
+  // Re-run with --expose-gc so phases are timed without the previous phase's garbage.
+  const r = spawnSync(process.execPath, [...process.execArgv, "--expose-gc", process.argv[1], ...process.argv.slice(2)], {
+    stdio: "inherit",
+    env: { ...process.env, RILL_BENCH_CHILD: "1" },
+  });
+  process.exitCode = r.status ?? 1;
+} else {
+  process.exitCode = main(process.argv.slice(2));
+}

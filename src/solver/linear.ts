@@ -20,8 +20,10 @@
  * Phases: `planLinear` (structure: graph, ordering, symbolic analysis, the
  * device → matrix-entry maps) once per run; `factorLinear` (conductances,
  * numeric Cholesky, rail right-hand side) when rails, sizes, temperature,
- * kappa or mismatch change; `solveLinear` (injects, triangular solves, back
- * to voltages) for every point.
+ * kappa or mismatch change; `solveLinear` (injects, triangular solves — or
+ * superposition of cached responses when only inject values changed — and
+ * back to voltages) for every point; `pseudoCurrents` gives the evaluation
+ * the per-node exponentials of the reported voltages.
  */
 
 import { type Network, NFET } from "../lang/network";
