@@ -298,6 +298,24 @@ describe("classification and unsolvable networks", () => {
     expect(run.failures[0].node).toBe(net.nodes.index.get("x"));
   });
 
+  it("Newton without an operating point fails naming the node, and reports no answer", () => {
+    // 100 nA pushed into y, whose only way out is a mirror output that carries at most 4 × 10 nA.
+    const net = new NetworkBuilder()
+      .rail("gnd", 0)
+      .inject("iin", { from: "gnd", to: "x", value: 10e-9 })
+      .nfet("m1", { gate: "x", source: "gnd", drain: "x" })
+      .nfet("m2", { gate: "x", source: "gnd", drain: "y", w: 4e-6 })
+      .inject("push", { from: "gnd", to: "y", value: 100e-9 })
+      .build();
+    const run = solveNetwork(net);
+    expect(run.method).toBe("newton");
+    expect(run.ok).toBe(false);
+    expect(run.points[0].ok).toBe(false);
+    expect(run.points[0].warnings).toEqual([]);
+    expect(run.failures[0].message).toMatch(/Newton did not converge.*node y/);
+    expect(run.failures[0].node).toBe(net.nodes.index.get("y"));
+  });
+
   it("a floating group of nodes and a node without a channel are errors, never answers", () => {
     const floating = new NetworkBuilder().rail("vg", 0.5).nfet("m", { gate: "vg", source: "a", drain: "b" }).inject("i", { from: "a", to: "b", value: 1e-9 }).build();
     const r1 = solveNetwork(floating);
