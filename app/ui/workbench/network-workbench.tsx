@@ -18,10 +18,10 @@ import { ProgressBar, RunStateBadge } from "./run-state";
 
 export interface NetworkWorkbenchProps {
   workspaceSlug: string;
+  /** The network as the page found it (identity; its history and texts come through the API). */
   network: NetworkRow;
-  commits: CommitSummary[];
-  /** The commit shown first (?commit=…, else the head), with its text; null for a network without commits. */
-  selected: CommitRow | null;
+  /** The commit shown first (?commit=…, else the head); null for a network without commits. */
+  initialCommitId: string | null;
   canWrite: boolean;
   canRun: boolean;
 }
@@ -32,28 +32,21 @@ function starterText(name: string): string {
   return `network ${name.replace(/[^A-Za-z0-9_]/g, "_").replace(/^[^A-Za-z_]/, "n_$&")}\n\nrail vdd = 1.8\nrail gnd = 0\n`;
 }
 
-export function NetworkWorkbench({ workspaceSlug, network, commits: initialCommits, selected: initialSelected, canWrite, canRun }: NetworkWorkbenchProps) {
-  const history = useSWR<{ commits: CommitSummary[]; network: NetworkRow }>(`/api/networks/${network.id}/commits`, getJson, {
-    fallbackData: { commits: initialCommits, network },
-  });
-  const commits = history.data?.commits ?? initialCommits;
-  const headId = history.data?.network.headCommitId ?? network.headCommitId;
-  const [selectedId, setSelectedId] = useState<string | null>(initialSelected?.id ?? headId);
-  const selected = useSWR<{ commit: CommitRow }>(selectedId ? `/api/commits/${selectedId}` : null, getJson, {
-    fallbackData: initialSelected && initialSelected.id === selectedId ? { commit: initialSelected } : undefined,
-    revalidateOnFocus: false,
-  });
-  const head = useSWR<{ commit: CommitRow }>(headId ? `/api/commits/${headId}` : null, getJson, {
-    fallbackData: initialSelected && initialSelected.id === headId ? { commit: initialSelected } : undefined,
-    revalidateOnFocus: false,
-  });
+export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canWrite, canRun }: NetworkWorkbenchProps) {
+  const history = useSWR<{ commits: CommitSummary[]; network: NetworkRow }>(`/api/networks/${network.id}/commits`, getJson);
+  const commits = history.data?.commits ?? [];
+  const headId = history.data ? history.data.network.headCommitId : network.headCommitId;
+  const [selectedId, setSelectedId] = useState<string | null>(initialCommitId);
+  // Commits never change: fetched once each.
+  const selected = useSWR<{ commit: CommitRow }>(selectedId ? `/api/commits/${selectedId}` : null, getJson, { revalidateOnFocus: false });
+  const head = useSWR<{ commit: CommitRow }>(headId ? `/api/commits/${headId}` : null, getJson, { revalidateOnFocus: false });
   const headText = headId ? head.data?.commit.text : starterText(network.name);
   const viewingHead = selectedId === headId;
 
   /** The editor's text while editing on the head; what a commit sends. */
   const [draft, setDraft] = useState<string | null>(null);
   /** What the editor is told to show (changes only when another commit is opened). */
-  const [shown, setShown] = useState<string>(initialSelected?.text ?? (headId ? "" : starterText(network.name)));
+  const [shown, setShown] = useState<string>(headId ? "" : starterText(network.name));
   const baseText = headText ?? "";
   const dirty = draft !== null && draft !== baseText;
   const [diagnostics, setDiagnostics] = useState<Diagnostic[]>([]);
@@ -177,7 +170,9 @@ export function NetworkWorkbench({ workspaceSlug, network, commits: initialCommi
     setMessage(`Restore ${selectedCommit.id.slice(0, 8)}`);
   };
 
-  const readOnly = !canWrite || !viewingHead;
+  /** Until the head's text has arrived there is nothing to edit. */
+  const loading = headId !== null && headText === undefined;
+  const readOnly = !canWrite || !viewingHead || loading;
   const onChange = useCallback(
     (text: string) => {
       if (!readOnly) setDraft(text);
@@ -246,6 +241,8 @@ export function NetworkWorkbench({ workspaceSlug, network, commits: initialCommi
             ) : null}
           </div>
         ) : null}
+        {loading || (selectedId !== null && !selected.data && !selected.error) ? <p className="text-xs text-stone-500">Loading the text…</p> : null}
+        {selected.error ? <p className="text-sm text-ember-500">Could not load the commit: {(selected.error as Error).message}</p> : null}
         <NetworkEditor
           value={shown}
           onChange={onChange}

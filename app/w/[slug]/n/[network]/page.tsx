@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { getCommit, listCommits, networkBySlug } from "@/app/lib/networks";
+import { getCommit, networkBySlug } from "@/app/lib/networks";
 import { workspacePage } from "@/app/lib/pages";
 import { NetworkWorkbench } from "@/app/ui/workbench/network-workbench";
 import { ReviewPanel } from "@/app/ui/review/review-panel";
@@ -21,9 +21,8 @@ export default async function NetworkPage({ params, searchParams }: Props) {
   const { workspace, can } = await workspacePage(slug, `/w/${slug}/n/${networkSlug}`);
   const network = networkBySlug(workspace.id, networkSlug);
   if (!network) notFound();
-  const commits = listCommits(network.id);
-  const pick = wanted && commits.some((c) => c.id === wanted) ? wanted : network.headCommitId;
-  const selected = pick ? getCommit(pick) : null;
+  const asked = wanted ? getCommit(wanted) : null;
+  const initialCommitId = asked && asked.networkId === network.id ? asked.id : network.headCommitId;
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
@@ -36,8 +35,7 @@ export default async function NetworkPage({ params, searchParams }: Props) {
       <NetworkWorkbench
         workspaceSlug={workspace.slug}
         network={network}
-        commits={commits}
-        selected={selected}
+        initialCommitId={initialCommitId}
         canWrite={can("network.write")}
         canRun={can("run.start")}
       />
