@@ -34,8 +34,11 @@ export interface RunTask {
   dbFile: string;
   /** Int32Array(1) over this buffer: STOP_* set by the supervisor. */
   stop: SharedArrayBuffer;
-  /** Test hooks, honoured only when RILL_TEST_FAULTS=1: "throw" after the first progress report, "slow" sleeps 25 ms per point. */
-  fault?: "throw" | "slow";
+  /**
+   * Test hooks, honoured only when RILL_TEST_FAULTS=1: "throw" after the first point, "slow" sleeps 25 ms per
+   * point, "stuck" spins for a minute inside the first point without looking at stop requests.
+   */
+  fault?: "throw" | "slow" | "stuck";
 }
 
 export interface RunTaskResult {
@@ -135,6 +138,7 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
       lastFlush = now();
     };
     const onPoint = (p: PointResult): void => {
+      if (control.fault === "stuck") for (const end = Date.now() + 60_000; Date.now() < end; );
       if (done === 0) d.update(runs).set({ solverReason: p.solver.reason }).where(eq(runs.id, runId)).run();
       stats.add(p);
       batch.push(toRecord(net, layout, p));

@@ -3,7 +3,8 @@
  * the time limit; a run that throws in the worker; a server restart. Runs
  * execute in the real piscina pool over the bundled worker (.build/run-worker.mjs,
  * built by the vitest globalSetup). RILL_TEST_FAULTS=1 enables the worker's
- * test hooks ("slow": 25 ms per point, "throw": throws after the first point).
+ * test hooks ("slow": 25 ms per point, "throw": throws after the first point,
+ * "stuck": spins inside a point, deaf to stop requests).
  *
  * Physics check: the divider's probe `ratio` = I1/I2 = exp(κ·Δv/U_T) for a
  * differential pair in weak inversion with saturated drains (Vittoz &
@@ -239,6 +240,16 @@ describe("runs through the API", () => {
     expect(r.state).toBe("failed");
     expect(r.reason).toMatch(new RegExp(`^time limit of 0\\.5 s reached after ${r.pointsDone} of 200 points$`));
     expect(r.pointsDone).toBeLessThan(200);
+  });
+
+  it("terminates a worker that ignores the time limit, and the next run still gets a worker", async () => {
+    const { commitId } = await newNetwork("Stuck", SWEEP);
+    const start = await startRun("designer", { commit: commitId, fault: "stuck", timeLimitSeconds: 0.5 });
+    const r = await until((start.json as { run: RunJson }).run.id, ended, 20_000);
+    expect(r.state).toBe("failed");
+    expect(r.reason).toBe("time limit of 0.5 s reached; the worker was stopped");
+    const next = await startRun("designer", { commit: commitId });
+    expect((await until((next.json as { run: RunJson }).run.id, ended)).state).toBe("done");
   });
 
   it("ends a run that throws in the worker as failed, with the message", async () => {

@@ -27,7 +27,7 @@ const StartRun = z.object({
     .positive()
     .max(MAX_TIME_LIMIT_MS / 1000)
     .optional(),
-  fault: z.enum(["throw", "slow"]).optional(),
+  fault: z.enum(["throw", "slow", "stuck"]).optional(),
 });
 
 /**
