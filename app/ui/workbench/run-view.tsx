@@ -80,7 +80,7 @@ export function RunView({ runId, canRun }: RunViewProps) {
         ) : null}
         {cancelError ? <p className="text-sm text-ember-500">{cancelError}</p> : null}
       </section>
-      <ModelPanel run={run} />
+      <ModelPanel run={run} swept={series.data?.series.sweeps.map((x) => x.param) ?? []} />
       {hasResults ? (
         <>
           <ExportLinks runId={runId} />
@@ -93,7 +93,7 @@ export function RunView({ runId, canRun }: RunViewProps) {
   );
 }
 
-function ModelPanel({ run }: { run: RunRow }) {
+function ModelPanel({ run, swept }: { run: RunRow; swept: string[] }) {
   const m = run.model as { model?: string; kappa?: number; temp?: number; ut?: number; i0?: number; vt0?: number | null; ispec?: number | null; devices?: number; nodes?: number } | null;
   const method = run.newtonPoints ? "damped Newton" : run.solverReason ? "one sparse symmetric solve per point (pseudo-voltages)" : "—";
   return (
@@ -108,6 +108,7 @@ function ModelPanel({ run }: { run: RunRow }) {
             <dd>{formatNumber(m.kappa ?? NaN)}</dd>
             <dt className="text-stone-500">temperature</dt>
             <dd>
+              {swept.includes("temp") ? "swept (see each point); otherwise " : ""}
               {formatNumber(m.temp ?? NaN)} K (U<sub>T</sub> = {formatEng(m.ut ?? NaN, "V")})
             </dd>
             <dt className="text-stone-500">I₀ (W/L = 1)</dt>
