@@ -377,7 +377,7 @@ class Elaborator {
 
   run(): ElaborationResult {
     this.tree = parser.parse(this.text);
-    this.syntaxErrors = reportSyntaxErrors(this.tree, this.text, this.sink, this.lines);
+    this.syntaxErrors = reportSyntaxErrors(this.tree, this.text, this.sink, this.lines, this.limits.maxDiagnostics);
     const top = this.tree.topNode;
     const statements = this.children(top);
     this.prescan(statements);

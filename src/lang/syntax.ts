@@ -229,21 +229,23 @@ function explain(err: SyntaxNode, text: string): Explained {
 
 /**
  * One error per syntax-error node of `tree`, at most one per line (the first
- * error on a line explains it; later ones on that line are consequences).
+ * error on a line explains it; later ones on that line are consequences) and
+ * at most `max` in all. Error nodes on a line already reported are skipped
+ * before any explaining, so a degenerate tree with many errors stays linear.
  */
-export function reportSyntaxErrors(tree: Tree, text: string, sink: DiagnosticSink, lines: LineIndex): number {
+export function reportSyntaxErrors(tree: Tree, text: string, sink: DiagnosticSink, lines: LineIndex, max = 1000): number {
   const seenLines = new Set<number>();
   let count = 0;
   tree.iterate({
     enter(n) {
+      if (count >= max) return false;
       if (!n.type.isError) return true;
+      const line = lines.position(n.from).line;
+      if (seenLines.has(line)) return false;
+      seenLines.add(line);
       const e = explain(n.node, text);
-      const line = lines.position(e.from).line;
-      if (!seenLines.has(line)) {
-        seenLines.add(line);
-        sink.error(e.from, e.to, e.message, e.hint);
-        count++;
-      }
+      sink.error(e.from, e.to, e.message, e.hint);
+      count++;
       return false;
     },
   });

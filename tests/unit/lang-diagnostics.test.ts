@@ -139,6 +139,14 @@ describe("limits", () => {
     expect(ok.network!.params[0].value).toBe(1);
   });
 
+  it("a degenerate parse with tens of thousands of error nodes still finishes with one diagnostic per line", { timeout: 120_000 }, () => {
+    // 300,000 unary minus signs: the parser gives up on the nesting and leaves ~90,000 error nodes on one line.
+    const r = elaborate(`param a = ${"-".repeat(300_000)}1\n`);
+    expect(r.ok).toBe(false);
+    expect(r.diagnostics).toHaveLength(1);
+    expect(r.diagnostics[0].line).toBe(1);
+  });
+
   it("a flood of diagnostics is capped", () => {
     const lines = Array.from({ length: 50 }, (_, i) => `param p${i} = q${i}`).join("\n");
     const r = elaborate(lines, { limits: { maxDiagnostics: 10 } });
