@@ -132,9 +132,4 @@ describe("rill command", () => {
     expect(run().status).toBe(2);
   });
 
-  it("solve is not there yet: exit 2", () => {
-    const r = run("solve", broken, "--json");
-    expect(r.status).toBe(2);
-    expect(r.stderr.trim()).toBe("solve: not available yet");
-  });
 });
