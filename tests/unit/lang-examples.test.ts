@@ -131,5 +131,4 @@ describe("rill command", () => {
     expect(run("frobnicate").status).toBe(2);
     expect(run().status).toBe(2);
   });
-
 });
