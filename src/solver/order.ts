@@ -14,7 +14,8 @@
  *   new element are absorbed (aggressive absorption).
  * - `nestedDissection`: recursive vertex separators from breadth-first level
  *   structures rooted at pseudo-peripheral vertices (George 1973; George & Liu
- *   1981), separators ordered last, small parts finished with `amd`.
+ *   1981), separators ordered last, small parts finished by reverse
+ *   Cuthill–McKee.
  */
 
 export type OrderingName = "amd" | "nd" | "natural";
@@ -389,8 +390,12 @@ function breadthFirst(
   return qt;
 }
 
-/** Nested dissection ordering; parts of at most `leaf` vertices are ordered by `amd`. */
-export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf = 96, maxIter = 6): Int32Array {
+/**
+ * Nested dissection ordering. Parts of at most `leaf` vertices are ordered by
+ * reverse Cuthill–McKee from their own BFS (amd when disconnected); `maxIter`
+ * bounds the extra BFS passes of the pseudo-peripheral root search.
+ */
+export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf = 48, maxIter = 1): Int32Array {
   const perm = new Int32Array(n);
   if (n === 0) return perm;
   const verts = new Int32Array(n);
@@ -420,6 +425,13 @@ export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf
     const s = stack.pop() as number;
     if (m === 0) continue;
     if (m <= leaf) {
+      // A small connected part: reverse Cuthill–McKee from its BFS (as cheap as
+      // a BFS, and as little fill as AMD at this size on meshes: measured).
+      const r = bfs(hint >= 0 ? hint : verts[s], id);
+      if (r === m) {
+        for (let k = 0; k < m; k++) perm[off + k] = queue[m - 1 - k];
+        continue;
+      }
       const lp = inducedAmd(ap, ai, verts, s, m, local);
       for (let k = 0; k < m; k++) perm[off + k] = verts[s + lp[k]];
       continue;
@@ -443,7 +455,9 @@ export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf
       const r2 = bfs(best, id);
       const h2 = level[queue[r2 - 1]];
       if (h2 <= height) {
-        reached = bfs(root, id);
+        // As deep as before: keep these levels; shallower: back to root's.
+        if (h2 < height) reached = bfs(root, id);
+        else root = best;
         break;
       }
       root = best;
