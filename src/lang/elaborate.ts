@@ -329,7 +329,6 @@ class Elaborator {
   private readonly w = new FloatColumn();
   private readonly l = new FloatColumn();
   private readonly devAt = new IntColumn();
-  private readonly devNameFrom = new IntColumn();
 
   // Injects.
   private readonly injNames: string[] = [];
@@ -1435,7 +1434,6 @@ class Elaborator {
     this.w.push(w);
     this.l.push(l);
     this.devAt.push(t.at);
-    this.devNameFrom.push(t.name.from);
     if (t.w) this.bind(t.w, { kind: "w", index: i });
     if (t.l) this.bind(t.l, { kind: "l", index: i });
   }
