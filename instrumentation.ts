@@ -1,12 +1,13 @@
 /**
  * Next's start-up hook (runs once per server process, before any request):
  * runs left `running` by a stopped server are marked interrupted, and queued
- * runs are queued again (app/lib/runs.ts).
+ * runs are queued again, and one run worker thread is started (app/lib/runs.ts).
  */
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs" || process.env.NEXT_PHASE === "phase-production-build") return;
-  const { recoverRuns } = await import("./app/lib/runs");
+  const { recoverRuns, warmPool } = await import("./app/lib/runs");
   try {
+    await warmPool();
     const r = recoverRuns();
     if (r.interrupted || r.requeued) console.log(`rill: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again`);
   } catch (e) {

@@ -63,14 +63,14 @@ export function concurrency(): number {
   return Number.isInteger(env) && env > 0 ? env : Math.max(1, os.availableParallelism());
 }
 
-async function pool(): Promise<Piscina<RunTask, RunTaskResult>> {
+async function pool(minThreads = 0): Promise<Piscina<RunTask, RunTaskResult>> {
   const s = sup();
   if (!s.pool) {
     const { Piscina } = await import("piscina");
     s.pool = new Piscina<RunTask, RunTaskResult>({
       filename: WORKER_FILE(),
       maxThreads: concurrency(),
-      minThreads: 0,
+      minThreads,
       idleTimeout: 60_000,
       // The request thread comes first: a solve must never slow the pages down.
       niceIncrement: 10,
@@ -109,6 +109,14 @@ export function recoverRuns(d: Q = db()): { interrupted: number; requeued: numbe
   for (const q of queued) if (!s.queue.includes(q.id)) s.queue.push(q.id);
   if (queued.length) void dispatch();
   return { interrupted, requeued: queued.length };
+}
+
+/**
+ * Starts one worker thread ahead of the first run (the server calls this at start-up), so the first run does
+ * not wait for a thread to load the worker bundle. Threads beyond this one end after a minute idle.
+ */
+export async function warmPool(): Promise<void> {
+  await pool(1);
 }
 
 /** Forgets the process's recovery (tests simulate a server restart with it). */
