@@ -1,4 +1,4 @@
-import { DEMO_PASSWORD, DEMO_USERS } from "@/db/seed";
+import { DEMO_PASSWORD, DEMO_USERS } from "@/db/demo";
 
 /** Demo mode only (RILL_DEMO=1, set by `npm run demo`): the invented demo team and its documented password. */
 export function demoMode(): boolean {
