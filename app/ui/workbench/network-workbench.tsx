@@ -12,6 +12,8 @@ import useSWR from "swr";
 import type { CommitRow, CommitSummary, NetworkRow } from "@/app/lib/networks";
 import type { RunRow } from "@/app/lib/runs";
 import { NetworkEditor } from "@/app/ui/network-editor";
+import { CommitReviewBadges } from "@/app/ui/review/badges";
+import type { CommitBadge } from "@/app/lib/review/diffs";
 import type { Diagnostic } from "@/src/lang/network";
 import { getJson, sendJson } from "./fetch";
 import { ProgressBar, RunStateBadge } from "./run-state";
@@ -318,12 +320,24 @@ function HistoryPanel({ commits, headId, selectedId, onOpen }: { commits: Commit
                     {c.ok ? null : <span className="text-ember-500">{c.errorCount} error(s)</span>}
                   </span>
                 </span>
+                <HistoryReview commitId={c.id} />
               </button>
             </li>
           ))}
         </ol>
       )}
     </section>
+  );
+}
+
+/** A history row's review state and "N values moved" badges (GET /api/commits/[id]/review). */
+function HistoryReview({ commitId }: { commitId: string }) {
+  const { data } = useSWR<CommitBadge>(`/api/commits/${commitId}/review`, getJson, { revalidateOnFocus: false });
+  if (!data || (data.review === "open" && data.diffs.length === 0)) return null;
+  return (
+    <span className="mt-1 flex" data-slot="history-review">
+      <CommitReviewBadges badge={data} />
+    </span>
   );
 }
 
