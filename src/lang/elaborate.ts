@@ -142,7 +142,12 @@ interface NameTpl {
   from: number;
   to: number;
   fixed: string | null;
-  parts: (string | { value: ValueTpl; slot: number })[];
+  /**
+   * Literal strings alternate with pieces. A piece with `slot` >= 0 is the loop
+   * value in that slot plus `offset` (the forms k, k+3, k-1), evaluated
+   * without math.js; with slot -1 it is `value` evaluated in scope.
+   */
+  parts: (string | { value: ValueTpl; slot: number; offset: number })[];
 }
 
 interface DeviceTpl {
@@ -270,6 +275,21 @@ function suggest(name: string, candidates: Iterable<string>): string | undefined
     }
   }
   return best === undefined ? undefined : `did you mean '${best}'?`;
+}
+
+/**
+ * A name piece of the form `k`, `k + 3` or `k - 1` (k a loop variable, the
+ * constant a whole number below 2^31 without unit): its loop slot and offset,
+ * so it is evaluated without math.js. Slot -1 for any other piece.
+ */
+function loopOffset(p: Expr, loopVars: string[]): { slot: number; offset: number } {
+  if (p.k === "name") return { slot: loopVars.indexOf(p.name), offset: 0 };
+  if (p.k === "binary" && (p.op === "+" || p.op === "-") && p.left.k === "name" && p.right.k === "num") {
+    const slot = loopVars.indexOf(p.left.name);
+    const c = p.right.value;
+    if (slot >= 0 && p.right.unit === "" && Number.isInteger(c) && c >= 0 && c < 2 ** 31) return { slot, offset: p.op === "+" ? c : -c };
+  }
+  return { slot: -1, offset: 0 };
 }
 
 const PIN_SETS = {
@@ -1216,8 +1236,8 @@ class Elaborator {
         ok = false;
         continue;
       }
-      const slot = p.k === "name" ? loopVars.indexOf(p.name) : -1;
-      parts.push({ value, slot });
+      const { slot, offset } = loopOffset(p, loopVars);
+      parts.push({ value, slot, offset });
     }
     return ok ? { from: e.from, to: e.to, fixed: null, parts } : null;
   }
@@ -1321,7 +1341,7 @@ class Elaborator {
         s += p;
         continue;
       }
-      const v = p.slot >= 0 ? this.loopValues[p.slot] : this.valueOf(p.value);
+      const v = p.slot >= 0 ? this.loopValues[p.slot] + p.offset : this.valueOf(p.value);
       if (!Number.isSafeInteger(v) || v < 0) {
         this.sink.error(p.value.from, p.value.to, `a name piece must be a whole number of at least 0, but this one is ${fmt(v)}`, "check the loop range: x{k-1} at k = 0 gives -1");
         return null;
