@@ -147,7 +147,31 @@ interface NameTpl {
    * value in that slot plus `offset` (the forms k, k+3, k-1), evaluated
    * without math.js; with slot -1 it is `value` evaluated in scope.
    */
-  parts: (string | { value: ValueTpl; slot: number; offset: number })[];
+  parts: (string | NamePiece)[];
+  /** Shared by every template with the same literal parts; null for a fixed name. */
+  shape: Shape | null;
+  /** The pieces of `parts` in order (empty for a fixed name). */
+  pieces: NamePiece[];
+}
+
+interface NamePiece {
+  value: ValueTpl;
+  slot: number;
+  offset: number;
+}
+
+/**
+ * The literal parts of an interpolated name: `n{i}_{j+1}` has lits
+ * ["n", "_", ""]. Names of one shape differ only in their whole-number
+ * pieces, so a shape with one or two pieces keeps the node and the device
+ * index of names already made by their piece values (`node`, `dev`).
+ */
+interface Shape {
+  lits: string[];
+  node: PieceIndex | null;
+  dev: PieceIndex | null;
+  /** Index into the elaborator's shape list (for the per-node namespace check). */
+  id: number;
 }
 
 interface DeviceTpl {
@@ -292,6 +316,111 @@ function loopOffset(p: Expr, loopVars: string[]): { slot: number; offset: number
   return { slot: -1, offset: 0 };
 }
 
+function fixedTpl(from: number, to: number, name: string): NameTpl {
+  return { from, to, fixed: name, parts: [], shape: null, pieces: [] };
+}
+
+/** Largest piece value a PieceIndex holds, and most entries all of one elaboration's indexes hold. */
+const PIECE_BOUND = 1 << 22;
+const PIECE_BUDGET = 16_000_000;
+
+/**
+ * Indices (of nodes or devices) by the one or two whole-number pieces of names
+ * of one shape, in dense Int32 rows (index + 1; 0 unknown). Invariant: an
+ * entry is stored only after the name it stands for has that index, and
+ * indices never change, so a hit is exact; a miss says nothing.
+ */
+class PieceIndex {
+  /** False once a name of this shape was made without being stored here (devices only). */
+  complete = true;
+  /** The shape was compared with the other device shapes (devices only). */
+  registered = false;
+  private one: Int32Array = new Int32Array(0);
+  private readonly rows: Int32Array[] = [];
+
+  constructor(
+    readonly pieces: number,
+    private readonly budget: { left: number },
+  ) {}
+
+  /** Index for piece values a (and b with two pieces), both in [0, PIECE_BOUND); -1 when unknown. */
+  get(a: number, b: number): number {
+    if (this.pieces === 1) return a < this.one.length ? this.one[a] - 1 : -1;
+    const row = a < this.rows.length ? this.rows[a] : undefined;
+    return row !== undefined && b < row.length ? row[b] - 1 : -1;
+  }
+
+  /** Stores an index; false when the values are out of bound or the budget is spent. */
+  set(a: number, b: number, index: number): boolean {
+    if (a >= PIECE_BOUND || b >= PIECE_BOUND) return false;
+    if (this.pieces === 1) {
+      if (a >= this.one.length) {
+        const grown = this.grow(this.one, a);
+        if (!grown) return false;
+        this.one = grown;
+      }
+      this.one[a] = index + 1;
+      return true;
+    }
+    let row = a < this.rows.length ? this.rows[a] : undefined;
+    if (row === undefined || b >= row.length) {
+      const grown = this.grow(row ?? new Int32Array(0), b);
+      if (!grown) return false;
+      while (this.rows.length <= a) this.rows.push(EMPTY_ROW);
+      this.rows[a] = row = grown;
+    }
+    row[b] = index + 1;
+    return true;
+  }
+
+  private grow(old: Int32Array, need: number): Int32Array | null {
+    const size = Math.min(PIECE_BOUND, Math.max(need + 1, old.length * 2, 16));
+    if (this.budget.left < size - old.length) return null;
+    this.budget.left -= size - old.length;
+    const d = new Int32Array(size);
+    d.set(old);
+    return d;
+  }
+}
+const EMPTY_ROW: Int32Array = new Int32Array(0);
+/** Fixed device names compared with device name shapes; beyond this many, every shape looks names up. */
+const FIXED_SEEN = 256;
+
+/**
+ * False only when no string can be a name of both shapes (a fixed name is a
+ * shape of one literal). A name of shape lits is lits[0] D lits[1] D … with D
+ * a non-empty run of digits; compared here: the literal before the first piece,
+ * the literal after the last, and the length of a fixed name.
+ */
+function mayShareName(a: string[], b: string[]): boolean {
+  if (a.length === 1 && b.length === 1) return a[0] === b[0];
+  if (a.length === 1 && a[0].length < minLength(b)) return false;
+  if (b.length === 1 && b[0].length < minLength(a)) return false;
+  return endsAgree(a[0], a.length > 1, b[0], b.length > 1, false) && endsAgree(a[a.length - 1], a.length > 1, b[b.length - 1], b.length > 1, true);
+}
+
+function minLength(lits: string[]): number {
+  let n = lits.length - 1;
+  for (const l of lits) n += l.length;
+  return n;
+}
+
+/** Whether literal x (then a digit when dx) and y (then a digit when dy) agree at every position both fix; from the end when fromEnd. */
+function endsAgree(x: string, dx: boolean, y: string, dy: boolean, fromEnd: boolean): boolean {
+  const n = Math.min(x.length + (dx ? 1 : 0), y.length + (dy ? 1 : 0));
+  for (let i = 0; i < n; i++) {
+    const cx = i < x.length ? x.charCodeAt(fromEnd ? x.length - 1 - i : i) : -1;
+    const cy = i < y.length ? y.charCodeAt(fromEnd ? y.length - 1 - i : i) : -1;
+    if (cx === cy) continue;
+    if (cx === -1 ? !isDigit(cy) : cy === -1 ? !isDigit(cx) : true) return false;
+  }
+  return true;
+}
+
+function isDigit(c: number): boolean {
+  return c === -1 || (c >= 48 && c <= 57);
+}
+
 const PIN_SETS = {
   nfet: { required: ["gate", "source", "drain"], optional: ["bulk", "w", "l"] },
   pfet: { required: ["gate", "source", "drain", "well"], optional: ["w", "l"] },
@@ -337,6 +466,20 @@ class Elaborator {
   private readonly nodeTo = new IntColumn();
   private readonly suppressed = new Set<number>();
   private readonly rails: RailDef[] = [];
+  /** Shape id of the template that made each node through its PieceIndex, -1 otherwise. */
+  private readonly nodeShape = new IntColumn();
+
+  // Name shapes (see Shape).
+  private readonly shapes = new Map<string, Shape>();
+  private readonly shapeList: Shape[] = [];
+  private readonly pieceBudget = { left: PIECE_BUDGET };
+  /** Shapes of interpolated device names made so far, and fixed device names (up to FIXED_SEEN). */
+  private readonly devShapes: Shape[] = [];
+  private readonly fixedDevNames: string[] = [];
+  private fixedDevOverflow = false;
+  /** Piece values of the last name `pieceName` made through a PieceIndex. */
+  private pieceA = 0;
+  private pieceB = 0;
 
   // Devices.
   private readonly devNames: string[] = [];
@@ -976,7 +1119,7 @@ class Elaborator {
   }
 
   private fixedName(n: SyntaxNode): NameTpl {
-    return { from: n.from, to: n.to, fixed: this.src(n), parts: [] };
+    return fixedTpl(n.from, n.to, this.src(n));
   }
 
   private compileProbe(s: SyntaxNode, loopVars: string[]): ProbeTpl | null {
@@ -1181,14 +1324,14 @@ class Elaborator {
   /** A name (Definition, Identifier or InterpolatedName node) as a template. */
   private compileName(node: SyntaxNode, loopVars: string[]): NameTpl | null {
     const inner = node.type.id === T.Definition ? (node.getChild("InterpolatedName") ?? null) : node.type.id === T.InterpolatedName ? node : null;
-    if (!inner) return { from: node.from, to: node.to, fixed: this.src(node), parts: [] };
+    if (!inner) return fixedTpl(node.from, node.to, this.src(node));
     const e = this.build(inner);
     if (e.k !== "interp" || isBad(e)) return null;
     return this.nameTplOf(e, loopVars);
   }
 
   private nameTplOf(e: InterpExpr | NameExpr, loopVars: string[]): NameTpl | null {
-    if (e.k === "name") return { from: e.from, to: e.to, fixed: e.name, parts: [] };
+    if (e.k === "name") return fixedTpl(e.from, e.to, e.name);
     const parts: NameTpl["parts"] = [];
     let ok = true;
     for (const p of e.parts) {
@@ -1239,7 +1382,24 @@ class Elaborator {
       const { slot, offset } = loopOffset(p, loopVars);
       parts.push({ value, slot, offset });
     }
-    return ok ? { from: e.from, to: e.to, fixed: null, parts } : null;
+    if (!ok) return null;
+    const lits = [""];
+    const pieces: NamePiece[] = [];
+    for (const p of parts) {
+      if (typeof p === "string") lits[lits.length - 1] += p;
+      else {
+        pieces.push(p);
+        lits.push("");
+      }
+    }
+    const key = lits.join("\u0001");
+    let shape = this.shapes.get(key);
+    if (!shape) {
+      shape = { lits, node: null, dev: null, id: this.shapeList.length };
+      this.shapes.set(key, shape);
+      this.shapeList.push(shape);
+    }
+    return { from: e.from, to: e.to, fixed: null, parts, shape, pieces };
   }
 
   /** A pin value that names a node. */
@@ -1254,7 +1414,7 @@ class Elaborator {
         this.sink.error(node.from, node.to, `${key}= names a node, but '${name}' is ${what}`, what === "a loop variable" ? `write a node name such as x{${name}}` : `to hold a node at a fixed voltage, declare it: rail ${name}_node = ${name}`);
         return null;
       }
-      return { from: node.from, to: node.to, fixed: name, parts: [] };
+      return fixedTpl(node.from, node.to, name);
     }
     if (node.type.id === T.InterpolatedName) return this.compileName(node, loopVars);
     this.sink.error(node.from, node.to, `${key}= names a node, not a value`, "to hold a node at a fixed voltage, declare a rail: rail vg = 0.5 and write gate=vg");
@@ -1351,8 +1511,61 @@ class Elaborator {
     return s;
   }
 
+  /**
+   * The name of template t (with one or two pieces) when its pieces are whole
+   * numbers in [0, PIECE_BOUND): the values go to pieceA / pieceB. Null
+   * otherwise (nameOf then makes the name or reports the bad piece).
+   */
+  private pieceName(t: NameTpl): string | null {
+    const shape = t.shape!;
+    const ps = t.pieces;
+    const p0 = ps[0];
+    const a = p0.slot >= 0 ? this.loopValues[p0.slot] + p0.offset : this.valueOf(p0.value);
+    if (!(a >= 0 && a < PIECE_BOUND && Number.isInteger(a))) return null;
+    const lits = shape.lits;
+    if (ps.length === 1) {
+      this.pieceA = a;
+      this.pieceB = 0;
+      return lits[0] + a + lits[1];
+    }
+    const p1 = ps[1];
+    const b = p1.slot >= 0 ? this.loopValues[p1.slot] + p1.offset : this.valueOf(p1.value);
+    if (!(b >= 0 && b < PIECE_BOUND && Number.isInteger(b))) return null;
+    this.pieceA = a;
+    this.pieceB = b;
+    return lits[0] + a + lits[1] + b + lits[2];
+  }
+
   private nodeOf(t: NameTpl): number {
-    const name = this.nameOf(t);
+    const shape = t.shape;
+    if (shape !== null && t.pieces.length <= 2) {
+      const cache = (shape.node ??= new PieceIndex(t.pieces.length, this.pieceBudget));
+      const p0 = t.pieces[0];
+      const a = p0.slot >= 0 ? this.loopValues[p0.slot] + p0.offset : this.valueOf(p0.value);
+      if (a >= 0 && a < PIECE_BOUND && Number.isInteger(a)) {
+        let b = 0;
+        let ok = true;
+        if (t.pieces.length === 2) {
+          const p1 = t.pieces[1];
+          b = p1.slot >= 0 ? this.loopValues[p1.slot] + p1.offset : this.valueOf(p1.value);
+          ok = b >= 0 && b < PIECE_BOUND && Number.isInteger(b);
+        }
+        if (ok) {
+          const hit = cache.get(a, b);
+          if (hit >= 0) return hit;
+          const lits = shape.lits;
+          const name = t.pieces.length === 1 ? lits[0] + a + lits[1] : lits[0] + a + lits[1] + b + lits[2];
+          const before = this.nodeNames.length;
+          const i = this.nodeByName(t, name);
+          if (cache.set(a, b, i) && i === before) this.nodeShape.data[i] = shape.id;
+          return i;
+        }
+      }
+    }
+    return this.nodeByName(t, this.nameOf(t));
+  }
+
+  private nodeByName(t: NameTpl, name: string | null): number {
     if (name === null) return -1;
     let i = this.nodeIndex.get(name);
     if (i === undefined) {
@@ -1363,6 +1576,7 @@ class Elaborator {
       this.isRail.push(0);
       this.nodeFrom.push(t.from);
       this.nodeTo.push(t.to);
+      this.nodeShape.push(-1);
       if (this.brokenNames.has(name)) this.suppressed.add(i);
     }
     return i;
@@ -1419,9 +1633,51 @@ class Elaborator {
     this.suppressRefs(refs);
   }
 
+  /** Compares a device name shape with every other one made so far (sets `complete` false on both when they may share a name). */
+  private registerDevShape(shape: Shape): void {
+    const own = shape.dev!;
+    own.registered = true;
+    if (this.fixedDevOverflow) own.complete = false;
+    for (const f of this.fixedDevNames) if (mayShareName(shape.lits, [f])) own.complete = false;
+    for (const o of this.devShapes) {
+      if (mayShareName(shape.lits, o.lits)) {
+        own.complete = false;
+        if (o.dev) o.dev.complete = false;
+      }
+    }
+    this.devShapes.push(shape);
+  }
+
+  /** Notes a device made without its PieceIndex: no device shape that may give the same name can trust a miss any more. */
+  private devWithoutIndex(t: NameTpl, name: string): void {
+    const shape = t.shape;
+    if (shape !== null) {
+      if (shape.dev) shape.dev.complete = false;
+      else if (!this.devShapes.includes(shape)) {
+        for (const o of this.devShapes) if (o.dev && mayShareName(shape.lits, o.lits)) o.dev.complete = false;
+        this.devShapes.push(shape);
+      }
+      return;
+    }
+    for (const o of this.devShapes) if (o.dev && mayShareName(o.lits, [name])) o.dev.complete = false;
+    if (this.fixedDevNames.length < FIXED_SEEN) this.fixedDevNames.push(name);
+    else this.fixedDevOverflow = true;
+  }
+
   private execDevice(t: DeviceTpl): void {
     if (t.broken) return this.skipElement(t.name, t.nodes);
-    const name = this.nameOf(t.name);
+    const shape = t.name.shape;
+    let index: PieceIndex | null = null;
+    let name: string | null = null;
+    if (shape !== null && t.name.pieces.length <= 2) {
+      index = shape.dev ??= new PieceIndex(t.name.pieces.length, this.pieceBudget);
+      if (!index.registered) this.registerDevShape(shape);
+      name = this.pieceName(t.name);
+      if (name === null) index = null;
+    }
+    const a = this.pieceA;
+    const bb = this.pieceB;
+    if (name === null) name = this.nameOf(t.name);
     if (name === null) return this.suppressRefs(t.nodes);
     const g = this.nodeOf(t.nodes[0]!);
     const s = this.nodeOf(t.nodes[1]!);
@@ -1431,7 +1687,11 @@ class Elaborator {
     const w = this.length(t.w, "w", DEFAULT_W);
     const l = this.length(t.l, "l", DEFAULT_L);
     const i = this.devNames.length;
-    const first = this.devIndex.get(name);
+    let first: number | undefined;
+    if (index !== null) {
+      const hit = index.get(a, bb);
+      first = hit >= 0 ? hit : index.complete ? undefined : this.devIndex.get(name);
+    } else first = this.devIndex.get(name);
     if (first !== undefined) {
       this.suppressRefs(t.nodes);
       return this.duplicate("device", name, t.name, this.devAt.data[first]);
@@ -1445,6 +1705,7 @@ class Elaborator {
       this.overflow(t, `more than ${this.limits.maxDevices.toLocaleString("en-US")} devices (the limit)`);
     }
     this.devIndex.set(name, i);
+    if (index === null || !index.set(a, bb, i)) this.devWithoutIndex(t.name, name);
     this.devNames.push(name);
     this.devType.push(t.type);
     this.gate.push(g);
@@ -1559,13 +1820,47 @@ class Elaborator {
       if (missing.length) this.sink.error(at.from, this.lines.lineEnd(at.from), `set model = ekv needs ${missing.join(" and ")}`, "for example set vt0 = 450m and set ispec = 100n");
     }
     // One namespace: an internal node may not share its name with anything else.
-    for (let i = 0; i < this.nodeNames.length; i++) {
+    // A node made through a shape no device name can match needs no device look-up;
+    // injects and probes are looked up from the smaller side.
+    const nodeCount = this.nodeNames.length;
+    const devCheck = new Int8Array(this.shapeList.length).fill(-1); // -1 not yet known, 0 no, 1 yes
+    const shapeOf = this.nodeShape.data;
+    const injMark = this.injNames.length < nodeCount ? this.markNodes(this.injNames) : null;
+    const probeMark = this.probeNames.size < nodeCount ? this.markNodes(this.probeNames.keys()) : null;
+    for (let i = 0; i < nodeCount; i++) {
       if (this.isRail[i]) continue;
       const name = this.nodeNames[i];
-      const other = this.devIndex.has(name) ? "a device" : this.injIndex.has(name) ? "an inject" : this.probeNames.has(name) ? "a probe" : null;
+      const sh = shapeOf[i];
+      if (sh >= 0 && devCheck[sh] < 0) devCheck[sh] = this.mayBeDeviceName(this.shapeList[sh].lits) ? 1 : 0;
+      const other =
+        (sh < 0 || devCheck[sh] === 1) && this.devIndex.has(name)
+          ? "a device"
+          : (injMark ? injMark[i] === 1 : this.injIndex.has(name))
+            ? "an inject"
+            : (probeMark ? probeMark[i] === 1 : this.probeNames.has(name))
+              ? "a probe"
+              : null;
       if (other) this.sink.error(this.nodeFrom.data[i], this.nodeTo.data[i], `node name '${name}' is already ${other}`, "every name means one thing: rename one of them");
     }
     this.connectivity();
+  }
+
+  /** 1 for every node that carries one of the names. */
+  private markNodes(names: Iterable<string>): Uint8Array {
+    const mark = new Uint8Array(this.nodeNames.length);
+    for (const n of names) {
+      const i = this.nodeIndex.get(n);
+      if (i !== undefined) mark[i] = 1;
+    }
+    return mark;
+  }
+
+  /** Whether some device made so far may carry a name of this shape. */
+  private mayBeDeviceName(lits: string[]): boolean {
+    if (this.fixedDevOverflow) return true;
+    for (const f of this.fixedDevNames) if (mayShareName(lits, [f])) return true;
+    for (const o of this.devShapes) if (mayShareName(lits, o.lits)) return true;
+    return false;
   }
 
   private checkSweeps(): void {
