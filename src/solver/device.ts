@@ -67,9 +67,12 @@ function fillLn(P: DeviceParams): void {
   P.lnReady = true;
 }
 
+/** NFET as a module-local constant (an imported binding can compile to a getter call; see linear.ts). */
+const N_TYPE: number = NFET;
+
 /** σ for a device type. */
 export function polarity(type: number): number {
-  return type === NFET ? 1 : -1;
+  return type === N_TYPE ? 1 : -1;
 }
 
 /**

@@ -34,6 +34,14 @@ import { amd, natural, nestedDissection, type OrderingName } from "./order";
 import { cumsum, dedupeAdjacency, type Csc, multiplySymmetric } from "./sparse";
 import { analyse, type Kernel, type Symbolic } from "./symbolic";
 import { lsolve, ltsolve } from "./triangular";
+import { forestSymbolic, leafFirstOrder } from "./tree";
+
+/**
+ * NFET as a module-local constant: a loader that compiles ES modules to
+ * CommonJS (tsx, the bench's runner) turns each read of an imported binding
+ * into a getter call, measured at ~60 ms per 10^6-device pass.
+ */
+const N_TYPE: number = NFET;
 
 /** The fill-reducing ordering used when the natural order has fill (measured on grid256/grid512: see bench/). */
 export const DEFAULT_ORDERING: OrderingName = "nd";
@@ -65,7 +73,8 @@ export interface LinearPlan {
   railNodes: Int32Array;
   /** 1 when row r is an n-channel node, 0 for p-channel. */
   rowIsN: Uint8Array;
-  ordering: OrderingName;
+  /** The ordering; "tree" when the graph is a forest, eliminated leaves first (tree.ts). */
+  ordering: OrderingName | "tree";
   symbolic: Symbolic;
   /** The permuted triangle of the matrix the kernel reads; values refilled by factorLinear. */
   C: Csc;
@@ -148,31 +157,129 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     nodeOfRow[r] = k;
     rowIsN[r] = cls.nodeClass[k] & CLASS_N ? 1 : 0;
   }
-  const { source, drain } = devices;
+  const { source, drain, type } = devices;
+  // One pass: channel types per node, degrees and neighbour XORs of the graph
+  // of internal rows (for the forest test), devices with one internal terminal.
   const nodeTouch = new Uint8Array(nn);
-  for (let d = 0; d < m; d++) {
-    const bit = devices.type[d] === NFET ? 1 : 2;
-    nodeTouch[source[d]] |= bit;
-    nodeTouch[drain[d]] |= bit;
-  }
-  // Adjacency graph of the internal rows (both directions, duplicates merged).
   const deg = new Int32Array(rows);
+  const nbrXor = new Int32Array(rows);
   let railCount = 0;
   for (let d = 0; d < m; d++) {
-    const a = rowOf[source[d]];
-    const b = rowOf[drain[d]];
+    const s = source[d];
+    const t = drain[d];
+    const bit = type[d] === N_TYPE ? 1 : 2;
+    nodeTouch[s] |= bit;
+    nodeTouch[t] |= bit;
+    const a = rowOf[s];
+    const b = rowOf[t];
     if (a >= 0 && b >= 0) {
       if (a !== b) {
         deg[a]++;
         deg[b]++;
+        nbrXor[a] ^= b;
+        nbrXor[b] ^= a;
       }
     } else if (a >= 0 || b >= 0) railCount++;
   }
+  const choice = opts.ordering ?? "auto";
+  const forest = choice === "auto" && (opts.kernel ?? "auto") === "auto" ? leafFirstOrder(rows, deg, nbrXor) : null;
+  const railDevices = new Int32Array(railCount);
+  const posS = new Int32Array(m);
+  const posD = new Int32Array(m);
+  const posOff = new Int32Array(m);
+  let ordering: OrderingName | "tree";
+  let symbolic: Symbolic;
+  let C: Csc;
+  if (forest) {
+    // A forest: leaves first, no fill, L has C's pattern (tree.ts); no general analysis.
+    ordering = "tree";
+    const fs = forestSymbolic(forest.perm, forest.pinv, forest.parent);
+    symbolic = fs.symbolic;
+    const lp = symbolic.lp;
+    const pinv = symbolic.pinv;
+    C = { m: rows, n: rows, p: lp, i: fs.rows, x: new Float64Array(symbolic.lnz) };
+    railCount = 0;
+    for (let d = 0; d < m; d++) {
+      const s = source[d];
+      const t = drain[d];
+      const a = s === t ? -1 : rowOf[s];
+      const b = s === t ? -1 : rowOf[t];
+      posS[d] = a >= 0 ? lp[pinv[a]] : -1;
+      posD[d] = b >= 0 ? lp[pinv[b]] : -1;
+      if (a >= 0 && b >= 0) {
+        const pa = pinv[a];
+        const pb = pinv[b];
+        // The child is eliminated first; its column holds the entry to its parent.
+        posOff[d] = lp[pa < pb ? pa : pb] + 1;
+      } else {
+        posOff[d] = -1;
+        if (a >= 0 || b >= 0) railDevices[railCount++] = d;
+      }
+    }
+  } else {
+    ({ ordering, symbolic, C } = generalEntries(net, rows, rowOf, deg, railDevices, posS, posD, posOff, opts));
+  }
+  const railNodes = new Int32Array(nn - rows);
+  for (let k = 0, t = 0; k < nn; k++) if (rowOf[k] < 0) railNodes[t++] = k;
+  return {
+    rows,
+    nodeOfRow,
+    rowOf,
+    railNodes,
+    rowIsN,
+    ordering,
+    symbolic,
+    C,
+    posS,
+    posD,
+    posOff,
+    railDevices,
+    work: choleskyWork(symbolic),
+    factor: null,
+    g: new Float64Array(m),
+    c: new Float64Array(m),
+    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: new Float64Array(rows) },
+    gateStamp: new Int32Array(nn),
+    gateValue: new Float64Array(nn),
+    gateWell: new Int32Array(nn),
+    stamp: 0,
+    nodeTouch,
+    en: new Float64Array(nn),
+    ep: new Float64Array(nn),
+    rhsRails: new Float64Array(rows),
+    vref: new Float64Array(2),
+    lnScale: new Float64Array(2),
+    b: new Float64Array(rows),
+    y: new Float64Array(rows),
+    r: new Float64Array(rows),
+    refine: opts.refine ?? 0,
+    analyseMs: performance.now() - t0,
+  };
+}
+
+/**
+ * The general structure: adjacency graph of the internal rows (deg: their
+ * degrees, consumed), ordering, symbolic analysis, the permuted triangle's
+ * pattern, and per device its entries (posS/posD/posOff) and railDevices (filled).
+ */
+function generalEntries(
+  net: Network,
+  rows: number,
+  rowOf: Int32Array,
+  deg: Int32Array,
+  railDevices: Int32Array,
+  posS: Int32Array,
+  posD: Int32Array,
+  posOff: Int32Array,
+  opts: LinearOptions,
+): { ordering: OrderingName; symbolic: Symbolic; C: Csc } {
+  const { source, drain } = net.devices;
+  const m = net.devices.count;
+  // Adjacency graph of the internal rows (both directions, duplicates merged).
   const ap = new Int32Array(rows + 1);
   cumsum(ap, deg, rows);
   const idx = new Int32Array(ap[rows]);
-  const railDevices = new Int32Array(railCount);
-  railCount = 0;
+  let railCount = 0;
   for (let d = 0; d < m; d++) {
     const a = rowOf[source[d]];
     const b = rowOf[drain[d]];
@@ -225,9 +332,9 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     diagPos[c] = colCount[c]++;
     ci[diagPos[c]] = c;
   }
-  const posS = new Int32Array(m).fill(-1);
-  const posD = new Int32Array(m).fill(-1);
-  const posOff = new Int32Array(m).fill(-1);
+  posS.fill(-1);
+  posD.fill(-1);
+  posOff.fill(-1);
   for (let d = 0; d < m; d++) {
     // A channel from a node to itself carries no current: no entry.
     if (source[d] === drain[d]) continue;
@@ -243,43 +350,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     ci[slot] = col === pa ? pb : pa;
     posOff[d] = slot;
   }
-  const C: Csc = { m: rows, n: rows, p: cp, i: ci, x: cx };
-  const railNodes = new Int32Array(nn - rows);
-  for (let k = 0, t = 0; k < nn; k++) if (rowOf[k] < 0) railNodes[t++] = k;
-  return {
-    rows,
-    nodeOfRow,
-    rowOf,
-    railNodes,
-    rowIsN,
-    ordering,
-    symbolic,
-    C,
-    posS,
-    posD,
-    posOff,
-    railDevices,
-    work: choleskyWork(symbolic),
-    factor: null,
-    g: new Float64Array(m),
-    c: new Float64Array(m),
-    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: new Float64Array(rows) },
-    gateStamp: new Int32Array(nn),
-    gateValue: new Float64Array(nn),
-    gateWell: new Int32Array(nn),
-    stamp: 0,
-    nodeTouch,
-    en: new Float64Array(nn),
-    ep: new Float64Array(nn),
-    rhsRails: new Float64Array(rows),
-    vref: new Float64Array(2),
-    lnScale: new Float64Array(2),
-    b: new Float64Array(rows),
-    y: new Float64Array(rows),
-    r: new Float64Array(rows),
-    refine: opts.refine ?? 0,
-    analyseMs: performance.now() - t0,
-  };
+  return { ordering, symbolic, C: { m: rows, n: rows, p: cp, i: ci, x: cx } };
 }
 
 function orderBy(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array): Int32Array {
@@ -307,7 +378,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   for (let d = 0; d < m; d++) {
     const s = source[d];
     const t = drain[d];
-    const isN = type[d] === NFET;
+    const isN = type[d] === N_TYPE;
     const b = bulk[d];
     const vb = b >= 0 ? V[b] : 0;
     const e = isN ? (kappa * (V[gate[d]] - vb) + vb) / ut : (kappa * (vb - V[gate[d]]) - vb) / ut;
@@ -343,7 +414,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   const stamp = ++plan.stamp;
   const { gateStamp, gateValue, gateWell } = plan;
   for (let d = 0; d < m; d++) {
-    const isN = type[d] === NFET;
+    const isN = type[d] === N_TYPE;
     const gn = gate[d];
     const b = bulk[d];
     let f: number;
@@ -384,7 +455,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
     const rs = plan.rowOf[s];
     const row = rs >= 0 ? rs : plan.rowOf[drain[d]];
     const rail = rs >= 0 ? drain[d] : s;
-    rhs[row] += gl[d] * (type[d] === NFET ? uN[rail] : uP[rail]);
+    rhs[row] += gl[d] * (type[d] === N_TYPE ? uN[rail] : uP[rail]);
   }
   const res = cholesky(plan.C, plan.symbolic, plan.factor ?? undefined, plan.work);
   if (!res.ok) {

@@ -48,7 +48,8 @@ export interface Symbolic {
   lnz: number;
   /** Σ over columns of count²: the work of the numeric factorisation. */
   flops: number;
-  kernel: Kernel;
+  /** "tree": a forest in leaf-first order (tree.ts), L has the pattern of C; factored by the tree kernel. */
+  kernel: Kernel | "tree";
   /** Present when kernel is "supernodal". */
   supernodes: Supernodes | null;
 }
