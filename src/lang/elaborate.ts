@@ -85,6 +85,24 @@ const SETTINGS = ["kappa", "temp", "i0", "vt0", "ispec", "model"] as const;
 type SettingName = (typeof SETTINGS)[number];
 const RESERVED_HINT = "built-in names: ut, kappa, temp, pi, e";
 
+/**
+ * A name → index Map filled on demand from a names array (names are unique):
+ * names[0, filled) are in it, in order.
+ */
+class LazyIndex {
+  private readonly map = new Map<string, number>();
+  private filled = 0;
+
+  constructor(private readonly names: string[]) {}
+
+  full(): Map<string, number> {
+    const n = this.names;
+    for (let i = this.filled; i < n.length; i++) this.map.set(n[i], i);
+    this.filled = n.length;
+    return this.map;
+  }
+}
+
 /** Growable Int32 column. */
 class IntColumn {
   data = new Int32Array(256);
@@ -152,6 +170,8 @@ interface NameTpl {
   shape: Shape | null;
   /** The pieces of `parts` in order (empty for a fixed name). */
   pieces: NamePiece[];
+  /** For a fixed name: its node once made or found (nodes are never removed), else -1. */
+  fixedNode: number;
 }
 
 interface NamePiece {
@@ -317,7 +337,7 @@ function loopOffset(p: Expr, loopVars: string[]): { slot: number; offset: number
 }
 
 function fixedTpl(from: number, to: number, name: string): NameTpl {
-  return { from, to, fixed: name, parts: [], shape: null, pieces: [] };
+  return { from, to, fixed: name, parts: [], shape: null, pieces: [], fixedNode: -1 };
 }
 
 /** Largest piece value a PieceIndex holds, and most entries all of one elaboration's indexes hold. */
@@ -483,7 +503,8 @@ class Elaborator {
 
   // Devices.
   private readonly devNames: string[] = [];
-  private readonly devIndex = new Map<string, number>();
+  /** Filled on demand: devices whose name no other shape can give need no look-up while elaborating. */
+  private readonly devs = new LazyIndex(this.devNames);
   private readonly devType: number[] = [];
   private readonly gate = new IntColumn();
   private readonly source = new IntColumn();
@@ -1202,9 +1223,10 @@ class Elaborator {
       this.sink.error(n.from, n.to, `the setting '${name}' cannot be used in an expression`, "expressions may use params, loop variables, ut, kappa and temp");
       return null;
     }
-    if (this.nodeIndex.has(name) || this.devIndex.has(name) || this.injIndex.has(name)) {
-      const what = this.devIndex.has(name) ? "a device" : this.injIndex.has(name) ? "an inject" : "a node";
-      this.sink.error(n.from, n.to, `'${name}' is ${what}, not a value`, this.devIndex.has(name) || this.injIndex.has(name) ? `in a probe, use current(${name})` : `in a probe, use voltage(${name})`);
+    const isDev = this.devHas(name, null);
+    if (this.nodeIndex.has(name) || isDev || this.injIndex.has(name)) {
+      const what = isDev ? "a device" : this.injIndex.has(name) ? "an inject" : "a node";
+      this.sink.error(n.from, n.to, `'${name}' is ${what}, not a value`, isDev || this.injIndex.has(name) ? `in a probe, use current(${name})` : `in a probe, use voltage(${name})`);
       return null;
     }
     const candidates = [...loopVars, ...this.params.keys(), ...Object.keys(BUILTINS)];
@@ -1399,7 +1421,7 @@ class Elaborator {
       this.shapes.set(key, shape);
       this.shapeList.push(shape);
     }
-    return { from: e.from, to: e.to, fixed: null, parts, shape, pieces };
+    return { from: e.from, to: e.to, fixed: null, parts, shape, pieces, fixedNode: -1 };
   }
 
   /** A pin value that names a node. */
@@ -1537,6 +1559,10 @@ class Elaborator {
   }
 
   private nodeOf(t: NameTpl): number {
+    if (t.fixed !== null) {
+      if (t.fixedNode < 0) t.fixedNode = this.nodeByName(t, t.fixed);
+      return t.fixedNode;
+    }
     const shape = t.shape;
     if (shape !== null && t.pieces.length <= 2) {
       const cache = (shape.node ??= new PieceIndex(t.pieces.length, this.pieceBudget));
@@ -1586,7 +1612,7 @@ class Elaborator {
   private otherKind(name: string, self: "a rail" | "a device" | "an inject" | "a probe"): string | null {
     const k = this.kindByName.get(name);
     if (k !== undefined && k !== self) return k;
-    if (self !== "a device" && this.devIndex.has(name)) return "a device";
+    if (self !== "a device" && this.devHas(name, null)) return "a device";
     return null;
   }
 
@@ -1690,8 +1716,8 @@ class Elaborator {
     let first: number | undefined;
     if (index !== null) {
       const hit = index.get(a, bb);
-      first = hit >= 0 ? hit : index.complete ? undefined : this.devIndex.get(name);
-    } else first = this.devIndex.get(name);
+      first = hit >= 0 ? hit : index.complete ? undefined : this.devs.full().get(name);
+    } else first = this.devs.full().get(name);
     if (first !== undefined) {
       this.suppressRefs(t.nodes);
       return this.duplicate("device", name, t.name, this.devAt.data[first]);
@@ -1704,7 +1730,6 @@ class Elaborator {
     if (i >= this.limits.maxDevices) {
       this.overflow(t, `more than ${this.limits.maxDevices.toLocaleString("en-US")} devices (the limit)`);
     }
-    this.devIndex.set(name, i);
     if (index === null || !index.set(a, bb, i)) this.devWithoutIndex(t.name, name);
     this.devNames.push(name);
     this.devType.push(t.type);
@@ -1833,7 +1858,7 @@ class Elaborator {
       const sh = shapeOf[i];
       if (sh >= 0 && devCheck[sh] < 0) devCheck[sh] = this.mayBeDeviceName(this.shapeList[sh].lits) ? 1 : 0;
       const other =
-        (sh < 0 || devCheck[sh] === 1) && this.devIndex.has(name)
+        (sh < 0 ? this.devHas(name, null) : devCheck[sh] === 1 && this.devs.full().has(name))
           ? "a device"
           : (injMark ? injMark[i] === 1 : this.injIndex.has(name))
             ? "an inject"
@@ -1853,6 +1878,11 @@ class Elaborator {
       if (i !== undefined) mark[i] = 1;
     }
     return mark;
+  }
+
+  /** Whether a device carries `name` (of shape `lits` when known). */
+  private devHas(name: string, lits: string[] | null): boolean {
+    return this.mayBeDeviceName(lits ?? [name]) && this.devs.full().has(name);
   }
 
   /** Whether some device made so far may carry a name of this shape. */
@@ -1993,6 +2023,7 @@ class Elaborator {
 
   private network(): Network {
     const count = this.devNames.length;
+    const devs = this.devs;
     const net: Network = {
       name: this.name,
       settings: { ...this.settings },
@@ -2002,7 +2033,9 @@ class Elaborator {
       devices: {
         count,
         names: this.devNames,
-        index: this.devIndex,
+        get index() {
+          return devs.full();
+        },
         type: Uint8Array.from(this.devType),
         gate: this.gate.finish(),
         source: this.source.finish(),
@@ -2082,10 +2115,11 @@ class Elaborator {
         if (this.brokenNames.has(a.name)) continue;
         if (a.kind === "voltage") {
           if (this.nodeIndex.has(a.name)) continue;
-          const hint = this.devIndex.has(a.name) || this.injIndex.has(a.name) ? `'${a.name}' is a ${this.devIndex.has(a.name) ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames : []);
+          const isDev = this.devHas(a.name, null);
+          const hint = isDev || this.injIndex.has(a.name) ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames : []);
           this.sink.error(a.from, a.to, `voltage() of unknown node '${a.name}'`, hint);
         } else {
-          if (this.devIndex.has(a.name) || this.injIndex.has(a.name)) continue;
+          if (this.devHas(a.name, null) || this.injIndex.has(a.name)) continue;
           const node = this.nodeIndex.get(a.name);
           if (node !== undefined && this.isRail[node]) continue;
           if (node !== undefined) {
