@@ -67,7 +67,7 @@ export interface LinearPlan {
   /** Internal nodes, in node-index order: row r is node nodeOfRow[r]. */
   rows: number;
   nodeOfRow: Int32Array;
-  /** Row of each node, -1 for a rail. */
+  /** Row of each node; for a rail, −1 − its index in railNodes (so < 0). */
   rowOf: Int32Array;
   /** The rail nodes. */
   railNodes: Int32Array;
@@ -78,29 +78,31 @@ export interface LinearPlan {
   symbolic: Symbolic;
   /** The permuted triangle of the matrix the kernel reads; values refilled by factorLinear. */
   C: Csc;
-  /** Per device: positions in C.x of the diagonal of its source row and drain row, and of the off-diagonal (-1 when absent). */
-  posS: Int32Array;
-  posD: Int32Array;
-  posOff: Int32Array;
-  /** Devices with exactly one internal terminal: they put g·û(rail) on the right-hand side. */
-  railDevices: Int32Array;
+  /** Position in C.x of the diagonal of each row. */
+  rowDiag: Int32Array;
+  /**
+   * Per device between two internal rows: position in C.x of its off-diagonal
+   * entry (-1 otherwise). null for a forest, where that entry follows the
+   * child's diagonal: min(rowDiag[a], rowDiag[b]) + 1.
+   */
+  posOff: Int32Array | null;
   work: CholeskyWork;
   /** State of the last successful factorisation. */
   factor: Factor | null;
-  /** Scaled conductance ĝ of every device at the last factorisation. */
-  g: Float64Array;
   /** g·gs_c: the device's pseudo-conductance in amperes (I = c·(û_s − û_d)), for the evaluation. */
   c: Float64Array;
   /** Superposition state for points that change only inject values. */
   sup: Superposition;
-  /** Per-node caches of the gate factor exp(gate exponent − Λ_c) within one factorisation. */
+  /** Per-rail caches of the gate factor exp(gate exponent − Λ_c) within one factorisation (gates are rails in the linear class). */
   gateStamp: Int32Array;
   gateValue: Float64Array;
   gateWell: Int32Array;
+  /** Scratch: û of rail q for n-channel (2q) and p-channel (2q + 1) terminals. */
+  uRail: Float64Array;
   stamp: number;
   /** Node touched by an n-channel (1) / p-channel (2) source or drain. */
   nodeTouch: Uint8Array;
-  /** Scratch for pseudoCurrents (overwritten by the next point). */
+  /** Scratch for pseudoCurrents (overwritten by the next point; allocated on first use). */
   en: Float64Array;
   ep: Float64Array;
   /** Right-hand side from the rails at the last factorisation (scaled). */
@@ -108,7 +110,7 @@ export interface LinearPlan {
   /** Scaling of the last factorisation: reference voltages and ln gs per class (index 0 = p, 1 = n). */
   vref: Float64Array;
   lnScale: Float64Array;
-  /** Scratch vectors of length rows. */
+  /** Scratch vectors of length rows (r only with refinement). */
   b: Float64Array;
   y: Float64Array;
   r: Float64Array;
@@ -137,6 +139,7 @@ interface Superposition {
   isChanged: Uint8Array;
   changed: number[];
   z: Float64Array[];
+  /** Allocated on first use (length 0 before). */
   rest: Float64Array;
 }
 
@@ -148,7 +151,8 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   const m = devices.count;
   const rowOf = new Int32Array(nn);
   let rows = 0;
-  for (let k = 0; k < nn; k++) rowOf[k] = Number.isFinite(nodes.railValue[k]) ? -1 : rows++;
+  let rails = 0;
+  for (let k = 0; k < nn; k++) rowOf[k] = Number.isFinite(nodes.railValue[k]) ? -1 - rails++ : rows++;
   const nodeOfRow = new Int32Array(rows);
   const rowIsN = new Uint8Array(rows);
   for (let k = 0; k < nn; k++) {
@@ -159,11 +163,10 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   }
   const { source, drain, type } = devices;
   // One pass: channel types per node, degrees and neighbour XORs of the graph
-  // of internal rows (for the forest test), devices with one internal terminal.
+  // of internal rows (for the forest test).
   const nodeTouch = new Uint8Array(nn);
   const deg = new Int32Array(rows);
   const nbrXor = new Int32Array(rows);
-  let railCount = 0;
   for (let d = 0; d < m; d++) {
     const s = source[d];
     const t = drain[d];
@@ -172,21 +175,17 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     nodeTouch[t] |= bit;
     const a = rowOf[s];
     const b = rowOf[t];
-    if (a >= 0 && b >= 0) {
-      if (a !== b) {
-        deg[a]++;
-        deg[b]++;
-        nbrXor[a] ^= b;
-        nbrXor[b] ^= a;
-      }
-    } else if (a >= 0 || b >= 0) railCount++;
+    if (a >= 0 && b >= 0 && a !== b) {
+      deg[a]++;
+      deg[b]++;
+      nbrXor[a] ^= b;
+      nbrXor[b] ^= a;
+    }
   }
   const choice = opts.ordering ?? "auto";
   const forest = choice === "auto" && (opts.kernel ?? "auto") === "auto" ? leafFirstOrder(rows, deg, nbrXor) : null;
-  const railDevices = new Int32Array(railCount);
-  const posS = new Int32Array(m);
-  const posD = new Int32Array(m);
-  const posOff = new Int32Array(m);
+  const rowDiag = new Int32Array(rows);
+  let posOff: Int32Array | null = null;
   let ordering: OrderingName | "tree";
   let symbolic: Symbolic;
   let C: Csc;
@@ -198,26 +197,10 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     const lp = symbolic.lp;
     const pinv = symbolic.pinv;
     C = { m: rows, n: rows, p: lp, i: fs.rows, x: new Float64Array(symbolic.lnz) };
-    railCount = 0;
-    for (let d = 0; d < m; d++) {
-      const s = source[d];
-      const t = drain[d];
-      const a = s === t ? -1 : rowOf[s];
-      const b = s === t ? -1 : rowOf[t];
-      posS[d] = a >= 0 ? lp[pinv[a]] : -1;
-      posD[d] = b >= 0 ? lp[pinv[b]] : -1;
-      if (a >= 0 && b >= 0) {
-        const pa = pinv[a];
-        const pb = pinv[b];
-        // The child is eliminated first; its column holds the entry to its parent.
-        posOff[d] = lp[pa < pb ? pa : pb] + 1;
-      } else {
-        posOff[d] = -1;
-        if (a >= 0 || b >= 0) railDevices[railCount++] = d;
-      }
-    }
+    for (let r = 0; r < rows; r++) rowDiag[r] = lp[pinv[r]];
   } else {
-    ({ ordering, symbolic, C } = generalEntries(net, rows, rowOf, deg, railDevices, posS, posD, posOff, opts));
+    // leafFirstOrder consumed nbrXor only; deg is intact.
+    ({ ordering, symbolic, C, posOff } = generalEntries(net, rows, rowOf, deg, rowDiag, opts));
   }
   const railNodes = new Int32Array(nn - rows);
   for (let k = 0, t = 0; k < nn; k++) if (rowOf[k] < 0) railNodes[t++] = k;
@@ -230,28 +213,26 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     ordering,
     symbolic,
     C,
-    posS,
-    posD,
+    rowDiag,
     posOff,
-    railDevices,
     work: choleskyWork(symbolic),
     factor: null,
-    g: new Float64Array(m),
     c: new Float64Array(m),
-    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: new Float64Array(rows) },
-    gateStamp: new Int32Array(nn),
-    gateValue: new Float64Array(nn),
-    gateWell: new Int32Array(nn),
+    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: new Float64Array(0) },
+    gateStamp: new Int32Array(rails),
+    gateValue: new Float64Array(rails),
+    gateWell: new Int32Array(rails),
+    uRail: new Float64Array(2 * rails),
     stamp: 0,
     nodeTouch,
-    en: new Float64Array(nn),
-    ep: new Float64Array(nn),
+    en: new Float64Array(0),
+    ep: new Float64Array(0),
     rhsRails: new Float64Array(rows),
     vref: new Float64Array(2),
     lnScale: new Float64Array(2),
     b: new Float64Array(rows),
     y: new Float64Array(rows),
-    r: new Float64Array(rows),
+    r: new Float64Array(opts.refine ? rows : 0),
     refine: opts.refine ?? 0,
     analyseMs: performance.now() - t0,
   };
@@ -260,35 +241,29 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
 /**
  * The general structure: adjacency graph of the internal rows (deg: their
  * degrees, consumed), ordering, symbolic analysis, the permuted triangle's
- * pattern, and per device its entries (posS/posD/posOff) and railDevices (filled).
+ * pattern, each row's diagonal position (rowDiag, filled) and each device's off-diagonal position.
  */
 function generalEntries(
   net: Network,
   rows: number,
   rowOf: Int32Array,
   deg: Int32Array,
-  railDevices: Int32Array,
-  posS: Int32Array,
-  posD: Int32Array,
-  posOff: Int32Array,
+  rowDiag: Int32Array,
   opts: LinearOptions,
-): { ordering: OrderingName; symbolic: Symbolic; C: Csc } {
+): { ordering: OrderingName; symbolic: Symbolic; C: Csc; posOff: Int32Array } {
   const { source, drain } = net.devices;
   const m = net.devices.count;
   // Adjacency graph of the internal rows (both directions, duplicates merged).
   const ap = new Int32Array(rows + 1);
   cumsum(ap, deg, rows);
   const idx = new Int32Array(ap[rows]);
-  let railCount = 0;
   for (let d = 0; d < m; d++) {
     const a = rowOf[source[d]];
     const b = rowOf[drain[d]];
-    if (a >= 0 && b >= 0) {
-      if (a !== b) {
-        idx[deg[a]++] = b;
-        idx[deg[b]++] = a;
-      }
-    } else if (a >= 0 || b >= 0) railDevices[railCount++] = d;
+    if (a >= 0 && b >= 0 && a !== b) {
+      idx[deg[a]++] = b;
+      idx[deg[b]++] = a;
+    }
   }
   const adj = dedupeAdjacency(rows, ap, idx);
   // Ordering and symbolic analysis.
@@ -332,16 +307,13 @@ function generalEntries(
     diagPos[c] = colCount[c]++;
     ci[diagPos[c]] = c;
   }
-  posS.fill(-1);
-  posD.fill(-1);
-  posOff.fill(-1);
+  for (let r = 0; r < rows; r++) rowDiag[r] = diagPos[pinv[r]];
+  const posOff = new Int32Array(m).fill(-1);
   for (let d = 0; d < m; d++) {
     // A channel from a node to itself carries no current: no entry.
     if (source[d] === drain[d]) continue;
     const a = rowOf[source[d]];
     const b = rowOf[drain[d]];
-    if (a >= 0) posS[d] = diagPos[pinv[a]];
-    if (b >= 0) posD[d] = diagPos[pinv[b]];
     if (a < 0 || b < 0) continue;
     const pa = pinv[a];
     const pb = pinv[b];
@@ -350,7 +322,7 @@ function generalEntries(
     ci[slot] = col === pa ? pb : pa;
     posOff[d] = slot;
   }
-  return { ordering, symbolic, C: { m: rows, n: rows, p: cp, i: ci, x: cx } };
+  return { ordering, symbolic, C: { m: rows, n: rows, p: cp, i: ci, x: cx }, posOff };
 }
 
 function orderBy(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array): Int32Array {
@@ -374,7 +346,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   let vrefP = -Infinity;
   let lamN = -Infinity;
   let lamP = -Infinity;
-  const gl = plan.g; // gate exponent first, conductance after
+  const rowOf = plan.rowOf;
   for (let d = 0; d < m; d++) {
     const s = source[d];
     const t = drain[d];
@@ -382,15 +354,14 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
     const b = bulk[d];
     const vb = b >= 0 ? V[b] : 0;
     const e = isN ? (kappa * (V[gate[d]] - vb) + vb) / ut : (kappa * (vb - V[gate[d]]) - vb) / ut;
-    gl[d] = e;
     if (isN) {
       if (e > lamN) lamN = e;
-      if (plan.rowOf[s] < 0 && V[s] < vrefN) vrefN = V[s];
-      if (plan.rowOf[t] < 0 && V[t] < vrefN) vrefN = V[t];
+      if (rowOf[s] < 0 && V[s] < vrefN) vrefN = V[s];
+      if (rowOf[t] < 0 && V[t] < vrefN) vrefN = V[t];
     } else {
       if (e > lamP) lamP = e;
-      if (plan.rowOf[s] < 0 && V[s] > vrefP) vrefP = V[s];
-      if (plan.rowOf[t] < 0 && V[t] > vrefP) vrefP = V[t];
+      if (rowOf[s] < 0 && V[s] > vrefP) vrefP = V[s];
+      if (rowOf[t] < 0 && V[t] > vrefP) vrefP = V[t];
     }
   }
   if (!Number.isFinite(vrefN)) vrefN = 0;
@@ -405,57 +376,65 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   plan.lnScale[1] = lnI0 + lamN - vrefN / ut;
   const cx = plan.C.x as Float64Array;
   cx.fill(0);
-  const { posS, posD, posOff } = plan;
+  const rhs = plan.rhsRails;
+  rhs.fill(0);
+  // û(rail q) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity.
+  const uRail = plan.uRail;
+  const railNodes = plan.railNodes;
+  for (let q = 0; q < railNodes.length; q++) {
+    const v = V[railNodes[q]];
+    uRail[2 * q] = Math.exp(-(v - vrefN) / ut);
+    uRail[2 * q + 1] = Math.exp((v - vrefP) / ut);
+  }
+  const { rowDiag, posOff } = plan;
   const size = P.size;
   const cOut = plan.c;
   const gsN = Math.exp(plan.lnScale[1]);
   const gsP = Math.exp(plan.lnScale[0]);
-  // Gate factor exp(e − Λ_c), cached per gate node (and well, for a pfet) within this factorisation.
+  // Gate factor exp(e − Λ_c), cached per gate rail (and well, for a pfet) within this factorisation.
   const stamp = ++plan.stamp;
   const { gateStamp, gateValue, gateWell } = plan;
   for (let d = 0; d < m; d++) {
     const isN = type[d] === N_TYPE;
     const gn = gate[d];
+    const gq = -1 - rowOf[gn];
     const b = bulk[d];
     let f: number;
-    if (isN && b >= 0) f = Math.exp(gl[d] - lamN);
-    else if (gateStamp[gn] === stamp && gateWell[gn] === (isN ? -1 : b)) f = gateValue[gn];
+    if ((isN && b >= 0) || gq < 0) {
+      const vb = b >= 0 ? V[b] : 0;
+      f = Math.exp(isN ? (kappa * (V[gn] - vb) + vb) / ut - lamN : (kappa * (vb - V[gn]) - vb) / ut - lamP);
+    } else if (gateStamp[gq] === stamp && gateWell[gq] === (isN ? -1 : b)) f = gateValue[gq];
     else {
-      f = Math.exp(gl[d] - (isN ? lamN : lamP));
-      if (gateStamp[gn] !== stamp) {
-        gateStamp[gn] = stamp;
-        gateWell[gn] = isN ? -1 : b;
-        gateValue[gn] = f;
+      const vb = b >= 0 ? V[b] : 0;
+      f = Math.exp(isN ? (kappa * V[gn]) / ut - lamN : (kappa * (vb - V[gn]) - vb) / ut - lamP);
+      if (gateStamp[gq] !== stamp) {
+        gateStamp[gq] = stamp;
+        gateWell[gq] = isN ? -1 : b;
+        gateValue[gq] = f;
       }
     }
     // ĝ = (W/L)·e^{−κ·dVT/U_T}·exp(e − Λ_c)
     const g = size[d] * f;
-    gl[d] = g;
     cOut[d] = g * (isN ? gsN : gsP);
-    const a = posS[d];
-    const bb = posD[d];
-    if (a >= 0) cx[a] += g;
-    if (bb >= 0) cx[bb] += g;
-    const o = posOff[d];
-    if (o >= 0) cx[o] -= g;
-  }
-  const rhs = plan.rhsRails;
-  rhs.fill(0);
-  const rd = plan.railDevices;
-  // û(rail) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity (plan.en/ep as scratch).
-  const uN = plan.en;
-  const uP = plan.ep;
-  for (const r of plan.railNodes) {
-    uN[r] = Math.exp(-(V[r] - vrefN) / ut);
-    uP[r] = Math.exp((V[r] - vrefP) / ut);
-  }
-  for (let k = 0; k < rd.length; k++) {
-    const d = rd[k];
     const s = source[d];
-    const rs = plan.rowOf[s];
-    const row = rs >= 0 ? rs : plan.rowOf[drain[d]];
-    const rail = rs >= 0 ? drain[d] : s;
-    rhs[row] += gl[d] * (type[d] === N_TYPE ? uN[rail] : uP[rail]);
+    const t = drain[d];
+    // A channel from a node to itself carries no current: no entry.
+    if (s === t) continue;
+    const ra = rowOf[s];
+    const rb = rowOf[t];
+    if (ra >= 0 && rb >= 0) {
+      const da = rowDiag[ra];
+      const db = rowDiag[rb];
+      cx[da] += g;
+      cx[db] += g;
+      cx[posOff ? posOff[d] : (da < db ? da : db) + 1] -= g;
+    } else if (ra >= 0) {
+      cx[rowDiag[ra]] += g;
+      rhs[ra] += g * uRail[2 * (-1 - rb) + (isN ? 0 : 1)];
+    } else if (rb >= 0) {
+      cx[rowDiag[rb]] += g;
+      rhs[rb] += g * uRail[2 * (-1 - ra) + (isN ? 0 : 1)];
+    }
   }
   const res = cholesky(plan.C, plan.symbolic, plan.factor ?? undefined, plan.work);
   if (!res.ok) {
@@ -497,6 +476,7 @@ function solvePermuted(plan: LinearPlan, b: Float64Array, y: Float64Array): void
   for (let k = 0; k < rows; k++) y[k] = b[perm[k]];
   lsolve(factor, y);
   ltsolve(factor, y);
+  if (plan.refine > 0 && plan.r.length !== rows) plan.r = new Float64Array(rows);
   const r = plan.r;
   for (let step = 0; step < plan.refine; step++) {
     multiplySymmetric(plan.C, y, r);
@@ -548,6 +528,7 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
     } else {
       if (sup.changed.length > before) {
         // rest: rails and the injects still at their reference values; z_j: 1 A in inject j.
+        if (sup.rest.length !== rows) sup.rest = new Float64Array(rows);
         solvePermuted(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j])), sup.rest);
         for (let t = before; t < sup.changed.length; t++) {
           const jj = sup.changed[t];
