@@ -86,5 +86,40 @@ test("a designer sees the bench data against the run, and a bad CSV is refused w
   await panel.getByRole("button", { name: "Upload" }).click();
   await expect(panel.getByRole("alert")).toContainText('row 3, column 2 (i): "half" is not a number');
   await shot(page, "measurements");
+  // a good file over a gate voltage: the row's operating-point run cannot be compared with it (used on the run page below)
+  await panel.getByLabel("Measurement CSV").setInputFiles({ name: "vh-sweep.csv", mimeType: "text/csv", buffer: Buffer.from("vh [mV], i [nA]\n700, 0.5\n750, 0.6\n") });
+  await panel.getByRole("button", { name: "Upload" }).click();
+  await expect(panel.getByLabel("Measurement", { exact: true }).locator("option:checked")).toContainText("vh-sweep.csv");
+  await expect(panel.getByRole("alert")).toHaveCount(0);
+
+  // the same bench data on the run page's own profile plot: the row's newest run is an operating point with probes i0…i63
+  await page.goto("/w/lm64-edge-row");
+  await page.getByRole("link", { name: "Newest run of LM-64 edge row: done" }).click();
+  await expect(page).toHaveURL(/\/runs\/r_/);
+  await page.getByRole("tab", { name: "Profile" }).click();
+  const profile = page.getByRole("tabpanel", { name: "Profile" });
+  const benchData = profile.getByLabel("Bench data", { exact: true });
+  const choose = async (file: string) => benchData.selectOption((await benchData.locator("option", { hasText: file }).getAttribute("value"))!);
+  await choose("lm64-row-bench.csv");
+  await expect(profile.getByLabel("Profile of")).toHaveValue("probe:i");
+  const plot = profile.locator("[data-slot=plot]");
+  await expect(plot.locator(".u-legend")).toContainText("measured: lm64-row-bench.csv");
+  await expect(plot.locator(".u-legend")).toContainText("probe i·");
+  const figures = profile.getByTestId("bench-agreement-i");
+  await expect(figures).toContainText("RMS of the log ratio");
+  await expect(figures).toContainText(/largest absolute error \d[\d.]* [pnµ]A at tap = \d+/);
+  await expect(figures).toContainText(/\d+ points compared\./);
+  await expect(profile.getByRole("note")).toContainText("the measurement takes precedence");
+  await page.screenshot({ path: "test-results/browser/run-overlay.png", fullPage: true });
+
+  // a measurement the run cannot cover: the route's one-line reason in place of the figures, and no measured points
+  await choose("vh-sweep.csv");
+  await expect(profile.getByTestId("bench-refusal")).toContainText("the run is an operating point; its x would be a tap index");
+  await expect(profile.getByTestId("bench-agreement-i")).toHaveCount(0);
+  await expect(plot.locator(".u-legend")).not.toContainText("measured:");
+
+  // the probes view has no sweep to draw on for this run: no bench control there, nothing breaks
+  await page.getByRole("tab", { name: "Probes" }).click();
+  await expect(page.getByRole("tabpanel", { name: "Probes" }).getByLabel("Bench data", { exact: true })).toHaveCount(0);
   expect(errors).toEqual([]);
 });

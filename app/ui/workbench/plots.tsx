@@ -18,6 +18,14 @@ export interface Curve {
   values: (number | null)[];
 }
 
+/** Points-only series at their own x (e.g. bench data), merged onto the plot's x axis. */
+export interface Marks {
+  label: string;
+  x: number[];
+  y: number[];
+  colour: string;
+}
+
 export interface LinePlotProps {
   title: string;
   x: number[];
@@ -30,6 +38,28 @@ export interface LinePlotProps {
   /** Draw points only (scatter, e.g. samples). */
   points?: boolean;
   height?: number;
+  /** Extra points-only series; the x axis becomes the sorted union of `x` and theirs, and the curves' lines span the added x. */
+  marks?: Marks[];
+}
+
+/**
+ * The aligned columns of curves and marks. Without marks, x and the curves are
+ * passed unchanged. With marks, x is the sorted union; a value missing at an
+ * added x is `undefined`, which uPlot joins over (only `null` breaks a line).
+ */
+export function alignMarks(x: number[], curves: Curve[], marks: Marks[]): { x: number[]; curves: (number | null | undefined)[][]; marks: (number | undefined)[][] } {
+  if (marks.length === 0) return { x, curves: curves.map((c) => c.values), marks: [] };
+  const xs = [...new Set([...x, ...marks.flatMap((m) => m.x)])].filter(Number.isFinite).sort((a, b) => a - b);
+  const at = new Map(xs.map((v, i) => [v, i]));
+  const column = <T,>(px: number[], py: T[]) => {
+    const out = new Array<T | undefined>(xs.length).fill(undefined);
+    px.forEach((v, i) => {
+      const j = at.get(v);
+      if (j !== undefined) out[j] = py[i];
+    });
+    return out;
+  };
+  return { x: xs, curves: curves.map((c) => column(x, c.values)), marks: marks.map((m) => column(m.x, m.y)) };
 }
 
 function axisValues(unit: string | undefined) {
@@ -37,15 +67,16 @@ function axisValues(unit: string | undefined) {
 }
 
 /** Curves over a shared x axis. Non-positive values are dropped on a log axis. */
-export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false, logY = false, points = false, height = 300 }: LinePlotProps) {
+export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false, logY = false, points = false, height = 300, marks = NO_MARKS }: LinePlotProps) {
   const host = useRef<HTMLDivElement>(null);
   useEffect(() => {
     const el = host.current;
     if (!el || x.length === 0) return;
     let plot: uPlotType | null = null;
     let gone = false;
-    const clean = (v: number | null, log: boolean) => (v === null || !Number.isFinite(v) || (log && v <= 0) ? null : v);
-    const xs = logX ? x.map((v) => (v > 0 ? v : NaN)) : x;
+    const clean = (v: number | null | undefined, log: boolean) => (v === undefined ? undefined : v === null || !Number.isFinite(v) || (log && v <= 0) ? null : v);
+    const aligned = alignMarks(x, curves, marks);
+    const xs = logX ? aligned.x.map((v) => (v > 0 ? v : NaN)) : aligned.x;
     void import("uplot").then(({ default: uPlot }) => {
       if (gone) return;
       const opts: uPlotType.Options = {
@@ -66,10 +97,17 @@ export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false,
             points: { show: points || x.length < 40, size: points ? 4 : 5, fill: CURVE_COLOURS[i % CURVE_COLOURS.length] },
             value: (_u: uPlotType, v: number | null) => (v == null ? "—" : formatEng(v, yUnit ?? "", 4)),
           })),
+          ...marks.map((m) => ({
+            label: m.label,
+            stroke: m.colour,
+            width: 0,
+            points: { show: true, size: 7, width: 1.5, stroke: m.colour, fill: "#ffffff" },
+            value: (_u: uPlotType, v: number | null) => (v == null ? "—" : formatEng(v, yUnit ?? "", 4)),
+          })),
         ],
         legend: { live: true },
       };
-      const data: uPlotType.AlignedData = [xs, ...curves.map((c) => c.values.map((v) => clean(v, logY)))];
+      const data = [xs, ...aligned.curves.map((c) => c.map((v) => clean(v, logY))), ...aligned.marks.map((m) => m.map((v) => clean(v, logY)))] as uPlotType.AlignedData;
       plot = new uPlot(opts, data, el);
     });
     const resize = () => plot?.setSize({ width: Math.max(320, el.clientWidth), height });
@@ -79,9 +117,11 @@ export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false,
       window.removeEventListener("resize", resize);
       plot?.destroy();
     };
-  }, [title, x, xLabel, xUnit, curves, yUnit, logX, logY, points, height]);
+  }, [title, x, xLabel, xUnit, curves, yUnit, logX, logY, points, height, marks]);
   return <div ref={host} role="img" aria-label={title} data-slot="plot" className="w-full overflow-hidden" />;
 }
+
+const NO_MARKS: Marks[] = [];
 
 /** Bin edges and counts: Freedman–Diaconis width (Freedman & Diaconis 1981), between 5 and 60 bins. */
 export function histogramBins(values: number[]): { edges: number[]; counts: number[] } {

@@ -15,6 +15,7 @@ import { indexedGroups } from "@/app/lib/indexed-names";
 import { decodePoint, pointData, type PointData } from "@/app/lib/point-codec";
 import type { RunLayout, SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
+import { BenchDataSelect, BenchFigures, measuredMarks, siUnit, useBenchData, type BenchData } from "./bench-overlay";
 import { DataTable } from "./data-table";
 import { getBytes, getJson, sendJson } from "./fetch";
 import { HeatMap, Histogram, LinePlot, type Curve } from "./plots";
@@ -203,6 +204,7 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
   const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, { revalidateOnFocus: false });
   const bytes = useSWR<ArrayBuffer>(`/api/runs/${runId}/results?view=point&point=${point}&format=binary`, getBytes, { keepPreviousData: true, revalidateOnFocus: false });
   const current = useMemo(() => (layout.data && bytes.data ? pointData(layout.data.layout, decodePoint(bytes.data)) : undefined), [layout.data, bytes.data]);
+  const bench = useBenchData(run.networkId, runId);
   const tabs: [Tab, string][] = [
     ["probes", "Probes"],
     ["operating", "Operating point"],
@@ -253,10 +255,10 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
         ))}
       </div>
       <div role="tabpanel" aria-label={tabs.find((t) => t[0] === tab)?.[1]}>
-        {tab === "probes" ? <ProbesPanel series={series} /> : null}
+        {tab === "probes" ? <ProbesPanel series={series} bench={bench} /> : null}
         {tab === "operating" ? current ? <OperatingPanel point={current} /> : <Loading /> : null}
         {tab === "devices" ? current ? <DevicesPanel point={current} /> : <Loading /> : null}
-        {tab === "profile" ? current ? <ProfilePanel point={current} /> : <Loading /> : null}
+        {tab === "profile" ? current ? <ProfilePanel point={current} bench={bench} /> : <Loading /> : null}
         {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <Loading /> : null}
         {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
       </div>
@@ -291,8 +293,12 @@ function meanOverSamples(values: (number | null)[], samples: number): (number | 
   return out;
 }
 
-function ProbesPanel({ series }: { series: SeriesView }) {
-  const [probe, setProbe] = useState(0);
+function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }) {
+  // null: follow the probe the chosen bench data is matched to (else the first probe).
+  const [probeChoice, setProbeChoice] = useState<number | null>(null);
+  const matchedProbe = bench.overlay?.series.map((s) => series.probes.indexOf(s.against)).find((j) => j >= 0);
+  const probe = probeChoice ?? matchedProbe ?? 0;
+  const setProbe = setProbeChoice;
   const [logX, setLogX] = useState(series.sweeps[series.sweeps.length - 1]?.log ?? false);
   const [logY, setLogY] = useState(false);
   const samples = series.mismatch?.runs ?? 1;
@@ -323,6 +329,9 @@ function ProbesPanel({ series }: { series: SeriesView }) {
     }
     return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(xs.param), curves: [...curves.values()] };
   }, [series, probe, samples, xSweep]);
+  // Bench data is drawn on the probe it is matched to; the overlay route only answers for a run of one sweep.
+  const onPlot = useMemo(() => (bench.overlay && series.sweeps.length === 1 ? bench.overlay.series.filter((s) => s.against === series.probes[probe]) : []), [bench.overlay, series, probe]);
+  const marks = useMemo(() => measuredMarks(bench, onPlot), [bench, onPlot]);
   const rows = useMemo(
     () =>
       series.point.map((p, k) => ({
@@ -381,8 +390,10 @@ function ProbesPanel({ series }: { series: SeriesView }) {
               <input type="checkbox" checked={logY} onChange={(e) => setLogY(e.target.checked)} /> log {series.probes[probe]}
             </label>
             {samples > 1 ? <span className="text-stone-500">mean over {samples} mismatch samples</span> : null}
+            <BenchDataSelect bench={bench} onChoose={() => setProbeChoice(null)} />
           </div>
-          <LinePlot title={`${series.probes[probe]} over ${plot.xLabel}`} x={plot.x} xLabel={plot.xLabel} xUnit={plot.xUnit} curves={plot.curves} logX={logX} logY={logY} />
+          <LinePlot title={`${series.probes[probe]} over ${plot.xLabel}`} x={plot.x} xLabel={plot.xLabel} xUnit={plot.xUnit} curves={plot.curves} logX={logX} logY={logY} marks={marks} yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : undefined} />
+          <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
         </div>
       ) : null}
       <DataTable label="Probes by point" rows={rows} columns={columns} filterPlaceholder="Filter by point" />
@@ -483,15 +494,27 @@ function DevicesPanel({ point }: { point: PointData }) {
   );
 }
 
-function ProfilePanel({ point }: { point: PointData }) {
+/** The probe stem of a profile overlay's `against` ("i{k}" → "i"), else null. */
+function profileStem(against: string): string | null {
+  return against.endsWith("{k}") ? against.slice(0, -3) : null;
+}
+
+function ProfilePanel({ point, bench }: { point: PointData; bench: BenchData }) {
   const groups = useMemo(() => {
     const nodes = indexedGroups(point.nodes.names).profiles.map((p) => ({ key: `node:${p.stem}`, label: `voltage(${p.stem}·)`, unit: "V", index: p.index, values: p.at.map((k) => point.nodes.voltage[k]) }));
     const devs = indexedGroups(point.devices.names).profiles.map((p) => ({ key: `device:${p.stem}`, label: `current(${p.stem}·)`, unit: "A", index: p.index, values: p.at.map((k) => point.devices.current[k]) }));
-    return [...nodes, ...devs];
+    // Indexed probes (i0, i1, … as a for loop writes them): what a profile overlay compares bench data with. Their unit is not stored.
+    const probes = indexedGroups(point.probes.names).profiles.map((p) => ({ key: `probe:${p.stem}`, label: `probe ${p.stem}·`, unit: "", index: p.index, values: p.at.map((k) => point.probes.value[k]) }));
+    return [...nodes, ...devs, ...probes];
   }, [point]);
+  // null: follow the probes the chosen bench data is matched to (else the first current profile).
   const [key, setKey] = useState<string | null>(null);
   const [log, setLog] = useState(true);
-  const g = groups.find((x) => x.key === key) ?? groups.find((x) => x.unit === "A") ?? groups[0];
+  const matchedKey = bench.overlay?.series.map((s) => profileStem(s.against)).find((stem) => stem !== null && groups.some((x) => x.key === `probe:${stem}`));
+  const g = groups.find((x) => x.key === key) ?? groups.find((x) => x.key === `probe:${matchedKey}`) ?? groups.find((x) => x.unit === "A") ?? groups[0];
+  // The overlay route answers with a profile only for an operating point; its series are drawn on the probes they are matched to.
+  const onPlot = useMemo(() => bench.overlay?.series.filter((s) => `probe:${profileStem(s.against)}` === g?.key) ?? [], [bench.overlay, g?.key]);
+  const marks = useMemo(() => measuredMarks(bench, onPlot), [bench, onPlot]);
   if (!g) return <p className="text-stone-600">No indexed names here: a profile needs nodes or devices named with an index (x1, x2, … as a for loop makes them).</p>;
   const curves: Curve[] = [{ label: g.label, values: g.unit === "A" ? g.values.map((v) => Math.abs(v)) : g.values }];
   return (
@@ -511,8 +534,10 @@ function ProfilePanel({ point }: { point: PointData }) {
           <input type="checkbox" checked={log} onChange={(e) => setLog(e.target.checked)} /> log axis
         </label>
         {g.unit === "A" ? <span className="text-stone-500">magnitude of the current</span> : null}
+        <BenchDataSelect bench={bench} onChoose={() => setKey(null)} />
       </div>
-      <LinePlot title={`${g.label} along the index`} x={g.index} xLabel="index" curves={curves} yUnit={g.unit} logY={log} />
+      <LinePlot title={`${g.label} along the index`} x={g.index} xLabel="index" curves={curves} yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : g.unit} logY={log} marks={marks} />
+      <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
     </div>
   );
 }
