@@ -95,6 +95,16 @@ class LazyIndex {
 
   constructor(private readonly names: string[]) {}
 
+  /** Names not yet in the Map. */
+  pending(): boolean {
+    return this.filled < this.names.length;
+  }
+
+  /** The Map without the pending names. */
+  partial(): Map<string, number> {
+    return this.map;
+  }
+
   full(): Map<string, number> {
     const n = this.names;
     for (let i = this.filled; i < n.length; i++) this.map.set(n[i], i);
@@ -437,6 +447,35 @@ function endsAgree(x: string, dx: boolean, y: string, dy: boolean, fromEnd: bool
   return true;
 }
 
+/**
+ * Reads `name` as a name of shape lits (one or two pieces): 1 with the piece
+ * values in out; 0 when it is not such a name or a piece is not below
+ * PIECE_BOUND; -1 when the shape does not read unambiguously (a literal after
+ * a piece that is empty between pieces or starts with a digit).
+ */
+function readPieces(name: string, lits: string[], out: number[]): number {
+  const n = lits.length - 1;
+  if (n < 1 || n > 2) return -1;
+  for (let k = 1; k <= n; k++) {
+    const l = lits[k];
+    if ((k < n && l.length === 0) || (l.length > 0 && isDigit(l.charCodeAt(0)))) return -1;
+  }
+  if (!name.startsWith(lits[0])) return 0;
+  let pos = lits[0].length;
+  for (let k = 0; k < n; k++) {
+    let q = pos;
+    while (q < name.length && isDigit(name.charCodeAt(q))) q++;
+    if (q === pos || q - pos > 7 || (q - pos > 1 && name.charCodeAt(pos) === 48)) return 0;
+    const v = Number(name.slice(pos, q));
+    if (v >= PIECE_BOUND) return 0;
+    out[k] = v;
+    const l = lits[k + 1];
+    if (!name.startsWith(l, q)) return 0;
+    pos = q + l.length;
+  }
+  return pos === name.length ? 1 : 0;
+}
+
 function isDigit(c: number): boolean {
   return c === -1 || (c >= 48 && c <= 57);
 }
@@ -479,7 +518,17 @@ class Elaborator {
 
   // Nodes.
   private readonly nodeNames: string[] = [];
-  private readonly nodeIndex = new Map<string, number>();
+  /**
+   * Filled on demand. Invariant: a node not yet in it was made through the
+   * PieceIndex of a shape that was complete then, and is in that index.
+   */
+  private readonly nodes = new LazyIndex(this.nodeNames);
+  /** Shapes of interpolated node names made so far (registered), and fixed node names (up to FIXED_SEEN). */
+  private readonly nodeShapes: Shape[] = [];
+  private readonly nodeShapeSet = new Set<Shape>();
+  private readonly fixedNodeNames: string[] = [];
+  private fixedNodeOverflow = false;
+  private readonly pieceOut = [0, 0];
   private readonly railValue = new FloatColumn();
   private readonly isRail: number[] = [];
   private readonly nodeFrom = new IntColumn();
@@ -617,7 +666,7 @@ class Elaborator {
       if (cur.name === "Identifier" || cur.name === "Definition") {
         const name = this.text.slice(cur.from, cur.to);
         this.brokenNames.add(name);
-        const node = this.nodeIndex.get(name);
+        const node = this.findNode(name);
         if (node !== undefined) this.suppressed.add(node);
       }
       if (cur.firstChild()) {
@@ -1224,7 +1273,7 @@ class Elaborator {
       return null;
     }
     const isDev = this.devHas(name, null);
-    if (this.nodeIndex.has(name) || isDev || this.injIndex.has(name)) {
+    if (this.findNode(name) !== undefined || isDev || this.injIndex.has(name)) {
       const what = isDev ? "a device" : this.injIndex.has(name) ? "an inject" : "a node";
       this.sink.error(n.from, n.to, `'${name}' is ${what}, not a value`, isDev || this.injIndex.has(name) ? `in a probe, use current(${name})` : `in a probe, use voltage(${name})`);
       return null;
@@ -1579,8 +1628,19 @@ class Elaborator {
         if (ok) {
           const hit = cache.get(a, b);
           if (hit >= 0) return hit;
+          if (!cache.registered) this.registerNodeShape(shape);
           const lits = shape.lits;
           const name = t.pieces.length === 1 ? lits[0] + a + lits[1] : lits[0] + a + lits[1] + b + lits[2];
+          if (cache.complete) {
+            // No other node can carry this name: make it without a Map look-up.
+            const i = this.newNode(t, name);
+            if (cache.set(a, b, i)) this.nodeShape.data[i] = shape.id;
+            else {
+              cache.complete = false;
+              this.nodes.full();
+            }
+            return i;
+          }
           const before = this.nodeNames.length;
           const i = this.nodeByName(t, name);
           if (cache.set(a, b, i) && i === before) this.nodeShape.data[i] = shape.id;
@@ -1591,21 +1651,75 @@ class Elaborator {
     return this.nodeByName(t, this.nameOf(t));
   }
 
+  /** The node named `name`, looked up or made (made: in the name Map at once, see `nodes`). */
   private nodeByName(t: NameTpl, name: string | null): number {
     if (name === null) return -1;
-    let i = this.nodeIndex.get(name);
+    let i = this.findNode(name);
     if (i === undefined) {
-      i = this.nodeNames.length;
-      this.nodeNames.push(name);
-      this.nodeIndex.set(name, i);
-      this.railValue.push(NaN);
-      this.isRail.push(0);
-      this.nodeFrom.push(t.from);
-      this.nodeTo.push(t.to);
-      this.nodeShape.push(-1);
-      if (this.brokenNames.has(name)) this.suppressed.add(i);
+      i = this.newNode(t, name);
+      this.nodes.full();
+      this.madeWithoutIndex(t, name);
     }
     return i;
+  }
+
+  private newNode(t: NameTpl, name: string): number {
+    const i = this.nodeNames.length;
+    this.nodeNames.push(name);
+    this.railValue.push(NaN);
+    this.isRail.push(0);
+    this.nodeFrom.push(t.from);
+    this.nodeTo.push(t.to);
+    this.nodeShape.push(-1);
+    if (this.brokenNames.has(name)) this.suppressed.add(i);
+    return i;
+  }
+
+  /** The node named `name`, if any. Reads the PieceIndex of complete shapes instead of filling the name Map when it can. */
+  private findNode(name: string): number | undefined {
+    if (!this.nodes.pending()) return this.nodes.full().get(name);
+    const lit = [name];
+    for (const o of this.nodeShapes) {
+      if (!mayShareName(lit, o.lits)) continue;
+      const r = o.node && o.node.complete ? readPieces(name, o.lits, this.pieceOut) : -1;
+      if (r < 0) return this.nodes.full().get(name);
+      if (r === 1) {
+        const hit = o.node!.get(this.pieceOut[0], this.pieceOut[1]);
+        if (hit >= 0) return hit;
+      }
+    }
+    return this.nodes.partial().get(name);
+  }
+
+  /** First use of a node name shape: complete unless another node shape or fixed node name made so far may share a name with it. */
+  private registerNodeShape(shape: Shape): void {
+    this.nodeShapeSet.add(shape);
+    const own = shape.node;
+    if (own) own.registered = true;
+    let overlap = this.fixedNodeOverflow;
+    for (const f of this.fixedNodeNames) if (mayShareName(shape.lits, [f])) overlap = true;
+    for (const o of this.nodeShapes) {
+      if (mayShareName(shape.lits, o.lits)) {
+        overlap = true;
+        if (o.node) o.node.complete = false;
+      }
+    }
+    if (own && overlap) own.complete = false;
+    this.nodeShapes.push(shape);
+  }
+
+  /** Notes a node made without its shape's PieceIndex: shapes that may give its name are no longer complete. */
+  private madeWithoutIndex(t: NameTpl, name: string): void {
+    const shape = t.shape;
+    if (shape !== null) {
+      if (!this.nodeShapeSet.has(shape)) this.registerNodeShape(shape);
+      if (shape.node) shape.node.complete = false;
+      for (const o of this.nodeShapes) if (o !== shape && o.node && mayShareName([name], o.lits)) o.node.complete = false;
+      return;
+    }
+    for (const o of this.nodeShapes) if (o.node && mayShareName([name], o.lits)) o.node.complete = false;
+    if (this.fixedNodeNames.length < FIXED_SEEN) this.fixedNodeNames.push(name);
+    else this.fixedNodeOverflow = true;
   }
 
   /** What else carries `name` (rail, device, inject, probe, param), for one-namespace checks. */
@@ -1634,7 +1748,7 @@ class Elaborator {
       const name = r.fixed ?? null;
       if (name === null) continue;
       this.brokenNames.add(name);
-      const i = this.nodeIndex.get(name);
+      const i = this.findNode(name);
       if (i !== undefined) this.suppressed.add(i);
     }
   }
@@ -1787,7 +1901,7 @@ class Elaborator {
     if (t.value && !Number.isFinite(v)) {
       this.sink.error(t.value.from, t.value.to, `a rail value must be a finite voltage, but it is ${fmt(v)}`);
     }
-    const existing = this.nodeIndex.get(name);
+    const existing = this.findNode(name);
     if (existing !== undefined && this.isRail[existing]) {
       const first = this.rails.find((r) => r.node === existing);
       return this.duplicate("rail", name, t.name, first ? first.span.from : t.at);
@@ -1874,7 +1988,7 @@ class Elaborator {
   private markNodes(names: Iterable<string>): Uint8Array {
     const mark = new Uint8Array(this.nodeNames.length);
     for (const n of names) {
-      const i = this.nodeIndex.get(n);
+      const i = this.findNode(n);
       if (i !== undefined) mark[i] = 1;
     }
     return mark;
@@ -2024,11 +2138,18 @@ class Elaborator {
   private network(): Network {
     const count = this.devNames.length;
     const devs = this.devs;
+    const nodes = this.nodes;
     const net: Network = {
       name: this.name,
       settings: { ...this.settings },
       params: this.paramList,
-      nodes: { names: this.nodeNames, index: this.nodeIndex, railValue: this.railValue.finish() },
+      nodes: {
+        names: this.nodeNames,
+        get index() {
+          return nodes.full();
+        },
+        railValue: this.railValue.finish(),
+      },
       rails: this.rails,
       devices: {
         count,
@@ -2114,13 +2235,13 @@ class Elaborator {
       for (const a of p.args) {
         if (this.brokenNames.has(a.name)) continue;
         if (a.kind === "voltage") {
-          if (this.nodeIndex.has(a.name)) continue;
+          if (this.findNode(a.name) !== undefined) continue;
           const isDev = this.devHas(a.name, null);
           const hint = isDev || this.injIndex.has(a.name) ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames : []);
           this.sink.error(a.from, a.to, `voltage() of unknown node '${a.name}'`, hint);
         } else {
           if (this.devHas(a.name, null) || this.injIndex.has(a.name)) continue;
-          const node = this.nodeIndex.get(a.name);
+          const node = this.findNode(a.name);
           if (node !== undefined && this.isRail[node]) continue;
           if (node !== undefined) {
             this.sink.error(a.from, a.to, `current() needs a device, an inject or a rail, but '${a.name}' is an internal node`, `to read its voltage use voltage(${a.name})`);
