@@ -28,7 +28,7 @@ export interface DeviceParams {
   ekvScale: Float64Array;
   /** EKV: VT0 + dVT. */
   vt: Float64Array;
-  /** Threshold offsets of the sample (zeros without mismatch). */
+  /** Threshold offsets of the sample (zeros without mismatch; empty for the weak model without mismatch, which reads none). */
   dvt: Float64Array;
   kappa: number;
   ut: number;
@@ -40,16 +40,19 @@ export function deviceParams(net: Network, dvt: Float64Array | null): DevicePara
   const m = devices.count;
   const { kappa, ut, i0 } = settings;
   const ekv = settings.model === "ekv";
-  const lnScale = new Float64Array(m);
+  // ln scale: filled on first use (the linear path never needs it).
+  const lnScale = new Float64Array(0);
   const size = new Float64Array(m);
   const ekvScale = new Float64Array(ekv ? m : 0);
   const vt = new Float64Array(ekv ? m : 0);
-  const off = dvt ?? new Float64Array(m);
+  const off = dvt ?? new Float64Array(ekv ? m : 0);
   const { w, l } = devices;
-  for (let d = 0; d < m; d++) {
-    const e = off[d] === 0 ? 1 : Math.exp((-kappa * off[d]) / ut);
-    size[d] = (w[d] / l[d]) * e;
-  }
+  if (dvt) {
+    for (let d = 0; d < m; d++) {
+      const e = dvt[d] === 0 ? 1 : Math.exp((-kappa * dvt[d]) / ut);
+      size[d] = (w[d] / l[d]) * e;
+    }
+  } else for (let d = 0; d < m; d++) size[d] = w[d] / l[d];
   if (ekv) {
     const ispec = settings.ispec as number;
     const vt0 = settings.vt0 as number;
@@ -63,6 +66,7 @@ export function deviceParams(net: Network, dvt: Float64Array | null): DevicePara
 
 function fillLn(P: DeviceParams): void {
   const lnI0 = Math.log(P.i0);
+  if (P.lnScale.length !== P.size.length) P.lnScale = new Float64Array(P.size.length);
   for (let d = 0; d < P.size.length; d++) P.lnScale[d] = lnI0 + Math.log(P.size[d]);
   P.lnReady = true;
 }

@@ -97,6 +97,14 @@ export interface LinearPlan {
   gateStamp: Int32Array;
   gateValue: Float64Array;
   gateWell: Int32Array;
+  /**
+   * The distinct gate exponents (every one at least once): device type, gate
+   * node and bulk/well node (-1: substrate) of each; the factorisation takes
+   * the largest exponent per class from these instead of from every device.
+   */
+  keyType: Uint8Array;
+  keyGate: Int32Array;
+  keyBulk: Int32Array;
   /** Scratch: û of rail q for n-channel (2q) and p-channel (2q + 1) terminals. */
   uRail: Float64Array;
   stamp: number;
@@ -161,16 +169,29 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     nodeOfRow[r] = k;
     rowIsN[r] = cls.nodeClass[k] & CLASS_N ? 1 : 0;
   }
-  const { source, drain, type } = devices;
+  const { source, drain, type, gate, bulk } = devices;
   // One pass: channel types per node, degrees and neighbour XORs of the graph
   // of internal rows (for the forest test).
   const nodeTouch = new Uint8Array(nn);
   const deg = new Int32Array(rows);
   const nbrXor = new Int32Array(rows);
+  // Gate keys, recorded when they differ from the last one of their gate rail and type (lastKey: bulk + 2, 0 = none).
+  const lastKey = new Int32Array(2 * rails);
+  const kType: number[] = [];
+  const kGate: number[] = [];
+  const kBulk: number[] = [];
   for (let d = 0; d < m; d++) {
     const s = source[d];
     const t = drain[d];
     const bit = type[d] === N_TYPE ? 1 : 2;
+    const gq = -1 - rowOf[gate[d]];
+    const slot = 2 * gq + bit - 1;
+    if (gq < 0 || lastKey[slot] !== bulk[d] + 2) {
+      if (gq >= 0) lastKey[slot] = bulk[d] + 2;
+      kType.push(type[d]);
+      kGate.push(gate[d]);
+      kBulk.push(bulk[d]);
+    }
     nodeTouch[s] |= bit;
     nodeTouch[t] |= bit;
     const a = rowOf[s];
@@ -222,6 +243,9 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     gateStamp: new Int32Array(rails),
     gateValue: new Float64Array(rails),
     gateWell: new Int32Array(rails),
+    keyType: Uint8Array.from(kType),
+    keyGate: Int32Array.from(kGate),
+    keyBulk: Int32Array.from(kBulk),
     uRail: new Float64Array(2 * rails),
     stamp: 0,
     nodeTouch,
@@ -347,22 +371,24 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   let lamN = -Infinity;
   let lamP = -Infinity;
   const rowOf = plan.rowOf;
-  for (let d = 0; d < m; d++) {
-    const s = source[d];
-    const t = drain[d];
-    const isN = type[d] === N_TYPE;
-    const b = bulk[d];
+  const { keyType, keyGate, keyBulk, railNodes, nodeTouch } = plan;
+  for (let k = 0; k < keyType.length; k++) {
+    const b = keyBulk[k];
     const vb = b >= 0 ? V[b] : 0;
-    const e = isN ? (kappa * (V[gate[d]] - vb) + vb) / ut : (kappa * (vb - V[gate[d]]) - vb) / ut;
-    if (isN) {
+    const vg = V[keyGate[k]];
+    if (keyType[k] === N_TYPE) {
+      const e = (kappa * (vg - vb) + vb) / ut;
       if (e > lamN) lamN = e;
-      if (rowOf[s] < 0 && V[s] < vrefN) vrefN = V[s];
-      if (rowOf[t] < 0 && V[t] < vrefN) vrefN = V[t];
     } else {
+      const e = (kappa * (vb - vg) - vb) / ut;
       if (e > lamP) lamP = e;
-      if (rowOf[s] < 0 && V[s] > vrefP) vrefP = V[s];
-      if (rowOf[t] < 0 && V[t] > vrefP) vrefP = V[t];
     }
+  }
+  for (let q = 0; q < railNodes.length; q++) {
+    const r = railNodes[q];
+    const v = V[r];
+    if (nodeTouch[r] & 1 && v < vrefN) vrefN = v;
+    if (nodeTouch[r] & 2 && v > vrefP) vrefP = v;
   }
   if (!Number.isFinite(vrefN)) vrefN = 0;
   if (!Number.isFinite(vrefP)) vrefP = 0;
@@ -380,7 +406,6 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   rhs.fill(0);
   // û(rail q) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity.
   const uRail = plan.uRail;
-  const railNodes = plan.railNodes;
   for (let q = 0; q < railNodes.length; q++) {
     const v = V[railNodes[q]];
     uRail[2 * q] = Math.exp(-(v - vrefN) / ut);
