@@ -204,7 +204,8 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     }
   }
   const choice = opts.ordering ?? "auto";
-  const forest = choice === "auto" && (opts.kernel ?? "auto") === "auto" ? leafFirstOrder(rows, deg, nbrXor) : null;
+  const forestTried = choice === "auto" && (opts.kernel ?? "auto") === "auto";
+  const forest = forestTried ? leafFirstOrder(rows, deg, nbrXor) : null;
   const rowDiag = new Int32Array(rows);
   let posOff: Int32Array | null = null;
   let ordering: OrderingName | "tree";
@@ -220,7 +221,18 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     C = { m: rows, n: rows, p: lp, i: fs.rows, x: new Float64Array(symbolic.lnz) };
     for (let r = 0; r < rows; r++) rowDiag[r] = lp[pinv[r]];
   } else {
-    // leafFirstOrder consumed nbrXor only; deg is intact.
+    if (forestTried) {
+      // leafFirstOrder consumed deg: count again.
+      deg.fill(0);
+      for (let d = 0; d < m; d++) {
+        const a = rowOf[source[d]];
+        const b = rowOf[drain[d]];
+        if (a >= 0 && b >= 0 && a !== b) {
+          deg[a]++;
+          deg[b]++;
+        }
+      }
+    }
     ({ ordering, symbolic, C, posOff } = generalEntries(net, rows, rowOf, deg, rowDiag, opts));
   }
   const railNodes = new Int32Array(nn - rows);

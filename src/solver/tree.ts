@@ -16,31 +16,31 @@ import type { Symbolic } from "./symbolic";
  * Leaf-first elimination order of the multigraph on n vertices whose vertex v
  * has deg[v] edges (self-loops excluded) and nbrXor[v] = XOR of the other end
  * of each; null when some vertices are never peeled (a cycle or a repeated
- * edge). nbrXor is consumed; deg is left unchanged.
+ * edge). Both arrays are consumed (their memory is reused for the result).
  * Returns perm (perm[k] = k-th vertex eliminated), its inverse pinv, and
  * parent in eliminated labels (parent[k] > k, or -1 for the last vertex of a tree).
  */
 export function leafFirstOrder(n: number, deg: Int32Array, nbrXor: Int32Array): { perm: Int32Array; pinv: Int32Array; parent: Int32Array } | null {
-  const left = deg.slice(0, n);
+  const left = deg;
   const perm = new Int32Array(n);
-  // up[v]: the neighbour v hangs from when peeled (original labels), -1 for a root.
-  const up = new Int32Array(n);
   let tail = 0;
   for (let v = 0; v < n; v++) if (left[v] <= 1) perm[tail++] = v;
+  // Once v is peeled, nbrXor[v] is the vertex it hangs from (no later step
+  // touches it: v's last edge is gone), or -1 for a root.
   for (let head = 0; head < tail; head++) {
     const v = perm[head];
     if (left[v] === 0) {
-      up[v] = -1;
+      nbrXor[v] = -1;
       continue;
     }
     const p = nbrXor[v];
-    up[v] = p;
     left[v] = 0;
     nbrXor[p] ^= v;
     if (--left[p] === 1) perm[tail++] = p;
   }
   if (tail < n) return null;
-  const pinv = new Int32Array(n);
+  const up = nbrXor;
+  const pinv = left;
   for (let k = 0; k < n; k++) pinv[perm[k]] = k;
   const parent = new Int32Array(n);
   for (let k = 0; k < n; k++) {
