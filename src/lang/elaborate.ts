@@ -363,8 +363,11 @@ const PIECE_BUDGET = 16_000_000;
 class PieceIndex {
   /** False once a name of this shape was made without being stored here (devices only). */
   complete = true;
-  /** The shape was compared with the other device shapes (devices only). */
+  /** The shape was compared with the other shapes of its kind. */
   registered = false;
+  /** Size of kindByName when `kindClash` was worked out (devices only; -1 never). */
+  kindSize = -1;
+  kindClash = true;
   private one: Int32Array = new Int32Array(0);
   private readonly rows: Int32Array[] = [];
 
@@ -413,6 +416,8 @@ class PieceIndex {
   }
 }
 const EMPTY_ROW: Int32Array = new Int32Array(0);
+/** Most rail, inject, probe and param names compared with a device name shape; beyond, every device looks its name up. */
+const KIND_SCAN = 64;
 /** Fixed device names compared with device name shapes; beyond this many, every shape looks names up. */
 const FIXED_SEEN = 256;
 
@@ -1671,7 +1676,7 @@ class Elaborator {
     this.nodeFrom.push(t.from);
     this.nodeTo.push(t.to);
     this.nodeShape.push(-1);
-    if (this.brokenNames.has(name)) this.suppressed.add(i);
+    if (this.brokenNames.size > 0 && this.brokenNames.has(name)) this.suppressed.add(i);
     return i;
   }
 
@@ -1720,6 +1725,12 @@ class Elaborator {
     for (const o of this.nodeShapes) if (o.node && mayShareName([name], o.lits)) o.node.complete = false;
     if (this.fixedNodeNames.length < FIXED_SEEN) this.fixedNodeNames.push(name);
     else this.fixedNodeOverflow = true;
+  }
+
+  /** Whether a rail, inject, probe or param name may be a name of this shape. */
+  private kindMayShare(lits: string[]): boolean {
+    for (const k of this.kindByName.keys()) if (mayShareName(lits, [k])) return true;
+    return false;
   }
 
   /** What else carries `name` (rail, device, inject, probe, param), for one-namespace checks. */
@@ -1836,7 +1847,16 @@ class Elaborator {
       this.suppressRefs(t.nodes);
       return this.duplicate("device", name, t.name, this.devAt.data[first]);
     }
-    const other = this.kindByName.size ? this.otherKind(name, "a device") : null;
+    let other: string | null = null;
+    const kinds = this.kindByName.size;
+    if (index !== null && kinds <= KIND_SCAN) {
+      // Names only join kindByName, so a shape checked at this size still cannot match.
+      if (index.kindSize !== kinds) {
+        index.kindClash = this.kindMayShare(t.name.shape!.lits);
+        index.kindSize = kinds;
+      }
+      if (index.kindClash) other = this.otherKind(name, "a device");
+    } else if (kinds) other = this.otherKind(name, "a device");
     if (other) {
       this.suppressRefs(t.nodes);
       return this.clash("device", name, t.name, other);
