@@ -125,6 +125,13 @@ class IntColumn {
     }
     this.data[this.length++] = v;
   }
+  /** Makes room for `n` values in all (no copy later while they are pushed). */
+  reserve(n: number): void {
+    if (n <= this.data.length) return;
+    const d = new Int32Array(n);
+    d.set(this.data.subarray(0, this.length));
+    this.data = d;
+  }
   finish(): Int32Array {
     return this.data.slice(0, this.length);
   }
@@ -141,6 +148,13 @@ class FloatColumn {
       this.data = d;
     }
     this.data[this.length++] = v;
+  }
+  /** Makes room for `n` values in all. */
+  reserve(n: number): void {
+    if (n <= this.data.length) return;
+    const d = new Float64Array(n);
+    d.set(this.data.subarray(0, this.length));
+    this.data = d;
   }
   finish(): Float64Array {
     return this.data.slice(0, this.length);
@@ -708,7 +722,10 @@ class Elaborator {
       default: {
         const t = this.compileStatement(s, []);
         if (!t) return this.noteBroken(s);
-        if (t.k === "for") this.outerFor = { from: t.from, to: t.to };
+        if (t.k === "for") {
+          this.outerFor = { from: t.from, to: t.to };
+          this.reserveDevices(t);
+        }
         this.exec([t]);
         this.outerFor = null;
       }
@@ -1537,6 +1554,29 @@ class Elaborator {
       else if (t.k === "rail") this.suppressRefs([t.name]);
       else if (t.k === "for") this.suppressTpl(t.body);
     }
+  }
+
+  /** Sizes the device columns for the devices a top-level loop makes when its bounds are known before it runs (an estimate: never above the limit). */
+  private reserveDevices(t: ForTpl): void {
+    const n = this.devNames.length + Math.min(this.devicesOf([t]), this.limits.maxDevices);
+    if (n <= this.gate.data.length) return;
+    for (const c of [this.gate, this.source, this.drain, this.bulk, this.devAt]) c.reserve(n);
+    this.w.reserve(n);
+    this.l.reserve(n);
+  }
+
+  /** Devices the templates make, counting loops whose bounds do not depend on an enclosing loop. */
+  private devicesOf(ts: Tpl[]): number {
+    let n = 0;
+    for (const t of ts) {
+      if (t.k === "device") n++;
+      else if (t.k === "for" && t.first && t.last && !t.first.loopDependent && !t.last.loopDependent) {
+        const count = this.valueOf(t.last) - this.valueOf(t.first) + 1;
+        if (Number.isSafeInteger(count) && count > 0) n += count * this.devicesOf(t.body);
+      }
+      if (n > this.limits.maxDevices) return this.limits.maxDevices;
+    }
+    return n;
   }
 
   private execFor(t: ForTpl): void {
