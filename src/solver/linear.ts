@@ -32,7 +32,7 @@ import { cholesky, type CholeskyWork, choleskyWork, type Factor, matrixTriangle 
 import type { DeviceParams } from "./device";
 import { amd, natural, nestedDissection, type OrderingName } from "./order";
 import { cumsum, dedupeAdjacency, type Csc, multiplySymmetric } from "./sparse";
-import { analyse, type Kernel, type Symbolic } from "./symbolic";
+import { analyse, type Kernel, naturalHasNoFill, type Symbolic } from "./symbolic";
 import { lsolve, ltsolve } from "./triangular";
 import { forestSymbolic, leafFirstOrder } from "./tree";
 
@@ -307,14 +307,13 @@ function generalEntries(
   let ordering: OrderingName;
   let symbolic: Symbolic;
   if (choice === "auto") {
-    // The natural order when it has no fill at all (column counts only: cheap, and exact).
-    symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: "simple" });
-    ordering = "natural";
-    if (symbolic.lnz > rows + adj.p[rows] / 2) {
+    // The natural order when it has no fill at all (an O(nnz) test, exact), else DEFAULT_ORDERING.
+    if (naturalHasNoFill(rows, adj.p, adj.i)) {
+      ordering = "natural";
+      symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel === "supernodal" ? "supernodal" : "simple" });
+    } else {
       ordering = DEFAULT_ORDERING;
       symbolic = analyse(rows, adj.p, adj.i, orderBy(ordering, rows, adj.p, adj.i), { kernel: opts.kernel });
-    } else if (opts.kernel === "supernodal") {
-      symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel });
     }
   } else {
     ordering = choice;

@@ -10,7 +10,10 @@ import { describe, expect, it } from "vitest";
 import type { Network } from "../../src/lang/network";
 import { NetworkBuilder } from "../../src/solver/build";
 import { solveNetwork } from "../../src/solver/sweep";
+import { dedupeAdjacency } from "../../src/solver/sparse";
+import { analyse, naturalHasNoFill } from "../../src/solver/symbolic";
 import { leafFirstOrder } from "../../src/solver/tree";
+import { natural } from "../../src/solver/order";
 
 function lcg(seed: number): () => number {
   let s = seed % 2147483647 || 1;
@@ -121,5 +124,54 @@ describe("forest fast path against the general path", () => {
     const p = solveNetwork(network(4, parallel, lcg(4)));
     expect(p.ok).toBe(true);
     expect(p.points[0].solver.ordering).not.toBe("tree");
+  });
+});
+
+describe("naturalHasNoFill", () => {
+  /** Adjacency (both directions, deduplicated) of an edge list on n vertices. */
+  function graph(n: number, edges: [number, number][]): { p: Int32Array; i: Int32Array } {
+    const deg = new Int32Array(n);
+    for (const [a, b] of edges) {
+      deg[a]++;
+      deg[b]++;
+    }
+    const p = new Int32Array(n + 1);
+    for (let v = 0; v < n; v++) p[v + 1] = p[v] + deg[v];
+    const at = p.slice(0, n);
+    const idx = new Int32Array(p[n]);
+    for (const [a, b] of edges) {
+      idx[at[a]++] = b;
+      idx[at[b]++] = a;
+    }
+    return dedupeAdjacency(n, p, idx);
+  }
+
+  it("agrees with the column counts of the natural-order analysis (no fill: nnz(L) = n + edges)", () => {
+    const rnd = lcg(17);
+    let withFill = 0;
+    for (let trial = 0; trial < 200; trial++) {
+      const n = 2 + Math.floor(rnd() * 14);
+      const edges: [number, number][] = [];
+      const count = Math.floor(rnd() * 2 * n);
+      for (let e = 0; e < count; e++) {
+        const a = Math.floor(rnd() * n);
+        const b = Math.floor(rnd() * n);
+        if (a !== b) edges.push([a, b]);
+      }
+      const g = graph(n, edges);
+      const S = analyse(n, g.p, g.i, natural(n), { kernel: "simple" });
+      const noFill = S.lnz === n + g.p[n] / 2;
+      if (!noFill) withFill++;
+      expect(naturalHasNoFill(n, g.p, g.i)).toBe(noFill);
+    }
+    expect(withFill).toBeGreaterThan(20);
+  });
+
+  const noFill = (g: { p: Int32Array; i: Int32Array }): boolean => naturalHasNoFill(g.p.length - 1, g.p, g.i);
+
+  it("a triangle and a path have none; a 4-cycle in ring order has fill", () => {
+    expect(noFill(graph(3, [[0, 1], [1, 2], [0, 2]]))).toBe(true);
+    expect(noFill(graph(4, [[0, 1], [1, 2], [2, 3]]))).toBe(true);
+    expect(noFill(graph(4, [[0, 1], [1, 2], [2, 3], [3, 0]]))).toBe(false);
   });
 });
