@@ -39,28 +39,42 @@ function lsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): vo
     const r0 = rowPtr[s];
     const nr = rowPtr[s + 1] - r0;
     const v0 = valPtr[s];
+    // Dense triangle: x(f:f+k) = L(f:f+k, f:f+k) \ x(f:f+k).
     for (let c = 0; c < k; c++) {
       const col = v0 + c * nr;
       const xj = (x[f + c] /= lx[col + c]);
       for (let r = c + 1; r < k; r++) x[f + r] -= lx[col + r] * xj;
-      for (let r = k; r < nr; r++) x[rows[r0 + r]] -= lx[col + r] * xj;
+    }
+    // Below it: x(rows) -= L(rows, f:f+k) · x(f:f+k), one scattered update per row.
+    for (let r = k; r < nr; r++) {
+      let sum = 0;
+      for (let c = 0, q = v0 + r; c < k; c++, q += nr) sum += lx[q] * x[f + c];
+      x[rows[r0 + r]] -= sum;
     }
   }
 }
 
 function ltsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): void {
   const { count, start, rowPtr, rows, valPtr } = sn;
+  let widest = 0;
+  for (let s = 0; s < count; s++) if (start[s + 1] - start[s] > widest) widest = start[s + 1] - start[s];
+  // acc(c) = L(rows, f+c)ᵀ · x(rows), gathered once per row.
+  const acc = new Float64Array(widest);
   for (let s = count - 1; s >= 0; s--) {
     const f = start[s];
     const k = start[s + 1] - f;
     const r0 = rowPtr[s];
     const nr = rowPtr[s + 1] - r0;
     const v0 = valPtr[s];
+    acc.fill(0, 0, k);
+    for (let r = k; r < nr; r++) {
+      const xr = x[rows[r0 + r]];
+      for (let c = 0, q = v0 + r; c < k; c++, q += nr) acc[c] += lx[q] * xr;
+    }
     for (let c = k - 1; c >= 0; c--) {
       const col = v0 + c * nr;
-      let sum = x[f + c];
+      let sum = x[f + c] - acc[c];
       for (let r = c + 1; r < k; r++) sum -= lx[col + r] * x[f + r];
-      for (let r = k; r < nr; r++) sum -= lx[col + r] * x[rows[r0 + r]];
       x[f + c] = sum / lx[col + c];
     }
   }
