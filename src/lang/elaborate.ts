@@ -85,6 +85,70 @@ const SETTINGS = ["kappa", "temp", "i0", "vt0", "ispec", "model"] as const;
 type SettingName = (typeof SETTINGS)[number];
 const RESERVED_HINT = "built-in names: ut, kappa, temp, pi, e";
 
+/** Names by index (a string array, or a NameColumn). */
+interface NameSource {
+  readonly length: number;
+  at(i: number): string | undefined;
+}
+
+/**
+ * Device names: a string, or a shape and its piece values made into the
+ * string only when asked (most device names are never read while elaborating).
+ * `at(i)` is the same string the shape's template makes for those values.
+ */
+class NameColumn implements NameSource {
+  /** Shape id, or -1 when `a` indexes `strings`. */
+  private readonly shape = new IntColumn();
+  private readonly a = new IntColumn();
+  private readonly b = new IntColumn();
+  private readonly strings: string[] = [];
+  private readonly made: string[] = [];
+
+  constructor(private readonly shapes: readonly Shape[]) {}
+
+  get length(): number {
+    return this.shape.length;
+  }
+
+  pushName(name: string): void {
+    this.shape.push(-1);
+    this.a.push(this.strings.length);
+    this.b.push(0);
+    this.strings.push(name);
+  }
+
+  pushPieces(shape: number, a: number, b: number): void {
+    this.shape.push(shape);
+    this.a.push(a);
+    this.b.push(b);
+  }
+
+  reserve(n: number): void {
+    this.shape.reserve(n);
+    this.a.reserve(n);
+    this.b.reserve(n);
+  }
+
+  at(i: number): string | undefined {
+    if (i < 0 || i >= this.shape.length) return undefined;
+    if (i < this.made.length) return this.made[i];
+    const sh = this.shape.data[i];
+    if (sh < 0) return this.strings[this.a.data[i]];
+    return shapeName(this.shapes[sh].lits, this.a.data[i], this.b.data[i]);
+  }
+
+  /** Every name, as one array (made once, then extended). */
+  all(): string[] {
+    for (let i = this.made.length; i < this.shape.length; i++) this.made.push(this.at(i)!);
+    return this.made;
+  }
+}
+
+/** The name of shape lits (one or two pieces) for piece values a, b. */
+function shapeName(lits: string[], a: number, b: number): string {
+  return lits.length === 2 ? lits[0] + a + lits[1] : lits[0] + a + lits[1] + b + lits[2];
+}
+
 /**
  * A name → index Map filled on demand from a names array (names are unique):
  * names[0, filled) are in it, in order.
@@ -93,7 +157,7 @@ class LazyIndex {
   private readonly map = new Map<string, number>();
   private filled = 0;
 
-  constructor(private readonly names: string[]) {}
+  constructor(private readonly names: NameSource) {}
 
   /** Names not yet in the Map. */
   pending(): boolean {
@@ -107,7 +171,7 @@ class LazyIndex {
 
   full(): Map<string, number> {
     const n = this.names;
-    for (let i = this.filled; i < n.length; i++) this.map.set(n[i], i);
+    for (let i = this.filled; i < n.length; i++) this.map.set(n.at(i)!, i);
     this.filled = n.length;
     return this.map;
   }
@@ -535,6 +599,10 @@ class Elaborator {
   private readonly params = new Map<string, ParamInfo>();
   private readonly paramList: ParamDef[] = [];
 
+  // Name shapes (see Shape).
+  private readonly shapes = new Map<string, Shape>();
+  private readonly shapeList: Shape[] = [];
+
   // Nodes.
   private readonly nodeNames: string[] = [];
   /**
@@ -558,8 +626,6 @@ class Elaborator {
   private readonly nodeShape = new IntColumn();
 
   // Name shapes (see Shape).
-  private readonly shapes = new Map<string, Shape>();
-  private readonly shapeList: Shape[] = [];
   private readonly pieceBudget = { left: PIECE_BUDGET };
   /** Shapes of interpolated device names made so far, and fixed device names (up to FIXED_SEEN). */
   private readonly devShapes: Shape[] = [];
@@ -570,7 +636,7 @@ class Elaborator {
   private pieceB = 0;
 
   // Devices.
-  private readonly devNames: string[] = [];
+  private readonly devNames = new NameColumn(this.shapeList);
   /** Filled on demand: devices whose name no other shape can give need no look-up while elaborating. */
   private readonly devs = new LazyIndex(this.devNames);
   private readonly devType: number[] = [];
@@ -1561,6 +1627,7 @@ class Elaborator {
     const n = this.devNames.length + Math.min(this.devicesOf([t]), this.limits.maxDevices);
     if (n <= this.gate.data.length) return;
     for (const c of [this.gate, this.source, this.drain, this.bulk, this.devAt]) c.reserve(n);
+    this.devNames.reserve(n);
     this.w.reserve(n);
     this.l.reserve(n);
   }
@@ -1628,28 +1695,26 @@ class Elaborator {
   }
 
   /**
-   * The name of template t (with one or two pieces) when its pieces are whole
-   * numbers in [0, PIECE_BOUND): the values go to pieceA / pieceB. Null
-   * otherwise (nameOf then makes the name or reports the bad piece).
+   * Whether the pieces of template t (one or two) are whole numbers in
+   * [0, PIECE_BOUND); the values go to pieceA / pieceB. When not, nameOf
+   * makes the name or reports the bad piece.
    */
-  private pieceName(t: NameTpl): string | null {
-    const shape = t.shape!;
+  private pieceValues(t: NameTpl): boolean {
     const ps = t.pieces;
     const p0 = ps[0];
     const a = p0.slot >= 0 ? this.loopValues[p0.slot] + p0.offset : this.valueOf(p0.value);
-    if (!(a >= 0 && a < PIECE_BOUND && Number.isInteger(a))) return null;
-    const lits = shape.lits;
+    if (!(a >= 0 && a < PIECE_BOUND && Number.isInteger(a))) return false;
     if (ps.length === 1) {
       this.pieceA = a;
       this.pieceB = 0;
-      return lits[0] + a + lits[1];
+      return true;
     }
     const p1 = ps[1];
     const b = p1.slot >= 0 ? this.loopValues[p1.slot] + p1.offset : this.valueOf(p1.value);
-    if (!(b >= 0 && b < PIECE_BOUND && Number.isInteger(b))) return null;
+    if (!(b >= 0 && b < PIECE_BOUND && Number.isInteger(b))) return false;
     this.pieceA = a;
     this.pieceB = b;
-    return lits[0] + a + lits[1] + b + lits[2];
+    return true;
   }
 
   private nodeOf(t: NameTpl): number {
@@ -1859,17 +1924,19 @@ class Elaborator {
     if (t.broken) return this.skipElement(t.name, t.nodes);
     const shape = t.name.shape;
     let index: PieceIndex | null = null;
+    // Made only when needed while index is set: a shape name from pieceA, pieceB.
     let name: string | null = null;
     if (shape !== null && t.name.pieces.length <= 2) {
       index = shape.dev ??= new PieceIndex(t.name.pieces.length, this.pieceBudget);
       if (!index.registered) this.registerDevShape(shape);
-      name = this.pieceName(t.name);
-      if (name === null) index = null;
+      if (!this.pieceValues(t.name)) index = null;
     }
     const a = this.pieceA;
     const bb = this.pieceB;
-    if (name === null) name = this.nameOf(t.name);
-    if (name === null) return this.suppressRefs(t.nodes);
+    if (index === null) {
+      name = this.nameOf(t.name);
+      if (name === null) return this.suppressRefs(t.nodes);
+    }
     const g = this.nodeOf(t.nodes[0]!);
     const s = this.nodeOf(t.nodes[1]!);
     const d = this.nodeOf(t.nodes[2]!);
@@ -1881,11 +1948,11 @@ class Elaborator {
     let first: number | undefined;
     if (index !== null) {
       const hit = index.get(a, bb);
-      first = hit >= 0 ? hit : index.complete ? undefined : this.devs.full().get(name);
-    } else first = this.devs.full().get(name);
+      first = hit >= 0 ? hit : index.complete ? undefined : this.devs.full().get((name = shapeName(shape!.lits, a, bb)));
+    } else first = this.devs.full().get(name!);
     if (first !== undefined) {
       this.suppressRefs(t.nodes);
-      return this.duplicate("device", name, t.name, this.devAt.data[first]);
+      return this.duplicate("device", name ?? shapeName(shape!.lits, a, bb), t.name, this.devAt.data[first]);
     }
     let other: string | null = null;
     const kinds = this.kindByName.size;
@@ -1895,17 +1962,18 @@ class Elaborator {
         index.kindClash = this.kindMayShare(t.name.shape!.lits);
         index.kindSize = kinds;
       }
-      if (index.kindClash) other = this.otherKind(name, "a device");
-    } else if (kinds) other = this.otherKind(name, "a device");
+      if (index.kindClash) other = this.otherKind((name ??= shapeName(shape!.lits, a, bb)), "a device");
+    } else if (kinds) other = this.otherKind((name ??= shapeName(shape!.lits, a, bb)), "a device");
     if (other) {
       this.suppressRefs(t.nodes);
-      return this.clash("device", name, t.name, other);
+      return this.clash("device", name!, t.name, other);
     }
     if (i >= this.limits.maxDevices) {
       this.overflow(t, `more than ${this.limits.maxDevices.toLocaleString("en-US")} devices (the limit)`);
     }
-    if (index === null || !index.set(a, bb, i)) this.devWithoutIndex(t.name, name);
-    this.devNames.push(name);
+    if (index === null || !index.set(a, bb, i)) this.devWithoutIndex(t.name, (name ??= shapeName(shape!.lits, a, bb)));
+    if (name === null) this.devNames.pushPieces(shape!.id, a, bb);
+    else this.devNames.pushName(name);
     this.devType.push(t.type);
     this.gate.push(g);
     this.source.push(s);
@@ -2198,6 +2266,7 @@ class Elaborator {
   private network(): Network {
     const count = this.devNames.length;
     const devs = this.devs;
+    const devNames = this.devNames;
     const nodes = this.nodes;
     const net: Network = {
       name: this.name,
@@ -2213,7 +2282,9 @@ class Elaborator {
       rails: this.rails,
       devices: {
         count,
-        names: this.devNames,
+        get names() {
+          return devNames.all();
+        },
         get index() {
           return devs.full();
         },
@@ -2307,7 +2378,7 @@ class Elaborator {
             this.sink.error(a.from, a.to, `current() needs a device, an inject or a rail, but '${a.name}' is an internal node`, `to read its voltage use voltage(${a.name})`);
             continue;
           }
-          const cands = this.devNames.length < 5000 ? [...this.devNames, ...this.injNames, ...this.rails.map((r) => r.name)] : [];
+          const cands = this.devNames.length < 5000 ? [...this.devNames.all(), ...this.injNames, ...this.rails.map((r) => r.name)] : [];
           this.sink.error(a.from, a.to, `current() of unknown device, inject or rail '${a.name}'`, suggest(a.name, cands));
         }
       }
