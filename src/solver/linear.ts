@@ -124,6 +124,8 @@ export interface LinearPlan {
   r: Float64Array;
   /** Steps of iterative refinement per solve. */
   refine: number;
+  /** y holds the pseudo-voltages û (permuted) of the last successful solveLinear since the last factorLinear. */
+  solved: boolean;
   analyseMs: number;
 }
 
@@ -270,6 +272,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     y: new Float64Array(rows),
     r: new Float64Array(opts.refine ? rows : 0),
     refine: opts.refine ?? 0,
+    solved: false,
     analyseMs: performance.now() - t0,
   };
 }
@@ -376,6 +379,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   const m = devices.count;
   const { type, gate, source, drain, bulk } = devices;
   const { ut, kappa } = P;
+  plan.solved = false;
   // Reference voltages: lowest rail under an n-channel terminal, highest under a p-channel one.
   let vrefN = Infinity;
   let vrefP = -Infinity;
@@ -532,6 +536,7 @@ function solvePermuted(plan: LinearPlan, b: Float64Array, y: Float64Array): void
  */
 export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
   if (!plan.factor) throw new Error("solveLinear: no factorisation");
+  plan.solved = false;
   const { rows, rowOf, rowIsN, nodeOfRow } = plan;
   const { injects, nodes, settings } = net;
   const values = injects.value;
@@ -601,6 +606,7 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
     V[nodeOfRow[r]] = rowIsN[r] ? vrefN - ut * Math.log(u) : vrefP + ut * Math.log(u);
   }
   for (let k = 0; k < rv.length; k++) if (rowOf[k] < 0) V[k] = rv[k];
+  plan.solved = worst < 0;
   if (worst >= 0) {
     const node = nodeOfRow[worst];
     const name = nodes.names[node];
@@ -618,6 +624,10 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
  * factorisation (in scratch arrays of the plan, valid until the next call): en[k] = exp(−(V_k − Vref_n)/U_T), ep[k] = exp((V_k − Vref_p)/U_T)
  * at the nodes channels of that type touch; with plan.c they give
  * I_F = c·e(source), I_R = c·e(drain) (LANGUAGE.md device equations).
+ * V must be the voltages the last solveLinear wrote. At an internal node
+ * that exponential is the solved pseudo-voltage û itself (V = Vref ∓ U_T·ln û),
+ * taken straight from the solve when it is at hand; rails (and any other
+ * case) by the exponential.
  */
 export function pseudoCurrents(plan: LinearPlan, net: Network, V: Float64Array): { c: Float64Array; en: Float64Array; ep: Float64Array } | null {
   const ut = net.settings.ut;
@@ -631,6 +641,23 @@ export function pseudoCurrents(plan: LinearPlan, net: Network, V: Float64Array):
   const vrefN = plan.vref[1];
   const vrefP = plan.vref[0];
   const touch = plan.nodeTouch;
+  if (plan.solved) {
+    const { y, rows, nodeOfRow, rowIsN } = plan;
+    const perm = plan.symbolic.perm;
+    for (let k = 0; k < rows; k++) {
+      const r = perm[k];
+      if (rowIsN[r]) en[nodeOfRow[r]] = y[k];
+      else ep[nodeOfRow[r]] = y[k];
+    }
+    const railNodes = plan.railNodes;
+    for (let q = 0; q < railNodes.length; q++) {
+      const k = railNodes[q];
+      const t = touch[k];
+      if (t & 1) en[k] = Math.exp(-(V[k] - vrefN) / ut);
+      if (t & 2) ep[k] = Math.exp((V[k] - vrefP) / ut);
+    }
+    return { c: plan.c, en, ep };
+  }
   for (let k = 0; k < nn; k++) {
     const t = touch[k];
     if (t & 1) en[k] = Math.exp(-(V[k] - vrefN) / ut);
