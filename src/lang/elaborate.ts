@@ -133,13 +133,14 @@ class NameColumn implements NameSource {
     if (i < 0 || i >= this.shape.length) return undefined;
     if (i < this.made.length) return this.made[i];
     const sh = this.shape.data[i];
-    if (sh < 0) return this.strings[this.a.data[i]];
-    return shapeName(this.shapes[sh].lits, this.a.data[i], this.b.data[i]);
+    const name = sh < 0 ? this.strings[this.a.data[i]] : shapeName(this.shapes[sh].lits, this.a.data[i], this.b.data[i]);
+    if (i === this.made.length) this.made.push(name); // read in order (filling a Map): kept
+    return name;
   }
 
   /** Every name, as one array (made once, then extended). */
   all(): string[] {
-    for (let i = this.made.length; i < this.shape.length; i++) this.made.push(this.at(i)!);
+    for (let i = this.made.length; i < this.shape.length; i++) this.at(i);
     return this.made;
   }
 }
@@ -604,7 +605,7 @@ class Elaborator {
   private readonly shapeList: Shape[] = [];
 
   // Nodes.
-  private readonly nodeNames: string[] = [];
+  private readonly nodeNames = new NameColumn(this.shapeList);
   /**
    * Filled on demand. Invariant: a node not yet in it was made through the
    * PieceIndex of a shape that was complete then, and is in that index.
@@ -1739,20 +1740,15 @@ class Elaborator {
           const hit = cache.get(a, b);
           if (hit >= 0) return hit;
           if (!cache.registered) this.registerNodeShape(shape);
-          const lits = shape.lits;
-          const name = t.pieces.length === 1 ? lits[0] + a + lits[1] : lits[0] + a + lits[1] + b + lits[2];
-          if (cache.complete) {
-            // No other node can carry this name: make it without a Map look-up.
-            const i = this.newNode(t, name);
-            if (cache.set(a, b, i)) this.nodeShape.data[i] = shape.id;
-            else {
-              cache.complete = false;
-              this.nodes.full();
-            }
+          if (cache.complete && cache.set(a, b, this.nodeNames.length)) {
+            // No other node can carry this name: make it without a Map look-up (or its string).
+            const i = this.newNode(t, null, shape, a, b);
+            this.nodeShape.data[i] = shape.id;
             return i;
           }
+          cache.complete = false;
           const before = this.nodeNames.length;
-          const i = this.nodeByName(t, name);
+          const i = this.nodeByName(t, shapeName(shape.lits, a, b));
           if (cache.set(a, b, i) && i === before) this.nodeShape.data[i] = shape.id;
           return i;
         }
@@ -1766,22 +1762,24 @@ class Elaborator {
     if (name === null) return -1;
     let i = this.findNode(name);
     if (i === undefined) {
-      i = this.newNode(t, name);
+      i = this.newNode(t, name, null, 0, 0);
       this.nodes.full();
       this.madeWithoutIndex(t, name);
     }
     return i;
   }
 
-  private newNode(t: NameTpl, name: string): number {
+  /** A new node named `name`, or (name null) the name of `shape` for piece values a, b. */
+  private newNode(t: NameTpl, name: string | null, shape: Shape | null, a: number, b: number): number {
     const i = this.nodeNames.length;
-    this.nodeNames.push(name);
+    if (name !== null) this.nodeNames.pushName(name);
+    else this.nodeNames.pushPieces(shape!.id, a, b);
     this.railValue.push(NaN);
     this.isRail.push(0);
     this.nodeFrom.push(t.from);
     this.nodeTo.push(t.to);
     this.nodeShape.push(-1);
-    if (this.brokenNames.size > 0 && this.brokenNames.has(name)) this.suppressed.add(i);
+    if (this.brokenNames.size > 0 && this.brokenNames.has(name ?? this.nodeNames.at(i)!)) this.suppressed.add(i);
     return i;
   }
 
@@ -2008,7 +2006,7 @@ class Elaborator {
       this.suppressRefs([t.from, t.to]);
       return this.clash("inject", name, t.name, other);
     }
-    if (f === to) this.sink.warning(t.to!.from, t.to!.to, `inject '${name}' goes from node '${this.nodeNames[f]}' to itself`, "its current has no effect");
+    if (f === to) this.sink.warning(t.to!.from, t.to!.to, `inject '${name}' goes from node '${this.nodeNames.at(f)}' to itself`, "its current has no effect");
     if (this.injNames.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} injects (the limit)`);
     const i = this.injNames.length;
     this.injNames.push(name);
@@ -2096,9 +2094,10 @@ class Elaborator {
     const probeMark = this.probeNames.size < nodeCount ? this.markNodes(this.probeNames.keys()) : null;
     for (let i = 0; i < nodeCount; i++) {
       if (this.isRail[i]) continue;
-      const name = this.nodeNames[i];
       const sh = shapeOf[i];
       if (sh >= 0 && devCheck[sh] < 0) devCheck[sh] = this.mayBeDeviceName(this.shapeList[sh].lits) ? 1 : 0;
+      // The string only when some check below reads it.
+      const name = sh < 0 || devCheck[sh] === 1 || !injMark || !probeMark ? this.nodeNames.at(i)! : "";
       const other =
         (sh < 0 ? this.devHas(name, null) : devCheck[sh] === 1 && this.devs.full().has(name))
           ? "a device"
@@ -2107,7 +2106,7 @@ class Elaborator {
             : (probeMark ? probeMark[i] === 1 : this.probeNames.has(name))
               ? "a probe"
               : null;
-      if (other) this.sink.error(this.nodeFrom.data[i], this.nodeTo.data[i], `node name '${name}' is already ${other}`, "every name means one thing: rename one of them");
+      if (other) this.sink.error(this.nodeFrom.data[i], this.nodeTo.data[i], `node name '${name || this.nodeNames.at(i)}' is already ${other}`, "every name means one thing: rename one of them");
     }
     this.connectivity();
   }
@@ -2191,12 +2190,12 @@ class Elaborator {
     for (const i of r.floating) {
       if (this.suppressed.has(i)) continue;
       const [f, t] = at(i);
-      this.sink.error(f, t, `node '${this.nodeNames[i]}' has no DC path to any rail`, "connect it through a device channel (source or drain) to a rail; gates and injects carry no DC current");
+      this.sink.error(f, t, `node '${this.nodeNames.at(i)}' has no DC path to any rail`, "connect it through a device channel (source or drain) to a rail; gates and injects carry no DC current");
     }
     for (const i of r.single) {
       if (this.suppressed.has(i)) continue;
       const [f, t] = at(i);
-      this.sink.warning(f, t, `node '${this.nodeNames[i]}' is touched by only one terminal`, "a node joins at least two terminals: check the spelling of its name");
+      this.sink.warning(f, t, `node '${this.nodeNames.at(i)}' is touched by only one terminal`, "a node joins at least two terminals: check the spelling of its name");
     }
     for (const i of r.unusedRails) {
       if (this.suppressed.has(i)) continue;
@@ -2273,7 +2272,8 @@ class Elaborator {
       settings: { ...this.settings },
       params: this.paramList,
       nodes: {
-        names: this.nodeNames,
+        // Made here, not on demand: every solver reads nodes.names.
+        names: this.nodeNames.all(),
         get index() {
           return nodes.full();
         },
@@ -2368,7 +2368,7 @@ class Elaborator {
         if (a.kind === "voltage") {
           if (this.findNode(a.name) !== undefined) continue;
           const isDev = this.devHas(a.name, null);
-          const hint = isDev || this.injIndex.has(a.name) ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames : []);
+          const hint = isDev || this.injIndex.has(a.name) ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames.all() : []);
           this.sink.error(a.from, a.to, `voltage() of unknown node '${a.name}'`, hint);
         } else {
           if (this.devHas(a.name, null) || this.injIndex.has(a.name)) continue;
