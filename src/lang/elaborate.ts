@@ -197,8 +197,33 @@ class IntColumn {
     d.set(this.data.subarray(0, this.length));
     this.data = d;
   }
+  /** The values; the column is not used after. */
   finish(): Int32Array {
-    return this.data.slice(0, this.length);
+    return this.length === this.data.length ? this.data : this.data.slice(0, this.length);
+  }
+}
+
+/** Growable Uint8 column. */
+class ByteColumn {
+  data = new Uint8Array(256);
+  length = 0;
+  push(v: number): void {
+    if (this.length === this.data.length) {
+      const d = new Uint8Array(this.data.length * 2);
+      d.set(this.data);
+      this.data = d;
+    }
+    this.data[this.length++] = v;
+  }
+  reserve(n: number): void {
+    if (n <= this.data.length) return;
+    const d = new Uint8Array(n);
+    d.set(this.data.subarray(0, this.length));
+    this.data = d;
+  }
+  /** The values; the column is not used after. */
+  finish(): Uint8Array {
+    return this.length === this.data.length ? this.data : this.data.slice(0, this.length);
   }
 }
 
@@ -221,8 +246,9 @@ class FloatColumn {
     d.set(this.data.subarray(0, this.length));
     this.data = d;
   }
+  /** The values; the column is not used after. */
   finish(): Float64Array {
-    return this.data.slice(0, this.length);
+    return this.length === this.data.length ? this.data : this.data.slice(0, this.length);
   }
 }
 
@@ -618,7 +644,7 @@ class Elaborator {
   private fixedNodeOverflow = false;
   private readonly pieceOut = [0, 0];
   private readonly railValue = new FloatColumn();
-  private readonly isRail: number[] = [];
+  private readonly isRail = new ByteColumn();
   private readonly nodeFrom = new IntColumn();
   private readonly nodeTo = new IntColumn();
   private readonly suppressed = new Set<number>();
@@ -640,7 +666,7 @@ class Elaborator {
   private readonly devNames = new NameColumn(this.shapeList);
   /** Filled on demand: devices whose name no other shape can give need no look-up while elaborating. */
   private readonly devs = new LazyIndex(this.devNames);
-  private readonly devType: number[] = [];
+  private readonly devType = new ByteColumn();
   private readonly gate = new IntColumn();
   private readonly source = new IntColumn();
   private readonly drain = new IntColumn();
@@ -1629,6 +1655,7 @@ class Elaborator {
     if (n <= this.gate.data.length) return;
     for (const c of [this.gate, this.source, this.drain, this.bulk, this.devAt]) c.reserve(n);
     this.devNames.reserve(n);
+    this.devType.reserve(n);
     this.w.reserve(n);
     this.l.reserve(n);
   }
@@ -2028,7 +2055,7 @@ class Elaborator {
       this.sink.error(t.value.from, t.value.to, `a rail value must be a finite voltage, but it is ${fmt(v)}`);
     }
     const existing = this.findNode(name);
-    if (existing !== undefined && this.isRail[existing]) {
+    if (existing !== undefined && this.isRail.data[existing]) {
       const first = this.rails.find((r) => r.node === existing);
       return this.duplicate("rail", name, t.name, first ? first.span.from : t.at);
     }
@@ -2041,7 +2068,7 @@ class Elaborator {
       this.suppressed.add(i);
       v = 0;
     }
-    this.isRail[i] = 1;
+    this.isRail.data[i] = 1;
     this.railValue.data[i] = v;
     this.rails.push({ name, node: i, span: { from: t.name.from, to: t.name.to } });
     this.kindByName.set(name, "a rail");
@@ -2093,7 +2120,7 @@ class Elaborator {
     const injMark = this.injNames.length < nodeCount ? this.markNodes(this.injNames) : null;
     const probeMark = this.probeNames.size < nodeCount ? this.markNodes(this.probeNames.keys()) : null;
     for (let i = 0; i < nodeCount; i++) {
-      if (this.isRail[i]) continue;
+      if (this.isRail.data[i]) continue;
       const sh = shapeOf[i];
       if (sh >= 0 && devCheck[sh] < 0) devCheck[sh] = this.mayBeDeviceName(this.shapeList[sh].lits) ? 1 : 0;
       // The string only when some check below reads it.
@@ -2176,7 +2203,7 @@ class Elaborator {
     if (this.syntaxErrors > 0 && this.nodeNames.length === 0) return;
     const r = checkConnectivity({
       nodeCount: this.nodeNames.length,
-      isRail: Uint8Array.from(this.isRail),
+      isRail: this.isRail.data,
       deviceCount: this.devNames.length,
       gate: this.gate.data,
       source: this.source.data,
@@ -2288,7 +2315,7 @@ class Elaborator {
         get index() {
           return devs.full();
         },
-        type: Uint8Array.from(this.devType),
+        type: this.devType.finish(),
         gate: this.gate.finish(),
         source: this.source.finish(),
         drain: this.drain.finish(),
@@ -2373,7 +2400,7 @@ class Elaborator {
         } else {
           if (this.devHas(a.name, null) || this.injIndex.has(a.name)) continue;
           const node = this.findNode(a.name);
-          if (node !== undefined && this.isRail[node]) continue;
+          if (node !== undefined && this.isRail.data[node]) continue;
           if (node !== undefined) {
             this.sink.error(a.from, a.to, `current() needs a device, an inject or a rail, but '${a.name}' is an internal node`, `to read its voltage use voltage(${a.name})`);
             continue;
