@@ -113,12 +113,12 @@ export interface LinearPlan {
   /** Scratch for pseudoCurrents (overwritten by the next point; allocated on first use). */
   en: Float64Array;
   ep: Float64Array;
-  /** Right-hand side from the rails at the last factorisation (scaled). */
+  /** Right-hand side from the rails at the last factorisation (scaled, permuted). */
   rhsRails: Float64Array;
   /** Scaling of the last factorisation: reference voltages and ln gs per class (index 0 = p, 1 = n). */
   vref: Float64Array;
   lnScale: Float64Array;
-  /** Scratch vectors of length rows (r only with refinement). */
+  /** Scratch vectors of length rows (b and r only with refinement, allocated on first use). */
   b: Float64Array;
   y: Float64Array;
   r: Float64Array;
@@ -268,7 +268,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     rhsRails: new Float64Array(rows),
     vref: new Float64Array(2),
     lnScale: new Float64Array(2),
-    b: new Float64Array(rows),
+    b: new Float64Array(0),
     y: new Float64Array(rows),
     r: new Float64Array(opts.refine ? rows : 0),
     refine: opts.refine ?? 0,
@@ -427,6 +427,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
     uRail[2 * q + 1] = Math.exp((v - vrefP) / ut);
   }
   const { rowDiag, posOff } = plan;
+  const pinv = plan.symbolic.pinv;
   const size = P.size;
   const cOut = plan.c;
   const gsN = Math.exp(plan.lnScale[1]);
@@ -470,10 +471,10 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
       cx[posOff ? posOff[d] : (da < db ? da : db) + 1] -= g;
     } else if (ra >= 0) {
       cx[rowDiag[ra]] += g;
-      rhs[ra] += g * uRail[2 * (-1 - rb) + (isN ? 0 : 1)];
+      rhs[pinv[ra]] += g * uRail[2 * (-1 - rb) + (isN ? 0 : 1)];
     } else if (rb >= 0) {
       cx[rowDiag[rb]] += g;
-      rhs[rb] += g * uRail[2 * (-1 - ra) + (isN ? 0 : 1)];
+      rhs[pinv[rb]] += g * uRail[2 * (-1 - ra) + (isN ? 0 : 1)];
     }
   }
   const res = cholesky(plan.C, plan.symbolic, plan.factor ?? undefined, plan.work);
@@ -487,12 +488,12 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   return { ok: true };
 }
 
-/** b (unpermuted, scaled) = rails' part (when withRails) + the injects with value(j). */
-function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j: number) => number): Float64Array {
-  const b = plan.b;
-  if (withRails) b.set(plan.rhsRails);
-  else b.fill(0);
+/** out = P·b (permuted, scaled): the rails' part (when withRails) + the injects with value(j). */
+function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j: number) => number, out: Float64Array): Float64Array {
+  if (withRails) out.set(plan.rhsRails);
+  else out.fill(0);
   const { rowOf, rowIsN } = plan;
+  const pinv = plan.symbolic.pinv;
   const { injects } = net;
   // Injects: drawn out of an n-channel node, pushed into a p-channel node.
   const invN = Math.exp(-plan.lnScale[1]);
@@ -502,25 +503,29 @@ function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j:
     if (v === 0) continue;
     const rf = rowOf[injects.from[j]];
     const rt = rowOf[injects.to[j]];
-    if (rf >= 0) b[rf] += rowIsN[rf] ? v * invN : -v * invP;
-    if (rt >= 0) b[rt] += rowIsN[rt] ? -v * invN : v * invP;
+    if (rf >= 0) out[pinv[rf]] += rowIsN[rf] ? v * invN : -v * invP;
+    if (rt >= 0) out[pinv[rt]] += rowIsN[rt] ? -v * invN : v * invP;
   }
-  return b;
+  return out;
 }
 
-/** y = C⁻¹·(P·b) in permuted order: y = L \ (P·b); y = Lᵀ \ y; then refinement steps. */
-function solvePermuted(plan: LinearPlan, b: Float64Array, y: Float64Array): void {
+/** y = C⁻¹·y in permuted order (y holds P·b on entry): y = L \ y; y = Lᵀ \ y; then refinement steps (r = P·b − C·y). */
+function solvePermuted(plan: LinearPlan, y: Float64Array): void {
   const factor = plan.factor as Factor;
-  const perm = plan.symbolic.perm;
   const rows = plan.rows;
-  for (let k = 0; k < rows; k++) y[k] = b[perm[k]];
+  const refine = plan.refine;
+  if (refine > 0) {
+    if (plan.r.length !== rows) plan.r = new Float64Array(rows);
+    if (plan.b.length !== rows) plan.b = new Float64Array(rows);
+    plan.b.set(y);
+  }
   lsolve(factor, y);
   ltsolve(factor, y);
-  if (plan.refine > 0 && plan.r.length !== rows) plan.r = new Float64Array(rows);
   const r = plan.r;
-  for (let step = 0; step < plan.refine; step++) {
+  const b = plan.b;
+  for (let step = 0; step < refine; step++) {
     multiplySymmetric(plan.C, y, r);
-    for (let k = 0; k < rows; k++) r[k] = b[perm[k]] - r[k];
+    for (let k = 0; k < rows; k++) r[k] = b[k] - r[k];
     lsolve(factor, r);
     ltsolve(factor, r);
     for (let k = 0; k < rows; k++) y[k] += r[k];
@@ -545,7 +550,7 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
   const sup = plan.sup;
   const all = (j: number) => values[j];
   if (sup.fresh || sup.disabled) {
-    solvePermuted(plan, buildRhs(plan, net, true, all), y);
+    solvePermuted(plan, buildRhs(plan, net, true, all, y));
     if (sup.fresh) {
       sup.fresh = false;
       sup.disabled = false;
@@ -565,16 +570,16 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
       }
     }
     if (sup.disabled) {
-      solvePermuted(plan, buildRhs(plan, net, true, all), y);
+      solvePermuted(plan, buildRhs(plan, net, true, all, y));
     } else {
       if (sup.changed.length > before) {
         // rest: rails and the injects still at their reference values; z_j: 1 A in inject j.
         if (sup.rest.length !== rows) sup.rest = new Float64Array(rows);
-        solvePermuted(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j])), sup.rest);
+        solvePermuted(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j]), sup.rest));
         for (let t = before; t < sup.changed.length; t++) {
           const jj = sup.changed[t];
           const z = new Float64Array(rows);
-          solvePermuted(plan, buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0)), z);
+          solvePermuted(plan, buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0), z));
           sup.z.push(z);
         }
       }

@@ -175,3 +175,19 @@ describe("naturalHasNoFill", () => {
     expect(noFill(graph(4, [[0, 1], [1, 2], [2, 3], [3, 0]]))).toBe(false);
   });
 });
+
+describe("iterative refinement", () => {
+  it("one step leaves the voltages of a tree and of a mesh unchanged to 1e-12 relative (the direct solve is already accurate)", () => {
+    const rnd = lcg(5);
+    const tree: [number, number][] = [];
+    for (let k = 1; k < 60; k++) tree.push([Math.floor(rnd() * k), k]);
+    const ring: [number, number][] = [];
+    for (let k = 0; k < 40; k++) ring.push([k, (k + 1) % 40], [k, (k + 7) % 40]);
+    for (const [n, edges] of [[60, tree], [40, ring]] as const) {
+      const plain = solveNetwork(network(n, edges, lcg(n)));
+      const refined = solveNetwork(network(n, edges, lcg(n)), { refine: 1 });
+      expect(refined.ok).toBe(true);
+      expectClose(refined.points[0].voltages, plain.points[0].voltages);
+    }
+  });
+});
