@@ -85,7 +85,8 @@ function treeCholesky(C: Csc, S: Symbolic, into?: Factor): FactorResult {
   const lp = S.lp;
   const parent = S.parent;
   const lx = into ? into.lx : new Float64Array(S.lnz);
-  lx.set(C.x as Float64Array);
+  // In place when into.lx is C.x itself.
+  if (lx !== C.x) lx.set(C.x as Float64Array);
   for (let k = 0; k < n; k++) {
     const q = lp[k];
     const d = lx[q];

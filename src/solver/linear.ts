@@ -76,7 +76,11 @@ export interface LinearPlan {
   /** The ordering; "tree" when the graph is a forest, eliminated leaves first (tree.ts). */
   ordering: OrderingName | "tree";
   symbolic: Symbolic;
-  /** The permuted triangle of the matrix the kernel reads; values refilled by factorLinear. */
+  /**
+   * The permuted triangle of the matrix the kernel reads; values refilled by
+   * factorLinear. For a forest without refinement the tree kernel then
+   * overwrites them with L (C.x is the factor's value array: one array less).
+   */
   C: Csc;
   /** Position in C.x of the diagonal of each row. */
   rowDiag: Int32Array;
@@ -477,7 +481,11 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
       rhs[pinv[rb]] += g * uRail[2 * (-1 - ra) + (isN ? 0 : 1)];
     }
   }
-  const res = cholesky(plan.C, plan.symbolic, plan.factor ?? undefined, plan.work);
+  const S = plan.symbolic;
+  // A forest without refinement factors in place (C is not read again before the next refill).
+  const inPlace = S.kernel === "tree" && plan.refine === 0;
+  const into = plan.factor ?? (inPlace ? { n: S.n, kernel: "simple" as const, lp: S.lp, li: plan.C.i, lx: cx, supernodes: null } : undefined);
+  const res = cholesky(plan.C, S, into, plan.work);
   if (!res.ok) {
     plan.factor = null;
     const node = plan.nodeOfRow[plan.symbolic.perm[res.column]];
