@@ -1649,10 +1649,14 @@ class Elaborator {
     }
   }
 
-  /** Sizes the device columns for the devices a top-level loop makes when its bounds are known before it runs (an estimate: never above the limit). */
+  /**
+   * Sizes the device columns for the devices a top-level loop makes when its
+   * bounds are known before it runs. Nothing is reserved for a loop that
+   * would pass the device limit (it stops with an error).
+   */
   private reserveDevices(t: ForTpl): void {
-    const n = this.devNames.length + Math.min(this.devicesOf([t]), this.limits.maxDevices);
-    if (n <= this.gate.data.length) return;
+    const n = this.devNames.length + this.devicesOf([t]);
+    if (n <= this.gate.data.length || n > this.limits.maxDevices) return;
     for (const c of [this.gate, this.source, this.drain, this.bulk, this.devAt]) c.reserve(n);
     this.devNames.reserve(n);
     this.devType.reserve(n);
