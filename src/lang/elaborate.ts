@@ -521,6 +521,8 @@ class PieceIndex {
   }
 }
 const EMPTY_ROW: Int32Array = new Int32Array(0);
+/** Most name shapes compared with each other, per kind (nodes, devices); beyond, names are looked up as strings. */
+const SHAPES_TRACKED = 256;
 /** Most rail, inject, probe and param names compared with a device name shape; beyond, every device looks its name up. */
 const KIND_SCAN = 64;
 /** Fixed device names compared with device name shapes; beyond this many, every shape looks names up. */
@@ -642,6 +644,8 @@ class Elaborator {
   private readonly nodeShapeSet = new Set<Shape>();
   private readonly fixedNodeNames: string[] = [];
   private fixedNodeOverflow = false;
+  /** More than SHAPES_TRACKED node shapes: no shape is complete any more. */
+  private nodeShapesOff = false;
   private readonly pieceOut = [0, 0];
   private readonly railValue = new FloatColumn();
   private readonly isRail = new ByteColumn();
@@ -658,6 +662,8 @@ class Elaborator {
   private readonly devShapes: Shape[] = [];
   private readonly fixedDevNames: string[] = [];
   private fixedDevOverflow = false;
+  /** More than SHAPES_TRACKED device shapes: no shape is complete any more. */
+  private devShapesOff = false;
   /** Piece values of the last name `pieceName` made through a PieceIndex. */
   private pieceA = 0;
   private pieceB = 0;
@@ -1835,6 +1841,16 @@ class Elaborator {
     this.nodeShapeSet.add(shape);
     const own = shape.node;
     if (own) own.registered = true;
+    if (this.nodeShapes.length >= SHAPES_TRACKED) {
+      // Too many to compare: every node name is looked up as a string from now on.
+      if (own) own.complete = false;
+      if (!this.nodeShapesOff) {
+        for (const o of this.nodeShapes) if (o.node) o.node.complete = false;
+        this.nodes.full();
+      }
+      this.nodeShapesOff = true;
+      return;
+    }
     let overlap = this.fixedNodeOverflow;
     for (const f of this.fixedNodeNames) if (mayShareName(shape.lits, [f])) overlap = true;
     for (const o of this.nodeShapes) {
@@ -1850,6 +1866,10 @@ class Elaborator {
   /** Notes a node made without its shape's PieceIndex: shapes that may give its name are no longer complete. */
   private madeWithoutIndex(t: NameTpl, name: string): void {
     const shape = t.shape;
+    if (this.nodeShapesOff) {
+      if (shape?.node) shape.node.complete = false;
+      return;
+    }
     if (shape !== null) {
       if (!this.nodeShapeSet.has(shape)) this.registerNodeShape(shape);
       if (shape.node) shape.node.complete = false;
@@ -1922,6 +1942,13 @@ class Elaborator {
   private registerDevShape(shape: Shape): void {
     const own = shape.dev!;
     own.registered = true;
+    if (this.devShapes.length >= SHAPES_TRACKED) {
+      // Too many to compare: every device name is looked up as a string from now on.
+      own.complete = false;
+      if (!this.devShapesOff) for (const o of this.devShapes) if (o.dev) o.dev.complete = false;
+      this.devShapesOff = true;
+      return;
+    }
     if (this.fixedDevOverflow) own.complete = false;
     for (const f of this.fixedDevNames) if (mayShareName(shape.lits, [f])) own.complete = false;
     for (const o of this.devShapes) {
@@ -1936,6 +1963,10 @@ class Elaborator {
   /** Notes a device made without its PieceIndex: no device shape that may give the same name can trust a miss any more. */
   private devWithoutIndex(t: NameTpl, name: string): void {
     const shape = t.shape;
+    if (this.devShapesOff) {
+      if (shape?.dev) shape.dev.complete = false;
+      return;
+    }
     if (shape !== null) {
       if (shape.dev) shape.dev.complete = false;
       else if (!this.devShapes.includes(shape)) {
@@ -2159,7 +2190,7 @@ class Elaborator {
 
   /** Whether some device made so far may carry a name of this shape. */
   private mayBeDeviceName(lits: string[]): boolean {
-    if (this.fixedDevOverflow) return true;
+    if (this.fixedDevOverflow || this.devShapesOff) return true;
     for (const f of this.fixedDevNames) if (mayShareName(lits, [f])) return true;
     for (const o of this.devShapes) if (mayShareName(lits, o.lits)) return true;
     return false;
