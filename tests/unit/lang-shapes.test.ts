@@ -115,4 +115,16 @@ rail y1 = 0.5
     expect(n.nodes.railValue[y1]).toBe(0.5);
     expect(n.devices.source[n.devices.index.get("d1")!]).toBe(y1);
   });
+
+  it("past 256 loop statements with their own name shapes, names are still found", () => {
+    let text = RAILS;
+    for (let s = 0; s < 300; s++) text += `for k in 0..2 {\n  nfet d${s}x{k} gate=vdd source=gnd drain=n${(s * 7) % 300}y{k}\n}\n`;
+    text += "nfet d5x1 gate=vdd source=n3y1 drain=gnd\nnfet q1 gate=vdd source=d7x2 drain=gnd\nfor k in 0..2 {\n  nfet d299x{k} gate=vdd source=gnd drain=n1y{k}\n}\n";
+    const r = elaborate(text);
+    expect(r.diagnostics.filter((d) => d.severity === "error").map((d) => `${d.line}: ${d.message}`)).toEqual([
+      "903: device 'd5x1' is defined twice (first on line 19)",
+      "904: node name 'd7x2' is already a device",
+      "906: device 'd299x0' is defined twice (first on line 901) (and 2 more like it from this statement)",
+    ]);
+  });
 });
