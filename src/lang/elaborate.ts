@@ -178,7 +178,11 @@ class LazyIndex {
   }
 }
 
-/** Growable Int32 column. */
+/**
+ * Growable Int32 column. The three column classes stay separate on purpose: one
+ * class generic over the array type would make push() polymorphic in the
+ * per-device loop (src/solver/build.ts, off the hot path, uses a generic one).
+ */
 class IntColumn {
   data = new Int32Array(256);
   length = 0;
