@@ -8,10 +8,13 @@
  * residual is the largest KCL error over internal nodes, in amperes.
  */
 
-import type { Diagnostic, Network } from "../lang/network";
+import { type Diagnostic, type Network, NFET } from "../lang/network";
 import { LineIndex } from "../lang/diagnostics";
 import type { Classification } from "./classify";
-import { type DeviceParams, deviceCurrent, polarity } from "./device";
+import { type DeviceParams, deviceCurrent } from "./device";
+
+/** NFET as a module-local constant (an imported binding can compile to a getter call per read; see linear.ts). */
+const N_TYPE: number = NFET;
 
 export type Method = "linear" | "newton";
 
@@ -165,75 +168,26 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   const saturated = new Uint8Array(m);
   const entering = kcl ?? new Float64Array(nn);
   entering.fill(0);
-  const satLimit = 4 * settings.ut;
-  const out = new Float64Array(4);
-  let maxCurrent = 0;
-  let junctionCount = 0;
-  let junctionFirst = -1;
-  let junctionWorst = 0;
-  let invCount = 0;
-  let invFirst = -1;
-  let invWorst = 0;
   const checkWeak = hasIc && settings.model === "weak";
-  for (let d = 0; d < m; d++) {
-    const sg = polarity(type[d]);
-    const b = bulk[d];
-    const vb = b >= 0 ? V[b] : 0;
-    const xs = sg * (V[source[d]] - vb);
-    const xd = sg * (V[drain[d]] - vb);
-    let iF: number;
-    let i: number;
-    if (pseudo) {
-      const e = sg > 0 ? pseudo.en : pseudo.ep;
-      const c = pseudo.c[d];
-      iF = c * e[source[d]];
-      i = iF - c * e[drain[d]];
-    } else {
-      iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
-      i = out[0];
-    }
-    currents[d] = i;
-    const a = Math.abs(i);
-    if (a > maxCurrent) maxCurrent = a;
-    entering[source[d]] += sg * i;
-    entering[drain[d]] -= sg * i;
-    saturated[d] = xd - xs > satLimit ? 1 : 0;
-    const icd = hasIc ? iF / (((ispec as number) * w[d]) / l[d]) : NaN;
-    if (hasIc) ic[d] = icd;
-    if (checkWeak && icd > WEAK_LIMIT) {
-      if (invFirst < 0) invFirst = d;
-      invCount++;
-      if (icd > invWorst) invWorst = icd;
-    }
-    // x < 0 at source or drain: the junction to the bulk/well is forward-biased.
-    const fwd = -Math.min(xs, xd);
-    if (fwd > JUNCTION_TOLERANCE) {
-      if (junctionFirst < 0) junctionFirst = d;
-      junctionCount++;
-      if (fwd > junctionWorst) junctionWorst = fwd;
-    }
-  }
+  const st = evalStats;
+  deviceLoop(m, type, gate, source, drain, bulk, w, l, V, P, pseudo ?? null, hasIc, hasIc ? (ispec as number) : 0, checkWeak, 4 * settings.ut, currents, ic, saturated, entering, st);
+  const maxCurrent = st[S_MAX];
+  const junctionCount = st[S_JCOUNT];
+  const junctionFirst = st[S_JFIRST];
+  const junctionWorst = st[S_JWORST];
+  const invCount = st[S_ICOUNT];
+  const invFirst = st[S_IFIRST];
+  const invWorst = st[S_IWORST];
+  const { value: injValue, from: injFrom, to: injTo } = injects;
   for (let j = 0; j < injects.count; j++) {
-    const v = injects.value[j];
-    entering[injects.from[j]] -= v;
-    entering[injects.to[j]] += v;
+    const v = injValue[j];
+    entering[injFrom[j]] -= v;
+    entering[injTo[j]] += v;
   }
   const railCurrents = new Float64Array(nn);
-  let residual = 0;
-  let worstNode = -1;
-  const rv = nodes.railValue;
-  for (let k = 0; k < nn; k++) {
-    if (Number.isFinite(rv[k])) {
-      railCurrents[k] = 0 - entering[k]; // not -0 for an idle rail
-    } else {
-      railCurrents[k] = NaN;
-      const e = Math.abs(entering[k]);
-      if (e > residual || worstNode < 0) {
-        residual = e;
-        worstNode = k;
-      }
-    }
-  }
+  railLoop(nn, nodes.railValue, entering, railCurrents, st);
+  const residual = st[S_RESIDUAL];
+  const worstNode = st[S_WORST];
   const warnings: SolverWarning[] = [];
   if (junctionCount > 0) {
     const first = devices.names[junctionFirst];
@@ -258,6 +212,162 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
     });
   }
   return { currents, ic, saturated, railCurrents, residual, worstNode, maxCurrent, warnings };
+}
+
+/** Slots of evalStats, the scratch the loops below report into (one evaluation at a time: the core is synchronous). */
+const S_MAX = 0;
+const S_JCOUNT = 1;
+const S_JFIRST = 2;
+const S_JWORST = 3;
+const S_ICOUNT = 4;
+const S_IFIRST = 5;
+const S_IWORST = 6;
+const S_RESIDUAL = 7;
+const S_WORST = 8;
+const evalStats = new Float64Array(9);
+
+/**
+ * Per device: current, KCL contributions (entering, accumulated), saturation,
+ * ic (only when hasIc; icScale = ispec), validity counts into st. A function
+ * of its own so that the loop is optimised as a whole, not by on-stack
+ * replacement inside evaluate (whose code after the loop has no type feedback
+ * yet and threw the optimised code away on every call). σ inline: no
+ * imported-function call per device.
+ */
+function deviceLoop(
+  m: number,
+  type: Uint8Array,
+  gate: Int32Array,
+  source: Int32Array,
+  drain: Int32Array,
+  bulk: Int32Array,
+  w: Float64Array,
+  l: Float64Array,
+  V: Float64Array,
+  P: DeviceParams,
+  pseudo: PseudoCurrents | null,
+  hasIc: boolean,
+  icScale: number,
+  checkWeak: boolean,
+  satLimit: number,
+  currents: Float64Array,
+  ic: Float64Array,
+  saturated: Uint8Array,
+  entering: Float64Array,
+  st: Float64Array,
+): void {
+  let maxCurrent = 0;
+  let junctionCount = 0;
+  let junctionFirst = -1;
+  let junctionWorst = 0;
+  let invCount = 0;
+  let invFirst = -1;
+  let invWorst = 0;
+  if (pseudo !== null) {
+    // iF = c·e(source), I = iF − c·e(drain); ic in pseudoIc (only when hasIc).
+    const pc = pseudo.c;
+    const pen = pseudo.en;
+    const pep = pseudo.ep;
+    for (let d = 0; d < m; d++) {
+      const isN = type[d] === N_TYPE;
+      const sg = isN ? 1 : -1;
+      const b = bulk[d];
+      const s = source[d];
+      const t = drain[d];
+      const vb = b >= 0 ? V[b] : 0;
+      const xs = sg * (V[s] - vb);
+      const xd = sg * (V[t] - vb);
+      const e = isN ? pen : pep;
+      const c = pc[d];
+      const i = c * e[s] - c * e[t];
+      currents[d] = i;
+      const a = Math.abs(i);
+      if (a > maxCurrent) maxCurrent = a;
+      entering[s] += sg * i;
+      entering[t] -= sg * i;
+      saturated[d] = xd - xs > satLimit ? 1 : 0;
+      // x < 0 at source or drain: the junction to the bulk/well is forward-biased.
+      const fwd = -Math.min(xs, xd);
+      if (fwd > JUNCTION_TOLERANCE) {
+        if (junctionFirst < 0) junctionFirst = d;
+        junctionCount++;
+        if (fwd > junctionWorst) junctionWorst = fwd;
+      }
+    }
+    if (hasIc) {
+      for (let d = 0; d < m; d++) {
+        const iF = pc[d] * (type[d] === N_TYPE ? pen : pep)[source[d]];
+        const icd = iF / ((icScale * w[d]) / l[d]);
+        ic[d] = icd;
+        if (checkWeak && icd > WEAK_LIMIT) {
+          if (invFirst < 0) invFirst = d;
+          invCount++;
+          if (icd > invWorst) invWorst = icd;
+        }
+      }
+    }
+  } else {
+    const out = new Float64Array(4);
+    for (let d = 0; d < m; d++) {
+      const sg = type[d] === N_TYPE ? 1 : -1;
+      const b = bulk[d];
+      const s = source[d];
+      const t = drain[d];
+      const vb = b >= 0 ? V[b] : 0;
+      const xs = sg * (V[s] - vb);
+      const xd = sg * (V[t] - vb);
+      const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
+      const i = out[0];
+      currents[d] = i;
+      const a = Math.abs(i);
+      if (a > maxCurrent) maxCurrent = a;
+      entering[s] += sg * i;
+      entering[t] -= sg * i;
+      saturated[d] = xd - xs > satLimit ? 1 : 0;
+      if (hasIc) {
+        const icd = iF / ((icScale * w[d]) / l[d]);
+        ic[d] = icd;
+        if (checkWeak && icd > WEAK_LIMIT) {
+          if (invFirst < 0) invFirst = d;
+          invCount++;
+          if (icd > invWorst) invWorst = icd;
+        }
+      }
+      const fwd = -Math.min(xs, xd);
+      if (fwd > JUNCTION_TOLERANCE) {
+        if (junctionFirst < 0) junctionFirst = d;
+        junctionCount++;
+        if (fwd > junctionWorst) junctionWorst = fwd;
+      }
+    }
+  }
+  st[S_MAX] = maxCurrent;
+  st[S_JCOUNT] = junctionCount;
+  st[S_JFIRST] = junctionFirst;
+  st[S_JWORST] = junctionWorst;
+  st[S_ICOUNT] = invCount;
+  st[S_IFIRST] = invFirst;
+  st[S_IWORST] = invWorst;
+}
+
+/** Rail currents (NaN at internal nodes) and the largest KCL error over internal nodes into st (residual, worst node). */
+function railLoop(nn: number, rv: Float64Array, entering: Float64Array, railCurrents: Float64Array, st: Float64Array): void {
+  let residual = 0;
+  let worstNode = -1;
+  for (let k = 0; k < nn; k++) {
+    if (Number.isFinite(rv[k])) {
+      railCurrents[k] = 0 - entering[k]; // not -0 for an idle rail
+    } else {
+      railCurrents[k] = NaN;
+      const e = Math.abs(entering[k]);
+      if (e > residual || worstNode < 0) {
+        residual = e;
+        worstNode = k;
+      }
+    }
+  }
+  st[S_RESIDUAL] = residual;
+  st[S_WORST] = worstNode;
 }
 
 const noIcCache = new WeakMap<object, Float64Array>();
