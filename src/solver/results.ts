@@ -155,17 +155,29 @@ export interface PseudoCurrents {
   ep: Float64Array;
 }
 
-export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array, pseudo?: PseudoCurrents | null): Evaluation {
+/**
+ * Storage for one point's result arrays (zero-filled, never used for another
+ * point): views into a slab shared by several points (see sweep.ts PointSlab).
+ * ic is null when the evaluation needs none (no ispec).
+ */
+export interface PointStorage {
+  currents: Float64Array;
+  ic: Float64Array | null;
+  saturated: Uint8Array;
+  railCurrents: Float64Array;
+}
+
+export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array, pseudo?: PseudoCurrents | null, into?: PointStorage): Evaluation {
   const { devices, injects, nodes, settings } = net;
   const m = devices.count;
   const nn = nodes.names.length;
   const { type, gate, source, drain, bulk, w, l } = devices;
   const ispec = settings.ispec;
   const hasIc = ispec !== null && (settings.model === "weak" || settings.vt0 !== null);
-  const currents = new Float64Array(m);
+  const currents = into ? into.currents : new Float64Array(m);
   // Without ispec every ic is null: one shared all-NaN array per network (results are read-only).
-  const ic = hasIc ? new Float64Array(m) : noIc(net);
-  const saturated = new Uint8Array(m);
+  const ic = hasIc ? (into?.ic ?? new Float64Array(m)) : noIc(net);
+  const saturated = into ? into.saturated : new Uint8Array(m);
   const entering = kcl ?? new Float64Array(nn);
   entering.fill(0);
   const checkWeak = hasIc && settings.model === "weak";
@@ -184,7 +196,7 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
     entering[injFrom[j]] -= v;
     entering[injTo[j]] += v;
   }
-  const railCurrents = new Float64Array(nn);
+  const railCurrents = into ? into.railCurrents : new Float64Array(nn);
   railLoop(nn, nodes.railValue, entering, railCurrents, st);
   const residual = st[S_RESIDUAL];
   const worstNode = st[S_WORST];

@@ -15,7 +15,7 @@ import { type DeviceParams, deviceParams } from "./device";
 import { factorLinear, type LinearOptions, type LinearPlan, planLinear, pseudoCurrents, solveLinear } from "./linear";
 import { MismatchSampler, summarize } from "./mismatch";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
-import { evaluate, evaluateProbes, type Method, type PointResult, type ProbeSummary, type RunResult, type RunTimings } from "./results";
+import { evaluate, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings } from "./results";
 
 export interface SolveOptions extends LinearOptions {
   /** Called after each point with (points done, points in the run). */
@@ -154,6 +154,8 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
   const sweptTemp = net.sweeps.some((s) => s.param === "temp");
   const nn = net.nodes.names.length;
   const kcl = new Float64Array(nn);
+  // ic storage in the slab whenever ispec is set at all (a swept setting may switch it per point; unused then).
+  const slab = keep ? new PointSlab(nn, net.devices.count, net.settings.ispec !== null || net.bindings.some((b) => b.target.kind === "setting")) : null;
   let key: FactorKey | null = null;
   let pKey: FactorKey | null = null;
   let P: DeviceParams | null = null;
@@ -182,7 +184,8 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
         P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
         pKey = k;
       }
-      const V = new Float64Array(nn);
+      const slot = slab ? slab.next() : null;
+      const V = slot ? slot.V : new Float64Array(nn);
       let ok = true;
       let error: string | null = null;
       let failNode = -1;
@@ -237,16 +240,16 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
         timings.solveMs += performance.now() - ts;
       }
       const te = performance.now();
-      const ev = evaluate(pnet, V, P, kcl, lplan && ok ? pseudoCurrents(lplan, pnet, V) : null);
+      const ev = evaluate(pnet, V, P, kcl, lplan && ok ? pseudoCurrents(lplan, pnet, V) : null, slot ? slot.store : undefined);
       const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
       for (const name in probes) probeValues[name].push(probes[name]);
-      const where = describePoint(grid[g], sample);
       const point: PointResult = {
         index,
         params,
         sample,
         ok,
-        error: ok ? null : `${where}${error}`,
+        // The point's description only for a failed point (no string work per solved point).
+        error: ok ? null : `${describePoint(grid[g], sample)}${error}`,
         voltages: V,
         currents: ev.currents,
         ic: ev.ic,
@@ -283,6 +286,53 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
     }
   }
   return result;
+}
+
+/** Bytes of result arrays a slab holds at most (a few points' worth; at least one point). */
+const SLAB_BYTES = 1 << 22;
+
+/**
+ * Result arrays of retained points carved from shared zero-filled buffers
+ * (one allocation per several points instead of five per point). Only for
+ * runs that keep every point: a view keeps its whole slab alive. Every view
+ * is handed out once; the evaluation and the solve write into fresh zeros,
+ * as with separate allocations.
+ */
+class PointSlab {
+  private buf: ArrayBuffer | null = null;
+  private at = 0;
+  private readonly bytes: number;
+  constructor(
+    private readonly nn: number,
+    private readonly m: number,
+    private readonly withIc: boolean,
+  ) {
+    // Float64 parts first, then the Uint8 saturation flags, padded to 8 bytes.
+    this.bytes = 8 * (2 * nn + m * (withIc ? 2 : 1)) + Math.ceil(m / 8) * 8;
+  }
+  /** Voltages (length nn) and the evaluation's arrays of one point. */
+  next(): { V: Float64Array; store: PointStorage } {
+    if (!this.buf || this.at + this.bytes > this.buf.byteLength) {
+      this.buf = new ArrayBuffer(Math.max(1, Math.floor(SLAB_BYTES / this.bytes)) * this.bytes);
+      this.at = 0;
+    }
+    const { buf, nn, m } = this;
+    let o = this.at;
+    const V = new Float64Array(buf, o, nn);
+    o += 8 * nn;
+    const railCurrents = new Float64Array(buf, o, nn);
+    o += 8 * nn;
+    const currents = new Float64Array(buf, o, m);
+    o += 8 * m;
+    let ic: Float64Array | null = null;
+    if (this.withIc) {
+      ic = new Float64Array(buf, o, m);
+      o += 8 * m;
+    }
+    const saturated = new Uint8Array(buf, o, m);
+    this.at += this.bytes;
+    return { V, store: { currents, ic, saturated, railCurrents } };
+  }
 }
 
 function describePoint(overrides: Record<string, number>, sample: number | null): string {
