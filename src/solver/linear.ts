@@ -550,7 +550,7 @@ function solvePermuted(plan: LinearPlan, y: Float64Array): void {
 export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
   if (!plan.factor) throw new Error("solveLinear: no factorisation");
   plan.solved = false;
-  const { rows, rowOf, rowIsN, nodeOfRow } = plan;
+  const { rows, rowIsN, nodeOfRow } = plan;
   const { injects, nodes, settings } = net;
   const values = injects.value;
   const ut = settings.ut;
@@ -618,7 +618,8 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
     }
     V[nodeOfRow[r]] = rowIsN[r] ? vrefN - ut * Math.log(u) : vrefP + ut * Math.log(u);
   }
-  for (let k = 0; k < rv.length; k++) if (rowOf[k] < 0) V[k] = rv[k];
+  const railNodes = plan.railNodes;
+  for (let q = 0; q < railNodes.length; q++) V[railNodes[q]] = rv[railNodes[q]];
   plan.solved = worst < 0;
   if (worst >= 0) {
     const node = nodeOfRow[worst];
