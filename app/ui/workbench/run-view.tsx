@@ -361,16 +361,7 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
       {plot ? (
         <div className="space-y-2">
           <div className="flex flex-wrap items-center gap-4 text-sm">
-            <label className="flex items-center gap-2">
-              probe
-              <select value={probe} onChange={(e) => setProbe(Number(e.target.value))} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label="Probe to plot">
-                {series.probes.map((p, i) => (
-                  <option key={p} value={i}>
-                    {p}
-                  </option>
-                ))}
-              </select>
-            </label>
+            <ProbeSelect probes={series.probes} value={probe} onChange={setProbe} label="Probe to plot" />
             {series.sweeps.length > 1 ? (
               <label className="flex items-center gap-2">
                 along
@@ -602,21 +593,28 @@ function SpreadPanel({ series, gridPoint }: { series: SeriesView; gridPoint: num
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
-        <label className="flex items-center gap-2">
-          probe
-          <select value={probe} onChange={(e) => setProbe(Number(e.target.value))} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label="Probe to spread">
-            {series.probes.map((p, i) => (
-              <option key={p} value={i}>
-                {p}
-              </option>
-            ))}
-          </select>
-        </label>
+        <ProbeSelect probes={series.probes} value={probe} onChange={setProbe} label="Probe to spread" />
         <span className="tabular text-stone-700">
           {values.length} samples · mean {formatEng(mean, "", 4)} · σ {formatEng(sd, "", 3)} · σ/mean {formatNumber(sd / Math.abs(mean), 3)}
         </span>
       </div>
       <Histogram title={`${series.probes[probe]} over mismatch samples`} values={values} />
     </div>
+  );
+}
+
+/** "probe [select]": which of the run's probes a view shows. */
+function ProbeSelect({ probes, value, onChange, label }: { probes: string[]; value: number; onChange(index: number): void; label: string }) {
+  return (
+    <label className="flex items-center gap-2">
+      probe
+      <select value={value} onChange={(e) => onChange(Number(e.target.value))} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label={label}>
+        {probes.map((p, i) => (
+          <option key={p} value={i}>
+            {p}
+          </option>
+        ))}
+      </select>
+    </label>
   );
 }
