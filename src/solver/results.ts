@@ -202,26 +202,13 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   const worstNode = st[S_WORST];
   const warnings: SolverWarning[] = [];
   if (junctionCount > 0) {
-    const first = devices.names[junctionFirst];
-    const others = junctionCount > 1 ? ` and ${junctionCount - 1} other device${junctionCount > 2 ? "s" : ""}` : "";
-    warnings.push({
-      kind: "junction",
-      device: junctionFirst,
-      count: junctionCount,
-      worst: junctionWorst,
-      message: `${first}${others}: source or drain beyond the ${type[junctionFirst] === 0 ? "bulk" : "well"} (junction forward-biased by up to ${formatVolts(junctionWorst)}); the model has no junction current`,
-    });
+    const where = type[junctionFirst] === 0 ? "bulk" : "well";
+    warnings.push(deviceWarning("junction", devices.names, junctionFirst, junctionCount, junctionWorst,
+      `source or drain beyond the ${where} (junction forward-biased by up to ${formatVolts(junctionWorst)}); the model has no junction current`));
   }
   if (invCount > 0) {
-    const first = devices.names[invFirst];
-    const others = invCount > 1 ? ` and ${invCount - 1} other device${invCount > 2 ? "s" : ""}` : "";
-    warnings.push({
-      kind: "inversion",
-      device: invFirst,
-      count: invCount,
-      worst: invWorst,
-      message: `${first}${others}: inversion coefficient up to ${invWorst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`,
-    });
+    warnings.push(deviceWarning("inversion", devices.names, invFirst, invCount, invWorst,
+      `inversion coefficient up to ${invWorst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`));
   }
   return { currents, ic, saturated, railCurrents, residual, worstNode, maxCurrent, warnings };
 }
@@ -511,4 +498,10 @@ function firstDeviceAt(net: Network, node: number): number {
   const { source, drain, gate, count } = net.devices;
   for (let d = 0; d < count; d++) if (source[d] === node || drain[d] === node || gate[d] === node) return d;
   return -1;
+}
+
+/** A warning about `count` devices, named by the first: "m3 and 4 other devices: <detail>". */
+function deviceWarning(kind: SolverWarning["kind"], names: readonly string[], first: number, count: number, worst: number, detail: string): SolverWarning {
+  const others = count > 1 ? ` and ${count - 1} other device${count > 2 ? "s" : ""}` : "";
+  return { kind, device: first, count, worst, message: `${names[first]}${others}: ${detail}` };
 }
