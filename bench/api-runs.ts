@@ -19,6 +19,7 @@ import { spawn } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
+import { gridText } from "./workloads";
 
 const argv = process.argv.slice(2);
 const opt = (name: string, dflt: number) => (argv.includes(name) ? Number(argv[argv.indexOf(name) + 1]) : dflt);
@@ -73,33 +74,13 @@ for (let i = 0; ; i++) {
   await new Promise((f) => setTimeout(f, 100));
 }
 
-function gridText(points: number): string {
-  return `network bench_grid
-param vh = 0.7
-param vv = 0.6
-rail gh = vh
-rail gv = vv
-rail vd = 1
-rail gnd = 0
-for i in 0..${N - 1} {
-  for j in 0..${N - 1} {
-    nfet o{i}_{j} gate=gv source=n{i}_{j} drain=vd
-  }
-}
-for i in 0..${N - 1} {
-  for j in 0..${N - 2} {
-    nfet h{i}_{j} gate=gh source=n{i}_{j} drain=n{i}_{j+1}
-    nfet v{j}_{i} gate=gh source=n{j}_{i} drain=n{j+1}_{i}
-  }
-}
-inject spot from=n${N / 2}_${N / 2} to=gnd value=1n
-probe centre = voltage(n${N / 2}_${N / 2})
-probe edge = current(o0_0)
-sweep vh from 0.65 to 0.85 points ${points}
-`;
+/** The 64 × 64 diffuser grid of bench/workloads.ts with two probes and a sweep of the lateral gate. */
+function sweepText(points: number): string {
+  const c = N / 2;
+  return gridText("bench_grid", N, `probe centre = voltage(n${c}_${c})\nprobe edge = current(o0_0)\nsweep vh from 0.65 to 0.85 points ${points}\n`);
 }
 
-const created = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-row/networks", { name: "Bench grid", text: gridText(POINTS), message: "bench" });
+const created = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-row/networks", { name: "Bench grid", text: sweepText(POINTS), message: "bench" });
 if (created.status !== 201) throw new Error(`creating the network: ${created.status} ${JSON.stringify(created.json)}`);
 
 type Kind = "state" | "series" | "layout" | "point";
