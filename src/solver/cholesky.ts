@@ -10,12 +10,6 @@
  *   meshes, where most of the work sits in a few dense blocks; its input is
  *   the LOWER triangle of C (column j holds rows i ≥ j).
  *
- * - "tree" (a forest in leaf-first order, tree.ts): C's lower triangle has
- *   L's pattern — the diagonal first, then the parent row — so L is C's
- *   pattern with values L(k,k) = √d_k, L(parent,k) = C(parent,k)/L(k,k), and
- *   d_parent −= L(parent,k)²; its input is the LOWER triangle of C in exactly
- *   that pattern. Its factor is in the simple kernel's layout.
- *
  * `matrixTriangle(S)` says which triangle a Symbolic wants. A non-positive
  * pivot is a result (`ok: false` with the permuted column), not a throw.
  */
@@ -75,32 +69,7 @@ export function choleskyWork(S: Symbolic): CholeskyWork {
  */
 export function cholesky(C: Csc, S: Symbolic, into?: Factor, work?: CholeskyWork): FactorResult {
   const w = work ?? choleskyWork(S);
-  if (S.kernel === "tree") return treeCholesky(C, S, into);
   return S.kernel === "simple" ? upLooking(C, S, w, into) : supernodal(C, S, w, into);
-}
-
-/** L = chol(C) for a forest in leaf-first order: one pass, children before parents (see the module comment). */
-function treeCholesky(C: Csc, S: Symbolic, into?: Factor): FactorResult {
-  const n = S.n;
-  const lp = S.lp;
-  const parent = S.parent;
-  const lx = into ? into.lx : new Float64Array(S.lnz);
-  // In place when into.lx is C.x itself.
-  if (lx !== C.x) lx.set(C.x as Float64Array);
-  for (let k = 0; k < n; k++) {
-    const q = lp[k];
-    const d = lx[q];
-    if (!(d > 0) || d === Infinity) return { ok: false, column: k, pivot: d };
-    const ljj = Math.sqrt(d);
-    lx[q] = ljj;
-    const pk = parent[k];
-    if (pk >= 0) {
-      const l = lx[q + 1] / ljj;
-      lx[q + 1] = l;
-      lx[lp[pk]] -= l * l;
-    }
-  }
-  return { ok: true, factor: { n, kernel: "simple", lp, li: C.i, lx, supernodes: null } };
 }
 
 function upLooking(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorResult {

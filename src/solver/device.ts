@@ -21,8 +21,14 @@ export interface DeviceParams {
   /** Weak model: ln(i0·W/L) − κ·dVT/U_T (filled on first use by deviceCurrent: the linear path never needs it). */
   lnScale: Float64Array;
   lnReady: boolean;
-  /** (W/L)·e^{−κ·dVT/U_T}. */
-  size: Float64Array;
+  /**
+   * (W/L)·e^{−κ·dVT/U_T} with mismatch; null without, where it is W/L and
+   * `sizes(P)` makes the array on first use (the linear path reads w and l directly).
+   */
+  size: Float64Array | null;
+  /** The point's widths and lengths (metres). */
+  w: Float64Array;
+  l: Float64Array;
   i0: number;
   /** EKV: ispec·W/L. */
   ekvScale: Float64Array;
@@ -42,17 +48,18 @@ export function deviceParams(net: Network, dvt: Float64Array | null): DevicePara
   const ekv = settings.model === "ekv";
   // ln scale: filled on first use (the linear path never needs it).
   const lnScale = new Float64Array(0);
-  const size = new Float64Array(m);
   const ekvScale = new Float64Array(ekv ? m : 0);
   const vt = new Float64Array(ekv ? m : 0);
   const off = dvt ?? new Float64Array(ekv ? m : 0);
   const { w, l } = devices;
+  let size: Float64Array | null = null;
   if (dvt) {
+    size = new Float64Array(m);
     for (let d = 0; d < m; d++) {
       const e = dvt[d] === 0 ? 1 : Math.exp((-kappa * dvt[d]) / ut);
       size[d] = (w[d] / l[d]) * e;
     }
-  } else for (let d = 0; d < m; d++) size[d] = w[d] / l[d];
+  }
   if (ekv) {
     const ispec = settings.ispec as number;
     const vt0 = settings.vt0 as number;
@@ -61,13 +68,25 @@ export function deviceParams(net: Network, dvt: Float64Array | null): DevicePara
       vt[d] = vt0 + off[d];
     }
   }
-  return { lnScale, lnReady: false, size, i0, ekvScale, vt, dvt: off, kappa, ut, ekv };
+  return { lnScale, lnReady: false, size, w, l, i0, ekvScale, vt, dvt: off, kappa, ut, ekv };
+}
+
+/** (W/L)·e^{−κ·dVT/U_T} per device (W/L without mismatch, made on first use). */
+export function sizes(P: DeviceParams): Float64Array {
+  if (P.size === null) {
+    const { w, l } = P;
+    const size = new Float64Array(w.length);
+    for (let d = 0; d < w.length; d++) size[d] = w[d] / l[d];
+    P.size = size;
+  }
+  return P.size;
 }
 
 function fillLn(P: DeviceParams): void {
   const lnI0 = Math.log(P.i0);
-  if (P.lnScale.length !== P.size.length) P.lnScale = new Float64Array(P.size.length);
-  for (let d = 0; d < P.size.length; d++) P.lnScale[d] = lnI0 + Math.log(P.size[d]);
+  const size = sizes(P);
+  if (P.lnScale.length !== size.length) P.lnScale = new Float64Array(size.length);
+  for (let d = 0; d < size.length; d++) P.lnScale[d] = lnI0 + Math.log(size[d]);
   P.lnReady = true;
 }
 

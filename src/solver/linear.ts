@@ -23,7 +23,21 @@
  * kappa or mismatch change; `solveLinear` (injects, triangular solves — or
  * superposition of cached responses when only inject values changed — and
  * back to voltages) for every point; `pseudoCurrents` gives the evaluation
- * the per-node exponentials of the reported voltages.
+ * the per-node exponentials of the reported voltages; `releaseLinear` gives
+ * the plan's work arrays back to the thread's pool (pool.ts) when the run ends.
+ *
+ * Two structures:
+ * - a forest (chains, trees: no cycle, no parallel devices): leaves first,
+ *   no fill, the factor is two numbers per row (tree.ts) and nothing else is
+ *   analysed;
+ * - anything else: adjacency graph, fill-reducing ordering, symbolic
+ *   analysis and a sparse Cholesky factor (symbolic.ts, cholesky.ts).
+ * Rows are kept in elimination order throughout: `prow` maps a node straight
+ * to its permuted row, and the planning pass writes one packed table of
+ * three integers per device (source end, drain end, gate key), so the
+ * per-point loops read one device array instead of five (each typed array a
+ * loop touches costs a few loads and checks per iteration in V8's optimised
+ * code, measured at about 1 ns: bench/README numbers).
  */
 
 import { type Network, NFET } from "../lang/network";
@@ -31,10 +45,11 @@ import { CLASS_N, type Classification } from "./classify";
 import { cholesky, type CholeskyWork, choleskyWork, type Factor, matrixTriangle } from "./cholesky";
 import type { DeviceParams } from "./device";
 import { amd, natural, nestedDissection, type OrderingName } from "./order";
-import { cumsum, dedupeAdjacency, type Csc, multiplySymmetric } from "./sparse";
+import { pool } from "./pool";
+import { cumsum, dedupeAdjacency, type Csc } from "./sparse";
 import { analyse, type Kernel, naturalHasNoFill, type Symbolic } from "./symbolic";
 import { lsolve, ltsolve } from "./triangular";
-import { forestSymbolic, leafFirstOrder } from "./tree";
+import { leafFirstOrder, treeFactor, treeSolve } from "./tree";
 
 /**
  * NFET as a module-local constant: a loader that compiles ES modules to
@@ -49,7 +64,7 @@ export const DEFAULT_ORDERING: OrderingName = "nd";
 export type OrderingChoice = OrderingName | "auto";
 
 export interface LinearOptions {
-  /** "auto": the natural order when it has no fill at all (chains, trees), else DEFAULT_ORDERING. */
+  /** "auto": a forest's leaf-first order, or the natural order when it has no fill at all, else DEFAULT_ORDERING. */
   ordering?: OrderingChoice;
   kernel?: Kernel | "auto";
   /**
@@ -63,72 +78,79 @@ export interface LinearOptions {
   refine?: number;
 }
 
+/** A forest's factor in elimination order (tree.ts): parent row, 1/D(k) and L(parent, k). */
+interface TreeParts {
+  parent: Int32Array;
+  diag: Float64Array;
+  off: Float64Array;
+}
+
+/** The general path's structure: symbolic analysis, the permuted triangle's pattern and the device → entry map. */
+interface GeneralParts {
+  symbolic: Symbolic;
+  /** The permuted triangle the kernel reads (values refilled by factorLinear). */
+  C: Csc;
+  /** Position in C.x of the diagonal of row k. */
+  diagPos: Int32Array;
+  /** Per device between two internal rows: position in C.x of its off-diagonal entry (-1 otherwise). */
+  posOff: Int32Array;
+  work: CholeskyWork;
+  factor: Factor | null;
+}
+
 export interface LinearPlan {
-  /** Internal nodes, in node-index order: row r is node nodeOfRow[r]. */
+  /** Internal nodes; rows are numbered in elimination order. */
   rows: number;
-  nodeOfRow: Int32Array;
-  /** Row of each node; for a rail, −1 − its index in railNodes (so < 0). */
-  rowOf: Int32Array;
+  /** Per node: its row (≥ 0) for an internal node, −1 − its index in railNodes for a rail. */
+  prow: Int32Array;
+  /** Node of row k, and 1 when it is an n-channel node (0: p-channel). */
+  nodeAt: Int32Array;
+  isNAt: Uint8Array;
   /** The rail nodes. */
   railNodes: Int32Array;
-  /** 1 when row r is an n-channel node, 0 for p-channel. */
-  rowIsN: Uint8Array;
-  /** The ordering; "tree" when the graph is a forest, eliminated leaves first (tree.ts). */
+  /** Per rail: touched by an n-channel (1) / p-channel (2) source or drain. */
+  railTouch: Uint8Array;
+  /**
+   * Three integers per device: the source end, the drain end and the gate
+   * key. An end is the row of an internal node, or −1 − (2q + p) for rail q,
+   * p = 0 for an nfet and 1 for a pfet (so that −1 − end indexes uRail). A
+   * channel from a node to itself has equal ends (it carries no current).
+   */
+  pack: Int32Array;
+  /** "tree" when the graph is a forest, eliminated leaves first (tree.ts). */
   ordering: OrderingName | "tree";
-  symbolic: Symbolic;
-  /**
-   * The permuted triangle of the matrix the kernel reads; values refilled by
-   * factorLinear. For a forest without refinement the tree kernel then
-   * overwrites them with L (C.x is the factor's value array: one array less).
-   */
-  C: Csc;
-  /** Position in C.x of the diagonal of each row. */
-  rowDiag: Int32Array;
-  /**
-   * Per device between two internal rows: position in C.x of its off-diagonal
-   * entry (-1 otherwise). null for a forest, where that entry follows the
-   * child's diagonal: min(rowDiag[a], rowDiag[b]) + 1.
-   */
-  posOff: Int32Array | null;
-  work: CholeskyWork;
-  /** State of the last successful factorisation. */
-  factor: Factor | null;
-  /** g·gs_c: the device's pseudo-conductance in amperes (I = c·(û_s − û_d)), for the evaluation. */
+  tree: TreeParts | null;
+  general: GeneralParts | null;
+  /** A successful factorisation is in tree or general.factor. */
+  factored: boolean;
+  /** Per device: ĝ, the scaled pseudo-conductance (I = gs_c·ĝ·(û_s − û_d)). */
   c: Float64Array;
   /** Superposition state for points that change only inject values. */
   sup: Superposition;
-  /** Per-rail caches of the gate factor exp(gate exponent − Λ_c) within one factorisation (gates are rails in the linear class). */
-  gateStamp: Int32Array;
-  gateValue: Float64Array;
-  gateWell: Int32Array;
-  /**
-   * The distinct gate exponents (every one at least once): device type, gate
-   * node and bulk/well node (-1: substrate) of each; the factorisation takes
-   * the largest exponent per class from these instead of from every device.
-   */
+  /** The distinct gate keys: device type, gate node and bulk/well node (-1: substrate) of each. */
   keyType: Uint8Array;
   keyGate: Int32Array;
   keyBulk: Int32Array;
-  /** Scratch: û of rail q for n-channel (2q) and p-channel (2q + 1) terminals. */
+  /** Per key: exp(e − Λ_c) of the last factorisation, e the key's gate exponent. */
+  keyFactor: Float64Array;
+  /** Per rail q: û of rail q for n-channel (2q) and p-channel (2q + 1) terminals. */
   uRail: Float64Array;
-  stamp: number;
-  /** Node touched by an n-channel (1) / p-channel (2) source or drain. */
-  nodeTouch: Uint8Array;
-  /** Scratch for pseudoCurrents (overwritten by the next point; allocated on first use). */
+  /** Scratch for pseudoCurrents (overwritten by the next point; taken on first use). */
   en: Float64Array;
   ep: Float64Array;
-  /** Right-hand side from the rails at the last factorisation (scaled, permuted). */
+  /** Right-hand side from the rails at the last factorisation (scaled, by row). */
   rhsRails: Float64Array;
   /** Scaling of the last factorisation: reference voltages and ln gs per class (index 0 = p, 1 = n). */
   vref: Float64Array;
   lnScale: Float64Array;
-  /** Scratch vectors of length rows (b and r only with refinement, allocated on first use). */
-  b: Float64Array;
+  /** Pseudo-voltages û of the last solve, by row. */
   y: Float64Array;
+  /** Refinement scratch (taken on first use). */
+  b: Float64Array;
   r: Float64Array;
   /** Steps of iterative refinement per solve. */
   refine: number;
-  /** y holds the pseudo-voltages û (permuted) of the last successful solveLinear since the last factorLinear. */
+  /** y holds the pseudo-voltages û of the last successful solveLinear since the last factorLinear. */
   solved: boolean;
   analyseMs: number;
 }
@@ -143,7 +165,7 @@ const MAX_SUPERPOSED = 16;
  * after the first solve of a factorisation, a point whose injects differ from
  * the reference values only in `changed` is û = rest + Σ_j v_j·z_j, with
  * `rest` the solution for the rails and the unchanged injects and z_j the
- * response to 1 A in inject j (both in permuted order). A sink on an n-channel
+ * response to 1 A in inject j (both by row). A sink on an n-channel
  * node adds with one sign everywhere, so no cancellation is introduced.
  */
 interface Superposition {
@@ -153,9 +175,12 @@ interface Superposition {
   isChanged: Uint8Array;
   changed: number[];
   z: Float64Array[];
-  /** Allocated on first use (length 0 before). */
+  /** Taken on first use (length 0 before). */
   rest: Float64Array;
 }
+
+const EMPTY_F64 = new Float64Array(0);
+const EMPTY_I32 = new Int32Array(0);
 
 /** Structure of the linear system for `net` (which must be in the linear class, without structural problems). */
 export function planLinear(net: Network, cls: Classification, opts: LinearOptions = {}): LinearPlan {
@@ -163,182 +188,256 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   const { nodes, devices } = net;
   const nn = nodes.names.length;
   const m = devices.count;
-  const rowOf = new Int32Array(nn);
+  const rv = nodes.railValue;
+  // prow: first the natural row of an internal node (node order), later its row in elimination order.
+  const prow = pool.takeI32(nn);
   let rows = 0;
   let rails = 0;
-  for (let k = 0; k < nn; k++) rowOf[k] = Number.isFinite(nodes.railValue[k]) ? -1 - rails++ : rows++;
-  const nodeOfRow = new Int32Array(rows);
-  const rowIsN = new Uint8Array(rows);
-  for (let k = 0; k < nn; k++) {
-    const r = rowOf[k];
-    if (r < 0) continue;
-    nodeOfRow[r] = k;
-    rowIsN[r] = cls.nodeClass[k] & CLASS_N ? 1 : 0;
-  }
-  const { source, drain, type, gate, bulk } = devices;
-  // One pass: channel types per node, degrees and neighbour XORs of the graph
-  // of internal rows (for the forest test).
-  const nodeTouch = new Uint8Array(nn);
-  const deg = new Int32Array(rows);
-  const nbrXor = new Int32Array(rows);
-  // Gate keys, recorded when they differ from the last one of their gate rail and type (lastKey: bulk + 2, 0 = none).
-  const lastKey = new Int32Array(2 * rails);
-  const kType: number[] = [];
-  const kGate: number[] = [];
-  const kBulk: number[] = [];
-  for (let d = 0; d < m; d++) {
-    const s = source[d];
-    const t = drain[d];
-    const bit = type[d] === N_TYPE ? 1 : 2;
-    const gq = -1 - rowOf[gate[d]];
-    const slot = 2 * gq + bit - 1;
-    if (gq < 0 || lastKey[slot] !== bulk[d] + 2) {
-      if (gq >= 0) lastKey[slot] = bulk[d] + 2;
-      kType.push(type[d]);
-      kGate.push(gate[d]);
-      kBulk.push(bulk[d]);
-    }
-    nodeTouch[s] |= bit;
-    nodeTouch[t] |= bit;
-    const a = rowOf[s];
-    const b = rowOf[t];
-    if (a >= 0 && b >= 0 && a !== b) {
-      deg[a]++;
-      deg[b]++;
-      nbrXor[a] ^= b;
-      nbrXor[b] ^= a;
-    }
-  }
+  for (let k = 0; k < nn; k++) prow[k] = Number.isFinite(rv[k]) ? -1 - rails++ : rows++;
+  const railTouch = new Uint8Array(rails);
   const choice = opts.ordering ?? "auto";
   const forestTried = choice === "auto" && (opts.kernel ?? "auto") === "auto";
-  const forest = forestTried ? leafFirstOrder(rows, deg, nbrXor) : null;
-  const rowDiag = new Int32Array(rows);
-  let posOff: Int32Array | null = null;
+  // The planning pass: packed ends and gate keys, the channel types on each
+  // rail, and whether the natural order already eliminates leaves first
+  // (then `up` is the forest).
+  const pack = pool.takeI32(3 * m);
+  const up = pool.takeI32(rows);
+  const keys = packDevices(net, prow, railTouch, pack, forestTried ? up : null);
+  let tree: TreeParts | null = null;
+  let general: GeneralParts | null = null;
   let ordering: OrderingName | "tree";
-  let symbolic: Symbolic;
-  let C: Csc;
-  if (forest) {
-    // A forest: leaves first, no fill, L has C's pattern (tree.ts); no general analysis.
+  let pinv: Int32Array | null = null;
+  if (keys.naturalForest) {
     ordering = "tree";
-    const fs = forestSymbolic(forest.perm, forest.pinv, forest.parent);
-    symbolic = fs.symbolic;
-    const lp = symbolic.lp;
-    const pinv = symbolic.pinv;
-    C = { m: rows, n: rows, p: lp, i: fs.rows, x: new Float64Array(symbolic.lnz) };
-    for (let r = 0; r < rows; r++) rowDiag[r] = lp[pinv[r]];
+    tree = { parent: up, diag: pool.takeF64(rows), off: pool.takeF64(rows) };
   } else {
+    const deg = pool.zerosI32(rows);
+    const nbrXor = pool.zerosI32(rows);
+    degrees(pack, m, deg, forestTried ? nbrXor : null);
+    let forest: { perm: Int32Array; pinv: Int32Array; parent: Int32Array } | null = null;
     if (forestTried) {
-      // leafFirstOrder consumed deg: count again.
-      deg.fill(0);
-      for (let d = 0; d < m; d++) {
-        const a = rowOf[source[d]];
-        const b = rowOf[drain[d]];
-        if (a >= 0 && b >= 0 && a !== b) {
-          deg[a]++;
-          deg[b]++;
-        }
-      }
+      const perm = pool.takeI32(rows);
+      forest = leafFirstOrder(rows, deg, nbrXor, perm, up);
+      pool.give(perm);
     }
-    ({ ordering, symbolic, C, posOff } = generalEntries(net, rows, rowOf, deg, rowDiag, opts));
+    if (forest) {
+      // A forest in another order: leaves first by peeling, no fill.
+      ordering = "tree";
+      pinv = forest.pinv;
+      tree = { parent: up, diag: pool.takeF64(rows), off: pool.takeF64(rows) };
+      pool.give(nbrXor);
+    } else {
+      pool.give(up, nbrXor);
+      // leafFirstOrder consumed deg: count again.
+      if (forestTried) {
+        deg.fill(0);
+        degrees(pack, m, deg, null);
+      }
+      const g = orderAndAnalyse(pack, m, rows, deg, opts);
+      pool.give(deg);
+      ordering = g.ordering;
+      pinv = g.symbolic.pinv;
+      general = { symbolic: g.symbolic, C: null as unknown as Csc, diagPos: EMPTY_I32, posOff: EMPTY_I32, work: choleskyWork(g.symbolic), factor: null };
+    }
   }
+  // Rows in elimination order from here on.
+  const nodeAt = pool.takeI32(rows);
+  const isNAt = pool.takeU8(rows);
   const railNodes = new Int32Array(nn - rows);
-  for (let k = 0, t = 0; k < nn; k++) if (rowOf[k] < 0) railNodes[t++] = k;
+  const nodeClass = cls.nodeClass;
+  for (let k = 0, q = 0; k < nn; k++) {
+    const r = prow[k];
+    if (r < 0) {
+      railNodes[q++] = k;
+      continue;
+    }
+    const pos = pinv === null ? r : pinv[r];
+    prow[k] = pos;
+    nodeAt[pos] = k;
+    isNAt[pos] = nodeClass[k] & CLASS_N ? 1 : 0;
+  }
+  if (pinv !== null) {
+    for (let q = 0; q < 3 * m; q += 3) {
+      if (pack[q] >= 0) pack[q] = pinv[pack[q]];
+      if (pack[q + 1] >= 0) pack[q + 1] = pinv[pack[q + 1]];
+    }
+    if (tree) pool.give(pinv);
+  }
+  if (general) triangleEntries(pack, m, rows, general);
   return {
     rows,
-    nodeOfRow,
-    rowOf,
+    prow,
+    nodeAt,
+    isNAt,
     railNodes,
-    rowIsN,
+    railTouch,
+    pack,
     ordering,
-    symbolic,
-    C,
-    rowDiag,
-    posOff,
-    work: choleskyWork(symbolic),
-    factor: null,
-    c: new Float64Array(m),
-    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: new Float64Array(0) },
-    gateStamp: new Int32Array(rails),
-    gateValue: new Float64Array(rails),
-    gateWell: new Int32Array(rails),
-    keyType: Uint8Array.from(kType),
-    keyGate: Int32Array.from(kGate),
-    keyBulk: Int32Array.from(kBulk),
+    tree,
+    general,
+    factored: false,
+    c: pool.takeF64(m),
+    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: EMPTY_F64 },
+    keyType: Uint8Array.from(keys.type),
+    keyGate: Int32Array.from(keys.gate),
+    keyBulk: Int32Array.from(keys.bulk),
+    keyFactor: new Float64Array(keys.type.length),
     uRail: new Float64Array(2 * rails),
-    stamp: 0,
-    nodeTouch,
-    en: new Float64Array(0),
-    ep: new Float64Array(0),
-    rhsRails: new Float64Array(rows),
+    en: EMPTY_F64,
+    ep: EMPTY_F64,
+    rhsRails: pool.takeF64(rows),
     vref: new Float64Array(2),
     lnScale: new Float64Array(2),
-    b: new Float64Array(0),
-    y: new Float64Array(rows),
-    r: new Float64Array(opts.refine ? rows : 0),
+    y: pool.takeF64(rows),
+    b: EMPTY_F64,
+    r: EMPTY_F64,
     refine: opts.refine ?? 0,
     solved: false,
     analyseMs: performance.now() - t0,
   };
 }
 
+/** Gives the plan's work arrays back to the thread's pool; the plan must not be used afterwards. */
+export function releaseLinear(plan: LinearPlan): void {
+  pool.give(plan.prow, plan.nodeAt, plan.isNAt, plan.pack, plan.c, plan.en, plan.ep, plan.rhsRails, plan.y, plan.b, plan.r, plan.sup.rest, ...plan.sup.z);
+  if (plan.tree) pool.give(plan.tree.parent, plan.tree.diag, plan.tree.off);
+  plan.factored = false;
+  plan.sup.z = [];
+}
+
 /**
- * The general structure: adjacency graph of the internal rows (deg: their
- * degrees, consumed), ordering, symbolic analysis, the permuted triangle's
- * pattern, each row's diagonal position (rowDiag, filled) and each device's off-diagonal position.
+ * The planning pass over the devices: each device's packed ends and gate
+ * key (keys are numbered in order of appearance; a device's key is looked up
+ * only when it differs from the previous device's, which is rare), the
+ * channel types touching each rail (railTouch: 1 n-channel, 2 p-channel),
+ * and — when `up` is given — whether every internal row has at most one
+ * channel neighbour with a higher row number. That makes the graph a forest
+ * (parallel devices allowed: they only sum into one entry) whose natural
+ * order eliminates leaves first with no fill, up[r] being that neighbour
+ * (the parent), or −1.
  */
-function generalEntries(
+function packDevices(
   net: Network,
-  rows: number,
-  rowOf: Int32Array,
-  deg: Int32Array,
-  rowDiag: Int32Array,
-  opts: LinearOptions,
-): { ordering: OrderingName; symbolic: Symbolic; C: Csc; posOff: Int32Array } {
-  const { source, drain } = net.devices;
+  prow: Int32Array,
+  railTouch: Uint8Array,
+  pack: Int32Array,
+  up: Int32Array | null,
+): { type: number[]; gate: number[]; bulk: number[]; naturalForest: boolean } {
+  const { source, drain, type, gate, bulk } = net.devices;
   const m = net.devices.count;
+  const nodeCount = net.nodes.names.length + 1;
+  const keyOf = new Map<number, number>();
+  const kType: number[] = [];
+  const kGate: number[] = [];
+  const kBulk: number[] = [];
+  let forest = up !== null;
+  if (up) up.fill(-1);
+  let lastType = -1;
+  let lastGate = -1;
+  let lastBulk = -2;
+  let key = -1;
+  let p = 0;
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const ty = type[d];
+    const gn = gate[d];
+    const bk = bulk[d];
+    if (gn !== lastGate || ty !== lastType || bk !== lastBulk) {
+      lastGate = gn;
+      lastType = ty;
+      lastBulk = bk;
+      p = ty === N_TYPE ? 0 : 1;
+      const id = (gn * nodeCount + bk + 1) * 2 + p;
+      const known = keyOf.get(id);
+      if (known === undefined) {
+        key = kType.length;
+        keyOf.set(id, key);
+        kType.push(ty);
+        kGate.push(gn);
+        kBulk.push(bk);
+      } else key = known;
+    }
+    const s = source[d];
+    const t = drain[d];
+    let a = prow[s];
+    let b = prow[t];
+    if (a < 0) {
+      railTouch[-1 - a] |= p + 1;
+      a = -1 - (2 * (-1 - a) + p);
+    }
+    if (b < 0) {
+      railTouch[-1 - b] |= p + 1;
+      b = -1 - (2 * (-1 - b) + p);
+    } else if (a >= 0 && a !== b && forest) {
+      const lo = a < b ? a : b;
+      const hi = a < b ? b : a;
+      const u = (up as Int32Array)[lo];
+      if (u < 0) (up as Int32Array)[lo] = hi;
+      else if (u !== hi) forest = false;
+    }
+    pack[q] = a;
+    pack[q + 1] = b;
+    pack[q + 2] = key;
+  }
+  return { type: kType, gate: kGate, bulk: kBulk, naturalForest: forest };
+}
+
+/** Degrees of the internal rows (channel neighbours, with repeats) and, when given, the XOR of each row's neighbours. */
+function degrees(pack: Int32Array, m: number, deg: Int32Array, nbrXor: Int32Array | null): void {
+  for (let q = 0; q < 3 * m; q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    if (a >= 0 && b >= 0 && a !== b) {
+      deg[a]++;
+      deg[b]++;
+      if (nbrXor) {
+        nbrXor[a] ^= b;
+        nbrXor[b] ^= a;
+      }
+    }
+  }
+}
+
+/**
+ * The general structure: adjacency graph of the internal rows (natural rows
+ * in pack; deg: their degrees, consumed), ordering and symbolic analysis.
+ */
+function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Array, opts: LinearOptions): { ordering: OrderingName; symbolic: Symbolic } {
   // Adjacency graph of the internal rows (both directions, duplicates merged).
   const ap = new Int32Array(rows + 1);
   cumsum(ap, deg, rows);
   const idx = new Int32Array(ap[rows]);
-  for (let d = 0; d < m; d++) {
-    const a = rowOf[source[d]];
-    const b = rowOf[drain[d]];
+  for (let q = 0; q < 3 * m; q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
     if (a >= 0 && b >= 0 && a !== b) {
       idx[deg[a]++] = b;
       idx[deg[b]++] = a;
     }
   }
   const adj = dedupeAdjacency(rows, ap, idx);
-  // Ordering and symbolic analysis.
   const choice = opts.ordering ?? "auto";
-  let ordering: OrderingName;
-  let symbolic: Symbolic;
-  if (choice === "auto") {
-    // The natural order when it has no fill at all (an O(nnz) test, exact), else DEFAULT_ORDERING.
-    if (naturalHasNoFill(rows, adj.p, adj.i)) {
-      ordering = "natural";
-      symbolic = analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel === "supernodal" ? "supernodal" : "simple" });
-    } else {
-      ordering = DEFAULT_ORDERING;
-      symbolic = analyse(rows, adj.p, adj.i, orderBy(ordering, rows, adj.p, adj.i), { kernel: opts.kernel });
-    }
-  } else {
-    ordering = choice;
-    symbolic = analyse(rows, adj.p, adj.i, orderBy(choice, rows, adj.p, adj.i), { kernel: opts.kernel });
+  if (choice === "auto" && naturalHasNoFill(rows, adj.p, adj.i)) {
+    // The natural order when it has no fill at all (an O(nnz) test, exact).
+    return { ordering: "natural", symbolic: analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel === "supernodal" ? "supernodal" : "simple" }) };
   }
-  // Permuted triangle: a diagonal entry per column and one off-diagonal entry
-  // per device between two internal rows (parallel devices give repeated
-  // entries, which every kernel sums), in the column the triangle puts it.
-  const lower = matrixTriangle(symbolic) === "lower";
-  const pinv = symbolic.pinv;
+  const ordering = choice === "auto" ? DEFAULT_ORDERING : choice;
+  return { ordering, symbolic: analyse(rows, adj.p, adj.i, orderBy(ordering, rows, adj.p, adj.i), { kernel: opts.kernel }) };
+}
+
+/**
+ * The permuted triangle's pattern: a diagonal entry per column and one
+ * off-diagonal entry per device between two internal rows (parallel devices
+ * give repeated entries, which every kernel sums), in the column the
+ * kernel's triangle puts it; each device's entry position.
+ */
+function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralParts): void {
+  const lower = matrixTriangle(g.symbolic) === "lower";
   const colCount = new Int32Array(rows).fill(1);
-  for (let d = 0; d < m; d++) {
-    const a = rowOf[source[d]];
-    const b = rowOf[drain[d]];
+  for (let q = 0; q < 3 * m; q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
     if (a < 0 || b < 0 || a === b) continue;
-    const pa = pinv[a];
-    const pb = pinv[b];
-    colCount[lower ? (pa < pb ? pa : pb) : pa > pb ? pa : pb]++;
+    colCount[lower ? (a < b ? a : b) : a > b ? a : b]++;
   }
   const cp = new Int32Array(rows + 1);
   cumsum(cp, colCount, rows);
@@ -349,22 +448,19 @@ function generalEntries(
     diagPos[c] = colCount[c]++;
     ci[diagPos[c]] = c;
   }
-  for (let r = 0; r < rows; r++) rowDiag[r] = diagPos[pinv[r]];
   const posOff = new Int32Array(m).fill(-1);
-  for (let d = 0; d < m; d++) {
-    // A channel from a node to itself carries no current: no entry.
-    if (source[d] === drain[d]) continue;
-    const a = rowOf[source[d]];
-    const b = rowOf[drain[d]];
-    if (a < 0 || b < 0) continue;
-    const pa = pinv[a];
-    const pb = pinv[b];
-    const col = lower ? (pa < pb ? pa : pb) : pa > pb ? pa : pb;
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    if (a < 0 || b < 0 || a === b) continue;
+    const col = lower ? (a < b ? a : b) : a > b ? a : b;
     const slot = colCount[col]++;
-    ci[slot] = col === pa ? pb : pa;
+    ci[slot] = col === a ? b : a;
     posOff[d] = slot;
   }
-  return { ordering, symbolic, C: { m: rows, n: rows, p: cp, i: ci, x: cx }, posOff };
+  g.C = { m: rows, n: rows, p: cp, i: ci, x: cx };
+  g.diagPos = diagPos;
+  g.posOff = posOff;
 }
 
 function orderBy(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array): Int32Array {
@@ -378,130 +474,152 @@ function orderBy(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array):
  * network; reported rather than thrown).
  */
 export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): { ok: true } | LinearFailure {
-  const { devices, nodes } = net;
-  const V = nodes.railValue;
-  const m = devices.count;
-  const { type, gate, source, drain, bulk } = devices;
-  const { ut, kappa } = P;
   plan.solved = false;
+  plan.factored = false;
+  scaleAndGates(plan, net, P);
+  conductances(plan, P);
+  const rhs = plan.rhsRails;
+  rhs.fill(0);
+  let failed = -1;
+  if (plan.tree) {
+    const { parent, diag, off } = plan.tree;
+    diag.fill(0);
+    off.fill(0);
+    assembleTree(plan.pack, plan.c, plan.uRail, diag, off, rhs);
+    failed = treeFactor(parent, diag, off);
+  } else {
+    const g = plan.general as GeneralParts;
+    const cx = g.C.x as Float64Array;
+    cx.fill(0);
+    assembleGeneral(plan.pack, plan.c, plan.uRail, g.diagPos, g.posOff, cx, rhs);
+    const res = cholesky(g.C, g.symbolic, g.factor ?? undefined, g.work);
+    if (res.ok) g.factor = res.factor;
+    else {
+      g.factor = null;
+      failed = res.column;
+    }
+  }
+  if (failed >= 0) {
+    const node = plan.nodeAt[failed];
+    return { ok: false, node, message: `the linear system is singular at node ${net.nodes.names[node]}; it has no conductance to a rail` };
+  }
+  plan.factored = true;
+  plan.sup.fresh = true;
+  return { ok: true };
+}
+
+/**
+ * Scaling of this factorisation (reference voltages, largest gate exponent
+ * Λ per class, ln gs), the rails' pseudo-voltages û and each gate key's factor exp(e − Λ_c).
+ */
+function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
+  const V = net.nodes.railValue;
+  const { ut, kappa } = P;
   // Reference voltages: lowest rail under an n-channel terminal, highest under a p-channel one.
   let vrefN = Infinity;
   let vrefP = -Infinity;
   let lamN = -Infinity;
   let lamP = -Infinity;
-  const rowOf = plan.rowOf;
-  const { keyType, keyGate, keyBulk, railNodes, nodeTouch } = plan;
+  const { keyType, keyGate, keyBulk, keyFactor, railNodes, railTouch, uRail } = plan;
+  // Gate exponents: nfet (κ(Vg − Vb) + Vb)/U_T, pfet (κ(Vw − Vg) − Vw)/U_T.
   for (let k = 0; k < keyType.length; k++) {
     const b = keyBulk[k];
     const vb = b >= 0 ? V[b] : 0;
     const vg = V[keyGate[k]];
     if (keyType[k] === N_TYPE) {
       const e = (kappa * (vg - vb) + vb) / ut;
+      keyFactor[k] = e;
       if (e > lamN) lamN = e;
     } else {
       const e = (kappa * (vb - vg) - vb) / ut;
+      keyFactor[k] = e;
       if (e > lamP) lamP = e;
     }
   }
   for (let q = 0; q < railNodes.length; q++) {
-    const r = railNodes[q];
-    const v = V[r];
-    if (nodeTouch[r] & 1 && v < vrefN) vrefN = v;
-    if (nodeTouch[r] & 2 && v > vrefP) vrefP = v;
+    const v = V[railNodes[q]];
+    if (railTouch[q] & 1 && v < vrefN) vrefN = v;
+    if (railTouch[q] & 2 && v > vrefP) vrefP = v;
   }
   if (!Number.isFinite(vrefN)) vrefN = 0;
   if (!Number.isFinite(vrefP)) vrefP = 0;
   if (!Number.isFinite(lamN)) lamN = 0;
   if (!Number.isFinite(lamP)) lamP = 0;
+  for (let k = 0; k < keyType.length; k++) keyFactor[k] = Math.exp(keyFactor[k] - (keyType[k] === N_TYPE ? lamN : lamP));
   const lnI0 = Math.log(P.i0);
   plan.vref[0] = vrefP;
   plan.vref[1] = vrefN;
   // ln gs_c = ln i0 + Λ_c + ln u(Vref_c)
   plan.lnScale[0] = lnI0 + lamP + vrefP / ut;
   plan.lnScale[1] = lnI0 + lamN - vrefN / ut;
-  const cx = plan.C.x as Float64Array;
-  cx.fill(0);
-  const rhs = plan.rhsRails;
-  rhs.fill(0);
   // û(rail q) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity.
-  const uRail = plan.uRail;
   for (let q = 0; q < railNodes.length; q++) {
     const v = V[railNodes[q]];
     uRail[2 * q] = Math.exp(-(v - vrefN) / ut);
     uRail[2 * q + 1] = Math.exp((v - vrefP) / ut);
   }
-  const { rowDiag, posOff } = plan;
-  const pinv = plan.symbolic.pinv;
-  const size = P.size;
-  const cOut = plan.c;
-  const gsN = Math.exp(plan.lnScale[1]);
-  const gsP = Math.exp(plan.lnScale[0]);
-  // Gate factor exp(e − Λ_c), cached per gate rail (and well, for a pfet) within this factorisation.
-  const stamp = ++plan.stamp;
-  const { gateStamp, gateValue, gateWell } = plan;
-  for (let d = 0; d < m; d++) {
-    const isN = type[d] === N_TYPE;
-    const gn = gate[d];
-    const gq = -1 - rowOf[gn];
-    const b = bulk[d];
-    let f: number;
-    if ((isN && b >= 0) || gq < 0) {
-      const vb = b >= 0 ? V[b] : 0;
-      f = Math.exp(isN ? (kappa * (V[gn] - vb) + vb) / ut - lamN : (kappa * (vb - V[gn]) - vb) / ut - lamP);
-    } else if (gateStamp[gq] === stamp && gateWell[gq] === (isN ? -1 : b)) f = gateValue[gq];
-    else {
-      const vb = b >= 0 ? V[b] : 0;
-      f = Math.exp(isN ? (kappa * V[gn]) / ut - lamN : (kappa * (vb - V[gn]) - vb) / ut - lamP);
-      if (gateStamp[gq] !== stamp) {
-        gateStamp[gq] = stamp;
-        gateWell[gq] = isN ? -1 : b;
-        gateValue[gq] = f;
-      }
-    }
-    // ĝ = (W/L)·e^{−κ·dVT/U_T}·exp(e − Λ_c)
-    const g = size[d] * f;
-    cOut[d] = g * (isN ? gsN : gsP);
-    const s = source[d];
-    const t = drain[d];
-    // A channel from a node to itself carries no current: no entry.
-    if (s === t) continue;
-    const ra = rowOf[s];
-    const rb = rowOf[t];
-    if (ra >= 0 && rb >= 0) {
-      const da = rowDiag[ra];
-      const db = rowDiag[rb];
-      cx[da] += g;
-      cx[db] += g;
-      cx[posOff ? posOff[d] : (da < db ? da : db) + 1] -= g;
-    } else if (ra >= 0) {
-      cx[rowDiag[ra]] += g;
-      rhs[pinv[ra]] += g * uRail[2 * (-1 - rb) + (isN ? 0 : 1)];
-    } else if (rb >= 0) {
-      cx[rowDiag[rb]] += g;
-      rhs[pinv[rb]] += g * uRail[2 * (-1 - ra) + (isN ? 0 : 1)];
-    }
-  }
-  const S = plan.symbolic;
-  // A forest without refinement factors in place (C is not read again before the next refill).
-  const inPlace = S.kernel === "tree" && plan.refine === 0;
-  const into = plan.factor ?? (inPlace ? { n: S.n, kernel: "simple" as const, lp: S.lp, li: plan.C.i, lx: cx, supernodes: null } : undefined);
-  const res = cholesky(plan.C, S, into, plan.work);
-  if (!res.ok) {
-    plan.factor = null;
-    const node = plan.nodeOfRow[plan.symbolic.perm[res.column]];
-    return { ok: false, node, message: `the linear system is singular at node ${net.nodes.names[node]} (pivot ${res.pivot.toPrecision(3)}); it has no conductance to a rail` };
-  }
-  plan.factor = res.factor;
-  plan.sup.fresh = true;
-  return { ok: true };
 }
 
-/** out = P·b (permuted, scaled): the rails' part (when withRails) + the injects with value(j). */
+/** ĝ per device into plan.c: (W/L)·e^{−κ·dVT/U_T}·exp(e − Λ_c), the last factor being its gate key's. */
+function conductances(plan: LinearPlan, P: DeviceParams): void {
+  const { pack, c, keyFactor } = plan;
+  const m = c.length;
+  const { size, w, l } = P;
+  if (size !== null) for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = size[d] * keyFactor[pack[q]];
+  else for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = (w[d] / l[d]) * keyFactor[pack[q]];
+}
+
+/**
+ * A forest's system: a device between two rows into the diagonal of both
+ * and into off at the lower row (the child: its entry of L); a device from a
+ * row to a rail into the row's diagonal and the rails' right-hand side.
+ */
+function assembleTree(pack: Int32Array, c: Float64Array, uRail: Float64Array, diag: Float64Array, off: Float64Array, rhs: Float64Array): void {
+  const m = c.length;
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    if (a === b) continue;
+    const g = c[d];
+    if (a >= 0) {
+      diag[a] += g;
+      if (b >= 0) {
+        diag[b] += g;
+        off[a < b ? a : b] -= g;
+      } else rhs[a] += g * uRail[-1 - b];
+    } else if (b >= 0) {
+      diag[b] += g;
+      rhs[b] += g * uRail[-1 - a];
+    }
+  }
+}
+
+/** The general system into the permuted triangle's values cx (diagonals at diagPos, a device's entry at posOff). */
+function assembleGeneral(pack: Int32Array, c: Float64Array, uRail: Float64Array, diagPos: Int32Array, posOff: Int32Array, cx: Float64Array, rhs: Float64Array): void {
+  const m = c.length;
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    if (a === b) continue;
+    const g = c[d];
+    if (a >= 0) {
+      cx[diagPos[a]] += g;
+      if (b >= 0) {
+        cx[diagPos[b]] += g;
+        cx[posOff[d]] -= g;
+      } else rhs[a] += g * uRail[-1 - b];
+    } else if (b >= 0) {
+      cx[diagPos[b]] += g;
+      rhs[b] += g * uRail[-1 - a];
+    }
+  }
+}
+
+/** out = P·b (scaled, by row): the rails' part (when withRails) + the injects with value(j). */
 function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j: number) => number, out: Float64Array): Float64Array {
   if (withRails) out.set(plan.rhsRails);
   else out.fill(0);
-  const { rowOf, rowIsN } = plan;
-  const pinv = plan.symbolic.pinv;
+  const { prow, isNAt } = plan;
   const { injects } = net;
   // Injects: drawn out of an n-channel node, pushed into a p-channel node.
   const invN = Math.exp(-plan.lnScale[1]);
@@ -509,37 +627,60 @@ function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j:
   for (let j = 0; j < injects.count; j++) {
     const v = value(j);
     if (v === 0) continue;
-    const rf = rowOf[injects.from[j]];
-    const rt = rowOf[injects.to[j]];
-    if (rf >= 0) out[pinv[rf]] += rowIsN[rf] ? v * invN : -v * invP;
-    if (rt >= 0) out[pinv[rt]] += rowIsN[rt] ? -v * invN : v * invP;
+    const rf = prow[injects.from[j]];
+    const rt = prow[injects.to[j]];
+    if (rf >= 0) out[rf] += isNAt[rf] ? v * invN : -v * invP;
+    if (rt >= 0) out[rt] += isNAt[rt] ? -v * invN : v * invP;
   }
   return out;
 }
 
-/** y = C⁻¹·y in permuted order (y holds P·b on entry): y = L \ y; y = Lᵀ \ y; then refinement steps (r = P·b − C·y). */
-function solvePermuted(plan: LinearPlan, y: Float64Array): void {
-  const factor = plan.factor as Factor;
+/** y = C⁻¹·y by row (y holds P·b on entry), then `refine` steps of iterative refinement (r = P·b − C·y). */
+function solveRows(plan: LinearPlan, y: Float64Array): void {
   const rows = plan.rows;
   const refine = plan.refine;
   if (refine > 0) {
-    if (plan.r.length !== rows) plan.r = new Float64Array(rows);
-    if (plan.b.length !== rows) plan.b = new Float64Array(rows);
+    if (plan.r.length !== rows) plan.r = pool.takeF64(rows);
+    if (plan.b.length !== rows) plan.b = pool.takeF64(rows);
     plan.b.set(y);
   }
-  lsolve(factor, y);
-  ltsolve(factor, y);
-  const r = plan.r;
-  const b = plan.b;
+  factorSolve(plan, y);
+  const { r, b } = plan;
   for (let step = 0; step < refine; step++) {
-    multiplySymmetric(plan.C, y, r);
+    multiplyRows(plan, y, r);
     for (let k = 0; k < rows; k++) r[k] = b[k] - r[k];
-    lsolve(factor, r);
-    ltsolve(factor, r);
+    factorSolve(plan, r);
     for (let k = 0; k < rows; k++) y[k] += r[k];
   }
 }
 
+function factorSolve(plan: LinearPlan, y: Float64Array): void {
+  if (plan.tree) treeSolve(plan.tree.parent, plan.tree.diag, plan.tree.off, y);
+  else {
+    const factor = (plan.general as GeneralParts).factor as Factor;
+    lsolve(factor, y);
+    ltsolve(factor, y);
+  }
+}
+
+/** out = C·y by row, from the devices (the matrix itself is overwritten by its factor). */
+function multiplyRows(plan: LinearPlan, y: Float64Array, out: Float64Array): void {
+  const { pack, c } = plan;
+  const m = c.length;
+  out.fill(0);
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    if (a === b) continue;
+    const g = c[d];
+    if (a >= 0 && b >= 0) {
+      const f = g * (y[a] - y[b]);
+      out[a] += f;
+      out[b] -= f;
+    } else if (a >= 0) out[a] += g * y[a];
+    else if (b >= 0) out[b] += g * y[b];
+  }
+}
 /**
  * Node voltages for the current inject values, with the last factorisation
  * (by superposition when only a few inject values changed since it).
@@ -548,9 +689,9 @@ function solvePermuted(plan: LinearPlan, y: Float64Array): void {
  * point, reported naming the node.
  */
 export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
-  if (!plan.factor) throw new Error("solveLinear: no factorisation");
+  if (!plan.factored) throw new Error("solveLinear: no factorisation");
   plan.solved = false;
-  const { rows, rowIsN, nodeOfRow } = plan;
+  const { rows, isNAt, nodeAt } = plan;
   const { injects, nodes, settings } = net;
   const values = injects.value;
   const ut = settings.ut;
@@ -558,13 +699,14 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
   const sup = plan.sup;
   const all = (j: number) => values[j];
   if (sup.fresh || sup.disabled) {
-    solvePermuted(plan, buildRhs(plan, net, true, all, y));
+    solveRows(plan, buildRhs(plan, net, true, all, y));
     if (sup.fresh) {
       sup.fresh = false;
       sup.disabled = false;
       sup.ref.set(values);
       sup.isChanged.fill(0);
       sup.changed = [];
+      pool.give(...sup.z);
       sup.z = [];
     }
   } else {
@@ -578,16 +720,16 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
       }
     }
     if (sup.disabled) {
-      solvePermuted(plan, buildRhs(plan, net, true, all, y));
+      solveRows(plan, buildRhs(plan, net, true, all, y));
     } else {
       if (sup.changed.length > before) {
         // rest: rails and the injects still at their reference values; z_j: 1 A in inject j.
-        if (sup.rest.length !== rows) sup.rest = new Float64Array(rows);
-        solvePermuted(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j]), sup.rest));
+        if (sup.rest.length !== rows) sup.rest = pool.takeF64(rows);
+        solveRows(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j]), sup.rest));
         for (let t = before; t < sup.changed.length; t++) {
           const jj = sup.changed[t];
-          const z = new Float64Array(rows);
-          solvePermuted(plan, buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0), z));
+          const z = pool.takeF64(rows);
+          solveRows(plan, buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0), z));
           sup.z.push(z);
         }
       }
@@ -600,82 +742,92 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
       }
     }
   }
-  const perm = plan.symbolic.perm;
   const vrefN = plan.vref[1];
   const vrefP = plan.vref[0];
-  let worst = -1;
-  let worstU = Infinity;
+  const worst = voltagesFromRows(rows, y, nodeAt, isNAt, vrefN, vrefP, ut, V);
   const rv = nodes.railValue;
-  for (let k = 0; k < rows; k++) {
-    const u = y[k];
-    const r = perm[k];
-    if (!(u > 0) || u === Infinity) {
-      if (!(u >= worstU)) {
-        worstU = u;
-        worst = r;
-      }
-      continue;
-    }
-    V[nodeOfRow[r]] = rowIsN[r] ? vrefN - ut * Math.log(u) : vrefP + ut * Math.log(u);
-  }
   const railNodes = plan.railNodes;
   for (let q = 0; q < railNodes.length; q++) V[railNodes[q]] = rv[railNodes[q]];
   plan.solved = worst < 0;
   if (worst >= 0) {
-    const node = nodeOfRow[worst];
+    const node = nodeAt[worst];
     const name = nodes.names[node];
     return {
       ok: false,
       node,
-      message: `no physical operating point: at node ${name} the current sources ask more than the channels can carry (pseudo-voltage ${rowIsN[worst] ? "exp(-V/ut)" : "exp(V/ut)"} would be ${Number.isNaN(worstU) ? "undefined" : "≤ 0"})`,
+      message: `no physical operating point: at node ${name} the current sources ask more than the channels can carry (pseudo-voltage ${isNAt[worst] ? "exp(-V/ut)" : "exp(V/ut)"} would be ${Number.isNaN(y[worst]) ? "undefined" : "≤ 0"})`,
     };
   }
   return { ok: true };
 }
 
 /**
+ * V = Vref ∓ U_T·ln û for every row; returns −1, or the row whose û is the
+ * most negative (or not a number / infinite) when some û is not a positive finite number.
+ */
+function voltagesFromRows(rows: number, y: Float64Array, nodeAt: Int32Array, isNAt: Uint8Array, vrefN: number, vrefP: number, ut: number, V: Float64Array): number {
+  let worst = -1;
+  let worstU = Infinity;
+  for (let k = 0; k < rows; k++) {
+    const u = y[k];
+    if (!(u > 0) || u === Infinity) {
+      if (!(u >= worstU)) {
+        worstU = u;
+        worst = k;
+      }
+      continue;
+    }
+    const lu = ut * Math.log(u);
+    V[nodeAt[k]] = isNAt[k] ? vrefN - lu : vrefP + lu;
+  }
+  return worst;
+}
+
+/**
  * The per-node exponentials of the voltage-form device equation for the last
- * factorisation (in scratch arrays of the plan, valid until the next call): en[k] = exp(−(V_k − Vref_n)/U_T), ep[k] = exp((V_k − Vref_p)/U_T)
- * at the nodes channels of that type touch; with plan.c they give
- * I_F = c·e(source), I_R = c·e(drain) (LANGUAGE.md device equations).
- * V must be the voltages the last solveLinear wrote. At an internal node
- * that exponential is the solved pseudo-voltage û itself (V = Vref ∓ U_T·ln û),
- * taken straight from the solve when it is at hand; rails (and any other
- * case) by the exponential.
+ * factorisation, scaled by gs_c (in scratch arrays of the plan, valid until
+ * the next call): en[k] = gs_n·exp(−(V_k − Vref_n)/U_T),
+ * ep[k] = gs_p·exp((V_k − Vref_p)/U_T) at the nodes channels of that type
+ * touch; with plan.c = ĝ they give I_F = ĝ·e(source), I_R = ĝ·e(drain)
+ * (LANGUAGE.md device equations). V must be the voltages the last
+ * solveLinear wrote. At an internal node that exponential is the solved
+ * pseudo-voltage û itself (V = Vref ∓ U_T·ln û), taken straight from the
+ * solve when it is at hand; rails (and any other case) by the exponential.
  */
 export function pseudoCurrents(plan: LinearPlan, net: Network, V: Float64Array): { c: Float64Array; en: Float64Array; ep: Float64Array } | null {
   const ut = net.settings.ut;
-  if (!(Math.abs(plan.lnScale[0]) < 700 && Math.abs(plan.lnScale[1]) < 700)) return null;
+  const lnP = plan.lnScale[0];
+  const lnN = plan.lnScale[1];
+  if (!(Math.abs(lnP) < 700 && Math.abs(lnN) < 700)) return null;
   const nn = V.length;
   if (plan.en.length !== nn) {
-    plan.en = new Float64Array(nn);
-    plan.ep = new Float64Array(nn);
+    pool.give(plan.en, plan.ep);
+    plan.en = pool.takeF64(nn);
+    plan.ep = pool.takeF64(nn);
   }
-  const { en, ep } = plan;
+  const { en, ep, rows, nodeAt, isNAt, railNodes, railTouch } = plan;
   const vrefN = plan.vref[1];
   const vrefP = plan.vref[0];
-  const touch = plan.nodeTouch;
   if (plan.solved) {
-    const { y, rows, nodeOfRow, rowIsN } = plan;
-    const perm = plan.symbolic.perm;
+    const y = plan.y;
+    const gsN = Math.exp(lnN);
+    const gsP = Math.exp(lnP);
     for (let k = 0; k < rows; k++) {
-      const r = perm[k];
-      if (rowIsN[r]) en[nodeOfRow[r]] = y[k];
-      else ep[nodeOfRow[r]] = y[k];
+      if (isNAt[k]) en[nodeAt[k]] = gsN * y[k];
+      else ep[nodeAt[k]] = gsP * y[k];
     }
-    const railNodes = plan.railNodes;
-    for (let q = 0; q < railNodes.length; q++) {
-      const k = railNodes[q];
-      const t = touch[k];
-      if (t & 1) en[k] = Math.exp(-(V[k] - vrefN) / ut);
-      if (t & 2) ep[k] = Math.exp((V[k] - vrefP) / ut);
+  } else {
+    for (let k = 0; k < rows; k++) {
+      const node = nodeAt[k];
+      if (isNAt[k]) en[node] = Math.exp(lnN - (V[node] - vrefN) / ut);
+      else ep[node] = Math.exp(lnP + (V[node] - vrefP) / ut);
     }
-    return { c: plan.c, en, ep };
   }
-  for (let k = 0; k < nn; k++) {
-    const t = touch[k];
-    if (t & 1) en[k] = Math.exp(-(V[k] - vrefN) / ut);
-    if (t & 2) ep[k] = Math.exp((V[k] - vrefP) / ut);
+  for (let q = 0; q < railNodes.length; q++) {
+    const k = railNodes[q];
+    const t = railTouch[q];
+    if (t & 1) en[k] = Math.exp(lnN - (V[k] - vrefN) / ut);
+    if (t & 2) ep[k] = Math.exp(lnP + (V[k] - vrefP) / ut);
   }
   return { c: plan.c, en, ep };
 }

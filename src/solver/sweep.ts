@@ -12,7 +12,7 @@ import type { Network } from "../lang/network";
 import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
-import { factorLinear, type LinearOptions, type LinearPlan, planLinear, pseudoCurrents, solveLinear } from "./linear";
+import { factorLinear, type LinearOptions, type LinearPlan, planLinear, pseudoCurrents, releaseLinear, solveLinear } from "./linear";
 import { MismatchSampler, summarize } from "./mismatch";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
 import { evaluate, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings } from "./results";
@@ -164,126 +164,130 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
   for (const p of net.probes) probeValues[p.name] = [];
 
   let index = 0;
-  outer: for (let g = 0; g < grid.length; g++) {
-    const pnet = applyPoint(net, grid[g]);
-    const params: Record<string, number> = {};
-    for (const p of pnet.params) params[p.name] = p.value;
-    if (sweptTemp) params.temp = pnet.settings.temp;
-    for (const name in probeValues) probeValues[name].length = 0;
-    for (let s = 0; s < samples; s++) {
-      if (index >= limit) break outer;
-      if (opts.shouldStop?.()) {
-        result.stopped = true;
-        break outer;
-      }
-      const sample = sampler ? s : null;
-      const tf = performance.now();
-      const k: FactorKey = { rails: pnet.nodes.railValue, w: pnet.devices.w, l: pnet.devices.l, kappa: pnet.settings.kappa, ut: pnet.settings.ut, i0: pnet.settings.i0, sample, ispec: pnet.settings.ispec, vt0: pnet.settings.vt0 };
-      // Device constants depend on sizes, settings and the sample, not on rails or injects.
-      if (!P || !sameDeviceKey(pKey, k)) {
-        P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
-        pKey = k;
-      }
-      const slot = slab ? slab.next() : null;
-      const V = slot ? slot.V : new Float64Array(nn);
-      let ok = true;
-      let error: string | null = null;
-      let failNode = -1;
-      let iterations = 1;
-      let continuation = false;
-      let reused = false;
-      if (lplan) {
-        if (sameKey(key, k) && lplan.factor) {
-          reused = true;
-        } else {
-          const f = factorLinear(lplan, pnet, P);
-          key = f.ok ? k : null;
-          if (!f.ok) {
-            ok = false;
-            error = f.message;
-            failNode = f.node;
-          }
+  try {
+    outer: for (let g = 0; g < grid.length; g++) {
+      const pnet = applyPoint(net, grid[g]);
+      const params: Record<string, number> = {};
+      for (const p of pnet.params) params[p.name] = p.value;
+      if (sweptTemp) params.temp = pnet.settings.temp;
+      for (const name in probeValues) probeValues[name].length = 0;
+      for (let s = 0; s < samples; s++) {
+        if (index >= limit) break outer;
+        if (opts.shouldStop?.()) {
+          result.stopped = true;
+          break outer;
         }
-        const ts = performance.now();
-        timings.factorMs += ts - tf;
-        if (ok) {
-          const r = solveLinear(lplan, pnet, V);
-          if (!r.ok) {
+        const sample = sampler ? s : null;
+        const tf = performance.now();
+        const k: FactorKey = { rails: pnet.nodes.railValue, w: pnet.devices.w, l: pnet.devices.l, kappa: pnet.settings.kappa, ut: pnet.settings.ut, i0: pnet.settings.i0, sample, ispec: pnet.settings.ispec, vt0: pnet.settings.vt0 };
+        // Device constants depend on sizes, settings and the sample, not on rails or injects.
+        if (!P || !sameDeviceKey(pKey, k)) {
+          P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
+          pKey = k;
+        }
+        const slot = slab ? slab.next() : null;
+        const V = slot ? slot.V : new Float64Array(nn);
+        let ok = true;
+        let error: string | null = null;
+        let failNode = -1;
+        let iterations = 1;
+        let continuation = false;
+        let reused = false;
+        if (lplan) {
+          if (sameKey(key, k) && lplan.factored) {
+            reused = true;
+          } else {
+            const f = factorLinear(lplan, pnet, P);
+            key = f.ok ? k : null;
+            if (!f.ok) {
+              ok = false;
+              error = f.message;
+              failNode = f.node;
+            }
+          }
+          const ts = performance.now();
+          timings.factorMs += ts - tf;
+          if (ok) {
+            const r = solveLinear(lplan, pnet, V);
+            if (!r.ok) {
+              ok = false;
+              error = r.message;
+              failNode = r.node;
+            }
+          }
+          timings.solveMs += performance.now() - ts;
+        } else if (nplan) {
+          if (previous) V.set(previous);
+          else startNewton(pnet, cls, V);
+          timings.factorMs += performance.now() - tf;
+          const ts = performance.now();
+          let r = solveNewton(nplan, pnet, P, V, { forceContinuation: opts.forceContinuation });
+          if (!r.ok && previous) {
+            // The previous point's solution was a poor start: retry from the network's own start.
+            startNewton(pnet, cls, V);
+            const again = solveNewton(nplan, pnet, P, V, { forceContinuation: opts.forceContinuation });
+            again.iterations += r.iterations;
+            r = again;
+          }
+          iterations = r.iterations;
+          if (r.ok) {
+            continuation = r.continuation;
+            previous = Float64Array.from(V);
+          } else {
             ok = false;
             error = r.message;
             failNode = r.node;
           }
+          timings.solveMs += performance.now() - ts;
         }
-        timings.solveMs += performance.now() - ts;
-      } else if (nplan) {
-        if (previous) V.set(previous);
-        else startNewton(pnet, cls, V);
-        timings.factorMs += performance.now() - tf;
-        const ts = performance.now();
-        let r = solveNewton(nplan, pnet, P, V, { forceContinuation: opts.forceContinuation });
-        if (!r.ok && previous) {
-          // The previous point's solution was a poor start: retry from the network's own start.
-          startNewton(pnet, cls, V);
-          const again = solveNewton(nplan, pnet, P, V, { forceContinuation: opts.forceContinuation });
-          again.iterations += r.iterations;
-          r = again;
+        const te = performance.now();
+        const ev = evaluate(pnet, V, P, kcl, lplan && ok ? pseudoCurrents(lplan, pnet, V) : null, slot ? slot.store : undefined);
+        const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
+        for (const name in probes) probeValues[name].push(probes[name]);
+        const point: PointResult = {
+          index,
+          params,
+          sample,
+          ok,
+          // The point's description only for a failed point (no string work per solved point).
+          error: ok ? null : `${describePoint(grid[g], sample)}${error}`,
+          voltages: V,
+          currents: ev.currents,
+          ic: ev.ic,
+          saturated: ev.saturated,
+          railCurrents: ev.railCurrents,
+          probes,
+          solver: {
+            method,
+            iterations,
+            residual: ev.residual,
+            reason,
+            ordering: lplan ? lplan.ordering : "amd",
+            ...(nplan ? { continuation } : { reusedFactor: reused }),
+          },
+          warnings: ok ? ev.warnings : [],
+        };
+        timings.evaluateMs += performance.now() - te;
+        if (!ok) {
+          result.ok = false;
+          result.failures.push({ point: index, node: failNode, message: point.error as string });
         }
-        iterations = r.iterations;
-        if (r.ok) {
-          continuation = r.continuation;
-          previous = Float64Array.from(V);
-        } else {
-          ok = false;
-          error = r.message;
-          failNode = r.node;
-        }
-        timings.solveMs += performance.now() - ts;
+        if (keep) result.points.push(point);
+        opts.onPoint?.(point);
+        index++;
+        result.solved = index;
+        opts.onProgress?.(index, limit);
       }
-      const te = performance.now();
-      const ev = evaluate(pnet, V, P, kcl, lplan && ok ? pseudoCurrents(lplan, pnet, V) : null, slot ? slot.store : undefined);
-      const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
-      for (const name in probes) probeValues[name].push(probes[name]);
-      const point: PointResult = {
-        index,
-        params,
-        sample,
-        ok,
-        // The point's description only for a failed point (no string work per solved point).
-        error: ok ? null : `${describePoint(grid[g], sample)}${error}`,
-        voltages: V,
-        currents: ev.currents,
-        ic: ev.ic,
-        saturated: ev.saturated,
-        railCurrents: ev.railCurrents,
-        probes,
-        solver: {
-          method,
-          iterations,
-          residual: ev.residual,
-          reason,
-          ordering: lplan ? lplan.ordering : "amd",
-          ...(nplan ? { continuation } : { reusedFactor: reused }),
-        },
-        warnings: ok ? ev.warnings : [],
-      };
-      timings.evaluateMs += performance.now() - te;
-      if (!ok) {
-        result.ok = false;
-        result.failures.push({ point: index, node: failNode, message: point.error as string });
-      }
-      if (keep) result.points.push(point);
-      opts.onPoint?.(point);
-      index++;
-      result.solved = index;
-      opts.onProgress?.(index, limit);
-    }
-    if (sampler && net.probes.length > 0 && probeValues[net.probes[0].name].length > 0) {
-      for (const p of net.probes) {
-        const st = summarize(probeValues[p.name]);
-        const summary: ProbeSummary = { probe: p.name, gridPoint: g, params, samples: st.n, mean: st.mean, std: st.std, min: st.min, max: st.max, p1: st.p1, p5: st.p5, p50: st.p50, p95: st.p95, p99: st.p99 };
-        result.summaries.push(summary);
+      if (sampler && net.probes.length > 0 && probeValues[net.probes[0].name].length > 0) {
+        for (const p of net.probes) {
+          const st = summarize(probeValues[p.name]);
+          const summary: ProbeSummary = { probe: p.name, gridPoint: g, params, samples: st.n, mean: st.mean, std: st.std, min: st.min, max: st.max, p1: st.p1, p5: st.p5, p50: st.p50, p95: st.p95, p99: st.p99 };
+          result.summaries.push(summary);
+        }
       }
     }
+  } finally {
+    if (lplan) releaseLinear(lplan);
   }
   return result;
 }
@@ -355,10 +359,14 @@ function startNewton(pnet: Network, cls: Classification, V: Float64Array): void 
   if (!weakCls.linear) return;
   try {
     const plan = planLinear(weak, weakCls);
-    const P = deviceParams(weak, null);
-    if (!factorLinear(plan, weak, P).ok) return;
-    const W = new Float64Array(V.length);
-    if (solveLinear(plan, weak, W).ok) V.set(W);
+    try {
+      const P = deviceParams(weak, null);
+      if (!factorLinear(plan, weak, P).ok) return;
+      const W = new Float64Array(V.length);
+      if (solveLinear(plan, weak, W).ok) V.set(W);
+    } finally {
+      releaseLinear(plan);
+    }
   } catch {
     // Keep the rail-average start.
   }

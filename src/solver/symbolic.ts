@@ -48,8 +48,7 @@ export interface Symbolic {
   lnz: number;
   /** Σ over columns of count²: the work of the numeric factorisation. */
   flops: number;
-  /** "tree": a forest in leaf-first order (tree.ts), L has the pattern of C; factored by the tree kernel. */
-  kernel: Kernel | "tree";
+  kernel: Kernel;
   /** Present when kernel is "supernodal". */
   supernodes: Supernodes | null;
 }

@@ -8,21 +8,28 @@
  *
  * The peeling keeps per vertex only its degree and the XOR of its neighbours'
  * labels: once a vertex has one edge left, the XOR is that neighbour.
+ *
+ * The factor is stored as two values per vertex, in elimination order: L(k,k)
+ * and L(parent(k), k) — no index arrays besides the parent pointers.
  */
-
-import type { Symbolic } from "./symbolic";
 
 /**
  * Leaf-first elimination order of the multigraph on n vertices whose vertex v
  * has deg[v] edges (self-loops excluded) and nbrXor[v] = XOR of the other end
  * of each; null when some vertices are never peeled (a cycle or a repeated
- * edge). Both arrays are consumed (their memory is reused for the result).
+ * edge). Both arrays are consumed (deg's memory becomes pinv). `perm` and
+ * `parent` (length n) may be given to be filled instead of allocated.
  * Returns perm (perm[k] = k-th vertex eliminated), its inverse pinv, and
  * parent in eliminated labels (parent[k] > k, or -1 for the last vertex of a tree).
  */
-export function leafFirstOrder(n: number, deg: Int32Array, nbrXor: Int32Array): { perm: Int32Array; pinv: Int32Array; parent: Int32Array } | null {
+export function leafFirstOrder(
+  n: number,
+  deg: Int32Array,
+  nbrXor: Int32Array,
+  perm: Int32Array = new Int32Array(n),
+  parent: Int32Array = new Int32Array(n),
+): { perm: Int32Array; pinv: Int32Array; parent: Int32Array } | null {
   const left = deg;
-  const perm = new Int32Array(n);
   let tail = 0;
   for (let v = 0; v < n; v++) if (left[v] <= 1) perm[tail++] = v;
   // Once v is peeled, nbrXor[v] is the vertex it hangs from (no later step
@@ -42,7 +49,6 @@ export function leafFirstOrder(n: number, deg: Int32Array, nbrXor: Int32Array): 
   const up = nbrXor;
   const pinv = left;
   for (let k = 0; k < n; k++) pinv[perm[k]] = k;
-  const parent = new Int32Array(n);
   for (let k = 0; k < n; k++) {
     const u = up[perm[k]];
     parent[k] = u < 0 ? -1 : pinv[u];
@@ -51,30 +57,44 @@ export function leafFirstOrder(n: number, deg: Int32Array, nbrXor: Int32Array): 
 }
 
 /**
- * The Symbolic of a forest in leaf-first order (kernel "tree"), with the
- * pattern of the lower triangle of C = P·A·Pᵀ: column k holds row k, then
- * row parent[k] when k is not a root. That is also the pattern of L.
- * Returns the pattern's row indices beside the Symbolic (lp = column pointers).
+ * In-place LDLᵀ factorisation of a matrix whose graph is a forest, in
+ * leaf-first order: on entry diag[k] = C(k,k) and off[k] = C(parent[k], k);
+ * on exit diag[k] = 1/D(k) and off[k] = L(parent[k], k) of the unit lower
+ * triangular L. Children come before parents, so one pass suffices:
+ * D(k) = d_k, L(p,k) = C(p,k)/d_k, d_p −= L(p,k)·C(p,k). No square roots,
+ * and the solves multiply by 1/D (a chain's pivots form one long dependent
+ * recurrence, so each step's latency counts). Returns −1, or the first
+ * position whose pivot is not positive and finite.
  */
-export function forestSymbolic(perm: Int32Array, pinv: Int32Array, parent: Int32Array): { symbolic: Symbolic; rows: Int32Array } {
-  const n = perm.length;
-  const lp = new Int32Array(n + 1);
-  const counts = new Int32Array(n);
-  let nz = 0;
+export function treeFactor(parent: Int32Array, diag: Float64Array, off: Float64Array): number {
+  const n = parent.length;
   for (let k = 0; k < n; k++) {
-    lp[k] = nz;
-    const c = parent[k] < 0 ? 1 : 2;
-    counts[k] = c;
-    nz += c;
+    const d = diag[k];
+    if (!(d > 0) || d === Infinity) return k;
+    const inv = 1 / d;
+    diag[k] = inv;
+    const p = parent[k];
+    if (p >= 0) {
+      const o = off[k];
+      const l = o * inv;
+      off[k] = l;
+      diag[p] -= l * o;
+    }
   }
-  lp[n] = nz;
-  const rows = new Int32Array(nz);
+  return -1;
+}
+
+/** y = (L·D·Lᵀ)⁻¹·y in place, with the factor of `treeFactor`. */
+export function treeSolve(parent: Int32Array, diag: Float64Array, off: Float64Array, y: Float64Array): void {
+  const n = parent.length;
+  // L·z = y, children pushing into their parents.
   for (let k = 0; k < n; k++) {
-    const q = lp[k];
-    rows[q] = k;
-    if (parent[k] >= 0) rows[q + 1] = parent[k];
+    const p = parent[k];
+    if (p >= 0) y[p] -= off[k] * y[k];
   }
-  // Σ count²: 1 per root, 4 per other column.
-  const flops = n + 3 * (nz - n);
-  return { symbolic: { n, perm, pinv, parent, counts, lp, lnz: nz, flops, kernel: "tree", supernodes: null }, rows };
+  // D·Lᵀ·x = z, parents before children.
+  for (let k = n - 1; k >= 0; k--) {
+    const p = parent[k];
+    y[k] = p >= 0 ? y[k] * diag[k] - off[k] * y[p] : y[k] * diag[k];
+  }
 }
