@@ -31,8 +31,19 @@ export function ltsolve(L: Factor, x: Float64Array): void {
   }
 }
 
+/** Scratch for the rows below a supernode's diagonal block (the core is synchronous: one solve at a time). */
+let below = new Float64Array(64);
+
+function scratch(n: number): Float64Array {
+  if (below.length < n) below = new Float64Array(Math.max(n, 2 * below.length));
+  return below;
+}
+
 function lsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): void {
   const { count, start, rowPtr, rows, valPtr } = sn;
+  let most = 0;
+  for (let s = 0; s < count; s++) most = Math.max(most, rowPtr[s + 1] - rowPtr[s] - (start[s + 1] - start[s]));
+  const t = scratch(most);
   for (let s = 0; s < count; s++) {
     const f = start[s];
     const k = start[s + 1] - f;
@@ -45,36 +56,49 @@ function lsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): vo
       const xj = (x[f + c] /= lx[col + c]);
       for (let r = c + 1; r < k; r++) x[f + r] -= lx[col + r] * xj;
     }
-    // Below it: x(rows) -= L(rows, f:f+k) · x(f:f+k), one scattered update per row.
-    for (let r = k; r < nr; r++) {
-      let sum = 0;
-      for (let c = 0, q = v0 + r; c < k; c++, q += nr) sum += lx[q] * x[f + c];
-      x[rows[r0 + r]] -= sum;
+    // Below it: t = L(rows, f:f+k) · x(f:f+k), down the columns (contiguous), then one scatter.
+    const nb = nr - k;
+    if (nb === 0) continue;
+    t.fill(0, 0, nb);
+    let c = 0;
+    for (; c + 2 <= k; c += 2) {
+      const a = v0 + c * nr + k;
+      const b = a + nr;
+      const xa = x[f + c];
+      const xb = x[f + c + 1];
+      for (let r = 0; r < nb; r++) t[r] += lx[a + r] * xa + lx[b + r] * xb;
     }
+    if (c < k) {
+      const a = v0 + c * nr + k;
+      const xa = x[f + c];
+      for (let r = 0; r < nb; r++) t[r] += lx[a + r] * xa;
+    }
+    const rk = r0 + k;
+    for (let r = 0; r < nb; r++) x[rows[rk + r]] -= t[r];
   }
 }
 
 function ltsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): void {
   const { count, start, rowPtr, rows, valPtr } = sn;
-  let widest = 0;
-  for (let s = 0; s < count; s++) if (start[s + 1] - start[s] > widest) widest = start[s + 1] - start[s];
-  // acc(c) = L(rows, f+c)ᵀ · x(rows), gathered once per row.
-  const acc = new Float64Array(widest);
+  let most = 0;
+  for (let s = 0; s < count; s++) most = Math.max(most, rowPtr[s + 1] - rowPtr[s] - (start[s + 1] - start[s]));
+  const t = scratch(most);
   for (let s = count - 1; s >= 0; s--) {
     const f = start[s];
     const k = start[s + 1] - f;
     const r0 = rowPtr[s];
     const nr = rowPtr[s + 1] - r0;
     const v0 = valPtr[s];
-    acc.fill(0, 0, k);
-    for (let r = k; r < nr; r++) {
-      const xr = x[rows[r0 + r]];
-      for (let c = 0, q = v0 + r; c < k; c++, q += nr) acc[c] += lx[q] * xr;
-    }
+    // Gather x(rows below) once; each column then takes a contiguous dot product with it.
+    const nb = nr - k;
+    const rk = r0 + k;
+    for (let r = 0; r < nb; r++) t[r] = x[rows[rk + r]];
     for (let c = k - 1; c >= 0; c--) {
       const col = v0 + c * nr;
-      let sum = x[f + c] - acc[c];
+      let sum = x[f + c];
       for (let r = c + 1; r < k; r++) sum -= lx[col + r] * x[f + r];
+      const a = col + k;
+      for (let r = 0; r < nb; r++) sum -= lx[a + r] * t[r];
       x[f + c] = sum / lx[col + c];
     }
   }

@@ -183,6 +183,71 @@ describe("Cholesky against math.js lusolve", () => {
     }
   });
 
+  it("the supernodal kernel is exact on wide and irregular supernodes (every branch of its blocked kernels)", () => {
+    // Banded matrices in natural order give supernodes as wide as the band
+    // (1..19 columns: group remainders of 1–3 columns, descendants of ≤ 4 and
+    // > 4 columns, rows that do and do not map to consecutive rows of their
+    // target); dense cliques joined by random edges give irregular patterns.
+    const rnd = lcg(23);
+    const cases: Csc[] = [];
+    for (const band of [1, 2, 3, 4, 5, 7, 9, 13, 19]) {
+      const n = 40 + band * 3;
+      const T = new Triplet(n, n);
+      const diag = new Float64Array(n);
+      for (let i = 0; i < n; i++)
+        for (let j = i + 1; j <= Math.min(n - 1, i + band); j++) {
+          if (rnd() < 0.15) continue; // a few holes: non-consecutive row patterns
+          const g = Math.exp(4 * (rnd() - 0.5));
+          T.push(i, j, -g);
+          T.push(j, i, -g);
+          diag[i] += g;
+          diag[j] += g;
+        }
+      for (let i = 0; i < n; i++) T.push(i, i, diag[i] + 0.05 + rnd());
+      cases.push(compress(T));
+    }
+    for (let trial = 0; trial < 4; trial++) {
+      const n = 90;
+      const T = new Triplet(n, n);
+      const diag = new Float64Array(n);
+      const link = (i: number, j: number) => {
+        const g = Math.exp(4 * (rnd() - 0.5));
+        T.push(i, j, -g);
+        T.push(j, i, -g);
+        diag[i] += g;
+        diag[j] += g;
+      };
+      for (let start = 0; start < n; ) {
+        const size = 3 + Math.floor(rnd() * 15);
+        for (let i = start; i < Math.min(n, start + size); i++) for (let j = i + 1; j < Math.min(n, start + size); j++) link(i, j);
+        start += size;
+      }
+      for (let e = 0; e < n; e++) {
+        const i = Math.floor(rnd() * n);
+        const j = Math.floor(rnd() * n);
+        if (i !== j) link(i, j);
+      }
+      for (let i = 0; i < n; i++) T.push(i, i, diag[i] + 0.01 + rnd());
+      cases.push(compress(T));
+    }
+    for (const A of cases) {
+      const n = A.n;
+      const adj = symmetricAdjacency(A);
+      const b = Float64Array.from({ length: n }, () => rnd() - 0.5);
+      const ref = (lusolve(dense(A), Array.from(b)) as number[][]).map((r) => r[0]);
+      for (const order of [natural(n), amd(n, adj.p, adj.i), nestedDissection(n, adj.p, adj.i, 8)]) {
+        const S = analyse(n, adj.p, adj.i, order, { kernel: "supernodal" });
+        const F = cholesky(permutedTriangle(A, S.pinv, matrixTriangle(S)), S);
+        expect(F.ok).toBe(true);
+        if (!F.ok) continue;
+        const x = new Float64Array(n);
+        cholSolve(F.factor, S.perm, b, x, new Float64Array(n));
+        expect(scaledResidual(A, x, b)).toBeLessThan(1e-14);
+        for (let i = 0; i < n; i++) expect(Math.abs(x[i] - ref[i])).toBeLessThan(1e-10 * Math.max(1, Math.abs(ref[i])));
+      }
+    }
+  });
+
   it("the supernodal kernel agrees with the simple one on a grid", () => {
     const A = grid(20);
     const n = A.n;
