@@ -98,6 +98,7 @@ function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}):
   const run = solveNetwork(net, {
     ...opts,
     keepPoints: false,
+    reuseArrays: true,
     onPoint: (p) => {
       if (!ordering) ordering = p.solver.ordering ?? "";
     },
@@ -175,7 +176,7 @@ function independentSolves(net: Network): number {
   for (const v of sweep.values) {
     const single = { ...applyPoint(net, { [sweep.param]: v }), sweeps: [] };
     const t0 = performance.now();
-    const run = solveNetwork(single, { keepPoints: false });
+    const run = solveNetwork(single, { keepPoints: false, reuseArrays: true });
     total += performance.now() - t0;
     if (!run.ok) throw new Error("independent solve failed");
   }

@@ -146,7 +146,8 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
       if (batch.length >= WRITE_BATCH || now() - lastFlush >= PROGRESS_MS) flush();
     };
 
-    const run: RunResult = solveNetwork(net, { onProgress, onPoint, shouldStop, maxPoints: row.pointsTotal, keepPoints: false });
+    // The point's arrays are reused by the next point: toRecord copies what the batch keeps.
+    const run: RunResult = solveNetwork(net, { onProgress, onPoint, shouldStop, maxPoints: row.pointsTotal, keepPoints: false, reuseArrays: true });
     flush();
     d.update(runs)
       .set({
@@ -248,9 +249,9 @@ function toRecord(net: Network, layout: RunLayout, p: PointResult): PointRecord 
     residual: p.solver.residual,
     error: p.ok ? null : (p.error ?? "not solved"),
     rails,
-    nodes: p.voltages,
-    current: p.currents,
+    nodes: p.voltages.slice(),
+    current: p.currents.slice(),
     ic: Float32Array.from(p.ic),
-    saturated: p.saturated,
+    saturated: p.saturated.slice(),
   };
 }

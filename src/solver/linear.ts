@@ -22,8 +22,8 @@
  * numeric Cholesky, rail right-hand side) when rails, sizes, temperature,
  * kappa or mismatch change; `solveLinear` (injects, triangular solves — or
  * superposition of cached responses when only inject values changed — and
- * back to voltages) for every point; `pseudoCurrents` gives the evaluation
- * the per-node exponentials of the reported voltages; `releaseLinear` gives
+ * back to voltages) for every point; `evaluateLinear` (linear-eval.ts)
+ * reports currents from the solved pseudo-voltages; `releaseLinear` gives
  * the plan's work arrays back to the thread's pool (pool.ts) when the run ends.
  *
  * Two structures:
@@ -46,6 +46,7 @@ import { cholesky, type CholeskyWork, choleskyWork, type Factor, matrixTriangle 
 import type { DeviceParams } from "./device";
 import { amd, natural, nestedDissection, type OrderingName } from "./order";
 import { pool } from "./pool";
+import { JUNCTION_TOLERANCE } from "./results";
 import { cumsum, dedupeAdjacency, type Csc } from "./sparse";
 import { analyse, type Kernel, naturalHasNoFill, type Symbolic } from "./symbolic";
 import { lsolve, ltsolve } from "./triangular";
@@ -111,10 +112,11 @@ export interface LinearPlan {
   /** Per rail: touched by an n-channel (1) / p-channel (2) source or drain. */
   railTouch: Uint8Array;
   /**
-   * Three integers per device: the source end, the drain end and the gate
-   * key. An end is the row of an internal node, or −1 − (2q + p) for rail q,
-   * p = 0 for an nfet and 1 for a pfet (so that −1 − end indexes uRail). A
-   * channel from a node to itself has equal ends (it carries no current).
+   * Three integers per device: the source end, the drain end and 2·key + p
+   * (its gate key and polarity, p = 0 for an nfet and 1 for a pfet). An end
+   * indexes y: the row of an internal node (< rows), or rows + 2q + p for
+   * rail q. A channel from a node to itself has equal ends (it carries no
+   * current).
    */
   pack: Int32Array;
   /** "tree" when the graph is a forest, eliminated leaves first (tree.ts). */
@@ -133,17 +135,23 @@ export interface LinearPlan {
   keyBulk: Int32Array;
   /** Per key: exp(e − Λ_c) of the last factorisation, e the key's gate exponent. */
   keyFactor: Float64Array;
-  /** Per rail q: û of rail q for n-channel (2q) and p-channel (2q + 1) terminals. */
-  uRail: Float64Array;
-  /** Scratch for pseudoCurrents (overwritten by the next point; taken on first use). */
-  en: Float64Array;
-  ep: Float64Array;
+  /**
+   * Per key: the pseudo-voltage beyond which a source or drain forward-biases
+   * the junction to the key's bulk or well by more than JUNCTION_TOLERANCE
+   * (û is monotonic in V: larger û is further beyond).
+   */
+  keyJunction: Float64Array;
+  /** Evaluation scratch: current entering each end (a rail's two polarity slots add up). */
+  ent: Float64Array;
   /** Right-hand side from the rails at the last factorisation (scaled, by row). */
   rhsRails: Float64Array;
   /** Scaling of the last factorisation: reference voltages and ln gs per class (index 0 = p, 1 = n). */
   vref: Float64Array;
   lnScale: Float64Array;
-  /** Pseudo-voltages û of the last solve, by row. */
+  /**
+   * Pseudo-voltages û by end: rows 0..rows−1 from the last solve, then
+   * rows + 2q + p the rail q's û for polarity p (set by each factorisation).
+   */
   y: Float64Array;
   /** Refinement scratch (taken on first use). */
   b: Float64Array;
@@ -202,7 +210,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   // (then `up` is the forest).
   const pack = pool.takeI32(3 * m);
   const up = pool.takeI32(rows);
-  const keys = packDevices(net, prow, railTouch, pack, forestTried ? up : null);
+  const keys = packDevices(net, rows, prow, railTouch, pack, forestTried ? up : null);
   let tree: TreeParts | null = null;
   let general: GeneralParts | null = null;
   let ordering: OrderingName | "tree";
@@ -258,12 +266,13 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   }
   if (pinv !== null) {
     for (let q = 0; q < 3 * m; q += 3) {
-      if (pack[q] >= 0) pack[q] = pinv[pack[q]];
-      if (pack[q + 1] >= 0) pack[q + 1] = pinv[pack[q + 1]];
+      if (pack[q] < rows) pack[q] = pinv[pack[q]];
+      if (pack[q + 1] < rows) pack[q + 1] = pinv[pack[q + 1]];
     }
     if (tree) pool.give(pinv);
   }
   if (general) triangleEntries(pack, m, rows, general);
+  const ends = rows + 2 * rails;
   return {
     rows,
     prow,
@@ -282,13 +291,12 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     keyGate: Int32Array.from(keys.gate),
     keyBulk: Int32Array.from(keys.bulk),
     keyFactor: new Float64Array(keys.type.length),
-    uRail: new Float64Array(2 * rails),
-    en: EMPTY_F64,
-    ep: EMPTY_F64,
+    keyJunction: new Float64Array(keys.type.length),
+    ent: EMPTY_F64,
     rhsRails: pool.takeF64(rows),
     vref: new Float64Array(2),
     lnScale: new Float64Array(2),
-    y: pool.takeF64(rows),
+    y: pool.takeF64(ends),
     b: EMPTY_F64,
     r: EMPTY_F64,
     refine: opts.refine ?? 0,
@@ -299,7 +307,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
 
 /** Gives the plan's work arrays back to the thread's pool; the plan must not be used afterwards. */
 export function releaseLinear(plan: LinearPlan): void {
-  pool.give(plan.prow, plan.nodeAt, plan.isNAt, plan.pack, plan.c, plan.en, plan.ep, plan.rhsRails, plan.y, plan.b, plan.r, plan.sup.rest, ...plan.sup.z);
+  pool.give(plan.prow, plan.nodeAt, plan.isNAt, plan.pack, plan.c, plan.ent, plan.rhsRails, plan.y, plan.b, plan.r, plan.sup.rest, ...plan.sup.z);
   if (plan.tree) pool.give(plan.tree.parent, plan.tree.diag, plan.tree.off);
   plan.factored = false;
   plan.sup.z = [];
@@ -318,6 +326,7 @@ export function releaseLinear(plan: LinearPlan): void {
  */
 function packDevices(
   net: Network,
+  rows: number,
   prow: Int32Array,
   railTouch: Uint8Array,
   pack: Int32Array,
@@ -362,12 +371,12 @@ function packDevices(
     let b = prow[t];
     if (a < 0) {
       railTouch[-1 - a] |= p + 1;
-      a = -1 - (2 * (-1 - a) + p);
+      a = rows + 2 * (-1 - a) + p;
     }
     if (b < 0) {
       railTouch[-1 - b] |= p + 1;
-      b = -1 - (2 * (-1 - b) + p);
-    } else if (a >= 0 && a !== b && forest) {
+      b = rows + 2 * (-1 - b) + p;
+    } else if (a < rows && a !== b && forest) {
       const lo = a < b ? a : b;
       const hi = a < b ? b : a;
       const u = (up as Int32Array)[lo];
@@ -376,17 +385,18 @@ function packDevices(
     }
     pack[q] = a;
     pack[q + 1] = b;
-    pack[q + 2] = key;
+    pack[q + 2] = 2 * key + p;
   }
   return { type: kType, gate: kGate, bulk: kBulk, naturalForest: forest };
 }
 
 /** Degrees of the internal rows (channel neighbours, with repeats) and, when given, the XOR of each row's neighbours. */
 function degrees(pack: Int32Array, m: number, deg: Int32Array, nbrXor: Int32Array | null): void {
+  const rows = deg.length;
   for (let q = 0; q < 3 * m; q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
-    if (a >= 0 && b >= 0 && a !== b) {
+    if (a < rows && b < rows && a !== b) {
       deg[a]++;
       deg[b]++;
       if (nbrXor) {
@@ -409,7 +419,7 @@ function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Ar
   for (let q = 0; q < 3 * m; q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
-    if (a >= 0 && b >= 0 && a !== b) {
+    if (a < rows && b < rows && a !== b) {
       idx[deg[a]++] = b;
       idx[deg[b]++] = a;
     }
@@ -436,7 +446,7 @@ function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralPa
   for (let q = 0; q < 3 * m; q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
-    if (a < 0 || b < 0 || a === b) continue;
+    if (a >= rows || b >= rows || a === b) continue;
     colCount[lower ? (a < b ? a : b) : a > b ? a : b]++;
   }
   const cp = new Int32Array(rows + 1);
@@ -452,7 +462,7 @@ function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralPa
   for (let d = 0, q = 0; d < m; d++, q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
-    if (a < 0 || b < 0 || a === b) continue;
+    if (a >= rows || b >= rows || a === b) continue;
     const col = lower ? (a < b ? a : b) : a > b ? a : b;
     const slot = colCount[col]++;
     ci[slot] = col === a ? b : a;
@@ -485,13 +495,13 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
     const { parent, diag, off } = plan.tree;
     diag.fill(0);
     off.fill(0);
-    assembleTree(plan.pack, plan.c, plan.uRail, diag, off, rhs);
+    assembleTree(plan.pack, plan.c, plan.y, diag, off, rhs);
     failed = treeFactor(parent, diag, off);
   } else {
     const g = plan.general as GeneralParts;
     const cx = g.C.x as Float64Array;
     cx.fill(0);
-    assembleGeneral(plan.pack, plan.c, plan.uRail, g.diagPos, g.posOff, cx, rhs);
+    assembleGeneral(plan.pack, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
     const res = cholesky(g.C, g.symbolic, g.factor ?? undefined, g.work);
     if (res.ok) g.factor = res.factor;
     else {
@@ -520,7 +530,7 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   let vrefP = -Infinity;
   let lamN = -Infinity;
   let lamP = -Infinity;
-  const { keyType, keyGate, keyBulk, keyFactor, railNodes, railTouch, uRail } = plan;
+  const { keyType, keyGate, keyBulk, keyFactor, railNodes, railTouch, y, rows } = plan;
   // Gate exponents: nfet (κ(Vg − Vb) + Vb)/U_T, pfet (κ(Vw − Vg) − Vw)/U_T.
   for (let k = 0; k < keyType.length; k++) {
     const b = keyBulk[k];
@@ -552,11 +562,18 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   // ln gs_c = ln i0 + Λ_c + ln u(Vref_c)
   plan.lnScale[0] = lnI0 + lamP + vrefP / ut;
   plan.lnScale[1] = lnI0 + lamN - vrefN / ut;
+  // Forward bias by more than the tolerance: nfet V < Vb − tol, pfet V > Vw + tol.
+  const { keyJunction } = plan;
+  for (let k = 0; k < keyType.length; k++) {
+    const b = keyBulk[k];
+    const vb = b >= 0 ? V[b] : 0;
+    keyJunction[k] = keyType[k] === N_TYPE ? Math.exp(-(vb - JUNCTION_TOLERANCE - vrefN) / ut) : Math.exp((vb + JUNCTION_TOLERANCE - vrefP) / ut);
+  }
   // û(rail q) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity.
   for (let q = 0; q < railNodes.length; q++) {
     const v = V[railNodes[q]];
-    uRail[2 * q] = Math.exp(-(v - vrefN) / ut);
-    uRail[2 * q + 1] = Math.exp((v - vrefP) / ut);
+    y[rows + 2 * q] = Math.exp(-(v - vrefN) / ut);
+    y[rows + 2 * q + 1] = Math.exp((v - vrefP) / ut);
   }
 }
 
@@ -565,52 +582,55 @@ function conductances(plan: LinearPlan, P: DeviceParams): void {
   const { pack, c, keyFactor } = plan;
   const m = c.length;
   const { size, w, l } = P;
-  if (size !== null) for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = size[d] * keyFactor[pack[q]];
-  else for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = (w[d] / l[d]) * keyFactor[pack[q]];
+  if (size !== null) for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = size[d] * keyFactor[pack[q] >> 1];
+  else for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = (w[d] / l[d]) * keyFactor[pack[q] >> 1];
 }
 
 /**
  * A forest's system: a device between two rows into the diagonal of both
  * and into off at the lower row (the child: its entry of L); a device from a
- * row to a rail into the row's diagonal and the rails' right-hand side.
+ * row to a rail into the row's diagonal and the rails' right-hand side (y
+ * beyond the rows holds the rails' û).
  */
-function assembleTree(pack: Int32Array, c: Float64Array, uRail: Float64Array, diag: Float64Array, off: Float64Array, rhs: Float64Array): void {
+function assembleTree(pack: Int32Array, c: Float64Array, y: Float64Array, diag: Float64Array, off: Float64Array, rhs: Float64Array): void {
   const m = c.length;
+  const rows = diag.length;
   for (let d = 0, q = 0; d < m; d++, q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
     if (a === b) continue;
     const g = c[d];
-    if (a >= 0) {
+    if (a < rows) {
       diag[a] += g;
-      if (b >= 0) {
+      if (b < rows) {
         diag[b] += g;
         off[a < b ? a : b] -= g;
-      } else rhs[a] += g * uRail[-1 - b];
-    } else if (b >= 0) {
+      } else rhs[a] += g * y[b];
+    } else if (b < rows) {
       diag[b] += g;
-      rhs[b] += g * uRail[-1 - a];
+      rhs[b] += g * y[a];
     }
   }
 }
 
 /** The general system into the permuted triangle's values cx (diagonals at diagPos, a device's entry at posOff). */
-function assembleGeneral(pack: Int32Array, c: Float64Array, uRail: Float64Array, diagPos: Int32Array, posOff: Int32Array, cx: Float64Array, rhs: Float64Array): void {
+function assembleGeneral(pack: Int32Array, c: Float64Array, y: Float64Array, diagPos: Int32Array, posOff: Int32Array, cx: Float64Array, rhs: Float64Array): void {
   const m = c.length;
+  const rows = diagPos.length;
   for (let d = 0, q = 0; d < m; d++, q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
     if (a === b) continue;
     const g = c[d];
-    if (a >= 0) {
+    if (a < rows) {
       cx[diagPos[a]] += g;
-      if (b >= 0) {
+      if (b < rows) {
         cx[diagPos[b]] += g;
         cx[posOff[d]] -= g;
-      } else rhs[a] += g * uRail[-1 - b];
-    } else if (b >= 0) {
+      } else rhs[a] += g * y[b];
+    } else if (b < rows) {
       cx[diagPos[b]] += g;
-      rhs[b] += g * uRail[-1 - a];
+      rhs[b] += g * y[a];
     }
   }
 }
@@ -642,7 +662,7 @@ function solveRows(plan: LinearPlan, y: Float64Array): void {
   if (refine > 0) {
     if (plan.r.length !== rows) plan.r = pool.takeF64(rows);
     if (plan.b.length !== rows) plan.b = pool.takeF64(rows);
-    plan.b.set(y);
+    plan.b.set(y.subarray(0, rows));
   }
   factorSolve(plan, y);
   const { r, b } = plan;
@@ -665,7 +685,7 @@ function factorSolve(plan: LinearPlan, y: Float64Array): void {
 
 /** out = C·y by row, from the devices (the matrix itself is overwritten by its factor). */
 function multiplyRows(plan: LinearPlan, y: Float64Array, out: Float64Array): void {
-  const { pack, c } = plan;
+  const { pack, c, rows } = plan;
   const m = c.length;
   out.fill(0);
   for (let d = 0, q = 0; d < m; d++, q += 3) {
@@ -673,12 +693,12 @@ function multiplyRows(plan: LinearPlan, y: Float64Array, out: Float64Array): voi
     const b = pack[q + 1];
     if (a === b) continue;
     const g = c[d];
-    if (a >= 0 && b >= 0) {
+    if (a < rows && b < rows) {
       const f = g * (y[a] - y[b]);
       out[a] += f;
       out[b] -= f;
-    } else if (a >= 0) out[a] += g * y[a];
-    else if (b >= 0) out[b] += g * y[b];
+    } else if (a < rows) out[a] += g * y[a];
+    else if (b < rows) out[b] += g * y[b];
   }
 }
 /**
@@ -781,53 +801,4 @@ function voltagesFromRows(rows: number, y: Float64Array, nodeAt: Int32Array, isN
     V[nodeAt[k]] = isNAt[k] ? vrefN - lu : vrefP + lu;
   }
   return worst;
-}
-
-/**
- * The per-node exponentials of the voltage-form device equation for the last
- * factorisation, scaled by gs_c (in scratch arrays of the plan, valid until
- * the next call): en[k] = gs_n·exp(−(V_k − Vref_n)/U_T),
- * ep[k] = gs_p·exp((V_k − Vref_p)/U_T) at the nodes channels of that type
- * touch; with plan.c = ĝ they give I_F = ĝ·e(source), I_R = ĝ·e(drain)
- * (LANGUAGE.md device equations). V must be the voltages the last
- * solveLinear wrote. At an internal node that exponential is the solved
- * pseudo-voltage û itself (V = Vref ∓ U_T·ln û), taken straight from the
- * solve when it is at hand; rails (and any other case) by the exponential.
- */
-export function pseudoCurrents(plan: LinearPlan, net: Network, V: Float64Array): { c: Float64Array; en: Float64Array; ep: Float64Array } | null {
-  const ut = net.settings.ut;
-  const lnP = plan.lnScale[0];
-  const lnN = plan.lnScale[1];
-  if (!(Math.abs(lnP) < 700 && Math.abs(lnN) < 700)) return null;
-  const nn = V.length;
-  if (plan.en.length !== nn) {
-    pool.give(plan.en, plan.ep);
-    plan.en = pool.takeF64(nn);
-    plan.ep = pool.takeF64(nn);
-  }
-  const { en, ep, rows, nodeAt, isNAt, railNodes, railTouch } = plan;
-  const vrefN = plan.vref[1];
-  const vrefP = plan.vref[0];
-  if (plan.solved) {
-    const y = plan.y;
-    const gsN = Math.exp(lnN);
-    const gsP = Math.exp(lnP);
-    for (let k = 0; k < rows; k++) {
-      if (isNAt[k]) en[nodeAt[k]] = gsN * y[k];
-      else ep[nodeAt[k]] = gsP * y[k];
-    }
-  } else {
-    for (let k = 0; k < rows; k++) {
-      const node = nodeAt[k];
-      if (isNAt[k]) en[node] = Math.exp(lnN - (V[node] - vrefN) / ut);
-      else ep[node] = Math.exp(lnP + (V[node] - vrefP) / ut);
-    }
-  }
-  for (let q = 0; q < railNodes.length; q++) {
-    const k = railNodes[q];
-    const t = railTouch[q];
-    if (t & 1) en[k] = Math.exp(lnN - (V[k] - vrefN) / ut);
-    if (t & 2) ep[k] = Math.exp(lnP + (V[k] - vrefP) / ut);
-  }
-  return { c: plan.c, en, ep };
 }

@@ -122,9 +122,9 @@ export interface RunResult {
 }
 
 /** Tolerance below which a junction counts as forward-biased, volts. */
-const JUNCTION_TOLERANCE = 1e-6;
+export const JUNCTION_TOLERANCE = 1e-6;
 /** Inversion coefficient above which the weak-inversion model no longer holds. */
-const WEAK_LIMIT = 0.1;
+export const WEAK_LIMIT = 0.1;
 
 export interface Evaluation {
   currents: Float64Array;
@@ -140,25 +140,10 @@ export interface Evaluation {
 }
 
 /**
- * Everything reported for one point, from node voltages V (every node) and
- * the device constants P, with the device equations in voltage form.
- * `kcl` (length = nodes) is scratch.
- */
-/**
- * With `pseudo` (linear class, weak model) the channel currents are
- * I_F = c·e(source), I_R = c·e(drain) from per-node exponentials of the
- * voltages (the same device equation, factored: see linear.ts pseudoCurrents).
- */
-export interface PseudoCurrents {
-  c: Float64Array;
-  en: Float64Array;
-  ep: Float64Array;
-}
-
-/**
- * Storage for one point's result arrays (zero-filled, never used for another
- * point): views into a slab shared by several points (see sweep.ts PointSlab).
- * ic is null when the evaluation needs none (no ispec).
+ * Storage for one point's result arrays: views into a slab shared by several
+ * retained points, fresh arrays, or one set reused point after point when the
+ * run streams its points (see sweep.ts). ic is null when the evaluation
+ * needs none (no ispec).
  */
 export interface PointStorage {
   currents: Float64Array;
@@ -167,7 +152,13 @@ export interface PointStorage {
   railCurrents: Float64Array;
 }
 
-export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array, pseudo?: PseudoCurrents | null, into?: PointStorage): Evaluation {
+/**
+ * Everything reported for one point, from node voltages V (every node) and
+ * the device constants P, with the device equations in voltage form (the
+ * Newton path's evaluation; the linear path evaluates from its pseudo-voltages
+ * in linear-eval.ts). `kcl` (length = nodes) is scratch.
+ */
+export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array, into?: PointStorage): Evaluation {
   const { devices, injects, nodes, settings } = net;
   const m = devices.count;
   const nn = nodes.names.length;
@@ -182,14 +173,7 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   entering.fill(0);
   const checkWeak = hasIc && settings.model === "weak";
   const st = evalStats;
-  deviceLoop(m, type, gate, source, drain, bulk, w, l, V, P, pseudo ?? null, hasIc, hasIc ? (ispec as number) : 0, checkWeak, 4 * settings.ut, currents, ic, saturated, entering, st);
-  const maxCurrent = st[S_MAX];
-  const junctionCount = st[S_JCOUNT];
-  const junctionFirst = st[S_JFIRST];
-  const junctionWorst = st[S_JWORST];
-  const invCount = st[S_ICOUNT];
-  const invFirst = st[S_IFIRST];
-  const invWorst = st[S_IWORST];
+  deviceLoop(m, type, gate, source, drain, bulk, w, l, V, P, hasIc, hasIc ? (ispec as number) : 0, checkWeak, 4 * settings.ut, currents, ic, saturated, entering, st);
   const { value: injValue, from: injFrom, to: injTo } = injects;
   for (let j = 0; j < injects.count; j++) {
     const v = injValue[j];
@@ -198,32 +182,38 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   }
   const railCurrents = into ? into.railCurrents : new Float64Array(nn);
   railLoop(nn, nodes.railValue, entering, railCurrents, st);
-  const residual = st[S_RESIDUAL];
-  const worstNode = st[S_WORST];
-  const warnings: SolverWarning[] = [];
-  if (junctionCount > 0) {
-    const where = type[junctionFirst] === 0 ? "bulk" : "well";
-    warnings.push(deviceWarning("junction", devices.names, junctionFirst, junctionCount, junctionWorst,
-      `source or drain beyond the ${where} (junction forward-biased by up to ${formatVolts(junctionWorst)}); the model has no junction current`));
-  }
-  if (invCount > 0) {
-    warnings.push(deviceWarning("inversion", devices.names, invFirst, invCount, invWorst,
-      `inversion coefficient up to ${invWorst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`));
-  }
-  return { currents, ic, saturated, railCurrents, residual, worstNode, maxCurrent, warnings };
+  return { currents, ic, saturated, railCurrents, residual: st[S_RESIDUAL], worstNode: st[S_WORST], maxCurrent: st[S_MAX], warnings: validityWarnings(net, st) };
 }
 
-/** Slots of evalStats, the scratch the loops below report into (one evaluation at a time: the core is synchronous). */
-const S_MAX = 0;
-const S_JCOUNT = 1;
-const S_JFIRST = 2;
-const S_JWORST = 3;
-const S_ICOUNT = 4;
-const S_IFIRST = 5;
-const S_IWORST = 6;
-const S_RESIDUAL = 7;
-const S_WORST = 8;
-const evalStats = new Float64Array(9);
+/** The junction and inversion warnings of a point from the counts in st (slots below). */
+export function validityWarnings(net: Network, st: Float64Array): SolverWarning[] {
+  const warnings: SolverWarning[] = [];
+  const { type, names } = net.devices;
+  if (st[S_JCOUNT] > 0) {
+    const first = st[S_JFIRST];
+    const where = type[first] === 0 ? "bulk" : "well";
+    warnings.push(deviceWarning("junction", names, first, st[S_JCOUNT], st[S_JWORST],
+      `source or drain beyond the ${where} (junction forward-biased by up to ${formatVolts(st[S_JWORST])}); the model has no junction current`));
+  }
+  if (st[S_ICOUNT] > 0) {
+    const worst = st[S_IWORST];
+    warnings.push(deviceWarning("inversion", names, st[S_IFIRST], st[S_ICOUNT], worst,
+      `inversion coefficient up to ${worst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`));
+  }
+  return warnings;
+}
+
+/** Slots of evalStats, the scratch the evaluation loops report into (one evaluation at a time: the core is synchronous). */
+export const S_MAX = 0;
+export const S_JCOUNT = 1;
+export const S_JFIRST = 2;
+export const S_JWORST = 3;
+export const S_ICOUNT = 4;
+export const S_IFIRST = 5;
+export const S_IWORST = 6;
+export const S_RESIDUAL = 7;
+export const S_WORST = 8;
+export const evalStats = new Float64Array(9);
 
 /**
  * Per device: current, KCL contributions (entering, accumulated), saturation,
@@ -244,7 +234,6 @@ function deviceLoop(
   l: Float64Array,
   V: Float64Array,
   P: DeviceParams,
-  pseudo: PseudoCurrents | null,
   hasIc: boolean,
   icScale: number,
   checkWeak: boolean,
@@ -262,82 +251,37 @@ function deviceLoop(
   let invCount = 0;
   let invFirst = -1;
   let invWorst = 0;
-  if (pseudo !== null) {
-    // iF = c·e(source), I = iF − c·e(drain); ic in pseudoIc (only when hasIc).
-    const pc = pseudo.c;
-    const pen = pseudo.en;
-    const pep = pseudo.ep;
-    for (let d = 0; d < m; d++) {
-      const isN = type[d] === N_TYPE;
-      const sg = isN ? 1 : -1;
-      const b = bulk[d];
-      const s = source[d];
-      const t = drain[d];
-      const vb = b >= 0 ? V[b] : 0;
-      const xs = sg * (V[s] - vb);
-      const xd = sg * (V[t] - vb);
-      const e = isN ? pen : pep;
-      const c = pc[d];
-      const i = c * e[s] - c * e[t];
-      currents[d] = i;
-      const a = Math.abs(i);
-      if (a > maxCurrent) maxCurrent = a;
-      entering[s] += sg * i;
-      entering[t] -= sg * i;
-      saturated[d] = xd - xs > satLimit ? 1 : 0;
-      // x < 0 at source or drain: the junction to the bulk/well is forward-biased.
-      const fwd = -Math.min(xs, xd);
-      if (fwd > JUNCTION_TOLERANCE) {
-        if (junctionFirst < 0) junctionFirst = d;
-        junctionCount++;
-        if (fwd > junctionWorst) junctionWorst = fwd;
-      }
-    }
+  const out = new Float64Array(4);
+  for (let d = 0; d < m; d++) {
+    const sg = type[d] === N_TYPE ? 1 : -1;
+    const b = bulk[d];
+    const s = source[d];
+    const t = drain[d];
+    const vb = b >= 0 ? V[b] : 0;
+    const xs = sg * (V[s] - vb);
+    const xd = sg * (V[t] - vb);
+    const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
+    const i = out[0];
+    currents[d] = i;
+    const a = Math.abs(i);
+    if (a > maxCurrent) maxCurrent = a;
+    entering[s] += sg * i;
+    entering[t] -= sg * i;
+    saturated[d] = xd - xs > satLimit ? 1 : 0;
     if (hasIc) {
-      for (let d = 0; d < m; d++) {
-        const iF = pc[d] * (type[d] === N_TYPE ? pen : pep)[source[d]];
-        const icd = iF / ((icScale * w[d]) / l[d]);
-        ic[d] = icd;
-        if (checkWeak && icd > WEAK_LIMIT) {
-          if (invFirst < 0) invFirst = d;
-          invCount++;
-          if (icd > invWorst) invWorst = icd;
-        }
+      const icd = iF / ((icScale * w[d]) / l[d]);
+      ic[d] = icd;
+      if (checkWeak && icd > WEAK_LIMIT) {
+        if (invFirst < 0) invFirst = d;
+        invCount++;
+        if (icd > invWorst) invWorst = icd;
       }
     }
-  } else {
-    const out = new Float64Array(4);
-    for (let d = 0; d < m; d++) {
-      const sg = type[d] === N_TYPE ? 1 : -1;
-      const b = bulk[d];
-      const s = source[d];
-      const t = drain[d];
-      const vb = b >= 0 ? V[b] : 0;
-      const xs = sg * (V[s] - vb);
-      const xd = sg * (V[t] - vb);
-      const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, out);
-      const i = out[0];
-      currents[d] = i;
-      const a = Math.abs(i);
-      if (a > maxCurrent) maxCurrent = a;
-      entering[s] += sg * i;
-      entering[t] -= sg * i;
-      saturated[d] = xd - xs > satLimit ? 1 : 0;
-      if (hasIc) {
-        const icd = iF / ((icScale * w[d]) / l[d]);
-        ic[d] = icd;
-        if (checkWeak && icd > WEAK_LIMIT) {
-          if (invFirst < 0) invFirst = d;
-          invCount++;
-          if (icd > invWorst) invWorst = icd;
-        }
-      }
-      const fwd = -Math.min(xs, xd);
-      if (fwd > JUNCTION_TOLERANCE) {
-        if (junctionFirst < 0) junctionFirst = d;
-        junctionCount++;
-        if (fwd > junctionWorst) junctionWorst = fwd;
-      }
+    const fwd = -Math.min(xs, xd);
+    if (fwd > JUNCTION_TOLERANCE) {
+      if (junctionFirst < 0) junctionFirst = d;
+      junctionCount++;
+      if (fwd > junctionWorst) junctionWorst = fwd;
     }
   }
   st[S_MAX] = maxCurrent;
@@ -372,7 +316,7 @@ function railLoop(nn: number, rv: Float64Array, entering: Float64Array, railCurr
 const noIcCache = new WeakMap<object, Float64Array>();
 
 /** The all-NaN inversion-coefficient array of a network's device table. */
-function noIc(net: Network): Float64Array {
+export function noIc(net: Network): Float64Array {
   let a = noIcCache.get(net.devices.type);
   if (!a || a.length !== net.devices.count) {
     a = new Float64Array(net.devices.count).fill(NaN);

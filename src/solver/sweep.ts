@@ -12,7 +12,8 @@ import type { Network } from "../lang/network";
 import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
-import { factorLinear, type LinearOptions, type LinearPlan, planLinear, pseudoCurrents, releaseLinear, solveLinear } from "./linear";
+import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear } from "./linear";
+import { evaluateLinear } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
 import { evaluate, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings } from "./results";
@@ -28,6 +29,12 @@ export interface SolveOptions extends LinearOptions {
   onPoint?(point: PointResult): void;
   /** Keep every point in RunResult.points (default true). */
   keepPoints?: boolean;
+  /**
+   * With keepPoints false: hand every point the same result arrays, overwritten
+   * by the next point (onPoint must copy what it keeps). Saves allocating and
+   * collecting a point's arrays (e.g. 165 kB for a 64 × 64 grid) per point.
+   */
+  reuseArrays?: boolean;
   /** "newton" solves linear-class networks by Newton too (for cross-checks). */
   method?: "auto" | "newton";
   /** Newton: go straight to source stepping (for tests of the continuation). */
@@ -155,7 +162,10 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
   const nn = net.nodes.names.length;
   const kcl = new Float64Array(nn);
   // ic storage in the slab whenever ispec is set at all (a swept setting may switch it per point; unused then).
-  const slab = keep ? new PointSlab(nn, net.devices.count, net.settings.ispec !== null || net.bindings.some((b) => b.target.kind === "setting")) : null;
+  const withIc = net.settings.ispec !== null || net.bindings.some((b) => b.target.kind === "setting");
+  const slab = keep ? new PointSlab(nn, net.devices.count, withIc) : null;
+  // One set of arrays for every point when the caller asked for it; else fresh ones per point.
+  const shared = !keep && opts.reuseArrays ? pointArrays(nn, net.devices.count, withIc) : null;
   let key: FactorKey | null = null;
   let pKey: FactorKey | null = null;
   let P: DeviceParams | null = null;
@@ -185,7 +195,7 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
           P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
           pKey = k;
         }
-        const slot = slab ? slab.next() : null;
+        const slot = slab ? slab.next() : (shared ?? (lplan ? pointArrays(nn, net.devices.count, withIc) : null));
         const V = slot ? slot.V : new Float64Array(nn);
         let ok = true;
         let error: string | null = null;
@@ -241,7 +251,7 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
           timings.solveMs += performance.now() - ts;
         }
         const te = performance.now();
-        const ev = evaluate(pnet, V, P, kcl, lplan && ok ? pseudoCurrents(lplan, pnet, V) : null, slot ? slot.store : undefined);
+        const ev = lplan && ok && slot ? evaluateLinear(lplan, pnet, V, slot.store) : evaluate(pnet, V, P, kcl, slot ? slot.store : undefined);
         const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
         for (const name in probes) probeValues[name].push(probes[name]);
         const point: PointResult = {
@@ -337,6 +347,14 @@ class PointSlab {
     this.at += this.bytes;
     return { V, store: { currents, ic, saturated, railCurrents } };
   }
+}
+
+/** Result arrays of one point (zero-filled). */
+function pointArrays(nn: number, m: number, withIc: boolean): { V: Float64Array; store: PointStorage } {
+  return {
+    V: new Float64Array(nn),
+    store: { currents: new Float64Array(m), ic: withIc ? new Float64Array(m) : null, saturated: new Uint8Array(m), railCurrents: new Float64Array(nn) },
+  };
 }
 
 function describePoint(overrides: Record<string, number>, sample: number | null): string {

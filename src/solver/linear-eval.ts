@@ -1,0 +1,211 @@
+/**
+ * The evaluation of a linear-class point from its solved pseudo-voltages:
+ * every device's current, saturation, inversion coefficient and junction
+ * check, every rail's current and the KCL residual — the same quantities as
+ * results.ts `evaluate`, from the same device equation (LANGUAGE.md):
+ *
+ *   I = i0·(W/L)·e^{−κ·dVT/U_T}·exp(κ·Vg/U_T)·(exp(−Vs/U_T) − exp(−Vd/U_T))
+ *     = gs_c·ĝ·(û_s − û_d)                              (linear.ts scaling)
+ *
+ * with û the solved pseudo-voltage of an internal node or of a rail (the
+ * plan's y, indexed by the packed device ends). The voltage form of the same check is exact in û:
+ *   saturated:   V_DS > 4·U_T  ⟺  û_d < e^{−4}·û_s   (pfet: V_SD, same form);
+ *   junction:    a source or drain beyond its bulk/well by more than the
+ *                tolerance  ⟺  max(û_s, û_d) above the key's threshold.
+ * No exponential or logarithm per device, and the loop reads the plan's
+ * packed ends (one device array) instead of the network's five.
+ */
+
+import type { Network } from "../lang/network";
+import type { LinearPlan } from "./linear";
+import { pool } from "./pool";
+import {
+  type Evaluation,
+  evalStats,
+  noIc,
+  type PointStorage,
+  S_ICOUNT,
+  S_IFIRST,
+  S_IWORST,
+  S_JCOUNT,
+  S_JFIRST,
+  S_JWORST,
+  S_MAX,
+  validityWarnings,
+  WEAK_LIMIT,
+} from "./results";
+
+/** e^{−4}: V_DS > 4·U_T in pseudo-voltages. */
+const E4 = Math.exp(-4);
+
+/**
+ * Evaluates the point the last successful solveLinear of `plan` solved
+ * (V: its node voltages) into `out`. railCurrents is NaN at internal nodes.
+ */
+export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, out: PointStorage): Evaluation {
+  const { devices, injects, settings } = net;
+  const m = devices.count;
+  const rows = plan.rows;
+  const ends = plan.y.length;
+  if (plan.ent.length !== ends) {
+    pool.give(plan.ent);
+    plan.ent = pool.takeF64(ends);
+  }
+  const ent = plan.ent;
+  ent.fill(0);
+  const ispec = settings.ispec;
+  const hasIc = ispec !== null;
+  const ic = hasIc && out.ic ? out.ic : noIc(net);
+  const st = evalStats;
+  st.fill(0);
+  st[S_JFIRST] = -1;
+  st[S_IFIRST] = -1;
+  const gsN = Math.exp(plan.lnScale[1]);
+  const gsP = Math.exp(plan.lnScale[0]);
+  st[S_MAX] = currentLoop(m, plan.pack, plan.c, plan.y, plan.keyJunction, gsN, gsP, out.currents, out.saturated, ent, st);
+  junctionWorst(plan, net, V, st);
+  if (hasIc) icLoop(m, plan.pack, plan.c, plan.y, gsN, gsP, devices.w, devices.l, ispec as number, ic, st);
+  // Injects: value amperes leave `from` and enter `to` (a rail's entry in its first polarity slot).
+  const { prow } = plan;
+  for (let j = 0; j < injects.count; j++) {
+    const v = injects.value[j];
+    const f = prow[injects.from[j]];
+    const t = prow[injects.to[j]];
+    ent[f >= 0 ? f : rows - 2 - 2 * f] -= v;
+    ent[t >= 0 ? t : rows - 2 - 2 * t] += v;
+  }
+  // A rail delivers what leaves it into the network; internal nodes: the KCL residual.
+  const railCurrents = out.railCurrents;
+  railCurrents.fill(NaN);
+  const railNodes = plan.railNodes;
+  for (let q = 0; q < railNodes.length; q++) railCurrents[railNodes[q]] = 0 - (ent[rows + 2 * q] + ent[rows + 2 * q + 1]);
+  let residual = 0;
+  let worst = -1;
+  for (let k = 0; k < rows; k++) {
+    const e = Math.abs(ent[k]);
+    if (e > residual || worst < 0) {
+      residual = e;
+      worst = k;
+    }
+  }
+  return {
+    currents: out.currents,
+    ic,
+    saturated: out.saturated,
+    railCurrents,
+    residual,
+    worstNode: worst < 0 ? -1 : plan.nodeAt[worst],
+    maxCurrent: st[S_MAX],
+    warnings: validityWarnings(net, st),
+  };
+}
+
+/**
+ * Currents and saturation of every device; the current entering each end
+ * (ent: rows, then two slots per rail): an nfet's current (drain → source) enters
+ * its source, a pfet's (source → drain) leaves it; devices whose source or
+ * drain is beyond the bulk/well (counted into st: first and count). Returns
+ * the largest |I|. One pass.
+ */
+function currentLoop(
+  m: number,
+  pack: Int32Array,
+  c: Float64Array,
+  y: Float64Array,
+  keyJunction: Float64Array,
+  gsN: number,
+  gsP: number,
+  currents: Float64Array,
+  saturated: Uint8Array,
+  ent: Float64Array,
+  st: Float64Array,
+): number {
+  let most = 0;
+  let first = -1;
+  let count = 0;
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    const kp = pack[q + 2];
+    const isN = (kp & 1) === 0;
+    const ua = y[a];
+    const ub = y[b];
+    const g = c[d] * (isN ? gsN : gsP);
+    const i = g * ua - g * ub;
+    currents[d] = i;
+    const abs = i < 0 ? -i : i;
+    if (abs > most) most = abs;
+    saturated[d] = ub < E4 * ua ? 1 : 0;
+    const into = isN ? i : -i;
+    ent[a] += into;
+    ent[b] -= into;
+    if ((ua > ub ? ua : ub) > keyJunction[kp >> 1]) {
+      if (first < 0) first = d;
+      count++;
+    }
+  }
+  st[S_JCOUNT] = count;
+  st[S_JFIRST] = first;
+  return most;
+}
+
+/**
+ * The forward bias in volts (from V) of the devices currentLoop flagged as
+ * beyond their bulk/well: the largest into st.
+ */
+function junctionWorst(plan: LinearPlan, net: Network, V: Float64Array, st: Float64Array): void {
+  const first = st[S_JFIRST];
+  if (st[S_JCOUNT] === 0 || first < 0) return;
+  const { pack, y, keyJunction, keyType, keyBulk } = plan;
+  const { source, drain } = net.devices;
+  const m = net.devices.count;
+  let worst = 0;
+  for (let d = first, q = 3 * first; d < m; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    const key = pack[q + 2] >> 1;
+    const ua = y[a];
+    const ub = y[b];
+    if (!((ua > ub ? ua : ub) > keyJunction[key])) continue;
+    const bk = keyBulk[key];
+    const vb = bk >= 0 ? V[bk] : 0;
+    const vs = V[source[d]];
+    const vd = V[drain[d]];
+    const fwd = keyType[key] === 0 ? vb - Math.min(vs, vd) : Math.max(vs, vd) - vb;
+    if (fwd > worst) worst = fwd;
+  }
+  st[S_JWORST] = worst;
+}
+
+/** Inversion coefficients I_F/(ispec·W/L) and the devices beyond weak inversion. */
+function icLoop(
+  m: number,
+  pack: Int32Array,
+  c: Float64Array,
+  y: Float64Array,
+  gsN: number,
+  gsP: number,
+  w: Float64Array,
+  l: Float64Array,
+  ispec: number,
+  ic: Float64Array,
+  st: Float64Array,
+): void {
+  let first = -1;
+  let count = 0;
+  let worst = 0;
+  for (let d = 0, q = 0; d < m; d++, q += 3) {
+    const ua = y[pack[q]];
+    const iF = c[d] * ((pack[q + 2] & 1) === 0 ? gsN : gsP) * ua;
+    const v = iF / ((ispec * w[d]) / l[d]);
+    ic[d] = v;
+    if (v > WEAK_LIMIT) {
+      if (first < 0) first = d;
+      count++;
+      if (v > worst) worst = v;
+    }
+  }
+  st[S_ICOUNT] = count;
+  st[S_IFIRST] = first;
+  st[S_IWORST] = worst;
+}
