@@ -79,4 +79,25 @@ describe("evaluation along an inject-only sweep", () => {
       expect(seen[k].solver.residual).toBe(kept[k].solver.residual);
     }
   });
+
+  it("with reuseArrays hands every point the same arrays, holding that point's values while onPoint runs", () => {
+    const kept = solveNetwork(mirror()).points;
+    const copies: { v: number[]; i: number[]; ic: number[]; s: number[]; r: number[]; arrays: Float64Array[] }[] = [];
+    solveNetwork(mirror(), {
+      keepPoints: false,
+      reuseArrays: true,
+      onPoint: (p) =>
+        copies.push({ v: Array.from(p.voltages), i: Array.from(p.currents), ic: Array.from(p.ic), s: Array.from(p.saturated), r: Array.from(p.railCurrents), arrays: [p.voltages, p.currents] }),
+    });
+    expect(copies.length).toBe(kept.length);
+    for (let k = 0; k < kept.length; k++) {
+      expect(copies[k].v).toEqual(Array.from(kept[k].voltages));
+      expect(copies[k].i).toEqual(Array.from(kept[k].currents));
+      expect(copies[k].ic).toEqual(Array.from(kept[k].ic));
+      expect(copies[k].s).toEqual(Array.from(kept[k].saturated));
+      expect(copies[k].r).toEqual(Array.from(kept[k].railCurrents));
+      expect(copies[k].arrays[0]).toBe(copies[0].arrays[0]);
+      expect(copies[k].arrays[1]).toBe(copies[0].arrays[1]);
+    }
+  });
 });

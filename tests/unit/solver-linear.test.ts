@@ -13,7 +13,8 @@ import { describe, expect, it } from "vitest";
 import { type Network, NFET } from "../../src/lang/network";
 import { NetworkBuilder } from "../../src/solver/build";
 import { classify } from "../../src/solver/classify";
-import type { PointResult } from "../../src/solver/results";
+import { deviceParams } from "../../src/solver/device";
+import { evaluate, type PointResult } from "../../src/solver/results";
 import { solveNetwork } from "../../src/solver/sweep";
 
 // math.js with exact zero tests: pseudo-voltages span ~30 decades, far beyond its default absolute tolerance.
@@ -213,6 +214,46 @@ describe("linear and Newton paths agree on linear-class networks", () => {
       const gross = grossCurrents(net, a);
       for (let d = 0; d < a.currents.length; d++) expect(Math.abs(a.currents[d] - b.currents[d])).toBeLessThanOrEqual(1e-8 * gross[d]);
     }
+  });
+});
+
+describe("the linear path's evaluation from pseudo-voltages", () => {
+  // The linear path reports currents, saturation, inversion coefficients,
+  // junction checks and rail currents from the solved pseudo-voltages
+  // (linear-eval.ts); here the same quantities come from the device equations
+  // in voltage form (LANGUAGE.md, model weak) at the voltages it reported.
+  it("equals the device equations at the reported voltages on random networks", () => {
+    let junctions = 0;
+    let inversions = 0;
+    for (let seed = 1; seed <= 60; seed++) {
+      const net = build(randomLinear(seed));
+      // A small specific current so that some devices leave weak inversion (PHYSICS.md §4).
+      net.settings.ispec = 1e-10;
+      const p = solveOne(net);
+      expect(p.solver.method).toBe("linear");
+      const ref = evaluate(net, p.voltages, deviceParams(net, null));
+      const gross = grossCurrents(net, p);
+      const { type, source, drain } = net.devices;
+      const ut = net.settings.ut;
+      for (let d = 0; d < net.devices.count; d++) {
+        expect(Math.abs(p.currents[d] - ref.currents[d])).toBeLessThanOrEqual(1e-9 * gross[d]);
+        expect(Math.abs(p.ic[d] - ref.ic[d])).toBeLessThanOrEqual(1e-9 * ref.ic[d]);
+        const vds = (type[d] === NFET ? 1 : -1) * (p.voltages[drain[d]] - p.voltages[source[d]]);
+        if (Math.abs(vds - 4 * ut) > 1e-9) expect(p.saturated[d]).toBe(ref.saturated[d]);
+      }
+      for (const r of net.rails) {
+        let scale = 0;
+        for (let d = 0; d < net.devices.count; d++) if (source[d] === r.node || drain[d] === r.node) scale += gross[d];
+        expect(Math.abs(p.railCurrents[r.node] - ref.railCurrents[r.node])).toBeLessThanOrEqual(1e-9 * scale + 1e-24);
+      }
+      expect(p.warnings.map((w) => [w.kind, w.device, w.count])).toEqual(ref.warnings.map((w) => [w.kind, w.device, w.count]));
+      for (let k = 0; k < p.warnings.length; k++) expect(Math.abs(p.warnings[k].worst - ref.warnings[k].worst)).toBeLessThanOrEqual(1e-9 * ref.warnings[k].worst + 1e-12);
+      junctions += p.warnings.filter((w) => w.kind === "junction").length;
+      inversions += p.warnings.filter((w) => w.kind === "inversion").length;
+    }
+    // The sample exercises both warnings.
+    expect(junctions).toBeGreaterThan(0);
+    expect(inversions).toBeGreaterThan(0);
   });
 });
 
