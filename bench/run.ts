@@ -4,7 +4,12 @@
  * Every workload is generated as .rill TEXT with for-loops and goes through
  * the language's `elaborate()` (timed as elaborate_ms: this doubles as the
  * parse + elaborate benchmark), then `solveNetwork()` with points streamed,
- * not retained. Phases are timed separately and summed over a sweep's points:
+ * not retained (one set of result arrays reused, as the run worker does).
+ * Each workload runs once untimed first (JIT compilation, and the thread's
+ * work-array pool filled, as in a server worker that has run before), then
+ * `reps` timed runs; the figures are their medians. `cold` is the same
+ * workload solved once in a fresh process (nothing compiled, no pool: what
+ * a first `rill solve` pays). Phases are timed separately and summed over a sweep's points:
  *   analyse_ms  graph, fill-reducing ordering, symbolic analysis (Newton: Jacobian pattern, ordering)
  *   factor_ms   conductances and numeric factorisation (zero for points that reuse it)
  *   solve_ms    right-hand side, triangular solves, back to voltages (Newton: the iterations)
@@ -43,6 +48,8 @@ interface Entry {
   cpu_ms: number;
   method: string;
   ordering: string;
+  /** The workload solved once in a fresh process (same phases; absent with --quick). */
+  cold?: { phases: Phases; total_ms: number };
 }
 
 /** Collects garbage when the script runs with --expose-gc (it re-runs itself so). */
@@ -128,6 +135,8 @@ function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } 
   const text = w.text();
   const samples: Sample[] = [];
   let net: Network | null = null;
+  // One untimed run first: compiled code and the work-array pool, as in a worker that has solved before.
+  solveTimed(elaborateOrThrow(text, w.name).net, 0);
   for (let r = 0; r < reps; r++) {
     net = null;
     collect();
@@ -137,7 +146,6 @@ function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } 
   }
   const m = medianSample(samples);
   const n = net as Network;
-  const round = (x: number) => Math.round(x * 100) / 100;
   return {
     net: n,
     entry: {
@@ -183,7 +191,36 @@ function independentSolves(net: Network): number {
   return total;
 }
 
+/** The workload solved once in a fresh process (this script with --cold NAME). */
+function coldRun(name: string): { phases: Phases; total_ms: number } | undefined {
+  const r = spawnSync(process.execPath, [...process.execArgv, process.argv[1], "--cold", name], {
+    encoding: "utf8",
+    env: { ...process.env, RILL_BENCH_CHILD: "1" },
+    maxBuffer: 1 << 20,
+  });
+  if (r.status !== 0) {
+    process.stderr.write(`bench: the cold run of ${name} failed: ${r.stderr}\n`);
+    return undefined;
+  }
+  return JSON.parse(r.stdout) as { phases: Phases; total_ms: number };
+}
+
+function round(x: number): number {
+  return Math.round(x * 100) / 100;
+}
+
 function main(argv: string[]): number {
+  const coldAt = argv.indexOf("--cold");
+  if (coldAt >= 0) {
+    const w = WORKLOADS.find((x) => x.name === argv[coldAt + 1]);
+    if (!w) return 2;
+    const el = elaborateOrThrow(w.text(), w.name);
+    const s = solveTimed(el.net, el.ms);
+    const phases = {} as Phases;
+    for (const k of Object.keys(s.phases) as (keyof Phases)[]) phases[k] = round(s.phases[k]);
+    process.stdout.write(JSON.stringify({ phases, total_ms: round(s.total) }));
+    return 0;
+  }
   const json = argv.includes("--json");
   const quick = argv.includes("--quick");
   const onlyAt = argv.indexOf("--only");
@@ -203,7 +240,9 @@ function main(argv: string[]): number {
   const nets = new Map<string, Network>();
   for (const w of selected) {
     const reps = repsOverride ?? (quick ? 1 : w.reps);
+    const cold = quick ? undefined : coldRun(w.name);
     const { entry, net } = runWorkload(w, reps);
+    if (cold) entry.cold = cold;
     entries.push(entry);
     nets.set(w.name, net);
     if (!json) process.stderr.write(`  ${w.name}: ${entry.total_ms.toFixed(0)} ms\n`);
@@ -225,7 +264,7 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   const out: string[] = [];
   const load = loadavg();
   out.push(`Machine: ${cpu[0]?.model ?? "unknown cpu"}, ${cpu.length} cores, node ${process.version}; load average ${load.map((x) => x.toFixed(1)).join(" ")} (other work on the machine inflates wall times)`);
-  out.push("Medians of several runs (ms); sweep phases summed over points; total = elaborate + solveNetwork wall time.");
+  out.push("Medians of several timed runs after one untimed run (ms); sweep phases summed over points; total = elaborate + solveNetwork wall time.");
   out.push("");
   out.push("| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total | solve CPU |");
   out.push("|---|---:|---:|---:|---|---|---:|---:|---:|---:|---:|---:|---:|");
@@ -234,6 +273,18 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
     out.push(`| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} | ${fmt(e.cpu_ms)} |`);
   }
   out.push("");
+  if (entries.some((e) => e.cold)) {
+    out.push("Cold: each workload solved once in a fresh process (no compiled code, no pooled work arrays):");
+    out.push("");
+    out.push("| workload | analyse | factor | solve | evaluate | analyse + factor + solve | total |");
+    out.push("|---|---:|---:|---:|---:|---:|---:|");
+    for (const e of entries) {
+      if (!e.cold) continue;
+      const p = e.cold.phases;
+      out.push(`| ${e.workload} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(p.analyse_ms + p.factor_ms + p.solve_ms)} | ${fmt(e.cold.total_ms)} |`);
+    }
+    out.push("");
+  }
   const by = new Map(entries.map((e) => [e.workload, e]));
   const solver = (e: Entry) => e.phases.analyse_ms + e.phases.factor_ms + e.phases.solve_ms;
   const goals: string[] = [];
