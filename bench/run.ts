@@ -5,20 +5,26 @@
  * the language's `elaborate()` (timed as elaborate_ms: this doubles as the
  * parse + elaborate benchmark), then `solveNetwork()` with points streamed,
  * not retained (one set of result arrays reused, as the run worker does).
- * Each workload runs once untimed first (JIT compilation, and the thread's
- * work-array pool filled, as in a server worker that has run before), then
- * `reps` timed runs; the figures are their medians. `cold` is the same
- * workload solved once in a fresh process (nothing compiled, no pool: what
- * a first `rill solve` pays). Phases are timed separately and summed over a sweep's points:
+ *
+ * How a workload is timed: its text is elaborated `reps` times (the median is
+ * elaborate_ms); the garbage of elaboration is then collected once, untimed
+ * (this script re-runs itself with --expose-gc), and the network is solved
+ * untimed until the compiled code is warm again (a forced collection throws
+ * away compiled code and type feedback: the next solves ran up to 5× slower,
+ * measured), at least twice and for at least 1.5 s; then `reps` timed solves
+ * of that network. Nothing is cached between solves but compiled code and the
+ * thread's work-array pool, so this is a server worker that has solved
+ * before. `cold` is the same workload elaborated and solved once in a fresh
+ * process (nothing compiled, no pool, elaboration's garbage still around:
+ * what a first `rill solve` pays). Phases are timed separately and summed over a sweep's points:
  *   analyse_ms  graph, fill-reducing ordering, symbolic analysis (Newton: Jacobian pattern, ordering)
  *   factor_ms   conductances and numeric factorisation (zero for points that reuse it)
  *   solve_ms    right-hand side, triangular solves, back to voltages (Newton: the iterations)
  *   evaluate_ms currents, inversion coefficients, rail currents, KCL residual from the device equations
  * total_ms = elaborate_ms + wall time of solveNetwork; cpu_ms = process CPU
  * time of solveNetwork (a better estimate of the unloaded time when other work
- * shares the machine). Each number is the median of several runs. The garbage
- * of one phase is collected before the next is timed (the script re-runs
- * itself with --expose-gc). With --json: one JSON array, an entry per workload.
+ * shares the machine). Each number is the median of several runs. With
+ * --json: one JSON array, an entry per workload.
  */
 
 import { spawnSync } from "node:child_process";
@@ -29,6 +35,12 @@ import { applyPoint } from "../src/lang/point";
 import { solveNetwork, type SolveOptions } from "../src/solver/index";
 import type { OrderingName } from "../src/solver/order";
 import { chainText, gridText, mirrorText } from "./workloads";
+
+/** Collects garbage when the script runs with --expose-gc (it re-runs itself so); never inside a timed region. */
+function collect(): void {
+  const g = (globalThis as { gc?: () => void }).gc;
+  if (g) g();
+}
 
 interface Phases {
   elaborate_ms: number;
@@ -50,12 +62,6 @@ interface Entry {
   ordering: string;
   /** The workload solved once in a fresh process (same phases; absent with --quick). */
   cold?: { phases: Phases; total_ms: number };
-}
-
-/** Collects garbage when the script runs with --expose-gc (it re-runs itself so). */
-function collect(): void {
-  const g = (globalThis as { gc?: () => void }).gc;
-  if (g) g();
 }
 
 interface Workload {
@@ -99,7 +105,6 @@ interface Sample {
 
 function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}): Sample {
   let ordering = "";
-  collect();
   const c0 = process.cpuUsage();
   const t0 = performance.now();
   const run = solveNetwork(net, {
@@ -133,17 +138,21 @@ function medianSample(samples: Sample[]): Sample {
 
 function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } {
   const text = w.text();
-  const samples: Sample[] = [];
+  const elaborateMs: number[] = [];
   let net: Network | null = null;
-  // One untimed run first: compiled code and the work-array pool, as in a worker that has solved before.
-  solveTimed(elaborateOrThrow(text, w.name).net, 0);
   for (let r = 0; r < reps; r++) {
     net = null;
-    collect();
     const el = elaborateOrThrow(text, w.name);
+    elaborateMs.push(el.ms);
     net = el.net;
-    samples.push(solveTimed(el.net, el.ms));
   }
+  const elab = median(elaborateMs);
+  // Elaboration's garbage goes before any solve is timed; then warm the compiled code up again.
+  collect();
+  const warm = performance.now();
+  for (let k = 0; k < 5 && (k < 2 || performance.now() - warm < 1500); k++) solveTimed(net as Network, 0);
+  const samples: Sample[] = [];
+  for (let r = 0; r < reps; r++) samples.push(solveTimed(net as Network, elab));
   const m = medianSample(samples);
   const n = net as Network;
   return {
@@ -195,7 +204,6 @@ function independentSolves(net: Network): number {
 function coldRun(name: string): { phases: Phases; total_ms: number } | undefined {
   const r = spawnSync(process.execPath, [...process.execArgv, process.argv[1], "--cold", name], {
     encoding: "utf8",
-    env: { ...process.env, RILL_BENCH_CHILD: "1" },
     maxBuffer: 1 << 20,
   });
   if (r.status !== 0) {
@@ -333,7 +341,7 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
 }
 
 if ((globalThis as { gc?: unknown }).gc === undefined && !process.env.RILL_BENCH_CHILD) {
-  // Re-run with --expose-gc so phases are timed without the previous phase's garbage.
+  // Re-run with --expose-gc, so that elaboration's garbage is collected before the solves are timed.
   const r = spawnSync(process.execPath, [...process.execArgv, "--expose-gc", process.argv[1], ...process.argv.slice(2)], {
     stdio: "inherit",
     env: { ...process.env, RILL_BENCH_CHILD: "1" },

@@ -14,6 +14,7 @@
  * pivot is a result (`ok: false` with the permuted column), not a throw.
  */
 
+import { type Alloc, heap } from "./pool";
 import type { Csc } from "./sparse";
 import type { Supernodes, Symbolic } from "./symbolic";
 
@@ -49,18 +50,25 @@ export interface CholeskyWork {
   head: Int32Array;
 }
 
-export function choleskyWork(S: Symbolic): CholeskyWork {
+export function choleskyWork(S: Symbolic, alloc: Alloc = heap): CholeskyWork {
   const n = S.n;
   const sn = S.supernodes;
   return {
-    x: new Float64Array(n),
-    stack: new Int32Array(n),
-    mark: new Int32Array(n),
-    next: new Int32Array(sn ? sn.count : n),
-    update: new Float64Array(sn ? sn.maxBlock : 0),
-    link: new Int32Array(sn ? sn.count : 0),
-    head: new Int32Array(sn ? sn.count : 0),
+    x: alloc.f64(n),
+    stack: alloc.i32(n),
+    mark: alloc.i32(n),
+    next: alloc.i32(sn ? sn.count : n),
+    update: alloc.f64(sn ? sn.maxBlock : 0),
+    link: alloc.i32(sn ? sn.count : 0),
+    head: alloc.i32(sn ? sn.count : 0),
   };
+}
+
+/** A factor of S's pattern to be filled by `cholesky` (as `into`), its arrays from alloc. */
+export function emptyFactor(S: Symbolic, alloc: Alloc = heap): Factor {
+  const sn = S.supernodes;
+  if (S.kernel === "supernodal" && sn) return { n: S.n, kernel: "supernodal", lp: new Int32Array(0), li: new Int32Array(0), lx: alloc.f64(sn.values), supernodes: sn };
+  return { n: S.n, kernel: "simple", lp: S.lp, li: alloc.i32(S.lnz), lx: alloc.f64(S.lnz), supernodes: null };
 }
 
 /**

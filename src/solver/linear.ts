@@ -42,10 +42,10 @@
 
 import { type Network, NFET } from "../lang/network";
 import { CLASS_N, type Classification } from "./classify";
-import { cholesky, type CholeskyWork, choleskyWork, type Factor, matrixTriangle } from "./cholesky";
+import { cholesky, type CholeskyWork, choleskyWork, emptyFactor, type Factor, matrixTriangle } from "./cholesky";
 import type { DeviceParams } from "./device";
-import { amd, natural, nestedDissection, type OrderingName } from "./order";
-import { pool } from "./pool";
+import { natural, order, type OrderingName } from "./order";
+import { Arena, pool } from "./pool";
 import { JUNCTION_TOLERANCE } from "./results";
 import { cumsum, dedupeAdjacency, type Csc } from "./sparse";
 import { analyse, type Kernel, naturalHasNoFill, type Symbolic } from "./symbolic";
@@ -97,6 +97,8 @@ interface GeneralParts {
   posOff: Int32Array;
   work: CholeskyWork;
   factor: Factor | null;
+  /** The analysis's, pattern's and factor's arrays (from the pool; given back with the plan). */
+  arena: Arena;
 }
 
 export interface LinearPlan {
@@ -241,11 +243,12 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
         deg.fill(0);
         degrees(pack, m, deg, null);
       }
-      const g = orderAndAnalyse(pack, m, rows, deg, opts);
+      const arena = new Arena();
+      const g = orderAndAnalyse(pack, m, rows, deg, opts, arena);
       pool.give(deg);
       ordering = g.ordering;
       pinv = g.symbolic.pinv;
-      general = { symbolic: g.symbolic, C: null as unknown as Csc, diagPos: EMPTY_I32, posOff: EMPTY_I32, work: choleskyWork(g.symbolic), factor: null };
+      general = { symbolic: g.symbolic, C: null as unknown as Csc, diagPos: EMPTY_I32, posOff: EMPTY_I32, work: choleskyWork(g.symbolic, arena), factor: null, arena };
     }
   }
   // Rows in elimination order from here on.
@@ -309,6 +312,10 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
 export function releaseLinear(plan: LinearPlan): void {
   pool.give(plan.prow, plan.nodeAt, plan.isNAt, plan.pack, plan.c, plan.ent, plan.rhsRails, plan.y, plan.b, plan.r, plan.sup.rest, ...plan.sup.z);
   if (plan.tree) pool.give(plan.tree.parent, plan.tree.diag, plan.tree.off);
+  if (plan.general) {
+    plan.general.arena.release();
+    plan.general.factor = null;
+  }
   plan.factored = false;
   plan.sup.z = [];
 }
@@ -411,11 +418,11 @@ function degrees(pack: Int32Array, m: number, deg: Int32Array, nbrXor: Int32Arra
  * The general structure: adjacency graph of the internal rows (natural rows
  * in pack; deg: their degrees, consumed), ordering and symbolic analysis.
  */
-function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Array, opts: LinearOptions): { ordering: OrderingName; symbolic: Symbolic } {
+function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Array, opts: LinearOptions, arena: Arena): { ordering: OrderingName; symbolic: Symbolic } {
   // Adjacency graph of the internal rows (both directions, duplicates merged).
-  const ap = new Int32Array(rows + 1);
+  const ap = arena.i32(rows + 1);
   cumsum(ap, deg, rows);
-  const idx = new Int32Array(ap[rows]);
+  const idx = arena.i32(ap[rows]);
   for (let q = 0; q < 3 * m; q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
@@ -424,14 +431,14 @@ function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Ar
       idx[deg[b]++] = a;
     }
   }
-  const adj = dedupeAdjacency(rows, ap, idx);
+  const adj = dedupeAdjacency(rows, ap, idx, arena);
   const choice = opts.ordering ?? "auto";
-  if (choice === "auto" && naturalHasNoFill(rows, adj.p, adj.i)) {
+  if (choice === "auto" && naturalHasNoFill(rows, adj.p, adj.i, arena)) {
     // The natural order when it has no fill at all (an O(nnz) test, exact).
-    return { ordering: "natural", symbolic: analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel === "supernodal" ? "supernodal" : "simple" }) };
+    return { ordering: "natural", symbolic: analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel === "supernodal" ? "supernodal" : "simple", alloc: arena }) };
   }
   const ordering = choice === "auto" ? DEFAULT_ORDERING : choice;
-  return { ordering, symbolic: analyse(rows, adj.p, adj.i, orderBy(ordering, rows, adj.p, adj.i), { kernel: opts.kernel }) };
+  return { ordering, symbolic: analyse(rows, adj.p, adj.i, order(ordering, rows, adj.p, adj.i, arena), { kernel: opts.kernel, alloc: arena }) };
 }
 
 /**
@@ -442,23 +449,24 @@ function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Ar
  */
 function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralParts): void {
   const lower = matrixTriangle(g.symbolic) === "lower";
-  const colCount = new Int32Array(rows).fill(1);
+  const { arena } = g;
+  const colCount = arena.i32(rows).fill(1);
   for (let q = 0; q < 3 * m; q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
     if (a >= rows || b >= rows || a === b) continue;
     colCount[lower ? (a < b ? a : b) : a > b ? a : b]++;
   }
-  const cp = new Int32Array(rows + 1);
+  const cp = arena.i32(rows + 1);
   cumsum(cp, colCount, rows);
-  const ci = new Int32Array(cp[rows]);
-  const cx = new Float64Array(cp[rows]);
-  const diagPos = new Int32Array(rows);
+  const ci = arena.i32(cp[rows]);
+  const cx = arena.f64(cp[rows]);
+  const diagPos = arena.i32(rows);
   for (let c = 0; c < rows; c++) {
     diagPos[c] = colCount[c]++;
     ci[diagPos[c]] = c;
   }
-  const posOff = new Int32Array(m).fill(-1);
+  const posOff = arena.i32(m).fill(-1);
   for (let d = 0, q = 0; d < m; d++, q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
@@ -471,10 +479,6 @@ function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralPa
   g.C = { m: rows, n: rows, p: cp, i: ci, x: cx };
   g.diagPos = diagPos;
   g.posOff = posOff;
-}
-
-function orderBy(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array): Int32Array {
-  return name === "amd" ? amd(n, ap, ai) : name === "nd" ? nestedDissection(n, ap, ai) : natural(n);
 }
 
 /**
@@ -502,7 +506,7 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
     const cx = g.C.x as Float64Array;
     cx.fill(0);
     assembleGeneral(plan.pack, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
-    const res = cholesky(g.C, g.symbolic, g.factor ?? undefined, g.work);
+    const res = cholesky(g.C, g.symbolic, g.factor ?? emptyFactor(g.symbolic, g.arena), g.work);
     if (res.ok) g.factor = res.factor;
     else {
       g.factor = null;

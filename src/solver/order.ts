@@ -18,6 +18,8 @@
  *   finished by reverse Cuthill–McKee.
  */
 
+import { type Alloc, heap } from "./pool";
+
 export type OrderingName = "amd" | "nd" | "natural";
 
 const VARIABLE = 0;
@@ -505,18 +507,18 @@ function peel(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, part:
  * and Cholesky work −16% / −5% / −2% at 64² / 256² / 512², supernodal
  * factorisation −15% at 64², unchanged at 256².
  */
-export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf = 16, maxIter = 1): Int32Array {
-  const perm = new Int32Array(n);
+export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf = 16, maxIter = 1, alloc: Alloc = heap): Int32Array {
+  const perm = alloc.i32(n);
   if (n === 0) return perm;
   // part[v]: id of v's part (vertices of sibling parts may share one: a
   // separator, marked -1, lies between them); fresh ids come from nextId.
-  const part = new Int32Array(n);
-  const levelStart = new Int32Array(n + 2);
+  const part = alloc.i32(n);
+  const levelStart = alloc.i32(n + 2);
   const peeled = peel(n, ap, ai, perm, part, levelStart);
-  const first = new Int32Array(n);
+  const first = alloc.i32(n);
   let core = 0;
   for (let v = 0; v < n; v++) if (part[v] === 0) first[core++] = v;
-  const lists = [first, new Int32Array(n)];
+  const lists = [first, alloc.i32(n)];
   let local: Int32Array | null = null;
   let nextId = 1;
   // Work stack, six entries per part: segment start, size, part id, first
@@ -669,12 +671,12 @@ export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf
 }
 
 /** The ordering called `name`. */
-export function order(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array): Int32Array {
+export function order(name: OrderingName, n: number, ap: Int32Array, ai: Int32Array, alloc: Alloc = heap): Int32Array {
   switch (name) {
     case "amd":
       return amd(n, ap, ai);
     case "nd":
-      return nestedDissection(n, ap, ai);
+      return nestedDissection(n, ap, ai, 16, 1, alloc);
     case "natural":
       return natural(n);
   }

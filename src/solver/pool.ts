@@ -118,3 +118,55 @@ export class ArrayPool {
 
 /** The pool of this thread. */
 export const pool = new ArrayPool();
+
+/**
+ * Where an algorithm gets its arrays: zero-filled, as `new Int32Array(n)`
+ * would give them. The analysis and factorisation functions take one
+ * (default `heap`), so a run can draw them from the pool instead.
+ */
+export interface Alloc {
+  i32(n: number): Int32Array;
+  f64(n: number): Float64Array;
+  u8(n: number): Uint8Array;
+}
+
+/** Fresh arrays from the JavaScript heap. */
+export const heap: Alloc = {
+  i32: (n) => new Int32Array(n),
+  f64: (n) => new Float64Array(n),
+  u8: (n) => new Uint8Array(n),
+};
+
+/**
+ * Zero-filled arrays from the pool, remembered so that `release` gives them
+ * all back at once (a run's analysis and factor live until the run ends).
+ */
+export class Arena implements Alloc {
+  private held: Typed[] = [];
+
+  constructor(private readonly from: ArrayPool = pool) {}
+
+  i32(n: number): Int32Array {
+    const a = this.from.zerosI32(n);
+    this.held.push(a);
+    return a;
+  }
+
+  f64(n: number): Float64Array {
+    const a = this.from.zerosF64(n);
+    this.held.push(a);
+    return a;
+  }
+
+  u8(n: number): Uint8Array {
+    const a = this.from.zerosU8(n);
+    this.held.push(a);
+    return a;
+  }
+
+  /** Gives every array back; none may be used afterwards. */
+  release(): void {
+    this.from.give(...this.held);
+    this.held = [];
+  }
+}

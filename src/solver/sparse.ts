@@ -9,6 +9,8 @@
  * - `x` is null for a pattern-only matrix.
  */
 
+import { type Alloc, heap } from "./pool";
+
 export interface Csc {
   /** Rows. */
   m: number;
@@ -197,9 +199,9 @@ export function symmetricAdjacency(A: Csc): { p: Int32Array; i: Int32Array } {
 }
 
 /** Removes repeated neighbours from each list of an adjacency structure (returns a compact copy). */
-export function dedupeAdjacency(n: number, p: Int32Array, idx: Int32Array): { p: Int32Array; i: Int32Array } {
-  const mark = new Int32Array(n).fill(-1);
-  const np = new Int32Array(n + 1);
+export function dedupeAdjacency(n: number, p: Int32Array, idx: Int32Array, alloc: Alloc = heap): { p: Int32Array; i: Int32Array } {
+  const mark = alloc.i32(n).fill(-1);
+  const np = alloc.i32(n + 1);
   let q = 0;
   for (let v = 0; v < n; v++) {
     np[v] = q;
@@ -211,7 +213,10 @@ export function dedupeAdjacency(n: number, p: Int32Array, idx: Int32Array): { p:
     }
   }
   np[n] = q;
-  return { p: np, i: q === idx.length ? idx : idx.slice(0, q) };
+  if (q === idx.length) return { p: np, i: idx };
+  const i = alloc.i32(q);
+  i.set(idx.subarray(0, q));
+  return { p: np, i };
 }
 
 /** pinv[p[k]] = k: the inverse of a permutation. */

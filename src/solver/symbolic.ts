@@ -13,6 +13,8 @@
  */
 
 
+import { type Alloc, heap } from "./pool";
+
 export type Kernel = "simple" | "supernodal";
 
 export interface Supernodes {
@@ -58,9 +60,9 @@ export interface Symbolic {
  * neighbour i < k (in permuted labels) climbs its current subtree root, with
  * path compression, and the root becomes a child of k.
  */
-export function etreeOfGraph(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, pinv: Int32Array): Int32Array {
-  const parent = new Int32Array(n);
-  const ancestor = new Int32Array(n);
+export function etreeOfGraph(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, pinv: Int32Array, alloc: Alloc = heap): Int32Array {
+  const parent = alloc.i32(n);
+  const ancestor = alloc.i32(n);
   for (let k = 0; k < n; k++) {
     parent[k] = -1;
     ancestor[k] = -1;
@@ -79,12 +81,12 @@ export function etreeOfGraph(n: number, ap: Int32Array, ai: Int32Array, perm: In
 }
 
 /** Postorder of a forest given by parent pointers (children visited in increasing order). */
-export function postorder(parent: Int32Array): Int32Array {
+export function postorder(parent: Int32Array, alloc: Alloc = heap): Int32Array {
   const n = parent.length;
-  const head = new Int32Array(n).fill(-1);
-  const next = new Int32Array(n);
-  const stack = new Int32Array(n);
-  const post = new Int32Array(n);
+  const head = alloc.i32(n).fill(-1);
+  const next = alloc.i32(n);
+  const stack = alloc.i32(n);
+  const post = alloc.i32(n);
   for (let j = n - 1; j >= 0; j--) {
     const pj = parent[j];
     if (pj === -1) continue;
@@ -118,12 +120,12 @@ export function postorder(parent: Int32Array): Int32Array {
  * sparse Cholesky factorization", SIAM J. Matrix Anal. Appl. 15(4), 1994).
  * Labels must already be postordered (so the postorder is the identity).
  */
-export function columnCounts(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, pinv: Int32Array, parent: Int32Array): Int32Array {
-  const delta = new Int32Array(n);
-  const first = new Int32Array(n).fill(-1);
-  const maxfirst = new Int32Array(n).fill(-1);
-  const prevleaf = new Int32Array(n).fill(-1);
-  const ancestor = new Int32Array(n);
+export function columnCounts(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, pinv: Int32Array, parent: Int32Array, alloc: Alloc = heap): Int32Array {
+  const delta = alloc.i32(n);
+  const first = alloc.i32(n).fill(-1);
+  const maxfirst = alloc.i32(n).fill(-1);
+  const prevleaf = alloc.i32(n).fill(-1);
+  const ancestor = alloc.i32(n);
   for (let i = 0; i < n; i++) ancestor[i] = i;
   for (let k = 0; k < n; k++) {
     let j = k;
@@ -168,8 +170,8 @@ export function columnCounts(n: number, ap: Int32Array, ai: Int32Array, perm: In
  * supernodal codes: always up to 4 columns, then zero fractions 0.8, 0.1,
  * 0.05 up to 16, 48 and beyond), so the dense kernels get wider blocks.
  */
-export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, pinv: Int32Array, parent: Int32Array, counts: Int32Array, relax = true): Supernodes {
-  const children = new Int32Array(n);
+export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, pinv: Int32Array, parent: Int32Array, counts: Int32Array, relax = true, alloc: Alloc = heap): Supernodes {
+  const children = alloc.i32(n);
   for (let j = 0; j < n; j++) if (parent[j] !== -1) children[parent[j]]++;
   const fstart: number[] = [];
   for (let j = 0; j < n; j++) {
@@ -178,15 +180,15 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
   }
   const nf = fstart.length;
   fstart.push(n);
-  const fof = new Int32Array(n);
+  const fof = alloc.i32(n);
   for (let s = 0; s < nf; s++) for (let j = fstart[s]; j < fstart[s + 1]; j++) fof[j] = s;
   // Relaxed amalgamation over the fundamental supernodal tree.
-  const gk = new Float64Array(nf);
-  const gnr = new Float64Array(nf);
-  const gstored = new Float64Array(nf);
-  const gzeros = new Float64Array(nf);
-  const gfirst = new Int32Array(nf);
-  const merged = new Uint8Array(nf);
+  const gk = alloc.f64(nf);
+  const gnr = alloc.f64(nf);
+  const gstored = alloc.f64(nf);
+  const gzeros = alloc.f64(nf);
+  const gfirst = alloc.i32(nf);
+  const merged = alloc.u8(nf);
   for (let s = 0; s < nf; s++) {
     const k = fstart[s + 1] - fstart[s];
     const nr = counts[fstart[s]];
@@ -218,8 +220,8 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
   }
   let ns = 0;
   for (let s = 0; s < nf; s++) if (!merged[s]) ns++;
-  const start = new Int32Array(ns + 1);
-  const nrOf = new Int32Array(ns);
+  const start = alloc.i32(ns + 1);
+  const nrOf = alloc.i32(ns);
   ns = 0;
   for (let s = 0; s < nf; s++) {
     if (merged[s]) continue;
@@ -228,10 +230,10 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
     ns++;
   }
   start[ns] = n;
-  const of = new Int32Array(n);
+  const of = alloc.i32(n);
   for (let s = 0; s < ns; s++) for (let j = start[s]; j < start[s + 1]; j++) of[j] = s;
-  const rowPtr = new Int32Array(ns + 1);
-  const valPtr = new Int32Array(ns + 1);
+  const rowPtr = alloc.i32(ns + 1);
+  const valPtr = alloc.i32(ns + 1);
   let nrows = 0;
   let nvals = 0;
   let maxBlock = 0;
@@ -247,8 +249,8 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
   rowPtr[ns] = nrows;
   valPtr[ns] = nvals;
   // Supernodal tree as child lists.
-  const head = new Int32Array(ns).fill(-1);
-  const next = new Int32Array(ns);
+  const head = alloc.i32(ns).fill(-1);
+  const next = alloc.i32(ns);
   for (let s = ns - 1; s >= 0; s--) {
     const pj = parent[start[s + 1] - 1];
     if (pj === -1) continue;
@@ -256,10 +258,10 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
     next[s] = head[ps];
     head[ps] = s;
   }
-  const rows = new Int32Array(nrows);
-  const mark = new Int32Array(n).fill(-1);
+  const rows = alloc.i32(nrows);
+  const mark = alloc.i32(n).fill(-1);
   // Start of each supernode's rows below its own columns (sorted at the end).
-  const below = new Int32Array(ns);
+  const below = alloc.i32(ns);
   for (let s = 0; s < ns; s++) {
     const f = start[s];
     const l = start[s + 1];
@@ -293,7 +295,7 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
     if (t !== rowPtr[s + 1]) throw new Error(`supernode ${s}: pattern has ${t - r0} rows, column counts say ${rowPtr[s + 1] - r0}`);
     below[s] = off;
   }
-  sortBelow(n, ns, rowPtr, below, rows);
+  sortBelow(n, ns, rowPtr, below, rows, alloc);
   return { count: ns, start, of, rowPtr, rows, valPtr, values: nvals, maxBlock };
 }
 
@@ -304,12 +306,13 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
  * row lists instead of one comparison sort per supernode (tens of thousands
  * of small sorts on a 256 × 256 grid).
  */
-function sortBelow(n: number, ns: number, rowPtr: Int32Array, below: Int32Array, rows: Int32Array): void {
-  const start = new Int32Array(n + 1);
+function sortBelow(n: number, ns: number, rowPtr: Int32Array, below: Int32Array, rows: Int32Array, alloc: Alloc): void {
+  const start = alloc.i32(n + 1);
   for (let s = 0; s < ns; s++) for (let q = below[s]; q < rowPtr[s + 1]; q++) start[rows[q] + 1]++;
   for (let i = 0; i < n; i++) start[i + 1] += start[i];
-  const owner = new Int32Array(start[n]);
-  const at = start.slice(0, n);
+  const owner = alloc.i32(start[n]);
+  const at = alloc.i32(n);
+  at.set(start.subarray(0, n));
   for (let s = 0; s < ns; s++) for (let q = below[s]; q < rowPtr[s + 1]; q++) owner[at[rows[q]]++] = s;
   for (let i = 0; i < n; i++) {
     for (let p = start[i]; p < start[i + 1]; p++) rows[below[owner[p]]++] = i;
@@ -324,9 +327,9 @@ function sortBelow(n: number, ns: number, rowPtr: Int32Array, below: Int32Array,
  * the checks are grouped by p, then each p verifies its group with one
  * marking of its own neighbours. Graph as for `analyse`.
  */
-export function naturalHasNoFill(n: number, ap: Int32Array, ai: Int32Array): boolean {
-  const first = new Int32Array(n);
-  const start = new Int32Array(n + 1);
+export function naturalHasNoFill(n: number, ap: Int32Array, ai: Int32Array, alloc: Alloc = heap): boolean {
+  const first = alloc.i32(n);
+  const start = alloc.i32(n + 1);
   for (let v = 0; v < n; v++) {
     let p = n;
     let later = 0;
@@ -341,8 +344,9 @@ export function naturalHasNoFill(n: number, ap: Int32Array, ai: Int32Array): boo
     if (later > 1) start[p + 1] += later - 1;
   }
   for (let v = 0; v < n; v++) start[v + 1] += start[v];
-  const checks = new Int32Array(start[n]);
-  const fill = start.slice(0, n);
+  const checks = alloc.i32(start[n]);
+  const fill = alloc.i32(n);
+  fill.set(start.subarray(0, n));
   for (let v = 0; v < n; v++) {
     const p = first[v];
     for (let q = ap[v]; q < ap[v + 1]; q++) {
@@ -363,14 +367,17 @@ export function naturalHasNoFill(n: number, ap: Int32Array, ai: Int32Array): boo
 export interface AnalyseOptions {
   /** Numeric kernel; "auto" picks supernodal when the factor has enough dense work per column. */
   kernel?: Kernel | "auto";
+  /** Where the analysis gets its arrays (default: the heap). */
+  alloc?: Alloc;
 }
 
 /** The full symbolic analysis of P·A·Pᵀ for the graph (ap, ai) and the fill-reducing order `order`. */
 export function analyse(n: number, ap: Int32Array, ai: Int32Array, order: Int32Array, opts: AnalyseOptions = {}): Symbolic {
-  const pinv0 = new Int32Array(n);
+  const alloc = opts.alloc ?? heap;
+  const pinv0 = alloc.i32(n);
   for (let k = 0; k < n; k++) pinv0[order[k]] = k;
-  const parent0 = etreeOfGraph(n, ap, ai, order, pinv0);
-  const post = postorder(parent0);
+  const parent0 = etreeOfGraph(n, ap, ai, order, pinv0, alloc);
+  const post = postorder(parent0, alloc);
   let identity = true;
   for (let t = 0; t < n && identity; t++) if (post[t] !== t) identity = false;
   let perm = order;
@@ -378,11 +385,11 @@ export function analyse(n: number, ap: Int32Array, ai: Int32Array, order: Int32A
   let parent = parent0;
   if (!identity) {
     // Relabel in postorder: new label t is old label post[t].
-    const postInv = new Int32Array(n);
+    const postInv = alloc.i32(n);
     for (let t = 0; t < n; t++) postInv[post[t]] = t;
-    perm = new Int32Array(n);
-    pinv = new Int32Array(n);
-    parent = new Int32Array(n);
+    perm = alloc.i32(n);
+    pinv = alloc.i32(n);
+    parent = alloc.i32(n);
     for (let t = 0; t < n; t++) {
       const old = post[t];
       perm[t] = order[old];
@@ -390,10 +397,10 @@ export function analyse(n: number, ap: Int32Array, ai: Int32Array, order: Int32A
       parent[t] = parent0[old] === -1 ? -1 : postInv[parent0[old]];
     }
   }
-  const counts = columnCounts(n, ap, ai, perm, pinv, parent);
+  const counts = columnCounts(n, ap, ai, perm, pinv, parent, alloc);
   let flops = 0;
   for (let j = 0; j < n; j++) flops += counts[j] * counts[j];
-  const lp = new Int32Array(n + 1);
+  const lp = alloc.i32(n + 1);
   let lnz = 0;
   for (let j = 0; j < n; j++) {
     lp[j] = lnz;
@@ -402,6 +409,6 @@ export function analyse(n: number, ap: Int32Array, ai: Int32Array, order: Int32A
   lp[n] = lnz;
   const want = opts.kernel ?? "auto";
   const kernel: Kernel = want === "auto" ? (flops > 40 * n ? "supernodal" : "simple") : want;
-  const supernodes = kernel === "supernodal" ? findSupernodes(n, ap, ai, perm, pinv, parent, counts) : null;
+  const supernodes = kernel === "supernodal" ? findSupernodes(n, ap, ai, perm, pinv, parent, counts, true, alloc) : null;
   return { n, perm, pinv, parent, counts, lp, lnz, flops, kernel, supernodes };
 }
