@@ -48,6 +48,35 @@ export interface CholeskyWork {
   update: Float64Array;
   link: Int32Array;
   head: Int32Array;
+  /** The supernodal kernel's update schedule for C's pattern (built by the first factorisation). */
+  schedule: Schedule | null;
+  alloc: Alloc;
+}
+
+/**
+ * Everything in the supernodal factorisation that depends on the pattern
+ * only, built once and replayed by every factorisation with the same
+ * Symbolic and the same pattern of C (a sweep refactors hundreds of times):
+ * which descendants update each supernode, in the order the left-looking
+ * algorithm applies them, with the positions of their rows inside the
+ * target, and where every entry of C goes in the factor's values.
+ */
+interface Schedule {
+  /** The updates of supernode s are records updStart[s] .. updStart[s+1)−1. */
+  updStart: Int32Array;
+  /**
+   * Five integers per update: descendant d, its first row p0 in the target,
+   * m1 (its rows among the target's columns), mu (its rows from p0 on), and
+   * where its row map starts in relMaps — or −1 − (first row's position)
+   * when its rows are consecutive rows of the target.
+   */
+  upd: Int32Array;
+  /** Row maps: positions inside the target block of the descendant's rows p0.. */
+  relMaps: Int32Array;
+  /** Per entry p of C: its position in the factor's values. */
+  cmap: Int32Array;
+  /** C's pattern the map was built for (the same object every time in a run). */
+  ci: Int32Array;
 }
 
 export function choleskyWork(S: Symbolic, alloc: Alloc = heap): CholeskyWork {
@@ -61,6 +90,8 @@ export function choleskyWork(S: Symbolic, alloc: Alloc = heap): CholeskyWork {
     update: alloc.f64(sn ? sn.maxBlock : 0),
     link: alloc.i32(sn ? sn.count : 0),
     head: alloc.i32(sn ? sn.count : 0),
+    schedule: null,
+    alloc,
   };
 }
 
@@ -135,19 +166,43 @@ function upLooking(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorR
   return { ok: true, factor: { n, kernel: "simple", lp, li, lx, supernodes: null } };
 }
 
-function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorResult {
+/** A growable Int32Array (the schedule's sizes are known only at its end). */
+class IntList {
+  data: Int32Array;
+  length = 0;
+  constructor(capacity: number) {
+    this.data = new Int32Array(Math.max(16, capacity));
+  }
+  push(v: number): void {
+    if (this.length === this.data.length) {
+      const grown = new Int32Array(2 * this.data.length);
+      grown.set(this.data);
+      this.data = grown;
+    }
+    this.data[this.length++] = v;
+  }
+  /** The values, copied into an array from alloc. */
+  finish(alloc: Alloc): Int32Array {
+    const out = alloc.i32(this.length);
+    out.set(this.data.subarray(0, this.length));
+    return out;
+  }
+}
+
+/** The update schedule of S's supernodes for C's pattern (see Schedule). */
+function buildSchedule(C: Csc, S: Symbolic, w: CholeskyWork): Schedule {
   const sn = S.supernodes as Supernodes;
   const { count: ns, start, of, rowPtr, rows, valPtr } = sn;
-  const lx = into ? into.lx : new Float64Array(sn.values);
   const rel = w.mark;
-  const relMap = w.stack;
-  const U = w.update;
   const ptr = w.next;
   const link = w.link;
   const head = w.head;
   const cp = C.p;
   const ci = C.i;
-  const cx = C.x as Float64Array;
+  const cmap = w.alloc.i32(cp[S.n]);
+  const updStart = w.alloc.i32(ns + 1);
+  const upd = new IntList(5 * ns);
+  const relMaps = new IntList(4 * ns);
   head.fill(-1);
   for (let s = 0; s < ns; s++) {
     const f = start[s];
@@ -157,44 +212,30 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
     const nr = rowPtr[s + 1] - r0;
     const v0 = valPtr[s];
     for (let t = 0; t < nr; t++) rel[rows[r0 + t]] = t;
-    lx.fill(0, v0, v0 + nr * k);
-    // Block = C(rows, f:l), lower triangle.
     for (let j = f; j < l; j++) {
       const col = v0 + (j - f) * nr;
-      for (let p = cp[j]; p < cp[j + 1]; p++) lx[col + rel[ci[p]]] += cx[p];
+      for (let p = cp[j]; p < cp[j + 1]; p++) cmap[p] = col + rel[ci[p]];
     }
-    // Block -= L(rows, d) · L(f:l, d)ᵀ for every descendant supernode d with rows in f:l.
+    updStart[s] = upd.length / 5;
     let d = head[s];
     head[s] = -1;
     while (d !== -1) {
       const dnext = link[d];
-      const kd = start[d + 1] - start[d];
       const rd0 = rowPtr[d];
       const nrd = rowPtr[d + 1] - rd0;
-      const vd0 = valPtr[d];
       const p0 = ptr[d];
       let p1 = p0;
       while (p1 < nrd && rows[rd0 + p1] < l) p1++;
-      const m1 = p1 - p0;
       const mu = nrd - p0;
-      // Positions of d's rows p0.. inside s's block, once per update.
-      for (let r = 0; r < mu; r++) relMap[r] = rel[rows[rd0 + p0 + r]];
-      const a0 = vd0 + p0;
-      if (relMap[mu - 1] - relMap[0] === mu - 1) {
-        // d's rows are consecutive rows of s (so its first m1 rows are consecutive columns): straight into the block.
-        outerProduct(lx, a0, nrd, kd, lx, a0, nrd, m1, mu, 0, lx, v0 + (rows[rd0 + p0] - f) * nr + relMap[0], nr, -1);
-      } else if (kd <= 4) {
-        // Few columns: each entry's whole sum, subtracted where it goes (one scattered write per entry).
-        scatterFew(lx, a0, nrd, kd, m1, mu, relMap, rows, rd0 + p0, v0, f, nr);
-      } else {
-        // U (mu × m1, lower part) = Ld(p0:nrd, :) · Ld(p0:p1, :)ᵀ, then scattered into the block.
-        U.fill(0, 0, mu * m1);
-        outerProduct(lx, a0, nrd, kd, lx, a0, nrd, m1, mu, 0, U, 0, mu, 1);
-        for (let c = 0; c < m1; c++) {
-          const dst = v0 + (rows[rd0 + p0 + c] - f) * nr;
-          const uc = c * mu;
-          for (let r = c; r < mu; r++) lx[dst + relMap[r]] -= U[uc + r];
-        }
+      upd.push(d);
+      upd.push(p0);
+      upd.push(p1 - p0);
+      upd.push(mu);
+      const first = rel[rows[rd0 + p0]];
+      if (rel[rows[rd0 + nrd - 1]] - first === mu - 1) upd.push(-1 - first);
+      else {
+        upd.push(relMaps.length);
+        for (let r = 0; r < mu; r++) relMaps.push(rel[rows[rd0 + p0 + r]]);
       }
       ptr[d] = p1;
       if (p1 < nrd) {
@@ -204,14 +245,63 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
       }
       d = dnext;
     }
-    const bad = panelCholesky(lx, v0, nr, k);
-    if (bad >= 0) return { ok: false, column: f + bad, pivot: lx[v0 + bad * nr + bad] };
     if (nr > k) {
       ptr[s] = k;
       const target = of[rows[r0 + k]];
       link[s] = head[target];
       head[target] = s;
     }
+  }
+  updStart[ns] = upd.length / 5;
+  return { updStart, upd: upd.finish(w.alloc), relMaps: relMaps.finish(w.alloc), cmap, ci };
+}
+
+function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorResult {
+  const sn = S.supernodes as Supernodes;
+  const { count: ns, start, rowPtr, rows, valPtr } = sn;
+  const lx = into ? into.lx : new Float64Array(sn.values);
+  if (w.schedule === null || w.schedule.ci !== C.i) w.schedule = buildSchedule(C, S, w);
+  const { updStart, upd, relMaps, cmap } = w.schedule;
+  const U = w.update;
+  // Every block starts as C's entries (zeros elsewhere).
+  const cx = C.x as Float64Array;
+  lx.fill(0);
+  for (let p = 0; p < cmap.length; p++) lx[cmap[p]] += cx[p];
+  for (let s = 0; s < ns; s++) {
+    const f = start[s];
+    const k = start[s + 1] - f;
+    const nr = rowPtr[s + 1] - rowPtr[s];
+    const v0 = valPtr[s];
+    // Block -= L(rows, d) · L(f:l, d)ᵀ for every descendant supernode d with rows in f:l.
+    for (let q = 5 * updStart[s]; q < 5 * updStart[s + 1]; q += 5) {
+      const d = upd[q];
+      const p0 = upd[q + 1];
+      const m1 = upd[q + 2];
+      const mu = upd[q + 3];
+      const at = upd[q + 4];
+      const kd = start[d + 1] - start[d];
+      const rd0 = rowPtr[d];
+      const nrd = rowPtr[d + 1] - rd0;
+      const a0 = valPtr[d] + p0;
+      if (at < 0) {
+        // d's rows are consecutive rows of s (so its first m1 rows are consecutive columns): straight into the block.
+        outerProduct(lx, a0, nrd, kd, lx, a0, nrd, m1, mu, 0, lx, v0 + (rows[rd0 + p0] - f) * nr - 1 - at, nr, -1);
+      } else if (kd <= 4) {
+        // Few columns: each entry's whole sum, subtracted where it goes (one scattered write per entry).
+        scatterFew(lx, a0, nrd, kd, m1, mu, relMaps, at, rows, rd0 + p0, v0, f, nr);
+      } else {
+        // U (mu × m1, lower part) = Ld(p0:nrd, :) · Ld(p0:p1, :)ᵀ, then scattered into the block.
+        U.fill(0, 0, mu * m1);
+        outerProduct(lx, a0, nrd, kd, lx, a0, nrd, m1, mu, 0, U, 0, mu, 1);
+        for (let c = 0; c < m1; c++) {
+          const dst = v0 + (rows[rd0 + p0 + c] - f) * nr;
+          const uc = c * mu;
+          for (let r = c; r < mu; r++) lx[dst + relMaps[at + r]] -= U[uc + r];
+        }
+      }
+    }
+    const bad = panelCholesky(lx, v0, nr, k);
+    if (bad >= 0) return { ok: false, column: f + bad, pivot: lx[v0 + bad * nr + bad] };
   }
   const empty = new Int32Array(0);
   return { ok: true, factor: { n: S.n, kernel: "supernodal", lp: empty, li: empty, lx, supernodes: sn } };
@@ -221,7 +311,7 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
  * The update of the block at v0 (columns from f, leading dimension nr) by a
  * descendant with kd ≤ 4 columns at a0 (leading dimension nrd): for each of
  * its first m1 rows c (a column of the block) and each row r ≥ c, the whole
- * Σ_t L(r,t)·L(c,t) is subtracted at the block's row relMap[r] — one
+ * Σ_t L(r,t)·L(c,t) is subtracted at the block's row relMap[at + r] — one
  * scattered write per entry instead of one per column. Columns beyond kd are
  * read as column 0 times a zero factor (the values are finite).
  */
@@ -233,6 +323,7 @@ function scatterFew(
   m1: number,
   mu: number,
   relMap: Int32Array,
+  at: number,
   rows: Int32Array,
   rowBase: number,
   v0: number,
@@ -249,7 +340,7 @@ function scatterFew(
     const l2 = kd > 2 ? lx[x2 + c] : 0;
     const l3 = kd > 3 ? lx[x3 + c] : 0;
     const dst = v0 + (rows[rowBase + c] - f) * nr;
-    for (let r = c; r < mu; r++) lx[dst + relMap[r]] -= lx[x0 + r] * l0 + lx[x1 + r] * l1 + lx[x2 + r] * l2 + lx[x3 + r] * l3;
+    for (let r = c; r < mu; r++) lx[dst + relMap[at + r]] -= lx[x0 + r] * l0 + lx[x1 + r] * l1 + lx[x2 + r] * l2 + lx[x3 + r] * l3;
   }
 }
 
