@@ -205,6 +205,19 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   let rails = 0;
   for (let k = 0; k < nn; k++) prow[k] = Number.isFinite(rv[k]) ? -1 - rails++ : rows++;
   const railTouch = new Uint8Array(rails);
+  // Node and channel type of each row, and the rail nodes, in natural row order (permuted below when needed).
+  let nodeAt = pool.takeI32(rows);
+  let isNAt = pool.takeU8(rows);
+  const railNodes = new Int32Array(rails);
+  const nodeClass = cls.nodeClass;
+  for (let k = 0; k < nn; k++) {
+    const r = prow[k];
+    if (r < 0) railNodes[-1 - r] = k;
+    else {
+      nodeAt[r] = k;
+      isNAt[r] = nodeClass[k] & CLASS_N ? 1 : 0;
+    }
+  }
   const choice = opts.ordering ?? "auto";
   const forestTried = choice === "auto" && (opts.kernel ?? "auto") === "auto";
   // The planning pass: packed ends and gate keys, the channel types on each
@@ -252,22 +265,18 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     }
   }
   // Rows in elimination order from here on.
-  const nodeAt = pool.takeI32(rows);
-  const isNAt = pool.takeU8(rows);
-  const railNodes = new Int32Array(nn - rows);
-  const nodeClass = cls.nodeClass;
-  for (let k = 0, q = 0; k < nn; k++) {
-    const r = prow[k];
-    if (r < 0) {
-      railNodes[q++] = k;
-      continue;
-    }
-    const pos = pinv === null ? r : pinv[r];
-    prow[k] = pos;
-    nodeAt[pos] = k;
-    isNAt[pos] = nodeClass[k] & CLASS_N ? 1 : 0;
-  }
   if (pinv !== null) {
+    const byRow = nodeAt;
+    const nByRow = isNAt;
+    nodeAt = pool.takeI32(rows);
+    isNAt = pool.takeU8(rows);
+    for (let r = 0; r < rows; r++) {
+      const pos = pinv[r];
+      nodeAt[pos] = byRow[r];
+      isNAt[pos] = nByRow[r];
+    }
+    pool.give(byRow, nByRow);
+    for (let k = 0; k < nn; k++) if (prow[k] >= 0) prow[k] = pinv[prow[k]];
     for (let q = 0; q < 3 * m; q += 3) {
       if (pack[q] < rows) pack[q] = pinv[pack[q]];
       if (pack[q + 1] < rows) pack[q + 1] = pinv[pack[q + 1]];
