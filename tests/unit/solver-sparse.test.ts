@@ -10,7 +10,7 @@ import { cholesky, matrixTriangle } from "../../src/solver/cholesky";
 import { lu, luSolve } from "../../src/solver/lu";
 import { amd, nestedDissection, natural } from "../../src/solver/order";
 import { compress, compressPattern, type Csc, multiply, permutedTriangle, symmetricAdjacency, transpose, Triplet } from "../../src/solver/sparse";
-import { analyse, etreeOfGraph } from "../../src/solver/symbolic";
+import { analyse, etreeOfGraph, type Kernel } from "../../src/solver/symbolic";
 import { cholSolve } from "../../src/solver/triangular";
 
 /** A small deterministic generator (not the mismatch PRNG): Park–Miller minimal standard. */
@@ -22,22 +22,35 @@ function lcg(seed: number): () => number {
   };
 }
 
+/** A weighted graph Laplacian under construction (full symmetric storage); `finish` adds a positive diagonal. */
+class Laplacian {
+  private readonly T: Triplet;
+  private readonly diag: Float64Array;
+  constructor(private readonly n: number) {
+    this.T = new Triplet(n, n);
+    this.diag = new Float64Array(n);
+  }
+  link(a: number, b: number, g: number): void {
+    this.T.push(a, b, -g);
+    this.T.push(b, a, -g);
+    this.diag[a] += g;
+    this.diag[b] += g;
+  }
+  finish(extra: () => number): Csc {
+    for (let k = 0; k < this.n; k++) this.T.push(k, k, this.diag[k] + extra());
+    return compress(this.T);
+  }
+}
+
 /** Random SPD matrix: a weighted graph Laplacian plus a positive diagonal (full symmetric storage). */
 function randomSpd(n: number, edges: number, rnd: () => number): Csc {
-  const T = new Triplet(n, n);
-  const diag = new Float64Array(n);
+  const L = new Laplacian(n);
   for (let e = 0; e < edges; e++) {
     const a = Math.floor(rnd() * n);
     const b = Math.floor(rnd() * n);
-    if (a === b) continue;
-    const g = Math.exp(8 * (rnd() - 0.5));
-    T.push(a, b, -g);
-    T.push(b, a, -g);
-    diag[a] += g;
-    diag[b] += g;
+    if (a !== b) L.link(a, b, Math.exp(8 * (rnd() - 0.5)));
   }
-  for (let k = 0; k < n; k++) T.push(k, k, diag[k] + 0.01 + rnd());
-  return compress(T);
+  return L.finish(() => 0.01 + rnd());
 }
 
 function dense(A: Csc): number[][] {
@@ -64,6 +77,30 @@ function scaledResidual(A: Csc, x: Float64Array, b: Float64Array): number {
     an = Math.max(an, s);
   }
   return rn / (an * xn + bn);
+}
+
+/**
+ * A x = b for a random b with each kernel and the natural, AMD and nested
+ * dissection orders: a scaled residual below 1e-14, and x equal to math.js
+ * lusolve's (dense LU with partial pivoting) to 1e-10.
+ */
+function expectLikeLusolve(A: Csc, kernels: readonly Kernel[], rnd: () => number): void {
+  const n = A.n;
+  const adj = symmetricAdjacency(A);
+  const b = Float64Array.from({ length: n }, () => rnd() - 0.5);
+  const ref = (lusolve(dense(A), Array.from(b)) as number[][]).map((r) => r[0]);
+  for (const kernel of kernels) {
+    for (const order of [natural(n), amd(n, adj.p, adj.i), nestedDissection(n, adj.p, adj.i, 8)]) {
+      const S = analyse(n, adj.p, adj.i, order, { kernel });
+      const F = cholesky(permutedTriangle(A, S.pinv, matrixTriangle(S)), S);
+      expect(F.ok).toBe(true);
+      if (!F.ok) continue;
+      const x = new Float64Array(n);
+      cholSolve(F.factor, S.perm, b, x, new Float64Array(n));
+      expect(scaledResidual(A, x, b)).toBeLessThan(1e-14);
+      for (let i = 0; i < n; i++) expect(Math.abs(x[i] - ref[i])).toBeLessThan(1e-10 * Math.max(1, Math.abs(ref[i])));
+    }
+  }
 }
 
 function grid(k: number): Csc {
@@ -164,22 +201,7 @@ describe("Cholesky against math.js lusolve", () => {
     const rnd = lcg(11);
     for (let trial = 0; trial < 12; trial++) {
       const n = 10 + Math.floor(rnd() * 50);
-      const A = randomSpd(n, 2 * n, rnd);
-      const adj = symmetricAdjacency(A);
-      const b = Float64Array.from({ length: n }, () => rnd() - 0.5);
-      const ref = (lusolve(dense(A), Array.from(b)) as number[][]).map((r) => r[0]);
-      for (const kernel of ["simple", "supernodal"] as const) {
-        for (const order of [natural(n), amd(n, adj.p, adj.i), nestedDissection(n, adj.p, adj.i, 8)]) {
-          const S = analyse(n, adj.p, adj.i, order, { kernel });
-          const F = cholesky(permutedTriangle(A, S.pinv, matrixTriangle(S)), S);
-          expect(F.ok).toBe(true);
-          if (!F.ok) continue;
-          const x = new Float64Array(n);
-          cholSolve(F.factor, S.perm, b, x, new Float64Array(n));
-          expect(scaledResidual(A, x, b)).toBeLessThan(1e-14);
-          for (let i = 0; i < n; i++) expect(Math.abs(x[i] - ref[i])).toBeLessThan(1e-10 * Math.max(1, Math.abs(ref[i])));
-        }
-      }
+      expectLikeLusolve(randomSpd(n, 2 * n, rnd), ["simple", "supernodal"], rnd);
     }
   });
 
@@ -192,31 +214,18 @@ describe("Cholesky against math.js lusolve", () => {
     const cases: Csc[] = [];
     for (const band of [1, 2, 3, 4, 5, 7, 9, 13, 19]) {
       const n = 40 + band * 3;
-      const T = new Triplet(n, n);
-      const diag = new Float64Array(n);
+      const L = new Laplacian(n);
       for (let i = 0; i < n; i++)
         for (let j = i + 1; j <= Math.min(n - 1, i + band); j++) {
           if (rnd() < 0.15) continue; // a few holes: non-consecutive row patterns
-          const g = Math.exp(4 * (rnd() - 0.5));
-          T.push(i, j, -g);
-          T.push(j, i, -g);
-          diag[i] += g;
-          diag[j] += g;
+          L.link(i, j, Math.exp(4 * (rnd() - 0.5)));
         }
-      for (let i = 0; i < n; i++) T.push(i, i, diag[i] + 0.05 + rnd());
-      cases.push(compress(T));
+      cases.push(L.finish(() => 0.05 + rnd()));
     }
     for (let trial = 0; trial < 4; trial++) {
       const n = 90;
-      const T = new Triplet(n, n);
-      const diag = new Float64Array(n);
-      const link = (i: number, j: number) => {
-        const g = Math.exp(4 * (rnd() - 0.5));
-        T.push(i, j, -g);
-        T.push(j, i, -g);
-        diag[i] += g;
-        diag[j] += g;
-      };
+      const L = new Laplacian(n);
+      const link = (i: number, j: number) => L.link(i, j, Math.exp(4 * (rnd() - 0.5)));
       for (let start = 0; start < n; ) {
         const size = 3 + Math.floor(rnd() * 15);
         for (let i = start; i < Math.min(n, start + size); i++) for (let j = i + 1; j < Math.min(n, start + size); j++) link(i, j);
@@ -227,25 +236,9 @@ describe("Cholesky against math.js lusolve", () => {
         const j = Math.floor(rnd() * n);
         if (i !== j) link(i, j);
       }
-      for (let i = 0; i < n; i++) T.push(i, i, diag[i] + 0.01 + rnd());
-      cases.push(compress(T));
+      cases.push(L.finish(() => 0.01 + rnd()));
     }
-    for (const A of cases) {
-      const n = A.n;
-      const adj = symmetricAdjacency(A);
-      const b = Float64Array.from({ length: n }, () => rnd() - 0.5);
-      const ref = (lusolve(dense(A), Array.from(b)) as number[][]).map((r) => r[0]);
-      for (const order of [natural(n), amd(n, adj.p, adj.i), nestedDissection(n, adj.p, adj.i, 8)]) {
-        const S = analyse(n, adj.p, adj.i, order, { kernel: "supernodal" });
-        const F = cholesky(permutedTriangle(A, S.pinv, matrixTriangle(S)), S);
-        expect(F.ok).toBe(true);
-        if (!F.ok) continue;
-        const x = new Float64Array(n);
-        cholSolve(F.factor, S.perm, b, x, new Float64Array(n));
-        expect(scaledResidual(A, x, b)).toBeLessThan(1e-14);
-        for (let i = 0; i < n; i++) expect(Math.abs(x[i] - ref[i])).toBeLessThan(1e-10 * Math.max(1, Math.abs(ref[i])));
-      }
-    }
+    for (const A of cases) expectLikeLusolve(A, ["supernodal"], rnd);
   });
 
   it("the supernodal kernel agrees with the simple one on a grid", () => {
