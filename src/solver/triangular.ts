@@ -50,6 +50,12 @@ function lsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): vo
     const r0 = rowPtr[s];
     const nr = rowPtr[s + 1] - r0;
     const v0 = valPtr[s];
+    if (k === 1) {
+      // One column (most supernodes of a mesh's separators' leaves): scatter straight from it.
+      const xj = (x[f] /= lx[v0]);
+      for (let r = 1; r < nr; r++) x[rows[r0 + r]] -= lx[v0 + r] * xj;
+      continue;
+    }
     // Dense triangle: x(f:f+k) = L(f:f+k, f:f+k) \ x(f:f+k).
     for (let c = 0; c < k; c++) {
       const col = v0 + c * nr;
@@ -89,6 +95,12 @@ function ltsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): v
     const r0 = rowPtr[s];
     const nr = rowPtr[s + 1] - r0;
     const v0 = valPtr[s];
+    if (k === 1) {
+      let sum = x[f];
+      for (let r = 1; r < nr; r++) sum -= lx[v0 + r] * x[rows[r0 + r]];
+      x[f] = sum / lx[v0];
+      continue;
+    }
     // Gather x(rows below) once; each column then takes a contiguous dot product with it.
     const nb = nr - k;
     const rk = r0 + k;
