@@ -13,6 +13,7 @@
  */
 
 import { type Network, NFET } from "../lang/network";
+import { pool } from "./pool";
 
 /** Polarity class of an internal node: none (only gates/injects), n, p, or both. */
 export const CLASS_NONE = 0;
@@ -121,15 +122,15 @@ function find(parent: Int32Array, x: number): number {
 function structuralProblems(net: Network): { node: number; message: string }[] {
   const { nodes, devices } = net;
   const nn = nodes.names.length;
-  const parent = new Int32Array(nn);
+  const parent = pool.takeI32(nn);
   for (let k = 0; k < nn; k++) parent[k] = k;
-  const channels = new Int32Array(nn);
+  const channels = pool.zerosI32(nn);
   unionChannels(devices.count, devices.source, devices.drain, parent, channels);
   const rv = nodes.railValue;
-  const hasRail = new Uint8Array(nn);
+  const hasRail = pool.zerosU8(nn);
   for (let k = 0; k < nn; k++) if (Number.isFinite(rv[k])) hasRail[find(parent, k)] = 1;
   const out: { node: number; message: string }[] = [];
-  const reported = new Uint8Array(nn);
+  const reported = pool.zerosU8(nn);
   for (let k = 0; k < nn && out.length < MAX_REASONS; k++) {
     if (Number.isFinite(rv[k])) continue;
     if (channels[k] === 0) {
@@ -142,6 +143,7 @@ function structuralProblems(net: Network): { node: number; message: string }[] {
       out.push({ node: k, message: `node ${nodes.names[k]} and the nodes joined to it by channels have no channel path to a rail (floating)` });
     }
   }
+  pool.give(parent, channels, hasRail, reported);
   return out;
 }
 

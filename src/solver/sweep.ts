@@ -15,6 +15,7 @@ import { type DeviceParams, deviceParams } from "./device";
 import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear } from "./linear";
 import { evaluateLinear } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
+import { pool } from "./pool";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
 import { evaluate, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings } from "./results";
 
@@ -31,8 +32,9 @@ export interface SolveOptions extends LinearOptions {
   keepPoints?: boolean;
   /**
    * With keepPoints false: hand every point the same result arrays, overwritten
-   * by the next point (onPoint must copy what it keeps). Saves allocating and
-   * collecting a point's arrays (e.g. 165 kB for a 64 × 64 grid) per point.
+   * by the next point and reused by other runs once this one ends (onPoint must
+   * copy what it keeps). Saves allocating and collecting a point's arrays
+   * (e.g. 165 kB for a 64 × 64 grid) per point.
    */
   reuseArrays?: boolean;
   /** "newton" solves linear-class networks by Newton too (for cross-checks). */
@@ -165,7 +167,8 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
   const withIc = net.settings.ispec !== null || net.bindings.some((b) => b.target.kind === "setting");
   const slab = keep ? new PointSlab(nn, net.devices.count, withIc) : null;
   // One set of arrays for every point when the caller asked for it; else fresh ones per point.
-  const shared = !keep && opts.reuseArrays ? pointArrays(nn, net.devices.count, withIc) : null;
+  // (From the thread's pool, given back when the run ends: the caller copies what it keeps while onPoint runs.)
+  const shared = !keep && opts.reuseArrays ? pooledPointArrays(nn, net.devices.count, withIc) : null;
   let key: FactorKey | null = null;
   let pKey: FactorKey | null = null;
   let P: DeviceParams | null = null;
@@ -298,6 +301,7 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
     }
   } finally {
     if (lplan) releaseLinear(lplan);
+    if (shared) pool.give(shared.V, shared.store.currents, shared.store.ic, shared.store.saturated, shared.store.railCurrents);
   }
   return result;
 }
@@ -347,6 +351,14 @@ class PointSlab {
     this.at += this.bytes;
     return { V, store: { currents, ic, saturated, railCurrents } };
   }
+}
+
+/** Result arrays of one point, zero-filled, from the thread's pool. */
+function pooledPointArrays(nn: number, m: number, withIc: boolean): { V: Float64Array; store: PointStorage } {
+  return {
+    V: pool.zerosF64(nn),
+    store: { currents: pool.zerosF64(m), ic: withIc ? pool.zerosF64(m) : null, saturated: pool.zerosU8(m), railCurrents: pool.zerosF64(nn) },
+  };
 }
 
 /** Result arrays of one point (zero-filled). */
