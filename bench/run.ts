@@ -71,12 +71,12 @@ interface Workload {
 }
 
 const WORKLOADS: Workload[] = [
-  { name: "chain1e6", text: () => chainText(1_000_000), reps: 3 },
+  { name: "chain1e6", text: () => chainText(1_000_000), reps: 5 },
   { name: "grid256", text: () => gridText("grid256", 256), reps: 5 },
-  { name: "grid512", text: () => gridText("grid512", 512), reps: 3 },
-  { name: "sweep_vh_grid64", text: () => gridText("sweep_vh", 64, "sweep vh from 0.6 to 0.8 points 1000\n"), reps: 3 },
+  { name: "grid512", text: () => gridText("grid512", 512), reps: 5 },
+  { name: "sweep_vh_grid64", text: () => gridText("sweep_vh", 64, "sweep vh from 0.6 to 0.8 points 1000\n"), reps: 5 },
   { name: "sweep_inject_grid64", text: () => gridText("sweep_inject", 64, "sweep iin from 100p to 10n points 1000 log\n"), reps: 5 },
-  { name: "mismatch200_grid64", text: () => gridText("mismatch200", 64, "mismatch runs 200 seed 1 avt 3m\n"), reps: 3 },
+  { name: "mismatch200_grid64", text: () => gridText("mismatch200", 64, "mismatch runs 200 seed 1 avt 3m\n"), reps: 5 },
   { name: "newton_mirror1000", text: () => mirrorText(1000), reps: 5 },
 ];
 
