@@ -62,6 +62,8 @@ interface Entry {
   ordering: string;
   /** The workload solved once in a fresh process (same phases; absent with --quick). */
   cold?: { phases: Phases; total_ms: number };
+  /** sweep_vh_grid64 only: its points solved one by one as 1,000 networks of their own, right after its timed runs (ms). */
+  independent_ms?: number;
 }
 
 interface Workload {
@@ -251,6 +253,8 @@ function main(argv: string[]): number {
     const cold = quick ? undefined : coldRun(w.name);
     const { entry, net } = runWorkload(w, reps);
     if (cold) entry.cold = cold;
+    // The vh goal's baseline, measured in the same state of the process as the sweep itself.
+    if (w.name === "sweep_vh_grid64") entry.independent_ms = round(independentSolves(net));
     entries.push(entry);
     nets.set(w.name, net);
     if (!json) process.stderr.write(`  ${w.name}: ${entry.total_ms.toFixed(0)} ms\n`);
@@ -301,10 +305,9 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   const ch = by.get("chain1e6");
   if (ch) goals.push(`chain1e6: analyse + factor + solve = ${fmt(solver(ch))} ms (goal ≤ 60 ms): ${solver(ch) <= 60 ? "met" : "NOT met"}`);
   const vh = by.get("sweep_vh_grid64");
-  const vhNet = nets.get("sweep_vh_grid64");
-  if (vh && vhNet) {
-    // One run of 1,000 independent solves (itself an aggregate of 1,000 timings).
-    const base = independentSolves(vhNet);
+  if (vh && vh.independent_ms !== undefined) {
+    // One run of 1,000 independent solves (itself an aggregate of 1,000 timings), right after the sweep's runs.
+    const base = vh.independent_ms;
     const sweepSolve = vh.total_ms - vh.phases.elaborate_ms;
     goals.push(`sweep_vh_grid64: ${fmt(sweepSolve)} ms against ${fmt(base)} ms for 1,000 independent solves = ${(sweepSolve / base).toFixed(3)}× (goal ≤ 0.25×): ${sweepSolve / base <= 0.25 ? "met" : "NOT met"}`);
   }
