@@ -89,6 +89,33 @@ test("sign up, create a workspace, invite a reviewer, accept from the dev mailbo
   expect(errors).toEqual([]);
 });
 
+test("an invitation is accepted by a browser that posts the form itself (no JavaScript)", async ({ page, browser }) => {
+  // Before React hydrates, the accept form posts natively; under the invite page's referrer policy that
+  // request must still carry its origin (a "no-referrer" policy made it Origin: null, refused with a 500).
+  const invitee = { name: "Noor Haddad", email: `noor.${stamp}@elsewhere.example`, password: "noor-chooses-this-3" };
+  await signIn(page, { email: "owner@larkspur.example", password: "larkspur-demo" });
+  await expect(page.getByTestId("signed-in-as")).toBeVisible();
+  await page.goto("/w/lm64-edge-row/members");
+  await page.getByLabel("E-mail address").fill(invitee.email);
+  await page.getByLabel("Role", { exact: true }).selectOption("viewer");
+  await page.getByRole("button", { name: "Send invitation" }).click();
+  await expect(page.getByRole("status")).toHaveText(`Invitation sent to ${invitee.email} as viewer.`);
+
+  const context = await browser.newContext({ javaScriptEnabled: false });
+  const r = await context.newPage();
+  await r.goto("/dev/mailbox");
+  await r.getByRole("listitem", { name: `Message to ${invitee.email}` }).getByRole("link", { name: /\/invite\// }).click();
+  await expect(r.getByRole("heading", { name: "Join LM-64 edge row" })).toBeVisible();
+  await r.getByLabel("Name").fill(invitee.name);
+  await r.getByLabel("Password", { exact: true }).fill(invitee.password);
+  await r.getByLabel("Repeat password").fill(invitee.password);
+  const accepted = r.waitForResponse((res) => res.request().method() === "POST" && res.url().includes("/invite/"));
+  await r.getByRole("button", { name: "Accept invitation" }).click();
+  expect((await accepted).status()).toBeLessThan(500);
+  await expect(r).toHaveURL(/\/w\/lm64-edge-row$/);
+  await context.close();
+});
+
 test("pages send anonymous visitors to sign in and back", async ({ page }) => {
   await page.goto("/w/lm64-edge-row/members");
   await expect(page).toHaveURL(/\/signin\?next=%2Fw%2Flm64-edge-row%2Fmembers$/);

@@ -6,8 +6,14 @@ import { PASSWORD_MIN } from "@/app/lib/passwords";
 import { AcceptForm } from "./accept-form";
 
 export const dynamic = "force-dynamic";
-// The token is in the URL: never send it on as a Referer.
-export const metadata: Metadata = { title: "Invitation", robots: { index: false }, referrer: "no-referrer" };
+/**
+ * The token in this page's URL goes to no other site ("same-origin"). Not
+ * "no-referrer": under that policy a browser sends `Origin: null` with the
+ * page's own form POST (Fetch standard, "serializing a request origin"), and
+ * the server action's origin check then refuses the accept before React has
+ * hydrated (a 500 the accounts browser test met now and then).
+ */
+export const metadata: Metadata = { title: "Invitation", robots: { index: false }, referrer: "same-origin" };
 
 const HEADINGS = {
   unknown: "Invitation not found",
