@@ -190,7 +190,6 @@ interface Superposition {
 }
 
 const EMPTY_F64 = new Float64Array(0);
-const EMPTY_I32 = new Int32Array(0);
 
 /** Structure of the linear system for `net` (which must be in the linear class, without structural problems). */
 export function planLinear(net: Network, cls: Classification, opts: LinearOptions = {}): LinearPlan {
@@ -227,7 +226,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   const up = pool.takeI32(rows);
   const keys = packDevices(net, rows, prow, railTouch, pack, forestTried ? up : null);
   let tree: TreeParts | null = null;
-  let general: GeneralParts | null = null;
+  let analysed: { symbolic: Symbolic; arena: Arena } | null = null;
   let ordering: OrderingName | "tree";
   let pinv: Int32Array | null = null;
   if (keys.naturalForest) {
@@ -261,7 +260,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
       pool.give(deg);
       ordering = g.ordering;
       pinv = g.symbolic.pinv;
-      general = { symbolic: g.symbolic, C: null as unknown as Csc, diagPos: EMPTY_I32, posOff: EMPTY_I32, work: choleskyWork(g.symbolic, arena), factor: null, arena };
+      analysed = { symbolic: g.symbolic, arena };
     }
   }
   // Rows in elimination order from here on.
@@ -283,7 +282,11 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     }
     if (tree) pool.give(pinv);
   }
-  if (general) triangleEntries(pack, m, rows, general);
+  let general: GeneralParts | null = null;
+  if (analysed) {
+    const { symbolic, arena } = analysed;
+    general = { symbolic, ...triangleEntries(pack, m, rows, symbolic, arena), work: choleskyWork(symbolic, arena), factor: null, arena };
+  }
   const ends = rows + 2 * rails;
   return {
     rows,
@@ -456,9 +459,8 @@ function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Ar
  * give repeated entries, which every kernel sums), in the column the
  * kernel's triangle puts it; each device's entry position.
  */
-function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralParts): void {
-  const lower = matrixTriangle(g.symbolic) === "lower";
-  const { arena } = g;
+function triangleEntries(pack: Int32Array, m: number, rows: number, symbolic: Symbolic, arena: Arena): { C: Csc; diagPos: Int32Array; posOff: Int32Array } {
+  const lower = matrixTriangle(symbolic) === "lower";
   const colCount = arena.i32(rows).fill(1);
   for (let q = 0; q < 3 * m; q += 3) {
     const a = pack[q];
@@ -485,9 +487,7 @@ function triangleEntries(pack: Int32Array, m: number, rows: number, g: GeneralPa
     ci[slot] = col === a ? b : a;
     posOff[d] = slot;
   }
-  g.C = { m: rows, n: rows, p: cp, i: ci, x: cx };
-  g.diagPos = diagPos;
-  g.posOff = posOff;
+  return { C: { m: rows, n: rows, p: cp, i: ci, x: cx }, diagPos, posOff };
 }
 
 /**
