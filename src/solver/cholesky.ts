@@ -83,8 +83,9 @@ export function choleskyWork(S: Symbolic, alloc: Alloc = heap): CholeskyWork {
   const n = S.n;
   const sn = S.supernodes;
   return {
-    x: alloc.f64(n),
-    stack: alloc.i32(n),
+    // The up-looking kernel's row accumulator and stack (the supernodal one keeps its maps in the schedule).
+    x: alloc.f64(sn ? 0 : n),
+    stack: alloc.i32(sn ? 0 : n),
     mark: alloc.i32(n),
     next: alloc.i32(sn ? sn.count : n),
     update: alloc.f64(sn ? sn.maxBlock : 0),
@@ -108,15 +109,15 @@ export function emptyFactor(S: Symbolic, alloc: Alloc = heap): Factor {
  */
 export function cholesky(C: Csc, S: Symbolic, into?: Factor, work?: CholeskyWork): FactorResult {
   const w = work ?? choleskyWork(S);
-  return S.kernel === "simple" ? upLooking(C, S, w, into) : supernodal(C, S, w, into);
+  const out = into ?? emptyFactor(S);
+  return S.kernel === "simple" ? upLooking(C, S, w, out) : supernodal(C, S, w, out);
 }
 
-function upLooking(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorResult {
+function upLooking(C: Csc, S: Symbolic, w: CholeskyWork, out: Factor): FactorResult {
   const n = S.n;
   const lp = S.lp;
   const parent = S.parent;
-  const li = into ? into.li : new Int32Array(S.lnz);
-  const lx = into ? into.lx : new Float64Array(S.lnz);
+  const { li, lx } = out;
   const { x, stack, mark } = w;
   // next[j]: next free slot in column j of L.
   const next = w.next;
@@ -163,7 +164,7 @@ function upLooking(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorR
     li[p] = k;
     lx[p] = Math.sqrt(d);
   }
-  return { ok: true, factor: { n, kernel: "simple", lp, li, lx, supernodes: null } };
+  return { ok: true, factor: out };
 }
 
 /** A growable Int32Array (the schedule's sizes are known only at its end). */
@@ -256,10 +257,10 @@ function buildSchedule(C: Csc, S: Symbolic, w: CholeskyWork): Schedule {
   return { updStart, upd: upd.finish(w.alloc), relMaps: relMaps.finish(w.alloc), cmap, ci };
 }
 
-function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): FactorResult {
+function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, out: Factor): FactorResult {
   const sn = S.supernodes as Supernodes;
   const { count: ns, start, rowPtr, rows, valPtr } = sn;
-  const lx = into ? into.lx : new Float64Array(sn.values);
+  const lx = out.lx;
   if (w.schedule === null || w.schedule.ci !== C.i) w.schedule = buildSchedule(C, S, w);
   const { updStart, upd, relMaps, cmap } = w.schedule;
   const U = w.update;
@@ -303,8 +304,7 @@ function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, into?: Factor): Factor
     const bad = panelCholesky(lx, v0, nr, k);
     if (bad >= 0) return { ok: false, column: f + bad, pivot: lx[v0 + bad * nr + bad] };
   }
-  const empty = new Int32Array(0);
-  return { ok: true, factor: { n: S.n, kernel: "supernodal", lp: empty, li: empty, lx, supernodes: sn } };
+  return { ok: true, factor: out };
 }
 
 /**

@@ -70,17 +70,6 @@ export class ArrayPool {
     }
   }
 
-  /** Bytes held idle (for tests and the benchmark's report). */
-  get bytesIdle(): number {
-    return this.idleBytes;
-  }
-
-  /** Forgets every idle buffer. */
-  clear(): void {
-    this.idle = [];
-    this.idleBytes = 0;
-  }
-
   private buffer(bytes: number): ArrayBuffer {
     if (bytes === 0) return new ArrayBuffer(0);
     const idle = this.idle;

@@ -143,30 +143,6 @@ export function multiply(A: Csc, x: Float64Array, y: Float64Array): void {
 }
 
 /**
- * y = A·x for a symmetric A of which one triangle is stored (either one: an
- * off-diagonal entry (i, j) stands for both (i, j) and (j, i)).
- */
-export function multiplySymmetric(A: Csc, x: Float64Array, y: Float64Array): void {
-  const { n, p, i } = A;
-  const ax = A.x as Float64Array;
-  y.fill(0);
-  for (let j = 0; j < n; j++) {
-    const xj = x[j];
-    let s = 0;
-    for (let k = p[j]; k < p[j + 1]; k++) {
-      const r = i[k];
-      const a = ax[k];
-      if (r === j) s += a * xj;
-      else {
-        y[r] += a * xj;
-        s += a * x[r];
-      }
-    }
-    y[j] += s;
-  }
-}
-
-/**
  * The adjacency graph of a square matrix's pattern: the pattern of A + Aᵀ with
  * the diagonal removed and duplicates merged. Columns are the vertices.
  */
@@ -217,14 +193,6 @@ export function dedupeAdjacency(n: number, p: Int32Array, idx: Int32Array, alloc
   const i = alloc.i32(q);
   i.set(idx.subarray(0, q));
   return { p: np, i };
-}
-
-/** pinv[p[k]] = k: the inverse of a permutation. */
-export function inversePermutation(p: Int32Array): Int32Array {
-  const n = p.length;
-  const pinv = new Int32Array(n);
-  for (let k = 0; k < n; k++) pinv[p[k]] = k;
-  return pinv;
 }
 
 /**

@@ -15,7 +15,7 @@ import { type DeviceParams, deviceParams } from "./device";
 import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear } from "./linear";
 import { evaluateLinear } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
-import { pool } from "./pool";
+import { type Alloc, Arena, heap } from "./pool";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
 import { evaluate, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings } from "./results";
 
@@ -168,7 +168,8 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
   const slab = keep ? new PointSlab(nn, net.devices.count, withIc) : null;
   // One set of arrays for every point when the caller asked for it; else fresh ones per point.
   // (From the thread's pool, given back when the run ends: the caller copies what it keeps while onPoint runs.)
-  const shared = !keep && opts.reuseArrays ? pooledPointArrays(nn, net.devices.count, withIc) : null;
+  const sharedArena = !keep && opts.reuseArrays ? new Arena() : null;
+  const shared = sharedArena ? pointArrays(nn, net.devices.count, withIc, sharedArena) : null;
   let key: FactorKey | null = null;
   let pKey: FactorKey | null = null;
   let P: DeviceParams | null = null;
@@ -301,7 +302,7 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
     }
   } finally {
     if (lplan) releaseLinear(lplan);
-    if (shared) pool.give(shared.V, shared.store.currents, shared.store.ic, shared.store.saturated, shared.store.railCurrents);
+    sharedArena?.release();
   }
   return result;
 }
@@ -353,19 +354,11 @@ class PointSlab {
   }
 }
 
-/** Result arrays of one point, zero-filled, from the thread's pool. */
-function pooledPointArrays(nn: number, m: number, withIc: boolean): { V: Float64Array; store: PointStorage } {
+/** Result arrays of one point (zero-filled), from alloc. */
+function pointArrays(nn: number, m: number, withIc: boolean, alloc: Alloc = heap): { V: Float64Array; store: PointStorage } {
   return {
-    V: pool.zerosF64(nn),
-    store: { currents: pool.zerosF64(m), ic: withIc ? pool.zerosF64(m) : null, saturated: pool.zerosU8(m), railCurrents: pool.zerosF64(nn) },
-  };
-}
-
-/** Result arrays of one point (zero-filled). */
-function pointArrays(nn: number, m: number, withIc: boolean): { V: Float64Array; store: PointStorage } {
-  return {
-    V: new Float64Array(nn),
-    store: { currents: new Float64Array(m), ic: withIc ? new Float64Array(m) : null, saturated: new Uint8Array(m), railCurrents: new Float64Array(nn) },
+    V: alloc.f64(nn),
+    store: { currents: alloc.f64(m), ic: withIc ? alloc.f64(m) : null, saturated: alloc.u8(m), railCurrents: alloc.f64(nn) },
   };
 }
 

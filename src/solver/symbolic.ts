@@ -32,6 +32,8 @@ export interface Supernodes {
   values: number;
   /** Largest rows·columns of any supernode (sizes the update workspace). */
   maxBlock: number;
+  /** Most rows any supernode has below its own columns (sizes the triangular solves' scratch). */
+  maxBelow: number;
 }
 
 export interface Symbolic {
@@ -237,6 +239,7 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
   let nrows = 0;
   let nvals = 0;
   let maxBlock = 0;
+  let maxBelow = 0;
   for (let s = 0; s < ns; s++) {
     rowPtr[s] = nrows;
     valPtr[s] = nvals;
@@ -245,6 +248,7 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
     nrows += nr;
     nvals += nr * k;
     if (nr * nr > maxBlock) maxBlock = nr * nr;
+    if (nr - k > maxBelow) maxBelow = nr - k;
   }
   rowPtr[ns] = nrows;
   valPtr[ns] = nvals;
@@ -296,7 +300,7 @@ export function findSupernodes(n: number, ap: Int32Array, ai: Int32Array, perm: 
     below[s] = off;
   }
   sortBelow(n, ns, rowPtr, below, rows, alloc);
-  return { count: ns, start, of, rowPtr, rows, valPtr, values: nvals, maxBlock };
+  return { count: ns, start, of, rowPtr, rows, valPtr, values: nvals, maxBlock, maxBelow };
 }
 
 /**

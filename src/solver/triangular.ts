@@ -41,9 +41,7 @@ function scratch(n: number): Float64Array {
 
 function lsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): void {
   const { count, start, rowPtr, rows, valPtr } = sn;
-  let most = 0;
-  for (let s = 0; s < count; s++) most = Math.max(most, rowPtr[s + 1] - rowPtr[s] - (start[s + 1] - start[s]));
-  const t = scratch(most);
+  const t = scratch(sn.maxBelow);
   for (let s = 0; s < count; s++) {
     const f = start[s];
     const k = start[s + 1] - f;
@@ -86,9 +84,7 @@ function lsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): vo
 
 function ltsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): void {
   const { count, start, rowPtr, rows, valPtr } = sn;
-  let most = 0;
-  for (let s = 0; s < count; s++) most = Math.max(most, rowPtr[s + 1] - rowPtr[s] - (start[s + 1] - start[s]));
-  const t = scratch(most);
+  const t = scratch(sn.maxBelow);
   for (let s = count - 1; s >= 0; s--) {
     const f = start[s];
     const k = start[s + 1] - f;
