@@ -199,24 +199,31 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   const m = devices.count;
   const rv = nodes.railValue;
   // prow: first the natural row of an internal node (node order), later its row in elimination order.
+  // In the same pass: node and channel type of each row, and the rail nodes, in natural row order
+  // (permuted below when needed; taken at the node count, a bound on both).
   const prow = pool.takeI32(nn);
+  let nodeAt = pool.takeI32(nn);
+  let isNAt = pool.takeU8(nn);
+  const railsAt = pool.takeI32(nn);
+  const nodeClass = cls.nodeClass;
   let rows = 0;
   let rails = 0;
-  for (let k = 0; k < nn; k++) prow[k] = Number.isFinite(rv[k]) ? -1 - rails++ : rows++;
-  const railTouch = new Uint8Array(rails);
-  // Node and channel type of each row, and the rail nodes, in natural row order (permuted below when needed).
-  let nodeAt = pool.takeI32(rows);
-  let isNAt = pool.takeU8(rows);
-  const railNodes = new Int32Array(rails);
-  const nodeClass = cls.nodeClass;
   for (let k = 0; k < nn; k++) {
-    const r = prow[k];
-    if (r < 0) railNodes[-1 - r] = k;
-    else {
-      nodeAt[r] = k;
-      isNAt[r] = nodeClass[k] & CLASS_N ? 1 : 0;
+    if (Number.isFinite(rv[k])) {
+      railsAt[rails] = k;
+      prow[k] = -1 - rails++;
+    } else {
+      nodeAt[rows] = k;
+      isNAt[rows] = nodeClass[k] & CLASS_N ? 1 : 0;
+      prow[k] = rows++;
     }
   }
+  // Views of the rows' length (give() returns the buffer underneath).
+  nodeAt = new Int32Array(nodeAt.buffer, 0, rows);
+  isNAt = new Uint8Array(isNAt.buffer, 0, rows);
+  const railTouch = new Uint8Array(rails);
+  const railNodes = railsAt.slice(0, rails);
+  pool.give(railsAt);
   const choice = opts.ordering ?? "auto";
   const forestTried = choice === "auto" && (opts.kernel ?? "auto") === "auto";
   // The planning pass: packed ends and gate keys, the channel types on each
@@ -500,21 +507,24 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   plan.solved = false;
   plan.factored = false;
   scaleAndGates(plan, net, P);
-  conductances(plan, P);
   const rhs = plan.rhsRails;
   rhs.fill(0);
+  // Sizes: (W/L)·e^{−κ·dVT/U_T} with mismatch, else W/L from w and l (no per-run array).
+  const { size, w, l } = P;
   let failed = -1;
   if (plan.tree) {
     const { parent, diag, off } = plan.tree;
     diag.fill(0);
     off.fill(0);
-    assembleTree(plan.pack, plan.c, plan.y, diag, off, rhs);
+    if (size) assembleTree(plan.pack, size, null, plan.keyFactor, plan.c, plan.y, diag, off, rhs);
+    else assembleTree(plan.pack, w, l, plan.keyFactor, plan.c, plan.y, diag, off, rhs);
     failed = treeFactor(parent, diag, off);
   } else {
     const g = plan.general as GeneralParts;
     const cx = g.C.x as Float64Array;
     cx.fill(0);
-    assembleGeneral(plan.pack, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
+    if (size) assembleGeneral(plan.pack, size, null, plan.keyFactor, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
+    else assembleGeneral(plan.pack, w, l, plan.keyFactor, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
     const res = cholesky(g.C, g.symbolic, g.factor ?? emptyFactor(g.symbolic, g.arena), g.work);
     if (res.ok) g.factor = res.factor;
     else {
@@ -590,29 +600,25 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   }
 }
 
-/** ĝ per device into plan.c: (W/L)·e^{−κ·dVT/U_T}·exp(e − Λ_c), the last factor being its gate key's. */
-function conductances(plan: LinearPlan, P: DeviceParams): void {
-  const { pack, c, keyFactor } = plan;
-  const m = c.length;
-  const { size, w, l } = P;
-  if (size !== null) for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = size[d] * keyFactor[pack[q] >> 1];
-  else for (let d = 0, q = 2; d < m; d++, q += 3) c[d] = (w[d] / l[d]) * keyFactor[pack[q] >> 1];
-}
-
 /**
- * A forest's system: a device between two rows into the diagonal of both
- * and into off at the lower row (the child: its entry of L); a device from a
- * row to a rail into the row's diagonal and the rails' right-hand side (y
- * beyond the rows holds the rails' û).
+ * A forest's system, with each device's ĝ = size·exp(e − Λ_c) (its gate
+ * key's factor) written into c on the way — one pass over the devices, as
+ * the device table is the largest thing a factorisation reads (size is
+ * (W/L)·e^{−κ·dVT/U_T} when `l` is null, else W/L from w = size and l).
+ * A device between two rows goes into the diagonal of both and into off at
+ * the lower row (the child: its entry of L); a device from a row to a rail
+ * into the row's diagonal and the rails' right-hand side (y beyond the rows
+ * holds the rails' û).
  */
-function assembleTree(pack: Int32Array, c: Float64Array, y: Float64Array, diag: Float64Array, off: Float64Array, rhs: Float64Array): void {
+function assembleTree(pack: Int32Array, size: Float64Array, l: Float64Array | null, keyFactor: Float64Array, c: Float64Array, y: Float64Array, diag: Float64Array, off: Float64Array, rhs: Float64Array): void {
   const m = c.length;
   const rows = diag.length;
   for (let d = 0, q = 0; d < m; d++, q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
+    const g = (l === null ? size[d] : size[d] / l[d]) * keyFactor[pack[q + 2] >> 1];
+    c[d] = g;
     if (a === b) continue;
-    const g = c[d];
     if (a < rows) {
       diag[a] += g;
       if (b < rows) {
@@ -632,14 +638,26 @@ function assembleTree(pack: Int32Array, c: Float64Array, y: Float64Array, diag: 
  * index maps more; kept as its own loop so that a forest needs no per-device
  * map (8 MB for the million-node chain) and each loop stays monomorphic.
  */
-function assembleGeneral(pack: Int32Array, c: Float64Array, y: Float64Array, diagPos: Int32Array, posOff: Int32Array, cx: Float64Array, rhs: Float64Array): void {
+function assembleGeneral(
+  pack: Int32Array,
+  size: Float64Array,
+  l: Float64Array | null,
+  keyFactor: Float64Array,
+  c: Float64Array,
+  y: Float64Array,
+  diagPos: Int32Array,
+  posOff: Int32Array,
+  cx: Float64Array,
+  rhs: Float64Array,
+): void {
   const m = c.length;
   const rows = diagPos.length;
   for (let d = 0, q = 0; d < m; d++, q += 3) {
     const a = pack[q];
     const b = pack[q + 1];
+    const g = (l === null ? size[d] : size[d] / l[d]) * keyFactor[pack[q + 2] >> 1];
+    c[d] = g;
     if (a === b) continue;
-    const g = c[d];
     if (a < rows) {
       cx[diagPos[a]] += g;
       if (b < rows) {
