@@ -19,8 +19,9 @@
  * what a first `rill solve` pays). Phases are timed separately and summed over a sweep's points:
  *   analyse_ms  graph, fill-reducing ordering, symbolic analysis (Newton: Jacobian pattern, ordering)
  *   factor_ms   conductances and numeric factorisation (zero for points that reuse it)
- *   solve_ms    right-hand side, triangular solves, back to voltages (Newton: the iterations)
- *   evaluate_ms currents, inversion coefficients, rail currents, KCL residual from the device equations
+ *   solve_ms    right-hand side, triangular solves or superposition, up to the pseudo-voltages (Newton: the iterations)
+ *   evaluate_ms back to node voltages (a logarithm per node: linear only), currents, inversion
+ *               coefficients, rail currents, KCL residual from the device equations
  * total_ms = elaborate_ms + wall time of solveNetwork; cpu_ms = process CPU
  * time of solveNetwork (a better estimate of the unloaded time when other work
  * shares the machine). Each number is the median of several runs. With

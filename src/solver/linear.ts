@@ -20,11 +20,14 @@
  * Phases: `planLinear` (structure: graph, ordering, symbolic analysis, the
  * device → matrix-entry maps) once per run; `factorLinear` (conductances,
  * numeric Cholesky, rail right-hand side) when rails, sizes, temperature,
- * kappa or mismatch change; `solveLinear` (injects, triangular solves — or
- * superposition of cached responses when only inject values changed — and
- * back to voltages) for every point; `evaluateLinear` (linear-eval.ts)
- * reports currents from the solved pseudo-voltages; `releaseLinear` gives
- * the plan's work arrays back to the thread's pool (pool.ts) when the run ends.
+ * kappa or mismatch change; `solvePseudo` (injects, triangular solves — or
+ * superposition of cached responses when only inject values changed) for
+ * every point; then the point's evaluation: `voltagesLinear` (back to node
+ * voltages, a logarithm per node, and the check that every û is positive)
+ * and `evaluateLinear` (linear-eval.ts: currents and flags from the solved
+ * pseudo-voltages); `solveLinear` is solvePseudo + voltagesLinear.
+ * `releaseLinear` gives the plan's work arrays back to the thread's pool
+ * (pool.ts) when the run ends.
  *
  * Two structures:
  * - a forest (chains, trees: no cycle, no parallel devices): leaves first,
@@ -160,7 +163,9 @@ export interface LinearPlan {
   r: Float64Array;
   /** Steps of iterative refinement per solve. */
   refine: number;
-  /** y holds the pseudo-voltages û of the last successful solveLinear since the last factorLinear. */
+  /** y holds the pseudo-voltages û of a solvePseudo since the last factorLinear. */
+  pseudo: boolean;
+  /** ... and they are all positive (voltagesLinear succeeded): the point can be evaluated. */
   solved: boolean;
   analyseMs: number;
 }
@@ -322,6 +327,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     b: EMPTY_F64,
     r: EMPTY_F64,
     refine: opts.refine ?? 0,
+    pseudo: false,
     solved: false,
     analyseMs: performance.now() - t0,
   };
@@ -336,6 +342,8 @@ export function releaseLinear(plan: LinearPlan): void {
     plan.general.factor = null;
   }
   plan.factored = false;
+  plan.pseudo = false;
+  plan.solved = false;
   plan.sup.z = [];
 }
 
@@ -504,6 +512,7 @@ function triangleEntries(pack: Int32Array, m: number, rows: number, symbolic: Sy
  * network; reported rather than thrown).
  */
 export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): { ok: true } | LinearFailure {
+  plan.pseudo = false;
   plan.solved = false;
   plan.factored = false;
   scaleAndGates(plan, net, P);
@@ -738,19 +747,27 @@ function multiplyRows(plan: LinearPlan, y: Float64Array, out: Float64Array): voi
   }
 }
 /**
- * Node voltages for the current inject values, with the last factorisation
- * (by superposition when only a few inject values changed since it).
- * Writes every node of V (rails at their values). û ≤ 0 at a node means its
- * current sources ask more than its channels can carry: no physical operating
- * point, reported naming the node.
+ * Node voltages for the current inject values, with the last factorisation:
+ * solvePseudo, then voltagesLinear.
  */
 export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
-  if (!plan.factored) throw new Error("solveLinear: no factorisation");
+  solvePseudo(plan, net);
+  return voltagesLinear(plan, net, V);
+}
+
+/**
+ * The linear solve proper: the pseudo-voltages û of every row into plan.y for
+ * the current inject values, with the last factorisation (by superposition
+ * when only a few inject values changed since it). Their mapping back to
+ * node voltages (a logarithm per node) is voltagesLinear's.
+ */
+export function solvePseudo(plan: LinearPlan, net: Network): void {
+  if (!plan.factored) throw new Error("solvePseudo: no factorisation");
+  plan.pseudo = false;
   plan.solved = false;
-  const { rows, isNAt, nodeAt } = plan;
-  const { injects, nodes, settings } = net;
+  const rows = plan.rows;
+  const { injects } = net;
   const values = injects.value;
-  const ut = settings.ut;
   const y = plan.y;
   const sup = plan.sup;
   const all = (j: number) => values[j];
@@ -798,9 +815,22 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
       }
     }
   }
+  plan.pseudo = true;
+}
+
+/**
+ * Node voltages V = Vref ∓ U_T·ln û from the pseudo-voltages of the last
+ * solvePseudo; writes every node of V (rails at their values). û ≤ 0 at a
+ * node means its current sources ask more than its channels can carry: no
+ * physical operating point, reported naming the node.
+ */
+export function voltagesLinear(plan: LinearPlan, net: Network, V: Float64Array): { ok: true } | LinearFailure {
+  if (!plan.pseudo) throw new Error("voltagesLinear: no solve since the last factorisation");
+  const { rows, isNAt, nodeAt, y } = plan;
+  const { nodes, settings } = net;
   const vrefN = plan.vref[1];
   const vrefP = plan.vref[0];
-  const worst = voltagesFromRows(rows, y, nodeAt, isNAt, vrefN, vrefP, ut, V);
+  const worst = voltagesFromRows(rows, y, nodeAt, isNAt, vrefN, vrefP, settings.ut, V);
   const rv = nodes.railValue;
   const railNodes = plan.railNodes;
   for (let q = 0; q < railNodes.length; q++) V[railNodes[q]] = rv[railNodes[q]];

@@ -96,9 +96,9 @@ export interface RunTimings {
   analyseMs: number;
   /** Linear: conductances and numeric factorisation (zero for a point that reuses it). Newton: the start. */
   factorMs: number;
-  /** Linear: right-hand side, triangular solves, voltages. Newton: the iterations. */
+  /** Linear: right-hand side and triangular solves (or superposition), up to the pseudo-voltages. Newton: the iterations. */
   solveMs: number;
-  /** Currents, inversion coefficients, rail currents, KCL residual, probes. */
+  /** Linear: node voltages from the pseudo-voltages (a logarithm per node). Both: currents, inversion coefficients, rail currents, KCL residual, probes. */
   evaluateMs: number;
 }
 

@@ -12,7 +12,7 @@ import type { Network } from "../lang/network";
 import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
-import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear } from "./linear";
+import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear, solvePseudo, voltagesLinear } from "./linear";
 import { evaluateLinear } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
 import { type Alloc, Arena, heap } from "./pool";
@@ -221,14 +221,8 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
           }
           const ts = performance.now();
           timings.factorMs += ts - tf;
-          if (ok) {
-            const r = solveLinear(lplan, pnet, V);
-            if (!r.ok) {
-              ok = false;
-              error = r.message;
-              failNode = r.node;
-            }
-          }
+          // The linear solve proper (pseudo-voltages); their mapping to voltages belongs to the evaluation below.
+          if (ok) solvePseudo(lplan, pnet);
           timings.solveMs += performance.now() - ts;
         } else if (nplan) {
           if (previous) V.set(previous);
@@ -255,6 +249,14 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
           timings.solveMs += performance.now() - ts;
         }
         const te = performance.now();
+        if (lplan && ok) {
+          const r = voltagesLinear(lplan, pnet, V);
+          if (!r.ok) {
+            ok = false;
+            error = r.message;
+            failNode = r.node;
+          }
+        }
         const ev = lplan && ok && slot ? evaluateLinear(lplan, pnet, V, slot.store) : evaluate(pnet, V, P, kcl, slot ? slot.store : undefined);
         const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
         for (const name in probes) probeValues[name].push(probes[name]);
