@@ -62,7 +62,7 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
   st[S_IFIRST] = -1;
   const gsN = Math.exp(plan.lnScale[1]);
   const gsP = Math.exp(plan.lnScale[0]);
-  st[S_MAX] = currentLoop(m, plan.pack, plan.c, plan.y, plan.keyJunction, gsN, gsP, out.currents, out.saturated, ent, st);
+  st[S_MAX] = currentLoop(m, plan.pack, plan.c, plan.y, plan.keyJunction, junctionPossible(plan), gsN, gsP, out.currents, out.saturated, ent, st);
   junctionWorst(plan, net, V, st);
   if (hasIc) icLoop(m, plan.pack, plan.c, plan.y, gsN, gsP, devices.w, devices.l, ispec as number, ic, st);
   // Injects: value amperes leave `from` and enter `to` (a rail's entry in its first polarity slot).
@@ -101,11 +101,29 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
 }
 
 /**
+ * Whether any device can have a source or drain beyond its bulk/well: some
+ * end's û above the lowest threshold of any key (one pass over the rows and
+ * rail slots; usually no, and then the per-device test is skipped).
+ */
+function junctionPossible(plan: LinearPlan): boolean {
+  const { y, keyJunction, rows, railTouch } = plan;
+  let lowest = Infinity;
+  for (let k = 0; k < keyJunction.length; k++) if (keyJunction[k] < lowest) lowest = keyJunction[k];
+  for (let e = 0; e < rows; e++) if (y[e] > lowest) return true;
+  // A rail's slot for polarity p is some device's end only when a channel of that type touches the rail.
+  for (let q = 0; q < railTouch.length; q++) {
+    if (railTouch[q] & 1 && y[rows + 2 * q] > lowest) return true;
+    if (railTouch[q] & 2 && y[rows + 2 * q + 1] > lowest) return true;
+  }
+  return false;
+}
+
+/**
  * Currents and saturation of every device; the current entering each end
  * (ent: rows, then two slots per rail): an nfet's current (drain → source) enters
- * its source, a pfet's (source → drain) leaves it; devices whose source or
- * drain is beyond the bulk/well (counted into st: first and count). Returns
- * the largest |I|. One pass.
+ * its source, a pfet's (source → drain) leaves it; when `junctions`, devices
+ * whose source or drain is beyond the bulk/well (counted into st: first and
+ * count). Returns the largest |I|. One pass.
  */
 function currentLoop(
   m: number,
@@ -113,6 +131,7 @@ function currentLoop(
   c: Float64Array,
   y: Float64Array,
   keyJunction: Float64Array,
+  junctions: boolean,
   gsN: number,
   gsP: number,
   currents: Float64Array,
@@ -139,7 +158,7 @@ function currentLoop(
     const into = isN ? i : -i;
     ent[a] += into;
     ent[b] -= into;
-    if ((ua > ub ? ua : ub) > keyJunction[kp >> 1]) {
+    if (junctions && (ua > ub ? ua : ub) > keyJunction[kp >> 1]) {
       if (first < 0) first = d;
       count++;
     }
