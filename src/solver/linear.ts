@@ -192,6 +192,33 @@ interface Superposition {
   z: Float64Array[];
   /** Taken on first use (length 0 before). */
   rest: Float64Array;
+  /** The last solvePseudo formed û as rest + Σ_j v_j·z_j. */
+  used: boolean;
+  /** The evaluation's linear parts for one changed inject (linear-eval.ts), or null; dropped with rest and z. */
+  parts: SuperposedParts | null;
+}
+
+/**
+ * What the evaluation of a superposed point needs, split like û itself:
+ * each quantity at `rest` (…0) and per ampere of the one changed inject
+ * (…1, from its z with the rails' û at zero), so that a point's value is
+ * part0 + v·part1. Per device: the current (i) and û_d − e⁻⁴·û_s, whose
+ * sign is the saturation test (s); per end: the device current entering it (e).
+ */
+export interface SuperposedParts {
+  i0: Float64Array;
+  i1: Float64Array;
+  s0: Float64Array;
+  s1: Float64Array;
+  e0: Float64Array;
+  e1: Float64Array;
+}
+
+/** Gives superposed evaluation parts back to the pool. */
+function dropParts(sup: Superposition): void {
+  const p = sup.parts;
+  if (p) pool.give(p.i0, p.i1, p.s0, p.s1, p.e0, p.e1);
+  sup.parts = null;
 }
 
 const EMPTY_F64 = new Float64Array(0);
@@ -313,7 +340,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     general,
     factored: false,
     c: pool.takeF64(m),
-    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: EMPTY_F64 },
+    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: EMPTY_F64, used: false, parts: null },
     keyType: Uint8Array.from(keys.type),
     keyGate: Int32Array.from(keys.gate),
     keyBulk: Int32Array.from(keys.bulk),
@@ -336,6 +363,7 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
 /** Gives the plan's work arrays back to the thread's pool; the plan must not be used afterwards. */
 export function releaseLinear(plan: LinearPlan): void {
   pool.give(plan.prow, plan.nodeAt, plan.isNAt, plan.pack, plan.c, plan.ent, plan.rhsRails, plan.y, plan.b, plan.r, plan.sup.rest, ...plan.sup.z);
+  dropParts(plan.sup);
   if (plan.tree) pool.give(plan.tree.parent, plan.tree.diag, plan.tree.off);
   if (plan.general) {
     plan.general.arena.release();
@@ -770,6 +798,7 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
   const values = injects.value;
   const y = plan.y;
   const sup = plan.sup;
+  sup.used = false;
   const all = (j: number) => values[j];
   if (sup.fresh || sup.disabled) {
     solveRows(plan, buildRhs(plan, net, true, all, y));
@@ -781,6 +810,7 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
       sup.changed = [];
       pool.give(...sup.z);
       sup.z = [];
+      dropParts(sup);
     }
   } else {
     const before = sup.changed.length;
@@ -796,6 +826,7 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
       solveRows(plan, buildRhs(plan, net, true, all, y));
     } else {
       if (sup.changed.length > before) {
+        dropParts(sup);
         // rest: rails and the injects still at their reference values; z_j: 1 A in inject j.
         if (sup.rest.length !== rows) sup.rest = pool.takeF64(rows);
         solveRows(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j]), sup.rest));
@@ -813,6 +844,7 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
         const z = sup.z[t];
         for (let k = 0; k < rows; k++) y[k] += v * z[k];
       }
+      sup.used = true;
     }
   }
   plan.pseudo = true;

@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { elaborate } from "../../src/lang/index";
-import { thermalVoltage } from "../../src/lang/point";
+import { applyPoint, thermalVoltage } from "../../src/lang/point";
 import { NetworkBuilder } from "../../src/solver/build";
 import { toSolveJson } from "../../src/solver/results";
 import { solveNetwork, sweepGrid } from "../../src/solver/sweep";
@@ -59,6 +59,51 @@ describe("work reuse across points", () => {
       const scale = p.params.iin / first.params.iin;
       for (let k = 0; k < 30; k++) expect(Math.abs(p.currents[k] / (first.currents[k] * scale) - 1)).toBeLessThan(1e-11);
     }
+  });
+
+  it("a superposed point reports what the same point solved on its own reports", () => {
+    // A 12 × 12 diffuser grid (lateral and output devices, as in the bench) with the input swept over
+    // three decades: the first point factors, the others superpose the input's response (also in their evaluation:
+    // currents, saturation and KCL are linear in the pseudo-voltages). Each point against a run of that point alone.
+    const n = 12;
+    let text = "network g\nparam iin = 1n\nrail gh = 0.72\nrail gv = 0.6\nrail vd = 1\nrail gnd = 0\n";
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) text += `nfet o${i}_${j} gate=gv source=n${i}_${j} drain=vd\n`;
+    for (let i = 0; i < n; i++)
+      for (let j = 0; j + 1 < n; j++) text += `nfet h${i}_${j} gate=gh source=n${i}_${j} drain=n${i}_${j + 1}\nnfet v${j}_${i} gate=gh source=n${j}_${i} drain=n${j + 1}_${i}\n`;
+    text += "inject spot from=n5_6 to=gnd value=iin\nsweep iin from 10p to 10n points 7 log\n";
+    const { network, diagnostics } = elaborate(text);
+    expect(diagnostics.filter((d) => d.severity === "error")).toEqual([]);
+    const net = network!;
+    const run = solveNetwork(net);
+    expect(run.ok).toBe(true);
+    expect(run.points.map((p) => p.solver.reusedFactor)).toEqual([false, true, true, true, true, true, true]);
+    const ut = net.settings.ut;
+    let saturatedSeen = 0;
+    let linearSeen = 0;
+    for (const p of run.points) {
+      const alone = solveNetwork({ ...applyPoint(net, { iin: p.params.iin }), sweeps: [] }).points[0];
+      let most = 0;
+      for (let d = 0; d < net.devices.count; d++) most = Math.max(most, Math.abs(alone.currents[d]));
+      for (let d = 0; d < net.devices.count; d++) {
+        expect(Math.abs(p.currents[d] - alone.currents[d])).toBeLessThan(1e-11 * most);
+        // Saturation (V_DS > 4·U_T, LANGUAGE.md) may differ only at the boundary itself.
+        const vds = Math.abs(alone.voltages[net.devices.drain[d]] - alone.voltages[net.devices.source[d]]);
+        if (p.saturated[d] !== alone.saturated[d]) expect(Math.abs(vds - 4 * ut)).toBeLessThan(1e-9);
+        if (alone.saturated[d]) saturatedSeen++;
+        else linearSeen++;
+      }
+      for (let k = 0; k < net.nodes.names.length; k++) {
+        if (Number.isNaN(alone.railCurrents[k])) expect(Number.isNaN(p.railCurrents[k])).toBe(true);
+        else expect(Math.abs(p.railCurrents[k] - alone.railCurrents[k])).toBeLessThan(1e-11 * most);
+        expect(Math.abs(p.voltages[k] - alone.voltages[k])).toBeLessThan(1e-12);
+      }
+      // KCL residual (common practice: a direct solve leaves it near rounding of the largest current).
+      expect(p.solver.residual).toBeLessThan(1e-12 * most);
+      expect(alone.solver.residual).toBeLessThan(1e-12 * most);
+    }
+    // Both sides of the saturation test occur (the check above is not vacuous).
+    expect(saturatedSeen).toBeGreaterThan(0);
+    expect(linearSeen).toBeGreaterThan(0);
   });
 
   it("a sweep of a gate rail refactors at every point", () => {
