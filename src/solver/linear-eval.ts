@@ -52,7 +52,6 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
     plan.ent = pool.takeF64(ends);
   }
   const ent = plan.ent;
-  ent.fill(0);
   const ispec = settings.ispec;
   const hasIc = ispec !== null;
   const ic = hasIc && out.ic ? out.ic : noIc(net);
@@ -71,7 +70,10 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
     st[S_MAX] = superposedLoop(m, parts, v, out.currents, out.saturated);
     const { e0, e1 } = parts;
     for (let e = 0; e < ends; e++) ent[e] = e0[e] + v * e1[e];
-  } else st[S_MAX] = currentLoop(m, plan.pack, plan.c, plan.y, plan.keyJunction, junctions, gsN, gsP, out.currents, out.saturated, ent, st);
+  } else {
+    ent.fill(0);
+    st[S_MAX] = currentLoop(m, plan.pack, plan.c, plan.y, plan.keyJunction, junctions, gsN, gsP, out.currents, out.saturated, ent, st);
+  }
   junctionWorst(plan, net, V, st);
   if (hasIc) icLoop(m, plan.pack, plan.c, plan.y, gsN, gsP, devices.w, devices.l, ispec as number, ic, st);
   // Injects: value amperes leave `from` and enter `to` (a rail's entry in its first polarity slot).
