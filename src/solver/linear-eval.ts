@@ -181,20 +181,22 @@ function currentLoop(
 
 /**
  * The linear parts of a superposed point (see SuperposedParts in linear.ts):
- * the device loop of currentLoop run once on `rest` (with the rails' û) and
- * once on the changed inject's z (rails at zero: they do not move with it).
- * Built on the first superposed point after a factorisation and reused while
- * only that inject's value changes; each later point then costs two reads
- * and a multiply-add per device and end instead of gathers and scatters.
- * (The KCL residual of such a point is likewise the residual of rest plus v
- * times that of z, the rounding of forming û itself left out: one unit in
- * the last place of each û.)
+ * currentLoop run once on `rest` (with the rails' û) and once on the changed
+ * inject's z (rails at zero: they do not move with it), and the saturation
+ * margins of both. Built on the first superposed point after a factorisation
+ * and reused while only that inject's value changes; each later point then
+ * costs two reads and a multiply-add per device and end instead of gathers
+ * and scatters. (The KCL residual of such a point is likewise the residual
+ * of rest plus v times that of z, the rounding of forming û itself left out:
+ * one unit in the last place of each û.)
  */
 function superposedParts(plan: LinearPlan, gsN: number, gsP: number): SuperposedParts {
-  const { pack, c, rows, y, sup } = plan;
+  const { pack, c, rows, y, sup, keyJunction } = plan;
   const m = c.length;
   const ends = y.length;
   const u = pool.takeF64(ends);
+  const flags = pool.takeU8(m);
+  const stats = new Float64Array(evalStats.length);
   const parts: SuperposedParts = {
     i0: pool.takeF64(m),
     i1: pool.takeF64(m),
@@ -205,30 +207,19 @@ function superposedParts(plan: LinearPlan, gsN: number, gsP: number): Superposed
   };
   u.set(sup.rest);
   u.set(y.subarray(rows), rows);
-  linearParts(m, pack, c, u, gsN, gsP, parts.i0, parts.s0, parts.e0);
+  currentLoop(m, pack, c, u, keyJunction, false, gsN, gsP, parts.i0, flags, parts.e0, stats);
+  saturationMargins(m, pack, u, parts.s0);
   u.set(sup.z[0]);
   u.fill(0, rows);
-  linearParts(m, pack, c, u, gsN, gsP, parts.i1, parts.s1, parts.e1);
-  pool.give(u);
+  currentLoop(m, pack, c, u, keyJunction, false, gsN, gsP, parts.i1, flags, parts.e1, stats);
+  saturationMargins(m, pack, u, parts.s1);
+  pool.give(u, flags);
   return parts;
 }
 
-/** Per device: current and û_d − e⁻⁴·û_s from the pseudo-voltages u by end; the current entering each end into ent. */
-function linearParts(m: number, pack: Int32Array, c: Float64Array, u: Float64Array, gsN: number, gsP: number, current: Float64Array, sat: Float64Array, ent: Float64Array): void {
-  for (let d = 0, q = 0; d < m; d++, q += 3) {
-    const a = pack[q];
-    const b = pack[q + 1];
-    const isN = (pack[q + 2] & 1) === 0;
-    const ua = u[a];
-    const ub = u[b];
-    const g = c[d] * (isN ? gsN : gsP);
-    const i = g * ua - g * ub;
-    current[d] = i;
-    sat[d] = ub - E4 * ua;
-    const into = isN ? i : -i;
-    ent[a] += into;
-    ent[b] -= into;
-  }
+/** Per device: û_d − e⁻⁴·û_s from the pseudo-voltages u by end (negative: saturated, as in currentLoop). */
+function saturationMargins(m: number, pack: Int32Array, u: Float64Array, margin: Float64Array): void {
+  for (let d = 0, q = 0; d < m; d++, q += 3) margin[d] = u[pack[q + 1]] - E4 * u[pack[q]];
 }
 
 /** Currents and saturation of a superposed point (v amperes in the changed inject); returns the largest |I|. */

@@ -165,8 +165,6 @@ export interface LinearPlan {
   refine: number;
   /** y holds the pseudo-voltages û of a solvePseudo since the last factorLinear. */
   pseudo: boolean;
-  /** ... and they are all positive (voltagesLinear succeeded): the point can be evaluated. */
-  solved: boolean;
   analyseMs: number;
 }
 
@@ -355,7 +353,6 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     r: EMPTY_F64,
     refine: opts.refine ?? 0,
     pseudo: false,
-    solved: false,
     analyseMs: performance.now() - t0,
   };
 }
@@ -371,7 +368,6 @@ export function releaseLinear(plan: LinearPlan): void {
   }
   plan.factored = false;
   plan.pseudo = false;
-  plan.solved = false;
   plan.sup.z = [];
 }
 
@@ -541,27 +537,25 @@ function triangleEntries(pack: Int32Array, m: number, rows: number, symbolic: Sy
  */
 export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): { ok: true } | LinearFailure {
   plan.pseudo = false;
-  plan.solved = false;
   plan.factored = false;
   scaleAndGates(plan, net, P);
   const rhs = plan.rhsRails;
   rhs.fill(0);
   // Sizes: (W/L)·e^{−κ·dVT/U_T} with mismatch, else W/L from w and l (no per-run array).
-  const { size, w, l } = P;
+  const sizeOrW = P.size ?? P.w;
+  const l = P.size ? null : P.l;
   let failed = -1;
   if (plan.tree) {
     const { parent, diag, off } = plan.tree;
     diag.fill(0);
     off.fill(0);
-    if (size) assembleTree(plan.pack, size, null, plan.keyFactor, plan.c, plan.y, diag, off, rhs);
-    else assembleTree(plan.pack, w, l, plan.keyFactor, plan.c, plan.y, diag, off, rhs);
+    assembleTree(plan.pack, sizeOrW, l, plan.keyFactor, plan.c, plan.y, diag, off, rhs);
     failed = treeFactor(parent, diag, off);
   } else {
     const g = plan.general as GeneralParts;
     const cx = g.C.x as Float64Array;
     cx.fill(0);
-    if (size) assembleGeneral(plan.pack, size, null, plan.keyFactor, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
-    else assembleGeneral(plan.pack, w, l, plan.keyFactor, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
+    assembleGeneral(plan.pack, sizeOrW, l, plan.keyFactor, plan.c, plan.y, g.diagPos, g.posOff, cx, rhs);
     const res = cholesky(g.C, g.symbolic, g.factor ?? emptyFactor(g.symbolic, g.arena), g.work);
     if (res.ok) g.factor = res.factor;
     else {
@@ -792,7 +786,6 @@ export function solveLinear(plan: LinearPlan, net: Network, V: Float64Array): { 
 export function solvePseudo(plan: LinearPlan, net: Network): void {
   if (!plan.factored) throw new Error("solvePseudo: no factorisation");
   plan.pseudo = false;
-  plan.solved = false;
   const rows = plan.rows;
   const { injects } = net;
   const values = injects.value;
@@ -866,7 +859,6 @@ export function voltagesLinear(plan: LinearPlan, net: Network, V: Float64Array):
   const rv = nodes.railValue;
   const railNodes = plan.railNodes;
   for (let q = 0; q < railNodes.length; q++) V[railNodes[q]] = rv[railNodes[q]];
-  plan.solved = worst < 0;
   if (worst >= 0) {
     const node = nodeAt[worst];
     const name = nodes.names[node];
