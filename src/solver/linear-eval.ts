@@ -94,9 +94,11 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
   let worst = -1;
   for (let k = 0; k < rows; k++) {
     const e = Math.abs(ent[k]);
-    if (e > residual || worst < 0) {
+    // (A NaN is the worst there is: kept, for evaluationProblem to report.)
+    if (!(e <= residual) || worst < 0) {
       residual = e;
       worst = k;
+      if (Number.isNaN(e)) break;
     }
   }
   return {
@@ -295,4 +297,60 @@ function icLoop(
   st[S_ICOUNT] = count;
   st[S_IFIRST] = first;
   st[S_IWORST] = worst;
+}
+
+/**
+ * A linear point's KCL error, relative to its largest device or inject
+ * current, beyond which the point is not reported as solved. A sound solve
+ * leaves about 1e-15; the output currents' own error was measured at a few
+ * times the relative KCL error (a 64-tap row whose lateral gate is on the
+ * supply: 1.2e-3 of KCL error, outputs 0.7% off), so this keeps reported
+ * currents to about 1e-5.
+ */
+export const KCL_LIMIT = 1e-6;
+
+/**
+ * Why an evaluated linear point must not be reported as solved, or null: a
+ * current out of double precision's range (not finite), or a KCL error beyond
+ * KCL_LIMIT of the largest current. The message says which of two causes it
+ * is: when the sum of the magnitudes of the terms at the worst node (a
+ * channel's forward and reverse currents g·û_s and g·û_d, each of which can be
+ * far larger than their difference) times 64 units in the last place covers
+ * the error, the conductances span more decades than double precision
+ * resolves (e.g. a lateral gate far above the others); otherwise the solve
+ * itself lost the accuracy.
+ */
+export function evaluationProblem(plan: LinearPlan, net: Network, ev: Evaluation): { node: number; message: string } | null {
+  const { injects, nodes } = net;
+  let scale = ev.maxCurrent;
+  for (let j = 0; j < injects.count; j++) scale = Math.max(scale, Math.abs(injects.value[j]));
+  let railBad = -1;
+  for (const q of plan.railNodes) if (!Number.isFinite(ev.railCurrents[q])) railBad = q;
+  if (!Number.isFinite(ev.residual) || !Number.isFinite(scale) || railBad >= 0) {
+    const node = railBad >= 0 ? railBad : ev.worstNode;
+    return {
+      node,
+      message: `the currents${node >= 0 ? ` at ${nodes.names[node]}` : ""} are beyond double precision's range: rails, gates or the temperature put exp(±V/ut) beyond about 1e±308 (a node or gate hundreds of ut from the others)`,
+    };
+  }
+  if (ev.residual <= KCL_LIMIT * scale || ev.worstNode < 0) return null;
+  const row = plan.prow[ev.worstNode];
+  const { pack, c, y, lnScale } = plan;
+  const gsN = Math.exp(lnScale[1]);
+  const gsP = Math.exp(lnScale[0]);
+  let terms = 0;
+  for (let d = 0, q = 0; row >= 0 && d < c.length; d++, q += 3) {
+    const a = pack[q];
+    const b = pack[q + 1];
+    if (a === row || b === row) terms += c[d] * ((pack[q + 2] & 1) === 0 ? gsN : gsP) * (y[a] + y[b]);
+  }
+  const name = nodes.names[ev.worstNode];
+  const what = `the KCL error at node ${name} is ${ev.residual.toExponential(2)} A, ${(ev.residual / scale).toExponential(1)} of the largest current`;
+  return {
+    node: ev.worstNode,
+    message:
+      ev.residual <= 64 * Number.EPSILON * terms
+        ? `results not reliable: ${what}; the channels there carry forward currents of ${terms.toExponential(1)} A against ${scale.toExponential(1)} A, more decades than double precision resolves (e.g. a gate far above the others)`
+        : `accuracy lost in the solve: ${what}`,
+  };
 }

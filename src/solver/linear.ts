@@ -605,12 +605,31 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
     if (railTouch[q] & 1 && v < vrefN) vrefN = v;
     if (railTouch[q] & 2 && v > vrefP) vrefP = v;
   }
-  if (!Number.isFinite(vrefN)) vrefN = 0;
-  if (!Number.isFinite(vrefP)) vrefP = 0;
   if (!Number.isFinite(lamN)) lamN = 0;
   if (!Number.isFinite(lamP)) lamP = 0;
   for (let k = 0; k < keyType.length; k++) keyFactor[k] = Math.exp(keyFactor[k] - (keyType[k] === N_TYPE ? lamN : lamP));
   const lnI0 = Math.log(P.i0);
+  // A node an inject of I amperes holds through the strongest gate sits near
+  // V = U_T·(ln i0 + Λ_c − ln I) (n; p mirrored), which can be far beyond every
+  // rail (a drain rail 20 V up, a sink below it): the reference goes there then,
+  // so that such nodes' û stay near 1 and far rails' û vanish, not the reverse.
+  const { injects } = net;
+  const { prow, isNAt } = plan;
+  let injN = 0;
+  let injP = 0;
+  for (let j = 0; j < injects.count; j++) {
+    const v = Math.abs(injects.value[j]);
+    for (let end = 0; end < 2; end++) {
+      const r = prow[end === 0 ? injects.from[j] : injects.to[j]];
+      if (r < 0) continue;
+      if (isNAt[r]) injN = Math.max(injN, v);
+      else injP = Math.max(injP, v);
+    }
+  }
+  if (injN > 0) vrefN = Math.min(vrefN, ut * (lnI0 + lamN - Math.log(injN)));
+  if (injP > 0) vrefP = Math.max(vrefP, -ut * (lnI0 + lamP - Math.log(injP)));
+  if (!Number.isFinite(vrefN)) vrefN = 0;
+  if (!Number.isFinite(vrefP)) vrefP = 0;
   plan.vref[0] = vrefP;
   plan.vref[1] = vrefN;
   // ln gs_c = ln i0 + Λ_c + ln u(Vref_c)

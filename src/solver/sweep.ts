@@ -13,7 +13,7 @@ import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
 import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear, solvePseudo, voltagesLinear } from "./linear";
-import { evaluateLinear } from "./linear-eval";
+import { evaluateLinear, evaluationProblem } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
 import { type Alloc, Arena, heap } from "./pool";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
@@ -258,6 +258,15 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
           }
         }
         const ev = lplan && ok && slot ? evaluateLinear(lplan, pnet, V, slot.store) : evaluate(pnet, V, P, kcl, slot ? slot.store : undefined);
+        if (lplan && ok) {
+          // Currents out of range, or a KCL error rounding does not explain: not a solution to report.
+          const bad = evaluationProblem(lplan, pnet, ev);
+          if (bad) {
+            ok = false;
+            error = bad.message;
+            failNode = bad.node;
+          }
+        }
         const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
         for (const name in probes) probeValues[name].push(probes[name]);
         const point: PointResult = {
