@@ -10,8 +10,14 @@
  *
  * Damping: each step δ = −J⁻¹F is scaled so that no node moves more than
  * MAX_STEP_UT thermal voltages (common practice for exponential devices).
- * Convergence: the largest KCL error is below 1e-15 A or 1e-9 of the largest
- * device current, AND the last step moved no node more than STEP_TOL volts.
+ * Convergence: the last step moved no node more than STEP_TOL volts, AND
+ * every row's KCL error is below 1e-15 A, or 1e-9 of the largest device
+ * current, or within RES_ULPS ulps of that row's rounding scale (`resolved`:
+ * the current moved by rounding the terminal voltages its devices read, plus
+ * their forward and reverse currents weighted by their exponents' arguments,
+ * plus its injects). The last lets a node picovolts from a rail converge: its
+ * device's forward and reverse currents of ~1 A cancel to nanoamperes, and
+ * one ulp of the node voltage moves its KCL sum by ~1e-14 A.
  * When plain Newton fails, source stepping (continuation): rails and injects
  * scaled by α from 0 (where V = 0 solves KCL exactly) to 1, each stage
  * started from the previous one. A point that does not converge is a failure
@@ -29,6 +35,8 @@ const MAX_ITER = 200;
 const STEP_TOL = 1e-9;
 const ABS_TOL = 1e-15;
 const REL_TOL = 1e-9;
+/** A row's KCL error is resolved within this many ulps of its rounding scale (see `resolved`). */
+const RES_ULPS = 4;
 
 export interface NewtonPlan {
   rows: number;
@@ -195,7 +203,8 @@ function newtonLoop(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64A
     const [fmax, imax] = assemble(plan, net, P, V, alpha, true, out4);
     residual = fmax;
     if (!Number.isFinite(fmax)) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
-    if (lastStep <= STEP_TOL && (fmax < ABS_TOL || fmax <= REL_TOL * imax)) return { converged: true, iterations: it, residual: fmax, worstRow: -1 };
+    if (lastStep <= STEP_TOL && (fmax < ABS_TOL || fmax <= REL_TOL * imax || resolved(plan, net, P, V, alpha, Math.max(ABS_TOL, REL_TOL * imax), out4)))
+      return { converged: true, iterations: it, residual: fmax, worstRow: -1 };
     if (it === maxIter) break;
     const res = lu(plan.J, plan.q);
     if (!res.ok) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
@@ -214,6 +223,56 @@ function newtonLoop(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64A
   }
   assemble(plan, net, P, V, alpha, false, out4);
   return { converged: false, iterations: maxIter, residual, worstRow: worstRow(plan) };
+}
+
+/**
+ * Whether every row's KCL error (plan.F, just assembled at V) is at most
+ * `floor` or within what double precision can resolve there: RES_ULPS ulps of
+ *   Σ over its devices of Σ_t |∂I/∂x_t|·(|V_t| + |V_b|) + I_F·(1 + |ln I_F|) + I_R·(1 + |ln I_R|),
+ * plus the injects at the row. The first term is the current moved by
+ * rounding each terminal voltage (x_t = σ(V_t − V_b)); the others the
+ * rounding of each exponential, whose argument (ln I for the weak model; the
+ * EKV F behaves alike or better while ispec·W/L < 1 A) carries a rounding of
+ * an ulp of its own size. Uses plan.work; leaves F and J as they are.
+ */
+function resolved(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, alpha: number, floor: number, out4: Float64Array): boolean {
+  const { devices, injects } = net;
+  const { type, gate, source, drain, bulk } = devices;
+  const { rowOf, F } = plan;
+  const scale = plan.work;
+  scale.fill(0);
+  for (let d = 0; d < devices.count; d++) {
+    const rs = rowOf[source[d]];
+    const rt = rowOf[drain[d]];
+    if (rs < 0 && rt < 0) continue;
+    const sg = polarity(type[d]);
+    const b = bulk[d];
+    const vb = b >= 0 ? V[b] : 0;
+    const vg = V[gate[d]];
+    const vs = V[source[d]];
+    const vd = V[drain[d]];
+    const iF = deviceCurrent(P, d, sg * (vg - vb), sg * (vs - vb), sg * (vd - vb), out4);
+    const iR = Math.abs(iF - out4[0]);
+    const ab = Math.abs(vb);
+    let e = Math.abs(out4[1]) * (Math.abs(vg) + ab) + Math.abs(out4[2]) * (Math.abs(vs) + ab) + Math.abs(out4[3]) * (Math.abs(vd) + ab);
+    if (iF > 0) e += iF * (1 + Math.abs(Math.log(iF)));
+    if (iR > 0) e += iR * (1 + Math.abs(Math.log(iR)));
+    if (rs >= 0) scale[rs] += e;
+    if (rt >= 0) scale[rt] += e;
+  }
+  for (let j = 0; j < injects.count; j++) {
+    const v = Math.abs(alpha * injects.value[j]);
+    const rf = rowOf[injects.from[j]];
+    const rt = rowOf[injects.to[j]];
+    if (rf >= 0) scale[rf] += v;
+    if (rt >= 0) scale[rt] += v;
+  }
+  const ulps = RES_ULPS * Number.EPSILON;
+  for (let r = 0; r < plan.rows; r++) {
+    const f = Math.abs(F[r]);
+    if (!(f <= floor || f <= ulps * scale[r])) return false;
+  }
+  return true;
 }
 
 function worstRow(plan: NewtonPlan): number {
