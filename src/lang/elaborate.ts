@@ -611,11 +611,17 @@ class Elaborator {
 
   // Pre-scan of the top level.
   private readonly paramDecl = new Map<string, number>();
+  /** First top-level `rail NAME` (a plain name) of each name: the name's first declaration may be a rail. */
+  private readonly railDecl = new Map<string, number>();
   private readonly setDecl = new Map<string, { from: number; to: number }>();
   private readonly swept = new Set<string>();
   private readonly brokenNames = new Set<string>();
-  /** Kind of every rail, inject, probe and param name ("a rail", ...): one namespace. */
+  /** Built-in names a rail statement tried to declare (reported there, not at every pin). */
+  private readonly reservedRails = new Set<string>();
+  /** Kind of every rail, inject, probe and param name made so far ("a rail", ...): one namespace. */
   private readonly kindByName = new Map<string, string>();
+  /** Where each name of `kindByName` was declared (offset of its name). */
+  private readonly declAt = new Map<string, number>();
 
   private name: string | null = null;
   private readonly settings: Settings = {
@@ -755,10 +761,10 @@ class Elaborator {
     for (const s of statements) {
       if (s.type.id === T.ParamStatement) {
         const d = s.getChild("Definition");
-        if (d && !this.paramDecl.has(this.src(d))) {
-          this.paramDecl.set(this.src(d), d.from);
-          this.kindByName.set(this.src(d), "a param");
-        }
+        if (d && !this.paramDecl.has(this.src(d))) this.paramDecl.set(this.src(d), d.from);
+      } else if (s.type.id === T.RailStatement) {
+        const d = s.getChild("Definition");
+        if (d && !d.getChild("InterpolatedName") && !this.railDecl.has(this.src(d))) this.railDecl.set(this.src(d), d.from);
       } else if (s.type.id === T.SetStatement) {
         const n = s.getChild("SettingName");
         if (n && !this.setDecl.has(this.src(n))) this.setDecl.set(this.src(n), { from: s.from, to: s.to });
@@ -933,6 +939,15 @@ class Elaborator {
       this.sink.error(d.from, d.to, `param '${name}' is defined twice (first on line ${this.line(prev.def.span.from)})`);
       return;
     }
+    // One namespace: a name declared before as a rail, inject, probe or device keeps that
+    // meaning (uses above resolve to it), and this later declaration is the error.
+    const other = this.kindByName.get(name) ?? (this.devHas(name, null) ? "a device" : undefined);
+    if (other) {
+      this.clash("param", name, d, other);
+      return;
+    }
+    this.kindByName.set(name, "a param");
+    this.declAt.set(name, d.from);
     if (!valueNode) return;
     const t = this.compileValue(valueNode, [], null, "");
     if (!t) {
@@ -954,6 +969,24 @@ class Elaborator {
     this.params.set(name, { def, dim: t.dim, deps: t.pointDeps ?? [] });
     this.paramList.push(def);
     this.scope.set(name, v);
+  }
+
+  /**
+   * Offset of a param not defined yet whose statement is the name's first declaration
+   * (a rail declared above that param keeps the name: the param is then the duplicate).
+   */
+  private laterParam(name: string): number | undefined {
+    if (this.params.has(name)) return undefined;
+    const at = this.paramDecl.get(name);
+    if (at === undefined) return undefined;
+    const rail = this.railDecl.get(name);
+    return rail !== undefined && rail < at ? undefined : at;
+  }
+
+  /** Offset of the statement that made the device `name`, if there is one. */
+  private devDeclAt(name: string): number | undefined {
+    const i = this.devs.full().get(name);
+    return i === undefined ? undefined : this.devAt.data[i];
   }
 
   /** A param or loop-variable name must not hide a built-in, a function or an object property. */
@@ -1151,7 +1184,15 @@ class Elaborator {
       case T.InjectStatement:
         return this.compileInject(s, loopVars);
       case T.RailStatement: {
-        const name = this.compileName(s.getChild("Definition")!, loopVars);
+        const def = s.getChild("Definition")!;
+        const fixed = def.getChild("InterpolatedName") ? null : this.src(def);
+        if (fixed !== null && fixed in BUILTINS) {
+          // One error here; the pins that name it are then taken as this (rejected) node.
+          this.sink.error(def.from, def.to, `'${fixed}' is a built-in name and cannot be a rail`, RESERVED_HINT);
+          this.reservedRails.add(fixed);
+          return null;
+        }
+        const name = this.compileName(def, loopVars);
         const node = this.exprChild(s);
         const value = node ? this.compileValue(node, loopVars, VOLT, "a rail value is a voltage in volts") : null;
         return name ? { k: "rail", at: s.from, end: s.to, name, value } : null;
@@ -1388,7 +1429,7 @@ class Elaborator {
       return BUILTINS[name];
     }
     if (this.brokenNames.has(name)) return null;
-    const later = this.paramDecl.get(name);
+    const later = this.laterParam(name);
     if (later !== undefined) {
       this.sink.error(n.from, n.to, `param '${name}' is used before it is defined (line ${this.line(later)})`, "move the param statement above this line");
       return null;
@@ -1604,8 +1645,8 @@ class Elaborator {
       const name = this.src(node);
       let what: string | null = null;
       if (loopVars.includes(name)) what = "a loop variable";
-      else if (this.params.has(name) || this.paramDecl.has(name)) what = "a param";
-      else if (name in BUILTINS) what = "a built-in value";
+      else if (this.params.has(name) || this.laterParam(name) !== undefined) what = "a param";
+      else if (name in BUILTINS && !this.reservedRails.has(name)) what = "a built-in value";
       if (what) {
         this.sink.error(node.from, node.to, `${key}= names a node, but '${name}' is ${what}`, what === "a loop variable" ? `write a node name such as x{${name}}` : `to hold a node at a fixed voltage, declare it: rail ${name}_node = ${name}`);
         return null;
@@ -1688,6 +1729,30 @@ class Elaborator {
     return n;
   }
 
+  /**
+   * Statement runs of executing `ts` once, as `exec` and `execFor` count them: one per
+   * statement, and per loop iteration one plus its body's. A loop whose bounds depend on
+   * an enclosing loop counts as one run (then `exact` is false: the total is a lower bound).
+   */
+  private runsOf(ts: Tpl[]): { runs: number; exact: boolean } {
+    let runs = 0;
+    let exact = true;
+    for (const t of ts) {
+      runs++;
+      if (t.k !== "for") continue;
+      if (!t.first || !t.last || t.first.loopDependent || t.last.loopDependent) {
+        exact = false;
+        continue;
+      }
+      const count = this.valueOf(t.last) - this.valueOf(t.first) + 1;
+      if (!(Number.isSafeInteger(count) && count > 0)) continue;
+      const body = this.runsOf(t.body);
+      runs += count * (1 + body.runs);
+      exact &&= body.exact;
+    }
+    return { runs, exact };
+  }
+
   private execFor(t: ForTpl): void {
     const a = this.valueOf(t.first!);
     const b = this.valueOf(t.last!);
@@ -1702,8 +1767,15 @@ class Elaborator {
       return this.suppressTpl(t.body);
     }
     const count = b - a + 1;
-    if (this.work + count * (1 + t.body.length) > this.limits.maxWork) {
-      this.overflow(t, `${(count * (1 + t.body.length)).toLocaleString("en-US")} statement runs, more than the limit of ${this.limits.maxWork.toLocaleString("en-US")}`);
+    const body = this.runsOf(t.body);
+    const runs = count * (1 + body.runs);
+    if (this.work + runs > this.limits.maxWork) {
+      const limit = this.limits.maxWork.toLocaleString("en-US");
+      // The outermost loop reports its own total; an inner loop only gets here when an
+      // enclosing loop's estimate was low (bounds that depend on a loop variable).
+      const outermost = this.outerFor !== null && this.outerFor.from === t.from;
+      if (!outermost || !Number.isSafeInteger(runs)) this.overflow(t, `more than ${limit} statement runs (the limit)`);
+      this.overflow(t, `${body.exact ? "" : "at least "}${runs.toLocaleString("en-US")} statement runs, more than the limit of ${limit}`);
     }
     const lv = this.loopValues;
     const outerVar = this.loopVar;
@@ -1907,8 +1979,10 @@ class Elaborator {
     this.sink.error(t.from, t.to, `${kind} '${name}' is defined twice (first on line ${this.line(firstAt)})`, hint);
   }
 
-  private clash(kind: string, name: string, t: NameTpl, other: string): void {
-    this.sink.error(t.from, t.to, `${kind} name '${name}' is already ${other}`, "every name means one thing: rename one of them");
+  private clash(kind: string, name: string, t: { from: number; to: number }, other: string): void {
+    const at = other === "a device" ? this.devDeclAt(name) : this.declAt.get(name);
+    const where = at !== undefined ? ` (first on line ${this.line(at)})` : "";
+    this.sink.error(t.from, t.to, `${kind} name '${name}' is already ${other}${where}`, "every name means one thing: rename one of them");
   }
 
   private suppressRefs(refs: (NameTpl | null)[]): void {
@@ -2078,6 +2152,7 @@ class Elaborator {
     this.injNames.push(name);
     this.injIndex.set(name, i);
     this.kindByName.set(name, "an inject");
+    this.declAt.set(name, t.name.from);
     this.injFrom.push(f);
     this.injTo.push(to);
     this.injValue.push(v);
@@ -2111,6 +2186,7 @@ class Elaborator {
     this.railValue.data[i] = v;
     this.rails.push({ name, node: i, span: { from: t.name.from, to: t.name.to } });
     this.kindByName.set(name, "a rail");
+    this.declAt.set(name, t.name.from);
     if (t.value) this.bind(t.value, { kind: "rail", node: i });
   }
 
@@ -2130,6 +2206,7 @@ class Elaborator {
     }
     this.probeNames.set(name, t.at);
     this.kindByName.set(name, "a probe");
+    this.declAt.set(name, t.name.from);
     this.pendingProbes.push({
       name,
       span: { from: t.name.from, to: t.name.to },

@@ -128,6 +128,26 @@ describe("limits", () => {
     expect(r.diagnostics[0].message).toBe("this loop makes 100,000,001 statement runs, more than the limit of 20,000,000");
   });
 
+  it("nested loops report the total statement runs of the outermost loop, not the inner loop's count", () => {
+    const text = "for k in 0..50 {\n  for j in 0..50 {\n    rail r{k}_{j} = 1\n  }\n}\n";
+    const r = elaborate(text, { limits: { maxWork: 1000 } });
+    expect(r.diagnostics).toHaveLength(1);
+    expect(r.diagnostics[0]).toMatchObject({ line: 1, column: 1 });
+    // 51 outer iterations, each 1 + the inner for (1 + 51 × (1 + 1 rail)).
+    expect(r.diagnostics[0].message).toBe("this loop makes 5,304 statement runs, more than the limit of 1,000");
+    // The default limit: 5,001 × (1 + 1 + 5,001 × 1) with the body left empty by its error.
+    const big = elaborate("for k in 0..5000 {\n  for j in 0..5000 {\n    param a = 1\n  }\n}\n");
+    expect(big.diagnostics[0].message).toBe("this loop makes 25,020,003 statement runs, more than the limit of 20,000,000");
+  });
+
+  it("a loop whose inner bounds depend on the outer variable stops at the limit without a wrong count", () => {
+    const text = "for k in 0..50 {\n  for j in 0..k {\n    rail r{k}_{j} = 1\n  }\n}\n";
+    const r = elaborate(text, { limits: { maxWork: 1000 } });
+    expect(r.diagnostics).toHaveLength(1);
+    expect(r.diagnostics[0]).toMatchObject({ line: 1, column: 1 });
+    expect(r.diagnostics[0].message).toBe("this loop makes more than 1,000 statement runs (the limit)");
+  });
+
   it("expression nesting deeper than 200 is an error at the expression", () => {
     const deep = `param a = ${"(".repeat(250)}1${")".repeat(250)}\n`;
     const r = elaborate(deep);

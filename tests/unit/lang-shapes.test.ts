@@ -98,9 +98,9 @@ for k in 0..4 {
   nfet m{k} gate=m3 source=gnd drain=x{k}
 }
 `).filter((m) => m.includes("already"))).toEqual([
-      "6: device name 'm0' is already an inject",
-      "6: device name 'm1' is already a param",
-      "6: device name 'm3' is already a rail",
+      "6: device name 'm0' is already an inject (first on line 4)",
+      "6: device name 'm1' is already a param (first on line 2)",
+      "6: device name 'm3' is already a rail (first on line 1)",
     ]);
   });
 
