@@ -5,8 +5,11 @@
  * - `known`: a literal with a unit symbol (`450mV`), `ut`, `kappa`, `temp`,
  *   voltage(), current(), and whatever is derived from them.
  * - `loose`: a bare number (`0.45`), a loop variable or a function result
- *   (`exp(...)`). It adapts: in `+`/`-` it takes the other side's dimension,
- *   in `*`/`/` it is a plain scalar.
+ *   (`exp(...)`). The unit symbol of a number is optional (LANGUAGE.md), so a
+ *   bare number may stand for any unit its use needs: in `+`/`-` it takes the
+ *   other side's dimension, and a product or quotient with a loose factor is
+ *   loose too (`dv/ut` with `param dv = 0.02` may be dimensionless, and
+ *   `1e-9*voltage(x)` may be a current).
  * - `unknown`: nothing can be said (e.g. `x ^ y` with a non-constant y); never an error.
  */
 export type Dim =
@@ -48,17 +51,15 @@ export function compatible(x: Dim, y: Dim): boolean {
 }
 
 /**
- * x·y (sign 1) or x/y (sign -1). A bare number times a dimensionless quantity
- * stays a bare number: `2*kappa` may stand for volts as much as `2` does.
+ * x·y (sign 1) or x/y (sign -1). A bare number carries whatever unit its use
+ * needs, so anything times or over a bare number stays a bare number:
+ * `2*kappa` may stand for volts as much as `2` does, and `0.02/ut` may be
+ * dimensionless (0.02 V) as much as `0.02V/ut` is.
  */
 export function mulDim(x: Dim, y: Dim, sign: 1 | -1): Dim {
   if (x.kind === "unknown" || y.kind === "unknown") return UNKNOWN;
-  if (x.kind === "loose" && (y.kind === "loose" || isDimensionless(y))) return LOOSE;
-  if (y.kind === "loose" && isDimensionless(x)) return LOOSE;
-  const xv = x.kind === "known" ? x : DIMENSIONLESS;
-  const yv = y.kind === "known" ? y : DIMENSIONLESS;
-  if (xv.kind !== "known" || yv.kind !== "known") return UNKNOWN;
-  return known(xv.v + sign * yv.v, xv.a + sign * yv.a, xv.k + sign * yv.k);
+  if (x.kind !== "known" || y.kind !== "known") return LOOSE;
+  return known(x.v + sign * y.v, x.a + sign * y.a, x.k + sign * y.k);
 }
 
 /** Sum of two compatible dimensions (caller checks `compatible` first). */
