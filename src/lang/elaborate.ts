@@ -447,10 +447,13 @@ function suggest(name: string, candidates: Iterable<string>): string | undefined
  */
 function loopOffset(p: Expr, loopVars: string[]): { slot: number; offset: number } {
   if (p.k === "name") return { slot: loopVars.indexOf(p.name), offset: 0 };
-  if (p.k === "binary" && (p.op === "+" || p.op === "-") && p.left.k === "name" && p.right.k === "num") {
-    const slot = loopVars.indexOf(p.left.name);
-    const c = p.right.value;
-    if (slot >= 0 && p.right.unit === "" && Number.isInteger(c) && c >= 0 && c < 2 ** 31) return { slot, offset: p.op === "+" ? c : -c };
+  if (p.k !== "binary" || p.args.length !== 2) return { slot: -1, offset: 0 };
+  const [left, right] = p.args;
+  const op = p.ops[0].op;
+  if ((op === "+" || op === "-") && left.k === "name" && right.k === "num") {
+    const slot = loopVars.indexOf(left.name);
+    const c = right.value;
+    if (slot >= 0 && right.unit === "" && Number.isInteger(c) && c >= 0 && c < 2 ** 31) return { slot, offset: op === "+" ? c : -c };
   }
   return { slot: -1, offset: 0 };
 }
@@ -737,7 +740,7 @@ class Elaborator {
 
   run(): ElaborationResult {
     this.tree = parser.parse(this.text);
-    this.syntaxErrors = reportSyntaxErrors(this.tree, this.text, this.sink, this.lines, this.limits.maxDiagnostics);
+    this.syntaxErrors = reportSyntaxErrors(this.tree, this.text, this.sink, this.lines, this.limits.maxDiagnostics, this.limits.maxExpressionDepth);
     const top = this.tree.topNode;
     const statements = this.children(top);
     this.prescan(statements);

@@ -47,13 +47,20 @@ export interface UnaryExpr extends Base {
   arg: Expr;
 }
 export type BinaryOp = "+" | "-" | "*" | "/" | "^";
+export interface Operator {
+  op: BinaryOp;
+  from: number;
+  to: number;
+}
+/**
+ * A run of operators of one precedence: `args[0] ops[0] args[1] ops[1] … args[n]`
+ * (two or more operands). `+ -` and `* /` fold from the left, `^` (alone in its
+ * run) from the right. A long sum is one node, not a nesting.
+ */
 export interface BinaryExpr extends Base {
   k: "binary";
-  op: BinaryOp;
-  left: Expr;
-  right: Expr;
-  opFrom: number;
-  opTo: number;
+  args: Expr[];
+  ops: Operator[];
 }
 export interface CallExpr extends Base {
   k: "call";
@@ -145,21 +152,6 @@ export function buildExpr(node: SyntaxNode, ctx: BuildContext, depth = 0): Expr 
       const sign = ctx.text.slice(op.from, op.to) === "-" ? "-" : "+";
       return { k: "unary", from, to, op: sign, arg: buildExpr(arg, ctx, depth + 1) };
     }
-    case T.BinaryExpression: {
-      const op = node.getChild("ArithOp");
-      const kids = expressionChildren(node);
-      if (!op || kids.length !== 2) return { k: "bad", from, to };
-      return {
-        k: "binary",
-        from,
-        to,
-        op: ctx.text.slice(op.from, op.to) as BinaryOp,
-        opFrom: op.from,
-        opTo: op.to,
-        left: buildExpr(kids[0], ctx, depth + 1),
-        right: buildExpr(kids[1], ctx, depth + 1),
-      };
-    }
     case T.CallExpression: {
       const fn = node.getChild("FunctionName");
       const list = node.getChild("ArgList");
@@ -170,8 +162,27 @@ export function buildExpr(node: SyntaxNode, ctx: BuildContext, depth = 0): Expr 
     case T.InterpolatedName:
       return buildInterp(node, ctx, depth);
     default:
-      return { k: "bad", from, to };
+      // The grammar makes one BinaryExpression node type per precedence level.
+      return node.name === "BinaryExpression" ? buildBinary(node, ctx, depth) : { k: "bad", from, to };
   }
+}
+
+/** A run of one precedence, its operands and operators alternating (anything else: bad). */
+function buildBinary(node: SyntaxNode, ctx: BuildContext, depth: number): Expr {
+  const { from, to } = node;
+  const args: Expr[] = [];
+  const ops: Operator[] = [];
+  for (let c = node.firstChild; c; c = c.nextSibling) {
+    if (c.name === "ArithOp") {
+      if (ops.length !== args.length - 1) return { k: "bad", from, to };
+      ops.push({ op: ctx.text.slice(c.from, c.to) as BinaryOp, from: c.from, to: c.to });
+    } else if (c.type.is("Expression") || c.type.isError) {
+      if (args.length !== ops.length) return { k: "bad", from, to };
+      args.push(buildExpr(c, ctx, depth + 1));
+    }
+  }
+  if (args.length < 2 || args.length !== ops.length + 1) return { k: "bad", from, to };
+  return { k: "binary", from, to, args, ops };
 }
 
 function buildInterp(node: SyntaxNode, ctx: BuildContext, depth: number): Expr {
@@ -201,8 +212,7 @@ export function* walk(e: Expr): Generator<Expr> {
       yield* walk(e.arg);
       break;
     case "binary":
-      yield* walk(e.left);
-      yield* walk(e.right);
+      for (const a of e.args) yield* walk(a);
       break;
     case "call":
       for (const a of e.args) yield* walk(a);
@@ -218,6 +228,21 @@ export function isBad(e: Expr): boolean {
   return false;
 }
 
+function applyOp(op: BinaryOp, a: number, b: number): number {
+  switch (op) {
+    case "+":
+      return a + b;
+    case "-":
+      return a - b;
+    case "*":
+      return a * b;
+    case "/":
+      return a / b;
+    case "^":
+      return Math.pow(a, b);
+  }
+}
+
 /** The value of a name-free arithmetic expression, NaN otherwise (used for constant exponents). */
 export function constantValue(e: Expr): number {
   switch (e.k) {
@@ -226,21 +251,15 @@ export function constantValue(e: Expr): number {
     case "unary":
       return e.op === "-" ? -constantValue(e.arg) : constantValue(e.arg);
     case "binary": {
-      const a = constantValue(e.left);
-      const b = constantValue(e.right);
-      switch (e.op) {
-        case "+":
-          return a + b;
-        case "-":
-          return a - b;
-        case "*":
-          return a * b;
-        case "/":
-          return a / b;
-        case "^":
-          return Math.pow(a, b);
+      const n = e.args.length;
+      if (e.ops[0].op === "^") {
+        let r = constantValue(e.args[n - 1]);
+        for (let i = n - 2; i >= 0; i--) r = Math.pow(constantValue(e.args[i]), r);
+        return r;
       }
-      return NaN;
+      let a = constantValue(e.args[0]);
+      for (let i = 1; i < n; i++) a = applyOp(e.ops[i - 1].op, a, constantValue(e.args[i]));
+      return a;
     }
     default:
       return NaN;
@@ -368,34 +387,50 @@ export function inferDim(e: Expr, ctx: DimContext): Dim | null {
     case "unary":
       return inferDim(e.arg, ctx);
     case "binary": {
-      const l = inferDim(e.left, ctx);
-      const r = inferDim(e.right, ctx);
-      if (!l || !r) return null;
-      switch (e.op) {
-        case "+":
-        case "-":
-          if (!compatible(l, r)) {
-            ctx.report(
-              e.opFrom,
-              e.opTo,
-              `cannot ${e.op === "+" ? "add" : "subtract"} ${describeDim(r)} ${e.op === "+" ? "to" : "from"} ${describeDim(l)}`,
-              "both sides of + and - must have the same unit",
-            );
-            return null;
-          }
-          return addDim(l, r);
-        case "*":
-          return mulDim(l, r, 1);
-        case "/":
-          return mulDim(l, r, -1);
-        case "^":
-          if (hasUnit(r)) {
-            ctx.report(e.right.from, e.right.to, `an exponent must be dimensionless, but this is ${describeDim(r)}`);
-            return null;
-          }
-          return powDim(l, constantValue(e.right));
+      // Every operand is checked (and reports its own errors) before the run is folded.
+      const dims: Dim[] = [];
+      let ok = true;
+      for (const a of e.args) {
+        const d = inferDim(a, ctx);
+        if (d) dims.push(d);
+        else ok = false;
       }
-      return UNKNOWN;
+      if (!ok) return null;
+      const n = dims.length;
+      if (e.ops[0].op === "^") {
+        // Right to left: x0 ^ (x1 ^ (… ^ xn)); each exponent must be dimensionless.
+        let r = dims[n - 1];
+        let value = constantValue(e.args[n - 1]);
+        for (let i = n - 2; i >= 0; i--) {
+          if (hasUnit(r)) {
+            ctx.report(e.args[i + 1].from, e.to, `an exponent must be dimensionless, but this is ${describeDim(r)}`);
+            return null;
+          }
+          r = powDim(dims[i], value);
+          value = Math.pow(constantValue(e.args[i]), value);
+        }
+        return r;
+      }
+      let l = dims[0];
+      for (let i = 1; i < n; i++) {
+        const { op, from, to } = e.ops[i - 1];
+        const r = dims[i];
+        if (op === "*" || op === "/") {
+          l = mulDim(l, r, op === "*" ? 1 : -1);
+          continue;
+        }
+        if (!compatible(l, r)) {
+          ctx.report(
+            from,
+            to,
+            `cannot ${op === "+" ? "add" : "subtract"} ${describeDim(r)} ${op === "+" ? "to" : "from"} ${describeDim(l)}`,
+            "both sides of + and - must have the same unit",
+          );
+          return null;
+        }
+        l = addDim(l, r);
+      }
+      return l;
     }
     case "call": {
       if (PROBE_FUNCTIONS.has(e.fn)) return ctx.probeCall(e);
@@ -439,8 +474,11 @@ export function exprKey(e: Expr, placeholder?: (c: CallExpr) => string): string 
       return e.name;
     case "unary":
       return `${e.op}(${exprKey(e.arg, placeholder)})`;
-    case "binary":
-      return `(${exprKey(e.left, placeholder)})${e.op}(${exprKey(e.right, placeholder)})`;
+    case "binary": {
+      let key = `(${exprKey(e.args[0], placeholder)})`;
+      for (let i = 1; i < e.args.length; i++) key += `${e.ops[i - 1].op}(${exprKey(e.args[i], placeholder)})`;
+      return key;
+    }
     case "call":
       if (placeholder && PROBE_FUNCTIONS.has(e.fn)) return placeholder(e);
       return `${e.fn}(${e.args.map((a) => exprKey(a, placeholder)).join(",")})`;
@@ -450,6 +488,80 @@ export function exprKey(e: Expr, placeholder?: (c: CallExpr) => string): string 
 }
 
 const OPERATOR: Record<BinaryOp, string> = { "+": "add", "-": "subtract", "*": "multiply", "/": "divide", "^": "pow" };
+
+/** Runs up to this many operands compile to nested math.js operators, longer ones to folds. */
+const NESTED_RUN = 8;
+/** Operands per fold call; a longer run chains calls, each taking the previous one's result. */
+const FOLD_CHUNK = 1024;
+
+// The folds apply math.js's own add/subtract/multiply/divide/pow in source order, so a long
+// run gives exactly what the nested operators give, without nesting math.js's compiled
+// closures once per operand (a 100,000-term sum would overflow the stack).
+math.import({
+  __rillFoldLeft(ops: string, ...xs: number[]): number {
+    let a = xs[0];
+    for (let i = 1; i < xs.length; i++) {
+      const x = xs[i];
+      switch (ops[i - 1]) {
+        case "+":
+          a = math.add(a, x);
+          break;
+        case "-":
+          a = math.subtract(a, x);
+          break;
+        case "*":
+          a = math.multiply(a, x);
+          break;
+        default:
+          a = math.divide(a, x);
+      }
+    }
+    return a;
+  },
+  __rillFoldPow(...xs: number[]): number {
+    let r = xs[xs.length - 1];
+    for (let i = xs.length - 2; i >= 0; i--) r = math.pow(xs[i], r) as number;
+    return r;
+  },
+});
+
+function binaryNode(e: BinaryExpr, placeholder?: (c: CallExpr) => string): MathNode {
+  const args = e.args.map((a) => toMathNode(a, placeholder));
+  const n = args.length;
+  if (e.ops[0].op === "^") {
+    if (n <= NESTED_RUN) {
+      let r = args[n - 1];
+      for (let i = n - 2; i >= 0; i--) r = new math.OperatorNode("^", "pow", [args[i], r]);
+      return r;
+    }
+    // From the right: the last chunk first, then each earlier chunk raised to it.
+    let end = n;
+    let r: MathNode | null = null;
+    while (end > 0) {
+      const start = Math.max(0, end - FOLD_CHUNK);
+      const chunk = args.slice(start, end);
+      if (r) chunk.push(r);
+      r = chunk.length === 1 ? chunk[0] : new math.FunctionNode(new math.SymbolNode("__rillFoldPow"), chunk);
+      end = start;
+    }
+    return r!;
+  }
+  if (n <= NESTED_RUN) {
+    let l = args[0];
+    for (let i = 1; i < n; i++) {
+      const op = e.ops[i - 1].op;
+      l = new math.OperatorNode(op as "+", OPERATOR[op] as "add", [l, args[i]]);
+    }
+    return l;
+  }
+  let l = args[0];
+  for (let start = 1; start < n; start += FOLD_CHUNK) {
+    const end = Math.min(n, start + FOLD_CHUNK);
+    const ops = e.ops.slice(start - 1, end - 1).map((o) => o.op).join("");
+    l = new math.FunctionNode(new math.SymbolNode("__rillFoldLeft"), [new math.ConstantNode(ops), l, ...args.slice(start, end)]);
+  }
+  return l;
+}
 
 function toMathNode(e: Expr, placeholder?: (c: CallExpr) => string): MathNode {
   switch (e.k) {
@@ -462,10 +574,7 @@ function toMathNode(e: Expr, placeholder?: (c: CallExpr) => string): MathNode {
       return e.op === "-" ? new math.OperatorNode("-", "unaryMinus", [arg]) : arg;
     }
     case "binary":
-      return new math.OperatorNode(e.op as "+", OPERATOR[e.op] as "add", [
-        toMathNode(e.left, placeholder),
-        toMathNode(e.right, placeholder),
-      ]);
+      return binaryNode(e, placeholder);
     case "call":
       if (placeholder && PROBE_FUNCTIONS.has(e.fn)) return new math.SymbolNode(placeholder(e));
       return new math.FunctionNode(

@@ -228,12 +228,32 @@ function explain(err: SyntaxNode, text: string): Explained {
 }
 
 /**
+ * The expression at nesting depth `maxDepth + 1` above `err` when `err` sits deeper
+ * than that, else null. The parser gives up on nesting a few thousand levels deep
+ * (its stack limit) and leaves error nodes there: those are the depth limit's
+ * errors, not misspellings. Depth counts expression nodes, as the elaborator does.
+ */
+function tooDeepAt(err: SyntaxNode, maxDepth: number): SyntaxNode | null {
+  const chain: SyntaxNode[] = [];
+  for (let p = err.parent; p; p = p.parent) if (p.type.is("Expression")) chain.push(p);
+  return chain.length > maxDepth + 1 ? chain[chain.length - 1 - (maxDepth + 1)] : null;
+}
+
+/**
  * One error per syntax-error node of `tree`, at most one per line (the first
  * error on a line explains it; later ones on that line are consequences) and
  * at most `max` in all. Error nodes on a line already reported are skipped
  * before any explaining, so a degenerate tree with many errors stays linear.
+ * An error nested deeper than `maxDepth` expressions is reported as the depth limit.
  */
-export function reportSyntaxErrors(tree: Tree, text: string, sink: DiagnosticSink, lines: LineIndex, max = 1000): number {
+export function reportSyntaxErrors(
+  tree: Tree,
+  text: string,
+  sink: DiagnosticSink,
+  lines: LineIndex,
+  max = 1000,
+  maxDepth = Infinity,
+): number {
   const seenLines = new Set<number>();
   let count = 0;
   tree.iterate({
@@ -243,7 +263,10 @@ export function reportSyntaxErrors(tree: Tree, text: string, sink: DiagnosticSin
       const line = lines.position(n.from).line;
       if (seenLines.has(line)) return false;
       seenLines.add(line);
-      const e = explain(n.node, text);
+      const deep = tooDeepAt(n.node, maxDepth);
+      const e: Explained = deep
+        ? { from: deep.from, to: deep.to, message: `this expression nests deeper than ${maxDepth} levels`, hint: "split it with params" }
+        : explain(n.node, text);
       sink.error(e.from, e.to, e.message, e.hint);
       count++;
       return false;

@@ -159,6 +159,18 @@ describe("limits", () => {
     expect(ok.network!.params[0].value).toBe(1);
   });
 
+  it("nesting far past the limit (where the parser gives up) gets the depth-limit message, not a syntax error", () => {
+    // The place is the expression 201 levels in, as for nesting the parser still builds.
+    for (const [text, column] of [
+      [`param a = ${"(".repeat(100_001)}1${")".repeat(100_001)}\n`, 212],
+      [`param a = ${"max(".repeat(5000)}1${")".repeat(5000)}\n`, 815],
+      [`param a = ${"max(".repeat(300)}1${")".repeat(300)}\n`, 815],
+    ] as const) {
+      const r = elaborate(text);
+      expect(r.diagnostics.map((d) => `${d.line}:${d.column} ${d.message}`)).toEqual([`1:${column} this expression nests deeper than 200 levels`]);
+    }
+  });
+
   it("a degenerate parse with tens of thousands of error nodes still finishes with one diagnostic per line", { timeout: 120_000 }, () => {
     // 300,000 unary minus signs: the parser gives up on the nesting and leaves ~90,000 error nodes on one line.
     const r = elaborate(`param a = ${"-".repeat(300_000)}1\n`);

@@ -292,3 +292,44 @@ sweep dv values [0, 10m, 20m]
     expect(n.probes.map((p) => p.evaluate(ctx, {}, n.settings))).toEqual([1, 20, 300]);
   });
 });
+
+describe("long runs of one precedence are not nesting", () => {
+  it("a flat sum of 250 and of 100,000 terms is a value, not a depth error", () => {
+    expect(net(`param p = ${Array(250).fill("1").join("+")}\n`).params[0].value).toBe(250);
+    expect(net(`param p = ${Array(100_000).fill("1").join("+")}\n`).params[0].value).toBe(100_000);
+  });
+
+  it("a long mixed run folds from the left exactly as math.js does", () => {
+    // math.js's own parse nests one level per operator: 1,000 terms stay within its stack.
+    const terms = Array.from({ length: 1000 }, (_, i) => `${(i % 7) + 0.1 * (i % 3)}`);
+    const sum = terms[0] + terms.slice(1).map((t, i) => (i % 3 === 1 ? ` - ${t}` : ` + ${t}`)).join("");
+    expect(net(`param a = ${sum}\n`).params[0].value).toBe(math.evaluate(sum));
+    const product = terms.slice(0, 600).map((t, i) => (i === 0 ? t : i % 2 ? ` * ${t}` : ` / ${t}`)).join("").replace(/ \/ 0(?!\.)/g, " / 3");
+    expect(net(`param b = ${product}\n`).params[0].value).toBe(math.evaluate(product));
+    // 100,000 terms, past every chunk of the evaluator: the left fold in JavaScript.
+    const many = Array.from({ length: 100_000 }, (_, i) => 0.1 * ((i * 37) % 11));
+    let fold = many[0];
+    for (let i = 1; i < many.length; i++) fold = i % 2 ? fold + many[i] : fold - many[i];
+    const text = many.map((v, i) => (i === 0 ? `${v}` : `${i % 2 ? "+" : "-"}${v}`)).join("");
+    expect(net(`param c = ${text}\n`).params[0].value).toBe(fold);
+  });
+
+  it("a run of powers folds from the right", () => {
+    expect(net("param a = 2 ^ 3 ^ 2\n").params[0].value).toBe(512);
+    // 2 ^ (1 ^ (… ^ (3 ^ 2))) = 2; from the left it would be 2 ^ 18.
+    expect(net(`param b = 2 ^ ${Array(20).fill("1").join(" ^ ")} ^ 3 ^ 2\n`).params[0].value).toBe(2);
+    expect(net(`param c = 2 ^ ${Array(2000).fill("1").join(" ^ ")} ^ 3\n`).params[0].value).toBe(2);
+    expect(net("param d = 2 ^ -1 ^ 2 * 4\n").params[0].value).toBe(2);
+  });
+
+  it("a probe summing the currents of a 300-tap row parses and sums every device", () => {
+    let text = "rail gnd = 0\nrail g = 0.3\n";
+    for (let k = 0; k < 300; k++) text += `rail out${k} = 0.5\nnfet n${k} gate=g source=gnd drain=out${k}\n`;
+    text += `probe tot = ${Array.from({ length: 300 }, (_, k) => `current(n${k})`).join(" + ")}\n`;
+    const n = net(text);
+    const ctx: ProbeContext = { voltage: () => NaN, deviceCurrent: (i) => (i + 1) * 1e-9, injectCurrent: () => NaN, railCurrent: () => NaN };
+    let want = 0;
+    for (let i = 0; i < 300; i++) want += (i + 1) * 1e-9;
+    expect(n.probes[0].evaluate(ctx, {}, n.settings)).toBe(want);
+  });
+});
