@@ -6,7 +6,8 @@
 import { readFileSync, realpathSync, statSync } from "node:fs";
 import { pathToFileURL } from "node:url";
 import { DEFAULT_LIMITS, diagnosticsDocument, elaborate, type ElaborationResult, formatDiagnostics, tooLargeResult } from "../src/lang/index";
-import { solveNetwork, toSolveJson } from "../src/solver/index";
+import type { Network } from "../src/lang/network";
+import { pointCount, pointJson, type RunResult, solveNetwork, type SolveJson, toSolveJson } from "../src/solver/index";
 
 const EXIT_OK = 0;
 const EXIT_ERRORS = 1;
@@ -73,17 +74,57 @@ const check: Subcommand = {
   },
 };
 
+/**
+ * Most values `rill solve --json` prints (points × values per point), checked
+ * before anything is solved. About 40 bytes each in the printed text
+ * (measured: 16.5 M values printed 628 MB), so the document stays below
+ * 512 M characters, the longest string Node.js reads whole.
+ */
+export const MAX_PRINTED_VALUES = 10_000_000;
+
+/** What one point prints: every node's voltage and rail current, each device's three values, probes and params. */
+function printedValues(net: Network): number {
+  return pointCount(net) * (2 * net.nodes.names.length + 3 * net.devices.count + net.probes.length + net.params.length + 8);
+}
+
+/** The document as JSON.stringify(doc, null, 2) prints it, written a point at a time. */
+function writeSolveJson(doc: SolveJson, net: Network | null, run: RunResult | null, io: Io): void {
+  const points = doc.ok && net && run ? run.points : [];
+  const head = JSON.stringify({ ...doc, points: [] }, null, 2);
+  if (points.length === 0) {
+    io.out(head);
+    return;
+  }
+  // head ends with `"points": []` and the closing brace: open the array there instead.
+  io.out(`${head.slice(0, head.lastIndexOf("[]"))}[\n`);
+  for (let k = 0; k < points.length; k++) {
+    const text = JSON.stringify(pointJson(net as Network, points[k]), null, 2).replace(/\n/g, "\n    ");
+    io.out(`    ${text}${k + 1 < points.length ? "," : ""}\n`);
+  }
+  io.out("  ]\n}\n");
+}
+
 const solve: Subcommand = {
   usage: "rill solve FILE --json",
   summary: "solve every point and print one JSON document",
   run(args, io) {
     const { file, flags } = fileAndFlags(args, ["--json"]);
     const result = elaborateFile(file);
-    const run = result.network ? solveNetwork(result.network) : null;
+    const net = result.network;
     // The text places solver diagnostics at their device's line (the file was readable a moment ago).
-    const text = result.network ? readFileSync(file, "utf8") : undefined;
-    const doc = toSolveJson(result.network, result.diagnostics, run, text, result.name);
-    if (flags.has("--json")) io.out(JSON.stringify(doc, null, 2));
+    const text = net ? readFileSync(file, "utf8") : undefined;
+    if (net && printedValues(net) > MAX_PRINTED_VALUES) {
+      const at = net.sweeps[0]?.span.from ?? 0;
+      const line = (text ?? "").slice(0, at).split("\n").length;
+      const message = `this run would print about ${printedValues(net).toExponential(1)} values (${pointCount(net).toLocaleString("en-US")} points of ${net.nodes.names.length.toLocaleString("en-US")} nodes and ${net.devices.count.toLocaleString("en-US")} device${net.devices.count === 1 ? "" : "s"}), more than the command line's ${MAX_PRINTED_VALUES.toLocaleString("en-US")}: use fewer points, or run it in the workbench, which stores results point by point`;
+      const doc = toSolveJson(null, [...result.diagnostics, { severity: "error", line, column: 1, from: at, to: at, message }], null, undefined, net.name);
+      if (flags.has("--json")) io.out(JSON.stringify(doc, null, 2));
+      else io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));
+      return EXIT_ERRORS;
+    }
+    const run = net ? solveNetwork(net) : null;
+    const doc = toSolveJson(net, result.diagnostics, run, text, result.name, false);
+    if (flags.has("--json")) writeSolveJson(doc, net, run, io);
     else {
       if (doc.diagnostics.length) io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));
       if (run) io.out(`${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`);

@@ -33,7 +33,7 @@ export interface SolverInfo {
   reusedFactor?: boolean;
 }
 
-export type WarningKind = "junction" | "inversion";
+export type WarningKind = "junction" | "inversion" | "accuracy";
 
 /** A validity warning, aggregated over devices of one point. */
 export interface SolverWarning {
@@ -42,7 +42,7 @@ export interface SolverWarning {
   device: number;
   /** How many devices. */
   count: number;
-  /** Largest forward bias (junction, volts) or inversion coefficient (inversion). */
+  /** Largest forward bias (junction, volts), inversion coefficient (inversion) or KCL error relative to the largest current (accuracy). */
   worst: number;
   message: string;
 }
@@ -408,7 +408,7 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
  * at the device's statement when `text` is given. `ok` is false, with no
  * points, when any diagnostic is an error or any point failed.
  */
-export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run: RunResult | null, text?: string, name?: string | null): SolveJson {
+export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run: RunResult | null, text?: string, name?: string | null, withPoints = true): SolveJson {
   const out: JsonDiagnostic[] = diagnostics.map((d) => ({ severity: d.severity, line: d.line, column: d.column, message: d.message }));
   const lines = text !== undefined ? new LineIndex(text) : null;
   const at = (offset: number): { line: number; column: number } => (lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 });
@@ -434,7 +434,8 @@ export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run:
     network: net ? net.name : (name ?? null),
     ok,
     diagnostics: out,
-    points: ok && net && run ? run.points.map((p) => pointJson(net, p)) : [],
+    // (Without points, a caller prints them one by one with pointJson: a big run's text would not fit one string.)
+    points: ok && net && run && withPoints ? run.points.map((p) => pointJson(net, p)) : [],
   };
 }
 

@@ -13,11 +13,11 @@ import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
 import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear, solvePseudo, voltagesLinear } from "./linear";
-import { evaluateLinear, evaluationProblem } from "./linear-eval";
+import { evaluateLinear, evaluationProblem, KCL_LIMIT } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
 import { type Alloc, Arena, heap } from "./pool";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
-import { evaluate, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings } from "./results";
+import { evaluate, type Evaluation, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings, type SolverWarning } from "./results";
 
 export interface SolveOptions extends LinearOptions {
   /** Called after each point with (points done, points in the run). */
@@ -259,13 +259,17 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
         }
         const ev = lplan && ok && slot ? evaluateLinear(lplan, pnet, V, slot.store) : evaluate(pnet, V, P, kcl, slot ? slot.store : undefined);
         if (lplan && ok) {
-          // Currents out of range, or a KCL error rounding does not explain: not a solution to report.
+          // Currents out of range, or a KCL error beyond KCL_LIMIT: not a solution to report.
           const bad = evaluationProblem(lplan, pnet, ev);
           if (bad) {
             ok = false;
             error = bad.message;
             failNode = bad.node;
           }
+        } else if (nplan && ok) {
+          // Newton converged to the resolution of each node's voltage; say where that leaves the currents short.
+          const w = accuracyWarning(pnet, ev);
+          if (w) ev.warnings.push(w);
         }
         const probes = ok ? evaluateProbes(pnet, V, ev.currents, ev.railCurrents, params) : {};
         for (const name in probes) probeValues[name].push(probes[name]);
@@ -370,6 +374,29 @@ function pointArrays(nn: number, m: number, withIc: boolean, alloc: Alloc = heap
   return {
     V: alloc.f64(nn),
     store: { currents: alloc.f64(m), ic: withIc ? alloc.f64(m) : null, saturated: alloc.u8(m), railCurrents: alloc.f64(nn) },
+  };
+}
+
+/**
+ * A Newton point whose KCL error exceeds KCL_LIMIT of its largest current:
+ * its node voltages are right to their last digits (Newton's test), but a
+ * channel whose source and drain are within rounding of each other (a node
+ * picovolts from a rail) has a current resolved only to that error.
+ */
+function accuracyWarning(net: Network, ev: Evaluation): SolverWarning | null {
+  let scale = ev.maxCurrent;
+  for (let j = 0; j < net.injects.count; j++) scale = Math.max(scale, Math.abs(net.injects.value[j]));
+  if (!(ev.residual > KCL_LIMIT * scale) || ev.worstNode < 0) return null;
+  const { source, drain, count, names } = net.devices;
+  let device = 0;
+  for (let d = count - 1; d >= 0; d--) if (source[d] === ev.worstNode || drain[d] === ev.worstNode) device = d;
+  const node = net.nodes.names[ev.worstNode];
+  return {
+    kind: "accuracy",
+    device,
+    count: 1,
+    worst: ev.residual / scale,
+    message: `${names[device]}: the KCL error at node ${node} is ${ev.residual.toExponential(2)} A (${(ev.residual / scale).toExponential(1)} of the largest current); a channel there has its source and drain within rounding of each other (a node within picovolts of a rail), so the currents at ${node} are resolved only to about that`,
   };
 }
 

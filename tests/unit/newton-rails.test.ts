@@ -149,3 +149,21 @@ describe("Newton on an inverter whose output is within picovolts of a rail", () 
     }
   });
 });
+
+describe("a Newton point whose channel currents double precision cannot resolve says so", () => {
+  it("vin = 0.2 V: the output is within an ulp of VDD, the pfet's current is not resolved and the point carries an accuracy warning naming x1; at 0.8 V it carries none", () => {
+    const low = chain(1, 0.2);
+    const run = solveNetwork(low);
+    expect(run.ok).toBe(true);
+    const p = run.points[0];
+    // The nfet's saturated current is right (test above); the pfet's, from V_SD below an ulp of VDD, is not.
+    const i_n = p.currents[low.devices.index.get("n1")!];
+    const i_p = p.currents[low.devices.index.get("p1")!];
+    expect(Math.abs(i_p - i_n)).toBeGreaterThan(1e-6 * i_n);
+    const w = p.warnings.find((x) => x.kind === "accuracy");
+    expect(w, JSON.stringify(p.warnings)).toBeDefined();
+    expect(w!.message).toMatch(/KCL error at node x1 .* resolved only to about that/);
+    const mid = solveNetwork(chain(1, 0.8));
+    expect(mid.points[0].warnings.filter((x) => x.kind === "accuracy")).toEqual([]);
+  });
+});

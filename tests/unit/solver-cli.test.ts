@@ -10,7 +10,7 @@ import { mkdtempSync, readdirSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { main } from "../../scripts/rill";
+import { MAX_PRINTED_VALUES, main } from "../../scripts/rill";
 import type { SolveJson } from "../../src/solver/results";
 
 const root = join(__dirname, "../..");
@@ -74,5 +74,30 @@ describe("rill solve --json on the examples", () => {
     expect(doc.ok).toBe(false);
     expect(doc.points).toEqual([]);
     expect(doc.diagnostics[0]).toMatchObject({ severity: "error", line: 4 });
+  });
+
+  it("a run's document is printed a point at a time, exactly as JSON.stringify(doc, null, 2) prints it whole", () => {
+    let out = "";
+    let writes = 0;
+    const code = main(["solve", join(root, "examples", "biassweep.rill"), "--json"], { out: (t) => ((out += t), writes++), err: () => undefined });
+    expect(code).toBe(0);
+    const doc = JSON.parse(out) as SolveJson;
+    expect(doc.points.length).toBeGreaterThan(1);
+    expect(writes).toBeGreaterThan(doc.points.length);
+    expect(out).toBe(`${JSON.stringify(doc, null, 2)}\n`);
+  });
+
+  it("a run that would print more than MAX_PRINTED_VALUES is refused before solving, at its sweep's line", () => {
+    const dir = mkdtempSync(join(tmpdir(), "rill-solve-"));
+    const file = join(dir, "big.rill");
+    // 1,000 × 1,000 points of a one-device network: a million points, about 2e7 values.
+    writeFileSync(file, "param a = 0.6\nparam b = 1n\nrail vdd = 1.8\nrail gnd = 0\nrail g = a\nnfet m gate=g source=x drain=vdd\ninject s from=x to=gnd value=b\nsweep a from 0.5 to 0.7 points 1000\nsweep b from 1n to 2n points 1000\n");
+    const { code, doc } = solveJson(file);
+    expect(code).toBe(1);
+    expect(doc.ok).toBe(false);
+    expect(doc.points).toEqual([]);
+    expect(doc.diagnostics[0]).toMatchObject({ severity: "error", line: 8 });
+    expect(doc.diagnostics[0].message).toMatch(/would print about .* values \(1,000,000 points of 4 nodes and 1 device\), more than the command line's 10,000,000/);
+    expect(MAX_PRINTED_VALUES).toBe(10_000_000);
   });
 });
