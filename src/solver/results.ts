@@ -428,6 +428,13 @@ export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run:
         out.push({ severity: "warning", ...at(net.devices.at[w.device]), message: w.message + where });
       }
     }
+    // A probe that is not a number (0/0, log of 0, a ratio over a current of 0 A) prints null: say so, once per probe.
+    for (const probe of net.probes) {
+      const p = run.points.find((q) => q.ok && probe.name in q.probes && !Number.isFinite(q.probes[probe.name]));
+      if (!p) continue;
+      const where = run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+      out.push({ severity: "warning", ...at(probe.span.from), message: `probe ${probe.name} is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null${where}` });
+    }
     if (!run.ok) ok = false;
   }
   return {

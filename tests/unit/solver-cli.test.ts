@@ -100,4 +100,16 @@ describe("rill solve --json on the examples", () => {
     expect(doc.diagnostics[0].message).toMatch(/would print about .* values \(1,000,000 points of 4 nodes and 1 device\), more than the command line's 10,000,000/);
     expect(MAX_PRINTED_VALUES).toBe(10_000_000);
   });
+
+  it("a probe that is not a finite number prints null with a warning at the probe's line", () => {
+    const dir = mkdtempSync(join(tmpdir(), "rill-solve-"));
+    const file = join(dir, "nan.rill");
+    writeFileSync(file, "param z = 0\nrail vdd = 1.8\nrail gnd = 0\nrail gb = 0.6\nnfet m1 gate=gb source=x drain=vdd\ninject s from=x to=gnd value=1n\nprobe c = 1/z\nprobe v = voltage(x)\nsweep z values [1, 0]\n");
+    const { code, doc } = solveJson(file);
+    expect(code).toBe(0);
+    expect(doc.points[0].probes.c).toBe(1);
+    expect(doc.points[1].probes.c).toBeNull();
+    expect(doc.diagnostics).toEqual([{ severity: "warning", line: 7, column: 7, message: "probe c is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null (first at point 1)" }]);
+  });
 });
+
