@@ -104,6 +104,19 @@ function writeSolveJson(doc: SolveJson, net: Network | null, run: RunResult | nu
   io.out("  ]\n}\n");
 }
 
+/** After the first 2 s of a run, a line on stderr every 2 s: how far it is and how long the rest will take at this pace. */
+function progress(io: Io): (done: number, total: number) => void {
+  const t0 = performance.now();
+  let next = t0 + 2000;
+  return (done, total) => {
+    const now = performance.now();
+    if (now < next || done >= total) return;
+    next = now + 2000;
+    const s = (now - t0) / 1000;
+    io.err(`rill solve: ${done.toLocaleString("en-US")} of ${total.toLocaleString("en-US")} points in ${s.toFixed(0)} s, about ${((s / done) * (total - done)).toFixed(0)} s to go`);
+  };
+}
+
 const solve: Subcommand = {
   usage: "rill solve FILE --json",
   summary: "solve every point and print one JSON document",
@@ -122,7 +135,7 @@ const solve: Subcommand = {
       else io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));
       return EXIT_ERRORS;
     }
-    const run = net ? solveNetwork(net) : null;
+    const run = net ? solveNetwork(net, { onProgress: progress(io) }) : null;
     const doc = toSolveJson(net, result.diagnostics, run, text, result.name, false);
     if (flags.has("--json")) writeSolveJson(doc, net, run, io);
     else {
@@ -170,5 +183,10 @@ const io: Io = {
 
 // Run when executed as a script (not when a test imports `main`).
 if (process.argv[1] && import.meta.url === pathToFileURL(realpathSync(process.argv[1])).href) {
+  // A reader that stops early (`| head`) closes the pipe: stop quietly, as other commands do.
+  process.stdout.on("error", (e: NodeJS.ErrnoException) => {
+    if (e.code !== "EPIPE") throw e;
+    process.exit(process.exitCode ?? 0);
+  });
   process.exitCode = main(process.argv.slice(2), io);
 }
