@@ -6,7 +6,8 @@
  * F_k(V) = Σ currents entering internal node k (device equations of
  * device.ts, injects); J = ∂F/∂V is assembled into a fixed sparse pattern and
  * factorised by the sparse LU with partial pivoting of lu.ts, columns in
- * approximate-minimum-degree order of J + Jᵀ.
+ * approximate-minimum-degree order of J + Jᵀ (nested dissection from
+ * NESTED_FROM rows).
  *
  * Damping: each step δ = −J⁻¹F is scaled so that no node moves more than
  * MAX_STEP_UT thermal voltages (common practice for exponential devices).
@@ -27,7 +28,7 @@
 import type { Network } from "../lang/network";
 import { type DeviceParams, deviceCurrent, polarity } from "./device";
 import { lu, luSolve } from "./lu";
-import { amd } from "./order";
+import { amd, nestedDissection, type OrderingName } from "./order";
 import { compressPattern, type Csc, symmetricAdjacency } from "./sparse";
 
 const MAX_STEP_UT = 4;
@@ -35,6 +36,13 @@ const MAX_ITER = 200;
 const STEP_TOL = 1e-9;
 const ABS_TOL = 1e-15;
 const REL_TOL = 1e-9;
+/**
+ * Rows from which the LU's columns go in nested-dissection order instead of
+ * AMD: on a 200 × 200 mesh with a diode-connected device at every node the
+ * whole solve took 9.9 s against 14.1 s (13 iterations, same answer); at
+ * 2,025 rows the two were within the VM's noise.
+ */
+const NESTED_FROM = 4096;
 /** A row's KCL error is resolved within this many ulps of its rounding scale (see `resolved`). */
 const RES_ULPS = 4;
 
@@ -46,8 +54,9 @@ export interface NewtonPlan {
   J: Csc;
   /** Per device 8 slots: [source row × (g, s, d, b), drain row × (g, s, d, b)] → position in J.x, or -1. */
   slots: Int32Array;
-  /** Column order for the LU. */
+  /** Column order for the LU, and which ordering made it. */
   q: Int32Array;
+  ordering: OrderingName;
   F: Float64Array;
   delta: Float64Array;
   work: Float64Array;
@@ -108,7 +117,8 @@ export function planNewton(net: Network): NewtonPlan {
   const slots = new Int32Array(8 * m);
   for (let k = 0; k < 8 * m; k++) slots[k] = slotPair[k] < 0 ? -1 : map[slotPair[k]];
   const adj = symmetricAdjacency(J);
-  const q = amd(rows, adj.p, adj.i);
+  const ordering: OrderingName = rows >= NESTED_FROM ? "nd" : "amd";
+  const q = ordering === "nd" ? nestedDissection(rows, adj.p, adj.i) : amd(rows, adj.p, adj.i);
   return {
     rows,
     rowOf,
@@ -116,6 +126,7 @@ export function planNewton(net: Network): NewtonPlan {
     J,
     slots,
     q,
+    ordering,
     F: new Float64Array(rows),
     delta: new Float64Array(rows),
     work: new Float64Array(rows),

@@ -291,7 +291,7 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
             iterations,
             residual: ev.residual,
             reason,
-            ordering: lplan ? lplan.ordering : "amd",
+            ordering: lplan ? lplan.ordering : nplan ? nplan.ordering : "amd",
             ...(nplan ? { continuation } : { reusedFactor: reused }),
           },
           warnings: ok ? ev.warnings : [],
