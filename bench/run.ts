@@ -205,17 +205,19 @@ function independentSolves(net: Network): number {
 
 /**
  * The least an inject sweep's point can cost here (µs, median): for `nodes`
- * nodes V = vref − U_T·ln(p0 + v·p1), for `devices` devices I = i0 + v·i1 and
- * the flag (s0 + v·s1 < 0): the point's voltages, currents and saturation
- * flags from superposed parts, with no KCL residual, rail currents, probes or
- * record. Three sets of arrays in turn, as a run's arrays are not constants
- * to the compiler either.
+ * nodes V = vref − U_T·ln(p0 + v·p1) and the KCL residual max|e0 + v·e1|, for
+ * `devices` devices I = i0 + v·i1 and the flag (s0 + v·s1 < 0): the point's
+ * voltages, currents, saturation flags and residual from superposed parts,
+ * with no rail currents, probes or record. Three sets of arrays in turn, as a
+ * run's arrays are not constants to the compiler either.
  */
 function injectOutputFloor(nodes: number, devices: number): number {
   const set = () => ({
     p0: Float64Array.from({ length: nodes }, (_, k) => Math.exp(-10 - (k % 97) / 5)),
     p1: Float64Array.from({ length: nodes }, (_, k) => 1e3 * Math.exp(-10 - (k % 89) / 5)),
     V: new Float64Array(nodes),
+    e0: Float64Array.from({ length: nodes }, (_, k) => 1e-25 * Math.sin(k)),
+    e1: Float64Array.from({ length: nodes }, (_, k) => 1e-16 * Math.cos(k)),
     i0: Float64Array.from({ length: devices }, (_, d) => 1e-9 * Math.sin(d)),
     i1: Float64Array.from({ length: devices }, (_, d) => Math.cos(d)),
     s0: Float64Array.from({ length: devices }, (_, d) => (d % 3) - 1),
@@ -224,22 +226,30 @@ function injectOutputFloor(nodes: number, devices: number): number {
     sat: new Uint8Array(devices),
   });
   const sets = [set(), set(), set()];
-  const point = (s: ReturnType<typeof set>, v: number): void => {
-    const { p0, p1, V, i0, i1, s0, s1, I, sat } = s;
-    for (let k = 0; k < nodes; k++) V[k] = 0.7 - 0.025 * Math.log(p0[k] + v * p1[k]);
+  const point = (s: ReturnType<typeof set>, v: number): number => {
+    const { p0, p1, V, e0, e1, i0, i1, s0, s1, I, sat } = s;
+    let residual = 0;
+    for (let k = 0; k < nodes; k++) {
+      V[k] = 0.7 - 0.025 * Math.log(p0[k] + v * p1[k]);
+      const e = Math.abs(e0[k] + v * e1[k]);
+      if (e > residual) residual = e;
+    }
     for (let d = 0; d < devices; d++) {
       I[d] = i0[d] + v * i1[d];
       sat[d] = s0[d] + v * s1[d] < 0 ? 1 : 0;
     }
+    return residual;
   };
+  let sink = 0;
   const run = (): number => {
     const t0 = performance.now();
-    for (let j = 0; j < 1000; j++) point(sets[j % 3], 1e-10 * (1 + j / 100));
+    for (let j = 0; j < 1000; j++) sink += point(sets[j % 3], 1e-10 * (1 + j / 100));
     return performance.now() - t0;
   };
   for (let w = 0; w < 3; w++) run();
   const ms: number[] = [];
   for (let r = 0; r < 7; r++) ms.push(run());
+  if (!Number.isFinite(sink)) throw new Error("injectOutputFloor: not finite");
   return median(ms);
 }
 
@@ -363,7 +373,7 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
       const perPoint = (1000 * (inj.total_ms - inj.phases.elaborate_ms)) / inj.points;
       const floor = injectOutputFloor(inj.nodes, inj.devices);
       goals.push(
-        `both sweep goals together need an inject point in ≤ ${fmt(cap)} µs (1/80 of an independent solve); it takes ${fmt(perPoint)} µs, and writing its outputs alone (a logarithm per node, a current and a saturation flag per device, each from its superposed parts, nothing else) takes ${fmt(floor)} µs here`,
+        `both sweep goals together need an inject point in ≤ ${fmt(cap)} µs (1/80 of an independent solve); it takes ${fmt(perPoint)} µs, and writing its outputs alone (a logarithm and the KCL residual per node, a current and a saturation flag per device, each from its superposed parts, nothing else) takes ${fmt(floor)} µs here`,
       );
     }
   }
