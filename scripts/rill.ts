@@ -126,10 +126,11 @@ const solve: Subcommand = {
     const net = result.network;
     // The text places solver diagnostics at their device's line (the file was readable a moment ago).
     const text = net ? readFileSync(file, "utf8") : undefined;
-    if (net && printedValues(net) > MAX_PRINTED_VALUES) {
+    const printed = net ? printedValues(net) : 0;
+    if (net && printed > MAX_PRINTED_VALUES) {
       const at = net.sweeps[0]?.span.from ?? 0;
       const line = (text ?? "").slice(0, at).split("\n").length;
-      const message = `this run would print about ${printedValues(net).toExponential(1)} values (${pointCount(net).toLocaleString("en-US")} points of ${net.nodes.names.length.toLocaleString("en-US")} nodes and ${net.devices.count.toLocaleString("en-US")} device${net.devices.count === 1 ? "" : "s"}), more than the command line's ${MAX_PRINTED_VALUES.toLocaleString("en-US")}: use fewer points, or run it in the workbench, which stores results point by point`;
+      const message = `this run would print about ${printed.toExponential(1)} values (${pointCount(net).toLocaleString("en-US")} points of ${net.nodes.names.length.toLocaleString("en-US")} nodes and ${net.devices.count.toLocaleString("en-US")} device${net.devices.count === 1 ? "" : "s"}), more than the command line's ${MAX_PRINTED_VALUES.toLocaleString("en-US")}: use fewer points, or run it in the workbench, which stores results point by point`;
       const doc = toSolveJson(null, [...result.diagnostics, { severity: "error", line, column: 1, from: at, to: at, message }], null, undefined, net.name);
       if (flags.has("--json")) io.out(JSON.stringify(doc, null, 2));
       else io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));

@@ -949,8 +949,7 @@ class Elaborator {
       this.clash("param", name, d, other);
       return;
     }
-    this.kindByName.set(name, "a param");
-    this.declAt.set(name, d.from);
+    this.declare(name, "a param", d.from);
     if (!valueNode) return;
     const t = this.compileValue(valueNode, [], null, "");
     if (!t) {
@@ -1777,8 +1776,12 @@ class Elaborator {
       // The outermost loop reports its own total; an inner loop only gets here when an
       // enclosing loop's estimate was low (bounds that depend on a loop variable).
       const outermost = this.outerFor !== null && this.outerFor.from === t.from;
-      if (!outermost || !Number.isSafeInteger(runs)) this.overflow(t, `more than ${limit} statement runs (the limit)`);
-      this.overflow(t, `${body.exact ? "" : "at least "}${runs.toLocaleString("en-US")} statement runs, more than the limit of ${limit}`);
+      this.overflow(
+        t,
+        outermost && Number.isSafeInteger(runs)
+          ? `${body.exact ? "" : "at least "}${runs.toLocaleString("en-US")} statement runs, more than the limit of ${limit}`
+          : `more than ${limit} statement runs (the limit)`,
+      );
     }
     const lv = this.loopValues;
     const outerVar = this.loopVar;
@@ -1982,6 +1985,12 @@ class Elaborator {
     this.sink.error(t.from, t.to, `${kind} '${name}' is defined twice (first on line ${this.line(firstAt)})`, hint);
   }
 
+  /** `name` now means `kind` ("a rail", ...), declared at offset `at`: one namespace for rails, injects, probes and params. */
+  private declare(name: string, kind: string, at: number): void {
+    this.kindByName.set(name, kind);
+    this.declAt.set(name, at);
+  }
+
   private clash(kind: string, name: string, t: { from: number; to: number }, other: string): void {
     const at = other === "a device" ? this.devDeclAt(name) : this.declAt.get(name);
     const where = at !== undefined ? ` (first on line ${this.line(at)})` : "";
@@ -2154,8 +2163,7 @@ class Elaborator {
     const i = this.injNames.length;
     this.injNames.push(name);
     this.injIndex.set(name, i);
-    this.kindByName.set(name, "an inject");
-    this.declAt.set(name, t.name.from);
+    this.declare(name, "an inject", t.name.from);
     this.injFrom.push(f);
     this.injTo.push(to);
     this.injValue.push(v);
@@ -2188,8 +2196,7 @@ class Elaborator {
     this.isRail.data[i] = 1;
     this.railValue.data[i] = v;
     this.rails.push({ name, node: i, span: { from: t.name.from, to: t.name.to } });
-    this.kindByName.set(name, "a rail");
-    this.declAt.set(name, t.name.from);
+    this.declare(name, "a rail", t.name.from);
     if (t.value) this.bind(t.value, { kind: "rail", node: i });
   }
 
@@ -2208,8 +2215,7 @@ class Elaborator {
       args.push({ kind: a.kind, name: n, from: a.name.from, to: a.name.to });
     }
     this.probeNames.set(name, t.at);
-    this.kindByName.set(name, "a probe");
-    this.declAt.set(name, t.name.from);
+    this.declare(name, "a probe", t.name.from);
     this.pendingProbes.push({
       name,
       span: { from: t.name.from, to: t.name.to },

@@ -20,8 +20,10 @@ import type { Network } from "../lang/network";
 import type { LinearPlan, SuperposedParts } from "./linear";
 import { pool } from "./pool";
 import {
+  currentScale,
   type Evaluation,
   evalStats,
+  KCL_LIMIT,
   noIc,
   type PointStorage,
   S_ICOUNT,
@@ -300,16 +302,6 @@ function icLoop(
 }
 
 /**
- * A linear point's KCL error, relative to its largest device or inject
- * current, beyond which the point is not reported as solved. A sound solve
- * leaves about 1e-15; the output currents' own error was measured at a few
- * times the relative KCL error (a 64-tap row whose lateral gate is on the
- * supply: 1.2e-3 of KCL error, outputs 0.7% off), so this keeps reported
- * currents to about 1e-5.
- */
-export const KCL_LIMIT = 1e-6;
-
-/**
  * Why an evaluated linear point must not be reported as solved, or null: a
  * current out of double precision's range (not finite), or a KCL error beyond
  * KCL_LIMIT of the largest current. The message says which of two causes it
@@ -321,9 +313,8 @@ export const KCL_LIMIT = 1e-6;
  * itself lost the accuracy.
  */
 export function evaluationProblem(plan: LinearPlan, net: Network, ev: Evaluation): { node: number; message: string } | null {
-  const { injects, nodes } = net;
-  let scale = ev.maxCurrent;
-  for (let j = 0; j < injects.count; j++) scale = Math.max(scale, Math.abs(injects.value[j]));
+  const { nodes } = net;
+  const scale = currentScale(net, ev);
   let railBad = -1;
   for (const q of plan.railNodes) if (!Number.isFinite(ev.railCurrents[q])) railBad = q;
   if (!Number.isFinite(ev.residual) || !Number.isFinite(scale) || railBad >= 0) {

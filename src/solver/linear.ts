@@ -13,9 +13,11 @@
  * group of nodes reaches a rail. Rails enter the right-hand side.
  *
  * Scaling (so that no exponential overflows and the system is O(1)): per
- * polarity class c, u is measured from a reference rail voltage Vref_c
- * (û = u/u(Vref_c) ≤ 1 on every rail) and conductances are divided by
- * gs_c = i0·exp(Λ_c)·u(Vref_c), Λ_c the largest gate exponent of the class.
+ * polarity class c, u is measured from a reference voltage Vref_c — the
+ * class's extreme rail, or beyond it where an inject holds a node far past
+ * every rail (û = u/u(Vref_c) ≤ 1 on every rail either way) — and
+ * conductances are divided by gs_c = i0·exp(Λ_c)·u(Vref_c), Λ_c the largest
+ * gate exponent of the class.
  *
  * Phases: `planLinear` (structure: graph, ordering, symbolic analysis, the
  * device → matrix-entry maps) once per run; `factorLinear` (conductances,

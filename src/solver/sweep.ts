@@ -13,11 +13,11 @@ import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
 import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear, solvePseudo, voltagesLinear } from "./linear";
-import { evaluateLinear, evaluationProblem, KCL_LIMIT } from "./linear-eval";
+import { evaluateLinear, evaluationProblem } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
 import { type Alloc, Arena, heap } from "./pool";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
-import { evaluate, type Evaluation, evaluateProbes, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings, type SolverWarning } from "./results";
+import { currentScale, evaluate, type Evaluation, evaluateProbes, firstDeviceAt, KCL_LIMIT, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings, type SolverWarning } from "./results";
 
 export interface SolveOptions extends LinearOptions {
   /** Called after each point with (points done, points in the run). */
@@ -384,12 +384,10 @@ function pointArrays(nn: number, m: number, withIc: boolean, alloc: Alloc = heap
  * picovolts from a rail) has a current resolved only to that error.
  */
 function accuracyWarning(net: Network, ev: Evaluation): SolverWarning | null {
-  let scale = ev.maxCurrent;
-  for (let j = 0; j < net.injects.count; j++) scale = Math.max(scale, Math.abs(net.injects.value[j]));
+  const scale = currentScale(net, ev);
   if (!(ev.residual > KCL_LIMIT * scale) || ev.worstNode < 0) return null;
-  const { source, drain, count, names } = net.devices;
-  let device = 0;
-  for (let d = count - 1; d >= 0; d--) if (source[d] === ev.worstNode || drain[d] === ev.worstNode) device = d;
+  const device = Math.max(0, firstDeviceAt(net, ev.worstNode));
+  const { names } = net.devices;
   const node = net.nodes.names[ev.worstNode];
   return {
     kind: "accuracy",
