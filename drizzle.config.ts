@@ -4,5 +4,5 @@ export default defineConfig({
   dialect: "sqlite",
   schema: "./db/schema.ts",
   out: "./migrations",
-  dbCredentials: { url: process.env.RILL_DB ?? "./data/rill.db" },
+  dbCredentials: { url: process.env.RUNNEL_DB ?? "./data/runnel.db" },
 });

@@ -1,6 +1,6 @@
 import { defineConfig } from "@playwright/test";
 
-const PORT = Number(process.env.RILL_E2E_PORT ?? 3100);
+const PORT = Number(process.env.RUNNEL_E2E_PORT ?? 3100);
 const CHROMIUM = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 
 /** Browser tests: the built app with a freshly seeded demo database, in Debian's Chromium (never a downloaded browser). */
@@ -35,6 +35,6 @@ export default defineConfig({
     reuseExistingServer: false,
     stdout: "pipe",
     stderr: "pipe",
-    env: { RILL_DB: process.env.RILL_E2E_DB ?? "test-results/e2e/rill.db", NEXT_TELEMETRY_DISABLED: "1" },
+    env: { RUNNEL_DB: process.env.RUNNEL_E2E_DB ?? "test-results/e2e/runnel.db", NEXT_TELEMETRY_DISABLED: "1" },
   },
 });

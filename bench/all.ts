@@ -28,7 +28,7 @@ build({
   target: "node20",
   tsconfig: "tsconfig.json",
   // ESM output still meets CommonJS dependencies that call require().
-  banner: { js: "import { createRequire as __rillRequire } from 'node:module'; const require = __rillRequire(import.meta.url);" },
+  banner: { js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);" },
   logLevel: "warning",
 }).then(
   () => process.exit(main()),

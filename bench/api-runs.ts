@@ -36,12 +36,12 @@ for (const need of [".next/BUILD_ID", ".build/run-worker.mjs"]) {
   }
 }
 
-const dir = fs.mkdtempSync(path.join(os.tmpdir(), "rill-bench-api-"));
-process.env.RILL_DB = path.join(dir, "rill.db");
+const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-bench-api-"));
+process.env.RUNNEL_DB = path.join(dir, "runnel.db");
 const { openDatabase, closeDb } = await import("../db/index");
 const { seedDemo } = await import("../db/seed");
 const { createApiToken } = await import("../app/lib/tokens");
-const seeded = openDatabase(process.env.RILL_DB);
+const seeded = openDatabase(process.env.RUNNEL_DB);
 seedDemo(seeded);
 seeded.$client.close();
 const { token } = createApiToken("u_designer1", "bench");

@@ -1,5 +1,5 @@
 /**
- * Results storage: typed-array blobs per point (what Rill stores, db/work-schema.ts
+ * Results storage: typed-array blobs per point (what Runnel stores, db/work-schema.ts
  * `run_points`) against a narrow table of one row per value
  * (run, point, kind, entity, value), on the same invented data: a 64 × 64
  * diffuser grid's layout (4,096 internal nodes, 12,160 devices, 4 rails,
@@ -68,7 +68,7 @@ function time(f: () => void): number {
   return performance.now() - t;
 }
 
-const dir = fs.mkdtempSync(path.join(os.tmpdir(), "rill-bench-storage-"));
+const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-bench-storage-"));
 const file = path.join(dir, "bench.db");
 const db = openDatabase(file);
 seedDemo(db);

@@ -1,7 +1,7 @@
 /**
- * Rill benchmarks: `npm run bench [-- --json] [--only NAME] [--reps N] [--quick]`.
+ * Runnel benchmarks: `npm run bench [-- --json] [--only NAME] [--reps N] [--quick]`.
  *
- * Every workload is generated as .rill TEXT with for-loops and goes through
+ * Every workload is generated as .runnel TEXT with for-loops and goes through
  * the language's `elaborate()` (timed as elaborate_ms: this doubles as the
  * parse + elaborate benchmark), then `solveNetwork()` with points streamed,
  * not retained (one set of result arrays reused, as the run worker does).
@@ -16,7 +16,7 @@
  * thread's work-array pool, so this is a server worker that has solved
  * before. `cold` is the same workload elaborated and solved once in a fresh
  * process (nothing compiled, no pool, elaboration's garbage still around:
- * what a first `rill solve` pays). Phases are timed separately and summed over a sweep's points:
+ * what a first `runnel solve` pays). Phases are timed separately and summed over a sweep's points:
  *   analyse_ms  graph, fill-reducing ordering, symbolic analysis (Newton: Jacobian pattern, ordering)
  *   factor_ms   conductances and numeric factorisation (zero for points that reuse it)
  *   solve_ms    right-hand side, triangular solves or superposition, up to the pseudo-voltages (Newton: the iterations)
@@ -403,11 +403,11 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   process.stdout.write(`${out.join("\n")}\n`);
 }
 
-if ((globalThis as { gc?: unknown }).gc === undefined && !process.env.RILL_BENCH_CHILD) {
+if ((globalThis as { gc?: unknown }).gc === undefined && !process.env.RUNNEL_BENCH_CHILD) {
   // Re-run with --expose-gc, so that elaboration's garbage is collected before the solves are timed.
   const r = spawnSync(process.execPath, [...process.execArgv, "--expose-gc", process.argv[1], ...process.argv.slice(2)], {
     stdio: "inherit",
-    env: { ...process.env, RILL_BENCH_CHILD: "1" },
+    env: { ...process.env, RUNNEL_BENCH_CHILD: "1" },
   });
   process.exitCode = r.status ?? 1;
 } else {

@@ -1,4 +1,4 @@
-/** The benchmark networks, generated as .rill text with for loops (shared by bench/run.ts and bench/api-runs.ts). */
+/** The benchmark networks, generated as .runnel text with for loops (shared by bench/run.ts and bench/api-runs.ts). */
 
 /** Diffuser grid n×n (bench contract): lateral nfets between 4-neighbours on gate rail gh, an output nfet at every node (gate gv, drain on a 1 V rail), one inject at the centre. */
 export function gridText(name: string, n: number, extra = "", injectValue = "1n"): string {

@@ -2,7 +2,7 @@ import type { Role } from "./schema";
 
 /**
  * The password of every demo account: documented in the README ("Demo
- * accounts") and shown on /signin in demo mode (RILL_DEMO=1). It is the only
+ * accounts") and shown on /signin in demo mode (RUNNEL_DEMO=1). It is the only
  * credential in the repository; real accounts choose their own.
  */
 export const DEMO_PASSWORD = "larkspur-demo";

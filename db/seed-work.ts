@@ -1,5 +1,5 @@
 /**
- * The workbench part of the demo: the example networks (examples/*.rill,
+ * The workbench part of the demo: the example networks (examples/*.runnel,
  * invented LM-64 demo data) committed into the demo workspace by the demo
  * designers, each with a finished run solved in-process at seed time, so a
  * first visit shows real tables and plots. Idempotent: a network that exists
@@ -18,21 +18,21 @@ import { runs } from "./schema";
 /** Demo networks: file, display name, author, commit message, and an earlier version to make a history. */
 export const DEMO_NETWORKS: { file: string; name: string; author: string; message: string; earlier?: { edit: (text: string) => string; message: string } }[] = [
   {
-    file: "row64.rill",
+    file: "row64.runnel",
     name: "LM-64 edge row",
     author: "u_designer1",
     message: "Lateral gate at 0.74 V for a space constant of about 4 taps",
     earlier: { edit: (t) => t.replace(/param vh = [^\n#]+/, "param vh = 0.70"), message: "First cut of the 64-tap row" },
   },
-  { file: "grid32.rill", name: "Smoothing grid 32 × 32", author: "u_designer2", message: "Bright spot in the middle of a 32 × 32 grid" },
-  { file: "divider.rill", name: "Bias divider", author: "u_designer1", message: "Differential-pair divider, 20 mV gate difference" },
-  { file: "mirror.rill", name: "Mirror bank", author: "u_designer2", message: "Binary-weighted mirror bank fed by a pfet source" },
-  { file: "biassweep.rill", name: "Bias sweep", author: "u_designer1", message: "Lateral gate sweep at three temperatures" },
-  { file: "mismatch.rill", name: "Divider mismatch study", author: "u_designer2", message: "Pelgrom mismatch, 200 samples per gate difference" },
+  { file: "grid32.runnel", name: "Smoothing grid 32 × 32", author: "u_designer2", message: "Bright spot in the middle of a 32 × 32 grid" },
+  { file: "divider.runnel", name: "Bias divider", author: "u_designer1", message: "Differential-pair divider, 20 mV gate difference" },
+  { file: "mirror.runnel", name: "Mirror bank", author: "u_designer2", message: "Binary-weighted mirror bank fed by a pfet source" },
+  { file: "biassweep.runnel", name: "Bias sweep", author: "u_designer1", message: "Lateral gate sweep at three temperatures" },
+  { file: "mismatch.runnel", name: "Divider mismatch study", author: "u_designer2", message: "Pelgrom mismatch, 200 samples per gate difference" },
 ];
 
 export function examplesFolder(): string {
-  return path.resolve(/*turbopackIgnore: true*/ process.env.RILL_EXAMPLES ?? "examples");
+  return path.resolve(/*turbopackIgnore: true*/ process.env.RUNNEL_EXAMPLES ?? "examples");
 }
 
 /** Commits and runs the demo networks into `workspaceId`; returns how many networks and runs it added. */

@@ -1,9 +1,9 @@
 /**
  * `npm run demo`: builds the app when the build is missing or older than the
  * sources, migrates and seeds the demo database, starts the local SMTP sink on
- * 127.0.0.1 (port $RILL_MAIL_SINK_PORT, or a free one) whose messages the dev
+ * 127.0.0.1 (port $RUNNEL_MAIL_SINK_PORT, or a free one) whose messages the dev
  * mailbox (/dev/mailbox) lists, and serves the app on http://127.0.0.1:3000
- * (or --port N) in demo mode (RILL_DEMO=1: demo accounts shown on /signin).
+ * (or --port N) in demo mode (RUNNEL_DEMO=1: demo accounts shown on /signin).
  */
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
@@ -35,20 +35,20 @@ function buildIsCurrent(): boolean {
 await runScript(async () => {
   const options = serveOptions(process.argv.slice(2));
   if (!buildIsCurrent()) {
-    console.log("rill demo: building the app (about a minute on a fresh clone)…");
+    console.log("runnel demo: building the app (about a minute on a fresh clone)…");
     const r = spawnSync("npm", ["run", "--silent", "build"], { stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } });
     if (r.status !== 0) fail("the build failed (see the output above)");
   }
   const file = databasePath();
   const db = openDatabase(file);
   const counts = seedDemo(db);
-  console.log(`rill demo: ${counts.users} users, ${counts.workspaces} workspaces in ${file}`);
+  console.log(`runnel demo: ${counts.users} users, ${counts.workspaces} workspaces in ${file}`);
   // The sink keeps this connection to store what it receives; it lives as long as this process.
-  const sink = await startMailSink({ port: Number(process.env.RILL_MAIL_SINK_PORT ?? 0), onMessage: storeInMailbox(db) }).catch((e: Error) =>
+  const sink = await startMailSink({ port: Number(process.env.RUNNEL_MAIL_SINK_PORT ?? 0), onMessage: storeInMailbox(db) }).catch((e: Error) =>
     fail(`cannot start the local mail sink on 127.0.0.1: ${e.message}`),
   );
   const site = `http://${options.host === "0.0.0.0" ? "localhost" : options.host}:${options.port}`;
-  console.log(`rill demo: mail goes to the local sink on 127.0.0.1:${sink.port}; read it at ${site}/dev/mailbox`);
-  console.log(`rill demo: open ${site}/ (demo accounts and their password are on the sign-in page)`);
-  await startNext({ ...options, env: { RILL_DEMO: "1", RILL_MAIL_SINK_PORT: String(sink.port), RILL_SMTP_URL: "" } });
+  console.log(`runnel demo: mail goes to the local sink on 127.0.0.1:${sink.port}; read it at ${site}/dev/mailbox`);
+  console.log(`runnel demo: open ${site}/ (demo accounts and their password are on the sign-in page)`);
+  await startNext({ ...options, env: { RUNNEL_DEMO: "1", RUNNEL_MAIL_SINK_PORT: String(sink.port), RUNNEL_SMTP_URL: "" } });
 });

@@ -1,6 +1,6 @@
 /**
- * Starts the built app on --host/--port: migrates the database at $RILL_DB
- * (default data/rill.db), checks the port, then runs `next start`.
+ * Starts the built app on --host/--port: migrates the database at $RUNNEL_DB
+ * (default data/runnel.db), checks the port, then runs `next start`.
  * Every setup failure is one line on stderr and exit 1.
  */
 import { runScript } from "./lib/fail";

@@ -22,7 +22,7 @@ import { sessions, users } from "@/db/schema";
 import { PolicyError, type Actor } from "./policy";
 import { actorFromToken } from "./tokens";
 
-export const SESSION_COOKIE = "rill_session";
+export const SESSION_COOKIE = "runnel_session";
 export const SESSION_LIFETIME = new TimeSpan(30, "d");
 
 function createLucia(d: DB) {
@@ -132,7 +132,7 @@ const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
  * True when a request with these headers may mutate: a safe method, a bearer
  * token (not an ambient credential, so no cross-site forgery), or an Origin
  * whose host is the Host the request was sent to (X-Forwarded-Host first,
- * as a proxy sets it), or the host of $RILL_PUBLIC_URL.
+ * as a proxy sets it), or the host of $RUNNEL_PUBLIC_URL.
  */
 export function originAllowed(method: string, h: Headers, url?: string): boolean {
   if (SAFE_METHODS.has(method.toUpperCase())) return true;
@@ -151,12 +151,12 @@ export function originAllowed(method: string, h: Headers, url?: string): boolean
   const host = h.get("host");
   if (host) allowed.add(host);
   if (!forwarded && !host && url) allowed.add(new URL(url).host);
-  const publicUrl = process.env.RILL_PUBLIC_URL;
+  const publicUrl = process.env.RUNNEL_PUBLIC_URL;
   if (publicUrl) {
     try {
       allowed.add(new URL(publicUrl).host);
     } catch {
-      // a malformed RILL_PUBLIC_URL adds nothing
+      // a malformed RUNNEL_PUBLIC_URL adds nothing
     }
   }
   return allowed.has(originHost);
@@ -165,14 +165,14 @@ export function originAllowed(method: string, h: Headers, url?: string): boolean
 /** Throws PolicyError 403 for a mutating request whose Origin does not match the Host. */
 export function checkOrigin(request: Request): void {
   if (!originAllowed(request.method, request.headers, request.url)) {
-    throw new PolicyError(403, "this request did not come from Rill's own pages (Origin does not match Host)");
+    throw new PolicyError(403, "this request did not come from Runnel's own pages (Origin does not match Host)");
   }
 }
 
 /** The same check for a server action (always a POST), from the incoming headers. */
 export async function checkActionOrigin(): Promise<void> {
   if (!originAllowed("POST", await headers())) {
-    throw new PolicyError(403, "this form was not sent from Rill's own pages (Origin does not match Host)");
+    throw new PolicyError(403, "this form was not sent from Runnel's own pages (Origin does not match Host)");
   }
 }
 
@@ -195,9 +195,9 @@ export function clientAddress(h: Headers): string {
   return hops.at(-1) ?? h.get("x-real-ip")?.trim() ?? "unknown";
 }
 
-/** The site's base URL for links in e-mail: $RILL_PUBLIC_URL, else the request's own scheme and host. */
+/** The site's base URL for links in e-mail: $RUNNEL_PUBLIC_URL, else the request's own scheme and host. */
 export function publicBaseUrl(h: Headers): string {
-  const configured = process.env.RILL_PUBLIC_URL;
+  const configured = process.env.RUNNEL_PUBLIC_URL;
   if (configured) return configured.replace(/\/+$/, "");
   const host = h.get("x-forwarded-host")?.split(",")[0]?.trim() || h.get("host") || "127.0.0.1:3000";
   const proto = h.get("x-forwarded-proto")?.split(",")[0]?.trim() || "http";

@@ -5,7 +5,7 @@
  *   params, probes, solver figures); `nodes`, `devices`, `rails` have one row
  *   per point and name. Numbers are written in full precision (shortest
  *   round-trip form), in SI base units named in the header.
- * - JSON: the document of `rill solve --json` (LANGUAGE.md) with a `run` member.
+ * - JSON: the document of `runnel solve --json` (LANGUAGE.md) with a `run` member.
  */
 import type { CommitDiagnostic } from "@/db/schema";
 import type { CommitRow } from "./networks";
@@ -91,7 +91,7 @@ export function csvStream(d: Q, runId: string, layout: RunLayout, table: CsvTabl
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
-/** One point in the `rill solve --json` shape. */
+/** One point in the `runnel solve --json` shape. */
 export function pointJson(layout: RunLayout, p: PointRecord): Record<string, unknown> {
   const params: Record<string, number | null> = {};
   // Only swept params and temp vary; the document lists every param, as the CLI does.

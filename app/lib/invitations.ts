@@ -46,9 +46,9 @@ export function listPendingInvitations(workspaceId: string, now = new Date()): P
 function invitationMail(input: { inviter: string; workspace: string; role: Role; link: string; expiresAt: Date }) {
   const article = input.role === "owner" ? "an" : "a";
   const until = `${input.expiresAt.toISOString().slice(0, 16).replace("T", " ")} UTC`;
-  const subject = `${input.inviter} invited you to ${input.workspace} on Rill`;
+  const subject = `${input.inviter} invited you to ${input.workspace} on Runnel`;
   const text = [
-    `${input.inviter} invited you to the workspace "${input.workspace}" on Rill as ${article} ${input.role}.`,
+    `${input.inviter} invited you to the workspace "${input.workspace}" on Runnel as ${article} ${input.role}.`,
     "",
     "Accept the invitation:",
     input.link,
@@ -58,7 +58,7 @@ function invitationMail(input: { inviter: string; workspace: string; role: Role;
   ].join("\n");
   const esc = (s: string) => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
   const html =
-    `<p>${esc(input.inviter)} invited you to the workspace “${esc(input.workspace)}” on Rill as ${article} ${esc(input.role)}.</p>` +
+    `<p>${esc(input.inviter)} invited you to the workspace “${esc(input.workspace)}” on Runnel as ${article} ${esc(input.role)}.</p>` +
     `<p><a href="${esc(input.link)}">Accept the invitation</a></p>` +
     `<p>The link works once and expires on ${esc(until)}. If you did not expect this invitation, ignore this message.</p>`;
   return { subject, text, html };

@@ -54,8 +54,8 @@ export interface PointRecord {
 
 /** Limits checked before a run is queued (POST /api/runs answers 422 with the numbers). */
 export const RUN_LIMITS = {
-  pointsPerRun: Number(process.env.RILL_MAX_POINTS ?? 20_000),
-  valuesPerRun: Number(process.env.RILL_MAX_VALUES ?? 50_000_000),
+  pointsPerRun: Number(process.env.RUNNEL_MAX_POINTS ?? 20_000),
+  valuesPerRun: Number(process.env.RUNNEL_MAX_VALUES ?? 50_000_000),
 };
 
 export function layoutOf(net: Network): RunLayout {

@@ -35,7 +35,7 @@ export interface RunTask {
   /** Int32Array(1) over this buffer: STOP_* set by the supervisor. */
   stop: SharedArrayBuffer;
   /**
-   * Test hooks, honoured only when RILL_TEST_FAULTS=1: "throw" after the first point, "slow" sleeps 25 ms per
+   * Test hooks, honoured only when RUNNEL_TEST_FAULTS=1: "throw" after the first point, "slow" sleeps 25 ms per
    * point, "stuck" spins for a minute inside the first point without looking at stop requests.
    */
   fault?: "throw" | "slow" | "stuck";

@@ -15,6 +15,6 @@ export default function runTask(task: RunTask): RunTaskResult {
     d = openDatabase(task.dbFile, { migrate: false });
     connections.set(task.dbFile, d);
   }
-  const fault = process.env.RILL_TEST_FAULTS === "1" ? task.fault : undefined;
+  const fault = process.env.RUNNEL_TEST_FAULTS === "1" ? task.fault : undefined;
   return executeRun(d, task.runId, { stop: new Int32Array(task.stop), fault });
 }

@@ -6,7 +6,7 @@
  *
  * Contracts
  * - At most `concurrency` runs execute at once (default: one per core,
- *   $RILL_RUN_THREADS overrides); the rest wait in a FIFO whose truth is the
+ *   $RUNNEL_RUN_THREADS overrides); the rest wait in a FIFO whose truth is the
  *   database (`state = 'queued'`), so a restart loses nothing queued.
  * - The worker (app/lib/run-worker.ts, bundled to .build/run-worker.mjs) owns a
  *   run's row while it executes: it writes progress, results and the final
@@ -29,7 +29,7 @@ import { RUN_LIMITS, pointsOf, valuesPerPoint } from "./results";
 import { STOP_CANCEL, STOP_TIME, type RunTask, type RunTaskResult, type RunWarning } from "./run-exec";
 
 /** Default and largest per-run time limit. */
-export const DEFAULT_TIME_LIMIT_MS = Number(process.env.RILL_RUN_TIME_LIMIT_MS ?? 10 * 60_000);
+export const DEFAULT_TIME_LIMIT_MS = Number(process.env.RUNNEL_RUN_TIME_LIMIT_MS ?? 10 * 60_000);
 export const MAX_TIME_LIMIT_MS = 60 * 60_000;
 /** How long a worker may take to honour a stop request before it is terminated. */
 export const STOP_GRACE_MS = 5_000;
@@ -52,14 +52,14 @@ interface Supervisor {
   idleWaiters: (() => void)[];
 }
 
-const KEY = Symbol.for("rill.runs.supervisor");
+const KEY = Symbol.for("runnel.runs.supervisor");
 function sup(): Supervisor {
   const g = globalThis as unknown as Record<symbol, Supervisor | undefined>;
   return (g[KEY] ??= { pool: null, queue: [], active: new Map(), recovered: false, idleWaiters: [] });
 }
 
 export function concurrency(): number {
-  const env = Number(process.env.RILL_RUN_THREADS);
+  const env = Number(process.env.RUNNEL_RUN_THREADS);
   return Number.isInteger(env) && env > 0 ? env : Math.max(1, os.availableParallelism());
 }
 
@@ -130,7 +130,7 @@ export interface StartRunInput {
   commitId: string;
   actorId: string;
   timeLimitMs?: number;
-  /** Test hooks honoured by the worker only when RILL_TEST_FAULTS=1. */
+  /** Test hooks honoured by the worker only when RUNNEL_TEST_FAULTS=1. */
   fault?: RunTask["fault"];
 }
 

@@ -1,8 +1,8 @@
 /**
- * Personal API tokens for scripts and the `rill` command. A token is shown
+ * Personal API tokens for scripts and the `runnel` command. A token is shown
  * once, when made; the database keeps its SHA-256 only. A token acts as its
  * owner (same memberships, same roles) until revoked. Sent as
- * `Authorization: Bearer rill_…`.
+ * `Authorization: Bearer runnel_…`.
  */
 import { and, desc, eq, isNull } from "drizzle-orm";
 import { z } from "zod";
@@ -11,7 +11,7 @@ import { apiTokens, users } from "@/db/schema";
 import type { Actor } from "./policy";
 import { newId, newSecret, secretHash } from "./secrets";
 
-export const TOKEN_PREFIX = "rill_";
+export const TOKEN_PREFIX = "runnel_";
 /** How many characters of a token the lists show. */
 const SHOWN = TOKEN_PREFIX.length + 6;
 

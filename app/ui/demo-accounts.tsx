@@ -1,8 +1,8 @@
 import { DEMO_PASSWORD, DEMO_USERS } from "@/db/demo";
 
-/** Demo mode only (RILL_DEMO=1, set by `npm run demo`): the invented demo team and its documented password. */
+/** Demo mode only (RUNNEL_DEMO=1, set by `npm run demo`): the invented demo team and its documented password. */
 export function demoMode(): boolean {
-  return process.env.RILL_DEMO === "1";
+  return process.env.RUNNEL_DEMO === "1";
 }
 
 export function DemoAccounts() {

@@ -1,7 +1,7 @@
 "use client";
 
 /**
- * The network text editor: CodeMirror 6 with Rill's language, linter and
+ * The network text editor: CodeMirror 6 with Runnel's language, linter and
  * completion (src/editor). The view is created once per mount; a new `value`
  * from outside (another commit opened) replaces the text in the same view,
  * and callbacks are read at call time, so changing them never rebuilds it.
@@ -9,7 +9,7 @@
 import { Compartment, EditorState } from "@codemirror/state";
 import { EditorView } from "@codemirror/view";
 import { useEffect, useRef, useState } from "react";
-import { readOnlyExtension, replaceText, rillEditorExtensions } from "@/src/editor/setup";
+import { readOnlyExtension, replaceText, runnelEditorExtensions } from "@/src/editor/setup";
 import type { Diagnostic } from "@/src/lang/network";
 
 export interface NetworkEditorProps {
@@ -51,7 +51,7 @@ export function NetworkEditor({ value, onChange, onSave, onRun, readOnly = false
       parent: host.current,
       state: EditorState.create({
         doc: initial.current.value,
-        extensions: rillEditorExtensions({
+        extensions: runnelEditorExtensions({
           onSave: () => call(callbacks.current.onSave),
           onRun: () => call(callbacks.current.onRun),
           onChange: (text) => {

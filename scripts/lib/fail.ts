@@ -1,9 +1,9 @@
 import net from "node:net";
 import { DatabaseSetupError } from "../../db";
 
-/** Prints one line, `rill: <what and where>`, and exits non-zero. */
+/** Prints one line, `runnel: <what and where>`, and exits non-zero. */
 export function fail(message: string, code = 1): never {
-  process.stderr.write(`rill: ${message}\n`);
+  process.stderr.write(`runnel: ${message}\n`);
   process.exit(code);
 }
 

@@ -3,7 +3,7 @@
  * 127.0.0.1 that accepts every message (no TLS, no authentication), reads it
  * with ./mime and hands it to `onMessage`. `storeInMailbox(db)` is the
  * onMessage that writes into the `dev_mail` table, which /dev/mailbox lists.
- * Nothing here is used in production (RILL_SMTP_URL set).
+ * Nothing here is used in production (RUNNEL_SMTP_URL set).
  */
 import { SMTPServer } from "smtp-server";
 import type { DB } from "../../db";

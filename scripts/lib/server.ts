@@ -35,7 +35,7 @@ export async function startNext(options: ServeOptions): Promise<ChildProcess> {
   const child = spawn(
     process.execPath,
     ["node_modules/next/dist/bin/next", "start", "-H", options.host, "-p", String(options.port)],
-    { stdio: "inherit", env: { ...process.env, ...options.env, RILL_DB: file, NEXT_TELEMETRY_DISABLED: "1" } },
+    { stdio: "inherit", env: { ...process.env, ...options.env, RUNNEL_DB: file, NEXT_TELEMETRY_DISABLED: "1" } },
   );
   const stop = () => child.kill("SIGTERM");
   process.on("SIGINT", stop);

@@ -1,5 +1,5 @@
 /**
- * Completion for Rill, driven by the syntax tree: the slot at the cursor is
+ * Completion for Runnel, driven by the syntax tree: the slot at the cursor is
  * found from the token before it (`resolveInner(pos, -1)`) and its ancestors,
  * and the names offered are collected from the tree of the current document
  * (no elaboration; statements are read once per reused subtree, so an edit
@@ -467,7 +467,7 @@ const PROBE_INFO: Record<string, string> = {
  * explicitly, right after `=`, `(` or `,`, or after the `{` of an
  * interpolation, so the list does not pop up on every space or block brace.
  */
-export const rillCompletionSource: CompletionSource = (context: CompletionContext): CompletionResult | null => {
+export const runnelCompletionSource: CompletionSource = (context: CompletionContext): CompletionResult | null => {
   const { state, pos } = context;
   const tree = syntaxTree(state);
   const here = tree.resolveInner(pos, -1);

@@ -1,15 +1,15 @@
 /**
- * Highlighting for Rill. The one styleTags table (node → tag) lives beside the
+ * Highlighting for Runnel. The one styleTags table (node → tag) lives beside the
  * grammar in src/lang/highlight.ts, where the generated parser reads it; this
- * file maps those tags to Rill's own colours (app/globals.css palette: moss
+ * file maps those tags to Runnel's own colours (app/globals.css palette: moss
  * greens on river-stone greys, ember for what is wrong).
  */
 import { HighlightStyle, syntaxHighlighting } from "@codemirror/language";
 import { tags as t } from "@lezer/highlight";
 
-export { rillHighlighting } from "../lang/highlight";
+export { runnelHighlighting } from "../lang/highlight";
 
-/** Rill's colours, shared by the highlight style and the editor theme. */
+/** Runnel's colours, shared by the highlight style and the editor theme. */
 export const palette = {
   ink: "#1f2623",
   moss50: "#f1f6f2",
@@ -28,7 +28,7 @@ export const palette = {
   ochre: "#80601f",
 } as const;
 
-export const rillHighlightStyle = HighlightStyle.define([
+export const runnelHighlightStyle = HighlightStyle.define([
   { tag: t.definitionKeyword, color: palette.moss700, fontWeight: "700" },
   { tag: t.controlKeyword, color: palette.moss600, fontWeight: "700" },
   { tag: t.keyword, color: palette.moss600 },
@@ -45,5 +45,5 @@ export const rillHighlightStyle = HighlightStyle.define([
   { tag: t.invalid, color: palette.ember500 },
 ]);
 
-/** The highlighter extension: Rill's colours for the tags of the styleTags table. */
-export const rillSyntaxHighlighting = syntaxHighlighting(rillHighlightStyle);
+/** The highlighter extension: Runnel's colours for the tags of the styleTags table. */
+export const runnelSyntaxHighlighting = syntaxHighlighting(runnelHighlightStyle);

@@ -1,39 +1,39 @@
 /**
- * CodeMirror 6 support for the Rill language: `rill()` bundles the language,
- * Rill's highlight colours and completion; `rillLinter()` adds the
+ * CodeMirror 6 support for the Runnel language: `runnel()` bundles the language,
+ * Runnel's highlight colours and completion; `runnelLinter()` adds the
  * diagnostics of the language's own elaboration.
  */
 import { LanguageSupport } from "@codemirror/language";
-import { elaboratedNames, rillCompletionSource } from "./complete";
-import { rillSyntaxHighlighting } from "./highlight";
-import { rillLanguage } from "./language";
+import { elaboratedNames, runnelCompletionSource } from "./complete";
+import { runnelSyntaxHighlighting } from "./highlight";
+import { runnelLanguage } from "./language";
 
-export { rillLanguage } from "./language";
-export { palette, rillHighlighting, rillHighlightStyle, rillSyntaxHighlighting } from "./highlight";
+export { runnelLanguage } from "./language";
+export { palette, runnelHighlighting, runnelHighlightStyle, runnelSyntaxHighlighting } from "./highlight";
 export {
   collectNames,
   documentNames,
   elaboratedNames,
-  rillCompletionSource,
+  runnelCompletionSource,
   setElaboratedNames,
   type DocumentNames,
   type ElaboratedNames,
 } from "./complete";
 export {
   LintClient,
-  rillLinter,
-  rillLintSource,
+  runnelLinter,
+  runnelLintSource,
   toEditorDiagnostics,
   type LintPort,
-  type RillLintOptions,
+  type RunnelLintOptions,
 } from "./lint";
 export { answerLintRequest, type LintReply, type LintRequest } from "./lint-protocol";
 
-/** The Rill language with highlighting and completion (no linting: add `rillLinter()`). */
-export function rill(): LanguageSupport {
-  return new LanguageSupport(rillLanguage, [
-    rillSyntaxHighlighting,
-    rillLanguage.data.of({ autocomplete: rillCompletionSource }),
+/** The Runnel language with highlighting and completion (no linting: add `runnelLinter()`). */
+export function runnel(): LanguageSupport {
+  return new LanguageSupport(runnelLanguage, [
+    runnelSyntaxHighlighting,
+    runnelLanguage.data.of({ autocomplete: runnelCompletionSource }),
     elaboratedNames,
   ]);
 }

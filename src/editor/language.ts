@@ -1,5 +1,5 @@
 /**
- * The Rill language for CodeMirror: the generated Lezer parser plus folding,
+ * The Runnel language for CodeMirror: the generated Lezer parser plus folding,
  * indentation and bracket props. Highlighting tags come with the parser
  * (src/lang/highlight.ts is the grammar's propSource).
  */
@@ -13,8 +13,8 @@ import {
 import { NodeProp } from "@lezer/common";
 import { parser } from "../lang/parser";
 
-export const rillLanguage = LRLanguage.define({
-  name: "rill",
+export const runnelLanguage = LRLanguage.define({
+  name: "runnel",
   parser: parser.configure({
     props: [
       foldNodeProp.add({

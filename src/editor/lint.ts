@@ -1,5 +1,5 @@
 /**
- * The Rill linter: runs the language's own elaboration on the document and
+ * The Runnel linter: runs the language's own elaboration on the document and
  * shows exactly its diagnostics (same spans, same messages, hint appended).
  *
  * Responsiveness: linting waits for a pause in typing (`delay`), and the
@@ -23,7 +23,7 @@ export interface LintPort {
   terminate?(): void;
 }
 
-export interface RillLintOptions {
+export interface RunnelLintOptions {
   /** Milliseconds of quiet after a change before linting; default 400. */
   delay?: number;
   /** Called with the language's diagnostics of every document version that was linted and is still current. */
@@ -45,7 +45,7 @@ export function toEditorDiagnostics(diagnostics: readonly Diagnostic[], docLengt
       from,
       to,
       severity: d.severity,
-      source: "rill",
+      source: "runnel",
       message: d.hint ? `${d.message}\nhint: ${d.hint}` : d.message,
     };
   });
@@ -54,7 +54,7 @@ export function toEditorDiagnostics(diagnostics: readonly Diagnostic[], docLengt
 function defaultWorker(): LintPort | null {
   if (typeof Worker === "undefined") return null;
   try {
-    return new Worker(new URL("./lint-worker.ts", import.meta.url), { type: "module", name: "rill-lint" });
+    return new Worker(new URL("./lint-worker.ts", import.meta.url), { type: "module", name: "runnel-lint" });
   } catch {
     return null;
   }
@@ -118,7 +118,7 @@ export class LintClient {
  * for completion, and returns the diagnostics. `client` defaults to the
  * main thread.
  */
-export function rillLintSource(options: RillLintOptions = {}, client: LintClient = new LintClient(null)): LintSource {
+export function runnelLintSource(options: RunnelLintOptions = {}, client: LintClient = new LintClient(null)): LintSource {
   return async (view: EditorView) => {
     const doc: Text = view.state.doc;
     const reply = await client.elaborate(doc.toString());
@@ -134,7 +134,7 @@ export function rillLintSource(options: RillLintOptions = {}, client: LintClient
  * The linter extension. Each view gets its own lint client; the worker is
  * created at the view's first lint and ended with the view.
  */
-export function rillLinter(options: RillLintOptions = {}): Extension {
+export function runnelLinter(options: RunnelLintOptions = {}): Extension {
   const clients = ViewPlugin.define(() => {
     let client: LintClient | null = null;
     return {
@@ -149,7 +149,7 @@ export function rillLinter(options: RillLintOptions = {}): Extension {
   });
   const source: LintSource = (view) => {
     const owner = view.plugin(clients);
-    return rillLintSource(options, owner ? owner.client : new LintClient(null))(view);
+    return runnelLintSource(options, owner ? owner.client : new LintClient(null))(view);
   };
   return [clients, linter(source, { delay: options.delay ?? 400 })];
 }

@@ -1,6 +1,6 @@
 /**
- * The full editor configuration the workbench uses: Rill's language, linter,
- * completion, folding, bracket handling, search, history and Rill's own theme.
+ * The full editor configuration the workbench uses: Runnel's language, linter,
+ * completion, folding, bracket handling, search, history and Runnel's own theme.
  * Kept apart from the React component so it can be checked without a DOM.
  */
 import { autocompletion, closeBrackets, closeBracketsKeymap, completionKeymap } from "@codemirror/autocomplete";
@@ -21,16 +21,16 @@ import {
   lineNumbers,
 } from "@codemirror/view";
 import { palette as c } from "./highlight";
-import { rill } from "./index";
-import { type RillLintOptions, rillLinter } from "./lint";
+import { runnel } from "./index";
+import { type RunnelLintOptions, runnelLinter } from "./lint";
 
 const wavy = (colour: string) =>
   `url("data:image/svg+xml,${encodeURIComponent(
     `<svg xmlns="http://www.w3.org/2000/svg" width="6" height="3"><path d="M0 2.5 Q1.5 0 3 1.5 T6 1" fill="none" stroke="${colour}" stroke-width="0.8"/></svg>`,
   )}")`;
 
-/** Rill's editor theme: moss greens on river-stone greys, the app's monospace font. */
-export const rillTheme = EditorView.theme(
+/** Runnel's editor theme: moss greens on river-stone greys, the app's monospace font. */
+export const runnelTheme = EditorView.theme(
   {
     "&": {
       height: "100%",
@@ -88,14 +88,14 @@ export const rillTheme = EditorView.theme(
   { dark: false },
 );
 
-export interface RillEditorOptions {
+export interface RunnelEditorOptions {
   /** Mod-s; returning false lets the key do what it otherwise would. */
   onSave?(): boolean | void;
   /** Mod-Enter; returning false lets the key insert a blank line as usual. */
   onRun?(): boolean | void;
   /** Called with each change of the text made in the editor (not with `replaceText`). */
   onChange?(text: string): void;
-  lint?: RillLintOptions;
+  lint?: RunnelLintOptions;
   /** Holds the read-only setting, so it can be switched with `readOnlyExtension`. */
   readOnly?: Compartment;
   initiallyReadOnly?: boolean;
@@ -107,7 +107,7 @@ export function readOnlyExtension(readOnly: boolean): Extension {
 }
 
 /** Every extension of the workbench's network editor. */
-export function rillEditorExtensions(options: RillEditorOptions = {}): Extension[] {
+export function runnelEditorExtensions(options: RunnelEditorOptions = {}): Extension[] {
   const readOnly = options.readOnly ?? new Compartment();
   const bindings: KeyBinding[] = [];
   if (options.onSave) {
@@ -134,9 +134,9 @@ export function rillEditorExtensions(options: RillEditorOptions = {}): Extension
     highlightActiveLine(),
     highlightSelectionMatches(),
     lintGutter(),
-    rill(),
-    rillLinter(options.lint),
-    rillTheme,
+    runnel(),
+    runnelLinter(options.lint),
+    runnelTheme,
     readOnly.of(readOnlyExtension(options.initiallyReadOnly ?? false)),
     EditorView.contentAttributes.of({ "aria-label": "Network text", spellcheck: "false" }),
     Prec.highest(keymap.of(bindings)),

@@ -1384,7 +1384,7 @@ class Elaborator {
             }
             const t = this.nameTplOf(a, loopVars);
             if (!t) return null;
-            calls.set(c, `__rill_arg${args.length}`);
+            calls.set(c, `__runnel_arg${args.length}`);
             args.push({ kind, name: t });
             return kind === "voltage" ? VOLT : AMPERE;
           },
@@ -2486,7 +2486,7 @@ class Elaborator {
         index[i] = net.nodes.index.get(a.name)!;
       }
     });
-    const names = [...p.loopNames, ...p.args.map((_, i) => `__rill_arg${i}`)];
+    const names = [...p.loopNames, ...p.args.map((_, i) => `__runnel_arg${i}`)];
     const { fn, loopValues } = p;
     let lastParams: object | null = null;
     let lastSettings: object | null = null;

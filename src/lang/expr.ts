@@ -498,7 +498,7 @@ const FOLD_CHUNK = 1024;
 // run gives exactly what the nested operators give, without nesting math.js's compiled
 // closures once per operand (a 100,000-term sum would overflow the stack).
 math.import({
-  __rillFoldLeft(ops: string, ...xs: number[]): number {
+  __runnelFoldLeft(ops: string, ...xs: number[]): number {
     let a = xs[0];
     for (let i = 1; i < xs.length; i++) {
       const x = xs[i];
@@ -518,7 +518,7 @@ math.import({
     }
     return a;
   },
-  __rillFoldPow(...xs: number[]): number {
+  __runnelFoldPow(...xs: number[]): number {
     let r = xs[xs.length - 1];
     for (let i = xs.length - 2; i >= 0; i--) r = math.pow(xs[i], r) as number;
     return r;
@@ -541,7 +541,7 @@ function binaryNode(e: BinaryExpr, placeholder?: (c: CallExpr) => string): MathN
       const start = Math.max(0, end - FOLD_CHUNK);
       const chunk = args.slice(start, end);
       if (r) chunk.push(r);
-      r = chunk.length === 1 ? chunk[0] : new math.FunctionNode(new math.SymbolNode("__rillFoldPow"), chunk);
+      r = chunk.length === 1 ? chunk[0] : new math.FunctionNode(new math.SymbolNode("__runnelFoldPow"), chunk);
       end = start;
     }
     return r!;
@@ -558,7 +558,7 @@ function binaryNode(e: BinaryExpr, placeholder?: (c: CallExpr) => string): MathN
   for (let start = 1; start < n; start += FOLD_CHUNK) {
     const end = Math.min(n, start + FOLD_CHUNK);
     const ops = e.ops.slice(start - 1, end - 1).map((o) => o.op).join("");
-    l = new math.FunctionNode(new math.SymbolNode("__rillFoldLeft"), [new math.ConstantNode(ops), l, ...args.slice(start, end)]);
+    l = new math.FunctionNode(new math.SymbolNode("__runnelFoldLeft"), [new math.ConstantNode(ops), l, ...args.slice(start, end)]);
   }
   return l;
 }
@@ -616,7 +616,7 @@ export class LayeredScope {
     return this.names.includes(key) || Object.prototype.hasOwnProperty.call(this.base, key);
   }
   set(): this {
-    throw new Error("a Rill scope is read-only");
+    throw new Error("a Runnel scope is read-only");
   }
   keys(): IterableIterator<string> {
     return [...this.names, ...Object.keys(this.base)][Symbol.iterator]();

@@ -1,7 +1,7 @@
 import { styleTags, tags as t } from "@lezer/highlight";
 
-/** Highlighting of the Rill syntax tree: one table, read by the generated parser. */
-export const rillHighlighting = styleTags({
+/** Highlighting of the Runnel syntax tree: one table, read by the generated parser. */
+export const runnelHighlighting = styleTags({
   "network set param rail nfet pfet inject probe sweep mismatch": t.definitionKeyword,
   "for in": t.controlKeyword,
   "from to step points log values runs seed avt": t.keyword,

@@ -1,5 +1,5 @@
 /**
- * The Rill language: parse → syntax tree → elaborated network with diagnostics.
+ * The Runnel language: parse → syntax tree → elaborated network with diagnostics.
  * Pure functions, no I/O.
  */
 import type { Tree } from "@lezer/common";
@@ -23,13 +23,13 @@ export {
 export { parser } from "./parser";
 export { parseNumber } from "./expr";
 
-/** The Lezer syntax tree of a Rill text (never throws; errors are ⚠ nodes). */
+/** The Lezer syntax tree of a Runnel text (never throws; errors are ⚠ nodes). */
 export function parse(text: string): Tree {
   return parser.parse(text);
 }
 
 /**
- * Elaborates a Rill text: loops expanded, names interpolated, params evaluated,
+ * Elaborates a Runnel text: loops expanded, names interpolated, params evaluated,
  * units checked. `network` is null when any diagnostic is an error;
  * diagnostics are sorted by position.
  */
@@ -37,7 +37,7 @@ export function elaborate(text: string, options?: ElaborateOptions): Elaboration
   return elaborateText(text, options);
 }
 
-/** The diagnostics of a Rill text (what `rill check` prints). */
+/** The diagnostics of a Runnel text (what `runnel check` prints). */
 export function checkText(text: string, options?: ElaborateOptions): Diagnostic[] {
   return elaborateText(text, options).diagnostics;
 }

@@ -1,5 +1,5 @@
 /**
- * Dimensions of values in Rill expressions: powers of volt, ampere and kelvin.
+ * Dimensions of values in Runnel expressions: powers of volt, ampere and kelvin.
  *
  * Soundness rule: only a clash between two KNOWN dimensions is an error.
  * - `known`: a literal with a unit symbol (`450mV`), `ut`, `kappa`, `temp`,

@@ -1,7 +1,7 @@
 /**
  * NetworkBuilder: makes elaborated `Network` objects in code, without text.
  * For property tests, benchmarks and programmatic use; the language's
- * `elaborate()` is the way from .rill text.
+ * `elaborate()` is the way from .runnel text.
  *
  * Contract
  * - The result satisfies every invariant of src/lang/network.ts: struct-of-arrays

@@ -1,5 +1,5 @@
 /**
- * The Rill solver: pure TypeScript, no I/O (server, worker threads, CLI, tests).
+ * The Runnel solver: pure TypeScript, no I/O (server, worker threads, CLI, tests).
  *
  *   classify(net)                       which method a network needs, and why
  *   solveNetwork(net, opts) → RunResult every point: sweep grid (outer first) × mismatch samples

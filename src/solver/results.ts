@@ -420,7 +420,7 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
 }
 
 /**
- * The `rill solve --json` document. `diagnostics` are the elaboration's;
+ * The `runnel solve --json` document. `diagnostics` are the elaboration's;
  * solver failures become errors and validity warnings become warnings, placed
  * at the device's statement when `text` is given. `ok` is false, with no
  * points, when any diagnostic is an error or any point failed.

@@ -53,7 +53,7 @@ test("sign up, create a workspace, invite a reviewer, accept from the dev mailbo
   r.on("pageerror", (e) => errors.push(e.message));
   await r.goto("/dev/mailbox");
   const mail = r.getByRole("listitem", { name: `Message to ${reviewer.email}` });
-  await expect(mail).toContainText(`${owner.name} invited you to ${workspace.name} on Rill`);
+  await expect(mail).toContainText(`${owner.name} invited you to ${workspace.name} on Runnel`);
   await mail.getByRole("link", { name: /\/invite\// }).click();
   await expect(r.getByRole("heading", { name: `Join ${workspace.name}` })).toBeVisible();
   const link = r.url();

@@ -4,7 +4,7 @@ test("the home page shows the shell, the demo accounts, and after sign-in the de
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
   await page.goto("/");
-  await expect(page.getByRole("link", { name: "Rill home" })).toBeVisible();
+  await expect(page.getByRole("link", { name: "Runnel home" })).toBeVisible();
   await expect(page.getByRole("heading", { name: "Workspaces" })).toBeVisible();
   // signed out in demo mode: a sign-in prompt and the demo accounts, no workspaces
   await expect(page.getByRole("region", { name: "Demo accounts" })).toContainText("owner@larkspur.example");
@@ -15,7 +15,7 @@ test("the home page shows the shell, the demo accounts, and after sign-in the de
   await page.getByRole("button", { name: "Sign in" }).click();
   await expect(page.getByTestId("signed-in-as")).toHaveText("Ada Marlow");
   await expect(page.getByRole("list", { name: "Workspaces" }).getByRole("link", { name: "LM-64 edge row" })).toBeVisible();
-  await expect(page.getByText("Results in Rill are model estimates")).toBeVisible();
+  await expect(page.getByText("Results in Runnel are model estimates")).toBeVisible();
   const fonts = await page.evaluate(async () => {
     await document.fonts.ready;
     return [...document.fonts].filter((f) => f.status === "loaded").length;

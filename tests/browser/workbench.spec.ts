@@ -55,10 +55,10 @@ test("edit, commit, run a sweep, read the plot and the table, export CSV", async
   await expect(list.getByRole("link", { name: /Newest run of Smoothing grid .*: done/ })).toBeVisible();
   await shot(page, "workspace");
 
-  // upload a .rill file as a new network: its text becomes the first commit
-  await page.getByLabel("Upload a .rill file").setInputFiles("examples/divider.rill");
+  // upload a .runnel file as a new network: its text becomes the first commit
+  await page.getByLabel("Upload a .runnel file").setInputFiles("examples/divider.runnel");
   await expect(page).toHaveURL(/\/w\/lm64-edge-row\/n\/divider(-\d+)?$/);
-  await expect(page.getByRole("list", { name: "Commits" })).toContainText("Upload divider.rill");
+  await expect(page.getByRole("list", { name: "Commits" })).toContainText("Upload divider.runnel");
   await expect(page.locator(".cm-content")).toContainText("network divider");
   await page.goto("/w/lm64-edge-row");
 

@@ -38,13 +38,13 @@ const USER_OF: Record<Exclude<Who, "anonymous">, { id: string; email: string }> 
 export interface AccountsFixture {
   template: string;
   actors: Record<Who, ActorFixture | null>;
-  /** A fresh copy of the template as the process-wide database ($RILL_DB, `db()`); returns `db()`. */
+  /** A fresh copy of the template as the process-wide database ($RUNNEL_DB, `db()`); returns `db()`. */
   useCopy(): DB;
   dispose(): void;
 }
 
 export function buildAccountsFixture(): AccountsFixture {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "rill-accounts-"));
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-accounts-"));
   const template = path.join(dir, "template.db");
   const db = openDatabase(template);
   seedDemo(db);
@@ -55,10 +55,10 @@ export function buildAccountsFixture(): AccountsFixture {
     const u = USER_OF[who];
     const sessionId = `sess_${who}_${"x".repeat(20)}`;
     db.insert(sessions).values({ id: sessionId, userId: u.id, expiresAt: Math.floor(Date.now() / 1000) + 30 * 86400 }).run();
-    const token = `rill_${who}_${"t".repeat(40)}`;
+    const token = `runnel_${who}_${"t".repeat(40)}`;
     const tokenId = `tok_${who}`;
     db.insert(apiTokens).values({ id: tokenId, userId: u.id, name: `${who} script`, prefix: token.slice(0, 11), tokenHash: secretHash(token) }).run();
-    actors[who] = { userId: u.id, email: u.email, cookie: `rill_session=${sessionId}`, sessionId, token, tokenId };
+    actors[who] = { userId: u.id, email: u.email, cookie: `runnel_session=${sessionId}`, sessionId, token, tokenId };
   }
   db.$client.pragma("wal_checkpoint(TRUNCATE)");
   db.$client.close();
@@ -70,12 +70,12 @@ export function buildAccountsFixture(): AccountsFixture {
       closeDb();
       const file = path.join(dir, `case-${++copies}.db`);
       fs.copyFileSync(template, file);
-      process.env.RILL_DB = file;
+      process.env.RUNNEL_DB = file;
       return processDb();
     },
     dispose() {
       closeDb();
-      delete process.env.RILL_DB;
+      delete process.env.RUNNEL_DB;
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };

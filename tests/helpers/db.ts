@@ -5,8 +5,8 @@ import { openDatabase, type DB } from "@/db";
 
 /** A fresh SQLite file in its own temporary folder, migrated with the real migrations. */
 export function freshDatabase(): { db: DB; file: string; dispose(): void } {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "rill-test-"));
-  const file = path.join(dir, "rill.db");
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-test-"));
+  const file = path.join(dir, "runnel.db");
   const db = openDatabase(file);
   return {
     db,

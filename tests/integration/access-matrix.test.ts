@@ -99,6 +99,7 @@ const BENCH_CSV = "iin [nA], ratio [1]\n1, 0.51\n10, 0.5\n100, 0.49\n";
 const ROUTES: RouteRow[] = [
   //  file                                              method    url / params / body                                                          [anon, non-m, viewer, review, design, owner]
   { file: "app/api/health/route.ts",                    method: "GET",    url: "/api/health",                                                 expect: [200, 200, 200, 200, 200, 200] },
+  { file: "app/favicon.ico/route.ts",                   method: "GET",    url: "/favicon.ico",                                                expect: [200, 200, 200, 200, 200, 200] },
   { file: "app/api/me/route.ts",                        method: "GET",    url: "/api/me",                                                     expect: [401, 200, 200, 200, 200, 200] },
   { file: "app/api/workspaces/route.ts",                method: "GET",    url: "/api/workspaces",                                             expect: [401, 200, 200, 200, 200, 200] },
   { file: "app/api/workspaces/route.ts",                method: "POST",   url: "/api/workspaces", body: { name: "Mirror bank B" },            expect: [401, 201, 201, 201, 201, 201] },
@@ -195,13 +196,13 @@ let sink: MailSink;
 beforeAll(async () => {
   fixture = buildAccountsFixture();
   sink = await startMailSink({ onMessage: () => {} });
-  process.env.RILL_MAIL_SINK_PORT = String(sink.port);
+  process.env.RUNNEL_MAIL_SINK_PORT = String(sink.port);
 });
 
 afterAll(async () => {
   fixture.dispose();
   await sink.close();
-  delete process.env.RILL_MAIL_SINK_PORT;
+  delete process.env.RUNNEL_MAIL_SINK_PORT;
 });
 
 describe("the access matrix", () => {
@@ -257,7 +258,7 @@ describe("the access matrix", () => {
           const db = fixture.useCopy();
           const actor = fixture.actors[who];
           const vars = { ...(row.setup?.(db) ?? {}), tokenId: actor?.tokenId ?? "" };
-          setRequest({ cookies: actor ? { rill_session: actor.sessionId } : {} });
+          setRequest({ cookies: actor ? { runnel_session: actor.sessionId } : {} });
           got.push((await runAction(mod[row.name], form(fillAll(row.form, vars)))).status);
         }
         expect(Object.fromEntries(WHO.map((w, i) => [w, got[i]]))).toEqual(Object.fromEntries(WHO.map((w, i) => [w, row.expect[i]])));

@@ -65,7 +65,7 @@ describe("passwords", () => {
     }
     expect(logged.join("\n")).not.toContain(password);
     db().$client.pragma("wal_checkpoint(TRUNCATE)");
-    expect(fs.readFileSync(process.env.RILL_DB!).includes(Buffer.from(password))).toBe(false);
+    expect(fs.readFileSync(process.env.RUNNEL_DB!).includes(Buffer.from(password))).toBe(false);
   });
 
   it("sign-up explains each bad field and keeps what was typed (but not the password)", async () => {
@@ -199,7 +199,7 @@ describe("API tokens", () => {
     const made = await runAction(createToken, form({ name: "sweep script" }));
     expect(made.status).toBe(201);
     const token = made.state!.secret!;
-    expect(token).toMatch(/^rill_[A-Za-z0-9_-]{43}$/);
+    expect(token).toMatch(/^runnel_[A-Za-z0-9_-]{43}$/);
     const stored = db().select().from(apiTokens).where(eq(apiTokens.name, "sweep script")).get()!;
     expect(JSON.stringify(stored)).not.toContain(token.slice(5));
     const res = await me(`Bearer ${token}`);
@@ -223,7 +223,7 @@ describe("API tokens", () => {
 
   it("with an Authorization header only the token counts, and a bad one is 401", async () => {
     const cookie = fixture.actors.owner!.cookie;
-    expect((await me("Bearer rill_unknown_token_value", cookie)).status).toBe(401);
+    expect((await me("Bearer runnel_unknown_token_value", cookie)).status).toBe(401);
     expect((await me("Basic b3duZXI6cGFzcw==", cookie)).status).toBe(401);
     expect((await me("Bearer", cookie)).status).toBe(401);
     expect((await getMe(new Request(`${SITE}/api/me`, { headers: { cookie } }))).status).toBe(200);
@@ -253,7 +253,7 @@ describe("the Origin check", () => {
 
   it("accepts our own origin (also behind a proxy that sets X-Forwarded-Host) and bearer tokens", async () => {
     expect((await post({ cookie: cookie(), host, origin: SITE })).status).toBe(201);
-    expect((await post({ cookie: cookie(), host: "10.0.0.5:3000", "x-forwarded-host": "rill.lab.example", origin: "https://rill.lab.example" })).status).toBe(201);
+    expect((await post({ cookie: cookie(), host: "10.0.0.5:3000", "x-forwarded-host": "runnel.lab.example", origin: "https://runnel.lab.example" })).status).toBe(201);
     expect((await post({ authorization: `Bearer ${fixture.actors.designer!.token}` })).status).toBe(201);
   });
 

@@ -49,31 +49,31 @@ describe("database", () => {
   });
 
   it("names the path when the database folder cannot be made", () => {
-    const file = path.join(os.tmpdir(), `rill-file-${process.pid}`);
+    const file = path.join(os.tmpdir(), `runnel-file-${process.pid}`);
     fs.writeFileSync(file, "not a folder");
     cleanups.push(() => fs.rmSync(file, { force: true }));
-    expect(() => openDatabase(path.join(file, "rill.db"))).toThrow(DatabaseSetupError);
-    expect(() => openDatabase(path.join(file, "rill.db"))).toThrow(/rill-file-\d+\/rill\.db is not usable: a parent is a file/);
+    expect(() => openDatabase(path.join(file, "runnel.db"))).toThrow(DatabaseSetupError);
+    expect(() => openDatabase(path.join(file, "runnel.db"))).toThrow(/runnel-file-\d+\/runnel\.db is not usable: a parent is a file/);
   });
 
   it("reports a failed migration in one line, naming the file", () => {
-    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "rill-badmig-"));
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-badmig-"));
     cleanups.push(() => fs.rmSync(dir, { recursive: true, force: true }));
     fs.cpSync("migrations", path.join(dir, "migrations"), { recursive: true });
     const first = fs.readdirSync(path.join(dir, "migrations")).find((f) => f.endsWith(".sql"))!;
     fs.writeFileSync(path.join(dir, "migrations", first), "create table broken (;");
-    process.env.RILL_MIGRATIONS = path.join(dir, "migrations");
+    process.env.RUNNEL_MIGRATIONS = path.join(dir, "migrations");
     try {
       let message = "";
       try {
-        openDatabase(path.join(dir, "rill.db"));
+        openDatabase(path.join(dir, "runnel.db"));
       } catch (e) {
         message = (e as Error).message;
       }
-      expect(message).toMatch(/^migration failed for .*rill\.db/);
+      expect(message).toMatch(/^migration failed for .*runnel\.db/);
       expect(message).not.toContain("\n");
     } finally {
-      delete process.env.RILL_MIGRATIONS;
+      delete process.env.RUNNEL_MIGRATIONS;
     }
   });
 });

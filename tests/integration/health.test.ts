@@ -8,18 +8,18 @@ describe("GET /api/health", () => {
   beforeAll(() => {
     const t = freshDatabase();
     dispose = t.dispose;
-    process.env.RILL_DB = t.file;
+    process.env.RUNNEL_DB = t.file;
   });
   afterAll(() => {
     closeDb();
     dispose();
-    delete process.env.RILL_DB;
+    delete process.env.RUNNEL_DB;
   });
 
   it("reports the version and that the database answers", async () => {
     const { GET } = await import("@/app/api/health/route");
     const res = GET();
     expect(res.status).toBe(200);
-    expect(await res.json()).toEqual({ app: "rill", version: pkg.version, db: "ok" });
+    expect(await res.json()).toEqual({ app: "runnel", version: pkg.version, db: "ok" });
   });
 });

@@ -36,12 +36,12 @@ beforeAll(async () => {
       storeInMailbox(db())(m);
     },
   });
-  process.env.RILL_MAIL_SINK_PORT = String(sink.port);
+  process.env.RUNNEL_MAIL_SINK_PORT = String(sink.port);
 });
 afterAll(async () => {
   fixture.dispose();
   await sink.close();
-  delete process.env.RILL_MAIL_SINK_PORT;
+  delete process.env.RUNNEL_MAIL_SINK_PORT;
 });
 beforeEach(() => {
   fixture.useCopy();
@@ -63,7 +63,7 @@ async function inviteByMail(email: string, role: string): Promise<string> {
   expect(inbox).toHaveLength(1); // nodemailer resolves after the sink has answered 250
   const mail = inbox[0];
   expect(mail.recipients).toEqual([email]);
-  expect(mail.subject).toBe("Ada Marlow invited you to LM-64 edge row on Rill");
+  expect(mail.subject).toBe("Ada Marlow invited you to LM-64 edge row on Runnel");
   const link = /http:\/\/127\.0\.0\.1:3000\/invite\/([A-Za-z0-9_-]{43})/.exec(mail.text);
   expect(link, mail.text).not.toBeNull();
   expect(mail.html).toContain(`href="${link![0]}"`);
@@ -152,8 +152,8 @@ describe("an invitation", () => {
   });
 
   it("is not kept when the mail cannot be sent", async () => {
-    const saved = process.env.RILL_MAIL_SINK_PORT;
-    delete process.env.RILL_MAIL_SINK_PORT;
+    const saved = process.env.RUNNEL_MAIL_SINK_PORT;
+    delete process.env.RUNNEL_MAIL_SINK_PORT;
     try {
       const res = await postInvitation(
         new Request(`${SITE}/api/w/${WORKSPACE.slug}/invitations`, {
@@ -164,10 +164,10 @@ describe("an invitation", () => {
         { params: Promise.resolve({ slug: WORKSPACE.slug }) },
       );
       expect(res.status).toBe(503);
-      expect((await res.json()).error).toMatch(/^e-mail is not configured: set RILL_SMTP_URL/);
+      expect((await res.json()).error).toMatch(/^e-mail is not configured: set RUNNEL_SMTP_URL/);
       expect(db().select().from(invitations).all()).toHaveLength(0);
     } finally {
-      process.env.RILL_MAIL_SINK_PORT = saved;
+      process.env.RUNNEL_MAIL_SINK_PORT = saved;
     }
   });
 });

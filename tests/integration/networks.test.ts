@@ -39,7 +39,7 @@ describe("networks and commits", () => {
 
   it("creates a network with a first commit, content-addressed", () => {
     const db = fresh();
-    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, message: "Upload divider.rill", authorId: "u_designer1" }, db);
+    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, message: "Upload divider.runnel", authorId: "u_designer1" }, db);
     expect(network.slug).toBe("test-divider");
     expect(commit!.id).toBe(commitIdOf(network.id, null, DIVIDER));
     expect(commit!.id).toBe(sha256Hex(`network:${network.id}\n${DIVIDER}`));

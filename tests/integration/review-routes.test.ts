@@ -19,12 +19,12 @@ const inbox: ReceivedMail[] = [];
 beforeAll(async () => {
   fixture = buildAccountsFixture();
   sink = await startMailSink({ onMessage: (m) => void inbox.push(m) });
-  process.env.RILL_MAIL_SINK_PORT = String(sink.port);
+  process.env.RUNNEL_MAIL_SINK_PORT = String(sink.port);
 });
 afterAll(async () => {
   fixture.dispose();
   await sink.close();
-  delete process.env.RILL_MAIL_SINK_PORT;
+  delete process.env.RUNNEL_MAIL_SINK_PORT;
 });
 
 function request(who: "reviewer" | "designer" | "viewer" | "outsider", method: string, url: string, body?: unknown): Request {

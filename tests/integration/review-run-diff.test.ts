@@ -38,10 +38,10 @@ sweep iin values [1n, 10n, 100n]
 describe("stored commit diff after a real run", () => {
   it("moves exactly the shared node, m1, m2 and the ratio", () => {
     const t = freshDatabase();
-    process.env.RILL_DB = t.file;
+    process.env.RUNNEL_DB = t.file;
     cleanups.push(() => {
       closeDb();
-      delete process.env.RILL_DB;
+      delete process.env.RUNNEL_DB;
       t.dispose();
     });
     const db = t.db;

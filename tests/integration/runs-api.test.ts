@@ -2,7 +2,7 @@
  * Commit → run → results through the route handlers, as each role; cancel;
  * the time limit; a run that throws in the worker; a server restart. Runs
  * execute in the real piscina pool over the bundled worker (.build/run-worker.mjs,
- * built by the vitest globalSetup). RILL_TEST_FAULTS=1 enables the worker's
+ * built by the vitest globalSetup). RUNNEL_TEST_FAULTS=1 enables the worker's
  * test hooks ("slow": 25 ms per point, "throw": throws after the first point,
  * "stuck": spins inside a point, deaf to stop requests).
  *
@@ -42,7 +42,7 @@ let db: DB;
 let runsLib: typeof import("@/app/lib/runs");
 
 beforeAll(async () => {
-  process.env.RILL_TEST_FAULTS = "1";
+  process.env.RUNNEL_TEST_FAULTS = "1";
   fixture = buildAccountsFixture();
   db = fixture.useCopy();
   runsLib = await import("@/app/lib/runs");
@@ -52,7 +52,7 @@ afterAll(async () => {
   await runsLib.whenIdle();
   await runsLib.closePool();
   fixture.dispose();
-  delete process.env.RILL_TEST_FAULTS;
+  delete process.env.RUNNEL_TEST_FAULTS;
 });
 
 type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
@@ -188,7 +188,7 @@ describe("runs through the API", () => {
     // the commit's text downloads as a file; the run lists under its commit
     const dl = await call("viewer", "commits/[id]/route", "GET", `/api/commits/${commit2.id}?download`, { id: commit2.id });
     expect(dl.text).toBe(text2);
-    expect(dl.headers.get("content-disposition")).toMatch(/attachment; filename="split-sweep-[0-9a-f]{12}\.rill"/);
+    expect(dl.headers.get("content-disposition")).toMatch(/attachment; filename="split-sweep-[0-9a-f]{12}\.runnel"/);
     const list = await call("viewer", "runs/route", "GET", `/api/runs?commit=${commit2.id}`);
     expect((list.json as { runs: RunJson[] }).runs.map((r) => r.id)).toContain(run.id);
   });

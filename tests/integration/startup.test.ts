@@ -31,17 +31,17 @@ describe("start-up failures are one line and a non-zero exit", () => {
   });
 
   it("names an unusable database path (db:migrate)", () => {
-    const file = path.join(os.tmpdir(), `rill-notdir-${process.pid}`);
+    const file = path.join(os.tmpdir(), `runnel-notdir-${process.pid}`);
     fs.writeFileSync(file, "a file, not a folder");
     cleanups.push(() => fs.rmSync(file, { force: true }));
-    const r = script("scripts/migrate.ts", { RILL_DB: path.join(file, "rill.db") });
+    const r = script("scripts/migrate.ts", { RUNNEL_DB: path.join(file, "runnel.db") });
     expect(r.status).toBe(1);
-    expect(r.stderr.trim().split("\n")).toEqual([`rill: database path ${path.join(file, "rill.db")} is not usable: a parent is a file, not a folder`]);
+    expect(r.stderr.trim().split("\n")).toEqual([`runnel: database path ${path.join(file, "runnel.db")} is not usable: a parent is a file, not a folder`]);
   });
 
   it("rejects a port that is not a number (npm start)", () => {
     const r = script("scripts/serve.ts", {}, ["--port", "eighty"]);
     expect(r.status).toBe(2);
-    expect(r.stderr.trim()).toBe('rill: port "eighty" is not a port number');
+    expect(r.stderr.trim()).toBe('runnel: port "eighty" is not a port number');
   });
 });

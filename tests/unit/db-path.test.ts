@@ -3,19 +3,19 @@ import { afterEach, describe, expect, it } from "vitest";
 import { databasePath, migrationsFolder } from "@/db";
 
 describe("database location", () => {
-  const saved = process.env.RILL_DB;
+  const saved = process.env.RUNNEL_DB;
   afterEach(() => {
-    if (saved === undefined) delete process.env.RILL_DB;
-    else process.env.RILL_DB = saved;
+    if (saved === undefined) delete process.env.RUNNEL_DB;
+    else process.env.RUNNEL_DB = saved;
   });
 
-  it("defaults to data/rill.db under the working directory", () => {
-    delete process.env.RILL_DB;
-    expect(databasePath()).toBe(path.resolve("data", "rill.db"));
+  it("defaults to data/runnel.db under the working directory", () => {
+    delete process.env.RUNNEL_DB;
+    expect(databasePath()).toBe(path.resolve("data", "runnel.db"));
   });
 
-  it("is overridden by RILL_DB", () => {
-    process.env.RILL_DB = "/tmp/elsewhere/x.db";
+  it("is overridden by RUNNEL_DB", () => {
+    process.env.RUNNEL_DB = "/tmp/elsewhere/x.db";
     expect(databasePath()).toBe("/tmp/elsewhere/x.db");
   });
 

@@ -2,14 +2,14 @@ import { type CompletionResult, type CompletionSource, CompletionContext } from 
 import { ensureSyntaxTree } from "@codemirror/language";
 import { EditorState } from "@codemirror/state";
 import { describe, expect, it } from "vitest";
-import { collectNames, rill, setElaboratedNames } from "../../src/editor/index";
+import { collectNames, runnel, setElaboratedNames } from "../../src/editor/index";
 import { parser } from "../../src/lang/parser";
 
 /** Completion at the `|` in `doc` through the language's own completion source. */
 function completeAt(doc: string, explicit = false): CompletionResult | null {
   const pos = doc.indexOf("|");
   const text = doc.slice(0, pos) + doc.slice(pos + 1);
-  const state = EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [rill()] });
+  const state = EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [runnel()] });
   ensureSyntaxTree(state, state.doc.length, 5000);
   const sources = state.languageDataAt<CompletionSource>("autocomplete", pos);
   expect(sources).toHaveLength(1);
@@ -101,7 +101,7 @@ describe("node names as pin values", () => {
     const doc = `${NET}probe v = voltage(|)`;
     const pos = doc.indexOf("|");
     const text = doc.replace("|", "");
-    let state = EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [rill()] });
+    let state = EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [runnel()] });
     state = state.update({ effects: setElaboratedNames.of({ nodes: ["x1", "x2", "x9"], elements: [] }) }).state;
     ensureSyntaxTree(state, state.doc.length, 5000);
     const source = state.languageDataAt<CompletionSource>("autocomplete", pos)[0];
@@ -182,7 +182,7 @@ describe("names collected from the tree", () => {
       lines.push(`nfet m${k} gate=vdd source=x${k} drain=x${k + 1}`);
       if (k % 100 === 0) lines.push(`for j in 1..2 {\n  inject i${k}_{j} from=vdd to=y${k}\n}`, `param p${k} = ${k}`);
     }
-    let state = EditorState.create({ doc: lines.join("\n") + "\n", extensions: [rill()] });
+    let state = EditorState.create({ doc: lines.join("\n") + "\n", extensions: [runnel()] });
     // The editor's own (incrementally parsed) tree, against a fresh parse of the same text.
     const incremental = (st: EditorState) => collectNames(ensureSyntaxTree(st, st.doc.length, 10_000)!, (a, b) => st.sliceDoc(a, b));
     const fresh = (st: EditorState) => collectNames(parser.parse(st.doc.toString()), (a, b) => st.sliceDoc(a, b));

@@ -2,10 +2,10 @@ import { ensureSyntaxTree, foldable, getIndentation, highlightingFor, matchBrack
 import { EditorState } from "@codemirror/state";
 import { highlightTree, tags as t } from "@lezer/highlight";
 import { describe, expect, it } from "vitest";
-import { rill, rillHighlightStyle, rillLanguage } from "../../src/editor/index";
+import { runnel, runnelHighlightStyle, runnelLanguage } from "../../src/editor/index";
 
 function stateOf(doc: string): EditorState {
-  const state = EditorState.create({ doc, extensions: [rill()] });
+  const state = EditorState.create({ doc, extensions: [runnel()] });
   ensureSyntaxTree(state, state.doc.length, 5000);
   return state;
 }
@@ -15,7 +15,7 @@ function classesOf(state: EditorState): Map<string, string> {
   const out = new Map<string, string>();
   const tree = ensureSyntaxTree(state, state.doc.length, 5000);
   if (!tree) throw new Error("no tree");
-  highlightTree(tree, rillHighlightStyle, (from, to, cls) => {
+  highlightTree(tree, runnelHighlightStyle, (from, to, cls) => {
     const text = state.sliceDoc(from, to);
     if (!out.has(text)) out.set(text, cls);
   });
@@ -35,24 +35,24 @@ probe p = voltage(x1)
 `;
 
 describe("highlighting", () => {
-  it("styles statement and control keywords, comments and numbers with Rill's style", () => {
+  it("styles statement and control keywords, comments and numbers with Runnel's style", () => {
     const state = stateOf(LOOP);
     const classes = classesOf(state);
-    const definitionKeyword = rillHighlightStyle.style([t.definitionKeyword]);
+    const definitionKeyword = runnelHighlightStyle.style([t.definitionKeyword]);
     expect(definitionKeyword).toBeTruthy();
     expect(classes.get("param")).toBe(definitionKeyword);
     expect(classes.get("nfet")).toBe(definitionKeyword);
     expect(classes.get("sweep")).toBe(definitionKeyword);
-    expect(classes.get("for")).toBe(rillHighlightStyle.style([t.controlKeyword]));
-    expect(classes.get("values")).toBe(rillHighlightStyle.style([t.keyword]));
-    expect(classes.get("# a chain of four")).toBe(rillHighlightStyle.style([t.lineComment]));
-    expect(classes.get("450m")).toBe(rillHighlightStyle.style([t.number]));
-    expect(classes.get("gate")).toBe(rillHighlightStyle.style([t.propertyName]));
+    expect(classes.get("for")).toBe(runnelHighlightStyle.style([t.controlKeyword]));
+    expect(classes.get("values")).toBe(runnelHighlightStyle.style([t.keyword]));
+    expect(classes.get("# a chain of four")).toBe(runnelHighlightStyle.style([t.lineComment]));
+    expect(classes.get("450m")).toBe(runnelHighlightStyle.style([t.number]));
+    expect(classes.get("gate")).toBe(runnelHighlightStyle.style([t.propertyName]));
   });
 
-  it("is active in a state made with rill()", () => {
+  it("is active in a state made with runnel()", () => {
     const state = stateOf(LOOP);
-    expect(highlightingFor(state, [t.definitionKeyword])).toBe(rillHighlightStyle.style([t.definitionKeyword]));
+    expect(highlightingFor(state, [t.definitionKeyword])).toBe(runnelHighlightStyle.style([t.definitionKeyword]));
   });
 });
 
@@ -109,6 +109,6 @@ describe("indentation and language data", () => {
     const state = stateOf("param a = 1\n");
     expect(state.languageDataAt("commentTokens", 0)).toEqual([{ line: "#" }]);
     expect(state.languageDataAt<{ brackets: string[] }>("closeBrackets", 0)[0].brackets).toEqual(["(", "[", "{"]);
-    expect(rillLanguage.name).toBe("rill");
+    expect(runnelLanguage.name).toBe("runnel");
   });
 });

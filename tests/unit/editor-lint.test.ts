@@ -11,8 +11,8 @@ import {
   type LintPort,
   type LintReply,
   type LintRequest,
-  rill,
-  rillLintSource,
+  runnel,
+  runnelLintSource,
   toEditorDiagnostics,
 } from "../../src/editor/index";
 
@@ -29,7 +29,7 @@ const GOOD = "rail vdd = 1\nrail gnd = 0\nnfet m1 gate=vdd source=gnd drain=x\ni
 function fakeView(doc: string): { view: EditorView; specs: TransactionSpec[] } {
   const specs: TransactionSpec[] = [];
   const holder = {
-    state: EditorState.create({ doc, extensions: [rill()] }),
+    state: EditorState.create({ doc, extensions: [runnel()] }),
     dispatch(spec: TransactionSpec) {
       specs.push(spec);
       holder.state = holder.state.update(spec).state;
@@ -44,7 +44,7 @@ describe("diagnostics", () => {
     const expected = elaborate(text).diagnostics;
     expect(expected.length).toBeGreaterThan(0);
     const { view } = fakeView(text);
-    const got = await rillLintSource()(view);
+    const got = await runnelLintSource()(view);
     expect(got.map((d) => [d.from, d.to, d.severity])).toEqual(expected.map((d) => [d.from, d.to, d.severity]));
     got.forEach((d, i) => {
       expect(d.message.startsWith(expected[i].message)).toBe(true);
@@ -59,19 +59,19 @@ describe("diagnostics", () => {
 
   it("are none for a good network", async () => {
     const { view } = fakeView(GOOD);
-    expect(await rillLintSource()(view)).toEqual([]);
+    expect(await runnelLintSource()(view)).toEqual([]);
   });
 
   it("are clamped into the document", () => {
     const d: Diagnostic = { severity: "warning", line: 9, column: 1, from: 120, to: 140, message: "past the end" };
-    expect(toEditorDiagnostics([d], 100)).toEqual([{ from: 100, to: 100, severity: "warning", source: "rill", message: "past the end" }]);
+    expect(toEditorDiagnostics([d], 100)).toEqual([{ from: 100, to: 100, severity: "warning", source: "runnel", message: "past the end" }]);
   });
 
   it("reach onDiagnostics and publish the elaborated names for completion", async () => {
     const text = "rail vdd = 1\nrail gnd = 0\nfor k in 1..3 {\n  nfet m{k} gate=vdd source=gnd drain=x{k}\n  inject i{k} from=vdd to=x{k} value=1n\n}\n";
     const { view, specs } = fakeView(text);
     const seen: Diagnostic[][] = [];
-    await rillLintSource({ onDiagnostics: (d) => seen.push(d) })(view);
+    await runnelLintSource({ onDiagnostics: (d) => seen.push(d) })(view);
     expect(seen).toEqual([elaborate(text).diagnostics]);
     expect(specs).toHaveLength(1);
     const names = view.state.field(elaboratedNames);

@@ -2,7 +2,7 @@ import { undoDepth } from "@codemirror/commands";
 import { Compartment, EditorState, type TransactionSpec } from "@codemirror/state";
 import { type EditorView, keymap } from "@codemirror/view";
 import { describe, expect, it } from "vitest";
-import { readOnlyExtension, replaceText, rillEditorExtensions } from "../../src/editor/setup";
+import { readOnlyExtension, replaceText, runnelEditorExtensions } from "../../src/editor/setup";
 
 function bindingsFor(state: EditorState, key: string) {
   return state.facet(keymap).flat().filter((b) => b.key === key);
@@ -20,7 +20,7 @@ function fakeView(state: EditorState): EditorView {
 
 describe("the workbench editor configuration", () => {
   it("builds one state with every extension (no duplicate-instance conflicts)", () => {
-    const state = EditorState.create({ doc: "rail vdd = 1\n", extensions: rillEditorExtensions() });
+    const state = EditorState.create({ doc: "rail vdd = 1\n", extensions: runnelEditorExtensions() });
     expect(state.languageDataAt("commentTokens", 0)).toEqual([{ line: "#" }]);
     expect(state.readOnly).toBe(false);
   });
@@ -28,7 +28,7 @@ describe("the workbench editor configuration", () => {
   it("binds Mod-s to onSave and Mod-Enter to onRun ahead of the default keys", () => {
     const calls: string[] = [];
     const state = EditorState.create({
-      extensions: rillEditorExtensions({ onSave: () => void calls.push("save"), onRun: () => void calls.push("run") }),
+      extensions: runnelEditorExtensions({ onSave: () => void calls.push("save"), onRun: () => void calls.push("run") }),
     });
     const view = fakeView(state);
     const [save] = bindingsFor(state, "Mod-s");
@@ -41,13 +41,13 @@ describe("the workbench editor configuration", () => {
   });
 
   it("lets the key fall through when a handler returns false", () => {
-    const state = EditorState.create({ extensions: rillEditorExtensions({ onRun: () => false }) });
+    const state = EditorState.create({ extensions: runnelEditorExtensions({ onRun: () => false }) });
     expect(bindingsFor(state, "Mod-Enter")[0].run?.(fakeView(state))).toBe(false);
   });
 
   it("switches read-only through its compartment", () => {
     const readOnly = new Compartment();
-    let state = EditorState.create({ extensions: rillEditorExtensions({ readOnly, initiallyReadOnly: true }) });
+    let state = EditorState.create({ extensions: runnelEditorExtensions({ readOnly, initiallyReadOnly: true }) });
     expect(state.readOnly).toBe(true);
     state = state.update({ effects: readOnly.reconfigure(readOnlyExtension(false)) }).state;
     expect(state.readOnly).toBe(false);
@@ -56,7 +56,7 @@ describe("the workbench editor configuration", () => {
 
 describe("replaceText", () => {
   it("replaces the text outside the undo history (nothing of the old text can be undone back) and skips an identical text", () => {
-    let state = EditorState.create({ doc: "rail a = 1\n", extensions: rillEditorExtensions() });
+    let state = EditorState.create({ doc: "rail a = 1\n", extensions: runnelEditorExtensions() });
     state = state.update({ changes: { from: 0, insert: "# mine\n" }, userEvent: "input.type" }).state;
     expect(undoDepth(state)).toBe(1);
     const view = fakeView(state);

@@ -3,13 +3,13 @@ import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { main } from "../../scripts/rill";
+import { main } from "../../scripts/runnel";
 import { elaborate, PFET } from "../../src/lang/index";
 import type { Network } from "../../src/lang/network";
 
 const root = join(__dirname, "../..");
 const examplesDir = join(root, "examples");
-const files = readdirSync(examplesDir).filter((f) => f.endsWith(".rill"));
+const files = readdirSync(examplesDir).filter((f) => f.endsWith(".runnel"));
 
 function load(name: string): Network {
   const r = elaborate(readFileSync(join(examplesDir, name), "utf8"));
@@ -20,7 +20,7 @@ function load(name: string): Network {
 describe("examples", () => {
   it("there are at least six", () => {
     expect(files.length).toBeGreaterThanOrEqual(6);
-    for (const f of ["row64.rill", "grid32.rill", "divider.rill", "mirror.rill", "biassweep.rill", "mismatch.rill"]) expect(files).toContain(f);
+    for (const f of ["row64.runnel", "grid32.runnel", "divider.runnel", "mirror.runnel", "biassweep.runnel", "mismatch.runnel"]) expect(files).toContain(f);
   });
 
   it.each(files)("%s checks clean: no errors, no warnings", (f) => {
@@ -31,7 +31,7 @@ describe("examples", () => {
   });
 
   it("row64: 63 lateral and 64 output devices, 64 injects, 66 probes", () => {
-    const n = load("row64.rill");
+    const n = load("row64.runnel");
     expect(n.name).toBe("row64");
     expect(n.devices.count).toBe(127);
     expect(n.injects.count).toBe(64);
@@ -39,14 +39,14 @@ describe("examples", () => {
   });
 
   it("grid32: a 32 x 32 grid from nested loops", () => {
-    const n = load("grid32.rill");
+    const n = load("grid32.runnel");
     expect(n.devices.count).toBe(32 * 31 * 2 + 32 * 32);
     expect(n.nodes.index.has("n31_31")).toBe(true);
     expect(n.injects.count).toBe(32 * 32 + 1);
   });
 
   it("mirror: a pfet in its well and four copies with W/L 1, 2, 4, 8", () => {
-    const n = load("mirror.rill");
+    const n = load("mirror.runnel");
     const ref = n.devices.index.get("ref")!;
     expect(n.devices.type[ref]).toBe(PFET);
     expect(n.nodes.names[n.devices.bulk[ref]]).toBe("vdd");
@@ -59,7 +59,7 @@ describe("examples", () => {
   });
 
   it("biassweep: a bias sweep by a temperature sweep", () => {
-    const n = load("biassweep.rill");
+    const n = load("biassweep.runnel");
     expect(n.sweeps.map((s) => [s.param, s.values.length])).toEqual([
       ["vh", 11],
       ["temp", 3],
@@ -68,14 +68,14 @@ describe("examples", () => {
   });
 
   it("mismatch: seeded Monte Carlo over a small sweep", () => {
-    const n = load("mismatch.rill");
+    const n = load("mismatch.runnel");
     expect(n.mismatch).toMatchObject({ runs: 200, seed: 7, avt: 3.5e-3 });
     expect(n.sweeps[0].values).toEqual([0, 0.01, 0.02]);
   });
 });
 
-function rill(...args: string[]) {
-  return spawnSync(join(root, "node_modules/.bin/tsx"), [join(root, "scripts/rill.ts"), ...args], { encoding: "utf8", cwd: root });
+function runnel(...args: string[]) {
+  return spawnSync(join(root, "node_modules/.bin/tsx"), [join(root, "scripts/runnel.ts"), ...args], { encoding: "utf8", cwd: root });
 }
 
 /** `main` in-process: the same code the script runs, without a process start per case. */
@@ -86,13 +86,13 @@ function run(...args: string[]) {
   return { status, stdout, stderr };
 }
 
-describe("rill command", () => {
-  const dir = mkdtempSync(join(tmpdir(), "rill-cli-"));
-  const broken = join(dir, "broken.rill");
+describe("runnel command", () => {
+  const dir = mkdtempSync(join(tmpdir(), "runnel-cli-"));
+  const broken = join(dir, "broken.runnel");
   writeFileSync(broken, "network broken\nrail v = 1\nnfet m1 gate=v source=x drain=v colour=red\nparam p = q\n");
 
   it("check --json on a broken file prints ok:false with diagnostics and exits 1 (spawned)", () => {
-    const r = rill("check", broken, "--json");
+    const r = runnel("check", broken, "--json");
     expect(r.status).toBe(1);
     expect(JSON.parse(r.stdout)).toEqual({
       network: "broken",
@@ -116,15 +116,15 @@ describe("rill command", () => {
   });
 
   it("a clean example exits 0 and prints nothing; --json says ok", () => {
-    const r = run("check", join(examplesDir, "row64.rill"));
+    const r = run("check", join(examplesDir, "row64.runnel"));
     expect(r).toEqual({ status: 0, stdout: "", stderr: "" });
-    expect(JSON.parse(run("check", join(examplesDir, "row64.rill"), "--json").stdout)).toEqual({ network: "row64", ok: true, diagnostics: [] });
+    expect(JSON.parse(run("check", join(examplesDir, "row64.runnel"), "--json").stdout)).toEqual({ network: "row64", ok: true, diagnostics: [] });
   });
 
   it("usage errors exit 2: unreadable file, no file, unknown option or command", () => {
-    const missing = run("check", join(dir, "missing.rill"));
+    const missing = run("check", join(dir, "missing.runnel"));
     expect(missing.status).toBe(2);
-    expect(missing.stderr).toMatch(/missing\.rill: cannot read the file \(ENOENT\)/);
+    expect(missing.stderr).toMatch(/missing\.runnel: cannot read the file \(ENOENT\)/);
     expect(run("check", dir).status).toBe(2);
     expect(run("check").status).toBe(2);
     expect(run("check", broken, "--yaml").status).toBe(2);

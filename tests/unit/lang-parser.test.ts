@@ -16,15 +16,15 @@ for (const file of readdirSync(corpus).filter((f) => f.endsWith(".txt"))) {
 }
 
 describe("generated parser", () => {
-  it("matches grammar/rill.grammar (run `npm run grammar` when this fails)", () => {
-    const grammar = readFileSync(join(root, "grammar/rill.grammar"), "utf8");
-    const built = buildParserFile(grammar, { fileName: "grammar/rill.grammar", moduleStyle: "es", typeScript: true });
+  it("matches grammar/runnel.grammar (run `npm run grammar` when this fails)", () => {
+    const grammar = readFileSync(join(root, "grammar/runnel.grammar"), "utf8");
+    const built = buildParserFile(grammar, { fileName: "grammar/runnel.grammar", moduleStyle: "es", typeScript: true });
     expect(readFileSync(join(root, "src/lang/parser.ts"), "utf8")).toBe(built.parser);
     expect(readFileSync(join(root, "src/lang/parser.terms.ts"), "utf8")).toBe(built.terms);
   });
 
   it("package.json generates the typed parser", () => {
     const pkg = JSON.parse(readFileSync(join(root, "package.json"), "utf8")) as { scripts: Record<string, string> };
-    expect(pkg.scripts.grammar).toBe("lezer-generator --typeScript grammar/rill.grammar -o src/lang/parser.ts");
+    expect(pkg.scripts.grammar).toBe("lezer-generator --typeScript grammar/runnel.grammar -o src/lang/parser.ts");
   });
 });

@@ -14,7 +14,7 @@ const LIMITS: ElaborateOptions = { limits: { maxDevices: 20_000, maxWork: 200_00
 
 const examplesDir = join(__dirname, "../../examples");
 const examples = readdirSync(examplesDir)
-  .filter((f) => f.endsWith(".rill"))
+  .filter((f) => f.endsWith(".runnel"))
   .map((f) => readFileSync(join(examplesDir, f), "utf8"));
 
 function checkInvariants(text: string): void {

@@ -1,6 +1,6 @@
 /**
  * The sink's MIME reader against messages written by nodemailer's own
- * MailComposer (the encoder Rill sends with): quoted-printable soft breaks in
+ * MailComposer (the encoder Runnel sends with): quoted-printable soft breaks in
  * long links, encoded words in headers, multipart/alternative, base64.
  */
 import MailComposer from "nodemailer/lib/mail-composer";
@@ -16,16 +16,16 @@ const longLink = `http://127.0.0.1:3000/invite/${"Ab_-9".repeat(12)}xyz`;
 describe("parseMail", () => {
   it("recovers text and HTML of a multipart/alternative message with a long link", async () => {
     const raw = await compose({
-      from: "Rill <rill@localhost>",
+      from: "Runnel <runnel@localhost>",
       to: "ruth@larkspur.example",
-      subject: "Ada Marlow invited you to LM-64 edge row on Rill",
+      subject: "Ada Marlow invited you to LM-64 edge row on Runnel",
       text: `Accept the invitation:\n${longLink}\n\nThe link works once = and only once.`,
       html: `<p><a href="${longLink}">Accept</a></p>`,
     });
     const m = parseMail(raw);
-    expect(m.from).toBe("Rill <rill@localhost>");
+    expect(m.from).toBe("Runnel <runnel@localhost>");
     expect(m.to).toBe("ruth@larkspur.example");
-    expect(m.subject).toBe("Ada Marlow invited you to LM-64 edge row on Rill");
+    expect(m.subject).toBe("Ada Marlow invited you to LM-64 edge row on Runnel");
     expect(m.text).toBe(`Accept the invitation:\n${longLink}\n\nThe link works once = and only once.`);
     expect(m.html).toContain(`href="${longLink}"`);
     expect(m.messageId).toMatch(/^<.+@.+>$/);

@@ -13,7 +13,7 @@ describe("comment Markdown", () => {
   });
 
   it("keeps fenced code and its language class", () => {
-    expect(renderComment("```rill\nnfet m1 gate=vg source=x drain=vdd\n```")).toContain('<pre><code class="language-rill">nfet m1');
+    expect(renderComment("```runnel\nnfet m1 gate=vg source=x drain=vdd\n```")).toContain('<pre><code class="language-runnel">nfet m1');
   });
 
   it("turns [[run ID]] into a run placeholder, not inside code", () => {

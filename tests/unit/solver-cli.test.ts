@@ -1,5 +1,5 @@
 /**
- * `rill solve FILE --json` on every example (LANGUAGE.md, Command line): one
+ * `runnel solve FILE --json` on every example (LANGUAGE.md, Command line): one
  * JSON document, ok, every point with its method, and KCL residuals that are
  * negligible against the network's currents. The mirror bank is solved by
  * Newton and says why; the exact published check values are in
@@ -10,11 +10,11 @@ import { mkdtempSync, readdirSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { MAX_PRINTED_VALUES, main } from "../../scripts/rill";
+import { MAX_PRINTED_VALUES, main } from "../../scripts/runnel";
 import type { SolveJson } from "../../src/solver/results";
 
 const root = join(__dirname, "../..");
-const examples = readdirSync(join(root, "examples")).filter((f) => f.endsWith(".rill"));
+const examples = readdirSync(join(root, "examples")).filter((f) => f.endsWith(".runnel"));
 
 function solveJson(file: string): { code: number; doc: SolveJson; err: string } {
   let out = "";
@@ -23,7 +23,7 @@ function solveJson(file: string): { code: number; doc: SolveJson; err: string } 
   return { code, doc: JSON.parse(out) as SolveJson, err };
 }
 
-describe("rill solve --json on the examples", () => {
+describe("runnel solve --json on the examples", () => {
   it("there are examples to solve", () => {
     expect(examples.length).toBeGreaterThanOrEqual(6);
   });
@@ -44,7 +44,7 @@ describe("rill solve --json on the examples", () => {
   });
 
   it("the mirror bank is solved by Newton, saying which gate is on an internal node", () => {
-    const { doc } = solveJson(join(root, "examples", "mirror.rill"));
+    const { doc } = solveJson(join(root, "examples", "mirror.runnel"));
     expect(doc.points[0].solver.method).toBe("newton");
     expect(doc.points[0].solver.reason).toBe("gate of diode is on internal node x");
     // W/L ratios 1, 2, 4, 8: gain = ratio·(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}) (PHYSICS.md §8; Mead 1989 [confirmed record; formula derived]).
@@ -55,7 +55,7 @@ describe("rill solve --json on the examples", () => {
   });
 
   it("the exact command line prints one document and exits 0 (spawned)", () => {
-    const r = spawnSync("npm", ["run", "--silent", "rill", "--", "solve", "examples/divider.rill", "--json"], { cwd: root, encoding: "utf8" });
+    const r = spawnSync("npm", ["run", "--silent", "runnel", "--", "solve", "examples/divider.runnel", "--json"], { cwd: root, encoding: "utf8" });
     expect(r.status).toBe(0);
     const doc = JSON.parse(r.stdout) as SolveJson;
     expect(doc).toMatchObject({ network: "divider", ok: true });
@@ -65,9 +65,9 @@ describe("rill solve --json on the examples", () => {
   it("usage errors exit 2; an unsolvable network exits 1 with ok false and no points", () => {
     const io = { out: () => undefined, err: () => undefined };
     expect(main(["solve"], io)).toBe(2);
-    expect(main(["solve", join(root, "examples", "nope.rill"), "--json"], io)).toBe(2);
-    const dir = mkdtempSync(join(tmpdir(), "rill-solve-"));
-    const file = join(dir, "push.rill");
+    expect(main(["solve", join(root, "examples", "nope.runnel"), "--json"], io)).toBe(2);
+    const dir = mkdtempSync(join(tmpdir(), "runnel-solve-"));
+    const file = join(dir, "push.runnel");
     writeFileSync(file, "rail gnd = 0\nrail vd = 1\nrail vg = 0.5\nnfet m gate=vg source=x drain=vd\ninject push from=gnd to=x value=1n\n");
     const { code, doc } = solveJson(file);
     expect(code).toBe(1);
@@ -79,7 +79,7 @@ describe("rill solve --json on the examples", () => {
   it("a run's document is printed a point at a time, exactly as JSON.stringify(doc, null, 2) prints it whole", () => {
     let out = "";
     let writes = 0;
-    const code = main(["solve", join(root, "examples", "biassweep.rill"), "--json"], { out: (t) => ((out += t), writes++), err: () => undefined });
+    const code = main(["solve", join(root, "examples", "biassweep.runnel"), "--json"], { out: (t) => ((out += t), writes++), err: () => undefined });
     expect(code).toBe(0);
     const doc = JSON.parse(out) as SolveJson;
     expect(doc.points.length).toBeGreaterThan(1);
@@ -88,8 +88,8 @@ describe("rill solve --json on the examples", () => {
   });
 
   it("a run that would print more than MAX_PRINTED_VALUES is refused before solving, at its sweep's line", () => {
-    const dir = mkdtempSync(join(tmpdir(), "rill-solve-"));
-    const file = join(dir, "big.rill");
+    const dir = mkdtempSync(join(tmpdir(), "runnel-solve-"));
+    const file = join(dir, "big.runnel");
     // 1,000 × 1,000 points of a one-device network: a million points, about 2e7 values.
     writeFileSync(file, "param a = 0.6\nparam b = 1n\nrail vdd = 1.8\nrail gnd = 0\nrail g = a\nnfet m gate=g source=x drain=vdd\ninject s from=x to=gnd value=b\nsweep a from 0.5 to 0.7 points 1000\nsweep b from 1n to 2n points 1000\n");
     const { code, doc } = solveJson(file);
@@ -102,8 +102,8 @@ describe("rill solve --json on the examples", () => {
   });
 
   it("a probe that is not a finite number prints null with a warning at the probe's line", () => {
-    const dir = mkdtempSync(join(tmpdir(), "rill-solve-"));
-    const file = join(dir, "nan.rill");
+    const dir = mkdtempSync(join(tmpdir(), "runnel-solve-"));
+    const file = join(dir, "nan.runnel");
     writeFileSync(file, "param z = 0\nrail vdd = 1.8\nrail gnd = 0\nrail gb = 0.6\nnfet m1 gate=gb source=x drain=vdd\ninject s from=x to=gnd value=1n\nprobe c = 1/z\nprobe v = voltage(x)\nsweep z values [1, 0]\n");
     const { code, doc } = solveJson(file);
     expect(code).toBe(0);

@@ -15,7 +15,7 @@ export function GET() {
     detail = (e as Error).message.split("\n")[0];
   }
   return Response.json(
-    { app: "rill", version: APP_VERSION, db: dbState, ...(detail ? { detail } : {}) },
+    { app: "runnel", version: APP_VERSION, db: dbState, ...(detail ? { detail } : {}) },
     { status: dbState === "ok" ? 200 : 503, headers: { "cache-control": "no-store" } },
   );
 }

@@ -5,7 +5,7 @@ import { listWorkspacesFor } from "@/app/lib/workspaces";
 
 export const dynamic = "force-dynamic";
 
-/** GET /api/me: who the session or token is, and their workspaces with roles (the `rill` command's whoami). */
+/** GET /api/me: who the session or token is, and their workspaces with roles (the `runnel` command's whoami). */
 export function GET(req: Request) {
   return handle(async () => {
     const actor = authenticated(await getActor(req));

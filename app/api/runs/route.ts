@@ -44,7 +44,7 @@ export function POST(request: Request) {
       commitId: c!.id,
       actorId: actor.userId,
       timeLimitMs: input.timeLimitSeconds === undefined ? undefined : Math.round(input.timeLimitSeconds * 1000),
-      fault: process.env.RILL_TEST_FAULTS === "1" ? input.fault : undefined,
+      fault: process.env.RUNNEL_TEST_FAULTS === "1" ? input.fault : undefined,
     });
     return fresh({ run }, { status: 201 });
   });

@@ -28,7 +28,7 @@ function Linked({ text }: { text: string }) {
 /**
  * /dev/mailbox: every message the local SMTP sink received, newest first. It
  * exists only while mail goes to that sink (`npm run demo`, tests); with
- * RILL_SMTP_URL set it is a 404.
+ * RUNNEL_SMTP_URL set it is a 404.
  */
 export default function MailboxPage() {
   if (!mailboxEnabled()) notFound();
@@ -37,8 +37,8 @@ export default function MailboxPage() {
     <div className="max-w-3xl space-y-4">
       <h1 className="text-2xl font-semibold">Mailbox (development)</h1>
       <p className="text-sm text-stone-600">
-        Mail that Rill sent while running with its local mail sink. In production, mail goes to the SMTP server in{" "}
-        <code className="font-mono">RILL_SMTP_URL</code> and this page does not exist.
+        Mail that Runnel sent while running with its local mail sink. In production, mail goes to the SMTP server in{" "}
+        <code className="font-mono">RUNNEL_SMTP_URL</code> and this page does not exist.
       </p>
       {messages.length === 0 ? (
         <p className="rounded border border-dashed border-stone-300 bg-white p-6 text-stone-600">No mail yet.</p>

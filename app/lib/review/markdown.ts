@@ -1,5 +1,5 @@
 /**
- * Comments: Markdown → safe HTML, plus the two bits of Rill syntax a comment may carry.
+ * Comments: Markdown → safe HTML, plus the two bits of Runnel syntax a comment may carry.
  *
  * Contract of `renderComment`
  * - Raw HTML in the source is never interpreted: marked's `html` tokens are

@@ -2,7 +2,7 @@
  * Bench measurements: a CSV of measured data, parsed strictly, and its error
  * against a simulated curve.
  *
- * The CSV format (Rill's own; documented in the upload form)
+ * The CSV format (Runnel's own; documented in the upload form)
  * - UTF-8 text (a UTF-8 byte-order mark is allowed), at most 10 MB; comma,
  *   semicolon or tab separated (whichever the header line uses); lines starting with `#` are notes and skipped,
  *   as are blank lines.

@@ -234,7 +234,7 @@ export function diffResults(from: AnalysisTable[], to: AnalysisTable[], options:
   return { tolerance, compared, beyond, rows: [...beyondRows, ...withinRows], truncated, analyses, points, names };
 }
 
-/** One solved point in the `rill solve --json` shape of LANGUAGE.md. */
+/** One solved point in the `runnel solve --json` shape of LANGUAGE.md. */
 export interface JsonPoint {
   params: Record<string, number>;
   nodes: Record<string, number>;
@@ -245,7 +245,7 @@ export interface JsonPoint {
 }
 
 /**
- * An analysis table from points in the `rill solve --json` shape. Names come
+ * An analysis table from points in the `runnel solve --json` shape. Names come
  * from the first point (every point of one run has the same names); a value
  * missing in a later point is NaN.
  */

@@ -35,7 +35,7 @@ export function handleOf(email: string): string {
 
 /** The absolute origin for links in e-mails. */
 function origin(): string {
-  return (process.env.RILL_ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, "");
+  return (process.env.RUNNEL_ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, "");
 }
 
 function checkBody(body: string, verdict: Verdict | null): string {
@@ -126,7 +126,7 @@ export async function addComment(
     try {
       await notify({
         to: t.email,
-        subject: `[Rill] ${author?.name ?? "Someone"} mentioned you in "${thread.title}"`,
+        subject: `[Runnel] ${author?.name ?? "Someone"} mentioned you in "${thread.title}"`,
         text: `${author?.name ?? "Someone"} mentioned you in the thread "${thread.title}":\n\n${excerpt}\n\nOpen the thread: ${link}\n`,
       });
     } catch (e) {

@@ -15,7 +15,7 @@ import type { Overlay } from "@/app/lib/review/measurement-store";
 import { getJson } from "./fetch";
 import type { Marks } from "./plots";
 
-/** Measured points are drawn in Rill's ember (--color-ember-500 in app/globals.css), apart from the moss of the simulated curve. */
+/** Measured points are drawn in Runnel's ember (--color-ember-500 in app/globals.css), apart from the moss of the simulated curve. */
 export const MEASURED_COLOUR = "#b4532a";
 
 interface Listed {

@@ -2,7 +2,7 @@
 
 /**
  * The networks of a workspace: each with its newest commit and run; create a
- * network, upload a `.rill` file as a new network, rename. Data from
+ * network, upload a `.runnel` file as a new network, rename. Data from
  * /api/w/[slug]/networks through SWR.
  */
 import Link from "next/link";
@@ -52,7 +52,7 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
       return;
     }
     const text = await f.text();
-    await create({ name: f.name.replace(/\.rill$/i, ""), text, message: `Upload ${f.name}` });
+    await create({ name: f.name.replace(/\.runnel$/i, ""), text, message: `Upload ${f.name}` });
   };
 
   return (
@@ -74,14 +74,14 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
               Create
             </button>
             <button type="button" disabled={busy} onClick={() => file.current?.click()} className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:opacity-50">
-              Upload .rill file…
+              Upload .runnel file…
             </button>
             <input
               ref={file}
               type="file"
-              accept=".rill,text/plain"
+              accept=".runnel,text/plain"
               className="hidden"
-              aria-label="Upload a .rill file"
+              aria-label="Upload a .runnel file"
               onChange={(e) => {
                 const f = e.target.files?.[0];
                 e.target.value = "";
@@ -100,7 +100,7 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
       {!data ? (
         !error ? <p className="text-sm text-stone-500">Loading…</p> : null
       ) : data.networks.length === 0 ? (
-        <p className="rounded border border-dashed border-stone-300 bg-white p-6 text-stone-600">No networks yet.{canWrite ? " Create one or upload a .rill file." : ""}</p>
+        <p className="rounded border border-dashed border-stone-300 bg-white p-6 text-stone-600">No networks yet.{canWrite ? " Create one or upload a .runnel file." : ""}</p>
       ) : (
         <ul aria-label="Networks" className="divide-y divide-stone-200 rounded border border-stone-200 bg-white">
           {data.networks.map((n) => (

@@ -10,7 +10,7 @@ import type uPlotType from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatEng } from "@/app/lib/format";
 
-/** Rill's curve colours (moss, ember, slate, ochre, plum, teal). */
+/** Runnel's curve colours (moss, ember, slate, ochre, plum, teal). */
 export const CURVE_COLOURS = ["#2f6748", "#b4532a", "#4b5d73", "#a07a1f", "#7a4b7a", "#2c7d80"];
 
 export interface Curve {
@@ -176,7 +176,7 @@ export function Histogram({ title, values, unit }: { title: string; values: numb
   return <div ref={host} role="img" aria-label={title} data-slot="plot" className="w-full overflow-hidden" />;
 }
 
-/** Colour of t in [0, 1] on Rill's map scale: deep slate → moss → pale straw. */
+/** Colour of t in [0, 1] on Runnel's map scale: deep slate → moss → pale straw. */
 export function mapColour(t: number): string {
   const stops = [
     [31, 38, 64],

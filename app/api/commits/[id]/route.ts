@@ -7,7 +7,7 @@ type Ctx = { params: Promise<{ id: string }> };
 
 /**
  * GET /api/commits/[id] (workspace.read): the commit with its text and diagnostics.
- * With `?download`, the text alone as a `.rill` attachment named after the network and commit.
+ * With `?download`, the text alone as a `.runnel` attachment named after the network and commit.
  */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
@@ -18,7 +18,7 @@ export function GET(request: Request, ctx: Ctx) {
       return new Response(c!.text, {
         headers: {
           "content-type": "text/plain; charset=utf-8",
-          "content-disposition": `attachment; filename="${n!.slug}-${c!.id.slice(0, 12)}.rill"`,
+          "content-disposition": `attachment; filename="${n!.slug}-${c!.id.slice(0, 12)}.runnel"`,
           "cache-control": "private, max-age=31536000, immutable",
         },
       });

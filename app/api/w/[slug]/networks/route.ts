@@ -17,7 +17,7 @@ export function GET(request: Request, ctx: Ctx) {
 
 const CreateNetwork = z.object({
   name: z.string().max(200),
-  /** Starting text (an uploaded .rill file): makes the first commit. */
+  /** Starting text (an uploaded .runnel file): makes the first commit. */
   text: z.string().optional(),
   message: z.string().max(2000).optional(),
 });

@@ -1,5 +1,5 @@
 /**
- * The `rill` command line: `rill check FILE [--json]`, `rill solve FILE --json`.
+ * The `runnel` command line: `runnel check FILE [--json]`, `runnel solve FILE --json`.
  * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file).
  * File reading lives here only; src/lang has no I/O.
  */
@@ -63,7 +63,7 @@ export function elaborateFile(file: string): ElaborationResult {
 }
 
 const check: Subcommand = {
-  usage: "rill check FILE [--json]",
+  usage: "runnel check FILE [--json]",
   summary: "print the diagnostics of a network file",
   run(args, io) {
     const { file, flags } = fileAndFlags(args, ["--json"]);
@@ -75,7 +75,7 @@ const check: Subcommand = {
 };
 
 /**
- * Most values `rill solve --json` prints (points × values per point), checked
+ * Most values `runnel solve --json` prints (points × values per point), checked
  * before anything is solved. About 40 bytes each in the printed text
  * (measured: 16.5 M values printed 628 MB), so the document stays below
  * 512 M characters, the longest string Node.js reads whole.
@@ -113,12 +113,12 @@ function progress(io: Io): (done: number, total: number) => void {
     if (now < next || done >= total) return;
     next = now + 2000;
     const s = (now - t0) / 1000;
-    io.err(`rill solve: ${done.toLocaleString("en-US")} of ${total.toLocaleString("en-US")} points in ${s.toFixed(0)} s, about ${((s / done) * (total - done)).toFixed(0)} s to go`);
+    io.err(`runnel solve: ${done.toLocaleString("en-US")} of ${total.toLocaleString("en-US")} points in ${s.toFixed(0)} s, about ${((s / done) * (total - done)).toFixed(0)} s to go`);
   };
 }
 
 const solve: Subcommand = {
-  usage: "rill solve FILE --json",
+  usage: "runnel solve FILE --json",
   summary: "solve every point and print one JSON document",
   run(args, io) {
     const { file, flags } = fileAndFlags(args, ["--json"]);
@@ -163,14 +163,14 @@ export function main(argv: string[], io: Io): number {
   }
   const cmd = Object.prototype.hasOwnProperty.call(SUBCOMMANDS, name) ? SUBCOMMANDS[name] : undefined;
   if (!cmd) {
-    io.err(`rill: unknown command '${name}'\n${usage()}`);
+    io.err(`runnel: unknown command '${name}'\n${usage()}`);
     return EXIT_USAGE;
   }
   try {
     return cmd.run(rest, io);
   } catch (e) {
     if (e instanceof UsageError) {
-      io.err(`rill ${name}: ${e.message}\nusage: ${cmd.usage}`);
+      io.err(`runnel ${name}: ${e.message}\nusage: ${cmd.usage}`);
       return EXIT_USAGE;
     }
     throw e;
