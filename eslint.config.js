@@ -3,7 +3,18 @@ import reactHooks from "eslint-plugin-react-hooks";
 import tseslint from "typescript-eslint";
 
 export default tseslint.config(
-  { ignores: [".next/**", "node_modules/**", "data/**", ".build/**", "src/lang/parser.ts", "src/lang/parser.terms.ts", "next-env.d.ts", "test-results/**"] },
+  {
+    ignores: [
+      ".next/**",
+      "node_modules/**",
+      "data/**",
+      ".build/**",
+      "src/lang/parser.ts",
+      "src/lang/parser.terms.ts",
+      "next-env.d.ts",
+      "test-results/**",
+    ],
+  },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {

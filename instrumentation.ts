@@ -9,7 +9,8 @@ export async function register(): Promise<void> {
   try {
     await warmPool();
     const r = recoverRuns();
-    if (r.interrupted || r.requeued) console.log(`runnel: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again`);
+    if (r.interrupted || r.requeued)
+      console.log(`runnel: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again`);
   } catch (e) {
     // A database that cannot be opened is reported by the start script and /api/health; do not crash start-up here.
     console.error(`runnel: could not recover runs: ${(e as Error).message}`);

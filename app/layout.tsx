@@ -22,9 +22,13 @@ export default function RootLayout({ children }: { children: ReactNode }) {
               <span className="hidden text-xs text-stone-500 sm:inline">weak-inversion network workbench</span>
             </Link>
             <nav className="flex-1 text-sm text-stone-600">
-              <Link href="/" className="hover:text-moss-700">Workspaces</Link>
+              <Link href="/" className="hover:text-moss-700">
+                Workspaces
+              </Link>
               {mailboxEnabled() ? (
-                <Link href="/dev/mailbox" className="ml-4 hover:text-moss-700">Mailbox (dev)</Link>
+                <Link href="/dev/mailbox" className="ml-4 hover:text-moss-700">
+                  Mailbox (dev)
+                </Link>
               ) : null}
             </nav>
             <div data-slot="account" className="text-sm">

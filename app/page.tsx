@@ -18,7 +18,10 @@ export default async function HomePage() {
             threads. Sign in to see the workspaces you are a member of.
           </p>
           <p className="flex gap-3 pt-2">
-            <Link href="/signin" className="rounded bg-moss-600 px-3 py-1.5 text-sm font-medium text-white hover:bg-moss-700">
+            <Link
+              href="/signin"
+              className="rounded bg-moss-600 px-3 py-1.5 text-sm font-medium text-white hover:bg-moss-700"
+            >
               Sign in
             </Link>
             <Link href="/signup" className="rounded border border-stone-300 px-3 py-1.5 text-sm hover:bg-stone-100">

@@ -16,7 +16,8 @@ import { build } from "esbuild";
 
 const args = process.argv.slice(2);
 const tsx = "node_modules/tsx/dist/cli.mjs";
-const run = (cmd: string, argv: string[]) => spawnSync(cmd, argv, { stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } }).status ?? 1;
+const run = (cmd: string, argv: string[]) =>
+  spawnSync(cmd, argv, { stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } }).status ?? 1;
 const BUNDLE = ".build/bench-run.mjs";
 
 build({
@@ -28,7 +29,9 @@ build({
   target: "node20",
   tsconfig: "tsconfig.json",
   // ESM output still meets CommonJS dependencies that call require().
-  banner: { js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);" },
+  banner: {
+    js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);",
+  },
   logLevel: "warning",
 }).then(
   () => process.exit(main()),

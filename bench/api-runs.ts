@@ -48,10 +48,14 @@ const { token } = createApiToken("u_designer1", "bench");
 closeDb();
 
 const base = `http://127.0.0.1:${PORT}`;
-const server = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)], {
-  env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
-  stdio: ["ignore", "ignore", "inherit"],
-});
+const server = spawn(
+  process.execPath,
+  ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)],
+  {
+    env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
+    stdio: ["ignore", "ignore", "inherit"],
+  },
+);
 const stop = () => {
   server.kill("SIGTERM");
   fs.rmSync(dir, { recursive: true, force: true });
@@ -60,7 +64,11 @@ process.on("exit", stop);
 
 const auth = { authorization: `Bearer ${token}`, "content-type": "application/json" };
 async function api<T>(method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  const res = await fetch(base + url, { method, headers: auth, body: body === undefined ? undefined : JSON.stringify(body) });
+  const res = await fetch(base + url, {
+    method,
+    headers: auth,
+    body: body === undefined ? undefined : JSON.stringify(body),
+  });
   return { status: res.status, json: (await res.json()) as T };
 }
 
@@ -77,10 +85,18 @@ for (let i = 0; ; i++) {
 /** The 64 × 64 diffuser grid of bench/workloads.ts with two probes and a sweep of the lateral gate. */
 function sweepText(points: number): string {
   const c = N / 2;
-  return gridText("bench_grid", N, `probe centre = voltage(n${c}_${c})\nprobe edge = current(o0_0)\nsweep vh from 0.65 to 0.85 points ${points}\n`);
+  return gridText(
+    "bench_grid",
+    N,
+    `probe centre = voltage(n${c}_${c})\nprobe edge = current(o0_0)\nsweep vh from 0.65 to 0.85 points ${points}\n`,
+  );
 }
 
-const created = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-row/networks", { name: "Bench grid", text: sweepText(POINTS), message: "bench" });
+const created = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-row/networks", {
+  name: "Bench grid",
+  text: sweepText(POINTS),
+  message: "bench",
+});
 if (created.status !== 201) throw new Error(`creating the network: ${created.status} ${JSON.stringify(created.json)}`);
 
 type Kind = "state" | "series" | "layout" | "point";
@@ -119,20 +135,39 @@ async function client(runId: string, index: number, until: () => boolean): Promi
       await timed("layout", `/api/runs/${runId}/results?view=layout`);
       haveLayout[index] = true;
     }
-    if (pointsDone > 0 && tick % 5 === 0) await timed("point", `/api/runs/${runId}/results?view=point&point=${Math.floor(Math.random() * pointsDone)}&format=binary`, true);
+    if (pointsDone > 0 && tick % 5 === 0)
+      await timed(
+        "point",
+        `/api/runs/${runId}/results?view=point&point=${Math.floor(Math.random() * pointsDone)}&format=binary`,
+        true,
+      );
     tick++;
     await new Promise((f) => setTimeout(f, Math.max(0, 1000 - (performance.now() - started))));
   }
 }
 
 const t0 = performance.now();
-const started = await api<{ run: { id: string } }>("POST", "/api/runs", { commit: created.json.commit.id, timeLimitSeconds: 3600 });
+const started = await api<{ run: { id: string } }>("POST", "/api/runs", {
+  commit: created.json.commit.id,
+  timeLimitSeconds: 3600,
+});
 if (started.status !== 201) throw new Error(`starting the run: ${started.status} ${JSON.stringify(started.json)}`);
 const runId = started.json.run.id;
 const live = () => runState === "queued" || runState === "running";
-await Promise.all(Array.from({ length: CLIENTS }, (_, i) => client(runId, i, () => !live() && performance.now() - t0 > 1500)));
+await Promise.all(
+  Array.from({ length: CLIENTS }, (_, i) => client(runId, i, () => !live() && performance.now() - t0 > 1500)),
+);
 const wall = performance.now() - t0;
-const final = await api<{ run: { state: string; pointsDone: number; createdAt: number; startedAt: number; finishedAt: number; reason: string | null } }>("GET", `/api/runs/${runId}`);
+const final = await api<{
+  run: {
+    state: string;
+    pointsDone: number;
+    createdAt: number;
+    startedAt: number;
+    finishedAt: number;
+    reason: string | null;
+  };
+}>("GET", `/api/runs/${runId}`);
 
 phase = "idle";
 const idleEnd = performance.now() + 10_000;
@@ -150,9 +185,28 @@ const result = {
   network: { nodes: N * N, devices: N * N + 2 * N * (N - 1) },
   points: POINTS,
   clients: CLIENTS,
-  run: { state: final.json.run.state, pointsDone: final.json.run.pointsDone, wall_s: (final.json.run.finishedAt - final.json.run.createdAt) / 1000, readers_s: wall / 1000, worker_s: (final.json.run.finishedAt - final.json.run.startedAt) / 1000, reason: final.json.run.reason },
-  during: { all: summary(all("during")), state: summary(latencies.during.state), series: summary(latencies.during.series), layout: summary(latencies.during.layout), point: summary(latencies.during.point) },
-  idle: { all: summary(all("idle")), state: summary(latencies.idle.state), series: summary(latencies.idle.series), layout: summary(latencies.idle.layout), point: summary(latencies.idle.point) },
+  run: {
+    state: final.json.run.state,
+    pointsDone: final.json.run.pointsDone,
+    wall_s: (final.json.run.finishedAt - final.json.run.createdAt) / 1000,
+    readers_s: wall / 1000,
+    worker_s: (final.json.run.finishedAt - final.json.run.startedAt) / 1000,
+    reason: final.json.run.reason,
+  },
+  during: {
+    all: summary(all("during")),
+    state: summary(latencies.during.state),
+    series: summary(latencies.during.series),
+    layout: summary(latencies.during.layout),
+    point: summary(latencies.during.point),
+  },
+  idle: {
+    all: summary(all("idle")),
+    state: summary(latencies.idle.state),
+    series: summary(latencies.idle.series),
+    layout: summary(latencies.idle.layout),
+    point: summary(latencies.idle.point),
+  },
 };
 const goal = result.during.all.p95 < 100;
 
@@ -160,12 +214,16 @@ if (JSON_OUT) console.log(JSON.stringify({ ...result, goal_p95_under_100ms: goal
 else {
   const r = result.run;
   console.log(`run API under load (${result.machine})`);
-  console.log(`  ${POINTS}-point sweep on ${result.network.nodes.toLocaleString("en-US")} nodes / ${result.network.devices.toLocaleString("en-US")} devices: ${r.state}, ${r.pointsDone} points, wall ${r.wall_s.toFixed(1)} s from POST to done (in the worker ${r.worker_s.toFixed(1)} s)`);
+  console.log(
+    `  ${POINTS}-point sweep on ${result.network.nodes.toLocaleString("en-US")} nodes / ${result.network.devices.toLocaleString("en-US")} devices: ${r.state}, ${r.pointsDone} points, wall ${r.wall_s.toFixed(1)} s from POST to done (in the worker ${r.worker_s.toFixed(1)} s)`,
+  );
   console.log(`  read latency, ${CLIENTS} clients (ms):        n      p50      p95      max`);
   for (const ph of ["during", "idle"] as const) {
     for (const k of ["all", "state", "series", "layout", "point"] as const) {
       const s = result[ph][k];
-      console.log(`    ${`${ph === "during" ? "during the run" : "idle, after"} · ${k}`.padEnd(38)}${String(s.n).padStart(5)}${s.p50.toFixed(1).padStart(9)}${s.p95.toFixed(1).padStart(9)}${s.max.toFixed(1).padStart(9)}`);
+      console.log(
+        `    ${`${ph === "during" ? "during the run" : "idle, after"} · ${k}`.padEnd(38)}${String(s.n).padStart(5)}${s.p50.toFixed(1).padStart(9)}${s.p95.toFixed(1).padStart(9)}${s.max.toFixed(1).padStart(9)}`,
+      );
     }
   }
   console.log(`  goal p95 < 100 ms during the run: ${goal ? "met" : "NOT met"}`);

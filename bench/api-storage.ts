@@ -73,14 +73,42 @@ const file = path.join(dir, "bench.db");
 const db = openDatabase(file);
 seedDemo(db);
 const RUN = "r_bench";
-db.insert(networks).values({ id: "n_bench", workspaceId: "ws_lm64", slug: "bench", name: "bench", createdBy: "u_designer1" }).run();
-db.insert(commits).values({ id: "c_bench", networkId: "n_bench", text: "", textSha256: "", message: "bench", authorId: "u_designer1", ok: true, errorCount: 0, warningCount: 0, diagnostics: [] }).run();
-db.insert(runs).values({ id: RUN, commitId: "c_bench", networkId: "n_bench", workspaceId: "ws_lm64", createdBy: "u_designer1", pointsTotal: POINTS, timeLimitMs: 1 }).run();
-db.$client.exec(`create table narrow (run_id text not null, point integer not null, kind integer not null, entity integer not null, value real,
+db.insert(networks)
+  .values({ id: "n_bench", workspaceId: "ws_lm64", slug: "bench", name: "bench", createdBy: "u_designer1" })
+  .run();
+db.insert(commits)
+  .values({
+    id: "c_bench",
+    networkId: "n_bench",
+    text: "",
+    textSha256: "",
+    message: "bench",
+    authorId: "u_designer1",
+    ok: true,
+    errorCount: 0,
+    warningCount: 0,
+    diagnostics: [],
+  })
+  .run();
+db.insert(runs)
+  .values({
+    id: RUN,
+    commitId: "c_bench",
+    networkId: "n_bench",
+    workspaceId: "ws_lm64",
+    createdBy: "u_designer1",
+    pointsTotal: POINTS,
+    timeLimitMs: 1,
+  })
+  .run();
+db.$client
+  .exec(`create table narrow (run_id text not null, point integer not null, kind integer not null, entity integer not null, value real,
   primary key (run_id, point, kind, entity)) without rowid`);
 
 const data = Array.from({ length: POINTS }, (_, k) => point(k));
-const pageBytes = () => (db.$client.pragma("page_count", { simple: true }) as number) * (db.$client.pragma("page_size", { simple: true }) as number);
+const pageBytes = () =>
+  (db.$client.pragma("page_count", { simple: true }) as number) *
+  (db.$client.pragma("page_size", { simple: true }) as number);
 
 // --- writes (once each; a write benchmark that repeats would measure a growing file)
 const before = pageBytes();
@@ -113,9 +141,15 @@ const narrowWrite = time(() => {
 const narrowBytes = pageBytes() - before - blobBytes;
 
 // --- reads
-const selPoint = db.$client.prepare("select kind, entity, value from narrow where run_id = ? and point = ? order by kind, entity");
-const selSeries = db.$client.prepare("select point, kind, entity, value from narrow where run_id = ? and kind in (0, 1) order by point, kind, entity");
-const selNode = db.$client.prepare("select point, value from narrow where run_id = ? and kind = 3 and entity = ? order by point");
+const selPoint = db.$client.prepare(
+  "select kind, entity, value from narrow where run_id = ? and point = ? order by kind, entity",
+);
+const selSeries = db.$client.prepare(
+  "select point, kind, entity, value from narrow where run_id = ? and kind in (0, 1) order by point, kind, entity",
+);
+const selNode = db.$client.prepare(
+  "select point, value from narrow where run_id = ? and kind = 3 and entity = ? order by point",
+);
 const layout = { params: ["a", "b", "temp"], probes: ["p", "q"] };
 const mid = Math.floor(POINTS / 2);
 
@@ -159,7 +193,9 @@ fs.rmSync(dir, { recursive: true, force: true });
 if (JSON_OUT) {
   console.log(JSON.stringify(results, null, 2));
 } else {
-  console.log(`results storage, ${POINTS} points × ${results.valuesPerPoint.toLocaleString("en-US")} values (${results.machine}; medians of ${REPS})`);
+  console.log(
+    `results storage, ${POINTS} points × ${results.valuesPerPoint.toLocaleString("en-US")} values (${results.machine}; medians of ${REPS})`,
+  );
   const rows: [string, keyof typeof results.blob][] = [
     ["write all points (ms)", "write_ms"],
     ["file growth (MB)", "mbytes"],
@@ -168,5 +204,8 @@ if (JSON_OUT) {
     ["read one node over all points (ms)", "read_node_over_points_ms"],
   ];
   console.log(`${"".padEnd(38)}${"blobs per point".padStart(18)}${"narrow table".padStart(16)}`);
-  for (const [label, key] of rows) console.log(`${label.padEnd(38)}${results.blob[key].toFixed(1).padStart(18)}${results.narrow[key].toFixed(1).padStart(16)}`);
+  for (const [label, key] of rows)
+    console.log(
+      `${label.padEnd(38)}${results.blob[key].toFixed(1).padStart(18)}${results.narrow[key].toFixed(1).padStart(16)}`,
+    );
 }

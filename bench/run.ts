@@ -78,7 +78,11 @@ const WORKLOADS: Workload[] = [
   { name: "grid256", text: () => gridText("grid256", 256), reps: 5 },
   { name: "grid512", text: () => gridText("grid512", 512), reps: 5 },
   { name: "sweep_vh_grid64", text: () => gridText("sweep_vh", 64, "sweep vh from 0.6 to 0.8 points 1000\n"), reps: 5 },
-  { name: "sweep_inject_grid64", text: () => gridText("sweep_inject", 64, "sweep iin from 100p to 10n points 1000 log\n"), reps: 5 },
+  {
+    name: "sweep_inject_grid64",
+    text: () => gridText("sweep_inject", 64, "sweep iin from 100p to 10n points 1000 log\n"),
+    reps: 5,
+  },
   { name: "mismatch200_grid64", text: () => gridText("mismatch200", 64, "mismatch runs 200 seed 1 avt 3m\n"), reps: 5 },
   { name: "newton_mirror1000", text: () => mirrorText(1000), reps: 5 },
 ];
@@ -93,7 +97,10 @@ function elaborateOrThrow(text: string, name: string): { net: Network; ms: numbe
   const t0 = performance.now();
   const r = elaborate(text);
   const ms = performance.now() - t0;
-  if (!r.network) throw new Error(`${name}: does not elaborate: ${r.diagnostics.map((d) => `${d.line}:${d.column} ${d.message}`).join("; ")}`);
+  if (!r.network)
+    throw new Error(
+      `${name}: does not elaborate: ${r.diagnostics.map((d) => `${d.line}:${d.column} ${d.message}`).join("; ")}`,
+    );
   return { net: r.network, ms };
 }
 
@@ -123,7 +130,13 @@ function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}):
   if (!run.ok) throw new Error(`solve failed: ${run.failures[0]?.message}`);
   const t = run.timings;
   return {
-    phases: { elaborate_ms: elaborateMs, analyse_ms: t.analyseMs, factor_ms: t.factorMs, solve_ms: t.solveMs, evaluate_ms: t.evaluateMs },
+    phases: {
+      elaborate_ms: elaborateMs,
+      analyse_ms: t.analyseMs,
+      factor_ms: t.factorMs,
+      solve_ms: t.solveMs,
+      evaluate_ms: t.evaluateMs,
+    },
     total: elaborateMs + wall,
     cpu: (cu.user + cu.system) / 1000,
     method: run.method,
@@ -181,12 +194,21 @@ function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } 
 }
 
 /** analyse + factor + solve of one network under a forced ordering (median of reps). */
-function orderingCost(net: Network, ordering: OrderingName, reps: number): { analyse: number; factor: number; solve: number; sum: number } {
+function orderingCost(
+  net: Network,
+  ordering: OrderingName,
+  reps: number,
+): { analyse: number; factor: number; solve: number; sum: number } {
   const s: Sample[] = [];
   for (let r = 0; r < reps; r++) s.push(solveTimed(net, 0, { ordering }));
   const m = medianSample(s);
   const p = m.phases;
-  return { analyse: p.analyse_ms, factor: p.factor_ms, solve: p.solve_ms, sum: p.analyse_ms + p.factor_ms + p.solve_ms };
+  return {
+    analyse: p.analyse_ms,
+    factor: p.factor_ms,
+    solve: p.solve_ms,
+    sum: p.analyse_ms + p.factor_ms + p.solve_ms,
+  };
 }
 
 /** The vh sweep's points solved as independent networks: a fresh analysis every time. */
@@ -326,14 +348,22 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   const cpu = cpus();
   const out: string[] = [];
   const load = loadavg();
-  out.push(`Machine: ${cpu[0]?.model ?? "unknown cpu"}, ${cpu.length} cores, node ${process.version}; load average ${load.map((x) => x.toFixed(1)).join(" ")} (other work on the machine inflates wall times)`);
-  out.push("Medians of several timed runs after one untimed run (ms); sweep phases summed over points; total = elaborate + solveNetwork wall time.");
+  out.push(
+    `Machine: ${cpu[0]?.model ?? "unknown cpu"}, ${cpu.length} cores, node ${process.version}; load average ${load.map((x) => x.toFixed(1)).join(" ")} (other work on the machine inflates wall times)`,
+  );
+  out.push(
+    "Medians of several timed runs after one untimed run (ms); sweep phases summed over points; total = elaborate + solveNetwork wall time.",
+  );
   out.push("");
-  out.push("| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total | solve CPU |");
+  out.push(
+    "| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total | solve CPU |",
+  );
   out.push("|---|---:|---:|---:|---|---|---:|---:|---:|---:|---:|---:|---:|");
   for (const e of entries) {
     const p = e.phases;
-    out.push(`| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} | ${fmt(e.cpu_ms)} |`);
+    out.push(
+      `| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} | ${fmt(e.cpu_ms)} |`,
+    );
   }
   out.push("");
   if (entries.some((e) => e.cold)) {
@@ -344,7 +374,9 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
     for (const e of entries) {
       if (!e.cold) continue;
       const p = e.cold.phases;
-      out.push(`| ${e.workload} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(p.analyse_ms + p.factor_ms + p.solve_ms)} | ${fmt(e.cold.total_ms)} |`);
+      out.push(
+        `| ${e.workload} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(p.analyse_ms + p.factor_ms + p.solve_ms)} | ${fmt(e.cold.total_ms)} |`,
+      );
     }
     out.push("");
   }
@@ -352,21 +384,31 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   const solver = (e: Entry) => e.phases.analyse_ms + e.phases.factor_ms + e.phases.solve_ms;
   const goals: string[] = [];
   const g256 = by.get("grid256");
-  if (g256) goals.push(`grid256: analyse + factor + solve = ${fmt(solver(g256))} ms (goal ≤ 285 ms): ${solver(g256) <= 285 ? "met" : "NOT met"}`);
+  if (g256)
+    goals.push(
+      `grid256: analyse + factor + solve = ${fmt(solver(g256))} ms (goal ≤ 285 ms): ${solver(g256) <= 285 ? "met" : "NOT met"}`,
+    );
   const ch = by.get("chain1e6");
-  if (ch) goals.push(`chain1e6: analyse + factor + solve = ${fmt(solver(ch))} ms (goal ≤ 60 ms): ${solver(ch) <= 60 ? "met" : "NOT met"}`);
+  if (ch)
+    goals.push(
+      `chain1e6: analyse + factor + solve = ${fmt(solver(ch))} ms (goal ≤ 60 ms): ${solver(ch) <= 60 ? "met" : "NOT met"}`,
+    );
   const vh = by.get("sweep_vh_grid64");
   if (vh && vh.independent_ms !== undefined) {
     // One run of 1,000 independent solves (itself an aggregate of 1,000 timings), right after the sweep's runs.
     const base = vh.independent_ms;
     const sweepSolve = vh.total_ms - vh.phases.elaborate_ms;
-    goals.push(`sweep_vh_grid64: ${fmt(sweepSolve)} ms against ${fmt(base)} ms for 1,000 independent solves = ${(sweepSolve / base).toFixed(3)}× (goal ≤ 0.25×): ${sweepSolve / base <= 0.25 ? "met" : "NOT met"}`);
+    goals.push(
+      `sweep_vh_grid64: ${fmt(sweepSolve)} ms against ${fmt(base)} ms for 1,000 independent solves = ${(sweepSolve / base).toFixed(3)}× (goal ≤ 0.25×): ${sweepSolve / base <= 0.25 ? "met" : "NOT met"}`,
+    );
   }
   const inj = by.get("sweep_inject_grid64");
   if (vh && inj) {
     const total = (vh.total_ms - vh.phases.elaborate_ms) / (inj.total_ms - inj.phases.elaborate_ms);
     const solverOnly = solver(vh) / solver(inj);
-    goals.push(`sweep_inject_grid64 vs sweep_vh_grid64: ${total.toFixed(1)}× faster in total, ${solverOnly.toFixed(1)}× in analyse + factor + solve (goal ≥ 20×): ${total >= 20 ? "met" : solverOnly >= 20 ? "met for the solver phases only" : "NOT met"}`);
+    goals.push(
+      `sweep_inject_grid64 vs sweep_vh_grid64: ${total.toFixed(1)}× faster in total, ${solverOnly.toFixed(1)}× in analyse + factor + solve (goal ≥ 20×): ${total >= 20 ? "met" : solverOnly >= 20 ? "met for the solver phases only" : "NOT met"}`,
+    );
     if (vh.independent_ms !== undefined) {
       // Both sweep goals at once: inject ≤ vh / 20 ≤ (0.25 · independent) / 20 = independent / 80.
       const cap = (1000 * vh.independent_ms) / 80 / inj.points;
@@ -405,10 +447,14 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
 
 if ((globalThis as { gc?: unknown }).gc === undefined && !process.env.RUNNEL_BENCH_CHILD) {
   // Re-run with --expose-gc, so that elaboration's garbage is collected before the solves are timed.
-  const r = spawnSync(process.execPath, [...process.execArgv, "--expose-gc", process.argv[1], ...process.argv.slice(2)], {
-    stdio: "inherit",
-    env: { ...process.env, RUNNEL_BENCH_CHILD: "1" },
-  });
+  const r = spawnSync(
+    process.execPath,
+    [...process.execArgv, "--expose-gc", process.argv[1], ...process.argv.slice(2)],
+    {
+      stdio: "inherit",
+      env: { ...process.env, RUNNEL_BENCH_CHILD: "1" },
+    },
+  );
   process.exitCode = r.status ?? 1;
 } else {
   process.exitCode = main(process.argv.slice(2));

@@ -76,7 +76,10 @@ export const comments = sqliteTable(
     /** Markdown as written (at most 20 000 characters). */
     body: text("body").notNull(),
     /** Handles mentioned whose member was sent an e-mail (JSON string[]), for the record. */
-    notified: text("notified", { mode: "json" }).notNull().$type<string[]>().default(sql`'[]'`),
+    notified: text("notified", { mode: "json" })
+      .notNull()
+      .$type<string[]>()
+      .default(sql`'[]'`),
     createdAt: createdAt(),
   },
   (t) => [
@@ -141,7 +144,15 @@ export const commitDiffs = sqliteTable(
 
 export interface StoredDiffSummary {
   names: string[];
-  rows: { point: string; kind: string; quantity: string; name: string; from: number | null; to: number | null; rel: number | null }[];
+  rows: {
+    point: string;
+    kind: string;
+    quantity: string;
+    name: string;
+    from: number | null;
+    to: number | null;
+    rel: number | null;
+  }[];
   nameChanges: { kind: string; added: string[]; removed: string[] }[];
   tolerance: { rel: number; absCurrent: number; absVoltage: number; absProbe: number; absIc: number };
   /** Why nothing was compared, when `compared` is 0. */

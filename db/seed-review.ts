@@ -21,7 +21,13 @@ export const DEMO_THREAD_ID = "t_demo_divider_ratio";
 const BENCH_FILE = "lm64-row-bench.csv";
 
 function doneRun(db: DB, commitId: string): string | null {
-  return db.select({ id: runs.id }).from(runs).where(and(eq(runs.commitId, commitId), eq(runs.state, "done"))).get()?.id ?? null;
+  return (
+    db
+      .select({ id: runs.id })
+      .from(runs)
+      .where(and(eq(runs.commitId, commitId), eq(runs.state, "done")))
+      .get()?.id ?? null
+  );
 }
 
 /** Seeds the demo review; returns whether it added the thread. */
@@ -39,7 +45,19 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
     const at = (minutesAgo: number) => new Date(Date.now() - minutesAgo * 60_000);
 
     // 1. The reviewer asks for a change on the head commit, pinned to its run.
-    db.insert(threads).values({ id: DEMO_THREAD_ID, workspaceId, networkId: network.id, commitId: asked.id, runId: askedRun, title: "Split ratio at dv = 20 mV is short of 2:1", createdBy: "u_reviewer", createdAt: at(180), updatedAt: at(30) }).run();
+    db.insert(threads)
+      .values({
+        id: DEMO_THREAD_ID,
+        workspaceId,
+        networkId: network.id,
+        commitId: asked.id,
+        runId: askedRun,
+        title: "Split ratio at dv = 20 mV is short of 2:1",
+        createdBy: "u_reviewer",
+        createdAt: at(180),
+        updatedAt: at(30),
+      })
+      .run();
     const ask = newId("c");
     db.insert(comments)
       .values({
@@ -51,16 +69,46 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
         body: `The mirror bank after this divider expects a **2:1** split, but the ratio on [[run ${askedRun}]] is about 1.72.\n\nIn weak inversion the ratio is exp(κ·dv/U_T), so dv ≈ U_T·ln 2/κ ≈ 25.6 mV. Please raise \`dv\` to **26 mV** and link the new run. Keep vcm and the tail current as they are.`,
       })
       .run();
-    db.insert(reviews).values({ id: newId("rv"), commitId: asked.id, workspaceId, reviewerId: "u_reviewer", verdict: "changes_asked", threadId: DEMO_THREAD_ID, commentId: ask, createdAt: at(180) }).run();
+    db.insert(reviews)
+      .values({
+        id: newId("rv"),
+        commitId: asked.id,
+        workspaceId,
+        reviewerId: "u_reviewer",
+        verdict: "changes_asked",
+        threadId: DEMO_THREAD_ID,
+        commentId: ask,
+        createdAt: at(180),
+      })
+      .run();
 
     // 2. The designer commits the fix and runs it (the run stores its diff against the parent's run).
     const text = asked.text.replace(/param dv = [^\n#]+/, "param dv = 26mV           ");
-    const fix = commitText({ networkId: network.id, parentId: asked.id, text, message: "Gate difference 26 mV for a 2:1 split, as asked in review", authorId: "u_designer1" }, db);
+    const fix = commitText(
+      {
+        networkId: network.id,
+        parentId: asked.id,
+        text,
+        message: "Gate difference 26 mV for a 2:1 split, as asked in review",
+        authorId: "u_designer1",
+      },
+      db,
+    );
     const net = elaborate(text).network;
     let fixRun: string | null = null;
     if (net) {
       fixRun = newId("r");
-      db.insert(runs).values({ id: fixRun, commitId: fix.id, networkId: network.id, workspaceId, createdBy: "u_designer1", pointsTotal: pointsOf(net), timeLimitMs: 10 * 60_000 }).run();
+      db.insert(runs)
+        .values({
+          id: fixRun,
+          commitId: fix.id,
+          networkId: network.id,
+          workspaceId,
+          createdBy: "u_designer1",
+          pointsTotal: pointsOf(net),
+          timeLimitMs: 10 * 60_000,
+        })
+        .run();
       executeRun(db, fixRun);
     }
     db.insert(comments)
@@ -76,17 +124,53 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
 
     // 3. The reviewer signs the fix off.
     const ok = newId("c");
-    db.insert(comments).values({ id: ok, threadId: DEMO_THREAD_ID, workspaceId, authorId: "u_reviewer", createdAt: at(30), body: "Ratio is 2.0 now, tail voltage as before within a few mV. Signed off." }).run();
-    db.insert(reviews).values({ id: newId("rv"), commitId: fix.id, workspaceId, reviewerId: "u_reviewer", verdict: "signed_off", threadId: DEMO_THREAD_ID, commentId: ok, createdAt: at(30) }).run();
+    db.insert(comments)
+      .values({
+        id: ok,
+        threadId: DEMO_THREAD_ID,
+        workspaceId,
+        authorId: "u_reviewer",
+        createdAt: at(30),
+        body: "Ratio is 2.0 now, tail voltage as before within a few mV. Signed off.",
+      })
+      .run();
+    db.insert(reviews)
+      .values({
+        id: newId("rv"),
+        commitId: fix.id,
+        workspaceId,
+        reviewerId: "u_reviewer",
+        verdict: "signed_off",
+        threadId: DEMO_THREAD_ID,
+        commentId: ok,
+        createdAt: at(30),
+      })
+      .run();
     addedThread = true;
   }
 
   // 4. Bench data of the signed-off revision (invented numbers).
   let addedMeasurement = false;
   const file = path.resolve(/*turbopackIgnore: true*/ "db", "demo-data", BENCH_FILE);
-  const have = row ? db.select({ id: measurements.id }).from(measurements).where(and(eq(measurements.networkId, row.id), eq(measurements.name, BENCH_FILE))).get() : null;
+  const have = row
+    ? db
+        .select({ id: measurements.id })
+        .from(measurements)
+        .where(and(eq(measurements.networkId, row.id), eq(measurements.name, BENCH_FILE)))
+        .get()
+    : null;
   if (row && !have && fs.existsSync(file)) {
-    saveMeasurement({ networkId: row.id, name: BENCH_FILE, note: "INVENTED demo bench data (chip 3, 300 K), not a real measurement", commitId: row.headCommitId, bytes: fs.readFileSync(file), createdBy: "u_designer2" }, db);
+    saveMeasurement(
+      {
+        networkId: row.id,
+        name: BENCH_FILE,
+        note: "INVENTED demo bench data (chip 3, 300 K), not a real measurement",
+        commitId: row.headCommitId,
+        bytes: fs.readFileSync(file),
+        createdBy: "u_designer2",
+      },
+      db,
+    );
     addedMeasurement = true;
   }
   return { thread: addedThread, measurement: addedMeasurement };

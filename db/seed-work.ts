@@ -16,19 +16,53 @@ import type { DB } from "./index";
 import { runs } from "./schema";
 
 /** Demo networks: file, display name, author, commit message, and an earlier version to make a history. */
-export const DEMO_NETWORKS: { file: string; name: string; author: string; message: string; earlier?: { edit: (text: string) => string; message: string } }[] = [
+export const DEMO_NETWORKS: {
+  file: string;
+  name: string;
+  author: string;
+  message: string;
+  earlier?: { edit: (text: string) => string; message: string };
+}[] = [
   {
     file: "row64.runnel",
     name: "LM-64 edge row",
     author: "u_designer1",
     message: "Lateral gate at 0.74 V for a space constant of about 4 taps",
-    earlier: { edit: (t) => t.replace(/param vh = [^\n#]+/, "param vh = 0.70"), message: "First cut of the 64-tap row" },
+    earlier: {
+      edit: (t) => t.replace(/param vh = [^\n#]+/, "param vh = 0.70"),
+      message: "First cut of the 64-tap row",
+    },
   },
-  { file: "grid32.runnel", name: "Smoothing grid 32 × 32", author: "u_designer2", message: "Bright spot in the middle of a 32 × 32 grid" },
-  { file: "divider.runnel", name: "Bias divider", author: "u_designer1", message: "Differential-pair divider, 20 mV gate difference" },
-  { file: "mirror.runnel", name: "Mirror bank", author: "u_designer2", message: "Binary-weighted mirror bank fed by a pfet source" },
-  { file: "biassweep.runnel", name: "Bias sweep", author: "u_designer1", message: "Lateral gate sweep at three temperatures" },
-  { file: "mismatch.runnel", name: "Divider mismatch study", author: "u_designer2", message: "Pelgrom mismatch, 200 samples per gate difference" },
+  {
+    file: "grid32.runnel",
+    name: "Smoothing grid 32 × 32",
+    author: "u_designer2",
+    message: "Bright spot in the middle of a 32 × 32 grid",
+  },
+  {
+    file: "divider.runnel",
+    name: "Bias divider",
+    author: "u_designer1",
+    message: "Differential-pair divider, 20 mV gate difference",
+  },
+  {
+    file: "mirror.runnel",
+    name: "Mirror bank",
+    author: "u_designer2",
+    message: "Binary-weighted mirror bank fed by a pfet source",
+  },
+  {
+    file: "biassweep.runnel",
+    name: "Bias sweep",
+    author: "u_designer1",
+    message: "Lateral gate sweep at three temperatures",
+  },
+  {
+    file: "mismatch.runnel",
+    name: "Divider mismatch study",
+    author: "u_designer2",
+    message: "Pelgrom mismatch, 200 samples per gate difference",
+  },
 ];
 
 export function examplesFolder(): string {
@@ -47,8 +81,26 @@ export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; r
     let network = networkBySlug(workspaceId, slugify(demo.name), db);
     if (!network) {
       if (demo.earlier) {
-        const first = createNetwork({ workspaceId, name: demo.name, text: demo.earlier.edit(text), message: demo.earlier.message, authorId: demo.author }, db);
-        commitText({ networkId: first.network.id, parentId: first.commit!.id, text, message: demo.message, authorId: demo.author }, db);
+        const first = createNetwork(
+          {
+            workspaceId,
+            name: demo.name,
+            text: demo.earlier.edit(text),
+            message: demo.earlier.message,
+            authorId: demo.author,
+          },
+          db,
+        );
+        commitText(
+          {
+            networkId: first.network.id,
+            parentId: first.commit!.id,
+            text,
+            message: demo.message,
+            authorId: demo.author,
+          },
+          db,
+        );
       } else {
         createNetwork({ workspaceId, name: demo.name, text, message: demo.message, authorId: demo.author }, db);
       }
@@ -57,13 +109,25 @@ export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; r
     }
     const head = network.headCommitId;
     if (!head) continue;
-    const done = db.select({ id: runs.id }).from(runs).where(and(eq(runs.commitId, head), eq(runs.state, "done"))).get();
+    const done = db
+      .select({ id: runs.id })
+      .from(runs)
+      .where(and(eq(runs.commitId, head), eq(runs.state, "done")))
+      .get();
     if (done) continue;
     const result = elaborate(text);
     if (!result.network) continue;
     const id = newId("r");
     db.insert(runs)
-      .values({ id, commitId: head, networkId: network.id, workspaceId, createdBy: demo.author, pointsTotal: pointsOf(result.network), timeLimitMs: 10 * 60_000 })
+      .values({
+        id,
+        commitId: head,
+        networkId: network.id,
+        workspaceId,
+        createdBy: demo.author,
+        pointsTotal: pointsOf(result.network),
+        timeLimitMs: 10 * 60_000,
+      })
       .run();
     executeRun(db, id);
     addedRuns++;

@@ -14,14 +14,25 @@ export { DEMO_PASSWORD, DEMO_USERS, DEMO_WORKSPACES };
  */
 export function seedDemo(db: DB): { users: number; workspaces: number } {
   const ids = DEMO_USERS.map((u) => u.id);
-  const hashed = db.select({ id: users.id }).from(users).where(and(inArray(users.id, ids), isNotNull(users.passwordHash))).all();
+  const hashed = db
+    .select({ id: users.id })
+    .from(users)
+    .where(and(inArray(users.id, ids), isNotNull(users.passwordHash)))
+    .all();
   // argon2id takes tens of milliseconds: hash once, and only while some demo account lacks a hash.
   const hash = hashed.length < ids.length ? hashPasswordSync(DEMO_PASSWORD) : null;
   db.transaction((tx) => {
     for (const u of DEMO_USERS) {
-      tx.insert(users).values({ id: u.id, email: u.email, name: u.name, passwordHash: hash }).onConflictDoNothing().run();
+      tx.insert(users)
+        .values({ id: u.id, email: u.email, name: u.name, passwordHash: hash })
+        .onConflictDoNothing()
+        .run();
     }
-    if (hash) tx.update(users).set({ passwordHash: hash }).where(and(inArray(users.id, ids), isNull(users.passwordHash))).run();
+    if (hash)
+      tx.update(users)
+        .set({ passwordHash: hash })
+        .where(and(inArray(users.id, ids), isNull(users.passwordHash)))
+        .run();
     for (const w of DEMO_WORKSPACES) tx.insert(workspaces).values(w).onConflictDoNothing().run();
     for (const u of DEMO_USERS) {
       tx.insert(memberships).values({ workspaceId: "ws_lm64", userId: u.id, role: u.role }).onConflictDoNothing().run();
@@ -29,6 +40,10 @@ export function seedDemo(db: DB): { users: number; workspaces: number } {
   });
   seedWork(db); // the workbench's demo networks, commits and finished runs (db/seed-work.ts)
   seedReview(db); // the review demo: a thread with changes asked, the fix and its run, the sign-off (db/seed-review.ts)
-  const count = (t: typeof users | typeof workspaces) => db.select({ n: sql<number>`count(*)` }).from(t).get()!.n;
+  const count = (t: typeof users | typeof workspaces) =>
+    db
+      .select({ n: sql<number>`count(*)` })
+      .from(t)
+      .get()!.n;
   return { users: count(users), workspaces: count(workspaces) };
 }

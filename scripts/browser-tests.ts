@@ -8,7 +8,9 @@ import fs from "node:fs";
 
 const chromium = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 if (!fs.existsSync(chromium)) {
-  console.log(`browser tests SKIPPED: no Chromium at ${chromium} (install Debian's chromium package, or set CHROMIUM_PATH)`);
+  console.log(
+    `browser tests SKIPPED: no Chromium at ${chromium} (install Debian's chromium package, or set CHROMIUM_PATH)`,
+  );
   process.exit(0);
 }
 
@@ -17,7 +19,10 @@ const run = (cmd: string, args: string[]) => spawnSync(cmd, args, { stdio: "inhe
 
 fs.rmSync("test-results/e2e", { recursive: true, force: true });
 fs.mkdirSync("test-results/e2e", { recursive: true });
-if (run(process.execPath, ["scripts/build-worker.mjs"]) !== 0 || run(process.execPath, ["node_modules/next/dist/bin/next", "build"]) !== 0) {
+if (
+  run(process.execPath, ["scripts/build-worker.mjs"]) !== 0 ||
+  run(process.execPath, ["node_modules/next/dist/bin/next", "build"]) !== 0
+) {
   console.error("browser tests: the build failed");
   process.exit(1);
 }

@@ -24,7 +24,9 @@ export async function buildWorker() {
     // Native modules and piscina itself load from node_modules at run time.
     external: ["better-sqlite3", "piscina"],
     // ESM output still meets CommonJS dependencies that call require().
-    banner: { js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);" },
+    banner: {
+      js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);",
+    },
     sourcemap: "linked",
     logLevel: "warning",
   });

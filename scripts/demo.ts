@@ -36,7 +36,10 @@ await runScript(async () => {
   const options = serveOptions(process.argv.slice(2));
   if (!buildIsCurrent()) {
     console.log("runnel demo: building the app (about a minute on a fresh clone)…");
-    const r = spawnSync("npm", ["run", "--silent", "build"], { stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } });
+    const r = spawnSync("npm", ["run", "--silent", "build"], {
+      stdio: "inherit",
+      env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
+    });
     if (r.status !== 0) fail("the build failed (see the output above)");
   }
   const file = databasePath();
@@ -44,11 +47,15 @@ await runScript(async () => {
   const counts = seedDemo(db);
   console.log(`runnel demo: ${counts.users} users, ${counts.workspaces} workspaces in ${file}`);
   // The sink keeps this connection to store what it receives; it lives as long as this process.
-  const sink = await startMailSink({ port: Number(process.env.RUNNEL_MAIL_SINK_PORT ?? 0), onMessage: storeInMailbox(db) }).catch((e: Error) =>
-    fail(`cannot start the local mail sink on 127.0.0.1: ${e.message}`),
-  );
+  const sink = await startMailSink({
+    port: Number(process.env.RUNNEL_MAIL_SINK_PORT ?? 0),
+    onMessage: storeInMailbox(db),
+  }).catch((e: Error) => fail(`cannot start the local mail sink on 127.0.0.1: ${e.message}`));
   const site = `http://${options.host === "0.0.0.0" ? "localhost" : options.host}:${options.port}`;
   console.log(`runnel demo: mail goes to the local sink on 127.0.0.1:${sink.port}; read it at ${site}/dev/mailbox`);
   console.log(`runnel demo: open ${site}/ (demo accounts and their password are on the sign-in page)`);
-  await startNext({ ...options, env: { RUNNEL_DEMO: "1", RUNNEL_MAIL_SINK_PORT: String(sink.port), RUNNEL_SMTP_URL: "" } });
+  await startNext({
+    ...options,
+    env: { RUNNEL_DEMO: "1", RUNNEL_MAIL_SINK_PORT: String(sink.port), RUNNEL_SMTP_URL: "" },
+  });
 });

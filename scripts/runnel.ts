@@ -5,7 +5,14 @@
  */
 import { readFileSync, realpathSync, statSync } from "node:fs";
 import { pathToFileURL } from "node:url";
-import { DEFAULT_LIMITS, diagnosticsDocument, elaborate, type ElaborationResult, formatDiagnostics, tooLargeResult } from "../src/lang/index";
+import {
+  DEFAULT_LIMITS,
+  diagnosticsDocument,
+  elaborate,
+  type ElaborationResult,
+  formatDiagnostics,
+  tooLargeResult,
+} from "../src/lang/index";
 import type { Network } from "../src/lang/network";
 import { pointCount, pointJson, type RunResult, solveNetwork, type SolveJson, toSolveJson } from "../src/solver/index";
 
@@ -84,7 +91,9 @@ export const MAX_PRINTED_VALUES = 10_000_000;
 
 /** What one point prints: every node's voltage and rail current, each device's three values, probes and params. */
 function printedValues(net: Network): number {
-  return pointCount(net) * (2 * net.nodes.names.length + 3 * net.devices.count + net.probes.length + net.params.length + 8);
+  return (
+    pointCount(net) * (2 * net.nodes.names.length + 3 * net.devices.count + net.probes.length + net.params.length + 8)
+  );
 }
 
 /** The document as JSON.stringify(doc, null, 2) prints it, written a point at a time. */
@@ -113,7 +122,9 @@ function progress(io: Io): (done: number, total: number) => void {
     if (now < next || done >= total) return;
     next = now + 2000;
     const s = (now - t0) / 1000;
-    io.err(`runnel solve: ${done.toLocaleString("en-US")} of ${total.toLocaleString("en-US")} points in ${s.toFixed(0)} s, about ${((s / done) * (total - done)).toFixed(0)} s to go`);
+    io.err(
+      `runnel solve: ${done.toLocaleString("en-US")} of ${total.toLocaleString("en-US")} points in ${s.toFixed(0)} s, about ${((s / done) * (total - done)).toFixed(0)} s to go`,
+    );
   };
 }
 
@@ -131,17 +142,38 @@ const solve: Subcommand = {
       const at = net.sweeps[0]?.span.from ?? 0;
       const line = (text ?? "").slice(0, at).split("\n").length;
       const message = `this run would print about ${printed.toExponential(1)} values (${pointCount(net).toLocaleString("en-US")} points of ${net.nodes.names.length.toLocaleString("en-US")} nodes and ${net.devices.count.toLocaleString("en-US")} device${net.devices.count === 1 ? "" : "s"}), more than the command line's ${MAX_PRINTED_VALUES.toLocaleString("en-US")}: use fewer points, or run it in the workbench, which stores results point by point`;
-      const doc = toSolveJson(null, [...result.diagnostics, { severity: "error", line, column: 1, from: at, to: at, message }], null, undefined, net.name);
+      const doc = toSolveJson(
+        null,
+        [...result.diagnostics, { severity: "error", line, column: 1, from: at, to: at, message }],
+        null,
+        undefined,
+        net.name,
+      );
       if (flags.has("--json")) io.out(JSON.stringify(doc, null, 2));
-      else io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));
+      else
+        io.out(
+          formatDiagnostics(
+            file,
+            doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 })),
+          ),
+        );
       return EXIT_ERRORS;
     }
     const run = net ? solveNetwork(net, { onProgress: progress(io) }) : null;
     const doc = toSolveJson(net, result.diagnostics, run, text, result.name, false);
     if (flags.has("--json")) writeSolveJson(doc, net, run, io);
     else {
-      if (doc.diagnostics.length) io.out(formatDiagnostics(file, doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 }))));
-      if (run) io.out(`${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`);
+      if (doc.diagnostics.length)
+        io.out(
+          formatDiagnostics(
+            file,
+            doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 })),
+          ),
+        );
+      if (run)
+        io.out(
+          `${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`,
+        );
     }
     return doc.ok ? EXIT_OK : EXIT_ERRORS;
   },

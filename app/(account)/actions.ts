@@ -12,7 +12,10 @@ export async function signIn(_prev: FormState | undefined, form: FormData): Prom
   const values = formValues(form, SECRET_FIELDS);
   try {
     await checkActionOrigin();
-    const parsed = signInSchema.safeParse({ email: form.get("email") ?? undefined, password: form.get("password") ?? undefined });
+    const parsed = signInSchema.safeParse({
+      email: form.get("email") ?? undefined,
+      password: form.get("password") ?? undefined,
+    });
     if (!parsed.success) return invalid(parsed.error, values);
     const check = await checkSignIn(parsed.data.email, parsed.data.password, clientAddress(await headers()));
     if (!check.ok) return { status: check.status, error: check.message, values };

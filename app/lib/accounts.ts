@@ -15,7 +15,9 @@ export const emailSchema = z
   .string({ error: "enter an e-mail address" })
   .trim()
   .toLowerCase()
-  .pipe(z.email({ error: "enter an e-mail address like name@example.com" }).max(254, { error: "at most 254 characters" }));
+  .pipe(
+    z.email({ error: "enter an e-mail address like name@example.com" }).max(254, { error: "at most 254 characters" }),
+  );
 
 export const newPasswordSchema = z
   .string({ error: "choose a password" })
@@ -29,7 +31,12 @@ export const personNameSchema = z
   .max(100, { error: "at most 100 characters" });
 
 export const signUpSchema = z
-  .object({ name: personNameSchema, email: emailSchema, password: newPasswordSchema, confirm: z.string({ error: "repeat the password" }) })
+  .object({
+    name: personNameSchema,
+    email: emailSchema,
+    password: newPasswordSchema,
+    confirm: z.string({ error: "repeat the password" }),
+  })
   .refine((v) => v.password === v.confirm, { path: ["confirm"], error: "the two passwords differ" });
 
 export const signInSchema = z.object({
@@ -48,15 +55,21 @@ export interface UserRecord {
 }
 
 export function userByEmail(email: string): UserRecord | null {
-  return db()
-    .select({ id: users.id, email: users.email, name: users.name, passwordHash: users.passwordHash })
-    .from(users)
-    .where(eq(users.email, email.trim().toLowerCase()))
-    .get() ?? null;
+  return (
+    db()
+      .select({ id: users.id, email: users.email, name: users.name, passwordHash: users.passwordHash })
+      .from(users)
+      .where(eq(users.email, email.trim().toLowerCase()))
+      .get() ?? null
+  );
 }
 
 /** Makes an account; null when the address already has one. */
-export async function createAccount(input: { name: string; email: string; password: string }): Promise<{ id: string } | null> {
+export async function createAccount(input: {
+  name: string;
+  email: string;
+  password: string;
+}): Promise<{ id: string } | null> {
   const email = input.email.trim().toLowerCase();
   if (userByEmail(email)) return null;
   const passwordHash = await hashPassword(input.password);
@@ -71,12 +84,18 @@ export type SignInCheck = { ok: true; userId: string } | { ok: false; status: 40
  * Checks a sign-in under the rate limits and records it. An unknown address
  * and a wrong password get the same answer (and take the same time).
  */
-export async function checkSignIn(email: string, password: string, address: string, now = new Date()): Promise<SignInCheck> {
+export async function checkSignIn(
+  email: string,
+  password: string,
+  address: string,
+  now = new Date(),
+): Promise<SignInCheck> {
   const gate = signInGate(email, address, now);
   if (!gate.allowed) return { ok: false, status: 429, message: lockMessage(gate, now) };
   const user = userByEmail(email);
   const ok = await verifyPassword(user?.passwordHash ?? null, password);
   recordSignInAttempt(email, address, ok, now);
-  if (!ok || !user) return { ok: false, status: 401, message: "That e-mail address and password do not match an account." };
+  if (!ok || !user)
+    return { ok: false, status: 401, message: "That e-mail address and password do not match an account." };
   return { ok: true, userId: user.id };
 }

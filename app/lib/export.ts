@@ -27,7 +27,16 @@ const line = (fields: (string | number | null)[]): string => fields.map(csvField
 export function csvHeader(layout: RunLayout, table: CsvTable): string {
   switch (table) {
     case "probes":
-      return line(["point", "sample", ...layout.params, ...layout.probes, "method", "iterations", "residual_A", "error"]);
+      return line([
+        "point",
+        "sample",
+        ...layout.params,
+        ...layout.probes,
+        "method",
+        "iterations",
+        "residual_A",
+        "error",
+      ]);
     case "nodes":
       return line(["point", "sample", "node", "rail", "voltage_V"]);
     case "devices":
@@ -43,13 +52,22 @@ export function csvRows(layout: RunLayout, table: CsvTable, p: PointRecord): str
       return line([p.point, p.sample, ...p.params, ...p.probes, p.method, p.iterations, p.residual, p.error]);
     case "nodes": {
       let s = "";
-      for (let k = 0; k < layout.nodes.length; k++) s += line([p.point, p.sample, layout.nodes[k], layout.nodeIsRail[k] ? 1 : 0, p.nodes[k]]);
+      for (let k = 0; k < layout.nodes.length; k++)
+        s += line([p.point, p.sample, layout.nodes[k], layout.nodeIsRail[k] ? 1 : 0, p.nodes[k]]);
       return s;
     }
     case "devices": {
       let s = "";
       for (let k = 0; k < layout.devices.length; k++) {
-        s += line([p.point, p.sample, layout.devices[k], layout.deviceTypes[k] === "n" ? "nfet" : "pfet", p.current[k], Number.isFinite(p.ic[k]) ? Number(p.ic[k].toPrecision(7)) : null, p.saturated[k]]);
+        s += line([
+          p.point,
+          p.sample,
+          layout.devices[k],
+          layout.deviceTypes[k] === "n" ? "nfet" : "pfet",
+          p.current[k],
+          Number.isFinite(p.ic[k]) ? Number(p.ic[k].toPrecision(7)) : null,
+          p.saturated[k],
+        ]);
       }
       return s;
     }
@@ -76,7 +94,13 @@ function streamOf(chunks: Generator<string>): ReadableStream<Uint8Array> {
   });
 }
 
-export function csvStream(d: Q, runId: string, layout: RunLayout, table: CsvTable, point?: number): ReadableStream<Uint8Array> {
+export function csvStream(
+  d: Q,
+  runId: string,
+  layout: RunLayout,
+  table: CsvTable,
+  point?: number,
+): ReadableStream<Uint8Array> {
   function* gen(): Generator<string> {
     yield csvHeader(layout, table);
     if (point !== undefined) {
@@ -105,19 +129,44 @@ export function pointJson(layout: RunLayout, p: PointRecord): Record<string, unk
   const rails: Record<string, number | null> = {};
   layout.rails.forEach((name, k) => (rails[name] = num(p.rails[k])));
   const devices: Record<string, { current: number | null; ic: number | null; saturated: boolean }> = {};
-  layout.devices.forEach((name, k) => (devices[name] = { current: num(p.current[k]), ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }));
+  layout.devices.forEach(
+    (name, k) => (devices[name] = { current: num(p.current[k]), ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }),
+  );
   const probes: Record<string, number | null> = {};
   layout.probes.forEach((name, k) => (probes[name] = num(p.probes[k])));
-  return { params, nodes, rails, devices, probes, solver: { method: p.method, iterations: p.iterations, residual: num(p.residual) }, sample: layout.mismatch ? p.sample : 0, ...(p.error ? { error: p.error } : {}) };
+  return {
+    params,
+    nodes,
+    rails,
+    devices,
+    probes,
+    solver: { method: p.method, iterations: p.iterations, residual: num(p.residual) },
+    sample: layout.mismatch ? p.sample : 0,
+    ...(p.error ? { error: p.error } : {}),
+  };
 }
 
 export function jsonStream(d: Q, run: RunRow, commit: CommitRow, layout: RunLayout): ReadableStream<Uint8Array> {
   function* gen(): Generator<string> {
-    const diagnostics = commit.diagnostics.map((x: CommitDiagnostic) => ({ severity: x.severity, line: x.line, column: x.column, message: x.message }));
+    const diagnostics = commit.diagnostics.map((x: CommitDiagnostic) => ({
+      severity: x.severity,
+      line: x.line,
+      column: x.column,
+      message: x.message,
+    }));
     const head = {
       network: layout.network,
       ok: commit.ok,
-      run: { id: run.id, commit: commit.id, state: run.state, reason: run.reason, pointsDone: run.pointsDone, pointsTotal: run.pointsTotal, model: run.model, solverReason: run.solverReason },
+      run: {
+        id: run.id,
+        commit: commit.id,
+        state: run.state,
+        reason: run.reason,
+        pointsDone: run.pointsDone,
+        pointsTotal: run.pointsTotal,
+        model: run.model,
+        solverReason: run.solverReason,
+      },
       diagnostics,
     };
     yield JSON.stringify(head).slice(0, -1) + ',"points":[';

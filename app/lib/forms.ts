@@ -22,7 +22,8 @@ export interface FormState {
 /** The string fields of a form, without the given (secret) ones. */
 export function formValues(form: FormData, omit: string[] = []): Record<string, string> {
   const out: Record<string, string> = {};
-  for (const [k, v] of form.entries()) if (typeof v === "string" && !omit.includes(k) && !k.startsWith("$ACTION")) out[k] = v;
+  for (const [k, v] of form.entries())
+    if (typeof v === "string" && !omit.includes(k) && !k.startsWith("$ACTION")) out[k] = v;
   return out;
 }
 
@@ -49,7 +50,12 @@ export function refusal(e: unknown, values?: Record<string, string>): FormState 
     // "field: what is wrong" names a field of the form: show it there.
     const m = /^([a-zA-Z]\w*): (.+)$/.exec(e.message);
     if (m && values && m[1] in values) {
-      return { status: e.status, error: "Please correct the fields marked below.", fieldErrors: { [m[1]]: [m[2]] }, values };
+      return {
+        status: e.status,
+        error: "Please correct the fields marked below.",
+        fieldErrors: { [m[1]]: [m[2]] },
+        values,
+      };
     }
     return { status: e.status, error: e.message, values };
   }

@@ -13,7 +13,11 @@ import type { Role } from "@/db/schema";
  * The actor allowed to do `action` in `workspaceId`; `workspaceId` is null
  * when the thing the URL names does not exist (404 after the 401 check).
  */
-export async function guard(request: Request, action: Action, workspaceId: string | null | undefined): Promise<{ actor: Actor; role: Role }> {
+export async function guard(
+  request: Request,
+  action: Action,
+  workspaceId: string | null | undefined,
+): Promise<{ actor: Actor; role: Role }> {
   checkOrigin(request);
   const actor = await getActor(request);
   if (!actor) throw new PolicyError(401, "sign in first");

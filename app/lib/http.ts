@@ -38,9 +38,11 @@ export const MAX_BODY_BYTES = 6 * 1024 * 1024;
 /** The request's JSON body checked against `schema`; RequestError 400/413 naming the field otherwise. */
 export async function readJson<S extends z.ZodType>(request: Request, schema: S): Promise<z.infer<S>> {
   const length = Number(request.headers.get("content-length") ?? "0");
-  if (length > MAX_BODY_BYTES) throw new RequestError(413, `the body is too large: ${length} bytes, the limit is ${MAX_BODY_BYTES}`);
+  if (length > MAX_BODY_BYTES)
+    throw new RequestError(413, `the body is too large: ${length} bytes, the limit is ${MAX_BODY_BYTES}`);
   const raw = await request.text();
-  if (raw.length > MAX_BODY_BYTES) throw new RequestError(413, `the body is too large: the limit is ${MAX_BODY_BYTES} bytes`);
+  if (raw.length > MAX_BODY_BYTES)
+    throw new RequestError(413, `the body is too large: the limit is ${MAX_BODY_BYTES} bytes`);
   let value: unknown;
   try {
     value = raw === "" ? {} : JSON.parse(raw);

@@ -36,9 +36,22 @@ export interface PendingInvitation {
 /** Pending (not accepted, not revoked, not expired) invitations of a workspace, newest first. */
 export function listPendingInvitations(workspaceId: string, now = new Date()): PendingInvitation[] {
   return db()
-    .select({ id: invitations.id, email: invitations.email, role: invitations.role, expiresAt: invitations.expiresAt, createdAt: invitations.createdAt })
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      expiresAt: invitations.expiresAt,
+      createdAt: invitations.createdAt,
+    })
     .from(invitations)
-    .where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, now)))
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, now),
+      ),
+    )
     .orderBy(desc(invitations.createdAt))
     .all();
 }
@@ -56,7 +69,8 @@ function invitationMail(input: { inviter: string; workspace: string; role: Role;
     `The link works once and expires on ${until}.`,
     "If you did not expect this invitation, ignore this message.",
   ].join("\n");
-  const esc = (s: string) => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+  const esc = (s: string) =>
+    s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
   const html =
     `<p>${esc(input.inviter)} invited you to the workspace “${esc(input.workspace)}” on Runnel as ${article} ${esc(input.role)}.</p>` +
     `<p><a href="${esc(input.link)}">Accept the invitation</a></p>` +
@@ -100,13 +114,29 @@ export async function inviteMember(input: {
     if (member) throw new RequestError(409, `email: ${email} is already a member of this workspace`);
     tx.update(invitations)
       .set({ revokedAt: now })
-      .where(and(eq(invitations.workspaceId, input.workspace.id), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+      .where(
+        and(
+          eq(invitations.workspaceId, input.workspace.id),
+          eq(invitations.email, email),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+        ),
+      )
       .run();
     tx.insert(invitations).values(row).run();
   });
   const link = `${input.baseUrl.replace(/\/+$/, "")}/invite/${token}`;
   try {
-    await sendMail({ to: email, ...invitationMail({ inviter: input.inviter.name, workspace: input.workspace.name, role: input.role, link, expiresAt: row.expiresAt }) });
+    await sendMail({
+      to: email,
+      ...invitationMail({
+        inviter: input.inviter.name,
+        workspace: input.workspace.name,
+        role: input.role,
+        link,
+        expiresAt: row.expiresAt,
+      }),
+    });
   } catch (e) {
     db().delete(invitations).where(eq(invitations.id, row.id)).run();
     throw e;
@@ -119,7 +149,14 @@ export function revokeInvitation(workspaceId: string, invitationId: string, now 
   const r = db()
     .update(invitations)
     .set({ revokedAt: now })
-    .where(and(eq(invitations.id, invitationId), eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+    .where(
+      and(
+        eq(invitations.id, invitationId),
+        eq(invitations.workspaceId, workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    )
     .run();
   if (r.changes !== 1) throw new RequestError(404, "no pending invitation with that id in this workspace");
 }
@@ -158,9 +195,18 @@ export function lookupInvitation(token: string, now = new Date()): InvitationVie
     .where(eq(invitations.tokenHash, secretHash(token)))
     .get();
   if (!inv) return { state: "unknown" };
-  const state: InvitationState = inv.acceptedAt ? "used" : inv.revokedAt ? "revoked" : inv.expiresAt <= now ? "expired" : "valid";
-  const inviter = inv.invitedBy ? db().select({ name: users.name }).from(users).where(eq(users.id, inv.invitedBy)).get() : undefined;
-  const account = db().select({ id: users.id, name: users.name }).from(users).where(eq(users.email, inv.email)).get() ?? null;
+  const state: InvitationState = inv.acceptedAt
+    ? "used"
+    : inv.revokedAt
+      ? "revoked"
+      : inv.expiresAt <= now
+        ? "expired"
+        : "valid";
+  const inviter = inv.invitedBy
+    ? db().select({ name: users.name }).from(users).where(eq(users.id, inv.invitedBy)).get()
+    : undefined;
+  const account =
+    db().select({ id: users.id, name: users.name }).from(users).where(eq(users.email, inv.email)).get() ?? null;
   return {
     state,
     email: inv.email,
@@ -199,7 +245,12 @@ export function acceptInvitation(
 ): { userId: string; slug: string } {
   return db().transaction((tx) => {
     const inv = tx
-      .select({ id: invitations.id, email: invitations.email, role: invitations.role, workspaceId: invitations.workspaceId })
+      .select({
+        id: invitations.id,
+        email: invitations.email,
+        role: invitations.role,
+        workspaceId: invitations.workspaceId,
+      })
       .from(invitations)
       .where(eq(invitations.tokenHash, secretHash(token)))
       .get();
@@ -211,14 +262,29 @@ export function acceptInvitation(
       userId = as.userId;
     } else {
       const existing = tx.select({ id: users.id }).from(users).where(eq(users.email, inv.email)).get();
-      if (existing) throw new RequestError(409, `email: an account with ${inv.email} exists; sign in with its password`);
-      tx.insert(users).values({ id: as.newAccount.id, email: inv.email, name: as.newAccount.name, passwordHash: as.newAccount.passwordHash }).run();
+      if (existing)
+        throw new RequestError(409, `email: an account with ${inv.email} exists; sign in with its password`);
+      tx.insert(users)
+        .values({
+          id: as.newAccount.id,
+          email: inv.email,
+          name: as.newAccount.name,
+          passwordHash: as.newAccount.passwordHash,
+        })
+        .run();
       userId = as.newAccount.id;
     }
     const consumed = tx
       .update(invitations)
       .set({ acceptedAt: now, acceptedBy: userId })
-      .where(and(eq(invitations.id, inv.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, now)))
+      .where(
+        and(
+          eq(invitations.id, inv.id),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+          gt(invitations.expiresAt, now),
+        ),
+      )
       .run();
     if (consumed.changes !== 1) {
       const state = tx.select().from(invitations).where(eq(invitations.id, inv.id)).get()!;

@@ -54,14 +54,17 @@ function transport(config: MailConfig): Transporter {
 export async function sendMail(mail: OutgoingMail): Promise<{ messageId: string }> {
   const config = mailConfig();
   if (!config) {
-    throw new MailError("e-mail is not configured: set RUNNEL_SMTP_URL (or run `npm run demo`, which starts a local mail sink)");
+    throw new MailError(
+      "e-mail is not configured: set RUNNEL_SMTP_URL (or run `npm run demo`, which starts a local mail sink)",
+    );
   }
   const from = process.env.RUNNEL_MAIL_FROM ?? "Runnel <runnel@localhost>";
   try {
     const info = await transport(config).sendMail({ from, ...mail });
     return { messageId: String(info.messageId ?? "") };
   } catch (e) {
-    const where = config.kind === "smtp" ? "the SMTP server in RUNNEL_SMTP_URL" : `the local mail sink on port ${config.port}`;
+    const where =
+      config.kind === "smtp" ? "the SMTP server in RUNNEL_SMTP_URL" : `the local mail sink on port ${config.port}`;
     throw new MailError(`could not send e-mail through ${where}: ${(e as Error).message.split("\n")[0]}`);
   }
 }

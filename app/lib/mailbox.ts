@@ -15,7 +15,14 @@ export interface MailboxMessage {
 /** The newest `limit` messages, newest first. */
 export function listMailbox(limit = 100): MailboxMessage[] {
   return db()
-    .select({ id: devMail.id, from: devMail.from, to: devMail.to, subject: devMail.subject, text: devMail.text, receivedAt: devMail.receivedAt })
+    .select({
+      id: devMail.id,
+      from: devMail.from,
+      to: devMail.to,
+      subject: devMail.subject,
+      text: devMail.text,
+      receivedAt: devMail.receivedAt,
+    })
     .from(devMail)
     .orderBy(desc(devMail.receivedAt), desc(devMail.id))
     .limit(limit)

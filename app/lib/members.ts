@@ -24,7 +24,13 @@ const ROLE_ORDER: Record<Role, number> = { owner: 0, designer: 1, reviewer: 2, v
 /** Members by role (owners first), then name. */
 export function listMembers(workspaceId: string): Member[] {
   const rows = db()
-    .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })
+    .select({
+      userId: users.id,
+      name: users.name,
+      email: users.email,
+      role: memberships.role,
+      since: memberships.createdAt,
+    })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.workspaceId, workspaceId))
@@ -59,8 +65,12 @@ const LAST_OWNER = "the workspace needs at least one owner: make another member 
 export function changeRole(workspaceId: string, userId: string, role: Role): Member {
   db().transaction((tx) => {
     const was = currentRole(tx, workspaceId, userId);
-    if (was === "owner" && role !== "owner" && ownerCount(tx, workspaceId) === 1) throw new RequestError(409, LAST_OWNER);
-    tx.update(memberships).set({ role }).where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId))).run();
+    if (was === "owner" && role !== "owner" && ownerCount(tx, workspaceId) === 1)
+      throw new RequestError(409, LAST_OWNER);
+    tx.update(memberships)
+      .set({ role })
+      .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
+      .run();
   });
   return listMembers(workspaceId).find((m) => m.userId === userId)!;
 }
@@ -70,6 +80,8 @@ export function removeMember(workspaceId: string, userId: string): void {
   db().transaction((tx) => {
     const was = currentRole(tx, workspaceId, userId);
     if (was === "owner" && ownerCount(tx, workspaceId) === 1) throw new RequestError(409, LAST_OWNER);
-    tx.delete(memberships).where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId))).run();
+    tx.delete(memberships)
+      .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
+      .run();
   });
 }

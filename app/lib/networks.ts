@@ -57,7 +57,13 @@ export interface WorkspaceRef {
 }
 
 export function workspaceBySlug(slug: string, d: Q = db()): WorkspaceRef | null {
-  return d.select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name }).from(workspaces).where(eq(workspaces.slug, slug)).get() ?? null;
+  return (
+    d
+      .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name })
+      .from(workspaces)
+      .where(eq(workspaces.slug, slug))
+      .get() ?? null
+  );
 }
 
 export interface NetworkSummary {
@@ -67,14 +73,27 @@ export interface NetworkSummary {
   name: string;
   headCommitId: string | null;
   updatedAt: number;
-  head: { id: string; message: string; ok: boolean; errorCount: number; warningCount: number; createdAt: number; authorName: string } | null;
+  head: {
+    id: string;
+    message: string;
+    ok: boolean;
+    errorCount: number;
+    warningCount: number;
+    createdAt: number;
+    authorName: string;
+  } | null;
   commitCount: number;
   lastRun: { id: string; state: RunState; createdAt: number } | null;
 }
 
 /** The networks of a workspace, most recently changed first, with their head commit and newest run. */
 export function listNetworks(workspaceId: string, d: Q = db()): NetworkSummary[] {
-  const rows = d.select().from(networks).where(eq(networks.workspaceId, workspaceId)).orderBy(desc(networks.updatedAt), asc(networks.name)).all();
+  const rows = d
+    .select()
+    .from(networks)
+    .where(eq(networks.workspaceId, workspaceId))
+    .orderBy(desc(networks.updatedAt), asc(networks.name))
+    .all();
   if (rows.length === 0) return [];
   const ids = rows.map((r) => r.id);
   const heads = new Map(
@@ -90,7 +109,12 @@ export function listNetworks(workspaceId: string, d: Q = db()): NetworkSummary[]
       })
       .from(commits)
       .innerJoin(users, eq(users.id, commits.authorId))
-      .where(inArray(commits.id, rows.map((r) => r.headCommitId).filter((x): x is string => x !== null)))
+      .where(
+        inArray(
+          commits.id,
+          rows.map((r) => r.headCommitId).filter((x): x is string => x !== null),
+        ),
+      )
       .all()
       .map((c) => [c.id, { ...c, createdAt: c.createdAt.getTime() }]),
   );
@@ -110,7 +134,8 @@ export function listNetworks(workspaceId: string, d: Q = db()): NetworkSummary[]
     .where(inArray(runs.networkId, ids))
     .orderBy(desc(runs.createdAt))
     .all()) {
-    if (!lastRuns.has(r.networkId)) lastRuns.set(r.networkId, { id: r.id, state: r.state, createdAt: r.createdAt.getTime() });
+    if (!lastRuns.has(r.networkId))
+      lastRuns.set(r.networkId, { id: r.id, state: r.state, createdAt: r.createdAt.getTime() });
   }
   return rows.map((n) => ({
     id: n.id,
@@ -145,7 +170,11 @@ export function getNetwork(id: string, d: Q = db()): NetworkRow | null {
 }
 
 export function networkBySlug(workspaceId: string, slug: string, d: Q = db()): NetworkRow | null {
-  const n = d.select().from(networks).where(and(eq(networks.workspaceId, workspaceId), eq(networks.slug, slug))).get();
+  const n = d
+    .select()
+    .from(networks)
+    .where(and(eq(networks.workspaceId, workspaceId), eq(networks.slug, slug)))
+    .get();
   return n ? toNetworkRow(n) : null;
 }
 
@@ -165,7 +194,12 @@ function freeSlug(d: Q, workspaceId: string, base: string): string {
     d
       .select({ slug: networks.slug })
       .from(networks)
-      .where(and(eq(networks.workspaceId, workspaceId), sql`(${networks.slug} = ${base} or ${networks.slug} like ${base + "-%"})`))
+      .where(
+        and(
+          eq(networks.workspaceId, workspaceId),
+          sql`(${networks.slug} = ${base} or ${networks.slug} like ${base + "-%"})`,
+        ),
+      )
       .all()
       .map((r) => r.slug),
   );
@@ -189,7 +223,13 @@ export function createNetwork(
     tx.insert(networks).values({ id, workspaceId: input.workspaceId, slug, name, createdBy: input.authorId }).run();
     let commit: CommitRow | null = null;
     if (input.text !== undefined) {
-      commit = insertCommit(tx, { networkId: id, parentId: null, text: input.text, message: input.message ?? "First version", authorId: input.authorId });
+      commit = insertCommit(tx, {
+        networkId: id,
+        parentId: null,
+        text: input.text,
+        message: input.message ?? "First version",
+        authorId: input.authorId,
+      });
     }
     return { network: getNetwork(id, tx)!, commit };
   });
@@ -258,12 +298,21 @@ export function getCommit(id: string, d: Q = db()): CommitRow | null {
   return c ? { ...c, createdAt: c.createdAt.getTime() } : null;
 }
 
-function insertCommit(d: Q, input: { networkId: string; parentId: string | null; text: string; message: string; authorId: string }): CommitRow {
+function insertCommit(
+  d: Q,
+  input: { networkId: string; parentId: string | null; text: string; message: string; authorId: string },
+): CommitRow {
   const message = input.message.trim();
   if (message.length === 0) throw new RequestError(400, "message: say what changed");
-  if (message.length > MAX_MESSAGE_LENGTH) throw new RequestError(400, `message: at most ${MAX_MESSAGE_LENGTH} characters`);
+  if (message.length > MAX_MESSAGE_LENGTH)
+    throw new RequestError(400, `message: at most ${MAX_MESSAGE_LENGTH} characters`);
   const result = elaborate(input.text);
-  const diagnostics: CommitDiagnostic[] = result.diagnostics.map((x) => ({ severity: x.severity, line: x.line, column: x.column, message: x.message }));
+  const diagnostics: CommitDiagnostic[] = result.diagnostics.map((x) => ({
+    severity: x.severity,
+    line: x.line,
+    column: x.column,
+    message: x.message,
+  }));
   const errorCount = diagnostics.filter((x) => x.severity === "error").length;
   const id = commitIdOf(input.networkId, input.parentId, input.text);
   d.insert(commits)
@@ -291,19 +340,33 @@ function insertCommit(d: Q, input: { networkId: string; parentId: string | null;
  * (409 otherwise). A text equal to the head's is refused (409, nothing to commit).
  * A text with errors is committed (it can be saved but not run).
  */
-export function commitText(input: { networkId: string; parentId: string | null; text: string; message: string; authorId: string }, d: Q = db()): CommitRow {
+export function commitText(
+  input: { networkId: string; parentId: string | null; text: string; message: string; authorId: string },
+  d: Q = db(),
+): CommitRow {
   return d.transaction((tx) => {
     const t = tx;
     const n = getNetwork(input.networkId, t);
     if (!n) throw new RequestError(404, "not found");
     if (input.parentId !== n.headCommitId) {
-      throw new RequestError(409, `the network has moved on: its newest commit is ${n.headCommitId?.slice(0, 12) ?? "(none)"}, you edited ${input.parentId?.slice(0, 12) ?? "(none)"}; reload and merge your edits`, {
-        head: n.headCommitId,
-      });
+      throw new RequestError(
+        409,
+        `the network has moved on: its newest commit is ${n.headCommitId?.slice(0, 12) ?? "(none)"}, you edited ${input.parentId?.slice(0, 12) ?? "(none)"}; reload and merge your edits`,
+        {
+          head: n.headCommitId,
+        },
+      );
     }
     if (n.headCommitId) {
-      const head = t.select({ textSha256: commits.textSha256 }).from(commits).where(eq(commits.id, n.headCommitId)).get();
-      if (head?.textSha256 === sha256Hex(input.text)) throw new RequestError(409, "nothing to commit: the text is the same as the newest commit", { head: n.headCommitId });
+      const head = t
+        .select({ textSha256: commits.textSha256 })
+        .from(commits)
+        .where(eq(commits.id, n.headCommitId))
+        .get();
+      if (head?.textSha256 === sha256Hex(input.text))
+        throw new RequestError(409, "nothing to commit: the text is the same as the newest commit", {
+          head: n.headCommitId,
+        });
     }
     return insertCommit(t, input);
   });

@@ -23,7 +23,15 @@ export type Action = (typeof ACTIONS)[number];
 
 /** What each role may do (PRODUCT.md's table). */
 export const ROLE_ACTIONS: Record<Role, readonly Action[]> = {
-  owner: ["workspace.read", "workspace.manage", "network.write", "run.start", "measurement.write", "thread.comment", "commit.signoff"],
+  owner: [
+    "workspace.read",
+    "workspace.manage",
+    "network.write",
+    "run.start",
+    "measurement.write",
+    "thread.comment",
+    "commit.signoff",
+  ],
   designer: ["workspace.read", "network.write", "run.start", "measurement.write", "thread.comment"],
   reviewer: ["workspace.read", "run.start", "thread.comment", "commit.signoff"],
   viewer: ["workspace.read"],
@@ -104,7 +112,11 @@ export interface WorkspaceRef {
  * anonymous → 401; an unknown slug → 404, exactly like a workspace the actor is
  * not a member of; then as `authorize`. Returns the workspace and the actor's role.
  */
-export function authorizeSlug(actor: Actor | null, action: Action, slug: string): { workspace: WorkspaceRef; role: Role } {
+export function authorizeSlug(
+  actor: Actor | null,
+  action: Action,
+  slug: string,
+): { workspace: WorkspaceRef; role: Role } {
   if (!actor) throw new PolicyError(401, "sign in first");
   const workspace = db()
     .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name, description: workspaces.description })

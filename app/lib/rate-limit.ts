@@ -39,7 +39,11 @@ export function signInGate(email: string, address: string, now = new Date()): Si
     .limit(1)
     .get()?.at;
   const accountSince = lastSuccess && lastSuccess > windowStart ? lastSuccess : windowStart;
-  const failuresOf = (column: typeof signInAttempts.email | typeof signInAttempts.address, value: string, since: Date) =>
+  const failuresOf = (
+    column: typeof signInAttempts.email | typeof signInAttempts.address,
+    value: string,
+    since: Date,
+  ) =>
     db()
       .select({ at: signInAttempts.at })
       .from(signInAttempts)
@@ -57,7 +61,9 @@ export function signInGate(email: string, address: string, now = new Date()): Si
 export function recordSignInAttempt(email: string, address: string, succeeded: boolean, now = new Date()): void {
   const d = db();
   d.insert(signInAttempts).values({ email, address, succeeded, at: now }).run();
-  d.delete(signInAttempts).where(lt(signInAttempts.at, new Date(now.getTime() - KEEP_MS))).run();
+  d.delete(signInAttempts)
+    .where(lt(signInAttempts.at, new Date(now.getTime() - KEEP_MS)))
+    .run();
 }
 
 /** "Too many … Try again in 14 minutes (after 15:02 UTC)." */

@@ -88,7 +88,10 @@ export function valuesPerPoint(net: Network): number {
 }
 
 /** The grid indices of point `k` (outer sweep first) and its mismatch sample. */
-export function gridIndex(layout: Pick<RunLayout, "sweeps" | "mismatch">, k: number): { indices: number[]; sample: number } {
+export function gridIndex(
+  layout: Pick<RunLayout, "sweeps" | "mismatch">,
+  k: number,
+): { indices: number[]; sample: number } {
   const samples = layout.mismatch?.runs ?? 1;
   const sample = k % samples;
   let rest = Math.floor(k / samples);
@@ -106,7 +109,10 @@ function bytes(a: ArrayBufferView): Buffer {
 }
 
 /** A typed array over a blob; copies only when the blob is not aligned for the element size. */
-function view<T extends Float64Array | Float32Array | Uint8Array>(b: Buffer, Kind: { new (buf: ArrayBuffer, off: number, len: number): T; BYTES_PER_ELEMENT: number }): T {
+function view<T extends Float64Array | Float32Array | Uint8Array>(
+  b: Buffer,
+  Kind: { new (buf: ArrayBuffer, off: number, len: number): T; BYTES_PER_ELEMENT: number },
+): T {
   const size = Kind.BYTES_PER_ELEMENT;
   if (b.byteOffset % size === 0) return new Kind(b.buffer as ArrayBuffer, b.byteOffset, b.byteLength / size);
   const copy = new ArrayBuffer(b.byteLength);
@@ -180,9 +186,24 @@ export interface SeriesColumns {
  * Params, probes and solver figures of points [from, to), column by column.
  * Reads only the small leading columns of each row, never the big blobs.
  */
-export function readSeries(d: Q, runId: string, layout: Pick<RunLayout, "params" | "probes">, from = 0, to = Number.MAX_SAFE_INTEGER): SeriesColumns {
+export function readSeries(
+  d: Q,
+  runId: string,
+  layout: Pick<RunLayout, "params" | "probes">,
+  from = 0,
+  to = Number.MAX_SAFE_INTEGER,
+): SeriesColumns {
   const rows = d
-    .select({ point: runPoints.point, sample: runPoints.sample, params: runPoints.params, probes: runPoints.probes, method: runPoints.method, iterations: runPoints.iterations, residual: runPoints.residual, error: runPoints.error })
+    .select({
+      point: runPoints.point,
+      sample: runPoints.sample,
+      params: runPoints.params,
+      probes: runPoints.probes,
+      method: runPoints.method,
+      iterations: runPoints.iterations,
+      residual: runPoints.residual,
+      error: runPoints.error,
+    })
     .from(runPoints)
     .where(and(eq(runPoints.runId, runId), gte(runPoints.point, from), lt(runPoints.point, to)))
     .orderBy(asc(runPoints.point))
@@ -255,11 +276,19 @@ export function pointView(d: Q, runId: string, layout: RunLayout, point: number)
     point: p.point,
     sample: p.sample,
     grid: gridIndex(layout, p.point).indices,
-    params: Object.fromEntries(layout.params.map((name, j) => [name, Number.isFinite(p.params[j]) ? p.params[j] : null])),
+    params: Object.fromEntries(
+      layout.params.map((name, j) => [name, Number.isFinite(p.params[j]) ? p.params[j] : null]),
+    ),
     solver: { method: p.method, iterations: p.iterations, residual: p.residual },
     error: p.error,
     nodes: { names: layout.nodes, isRail: layout.nodeIsRail, voltage: jsonNumbers(p.nodes) },
-    devices: { names: layout.devices, types: layout.deviceTypes, current: jsonNumbers(p.current), ic: jsonNumbers(p.ic), saturated: Array.from(p.saturated) },
+    devices: {
+      names: layout.devices,
+      types: layout.deviceTypes,
+      current: jsonNumbers(p.current),
+      ic: jsonNumbers(p.ic),
+      saturated: Array.from(p.saturated),
+    },
     rails: { names: layout.rails, current: jsonNumbers(p.rails) },
     probes: { names: layout.probes, value: jsonNumbers(p.probes) },
   };
@@ -301,7 +330,12 @@ export function seriesView(d: Q, runId: string, layout: RunLayout, from = 0, to 
 
 /** Stored points of a run, in order (export). */
 export function* eachPoint(d: Q, runId: string): Generator<PointRecord> {
-  const ids = d.select({ point: runPoints.point }).from(runPoints).where(eq(runPoints.runId, runId)).orderBy(asc(runPoints.point)).all();
+  const ids = d
+    .select({ point: runPoints.point })
+    .from(runPoints)
+    .where(eq(runPoints.runId, runId))
+    .orderBy(asc(runPoints.point))
+    .all();
   for (const { point } of ids) {
     const p = readPoint(d, runId, point);
     if (p) yield p;
@@ -324,7 +358,13 @@ export function pointBinary(d: Q, runId: string, layout: RunLayout, point: numbe
     iterations: r.iterations,
     residual: r.residual,
     error: r.error,
-    counts: { nodes: layout.nodes.length, rails: layout.rails.length, probes: layout.probes.length, params: layout.params.length, devices: layout.devices.length },
+    counts: {
+      nodes: layout.nodes.length,
+      rails: layout.rails.length,
+      probes: layout.probes.length,
+      params: layout.params.length,
+      devices: layout.devices.length,
+    },
   };
   return encodePoint(header, [r.nodes, r.rails, r.probes, r.params, r.current, r.ic, r.saturated]);
 }
@@ -335,7 +375,10 @@ export function pointBinary(d: Q, runId: string, layout: RunLayout, point: numbe
  * point order; points are stored in order) and re-serialises. The run page's
  * readers poll this every few seconds while a run is live.
  */
-const seriesCache = new Map<string, { columns: SeriesColumns; count: number; /** The SeriesView as JSON. */ json: string }>();
+const seriesCache = new Map<
+  string,
+  { columns: SeriesColumns; count: number; /** The SeriesView as JSON. */ json: string }
+>();
 const SERIES_CACHE_SIZE = 16;
 
 export function seriesJson(d: Q, runId: string, layout: RunLayout, head: Record<string, unknown>): string {

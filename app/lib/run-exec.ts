@@ -83,10 +83,19 @@ export function executeRun(d: Q, runId: string, control: ExecControl = {}): RunT
   return runClaimed(d, row, startedAt.getTime(), control, now);
 }
 
-function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, control: ExecControl, now: () => number): RunTaskResult {
+function runClaimed(
+  d: Q,
+  row: typeof runs.$inferSelect,
+  startedAt: number,
+  control: ExecControl,
+  now: () => number,
+): RunTaskResult {
   const runId = row.id;
   const end = (state: RunState, reason: string | null, pointsDone: number): RunTaskResult => {
-    d.update(runs).set({ state, reason, finishedAt: new Date(now()), pointsDone }).where(eq(runs.id, runId)).run();
+    d.update(runs)
+      .set({ state, reason, finishedAt: new Date(now()), pointsDone })
+      .where(eq(runs.id, runId))
+      .run();
     return { state, reason, pointsDone };
   };
   if (row.cancelRequested) return end("canceled", "canceled before it started", 0);
@@ -97,7 +106,12 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
     const commit = d.select({ text: commits.text }).from(commits).where(eq(commits.id, row.commitId)).get();
     if (!commit) return end("failed", "the commit of this run no longer exists", 0);
     const result = elaborate(commit.text);
-    if (!result.network) return end("failed", `the commit has errors: ${result.diagnostics.find((x) => x.severity === "error")?.message ?? "it does not elaborate"}`, 0);
+    if (!result.network)
+      return end(
+        "failed",
+        `the commit has errors: ${result.diagnostics.find((x) => x.severity === "error")?.message ?? "it does not elaborate"}`,
+        0,
+      );
     const net = result.network;
     const layout = layoutOf(net);
     d.update(runs)
@@ -132,13 +146,16 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
       batch = [];
       d.transaction((tx) => {
         insertPoints(tx, runId, b);
-        tx.update(runs).set({ pointsDone: stored + b.length }).where(eq(runs.id, runId)).run();
+        tx.update(runs)
+          .set({ pointsDone: stored + b.length })
+          .where(eq(runs.id, runId))
+          .run();
       });
       stored += b.length;
       lastFlush = now();
     };
     const onPoint = (p: PointResult): void => {
-      if (control.fault === "stuck") for (const end = Date.now() + 60_000; Date.now() < end; );
+      if (control.fault === "stuck") for (const end = Date.now() + 60_000; Date.now() < end;);
       if (done === 0) d.update(runs).set({ solverReason: p.solver.reason }).where(eq(runs.id, runId)).run();
       stats.add(p);
       batch.push(toRecord(net, layout, p));
@@ -147,7 +164,14 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
     };
 
     // The point's arrays are reused by the next point: toRecord copies what the batch keeps.
-    const run: RunResult = solveNetwork(net, { onProgress, onPoint, shouldStop, maxPoints: row.pointsTotal, keepPoints: false, reuseArrays: true });
+    const run: RunResult = solveNetwork(net, {
+      onProgress,
+      onPoint,
+      shouldStop,
+      maxPoints: row.pointsTotal,
+      keepPoints: false,
+      reuseArrays: true,
+    });
     flush();
     d.update(runs)
       .set({
@@ -163,10 +187,12 @@ function runClaimed(d: Q, row: typeof runs.$inferSelect, startedAt: number, cont
       .run();
     const of = `${done.toLocaleString("en-US")} of ${row.pointsTotal.toLocaleString("en-US")} points`;
     if (stopKind === STOP_CANCEL) return end("canceled", `canceled after ${of}`, done);
-    if (stopKind === STOP_TIME) return end("failed", `time limit of ${row.timeLimitMs / 1000} s reached after ${of}`, done);
+    if (stopKind === STOP_TIME)
+      return end("failed", `time limit of ${row.timeLimitMs / 1000} s reached after ${of}`, done);
     const structural = run.failures.find((f) => f.point < 0);
     if (structural) return end("failed", `the network cannot be solved: ${structural.message}`, done);
-    if (done === 0 && run.failures.length) return end("failed", `no point could be solved: ${run.failures[0].message}`, done);
+    if (done === 0 && run.failures.length)
+      return end("failed", `no point could be solved: ${run.failures[0].message}`, done);
     const finished = end("done", null, done);
     // Review: the results diff against the parent commit's run, computed once (app/lib/review/diffs.ts); it never fails the run.
     try {
@@ -187,7 +213,17 @@ function sleep(ms: number): void {
 /** The model figures a result page states. */
 export function modelOf(net: Network): Record<string, unknown> {
   const s = net.settings;
-  return { model: s.model, kappa: s.kappa, temp: s.temp, ut: s.ut, i0: s.i0, vt0: s.vt0, ispec: s.ispec, devices: net.devices.count, nodes: net.nodes.names.length };
+  return {
+    model: s.model,
+    kappa: s.kappa,
+    temp: s.temp,
+    ut: s.ut,
+    i0: s.i0,
+    vt0: s.vt0,
+    ispec: s.ispec,
+    devices: net.devices.count,
+    nodes: net.nodes.names.length,
+  };
 }
 
 /** Run-wide validity figures; a device counts once if it is flagged at any solved point. */
@@ -205,7 +241,8 @@ class RunStats {
 
   add(p: PointResult): void {
     if (p.solver.method === "newton") this.newtonPoints++;
-    if (Number.isFinite(p.solver.residual) && p.solver.residual > this.maxResidual) this.maxResidual = p.solver.residual;
+    if (Number.isFinite(p.solver.residual) && p.solver.residual > this.maxResidual)
+      this.maxResidual = p.solver.residual;
     if (p.ok) {
       const m = this.notWeak.length;
       for (let k = 0; k < m; k++) {
@@ -217,7 +254,8 @@ class RunStats {
       const key = `${w.kind}:${w.device}`;
       const have = this.warnings.get(key);
       if (have) have.points++;
-      else if (this.warnings.size < 50) this.warnings.set(key, { kind: w.kind, message: w.message, points: 1, firstPoint: p.index });
+      else if (this.warnings.size < 50)
+        this.warnings.set(key, { kind: w.kind, message: w.message, points: 1, firstPoint: p.index });
     }
   }
 
@@ -233,7 +271,9 @@ function toRecord(net: Network, layout: RunLayout, p: PointResult): PointRecord 
   const params = new Float64Array(paramNames.length);
   for (let j = 0; j < paramNames.length; j++) {
     const v = p.params[paramNames[j]];
-    params[j] = v ?? (paramNames[j] === "temp" ? net.settings.temp : (net.params.find((x) => x.name === paramNames[j])?.value ?? NaN));
+    params[j] =
+      v ??
+      (paramNames[j] === "temp" ? net.settings.temp : (net.params.find((x) => x.name === paramNames[j])?.value ?? NaN));
   }
   const probes = new Float64Array(layout.probes.length);
   for (let j = 0; j < probes.length; j++) probes[j] = p.probes[layout.probes[j]] ?? NaN;

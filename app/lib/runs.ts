@@ -102,10 +102,19 @@ export function recoverRuns(d: Q = db()): { interrupted: number; requeued: numbe
   s.recovered = true;
   const interrupted = d
     .update(runs)
-    .set({ state: "interrupted", reason: "the server stopped while this run was running; start it again", finishedAt: new Date() })
+    .set({
+      state: "interrupted",
+      reason: "the server stopped while this run was running; start it again",
+      finishedAt: new Date(),
+    })
     .where(eq(runs.state, "running"))
     .run().changes;
-  const queued = d.select({ id: runs.id }).from(runs).where(eq(runs.state, "queued")).orderBy(asc(runs.createdAt)).all();
+  const queued = d
+    .select({ id: runs.id })
+    .from(runs)
+    .where(eq(runs.state, "queued"))
+    .orderBy(asc(runs.createdAt))
+    .all();
   for (const q of queued) if (!s.queue.includes(q.id)) s.queue.push(q.id);
   if (queued.length) void dispatch();
   return { interrupted, requeued: queued.length };
@@ -142,29 +151,42 @@ export function startRun(input: StartRunInput, d: Q = db()): RunRow {
   const commit = getCommit(input.commitId, d);
   if (!commit) throw new RequestError(404, "not found");
   if (!commit.ok) {
-    throw new RequestError(422, `commit ${commit.id.slice(0, 12)} has ${commit.errorCount} error${commit.errorCount === 1 ? "" : "s"}: fix ${commit.errorCount === 1 ? "it" : "them"} and commit again before running`, {
-      errors: commit.diagnostics.filter((x) => x.severity === "error").slice(0, 20),
-    });
+    throw new RequestError(
+      422,
+      `commit ${commit.id.slice(0, 12)} has ${commit.errorCount} error${commit.errorCount === 1 ? "" : "s"}: fix ${commit.errorCount === 1 ? "it" : "them"} and commit again before running`,
+      {
+        errors: commit.diagnostics.filter((x) => x.severity === "error").slice(0, 20),
+      },
+    );
   }
   const result = elaborate(commit.text);
   if (!result.network) throw new RequestError(422, "the commit does not elaborate to a network");
   const points = pointsOf(result.network);
   const values = points * valuesPerPoint(result.network);
   if (points > RUN_LIMITS.pointsPerRun) {
-    throw new RequestError(422, `this run has ${points.toLocaleString("en-US")} points; the limit is ${RUN_LIMITS.pointsPerRun.toLocaleString("en-US")} points per run. Use fewer sweep values or mismatch samples.`, {
-      points,
-      limit: RUN_LIMITS.pointsPerRun,
-    });
+    throw new RequestError(
+      422,
+      `this run has ${points.toLocaleString("en-US")} points; the limit is ${RUN_LIMITS.pointsPerRun.toLocaleString("en-US")} points per run. Use fewer sweep values or mismatch samples.`,
+      {
+        points,
+        limit: RUN_LIMITS.pointsPerRun,
+      },
+    );
   }
   if (values > RUN_LIMITS.valuesPerRun) {
-    throw new RequestError(422, `this run would store ${values.toLocaleString("en-US")} values (${points.toLocaleString("en-US")} points × ${valuesPerPoint(result.network).toLocaleString("en-US")} per point); the limit is ${RUN_LIMITS.valuesPerRun.toLocaleString("en-US")} values per run.`, {
-      values,
-      points,
-      limit: RUN_LIMITS.valuesPerRun,
-    });
+    throw new RequestError(
+      422,
+      `this run would store ${values.toLocaleString("en-US")} values (${points.toLocaleString("en-US")} points × ${valuesPerPoint(result.network).toLocaleString("en-US")} per point); the limit is ${RUN_LIMITS.valuesPerRun.toLocaleString("en-US")} values per run.`,
+      {
+        values,
+        points,
+        limit: RUN_LIMITS.valuesPerRun,
+      },
+    );
   }
   const timeLimitMs = input.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS;
-  if (!(timeLimitMs > 0 && timeLimitMs <= MAX_TIME_LIMIT_MS)) throw new RequestError(400, `timeLimitSeconds: between 0 and ${MAX_TIME_LIMIT_MS / 1000}`);
+  if (!(timeLimitMs > 0 && timeLimitMs <= MAX_TIME_LIMIT_MS))
+    throw new RequestError(400, `timeLimitSeconds: between 0 and ${MAX_TIME_LIMIT_MS / 1000}`);
   const id = newId("r");
   d.insert(runs)
     .values({
@@ -201,13 +223,31 @@ async function dispatch(): Promise<void> {
   const s = sup();
   while (s.active.size < concurrency() && s.queue.length > 0) {
     const runId = s.queue.shift()!;
-    const row = db().select({ state: runs.state, timeLimitMs: runs.timeLimitMs }).from(runs).where(eq(runs.id, runId)).get();
+    const row = db()
+      .select({ state: runs.state, timeLimitMs: runs.timeLimitMs })
+      .from(runs)
+      .where(eq(runs.id, runId))
+      .get();
     if (!row || row.state !== "queued") continue;
-    const active: Active = { stop: new Int32Array(new SharedArrayBuffer(4)), abort: new AbortController(), hardTimer: null, terminated: null };
+    const active: Active = {
+      stop: new Int32Array(new SharedArrayBuffer(4)),
+      abort: new AbortController(),
+      hardTimer: null,
+      terminated: null,
+    };
     s.active.set(runId, active);
     // Backstop: the worker stops itself at the time limit; if a single point runs on, terminate it.
-    active.hardTimer = setTimeout(() => terminate(runId, "failed", `time limit of ${formatSeconds(row.timeLimitMs)} reached; the worker was stopped`), row.timeLimitMs + STOP_GRACE_MS);
-    const task: RunTask = { runId, dbFile: databasePath(), stop: active.stop.buffer as SharedArrayBuffer, fault: faults.get(runId) };
+    active.hardTimer = setTimeout(
+      () =>
+        terminate(runId, "failed", `time limit of ${formatSeconds(row.timeLimitMs)} reached; the worker was stopped`),
+      row.timeLimitMs + STOP_GRACE_MS,
+    );
+    const task: RunTask = {
+      runId,
+      dbFile: databasePath(),
+      stop: active.stop.buffer as SharedArrayBuffer,
+      fault: faults.get(runId),
+    };
     faults.delete(runId);
     let p: Promise<RunTaskResult>;
     try {
@@ -261,7 +301,8 @@ function terminate(runId: string, state: RunState, reason: string): void {
 export function cancelRun(runId: string, d: Q = db()): RunRow {
   const run = getRun(runId, d);
   if (!run) throw new RequestError(404, "not found");
-  if ((FINAL_RUN_STATES as readonly string[]).includes(run.state)) throw new RequestError(409, `the run has already ended (${run.state})`, { state: run.state });
+  if ((FINAL_RUN_STATES as readonly string[]).includes(run.state))
+    throw new RequestError(409, `the run has already ended (${run.state})`, { state: run.state });
   const s = sup();
   d.update(runs).set({ cancelRequested: true }).where(eq(runs.id, runId)).run();
   const queuedAt = s.queue.indexOf(runId);
@@ -376,7 +417,15 @@ export function getRun(id: string, d: Q = db()): RunRow | null {
 /** Runs of a commit (or of a network when `commitId` is null), newest first. */
 export function listRuns(where: { commitId?: string; networkId?: string }, d: Q = db(), limit = 100): RunRow[] {
   const cond = where.commitId ? eq(runs.commitId, where.commitId) : eq(runs.networkId, where.networkId ?? "");
-  return d.select(runColumns).from(runs).innerJoin(users, eq(users.id, runs.createdBy)).where(cond).orderBy(desc(runs.createdAt)).limit(limit).all().map(toRunRow);
+  return d
+    .select(runColumns)
+    .from(runs)
+    .innerJoin(users, eq(users.id, runs.createdBy))
+    .where(cond)
+    .orderBy(desc(runs.createdAt))
+    .limit(limit)
+    .all()
+    .map(toRunRow);
 }
 
 /** The run's layout JSON as stored (null before the run started). */

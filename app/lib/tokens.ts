@@ -34,14 +34,23 @@ export function createApiToken(userId: string, name: string): { id: string; toke
   const token = newSecret(TOKEN_PREFIX);
   const id = newId("tok_");
   const prefix = token.slice(0, SHOWN);
-  db().insert(apiTokens).values({ id, userId, name, prefix, tokenHash: secretHash(token) }).run();
+  db()
+    .insert(apiTokens)
+    .values({ id, userId, name, prefix, tokenHash: secretHash(token) })
+    .run();
   return { id, token, prefix };
 }
 
 /** The user's tokens that are not revoked, newest first. */
 export function listApiTokens(userId: string): ApiTokenSummary[] {
   return db()
-    .select({ id: apiTokens.id, name: apiTokens.name, prefix: apiTokens.prefix, createdAt: apiTokens.createdAt, lastUsedAt: apiTokens.lastUsedAt })
+    .select({
+      id: apiTokens.id,
+      name: apiTokens.name,
+      prefix: apiTokens.prefix,
+      createdAt: apiTokens.createdAt,
+      lastUsedAt: apiTokens.lastUsedAt,
+    })
     .from(apiTokens)
     .where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)))
     .orderBy(desc(apiTokens.createdAt))

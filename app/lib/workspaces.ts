@@ -23,7 +23,11 @@ export interface MyWorkspace extends WorkspaceSummary {
 export const SLUG_PATTERN = /^[a-z0-9](?:[a-z0-9-]{0,46}[a-z0-9])?$/;
 
 export const newWorkspaceSchema = z.object({
-  name: z.string({ error: "name the workspace" }).trim().min(1, { error: "name the workspace" }).max(100, { error: "at most 100 characters" }),
+  name: z
+    .string({ error: "name the workspace" })
+    .trim()
+    .min(1, { error: "name the workspace" })
+    .max(100, { error: "at most 100 characters" }),
   slug: z
     .string()
     .trim()
@@ -53,7 +57,13 @@ export function slugFrom(name: string): string {
 /** The workspaces the user is a member of, by name, with the user's role. */
 export function listWorkspacesFor(userId: string): MyWorkspace[] {
   return db()
-    .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name, description: workspaces.description, role: memberships.role })
+    .select({
+      id: workspaces.id,
+      slug: workspaces.slug,
+      name: workspaces.name,
+      description: workspaces.description,
+      role: memberships.role,
+    })
     .from(memberships)
     .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
     .where(eq(memberships.userId, userId))
@@ -65,7 +75,13 @@ export function listWorkspacesFor(userId: string): MyWorkspace[] {
 export function memberWorkspace(userId: string, slug: string): MyWorkspace | null {
   return (
     db()
-      .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name, description: workspaces.description, role: memberships.role })
+      .select({
+        id: workspaces.id,
+        slug: workspaces.slug,
+        name: workspaces.name,
+        description: workspaces.description,
+        role: memberships.role,
+      })
       .from(workspaces)
       .innerJoin(memberships, and(eq(memberships.workspaceId, workspaces.id), eq(memberships.userId, userId)))
       .where(eq(workspaces.slug, slug))
@@ -82,7 +98,8 @@ export function createWorkspace(ownerId: string, input: NewWorkspace): MyWorkspa
   const given = input.slug ? input.slug : null;
   const base = given ?? slugFrom(input.name);
   return db().transaction((tx) => {
-    const taken = (slug: string) => tx.select({ id: workspaces.id }).from(workspaces).where(eq(workspaces.slug, slug)).get() !== undefined;
+    const taken = (slug: string) =>
+      tx.select({ id: workspaces.id }).from(workspaces).where(eq(workspaces.slug, slug)).get() !== undefined;
     let slug = base;
     if (taken(slug)) {
       if (given) throw new RequestError(409, `slug: the address /w/${given} is taken; choose another`);

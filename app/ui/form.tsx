@@ -92,7 +92,11 @@ export function Submit({ children, tone = "primary" }: { children: ReactNode; to
         ? "border border-ember-500 text-ember-500 hover:bg-ember-50"
         : "border border-stone-300 text-stone-700 hover:bg-stone-100";
   return (
-    <button type="submit" disabled={pending} className={`rounded px-3 py-1.5 text-sm font-medium disabled:opacity-60 ${look}`}>
+    <button
+      type="submit"
+      disabled={pending}
+      className={`rounded px-3 py-1.5 text-sm font-medium disabled:opacity-60 ${look}`}
+    >
       {children}
     </button>
   );

@@ -32,7 +32,15 @@ function call(handler: (() => void) | undefined): boolean {
   return true;
 }
 
-export function NetworkEditor({ value, onChange, onSave, onRun, readOnly = false, onDiagnostics, className }: NetworkEditorProps) {
+export function NetworkEditor({
+  value,
+  onChange,
+  onSave,
+  onRun,
+  readOnly = false,
+  onDiagnostics,
+  className,
+}: NetworkEditorProps) {
   const host = useRef<HTMLDivElement>(null);
   const view = useRef<EditorView | null>(null);
   const [readOnlySetting] = useState(() => new Compartment());
@@ -80,7 +88,9 @@ export function NetworkEditor({ value, onChange, onSave, onRun, readOnly = false
     view.current?.dispatch({ effects: readOnlySetting.reconfigure(readOnlyExtension(readOnly)) });
   }, [readOnly, readOnlySetting]);
 
-  return <div ref={host} className={className} data-slot="network-editor" data-readonly={readOnly ? "true" : undefined} />;
+  return (
+    <div ref={host} className={className} data-slot="network-editor" data-readonly={readOnly ? "true" : undefined} />
+  );
 }
 
 export default NetworkEditor;

@@ -8,8 +8,19 @@ export function NewWorkspaceForm() {
   return (
     <form action={action} className="space-y-4 rounded border border-stone-300 bg-white p-5" noValidate>
       <FormMessage state={state} />
-      <Field label="Name" name="name" state={state} hint="One workspace per chip or block, e.g. “LM-64 edge row”." required />
-      <Field label="Address (optional)" name="slug" state={state} hint="Lower-case letters, digits and dashes; made from the name when empty." />
+      <Field
+        label="Name"
+        name="name"
+        state={state}
+        hint="One workspace per chip or block, e.g. “LM-64 edge row”."
+        required
+      />
+      <Field
+        label="Address (optional)"
+        name="slug"
+        state={state}
+        hint="Lower-case letters, digits and dashes; made from the name when empty."
+      />
       <Field label="Description (optional)" name="description" state={state} />
       <Submit>Create workspace</Submit>
     </form>

@@ -22,7 +22,13 @@ export function assertPortFree(host: string, port: number): Promise<void> {
   return new Promise((resolve, reject) => {
     const probe = net.createServer();
     probe.once("error", (e: NodeJS.ErrnoException) =>
-      reject(new Error(e.code === "EADDRINUSE" ? `port ${port} on ${host} is already in use` : `cannot listen on ${host}:${port}: ${e.code}`)),
+      reject(
+        new Error(
+          e.code === "EADDRINUSE"
+            ? `port ${port} on ${host} is already in use`
+            : `cannot listen on ${host}:${port}: ${e.code}`,
+        ),
+      ),
     );
     probe.listen(port, host, () => probe.close(() => resolve()));
   });

@@ -49,7 +49,8 @@ export function startMailSink(options: {
         };
         Promise.resolve(options.onMessage(mail)).then(
           () => callback(),
-          (e: Error) => callback(Object.assign(new Error(`sink could not store the message: ${e.message}`), { responseCode: 451 })),
+          (e: Error) =>
+            callback(Object.assign(new Error(`sink could not store the message: ${e.message}`), { responseCode: 451 })),
         );
       });
     },

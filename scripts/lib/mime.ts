@@ -59,7 +59,10 @@ export function decodeHeader(value: string): string {
   for (const m of joined.matchAll(word)) {
     out += decodeBytes(joined.slice(last, m.index));
     const [, charset, enc, text] = m;
-    const binary = enc.toUpperCase() === "B" ? Buffer.from(text, "base64").toString("latin1") : quotedPrintable(text.replace(/_/g, " "));
+    const binary =
+      enc.toUpperCase() === "B"
+        ? Buffer.from(text, "base64").toString("latin1")
+        : quotedPrintable(text.replace(/_/g, " "));
     out += decodeBytes(binary, charset.split("*")[0]);
     last = m.index + m[0].length;
   }

@@ -167,7 +167,8 @@ function readStatements(tree: Tree, text: (from: number, to: number) => string):
       const value = pin.lastChild;
       if (!pinName || !value || value === pinName || !NODE_PINS.has(text(pinName.from, pinName.to))) continue;
       if (value.name === "Identifier") part.used.push(text(value.from, value.to));
-      else if (value.name === "InterpolatedName" && !containsError(value)) part.patterns.push(text(value.from, value.to));
+      else if (value.name === "InterpolatedName" && !containsError(value))
+        part.patterns.push(text(value.from, value.to));
     }
   };
   tree.iterate({
@@ -287,15 +288,20 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
   const name = prev.name;
 
   if (name === "{" && parent?.name === "Block") return { kind: "statement" };
-  if (name === "InterpolatedName" && (p < prev.to || state.sliceDoc(p - 1, p) === "{")) return { kind: "expression", at: prev };
+  if (name === "InterpolatedName" && (p < prev.to || state.sliceDoc(p - 1, p) === "{"))
+    return { kind: "expression", at: prev };
   if (name === "=") {
     if (parent?.name === "SetStatement") {
       const setting = parent.getChild("SettingName");
-      return setting && state.sliceDoc(setting.from, setting.to) === "model" ? { kind: "model" } : { kind: "expression", at: prev };
+      return setting && state.sliceDoc(setting.from, setting.to) === "model"
+        ? { kind: "model" }
+        : { kind: "expression", at: prev };
     }
     if (parent?.name === "Pin") {
       const pin = parent.getChild("PinName");
-      return pin && NODE_PINS.has(state.sliceDoc(pin.from, pin.to)) ? { kind: "node" } : { kind: "expression", at: prev };
+      return pin && NODE_PINS.has(state.sliceDoc(pin.from, pin.to))
+        ? { kind: "node" }
+        : { kind: "expression", at: prev };
     }
     return { kind: "expression", at: prev };
   }
@@ -316,7 +322,8 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
   if (name === "sweep") return { kind: "sweepParam" };
   if (name === "mismatch") return { kind: "keywords", words: MISMATCH_OPTIONS };
   if (name === "VariableName" && parent?.name === "ForStatement") return { kind: "keywords", words: ["in"] };
-  if (name === "Identifier" && parent?.name === "SweepStatement") return { kind: "keywords", words: ["from", "values"] };
+  if (name === "Identifier" && parent?.name === "SweepStatement")
+    return { kind: "keywords", words: ["from", "values"] };
 
   // The token before ends an expression or a name: what may follow depends on the statement part.
   const statement = ancestorStatement(prev);
@@ -374,7 +381,8 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
       return STATEMENT_WORDS.map((w) => ({ label: w, type: "keyword", apply: `${w} ` }));
     case "pin": {
       const kind = slot.statement.firstChild?.name;
-      const all = kind === "nfet" ? NFET_PINS : kind === "pfet" ? PFET_PINS : kind === "inject" ? INJECT_PINS : FET_PINS;
+      const all =
+        kind === "nfet" ? NFET_PINS : kind === "pfet" ? PFET_PINS : kind === "inject" ? INJECT_PINS : FET_PINS;
       const present = new Set<string>();
       for (let pin = slot.statement.getChild("Pin"); pin; pin = pin.nextSibling) {
         const pn = pin.name === "Pin" ? pin.getChild("PinName") : null;
@@ -434,14 +442,17 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
       const paramStatement = ancestor(at, "ParamStatement");
       const inProbe = ancestor(at, "ProbeStatement") !== null;
       const out: Completion[] = [];
-      for (const v of loopVariables(state, at, pos)) out.push({ label: v, type: "variable", detail: "loop variable", boost: 3 });
+      for (const v of loopVariables(state, at, pos))
+        out.push({ label: v, type: "variable", detail: "loop variable", boost: 3 });
       for (const p of names.params) {
         if (paramStatement && p.at >= paramStatement.from) continue;
         out.push({ label: p.name, type: "variable", detail: "param", boost: 2 });
       }
-      for (const b of Object.keys(BUILTINS)) out.push({ label: b, type: "constant", detail: BUILTIN_INFO[b], boost: 1 });
+      for (const b of Object.keys(BUILTINS))
+        out.push({ label: b, type: "constant", detail: BUILTIN_INFO[b], boost: 1 });
       if (inProbe) {
-        for (const f of PROBE_FUNCTIONS) out.push({ label: f, type: "function", apply: `${f}(`, detail: PROBE_INFO[f], boost: 1 });
+        for (const f of PROBE_FUNCTIONS)
+          out.push({ label: f, type: "function", apply: `${f}(`, detail: PROBE_INFO[f], boost: 1 });
       }
       for (const f of Object.keys(FUNCTIONS)) out.push({ label: f, type: "function", apply: `${f}(` });
       return out;
@@ -478,7 +489,8 @@ export const runnelCompletionSource: CompletionSource = (context: CompletionCont
   if (!slot) return null;
   if (!word && !context.explicit) {
     const before = state.sliceDoc(pos - 1, pos);
-    const trigger = before === "=" || before === "(" || before === "," || (before === "{" && slot.kind === "expression");
+    const trigger =
+      before === "=" || before === "(" || before === "," || (before === "{" && slot.kind === "expression");
     if (!trigger) return null;
   }
   const options = optionsFor(state, slot, pos, word?.node ?? null);

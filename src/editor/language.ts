@@ -3,13 +3,7 @@
  * indentation and bracket props. Highlighting tags come with the parser
  * (src/lang/highlight.ts is the grammar's propSource).
  */
-import {
-  delimitedIndent,
-  foldInside,
-  foldNodeProp,
-  indentNodeProp,
-  LRLanguage,
-} from "@codemirror/language";
+import { delimitedIndent, foldInside, foldNodeProp, indentNodeProp, LRLanguage } from "@codemirror/language";
 import { NodeProp } from "@lezer/common";
 import { parser } from "../lang/parser";
 

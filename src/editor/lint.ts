@@ -118,7 +118,10 @@ export class LintClient {
  * for completion, and returns the diagnostics. `client` defaults to the
  * main thread.
  */
-export function runnelLintSource(options: RunnelLintOptions = {}, client: LintClient = new LintClient(null)): LintSource {
+export function runnelLintSource(
+  options: RunnelLintOptions = {},
+  client: LintClient = new LintClient(null),
+): LintSource {
   return async (view: EditorView) => {
     const doc: Text = view.state.doc;
     const reply = await client.elaborate(doc.toString());

@@ -61,7 +61,12 @@ export const runnelTheme = EditorView.theme(
       color: "inherit",
     },
     ".cm-nonmatchingBracket, &.cm-focused .cm-nonmatchingBracket": { backgroundColor: c.ember50, color: c.ember500 },
-    ".cm-foldPlaceholder": { backgroundColor: c.moss50, border: `1px solid ${c.moss100}`, color: c.moss700, padding: "0 4px" },
+    ".cm-foldPlaceholder": {
+      backgroundColor: c.moss50,
+      border: `1px solid ${c.moss100}`,
+      color: c.moss700,
+      padding: "0 4px",
+    },
     ".cm-foldGutter .cm-gutterElement": { color: c.stone500, cursor: "pointer" },
     ".cm-searchMatch": { backgroundColor: "#f2e7c4", outline: `1px solid ${c.ochre}` },
     ".cm-searchMatch.cm-searchMatch-selected": { backgroundColor: c.moss100 },
@@ -151,7 +156,8 @@ export function runnelEditorExtensions(options: RunnelEditorOptions = {}): Exten
     ]),
     onChange
       ? EditorView.updateListener.of((u) => {
-          if (u.docChanged && !u.transactions.some((tr) => tr.isUserEvent(EXTERNAL_EVENT))) onChange(u.state.doc.toString());
+          if (u.docChanged && !u.transactions.some((tr) => tr.isUserEvent(EXTERNAL_EVENT)))
+            onChange(u.state.doc.toString());
         })
       : [],
   ];

@@ -87,8 +87,7 @@ export class DiagnosticSink {
     const index = new LineIndex(this.text);
     const out: Diagnostic[] = this.list.map((p) => {
       const { line, column } = index.position(p.from);
-      const message =
-        p.repeats > 0 ? `${p.message} (and ${p.repeats} more like it from this statement)` : p.message;
+      const message = p.repeats > 0 ? `${p.message} (and ${p.repeats} more like it from this statement)` : p.message;
       const d: Diagnostic = { severity: p.severity, line, column, from: p.from, to: p.to, message };
       if (p.hint) d.hint = p.hint;
       return d;

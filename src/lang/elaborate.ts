@@ -39,7 +39,18 @@ import { parser } from "./parser";
 import * as T from "./parser.terms";
 import { pointScope, thermalVoltage } from "./point";
 import { reportSyntaxErrors } from "./syntax";
-import { AMPERE, compatible, describeDim, DIMENSIONLESS, type Dim, hasUnit, KELVIN, LOOSE, sameDim, VOLT } from "./units";
+import {
+  AMPERE,
+  compatible,
+  describeDim,
+  DIMENSIONLESS,
+  type Dim,
+  hasUnit,
+  KELVIN,
+  LOOSE,
+  sameDim,
+  VOLT,
+} from "./units";
 
 /** Bounds on the work of one elaboration; exceeding one is an error, never a hang. */
 export interface Limits {
@@ -133,7 +144,8 @@ class NameColumn implements NameSource {
     if (i < 0 || i >= this.shape.length) return undefined;
     if (i < this.made.length) return this.made[i];
     const sh = this.shape.data[i];
-    const name = sh < 0 ? this.strings[this.a.data[i]] : shapeName(this.shapes[sh].lits, this.a.data[i], this.b.data[i]);
+    const name =
+      sh < 0 ? this.strings[this.a.data[i]] : shapeName(this.shapes[sh].lits, this.a.data[i], this.b.data[i]);
     if (i === this.made.length) this.made.push(name); // read in order (filling a Map): kept
     return name;
   }
@@ -453,7 +465,8 @@ function loopOffset(p: Expr, loopVars: string[]): { slot: number; offset: number
   if ((op === "+" || op === "-") && left.k === "name" && right.k === "num") {
     const slot = loopVars.indexOf(left.name);
     const c = right.value;
-    if (slot >= 0 && right.unit === "" && Number.isInteger(c) && c >= 0 && c < 2 ** 31) return { slot, offset: op === "+" ? c : -c };
+    if (slot >= 0 && right.unit === "" && Number.isInteger(c) && c >= 0 && c < 2 ** 31)
+      return { slot, offset: op === "+" ? c : -c };
   }
   return { slot: -1, offset: 0 };
 }
@@ -545,7 +558,10 @@ function mayShareName(a: string[], b: string[]): boolean {
   if (a.length === 1 && b.length === 1) return a[0] === b[0];
   if (a.length === 1 && a[0].length < minLength(b)) return false;
   if (b.length === 1 && b[0].length < minLength(a)) return false;
-  return endsAgree(a[0], a.length > 1, b[0], b.length > 1, false) && endsAgree(a[a.length - 1], a.length > 1, b[b.length - 1], b.length > 1, true);
+  return (
+    endsAgree(a[0], a.length > 1, b[0], b.length > 1, false) &&
+    endsAgree(a[a.length - 1], a.length > 1, b[b.length - 1], b.length > 1, true)
+  );
 }
 
 function minLength(lits: string[]): number {
@@ -740,7 +756,14 @@ class Elaborator {
 
   run(): ElaborationResult {
     this.tree = parser.parse(this.text);
-    this.syntaxErrors = reportSyntaxErrors(this.tree, this.text, this.sink, this.lines, this.limits.maxDiagnostics, this.limits.maxExpressionDepth);
+    this.syntaxErrors = reportSyntaxErrors(
+      this.tree,
+      this.text,
+      this.sink,
+      this.lines,
+      this.limits.maxDiagnostics,
+      this.limits.maxExpressionDepth,
+    );
     const top = this.tree.topNode;
     const statements = this.children(top);
     this.prescan(statements);
@@ -767,7 +790,8 @@ class Elaborator {
         if (d && !this.paramDecl.has(this.src(d))) this.paramDecl.set(this.src(d), d.from);
       } else if (s.type.id === T.RailStatement) {
         const d = s.getChild("Definition");
-        if (d && !d.getChild("InterpolatedName") && !this.railDecl.has(this.src(d))) this.railDecl.set(this.src(d), d.from);
+        if (d && !d.getChild("InterpolatedName") && !this.railDecl.has(this.src(d)))
+          this.railDecl.set(this.src(d), d.from);
       } else if (s.type.id === T.SetStatement) {
         const n = s.getChild("SettingName");
         if (n && !this.setDecl.has(this.src(n))) this.setDecl.set(this.src(n), { from: s.from, to: s.to });
@@ -855,7 +879,12 @@ class Elaborator {
       return;
     }
     if (index !== 0) {
-      this.sink.error(s.firstChild!.from, s.firstChild!.to, "'network' must be the first statement", "move it to the top of the file");
+      this.sink.error(
+        s.firstChild!.from,
+        s.firstChild!.to,
+        "'network' must be the first statement",
+        "move it to the top of the file",
+      );
     }
     this.name = this.src(d);
   }
@@ -865,13 +894,23 @@ class Elaborator {
     const name = this.src(n);
     const valueNode = this.exprChild(s);
     if (!(SETTINGS as readonly string[]).includes(name)) {
-      this.sink.error(n.from, n.to, `unknown setting '${name}'`, suggest(name, SETTINGS) ?? `settings: ${SETTINGS.join(", ")}`);
+      this.sink.error(
+        n.from,
+        n.to,
+        `unknown setting '${name}'`,
+        suggest(name, SETTINGS) ?? `settings: ${SETTINGS.join(", ")}`,
+      );
       return;
     }
     const setting = name as SettingName;
     const earlier = this.settingAt.get(setting);
     if (earlier) {
-      this.sink.error(n.from, n.to, `${name} is set twice (first on line ${this.line(earlier.from)})`, "keep one set statement per setting");
+      this.sink.error(
+        n.from,
+        n.to,
+        `${name} is set twice (first on line ${this.line(earlier.from)})`,
+        "keep one set statement per setting",
+      );
       return;
     }
     this.settingAt.set(setting, { from: s.from, to: s.to });
@@ -879,7 +918,12 @@ class Elaborator {
     if (setting === "model") {
       const v = this.src(valueNode);
       if (valueNode.type.id !== T.Identifier || (v !== "weak" && v !== "ekv")) {
-        this.sink.error(valueNode.from, valueNode.to, `model is 'weak' or 'ekv', not '${v}'`, "set model = weak (the default) or set model = ekv");
+        this.sink.error(
+          valueNode.from,
+          valueNode.to,
+          `model is 'weak' or 'ekv', not '${v}'`,
+          "set model = weak (the default) or set model = ekv",
+        );
         return;
       }
       this.settings.model = v as Model;
@@ -899,16 +943,28 @@ class Elaborator {
     const bad = (msg: string, hint?: string) => this.sink.error(t.from, t.to, msg, hint);
     switch (setting) {
       case "kappa":
-        if (!(v > 0 && v <= 1)) return bad(`kappa must lie between 0 and 1, but it is ${fmt(v)}`, "typical values are 0.6 to 0.8");
+        if (!(v > 0 && v <= 1))
+          return bad(`kappa must lie between 0 and 1, but it is ${fmt(v)}`, "typical values are 0.6 to 0.8");
         this.settings.kappa = v;
         this.scope.set("kappa", v);
         this.kappaDeps = t.pointDeps ?? [];
         break;
       case "temp": {
-        if (!(v > 0 && Number.isFinite(v))) return bad(`temp must be a positive temperature in kelvin, but it is ${fmt(v)}`, "for example set temp = 300K");
+        if (!(v > 0 && Number.isFinite(v)))
+          return bad(
+            `temp must be a positive temperature in kelvin, but it is ${fmt(v)}`,
+            "for example set temp = 300K",
+          );
         const s2 = this.sweptDep(t);
-        if (s2) return bad(`temp cannot depend on '${s2}', which is swept`, "to vary the temperature, write sweep temp ...");
-        if (v < 150) this.sink.warning(t.from, t.to, `temp is ${fmt(v)} K: temperatures are in kelvin`, "room temperature is about 300K");
+        if (s2)
+          return bad(`temp cannot depend on '${s2}', which is swept`, "to vary the temperature, write sweep temp ...");
+        if (v < 150)
+          this.sink.warning(
+            t.from,
+            t.to,
+            `temp is ${fmt(v)} K: temperatures are in kelvin`,
+            "room temperature is about 300K",
+          );
         this.settings.temp = v;
         this.settings.ut = thermalVoltage(v);
         this.scope.set("temp", v);
@@ -917,7 +973,11 @@ class Elaborator {
       }
       case "i0":
       case "ispec":
-        if (!(v > 0 && Number.isFinite(v))) return bad(`${setting} must be a positive current, but it is ${fmt(v)}`, `for example set ${setting} = ${setting === "i0" ? "1f" : "100n"}`);
+        if (!(v > 0 && Number.isFinite(v)))
+          return bad(
+            `${setting} must be a positive current, but it is ${fmt(v)}`,
+            `for example set ${setting} = ${setting === "i0" ? "1f" : "100n"}`,
+          );
         this.settings[setting] = v;
         break;
       case "vt0":
@@ -939,7 +999,11 @@ class Elaborator {
     if (!this.checkValueName(name, d.from, d.to, "param")) return;
     const prev = this.params.get(name);
     if (prev) {
-      this.sink.error(d.from, d.to, `param '${name}' is defined twice (first on line ${this.line(prev.def.span.from)})`);
+      this.sink.error(
+        d.from,
+        d.to,
+        `param '${name}' is defined twice (first on line ${this.line(prev.def.span.from)})`,
+      );
       return;
     }
     // One namespace: a name declared before as a rail, inject, probe or device keeps that
@@ -958,7 +1022,12 @@ class Elaborator {
     }
     const v = this.valueOf(t);
     if (!Number.isFinite(v)) {
-      this.sink.error(t.from, t.to, `param '${name}' is ${fmt(v)}`, "check for a division by zero or the log or sqrt of a negative number");
+      this.sink.error(
+        t.from,
+        t.to,
+        `param '${name}' is ${fmt(v)}`,
+        "check for a division by zero or the log or sqrt of a negative number",
+      );
       this.brokenNames.add(name);
       return;
     }
@@ -1029,7 +1098,11 @@ class Elaborator {
         return null;
       }
       if (!compatible(dim, t.dim)) {
-        this.sink.error(t.from, t.to, `this value is ${describeDim(t.dim)}, but the other values of the sweep are ${describeDim(dim)}`);
+        this.sink.error(
+          t.from,
+          t.to,
+          `this value is ${describeDim(t.dim)}, but the other values of the sweep are ${describeDim(dim)}`,
+        );
         return null;
       }
       if (t.dim.kind === "known" && dim.kind !== "known") {
@@ -1067,21 +1140,49 @@ class Elaborator {
             range.from,
             range.to,
             `reversed range: from ${fmt(a)} to ${fmt(b)} with step ${fmt(c)} never reaches ${fmt(b)}`,
-            c > 0 ? "swap from and to, or use a negative step to sweep downward" : "use a positive step to sweep upward",
+            c > 0
+              ? "swap from and to, or use a negative step to sweep downward"
+              : "use a positive step to sweep upward",
           );
         }
         const nValues = Math.floor(count + 1e-9) + 1;
         if (!(nValues <= this.limits.maxSweepValues)) {
-          return this.sink.error(tc.from, tc.to, `this sweep has ${fmt(nValues)} values, more than the limit of ${this.limits.maxSweepValues}`, "use a larger step");
+          return this.sink.error(
+            tc.from,
+            tc.to,
+            `this sweep has ${fmt(nValues)} values, more than the limit of ${this.limits.maxSweepValues}`,
+            "use a larger step",
+          );
         }
         for (let i = 0; i < nValues; i++) values.push(tidy(a + i * c));
       } else {
         log = pointsNode!.getChild("log") !== null;
-        if (!Number.isInteger(c) || c < 1) return this.sink.error(tc.from, tc.to, `the number of points must be a whole number of at least 1, not ${fmt(c)}`);
-        if (c > this.limits.maxSweepValues) return this.sink.error(tc.from, tc.to, `this sweep has ${c} points, more than the limit of ${this.limits.maxSweepValues}`);
-        if (c > 1 && a === b) return this.sink.error(range.from, range.to, `empty range: from and to are both ${fmt(a)}`, "give two different bounds, or use points 1");
+        if (!Number.isInteger(c) || c < 1)
+          return this.sink.error(
+            tc.from,
+            tc.to,
+            `the number of points must be a whole number of at least 1, not ${fmt(c)}`,
+          );
+        if (c > this.limits.maxSweepValues)
+          return this.sink.error(
+            tc.from,
+            tc.to,
+            `this sweep has ${c} points, more than the limit of ${this.limits.maxSweepValues}`,
+          );
+        if (c > 1 && a === b)
+          return this.sink.error(
+            range.from,
+            range.to,
+            `empty range: from and to are both ${fmt(a)}`,
+            "give two different bounds, or use points 1",
+          );
         if (log && !(a > 0 && b > 0)) {
-          return this.sink.error(range.from, range.to, `a log sweep needs positive bounds, not ${fmt(a)} and ${fmt(b)}`, "use linear spacing (drop 'log') for ranges through zero");
+          return this.sink.error(
+            range.from,
+            range.to,
+            `a log sweep needs positive bounds, not ${fmt(a)} and ${fmt(b)}`,
+            "use linear spacing (drop 'log') for ranges through zero",
+          );
         }
         for (let i = 0; i < c; i++) {
           const f = c === 1 ? 0 : i / (c - 1);
@@ -1090,8 +1191,14 @@ class Elaborator {
       }
     } else if (list) {
       const items = this.exprChildren(list);
-      if (items.length === 0) return this.sink.error(list.from, list.to, "empty list: a sweep needs at least one value");
-      if (items.length > this.limits.maxSweepValues) return this.sink.error(list.from, list.to, `this sweep has ${items.length} values, more than the limit of ${this.limits.maxSweepValues}`);
+      if (items.length === 0)
+        return this.sink.error(list.from, list.to, "empty list: a sweep needs at least one value");
+      if (items.length > this.limits.maxSweepValues)
+        return this.sink.error(
+          list.from,
+          list.to,
+          `this sweep has ${items.length} values, more than the limit of ${this.limits.maxSweepValues}`,
+        );
       for (const item of items) {
         const t = compile(item);
         if (!t) return;
@@ -1102,9 +1209,20 @@ class Elaborator {
     } else return;
     if (param === "temp") {
       for (const v of values)
-        if (!(v > 0)) return this.sink.error(span.from, span.to, `a temperature sweep needs positive kelvin values, but one is ${fmt(v)}`);
+        if (!(v > 0))
+          return this.sink.error(
+            span.from,
+            span.to,
+            `a temperature sweep needs positive kelvin values, but one is ${fmt(v)}`,
+          );
       const cold = values.find((v) => v < 150);
-      if (cold !== undefined) this.sink.warning(n.from, n.to, `temp reaches ${fmt(cold)} K: temperatures are in kelvin`, "room temperature is about 300K");
+      if (cold !== undefined)
+        this.sink.warning(
+          n.from,
+          n.to,
+          `temp reaches ${fmt(cold)} K: temperatures are in kelvin`,
+          "room temperature is about 300K",
+        );
     }
     this.pendingSweeps.push({ param, nameFrom: n.from, nameTo: n.to, values, log, span, dim, dimFrom, dimTo });
   }
@@ -1129,7 +1247,8 @@ class Elaborator {
       const node = this.exprChild(o);
       if (!node) continue;
       const dim = k === "avt" ? VOLT : DIMENSIONLESS;
-      const what = k === "avt" ? "avt is the Pelgrom coefficient in V·µm (write 3.5m for 3.5 mV·µm)" : `${k} is a plain number`;
+      const what =
+        k === "avt" ? "avt is the Pelgrom coefficient in V·µm (write 3.5m for 3.5 mV·µm)" : `${k} is a plain number`;
       const t = this.compileValue(node, [], dim, what);
       if (!t) {
         ok = false;
@@ -1149,7 +1268,12 @@ class Elaborator {
         this.sink.error(t.from, t.to, `seed must be a whole number of at least 0, not ${fmt(v)}`);
         ok = false;
       } else if (k === "avt" && !(v >= 0 && Number.isFinite(v))) {
-        this.sink.error(t.from, t.to, `avt must be a positive Pelgrom coefficient in V·µm, not ${fmt(v)}`, "for example avt 3.5m (3.5 mV·µm)");
+        this.sink.error(
+          t.from,
+          t.to,
+          `avt must be a positive Pelgrom coefficient in V·µm, not ${fmt(v)}`,
+          "for example avt 3.5m (3.5 mV·µm)",
+        );
         ok = false;
       }
       seen.set(k, v);
@@ -1159,11 +1283,21 @@ class Elaborator {
       ok = false;
     }
     if (!seen.has("avt") && ok) {
-      this.sink.error(kw.from, kw.to, "mismatch needs 'avt A', the Pelgrom coefficient in V·µm", "mismatch runs 100 seed 1 avt 3.5m");
+      this.sink.error(
+        kw.from,
+        kw.to,
+        "mismatch needs 'avt A', the Pelgrom coefficient in V·µm",
+        "mismatch runs 100 seed 1 avt 3.5m",
+      );
       ok = false;
     }
     if (!ok) return;
-    this.mismatch = { runs: seen.get("runs")!, seed: seen.get("seed") ?? 1, avt: seen.get("avt")!, span: { from: s.from, to: s.to } };
+    this.mismatch = {
+      runs: seen.get("runs")!,
+      seed: seen.get("seed") ?? 1,
+      avt: seen.get("avt")!,
+      span: { from: s.from, to: s.to },
+    };
   }
 
   // ---------------------------------------------------------------- compile
@@ -1205,7 +1339,12 @@ class Elaborator {
         return this.compileFor(s, loopVars);
       default: {
         const kw = s.firstChild!;
-        this.sink.error(kw.from, kw.to, `'${this.src(kw)}' belongs at the top level, not inside a for block`, "move it above the for statement");
+        this.sink.error(
+          kw.from,
+          kw.to,
+          `'${this.src(kw)}' belongs at the top level, not inside a for block`,
+          "move it above the for statement",
+        );
         return null;
       }
     }
@@ -1222,11 +1361,21 @@ class Elaborator {
     }
     let ok = this.checkValueName(variable, v.from, v.to, "loop variable");
     if (ok && loopVars.includes(variable)) {
-      this.sink.error(v.from, v.to, `loop variable '${variable}' is already used by an enclosing for`, "give the inner loop another variable");
+      this.sink.error(
+        v.from,
+        v.to,
+        `loop variable '${variable}' is already used by an enclosing for`,
+        "give the inner loop another variable",
+      );
       ok = false;
     }
     if (ok && (this.params.has(variable) || this.paramDecl.has(variable))) {
-      this.sink.error(v.from, v.to, `loop variable '${variable}' has the name of a param`, "give the loop another variable");
+      this.sink.error(
+        v.from,
+        v.to,
+        `loop variable '${variable}' has the name of a param`,
+        "give the loop another variable",
+      );
       ok = false;
     }
     const [a, b] = this.exprChildren(range);
@@ -1236,7 +1385,12 @@ class Elaborator {
       if (!t) return null;
       const sw = this.sweptDep(t);
       if (sw) {
-        this.sink.error(t.from, t.to, `this loop bound depends on '${sw}', which is swept`, "a sweep may not change the structure of the network: use a param that is not swept");
+        this.sink.error(
+          t.from,
+          t.to,
+          `this loop bound depends on '${sw}', which is swept`,
+          "a sweep may not change the structure of the network: use a param that is not swept",
+        );
         return null;
       }
       return t;
@@ -1281,7 +1435,8 @@ class Elaborator {
       if (!allowed.includes(key)) {
         let hint = suggest(key, allowed) ?? `${kind} pins: ${allowed.join(", ")}`;
         if (kind === "pfet" && key === "bulk") hint = "a pfet's bulk is its well: write well=NODE";
-        if (kind === "nfet" && key === "well") hint = "an nfet sits in the substrate; write bulk=NODE for a separate bulk";
+        if (kind === "nfet" && key === "well")
+          hint = "an nfet sits in the substrate; write bulk=NODE for a separate bulk";
         this.sink.error(keyNode.from, keyNode.to, `${kind} has no pin '${key}'`, hint);
         continue;
       }
@@ -1301,7 +1456,12 @@ class Elaborator {
       if (got.has(key)) continue;
       missing = true;
       if (kind === "pfet" && key === "well") {
-        this.sink.error(def.from, def.to, `pfet '${name}' has no well`, "add well=NODE: the n-well a pfet sits in, usually the positive rail");
+        this.sink.error(
+          def.from,
+          def.to,
+          `pfet '${name}' has no well`,
+          "add well=NODE: the n-well a pfet sits in, usually the positive rail",
+        );
       } else {
         const example = key === "value" ? "value=10n" : `${key}=NODE`;
         this.sink.error(def.from, def.to, `${kind} '${name}' has no ${key} pin`, `add ${example}`);
@@ -1327,13 +1487,27 @@ class Elaborator {
     const length = (key: "w" | "l"): ValueTpl | null => {
       const v = pins.get(key);
       if (!v) return null;
-      const t = this.compileValue(v, loopVars, "length", `${key} is a length in metres and takes no unit symbol (write 2u for 2 µm)`);
+      const t = this.compileValue(
+        v,
+        loopVars,
+        "length",
+        `${key} is a length in metres and takes no unit symbol (write 2u for 2 µm)`,
+      );
       if (!t) broken = true;
       return t;
     };
     const w = length("w");
     const l = length("l");
-    return { k: "device", type: kind === "pfet" ? PFET : NFET, at: s.from, name: name ?? this.fixedName(def), nodes, w, l, broken };
+    return {
+      k: "device",
+      type: kind === "pfet" ? PFET : NFET,
+      at: s.from,
+      name: name ?? this.fixedName(def),
+      nodes,
+      w,
+      l,
+      broken,
+    };
   }
 
   private compileInject(s: SyntaxNode, loopVars: string[]): InjectTpl | null {
@@ -1374,12 +1548,21 @@ class Elaborator {
           probeCall: (c) => {
             const kind = c.fn as "voltage" | "current";
             if (c.args.length !== 1) {
-              this.sink.error(c.fnFrom, c.fnTo, `${kind}() takes one ${kind === "voltage" ? "node" : "device, inject or rail"} name`);
+              this.sink.error(
+                c.fnFrom,
+                c.fnTo,
+                `${kind}() takes one ${kind === "voltage" ? "node" : "device, inject or rail"} name`,
+              );
               return null;
             }
             const a = c.args[0];
             if (a.k !== "name" && a.k !== "interp") {
-              this.sink.error(a.from, a.to, `${kind}() takes a name, not an expression`, kind === "voltage" ? "for example voltage(x3)" : "for example current(m1)");
+              this.sink.error(
+                a.from,
+                a.to,
+                `${kind}() takes a name, not an expression`,
+                kind === "voltage" ? "for example voltage(x3)" : "for example current(m1)",
+              );
               return null;
             }
             const t = this.nameTplOf(a, loopVars);
@@ -1406,13 +1589,23 @@ class Elaborator {
       tooDeep: (from, to) => {
         if (reported) return;
         reported = true;
-        this.sink.error(from, to, `this expression nests deeper than ${this.limits.maxExpressionDepth} levels`, "split it with params");
+        this.sink.error(
+          from,
+          to,
+          `this expression nests deeper than ${this.limits.maxExpressionDepth} levels`,
+          "split it with params",
+        );
       },
     });
   }
 
   private interpAsValue(i: InterpExpr): void {
-    this.sink.error(i.from, i.to, "a name with {…} pieces can only be a node, device or probe name", "in a probe, use it inside voltage() or current()");
+    this.sink.error(
+      i.from,
+      i.to,
+      "a name with {…} pieces can only be a node, device or probe name",
+      "in a probe, use it inside voltage() or current()",
+    );
   }
 
   /** The dimension of a plain name in an expression, or null after reporting it. */
@@ -1425,7 +1618,12 @@ class Elaborator {
       const setting = name === "ut" || name === "temp" ? "temp" : name === "kappa" ? "kappa" : null;
       const set = setting ? this.setDecl.get(setting) : undefined;
       if (set && n.from < set.to) {
-        this.sink.error(n.from, n.to, `${name} is used before 'set ${setting}' on line ${this.line(set.from)}`, `move 'set ${setting}' above the first use of ${name}`);
+        this.sink.error(
+          n.from,
+          n.to,
+          `${name} is used before 'set ${setting}' on line ${this.line(set.from)}`,
+          `move 'set ${setting}' above the first use of ${name}`,
+        );
         return null;
       }
       return BUILTINS[name];
@@ -1433,21 +1631,41 @@ class Elaborator {
     if (this.brokenNames.has(name)) return null;
     const later = this.laterParam(name);
     if (later !== undefined) {
-      this.sink.error(n.from, n.to, `param '${name}' is used before it is defined (line ${this.line(later)})`, "move the param statement above this line");
+      this.sink.error(
+        n.from,
+        n.to,
+        `param '${name}' is used before it is defined (line ${this.line(later)})`,
+        "move the param statement above this line",
+      );
       return null;
     }
     if ((SETTINGS as readonly string[]).includes(name)) {
-      this.sink.error(n.from, n.to, `the setting '${name}' cannot be used in an expression`, "expressions may use params, loop variables, ut, kappa and temp");
+      this.sink.error(
+        n.from,
+        n.to,
+        `the setting '${name}' cannot be used in an expression`,
+        "expressions may use params, loop variables, ut, kappa and temp",
+      );
       return null;
     }
     const isDev = this.devHas(name, null);
     if (this.findNode(name) !== undefined || isDev || this.injIndex.has(name)) {
       const what = isDev ? "a device" : this.injIndex.has(name) ? "an inject" : "a node";
-      this.sink.error(n.from, n.to, `'${name}' is ${what}, not a value`, isDev || this.injIndex.has(name) ? `in a probe, use current(${name})` : `in a probe, use voltage(${name})`);
+      this.sink.error(
+        n.from,
+        n.to,
+        `'${name}' is ${what}, not a value`,
+        isDev || this.injIndex.has(name) ? `in a probe, use current(${name})` : `in a probe, use voltage(${name})`,
+      );
       return null;
     }
     const candidates = [...loopVars, ...this.params.keys(), ...Object.keys(BUILTINS)];
-    this.sink.error(n.from, n.to, `unknown name '${name}'`, suggest(name, candidates) ?? "declare it with param NAME = VALUE above this line");
+    this.sink.error(
+      n.from,
+      n.to,
+      `unknown name '${name}'`,
+      suggest(name, candidates) ?? "declare it with param NAME = VALUE above this line",
+    );
     return null;
   }
 
@@ -1488,13 +1706,23 @@ class Elaborator {
    * ("length": no unit symbol at all; null: anything). Returns null after
    * reporting an error.
    */
-  private compileValue(node: SyntaxNode, loopVars: string[], expect: Dim | "length" | null, what: string): ValueTpl | null {
+  private compileValue(
+    node: SyntaxNode,
+    loopVars: string[],
+    expect: Dim | "length" | null,
+    what: string,
+  ): ValueTpl | null {
     const e = this.build(node);
     if (isBad(e)) return null;
     const dim = inferDim(e, {
       name: (n) => this.nameDim(n, loopVars),
       probeCall: (c) => {
-        this.sink.error(c.fnFrom, c.fnTo, `${c.fn}() can only be used in a probe`, "probe NAME = EXPR reads voltages and currents of the solved network");
+        this.sink.error(
+          c.fnFrom,
+          c.fnTo,
+          `${c.fn}() can only be used in a probe`,
+          "probe NAME = EXPR reads voltages and currents of the solved network",
+        );
         return null;
       },
       interp: (i) => this.interpAsValue(i),
@@ -1562,7 +1790,12 @@ class Elaborator {
 
   /** A name (Definition, Identifier or InterpolatedName node) as a template. */
   private compileName(node: SyntaxNode, loopVars: string[]): NameTpl | null {
-    const inner = node.type.id === T.Definition ? (node.getChild("InterpolatedName") ?? null) : node.type.id === T.InterpolatedName ? node : null;
+    const inner =
+      node.type.id === T.Definition
+        ? (node.getChild("InterpolatedName") ?? null)
+        : node.type.id === T.InterpolatedName
+          ? node
+          : null;
     if (!inner) return fixedTpl(node.from, node.to, this.src(node));
     const e = this.build(inner);
     if (e.k !== "interp" || isBad(e)) return null;
@@ -1614,7 +1847,12 @@ class Elaborator {
       };
       const sw = this.sweptDep(value);
       if (sw) {
-        this.sink.error(p.from, p.to, `this name depends on '${sw}', which is swept`, "a sweep may not change the structure of the network: use a param that is not swept");
+        this.sink.error(
+          p.from,
+          p.to,
+          `this name depends on '${sw}', which is swept`,
+          "a sweep may not change the structure of the network: use a param that is not swept",
+        );
         ok = false;
         continue;
       }
@@ -1650,13 +1888,25 @@ class Elaborator {
       else if (this.params.has(name) || this.laterParam(name) !== undefined) what = "a param";
       else if (name in BUILTINS && !this.reservedRails.has(name)) what = "a built-in value";
       if (what) {
-        this.sink.error(node.from, node.to, `${key}= names a node, but '${name}' is ${what}`, what === "a loop variable" ? `write a node name such as x{${name}}` : `to hold a node at a fixed voltage, declare it: rail ${name}_node = ${name}`);
+        this.sink.error(
+          node.from,
+          node.to,
+          `${key}= names a node, but '${name}' is ${what}`,
+          what === "a loop variable"
+            ? `write a node name such as x{${name}}`
+            : `to hold a node at a fixed voltage, declare it: rail ${name}_node = ${name}`,
+        );
         return null;
       }
       return fixedTpl(node.from, node.to, name);
     }
     if (node.type.id === T.InterpolatedName) return this.compileName(node, loopVars);
-    this.sink.error(node.from, node.to, `${key}= names a node, not a value`, "to hold a node at a fixed voltage, declare a rail: rail vg = 0.5 and write gate=vg");
+    this.sink.error(
+      node.from,
+      node.to,
+      `${key}= names a node, not a value`,
+      "to hold a node at a fixed voltage, declare a rail: rail vg = 0.5 and write gate=vg",
+    );
     return null;
   }
 
@@ -1664,7 +1914,8 @@ class Elaborator {
 
   private exec(tpls: Tpl[]): void {
     for (const t of tpls) {
-      if (++this.work > this.limits.maxWork) this.overflow(t, `more than ${this.limits.maxWork.toLocaleString("en-US")} statements to run (the limit)`);
+      if (++this.work > this.limits.maxWork)
+        this.overflow(t, `more than ${this.limits.maxWork.toLocaleString("en-US")} statements to run (the limit)`);
       switch (t.k) {
         case "device":
           this.execDevice(t);
@@ -1688,7 +1939,12 @@ class Elaborator {
   private overflow(t: { at: number } | { from: number; to: number }, what: string): never {
     const span = this.outerFor ?? ("at" in t ? { from: t.at, to: t.at } : t);
     const to = this.outerFor ? Math.min(span.to, this.lines.lineEnd(span.from)) : this.lines.lineEnd(span.from);
-    this.sink.error(span.from, to, `${this.outerFor ? "this loop makes" : "this makes"} ${what}`, "reduce the loop ranges or split the network");
+    this.sink.error(
+      span.from,
+      to,
+      `${this.outerFor ? "this loop makes" : "this makes"} ${what}`,
+      "reduce the loop ranges or split the network",
+    );
     throw new Aborted();
   }
 
@@ -1758,14 +2014,27 @@ class Elaborator {
   private execFor(t: ForTpl): void {
     const a = this.valueOf(t.first!);
     const b = this.valueOf(t.last!);
-    for (const [v, s] of [[a, t.first!], [b, t.last!]] as const) {
+    for (const [v, s] of [
+      [a, t.first!],
+      [b, t.last!],
+    ] as const) {
       if (!Number.isSafeInteger(v)) {
-        this.sink.error(s.from, s.to, `a loop bound must be a whole number, but this is ${fmt(v)}`, "use round(), floor() or ceil()");
+        this.sink.error(
+          s.from,
+          s.to,
+          `a loop bound must be a whole number, but this is ${fmt(v)}`,
+          "use round(), floor() or ceil()",
+        );
         return this.suppressTpl(t.body);
       }
     }
     if (b < a) {
-      this.sink.error(t.rangeFrom, t.rangeTo, `reversed range ${a}..${b}: a range runs upward and includes both ends`, `write ${b}..${a}`);
+      this.sink.error(
+        t.rangeFrom,
+        t.rangeTo,
+        `reversed range ${a}..${b}: a range runs upward and includes both ends`,
+        `write ${b}..${a}`,
+      );
       return this.suppressTpl(t.body);
     }
     const count = b - a + 1;
@@ -1806,7 +2075,12 @@ class Elaborator {
       }
       const v = p.slot >= 0 ? this.loopValues[p.slot] + p.offset : this.valueOf(p.value);
       if (!Number.isSafeInteger(v) || v < 0) {
-        this.sink.error(p.value.from, p.value.to, `a name piece must be a whole number of at least 0, but this one is ${fmt(v)}`, "check the loop range: x{k-1} at k = 0 gives -1");
+        this.sink.error(
+          p.value.from,
+          p.value.to,
+          `a name piece must be a whole number of at least 0, but this one is ${fmt(v)}`,
+          "check the loop range: x{k-1} at k = 0 gives -1",
+        );
         return null;
       }
       s += v;
@@ -1955,7 +2229,8 @@ class Elaborator {
     if (shape !== null) {
       if (!this.nodeShapeSet.has(shape)) this.registerNodeShape(shape);
       if (shape.node) shape.node.complete = false;
-      for (const o of this.nodeShapes) if (o !== shape && o.node && mayShareName([name], o.lits)) o.node.complete = false;
+      for (const o of this.nodeShapes)
+        if (o !== shape && o.node && mayShareName([name], o.lits)) o.node.complete = false;
       return;
     }
     for (const o of this.nodeShapes) if (o.node && mayShareName([name], o.lits)) o.node.complete = false;
@@ -1994,7 +2269,12 @@ class Elaborator {
   private clash(kind: string, name: string, t: { from: number; to: number }, other: string): void {
     const at = other === "a device" ? this.devDeclAt(name) : this.declAt.get(name);
     const where = at !== undefined ? ` (first on line ${this.line(at)})` : "";
-    this.sink.error(t.from, t.to, `${kind} name '${name}' is already ${other}${where}`, "every name means one thing: rename one of them");
+    this.sink.error(
+      t.from,
+      t.to,
+      `${kind} name '${name}' is already ${other}${where}`,
+      "every name means one thing: rename one of them",
+    );
   }
 
   private suppressRefs(refs: (NameTpl | null)[]): void {
@@ -2016,7 +2296,12 @@ class Elaborator {
       return NaN;
     }
     if (v > 1e-3 || v < 1e-9) {
-      this.sink.warning(t.from, t.to, `${key} is ${fmt(v)} m, outside 1 nm to 1 mm: lengths are in metres`, `write ${key}=2u for 2 µm`);
+      this.sink.warning(
+        t.from,
+        t.to,
+        `${key} is ${fmt(v)} m, outside 1 nm to 1 mm: lengths are in metres`,
+        `write ${key}=2u for 2 µm`,
+      );
     }
     return v;
   }
@@ -2098,7 +2383,8 @@ class Elaborator {
     let first: number | undefined;
     if (index !== null) {
       const hit = index.get(a, bb);
-      first = hit >= 0 ? hit : index.complete ? undefined : this.devs.full().get((name = shapeName(shape!.lits, a, bb)));
+      first =
+        hit >= 0 ? hit : index.complete ? undefined : this.devs.full().get((name = shapeName(shape!.lits, a, bb)));
     } else first = this.devs.full().get(name!);
     if (first !== undefined) {
       this.suppressRefs(t.nodes);
@@ -2158,8 +2444,15 @@ class Elaborator {
       this.suppressRefs([t.from, t.to]);
       return this.clash("inject", name, t.name, other);
     }
-    if (f === to) this.sink.warning(t.to!.from, t.to!.to, `inject '${name}' goes from node '${this.nodeNames.at(f)}' to itself`, "its current has no effect");
-    if (this.injNames.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} injects (the limit)`);
+    if (f === to)
+      this.sink.warning(
+        t.to!.from,
+        t.to!.to,
+        `inject '${name}' goes from node '${this.nodeNames.at(f)}' to itself`,
+        "its current has no effect",
+      );
+    if (this.injNames.length >= this.limits.maxElements)
+      this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} injects (the limit)`);
     const i = this.injNames.length;
     this.injNames.push(name);
     this.injIndex.set(name, i);
@@ -2186,7 +2479,8 @@ class Elaborator {
     }
     const other = this.otherKind(name, "a rail");
     if (other) return this.clash("rail", name, t.name, other);
-    if (this.rails.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} rails (the limit)`);
+    if (this.rails.length >= this.limits.maxElements)
+      this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} rails (the limit)`);
     const i = this.nodeOf(t.name);
     if (i < 0) return;
     if (!Number.isFinite(v)) {
@@ -2207,7 +2501,8 @@ class Elaborator {
     if (first !== undefined) return this.duplicate("probe", name, t.name, first);
     const other = this.otherKind(name, "a probe");
     if (other) return this.clash("probe", name, t.name, other);
-    if (this.pendingProbes.length >= this.limits.maxElements) this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} probes (the limit)`);
+    if (this.pendingProbes.length >= this.limits.maxElements)
+      this.overflow(t, `more than ${this.limits.maxElements.toLocaleString("en-US")} probes (the limit)`);
     const args: PendingProbe["args"] = [];
     for (const a of t.args) {
       const n = this.nameOf(a.name);
@@ -2233,8 +2528,16 @@ class Elaborator {
     this.checkSweeps();
     if (this.settings.model === "ekv") {
       const at = this.settingAt.get("model")!;
-      const missing = [this.settings.vt0 === null ? "vt0" : null, this.settings.ispec === null ? "ispec" : null].filter(Boolean);
-      if (missing.length) this.sink.error(at.from, this.lines.lineEnd(at.from), `set model = ekv needs ${missing.join(" and ")}`, "for example set vt0 = 450m and set ispec = 100n");
+      const missing = [this.settings.vt0 === null ? "vt0" : null, this.settings.ispec === null ? "ispec" : null].filter(
+        Boolean,
+      );
+      if (missing.length)
+        this.sink.error(
+          at.from,
+          this.lines.lineEnd(at.from),
+          `set model = ekv needs ${missing.join(" and ")}`,
+          "for example set vt0 = 450m and set ispec = 100n",
+        );
     }
     // One namespace: an internal node may not share its name with anything else.
     // A node made through a shape no device name can match needs no device look-up;
@@ -2250,15 +2553,20 @@ class Elaborator {
       if (sh >= 0 && devCheck[sh] < 0) devCheck[sh] = this.mayBeDeviceName(this.shapeList[sh].lits) ? 1 : 0;
       // The string only when some check below reads it.
       const name = sh < 0 || devCheck[sh] === 1 || !injMark || !probeMark ? this.nodeNames.at(i)! : "";
-      const other =
-        (sh < 0 ? this.devHas(name, null) : devCheck[sh] === 1 && this.devs.full().has(name))
-          ? "a device"
-          : (injMark ? injMark[i] === 1 : this.injIndex.has(name))
-            ? "an inject"
-            : (probeMark ? probeMark[i] === 1 : this.probeNames.has(name))
-              ? "a probe"
-              : null;
-      if (other) this.sink.error(this.nodeFrom.data[i], this.nodeTo.data[i], `node name '${name || this.nodeNames.at(i)}' is already ${other}`, "every name means one thing: rename one of them");
+      const other = (sh < 0 ? this.devHas(name, null) : devCheck[sh] === 1 && this.devs.full().has(name))
+        ? "a device"
+        : (injMark ? injMark[i] === 1 : this.injIndex.has(name))
+          ? "an inject"
+          : (probeMark ? probeMark[i] === 1 : this.probeNames.has(name))
+            ? "a probe"
+            : null;
+      if (other)
+        this.sink.error(
+          this.nodeFrom.data[i],
+          this.nodeTo.data[i],
+          `node name '${name || this.nodeNames.at(i)}' is already ${other}`,
+          "every name means one thing: rename one of them",
+        );
     }
     this.connectivity();
   }
@@ -2291,7 +2599,11 @@ class Elaborator {
     let points = 1;
     for (const s of this.pendingSweeps) {
       if (seen.has(s.param)) {
-        this.sink.error(s.nameFrom, s.nameTo, `'${s.param}' is swept twice (first on line ${this.line(seen.get(s.param)!)})`);
+        this.sink.error(
+          s.nameFrom,
+          s.nameTo,
+          `'${s.param}' is swept twice (first on line ${this.line(seen.get(s.param)!)})`,
+        );
         continue;
       }
       seen.set(s.param, s.span.from);
@@ -2303,12 +2615,19 @@ class Elaborator {
             s.param === "kappa" || s.param === "ut"
               ? `only params and temp can be swept: write param k = 0.7, set kappa = k, and sweep k`
               : (suggest(s.param, this.params.keys()) ?? "declare it with param NAME = VALUE");
-          const what = s.param === "kappa" || s.param === "ut" ? `'${s.param}' cannot be swept directly` : `sweep of unknown param '${s.param}'`;
+          const what =
+            s.param === "kappa" || s.param === "ut"
+              ? `'${s.param}' cannot be swept directly`
+              : `sweep of unknown param '${s.param}'`;
           this.sink.error(s.nameFrom, s.nameTo, what, hint);
           continue;
         }
         if (!compatible(p.dim, s.dim)) {
-          this.sink.error(s.dimFrom, s.dimTo, `the sweep values are ${describeDim(s.dim)}, but '${s.param}' is ${describeDim(p.dim)}`);
+          this.sink.error(
+            s.dimFrom,
+            s.dimTo,
+            `the sweep values are ${describeDim(s.dim)}, but '${s.param}' is ${describeDim(p.dim)}`,
+          );
           continue;
         }
       } else if (!compatible(KELVIN, s.dim)) {
@@ -2320,7 +2639,12 @@ class Elaborator {
     const runs = this.mismatch?.runs ?? 1;
     if (this.pendingSweeps.length && points * runs > this.limits.maxPoints) {
       const s = this.pendingSweeps[0];
-      this.sink.error(s.span.from, this.lines.lineEnd(s.span.from), `the sweeps make ${(points * runs).toLocaleString("en-US")} solves${runs > 1 ? " with the mismatch runs" : ""}, more than the limit of ${this.limits.maxPoints.toLocaleString("en-US")}`, "use fewer sweep points or mismatch runs");
+      this.sink.error(
+        s.span.from,
+        this.lines.lineEnd(s.span.from),
+        `the sweeps make ${(points * runs).toLocaleString("en-US")} solves${runs > 1 ? " with the mismatch runs" : ""}, more than the limit of ${this.limits.maxPoints.toLocaleString("en-US")}`,
+        "use fewer sweep points or mismatch runs",
+      );
     }
   }
 
@@ -2342,12 +2666,22 @@ class Elaborator {
     for (const i of r.floating) {
       if (this.suppressed.has(i)) continue;
       const [f, t] = at(i);
-      this.sink.error(f, t, `node '${this.nodeNames.at(i)}' has no DC path to any rail`, "connect it through a device channel (source or drain) to a rail; gates and injects carry no DC current");
+      this.sink.error(
+        f,
+        t,
+        `node '${this.nodeNames.at(i)}' has no DC path to any rail`,
+        "connect it through a device channel (source or drain) to a rail; gates and injects carry no DC current",
+      );
     }
     for (const i of r.single) {
       if (this.suppressed.has(i)) continue;
       const [f, t] = at(i);
-      this.sink.warning(f, t, `node '${this.nodeNames.at(i)}' is touched by only one terminal`, "a node joins at least two terminals: check the spelling of its name");
+      this.sink.warning(
+        f,
+        t,
+        `node '${this.nodeNames.at(i)}' is touched by only one terminal`,
+        "a node joins at least two terminals: check the spelling of its name",
+      );
     }
     for (const i of r.unusedRails) {
       if (this.suppressed.has(i)) continue;
@@ -2379,7 +2713,12 @@ class Elaborator {
       const affected = net.bindings.filter((b) => b.dependsOn.some((d) => deps.includes(d)));
       if ((affected.length + net.params.length) * s.values.length > budget) continue;
       const at = (v: number, what: string) =>
-        this.sink.error(s.span.from, this.lines.lineEnd(s.span.from), `at ${s.param} = ${fmt(v)}, ${what}`, "narrow the sweep range");
+        this.sink.error(
+          s.span.from,
+          this.lines.lineEnd(s.span.from),
+          `at ${s.param} = ${fmt(v)}, ${what}`,
+          "narrow the sweep range",
+        );
       check: for (const v of s.values) {
         const scope = pointScope(net, { [s.param]: v });
         for (const p of net.params) {
@@ -2397,7 +2736,8 @@ class Elaborator {
           const x = b.evaluate(scope);
           let bad: string | null = null;
           if (t.kind === "w" || t.kind === "l") {
-            if (!(x > 0 && Number.isFinite(x))) bad = `${t.kind} of device '${net.devices.names[t.index]}' is ${fmt(x)}; a length must be positive`;
+            if (!(x > 0 && Number.isFinite(x)))
+              bad = `${t.kind} of device '${net.devices.names[t.index]}' is ${fmt(x)}; a length must be positive`;
           } else if (t.kind === "rail") {
             if (!Number.isFinite(x)) bad = `rail '${net.nodes.names[t.node]}' is ${fmt(x)}`;
           } else if (t.kind === "inject") {
@@ -2505,7 +2845,15 @@ class Elaborator {
         const values = loopValues.slice();
         for (let i = 0; i < kinds.length; i++) {
           const j = index[i];
-          values.push(kinds[i] === 0 ? ctx.voltage(j) : kinds[i] === 1 ? ctx.deviceCurrent(j) : kinds[i] === 2 ? ctx.injectCurrent(j) : ctx.railCurrent(j));
+          values.push(
+            kinds[i] === 0
+              ? ctx.voltage(j)
+              : kinds[i] === 1
+                ? ctx.deviceCurrent(j)
+                : kinds[i] === 2
+                  ? ctx.injectCurrent(j)
+                  : ctx.railCurrent(j),
+          );
         }
         return evaluateNumber(fn, new LayeredScope(lastScope, names, values));
       },
@@ -2520,18 +2868,34 @@ class Elaborator {
         if (a.kind === "voltage") {
           if (this.findNode(a.name) !== undefined) continue;
           const isDev = this.devHas(a.name, null);
-          const hint = isDev || this.injIndex.has(a.name) ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})` : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames.all() : []);
+          const hint =
+            isDev || this.injIndex.has(a.name)
+              ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})`
+              : suggest(a.name, this.nodeNames.length < 5000 ? this.nodeNames.all() : []);
           this.sink.error(a.from, a.to, `voltage() of unknown node '${a.name}'`, hint);
         } else {
           if (this.devHas(a.name, null) || this.injIndex.has(a.name)) continue;
           const node = this.findNode(a.name);
           if (node !== undefined && this.isRail.data[node]) continue;
           if (node !== undefined) {
-            this.sink.error(a.from, a.to, `current() needs a device, an inject or a rail, but '${a.name}' is an internal node`, `to read its voltage use voltage(${a.name})`);
+            this.sink.error(
+              a.from,
+              a.to,
+              `current() needs a device, an inject or a rail, but '${a.name}' is an internal node`,
+              `to read its voltage use voltage(${a.name})`,
+            );
             continue;
           }
-          const cands = this.devNames.length < 5000 ? [...this.devNames.all(), ...this.injNames, ...this.rails.map((r) => r.name)] : [];
-          this.sink.error(a.from, a.to, `current() of unknown device, inject or rail '${a.name}'`, suggest(a.name, cands));
+          const cands =
+            this.devNames.length < 5000
+              ? [...this.devNames.all(), ...this.injNames, ...this.rails.map((r) => r.name)]
+              : [];
+          this.sink.error(
+            a.from,
+            a.to,
+            `current() of unknown device, inject or rail '${a.name}'`,
+            suggest(a.name, cands),
+          );
         }
       }
     }
@@ -2539,10 +2903,19 @@ class Elaborator {
 }
 
 /** The result for a text longer than the limit: one error at 1:1, nothing parsed. */
-export function tooLargeResult(size: number, unit: "characters" | "bytes", limit = DEFAULT_LIMITS.maxSourceLength): ElaborationResult {
+export function tooLargeResult(
+  size: number,
+  unit: "characters" | "bytes",
+  limit = DEFAULT_LIMITS.maxSourceLength,
+): ElaborationResult {
   const sink = new DiagnosticSink("", 1);
   const mb = limit / (1024 * 1024);
-  sink.error(0, 0, `the file is too large: ${size.toLocaleString("en-US")} ${unit}, the limit is ${mb.toLocaleString("en-US")} MB`, "use for loops instead of writing every device out");
+  sink.error(
+    0,
+    0,
+    `the file is too large: ${size.toLocaleString("en-US")} ${unit}, the limit is ${mb.toLocaleString("en-US")} MB`,
+    "use for loops instead of writing every device out",
+  );
   return { network: null, diagnostics: sink.finish(), ok: false, name: null };
 }
 

@@ -75,7 +75,7 @@ export interface BadExpr extends Base {
 }
 export type Expr = NumExpr | NameExpr | InterpExpr | UnaryExpr | BinaryExpr | CallExpr | BadExpr;
 
-const PREFIX: Record<string, number> = { f: -15, p: -12, n: -9, u: -6, "µ": -6, m: -3, k: 3, M: 6, G: 9 };
+const PREFIX: Record<string, number> = { f: -15, p: -12, n: -9, u: -6, µ: -6, m: -3, k: 3, M: 6, G: 9 };
 const NUMBER = /^((?:\d+(?:\.\d+)?|\.\d+))(?:[eE]([+-]?\d+))?([fpnuµmkMG])?([VAK])?$/;
 
 /** Value and unit symbol of a number literal such as `450mV`, `1e-15`, `2u`; null if malformed. */
@@ -446,7 +446,11 @@ export function inferDim(e: Expr, ctx: DimContext): Dim | null {
       }
       if (e.args.length < f.min || e.args.length > f.max) {
         const want = f.min === f.max ? `${f.min}` : f.max > 8 ? `at least ${f.min}` : `${f.min} or ${f.max}`;
-        ctx.report(e.fnFrom, e.fnTo, `${e.fn}() takes ${want} argument${want === "1" ? "" : "s"}, not ${e.args.length}`);
+        ctx.report(
+          e.fnFrom,
+          e.fnTo,
+          `${e.fn}() takes ${want} argument${want === "1" ? "" : "s"}, not ${e.args.length}`,
+        );
         return null;
       }
       const dims: Dim[] = [];
@@ -557,8 +561,15 @@ function binaryNode(e: BinaryExpr, placeholder?: (c: CallExpr) => string): MathN
   let l = args[0];
   for (let start = 1; start < n; start += FOLD_CHUNK) {
     const end = Math.min(n, start + FOLD_CHUNK);
-    const ops = e.ops.slice(start - 1, end - 1).map((o) => o.op).join("");
-    l = new math.FunctionNode(new math.SymbolNode("__runnelFoldLeft"), [new math.ConstantNode(ops), l, ...args.slice(start, end)]);
+    const ops = e.ops
+      .slice(start - 1, end - 1)
+      .map((o) => o.op)
+      .join("");
+    l = new math.FunctionNode(new math.SymbolNode("__runnelFoldLeft"), [
+      new math.ConstantNode(ops),
+      l,
+      ...args.slice(start, end),
+    ]);
   }
   return l;
 }

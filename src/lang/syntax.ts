@@ -151,7 +151,8 @@ function explain(err: SyntaxNode, text: string): Explained {
     case "ProbeStatement":
     case "SetStatement":
       if (prevName && NAMED_KEYWORDS.has(prevName)) return expected(`a name after '${prevName}'`);
-      if (prevName === "set") return expected("a setting name after 'set'", "settings: kappa, temp, i0, vt0, ispec, model");
+      if (prevName === "set")
+        return expected("a setting name after 'set'", "settings: kappa, temp, i0, vt0, ispec, model");
       if (prevName === "Definition" || prevName === "SettingName") return expected(`'=' after '${prevText}'`);
       if (prevName === "=") return expected("a value after '='");
       if (afterValue) return at(`unexpected ${tok.found} after the value`, valueHint);
@@ -161,8 +162,15 @@ function explain(err: SyntaxNode, text: string): Explained {
       if (prevName && NAMED_KEYWORDS.has(prevName)) return expected(`a name after '${prevName}'`);
       const kind = parent?.firstChild?.name ?? "nfet";
       const pins =
-        kind === "inject" ? "from, to, value" : kind === "pfet" ? "gate, source, drain, well, w, l" : "gate, source, drain, bulk, w, l";
-      return expected(`a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`, `${kind} pins: ${pins}, written key=value`);
+        kind === "inject"
+          ? "from, to, value"
+          : kind === "pfet"
+            ? "gate, source, drain, well, w, l"
+            : "gate, source, drain, bulk, w, l";
+      return expected(
+        `a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`,
+        `${kind} pins: ${pins}, written key=value`,
+      );
     }
     case "Pin":
       if (prevName === "PinName") return expected(`'=' after the pin name '${prevText}'`);
@@ -172,7 +180,10 @@ function explain(err: SyntaxNode, text: string): Explained {
       }
       if (afterValue) {
         const kind = parent?.parent?.firstChild?.name ?? "nfet";
-        return expected(`a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`, "pins are written key=value and separated by spaces");
+        return expected(
+          `a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`,
+          "pins are written key=value and separated by spaces",
+        );
       }
       break;
     case "ForStatement":
@@ -265,7 +276,12 @@ export function reportSyntaxErrors(
       seenLines.add(line);
       const deep = tooDeepAt(n.node, maxDepth);
       const e: Explained = deep
-        ? { from: deep.from, to: deep.to, message: `this expression nests deeper than ${maxDepth} levels`, hint: "split it with params" }
+        ? {
+            from: deep.from,
+            to: deep.to,
+            message: `this expression nests deeper than ${maxDepth} levels`,
+            hint: "split it with params",
+          }
         : explain(n.node, text);
       sink.error(e.from, e.to, e.message, e.hint);
       count++;

@@ -12,10 +12,7 @@
  *   `1e-9*voltage(x)` may be a current).
  * - `unknown`: nothing can be said (e.g. `x ^ y` with a non-constant y); never an error.
  */
-export type Dim =
-  | { kind: "unknown" }
-  | { kind: "loose" }
-  | { kind: "known"; v: number; a: number; k: number };
+export type Dim = { kind: "unknown" } | { kind: "loose" } | { kind: "known"; v: number; a: number; k: number };
 
 export const UNKNOWN: Dim = { kind: "unknown" };
 export const LOOSE: Dim = { kind: "loose" };
@@ -75,7 +72,9 @@ export function powDim(x: Dim, e: number): Dim {
   if (x.kind !== "known") return x.kind === "loose" ? LOOSE : UNKNOWN;
   if (isDimensionless(x)) return DIMENSIONLESS;
   if (!Number.isFinite(e)) return UNKNOWN;
-  const v = x.v * e, a = x.a * e, k = x.k * e;
+  const v = x.v * e,
+    a = x.a * e,
+    k = x.k * e;
   if (!Number.isInteger(v) || !Number.isInteger(a) || !Number.isInteger(k)) return UNKNOWN;
   return known(v, a, k);
 }
@@ -90,7 +89,11 @@ export function formatDim(d: Dim): string {
   if (isDimensionless(d)) return "dimensionless";
   const num: string[] = [];
   const den: string[] = [];
-  for (const [s, n] of [["V", d.v], ["A", d.a], ["K", d.k]] as const) {
+  for (const [s, n] of [
+    ["V", d.v],
+    ["A", d.a],
+    ["K", d.k],
+  ] as const) {
     if (n > 0) num.push(power(s, n));
     else if (n < 0) den.push(power(s, -n));
   }

@@ -60,9 +60,7 @@ export interface InjectPins {
 }
 
 export type SweepSpec =
-  | number[]
-  | { from: number; to: number; step: number }
-  | { from: number; to: number; points: number; log?: boolean };
+  number[] | { from: number; to: number; step: number } | { from: number; to: number; points: number; log?: boolean };
 
 export type ProbeFn = (ctx: ProbeContext, params: Readonly<Record<string, number>>, settings: Settings) => number;
 
@@ -101,7 +99,15 @@ interface PendingBinding {
 
 export class NetworkBuilder {
   private name: string | null;
-  private settings: Settings = { kappa: 0.7, temp: 300, ut: thermalVoltage(300), i0: 1e-15, vt0: null, ispec: null, model: "weak" };
+  private settings: Settings = {
+    kappa: 0.7,
+    temp: 300,
+    ut: thermalVoltage(300),
+    i0: 1e-15,
+    vt0: null,
+    ispec: null,
+    model: "weak",
+  };
   private settingBindings: PendingBinding[] = [];
   private params: ParamDef[] = [];
   private paramIndex = new Map<string, number>();
@@ -232,13 +238,15 @@ export class NetworkBuilder {
     let log = false;
     if (Array.isArray(spec)) values = spec.slice();
     else if ("step" in spec) {
-      if (!(spec.step !== 0) || Math.sign(spec.to - spec.from) * Math.sign(spec.step) < 0) throw new Error(`sweep ${param}: step does not reach 'to'`);
+      if (!(spec.step !== 0) || Math.sign(spec.to - spec.from) * Math.sign(spec.step) < 0)
+        throw new Error(`sweep ${param}: step does not reach 'to'`);
       const count = Math.floor((spec.to - spec.from) / spec.step + 1e-9) + 1;
       values = Array.from({ length: count }, (_, k) => spec.from + k * spec.step);
     } else {
       const { from, to, points } = spec;
       log = spec.log === true;
-      if (!(points >= 1) || !Number.isInteger(points)) throw new Error(`sweep ${param}: points must be a positive integer`);
+      if (!(points >= 1) || !Number.isInteger(points))
+        throw new Error(`sweep ${param}: points must be a positive integer`);
       if (log && !(from > 0 && to > 0)) throw new Error(`sweep ${param}: a log sweep needs positive ends`);
       values = Array.from({ length: points }, (_, k) => {
         const f = points === 1 ? 0 : k / (points - 1);
@@ -267,7 +275,11 @@ export class NetworkBuilder {
       name: this.name,
       settings: { ...this.settings },
       params: paramsNow,
-      nodes: { names: this.nodeNames.slice(), index: new Map(this.nodeIndex), railValue: this.railValue.finish().subarray(0, nodeCount) },
+      nodes: {
+        names: this.nodeNames.slice(),
+        index: new Map(this.nodeIndex),
+        railValue: this.railValue.finish().subarray(0, nodeCount),
+      },
       rails: this.rails.map((r) => ({ name: r.name, node: r.node, span: NO_SPAN })),
       devices: {
         count: this.devNames.length,
@@ -349,7 +361,8 @@ export class NetworkBuilder {
   /** The value now (NaN placeholder for a bound value, filled in by build()). */
   private valueNow(v: Value, target: BindingTarget, what: string): number {
     if (typeof v === "number") return this.finite(v, what);
-    if (typeof v === "string" && !this.paramIndex.has(v) && v !== "temp" && v !== "ut" && v !== "kappa") throw new Error(`${what}: no param '${v}'`);
+    if (typeof v === "string" && !this.paramIndex.has(v) && v !== "temp" && v !== "ut" && v !== "kappa")
+      throw new Error(`${what}: no param '${v}'`);
     this.pending.push({ target, value: v });
     return typeof v === "string" && this.paramIndex.has(v) ? this.params[this.paramIndex.get(v) as number].value : 1;
   }

@@ -99,7 +99,15 @@ export function choleskyWork(S: Symbolic, alloc: Alloc = heap): CholeskyWork {
 /** A factor of S's pattern to be filled by `cholesky` (as `into`), its arrays from alloc. */
 export function emptyFactor(S: Symbolic, alloc: Alloc = heap): Factor {
   const sn = S.supernodes;
-  if (S.kernel === "supernodal" && sn) return { n: S.n, kernel: "supernodal", lp: new Int32Array(0), li: new Int32Array(0), lx: alloc.f64(sn.values), supernodes: sn };
+  if (S.kernel === "supernodal" && sn)
+    return {
+      n: S.n,
+      kernel: "supernodal",
+      lp: new Int32Array(0),
+      li: new Int32Array(0),
+      lx: alloc.f64(sn.values),
+      supernodes: sn,
+    };
   return { n: S.n, kernel: "simple", lp: S.lp, li: alloc.i32(S.lnz), lx: alloc.f64(S.lnz), supernodes: null };
 }
 
@@ -340,7 +348,8 @@ function scatterFew(
     const l2 = kd > 2 ? lx[x2 + c] : 0;
     const l3 = kd > 3 ? lx[x3 + c] : 0;
     const dst = v0 + (rows[rowBase + c] - f) * nr;
-    for (let r = c; r < mu; r++) lx[dst + relMap[at + r]] -= lx[x0 + r] * l0 + lx[x1 + r] * l1 + lx[x2 + r] * l2 + lx[x3 + r] * l3;
+    for (let r = c; r < mu; r++)
+      lx[dst + relMap[at + r]] -= lx[x0 + r] * l0 + lx[x1 + r] * l1 + lx[x2 + r] * l2 + lx[x3 + r] * l3;
   }
 }
 
@@ -420,7 +429,8 @@ function outerProduct(
       const p2 = sign * B[y2 + c];
       const p3 = sign * B[y3 + c];
       const u0 = t0 + c * ldt;
-      for (let r = r0 + (c & ~3); r < mu; r++) T[u0 + r] += A[x0 + r] * p0 + A[x1 + r] * p1 + A[x2 + r] * p2 + A[x3 + r] * p3;
+      for (let r = r0 + (c & ~3); r < mu; r++)
+        T[u0 + r] += A[x0 + r] * p0 + A[x1 + r] * p1 + A[x2 + r] * p2 + A[x3 + r] * p3;
     }
   }
   for (; t < kd; t++) {
@@ -469,7 +479,9 @@ function panelCholesky(lx: Float64Array, v0: number, nr: number, k: number): num
       lx[col + c] = ljj;
       const inv = 1 / ljj;
       if (j === 0) for (let r = c + 1; r < nr; r++) lx[col + r] *= inv;
-      else for (let r = c + 1; r < nr; r++) lx[col + r] = (lx[col + r] - (lx[a0 + r] * l0 + lx[a1 + r] * l1 + lx[a2 + r] * l2)) * inv;
+      else
+        for (let r = c + 1; r < nr; r++)
+          lx[col + r] = (lx[col + r] - (lx[a0 + r] * l0 + lx[a1 + r] * l1 + lx[a2 + r] * l2)) * inv;
     }
   }
   return -1;

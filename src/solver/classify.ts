@@ -47,7 +47,8 @@ export function classify(net: Network): Classification {
   const add = (r: () => string): void => {
     if (reasons.length < MAX_REASONS) reasons.push(r());
   };
-  if (net.settings.model === "ekv") add(() => "the all-region EKV model (set model = ekv) is not linear in pseudo-voltages");
+  if (net.settings.model === "ekv")
+    add(() => "the all-region EKV model (set model = ekv) is not linear in pseudo-voltages");
   const { gate, source, drain, bulk, type } = devices;
   const nodeClass = new Uint8Array(nn);
   const firstOff = channelClasses(devices.count, type, gate, bulk, source, drain, rv, nodeClass);
@@ -55,7 +56,8 @@ export function classify(net: Network): Classification {
   for (let d = firstOff; d >= 0 && d < devices.count && reasons.length < MAX_REASONS; d++) {
     if (!isRail(gate[d])) add(() => `gate of ${devices.names[d]} is on internal node ${nodes.names[gate[d]]}`);
     const b = bulk[d];
-    if (b >= 0 && !isRail(b)) add(() => `${type[d] === N_TYPE ? "bulk" : "well"} of ${devices.names[d]} is on internal node ${nodes.names[b]}`);
+    if (b >= 0 && !isRail(b))
+      add(() => `${type[d] === N_TYPE ? "bulk" : "well"} of ${devices.names[d]} is on internal node ${nodes.names[b]}`);
   }
   let mixed = false;
   for (let k = 0; k < nn && !mixed; k++) if (nodeClass[k] === CLASS_MIXED && !isRail(k)) mixed = true;
@@ -70,7 +72,10 @@ export function classify(net: Network): Classification {
     }
     for (let k = 0; k < nn; k++) {
       if (isRail(k) || nodeClass[k] !== CLASS_MIXED) continue;
-      add(() => `node ${nodes.names[k]} joins n-channel ${devices.names[firstN[k]]} and p-channel ${devices.names[firstP[k]]}`);
+      add(
+        () =>
+          `node ${nodes.names[k]} joins n-channel ${devices.names[firstN[k]]} and p-channel ${devices.names[firstP[k]]}`,
+      );
     }
   }
   const problems = structuralProblems(net);
@@ -134,13 +139,19 @@ function structuralProblems(net: Network): { node: number; message: string }[] {
   for (let k = 0; k < nn && out.length < MAX_REASONS; k++) {
     if (Number.isFinite(rv[k])) continue;
     if (channels[k] === 0) {
-      out.push({ node: k, message: `node ${nodes.names[k]} connects to no device channel (source or drain), so its voltage is undetermined` });
+      out.push({
+        node: k,
+        message: `node ${nodes.names[k]} connects to no device channel (source or drain), so its voltage is undetermined`,
+      });
       continue;
     }
     const root = find(parent, k);
     if (!hasRail[root] && !reported[root]) {
       reported[root] = 1;
-      out.push({ node: k, message: `node ${nodes.names[k]} and the nodes joined to it by channels have no channel path to a rail (floating)` });
+      out.push({
+        node: k,
+        message: `node ${nodes.names[k]} and the nodes joined to it by channels have no channel path to a rail (floating)`,
+      });
     }
   }
   pool.give(parent, channels, hasRail, reported);
@@ -148,7 +159,13 @@ function structuralProblems(net: Network): { node: number; message: string }[] {
 }
 
 /** Union of the two ends of every channel (path halving), and each node's channel count. */
-function unionChannels(m: number, source: Int32Array, drain: Int32Array, parent: Int32Array, channels: Int32Array): void {
+function unionChannels(
+  m: number,
+  source: Int32Array,
+  drain: Int32Array,
+  parent: Int32Array,
+  channels: Int32Array,
+): void {
   for (let d = 0; d < m; d++) {
     const s = source[d];
     const t = drain[d];

@@ -102,7 +102,14 @@ export function polarity(type: number): number {
  * Device current and its partial derivatives with respect to xg, xs, xd,
  * written into out[0..3] = [I, ∂I/∂xg, ∂I/∂xs, ∂I/∂xd]; returns the forward current I_F.
  */
-export function deviceCurrent(P: DeviceParams, d: number, xg: number, xs: number, xd: number, out: Float64Array): number {
+export function deviceCurrent(
+  P: DeviceParams,
+  d: number,
+  xg: number,
+  xs: number,
+  xd: number,
+  out: Float64Array,
+): number {
   const ut = P.ut;
   const kappa = P.kappa;
   if (!P.ekv) {

@@ -74,7 +74,20 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
     for (let e = 0; e < ends; e++) ent[e] = e0[e] + v * e1[e];
   } else {
     ent.fill(0);
-    st[S_MAX] = currentLoop(m, plan.pack, plan.c, plan.y, plan.keyJunction, junctions, gsN, gsP, out.currents, out.saturated, ent, st);
+    st[S_MAX] = currentLoop(
+      m,
+      plan.pack,
+      plan.c,
+      plan.y,
+      plan.keyJunction,
+      junctions,
+      gsN,
+      gsP,
+      out.currents,
+      out.saturated,
+      ent,
+      st,
+    );
   }
   junctionWorst(plan, net, V, st);
   if (hasIc) icLoop(m, plan.pack, plan.c, plan.y, gsN, gsP, devices.w, devices.l, ispec as number, ic, st);
@@ -91,7 +104,8 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
   const railCurrents = out.railCurrents;
   railCurrents.fill(NaN);
   const railNodes = plan.railNodes;
-  for (let q = 0; q < railNodes.length; q++) railCurrents[railNodes[q]] = 0 - (ent[rows + 2 * q] + ent[rows + 2 * q + 1]);
+  for (let q = 0; q < railNodes.length; q++)
+    railCurrents[railNodes[q]] = 0 - (ent[rows + 2 * q] + ent[rows + 2 * q + 1]);
   let residual = 0;
   let worst = -1;
   for (let k = 0; k < rows; k++) {
@@ -227,7 +241,13 @@ function saturationMargins(m: number, pack: Int32Array, u: Float64Array, margin:
 }
 
 /** Currents and saturation of a superposed point (v amperes in the changed inject); returns the largest |I|. */
-function superposedLoop(m: number, parts: SuperposedParts, v: number, currents: Float64Array, saturated: Uint8Array): number {
+function superposedLoop(
+  m: number,
+  parts: SuperposedParts,
+  v: number,
+  currents: Float64Array,
+  saturated: Uint8Array,
+): number {
   const { i0, i1, s0, s1 } = parts;
   let most = 0;
   for (let d = 0; d < m; d++) {
@@ -312,7 +332,11 @@ function icLoop(
  * resolves (e.g. a lateral gate far above the others); otherwise the solve
  * itself lost the accuracy.
  */
-export function evaluationProblem(plan: LinearPlan, net: Network, ev: Evaluation): { node: number; message: string } | null {
+export function evaluationProblem(
+  plan: LinearPlan,
+  net: Network,
+  ev: Evaluation,
+): { node: number; message: string } | null {
   const { nodes } = net;
   const scale = currentScale(net, ev);
   let railBad = -1;

@@ -324,7 +324,13 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
   let general: GeneralParts | null = null;
   if (analysed) {
     const { symbolic, arena } = analysed;
-    general = { symbolic, ...triangleEntries(pack, m, rows, symbolic, arena), work: choleskyWork(symbolic, arena), factor: null, arena };
+    general = {
+      symbolic,
+      ...triangleEntries(pack, m, rows, symbolic, arena),
+      work: choleskyWork(symbolic, arena),
+      factor: null,
+      arena,
+    };
   }
   const ends = rows + 2 * rails;
   return {
@@ -340,7 +346,17 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
     general,
     factored: false,
     c: pool.takeF64(m),
-    sup: { fresh: true, disabled: false, ref: new Float64Array(net.injects.count), isChanged: new Uint8Array(net.injects.count), changed: [], z: [], rest: EMPTY_F64, used: false, parts: null },
+    sup: {
+      fresh: true,
+      disabled: false,
+      ref: new Float64Array(net.injects.count),
+      isChanged: new Uint8Array(net.injects.count),
+      changed: [],
+      z: [],
+      rest: EMPTY_F64,
+      used: false,
+      parts: null,
+    },
     keyType: Uint8Array.from(keys.type),
     keyGate: Int32Array.from(keys.gate),
     keyBulk: Int32Array.from(keys.bulk),
@@ -361,7 +377,20 @@ export function planLinear(net: Network, cls: Classification, opts: LinearOption
 
 /** Gives the plan's work arrays back to the thread's pool; the plan must not be used afterwards. */
 export function releaseLinear(plan: LinearPlan): void {
-  pool.give(plan.prow, plan.nodeAt, plan.isNAt, plan.pack, plan.c, plan.ent, plan.rhsRails, plan.y, plan.b, plan.r, plan.sup.rest, ...plan.sup.z);
+  pool.give(
+    plan.prow,
+    plan.nodeAt,
+    plan.isNAt,
+    plan.pack,
+    plan.c,
+    plan.ent,
+    plan.rhsRails,
+    plan.y,
+    plan.b,
+    plan.r,
+    plan.sup.rest,
+    ...plan.sup.z,
+  );
   dropParts(plan.sup);
   if (plan.tree) pool.give(plan.tree.parent, plan.tree.diag, plan.tree.off);
   if (plan.general) {
@@ -471,7 +500,14 @@ function degrees(pack: Int32Array, m: number, deg: Int32Array, nbrXor: Int32Arra
  * The general structure: adjacency graph of the internal rows (natural rows
  * in pack; deg: their degrees, consumed), ordering and symbolic analysis.
  */
-function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Array, opts: LinearOptions, arena: Arena): { ordering: OrderingName; symbolic: Symbolic } {
+function orderAndAnalyse(
+  pack: Int32Array,
+  m: number,
+  rows: number,
+  deg: Int32Array,
+  opts: LinearOptions,
+  arena: Arena,
+): { ordering: OrderingName; symbolic: Symbolic } {
   // Adjacency graph of the internal rows (both directions, duplicates merged).
   const ap = arena.i32(rows + 1);
   cumsum(ap, deg, rows);
@@ -488,10 +524,22 @@ function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Ar
   const choice = opts.ordering ?? "auto";
   if (choice === "auto" && naturalHasNoFill(rows, adj.p, adj.i, arena)) {
     // The natural order when it has no fill at all (an O(nnz) test, exact).
-    return { ordering: "natural", symbolic: analyse(rows, adj.p, adj.i, natural(rows), { kernel: opts.kernel === "supernodal" ? "supernodal" : "simple", alloc: arena }) };
+    return {
+      ordering: "natural",
+      symbolic: analyse(rows, adj.p, adj.i, natural(rows), {
+        kernel: opts.kernel === "supernodal" ? "supernodal" : "simple",
+        alloc: arena,
+      }),
+    };
   }
   const ordering = choice === "auto" ? DEFAULT_ORDERING : choice;
-  return { ordering, symbolic: analyse(rows, adj.p, adj.i, order(ordering, rows, adj.p, adj.i, arena), { kernel: opts.kernel, alloc: arena }) };
+  return {
+    ordering,
+    symbolic: analyse(rows, adj.p, adj.i, order(ordering, rows, adj.p, adj.i, arena), {
+      kernel: opts.kernel,
+      alloc: arena,
+    }),
+  };
 }
 
 /**
@@ -500,7 +548,13 @@ function orderAndAnalyse(pack: Int32Array, m: number, rows: number, deg: Int32Ar
  * give repeated entries, which every kernel sums), in the column the
  * kernel's triangle puts it; each device's entry position.
  */
-function triangleEntries(pack: Int32Array, m: number, rows: number, symbolic: Symbolic, arena: Arena): { C: Csc; diagPos: Int32Array; posOff: Int32Array } {
+function triangleEntries(
+  pack: Int32Array,
+  m: number,
+  rows: number,
+  symbolic: Symbolic,
+  arena: Arena,
+): { C: Csc; diagPos: Int32Array; posOff: Int32Array } {
   const lower = matrixTriangle(symbolic) === "lower";
   const colCount = arena.i32(rows).fill(1);
   for (let q = 0; q < 3 * m; q += 3) {
@@ -567,7 +621,11 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   }
   if (failed >= 0) {
     const node = plan.nodeAt[failed];
-    return { ok: false, node, message: `the linear system is singular at node ${net.nodes.names[node]}; it has no conductance to a rail` };
+    return {
+      ok: false,
+      node,
+      message: `the linear system is singular at node ${net.nodes.names[node]}; it has no conductance to a rail`,
+    };
   }
   plan.factored = true;
   plan.sup.fresh = true;
@@ -609,7 +667,8 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   }
   if (!Number.isFinite(lamN)) lamN = 0;
   if (!Number.isFinite(lamP)) lamP = 0;
-  for (let k = 0; k < keyType.length; k++) keyFactor[k] = Math.exp(keyFactor[k] - (keyType[k] === N_TYPE ? lamN : lamP));
+  for (let k = 0; k < keyType.length; k++)
+    keyFactor[k] = Math.exp(keyFactor[k] - (keyType[k] === N_TYPE ? lamN : lamP));
   const lnI0 = Math.log(P.i0);
   // A node an inject of I amperes holds through the strongest gate sits near
   // V = U_T·(ln i0 + Λ_c − ln I) (n; p mirrored), which can be far beyond every
@@ -642,7 +701,10 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   for (let k = 0; k < keyType.length; k++) {
     const b = keyBulk[k];
     const vb = b >= 0 ? V[b] : 0;
-    keyJunction[k] = keyType[k] === N_TYPE ? Math.exp(-(vb - JUNCTION_TOLERANCE - vrefN) / ut) : Math.exp((vb + JUNCTION_TOLERANCE - vrefP) / ut);
+    keyJunction[k] =
+      keyType[k] === N_TYPE
+        ? Math.exp(-(vb - JUNCTION_TOLERANCE - vrefN) / ut)
+        : Math.exp((vb + JUNCTION_TOLERANCE - vrefP) / ut);
   }
   // û(rail q) = exp(∓(V − Vref)/U_T) ≤ 1, once per rail and polarity.
   for (let q = 0; q < railNodes.length; q++) {
@@ -662,7 +724,17 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
  * into the row's diagonal and the rails' right-hand side (y beyond the rows
  * holds the rails' û).
  */
-function assembleTree(pack: Int32Array, size: Float64Array, l: Float64Array | null, keyFactor: Float64Array, c: Float64Array, y: Float64Array, diag: Float64Array, off: Float64Array, rhs: Float64Array): void {
+function assembleTree(
+  pack: Int32Array,
+  size: Float64Array,
+  l: Float64Array | null,
+  keyFactor: Float64Array,
+  c: Float64Array,
+  y: Float64Array,
+  diag: Float64Array,
+  off: Float64Array,
+  rhs: Float64Array,
+): void {
   const m = c.length;
   const rows = diag.length;
   for (let d = 0, q = 0; d < m; d++, q += 3) {
@@ -724,7 +796,13 @@ function assembleGeneral(
 }
 
 /** out = P·b (scaled, by row): the rails' part (when withRails) + the injects with value(j). */
-function buildRhs(plan: LinearPlan, net: Network, withRails: boolean, value: (j: number) => number, out: Float64Array): Float64Array {
+function buildRhs(
+  plan: LinearPlan,
+  net: Network,
+  withRails: boolean,
+  value: (j: number) => number,
+  out: Float64Array,
+): Float64Array {
   if (withRails) out.set(plan.rhsRails);
   else out.fill(0);
   const { prow, isNAt } = plan;
@@ -843,11 +921,17 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
         dropParts(sup);
         // rest: rails and the injects still at their reference values; z_j: 1 A in inject j.
         if (sup.rest.length !== rows) sup.rest = pool.takeF64(rows);
-        solveRows(plan, buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j]), sup.rest));
+        solveRows(
+          plan,
+          buildRhs(plan, net, true, (j) => (sup.isChanged[j] ? 0 : sup.ref[j]), sup.rest),
+        );
         for (let t = before; t < sup.changed.length; t++) {
           const jj = sup.changed[t];
           const z = pool.takeF64(rows);
-          solveRows(plan, buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0), z));
+          solveRows(
+            plan,
+            buildRhs(plan, net, false, (j) => (j === jj ? 1 : 0), z),
+          );
           sup.z.push(z);
         }
       }
@@ -896,7 +980,16 @@ export function voltagesLinear(plan: LinearPlan, net: Network, V: Float64Array):
  * V = Vref ∓ U_T·ln û for every row; returns −1, or the row whose û is the
  * most negative (or not a number / infinite) when some û is not a positive finite number.
  */
-function voltagesFromRows(rows: number, y: Float64Array, nodeAt: Int32Array, isNAt: Uint8Array, vrefN: number, vrefP: number, ut: number, V: Float64Array): number {
+function voltagesFromRows(
+  rows: number,
+  y: Float64Array,
+  nodeAt: Int32Array,
+  isNAt: Uint8Array,
+  vrefN: number,
+  vrefP: number,
+  ut: number,
+  V: Float64Array,
+): number {
   let worst = -1;
   let worstU = Infinity;
   for (let k = 0; k < rows; k++) {

@@ -149,7 +149,20 @@ export function lu(A: Csc, q: Int32Array, tol = 1e-3): LuResult {
   up[n] = unz;
   for (let p = 0; p < lnz; p++) li[p] = pinv[li[p]];
   lp = lp.slice();
-  return { ok: true, factor: { n, lp, li: li.subarray(0, lnz), lx: lx.subarray(0, lnz), up, ui: ui.subarray(0, unz), ux: ux.subarray(0, unz), pinv, q } };
+  return {
+    ok: true,
+    factor: {
+      n,
+      lp,
+      li: li.subarray(0, lnz),
+      lx: lx.subarray(0, lnz),
+      up,
+      ui: ui.subarray(0, unz),
+      ux: ux.subarray(0, unz),
+      pinv,
+      q,
+    },
+  };
 }
 
 /** x = A⁻¹·b with P·A·Q = L·U: x = Q·(U \ (L \ (P·b))). `work` has length n. */

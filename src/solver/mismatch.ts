@@ -67,8 +67,21 @@ export class MismatchSampler {
 }
 
 /** Mean, sample standard deviation, extremes and percentiles of `values` (NaN entries ignored). */
-export function summarize(values: ArrayLike<number>): { n: number; mean: number; std: number; min: number; max: number; p1: number; p5: number; p50: number; p95: number; p99: number } {
-  const v = Float64Array.from(Array.prototype.filter.call(values, (x: number) => Number.isFinite(x)) as number[]).sort();
+export function summarize(values: ArrayLike<number>): {
+  n: number;
+  mean: number;
+  std: number;
+  min: number;
+  max: number;
+  p1: number;
+  p5: number;
+  p50: number;
+  p95: number;
+  p99: number;
+} {
+  const v = Float64Array.from(
+    Array.prototype.filter.call(values, (x: number) => Number.isFinite(x)) as number[],
+  ).sort();
   const n = v.length;
   if (n === 0) return { n, mean: NaN, std: NaN, min: NaN, max: NaN, p1: NaN, p5: NaN, p50: NaN, p95: NaN, p99: NaN };
   let mean = 0;
@@ -84,5 +97,16 @@ export function summarize(values: ArrayLike<number>): { n: number; mean: number;
     const hi = Math.min(n - 1, lo + 1);
     return v[lo] + (x - lo) * (v[hi] - v[lo]);
   };
-  return { n, mean, std, min: v[0], max: v[n - 1], p1: pct(0.01), p5: pct(0.05), p50: pct(0.5), p95: pct(0.95), p99: pct(0.99) };
+  return {
+    n,
+    mean,
+    std,
+    min: v[0],
+    max: v[n - 1],
+    p1: pct(0.01),
+    p5: pct(0.05),
+    p50: pct(0.5),
+    p95: pct(0.95),
+    p99: pct(0.99),
+  };
 }

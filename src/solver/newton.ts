@@ -139,7 +139,15 @@ export function planNewton(net: Network): NewtonPlan {
  * node voltages V with rails scaled by alpha (already applied to V) and injects by alpha.
  * Returns [max |F|, max |device current|].
  */
-function assemble(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, alpha: number, withJacobian: boolean, out4: Float64Array): [number, number] {
+function assemble(
+  plan: NewtonPlan,
+  net: Network,
+  P: DeviceParams,
+  V: Float64Array,
+  alpha: number,
+  withJacobian: boolean,
+  out4: Float64Array,
+): [number, number] {
   const { devices, injects } = net;
   const { type, gate, source, drain, bulk } = devices;
   const { rowOf, F, slots } = plan;
@@ -205,7 +213,14 @@ function assemble(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Arr
 }
 
 /** Damped Newton from V (internal entries are the start; rails must hold alpha·railValue). Updates V in place. */
-function newtonLoop(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, alpha: number, maxIter: number): { converged: boolean; iterations: number; residual: number; worstRow: number } {
+function newtonLoop(
+  plan: NewtonPlan,
+  net: Network,
+  P: DeviceParams,
+  V: Float64Array,
+  alpha: number,
+  maxIter: number,
+): { converged: boolean; iterations: number; residual: number; worstRow: number } {
   const out4 = new Float64Array(4);
   const maxStep = MAX_STEP_UT * P.ut;
   let lastStep = Infinity;
@@ -214,7 +229,12 @@ function newtonLoop(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64A
     const [fmax, imax] = assemble(plan, net, P, V, alpha, true, out4);
     residual = fmax;
     if (!Number.isFinite(fmax)) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
-    if (lastStep <= STEP_TOL && (fmax < ABS_TOL || fmax <= REL_TOL * imax || resolved(plan, net, P, V, alpha, Math.max(ABS_TOL, REL_TOL * imax), out4)))
+    if (
+      lastStep <= STEP_TOL &&
+      (fmax < ABS_TOL ||
+        fmax <= REL_TOL * imax ||
+        resolved(plan, net, P, V, alpha, Math.max(ABS_TOL, REL_TOL * imax), out4))
+    )
       return { converged: true, iterations: it, residual: fmax, worstRow: -1 };
     if (it === maxIter) break;
     const res = lu(plan.J, plan.q);
@@ -246,7 +266,15 @@ function newtonLoop(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64A
  * EKV F behaves alike or better while ispec·W/L < 1 A) carries a rounding of
  * an ulp of its own size. Uses plan.work; leaves F and J as they are.
  */
-function resolved(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, alpha: number, floor: number, out4: Float64Array): boolean {
+function resolved(
+  plan: NewtonPlan,
+  net: Network,
+  P: DeviceParams,
+  V: Float64Array,
+  alpha: number,
+  floor: number,
+  out4: Float64Array,
+): boolean {
   const { devices, injects } = net;
   const { type, gate, source, drain, bulk } = devices;
   const { rowOf, F } = plan;
@@ -265,7 +293,10 @@ function resolved(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Arr
     const iF = deviceCurrent(P, d, sg * (vg - vb), sg * (vs - vb), sg * (vd - vb), out4);
     const iR = Math.abs(iF - out4[0]);
     const ab = Math.abs(vb);
-    let e = Math.abs(out4[1]) * (Math.abs(vg) + ab) + Math.abs(out4[2]) * (Math.abs(vs) + ab) + Math.abs(out4[3]) * (Math.abs(vd) + ab);
+    let e =
+      Math.abs(out4[1]) * (Math.abs(vg) + ab) +
+      Math.abs(out4[2]) * (Math.abs(vs) + ab) +
+      Math.abs(out4[3]) * (Math.abs(vd) + ab);
     if (iF > 0) e += iF * (1 + Math.abs(Math.log(iF)));
     if (iR > 0) e += iR * (1 + Math.abs(Math.log(iR)));
     if (rs >= 0) scale[rs] += e;
@@ -303,7 +334,13 @@ function worstRow(plan: NewtonPlan): number {
  * Solves the point: V holds the start for internal nodes on entry (rails are
  * overwritten with their values) and the solution on success.
  */
-export function solveNewton(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array, opts: { forceContinuation?: boolean } = {}): NewtonOk | NewtonFail {
+export function solveNewton(
+  plan: NewtonPlan,
+  net: Network,
+  P: DeviceParams,
+  V: Float64Array,
+  opts: { forceContinuation?: boolean } = {},
+): NewtonOk | NewtonFail {
   const rv = net.nodes.railValue;
   const nn = rv.length;
   for (let k = 0; k < nn; k++) if (plan.rowOf[k] < 0) V[k] = rv[k];

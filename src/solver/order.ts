@@ -333,7 +333,14 @@ export function natural(n: number): Int32Array {
 }
 
 /** Induced subgraph of `verts[s .. s+m)`; `local` maps a global vertex to its local index (caller-owned, length n, -1 outside). */
-function inducedAmd(ap: Int32Array, ai: Int32Array, verts: Int32Array, s: number, m: number, local: Int32Array): Int32Array {
+function inducedAmd(
+  ap: Int32Array,
+  ai: Int32Array,
+  verts: Int32Array,
+  s: number,
+  m: number,
+  local: Int32Array,
+): Int32Array {
   for (let k = 0; k < m; k++) local[verts[s + k]] = k;
   const sp = new Int32Array(m + 1);
   let nz = 0;
@@ -507,7 +514,14 @@ function peel(n: number, ap: Int32Array, ai: Int32Array, perm: Int32Array, part:
  * and Cholesky work −16% / −5% / −2% at 64² / 256² / 512², supernodal
  * factorisation −15% at 64², unchanged at 256².
  */
-export function nestedDissection(n: number, ap: Int32Array, ai: Int32Array, leaf = 16, maxIter = 1, alloc: Alloc = heap): Int32Array {
+export function nestedDissection(
+  n: number,
+  ap: Int32Array,
+  ai: Int32Array,
+  leaf = 16,
+  maxIter = 1,
+  alloc: Alloc = heap,
+): Int32Array {
   const perm = alloc.i32(n);
   if (n === 0) return perm;
   // part[v]: id of v's part (vertices of sibling parts may share one: a

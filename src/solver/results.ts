@@ -175,7 +175,13 @@ export interface PointStorage {
  * Newton path's evaluation; the linear path evaluates from its pseudo-voltages
  * in linear-eval.ts). `kcl` (length = nodes) is scratch.
  */
-export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: Float64Array, into?: PointStorage): Evaluation {
+export function evaluate(
+  net: Network,
+  V: Float64Array,
+  P: DeviceParams,
+  kcl?: Float64Array,
+  into?: PointStorage,
+): Evaluation {
   const { devices, injects, nodes, settings } = net;
   const m = devices.count;
   const nn = nodes.names.length;
@@ -190,7 +196,27 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   entering.fill(0);
   const checkWeak = hasIc && settings.model === "weak";
   const st = evalStats;
-  deviceLoop(m, type, gate, source, drain, bulk, w, l, V, P, hasIc, hasIc ? (ispec as number) : 0, checkWeak, 4 * settings.ut, currents, ic, saturated, entering, st);
+  deviceLoop(
+    m,
+    type,
+    gate,
+    source,
+    drain,
+    bulk,
+    w,
+    l,
+    V,
+    P,
+    hasIc,
+    hasIc ? (ispec as number) : 0,
+    checkWeak,
+    4 * settings.ut,
+    currents,
+    ic,
+    saturated,
+    entering,
+    st,
+  );
   const { value: injValue, from: injFrom, to: injTo } = injects;
   for (let j = 0; j < injects.count; j++) {
     const v = injValue[j];
@@ -199,7 +225,16 @@ export function evaluate(net: Network, V: Float64Array, P: DeviceParams, kcl?: F
   }
   const railCurrents = into ? into.railCurrents : new Float64Array(nn);
   railLoop(nn, nodes.railValue, entering, railCurrents, st);
-  return { currents, ic, saturated, railCurrents, residual: st[S_RESIDUAL], worstNode: st[S_WORST], maxCurrent: st[S_MAX], warnings: validityWarnings(net, st) };
+  return {
+    currents,
+    ic,
+    saturated,
+    railCurrents,
+    residual: st[S_RESIDUAL],
+    worstNode: st[S_WORST],
+    maxCurrent: st[S_MAX],
+    warnings: validityWarnings(net, st),
+  };
 }
 
 /** The junction and inversion warnings of a point from the counts in st (slots below). */
@@ -209,13 +244,29 @@ export function validityWarnings(net: Network, st: Float64Array): SolverWarning[
   if (st[S_JCOUNT] > 0) {
     const first = st[S_JFIRST];
     const where = type[first] === 0 ? "bulk" : "well";
-    warnings.push(deviceWarning("junction", names, first, st[S_JCOUNT], st[S_JWORST],
-      `source or drain beyond the ${where} (junction forward-biased by up to ${formatVolts(st[S_JWORST])}); the model has no junction current`));
+    warnings.push(
+      deviceWarning(
+        "junction",
+        names,
+        first,
+        st[S_JCOUNT],
+        st[S_JWORST],
+        `source or drain beyond the ${where} (junction forward-biased by up to ${formatVolts(st[S_JWORST])}); the model has no junction current`,
+      ),
+    );
   }
   if (st[S_ICOUNT] > 0) {
     const worst = st[S_IWORST];
-    warnings.push(deviceWarning("inversion", names, st[S_IFIRST], st[S_ICOUNT], worst,
-      `inversion coefficient up to ${worst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`));
+    warnings.push(
+      deviceWarning(
+        "inversion",
+        names,
+        st[S_IFIRST],
+        st[S_ICOUNT],
+        worst,
+        `inversion coefficient up to ${worst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`,
+      ),
+    );
   }
   return warnings;
 }
@@ -311,7 +362,13 @@ function deviceLoop(
 }
 
 /** Rail currents (NaN at internal nodes) and the largest KCL error over internal nodes into st (residual, worst node). */
-function railLoop(nn: number, rv: Float64Array, entering: Float64Array, railCurrents: Float64Array, st: Float64Array): void {
+function railLoop(
+  nn: number,
+  rv: Float64Array,
+  entering: Float64Array,
+  railCurrents: Float64Array,
+  st: Float64Array,
+): void {
   let residual = 0;
   let worstNode = -1;
   for (let k = 0; k < nn; k++) {
@@ -412,11 +469,20 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
   for (const r of net.rails) rails[r.name] = p.railCurrents[r.node];
   const devices: JsonPoint["devices"] = {};
   const dn = net.devices.names;
-  for (let d = 0; d < dn.length; d++) devices[dn[d]] = { current: p.currents[d], ic: finiteOrNull(p.ic[d]), saturated: p.saturated[d] === 1 };
+  for (let d = 0; d < dn.length; d++)
+    devices[dn[d]] = { current: p.currents[d], ic: finiteOrNull(p.ic[d]), saturated: p.saturated[d] === 1 };
   const probes: Record<string, number | null> = {};
   for (const [k, v] of Object.entries(p.probes)) probes[k] = finiteOrNull(v);
   const { method, iterations, residual, reason } = p.solver;
-  return { params: p.params, nodes, rails, devices, probes, solver: { method, iterations, residual, reason }, sample: p.sample ?? 0 };
+  return {
+    params: p.params,
+    nodes,
+    rails,
+    devices,
+    probes,
+    solver: { method, iterations, residual, reason },
+    sample: p.sample ?? 0,
+  };
 }
 
 /**
@@ -425,10 +491,23 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
  * at the device's statement when `text` is given. `ok` is false, with no
  * points, when any diagnostic is an error or any point failed.
  */
-export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run: RunResult | null, text?: string, name?: string | null, withPoints = true): SolveJson {
-  const out: JsonDiagnostic[] = diagnostics.map((d) => ({ severity: d.severity, line: d.line, column: d.column, message: d.message }));
+export function toSolveJson(
+  net: Network | null,
+  diagnostics: Diagnostic[],
+  run: RunResult | null,
+  text?: string,
+  name?: string | null,
+  withPoints = true,
+): SolveJson {
+  const out: JsonDiagnostic[] = diagnostics.map((d) => ({
+    severity: d.severity,
+    line: d.line,
+    column: d.column,
+    message: d.message,
+  }));
   const lines = text !== undefined ? new LineIndex(text) : null;
-  const at = (offset: number): { line: number; column: number } => (lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 });
+  const at = (offset: number): { line: number; column: number } =>
+    lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 };
   let ok = !diagnostics.some((d) => d.severity === "error") && net !== null && run !== null;
   if (net && run) {
     const seen = new Set<string>();
@@ -441,7 +520,8 @@ export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run:
         const key = `${w.kind}:${w.device}`;
         if (seen.has(key)) continue;
         seen.add(key);
-        const where = run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+        const where =
+          run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
         out.push({ severity: "warning", ...at(net.devices.at[w.device]), message: w.message + where });
       }
     }
@@ -449,8 +529,13 @@ export function toSolveJson(net: Network | null, diagnostics: Diagnostic[], run:
     for (const probe of net.probes) {
       const p = run.points.find((q) => q.ok && probe.name in q.probes && !Number.isFinite(q.probes[probe.name]));
       if (!p) continue;
-      const where = run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
-      out.push({ severity: "warning", ...at(probe.span.from), message: `probe ${probe.name} is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null${where}` });
+      const where =
+        run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+      out.push({
+        severity: "warning",
+        ...at(probe.span.from),
+        message: `probe ${probe.name} is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null${where}`,
+      });
     }
     if (!run.ok) ok = false;
   }
@@ -471,7 +556,14 @@ export function firstDeviceAt(net: Network, node: number): number {
 }
 
 /** A warning about `count` devices, named by the first: "m3 and 4 other devices: <detail>". */
-function deviceWarning(kind: SolverWarning["kind"], names: readonly string[], first: number, count: number, worst: number, detail: string): SolverWarning {
+function deviceWarning(
+  kind: SolverWarning["kind"],
+  names: readonly string[],
+  first: number,
+  count: number,
+  worst: number,
+  detail: string,
+): SolverWarning {
   const others = count > 1 ? ` and ${count - 1} other device${count > 2 ? "s" : ""}` : "";
   return { kind, device: first, count, worst, message: `${names[first]}${others}: ${detail}` };
 }

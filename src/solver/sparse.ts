@@ -175,7 +175,12 @@ export function symmetricAdjacency(A: Csc): { p: Int32Array; i: Int32Array } {
 }
 
 /** Removes repeated neighbours from each list of an adjacency structure (returns a compact copy). */
-export function dedupeAdjacency(n: number, p: Int32Array, idx: Int32Array, alloc: Alloc = heap): { p: Int32Array; i: Int32Array } {
+export function dedupeAdjacency(
+  n: number,
+  p: Int32Array,
+  idx: Int32Array,
+  alloc: Alloc = heap,
+): { p: Int32Array; i: Int32Array } {
   const mark = alloc.i32(n).fill(-1);
   const np = alloc.i32(n + 1);
   let q = 0;
@@ -236,7 +241,13 @@ export function permutedTriangle(A: Csc, pinv: Int32Array, triangle: "upper" | "
  * sorted in each column; `map[k]` is the position in C.i of pair k, so a value
  * for pair k is accumulated with C.x[map[k]] += value.
  */
-export function compressPattern(m: number, n: number, ti: Int32Array, tj: Int32Array, nz: number): { C: Csc; map: Int32Array } {
+export function compressPattern(
+  m: number,
+  n: number,
+  ti: Int32Array,
+  tj: Int32Array,
+  nz: number,
+): { C: Csc; map: Int32Array } {
   // Counting sort by row, then stable counting sort by column: sorted (column, row) order.
   const byRow = new Int32Array(nz);
   const rc = new Int32Array(m + 1);

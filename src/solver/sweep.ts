@@ -12,12 +12,35 @@ import type { Network } from "../lang/network";
 import { applyPoint } from "../lang/point";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
-import { factorLinear, type LinearOptions, type LinearPlan, planLinear, releaseLinear, solveLinear, solvePseudo, voltagesLinear } from "./linear";
+import {
+  factorLinear,
+  type LinearOptions,
+  type LinearPlan,
+  planLinear,
+  releaseLinear,
+  solveLinear,
+  solvePseudo,
+  voltagesLinear,
+} from "./linear";
 import { evaluateLinear, evaluationProblem } from "./linear-eval";
 import { MismatchSampler, summarize } from "./mismatch";
 import { type Alloc, Arena, heap } from "./pool";
 import { initialGuess, type NewtonPlan, planNewton, solveNewton } from "./newton";
-import { currentScale, evaluate, type Evaluation, evaluateProbes, firstDeviceAt, KCL_LIMIT, type Method, type PointResult, type PointStorage, type ProbeSummary, type RunResult, type RunTimings, type SolverWarning } from "./results";
+import {
+  currentScale,
+  evaluate,
+  type Evaluation,
+  evaluateProbes,
+  firstDeviceAt,
+  KCL_LIMIT,
+  type Method,
+  type PointResult,
+  type PointStorage,
+  type ProbeSummary,
+  type RunResult,
+  type RunTimings,
+  type SolverWarning,
+} from "./results";
 
 export interface SolveOptions extends LinearOptions {
   /** Called after each point with (points done, points in the run). */
@@ -193,7 +216,17 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
         }
         const sample = sampler ? s : null;
         const tf = performance.now();
-        const k: FactorKey = { rails: pnet.nodes.railValue, w: pnet.devices.w, l: pnet.devices.l, kappa: pnet.settings.kappa, ut: pnet.settings.ut, i0: pnet.settings.i0, sample, ispec: pnet.settings.ispec, vt0: pnet.settings.vt0 };
+        const k: FactorKey = {
+          rails: pnet.nodes.railValue,
+          w: pnet.devices.w,
+          l: pnet.devices.l,
+          kappa: pnet.settings.kappa,
+          ut: pnet.settings.ut,
+          i0: pnet.settings.i0,
+          sample,
+          ispec: pnet.settings.ispec,
+          vt0: pnet.settings.vt0,
+        };
         // Device constants depend on sizes, settings and the sample, not on rails or injects.
         if (!P || !sameDeviceKey(pKey, k)) {
           P = deviceParams(pnet, sampler && dvt ? sampler.offsets(pnet, s, dvt) : null);
@@ -257,7 +290,10 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
             failNode = r.node;
           }
         }
-        const ev = lplan && ok && slot ? evaluateLinear(lplan, pnet, V, slot.store) : evaluate(pnet, V, P, kcl, slot ? slot.store : undefined);
+        const ev =
+          lplan && ok && slot
+            ? evaluateLinear(lplan, pnet, V, slot.store)
+            : evaluate(pnet, V, P, kcl, slot ? slot.store : undefined);
         if (lplan && ok) {
           // Currents out of range, or a KCL error beyond KCL_LIMIT: not a solution to report.
           const bad = evaluationProblem(lplan, pnet, ev);
@@ -310,7 +346,21 @@ export function solveNetwork(net: Network, opts: SolveOptions = {}): RunResult {
       if (sampler && net.probes.length > 0 && probeValues[net.probes[0].name].length > 0) {
         for (const p of net.probes) {
           const st = summarize(probeValues[p.name]);
-          const summary: ProbeSummary = { probe: p.name, gridPoint: g, params, samples: st.n, mean: st.mean, std: st.std, min: st.min, max: st.max, p1: st.p1, p5: st.p5, p50: st.p50, p95: st.p95, p99: st.p99 };
+          const summary: ProbeSummary = {
+            probe: p.name,
+            gridPoint: g,
+            params,
+            samples: st.n,
+            mean: st.mean,
+            std: st.std,
+            min: st.min,
+            max: st.max,
+            p1: st.p1,
+            p5: st.p5,
+            p50: st.p50,
+            p95: st.p95,
+            p99: st.p99,
+          };
           result.summaries.push(summary);
         }
       }
@@ -370,10 +420,20 @@ class PointSlab {
 }
 
 /** Result arrays of one point (zero-filled), from alloc. */
-function pointArrays(nn: number, m: number, withIc: boolean, alloc: Alloc = heap): { V: Float64Array; store: PointStorage } {
+function pointArrays(
+  nn: number,
+  m: number,
+  withIc: boolean,
+  alloc: Alloc = heap,
+): { V: Float64Array; store: PointStorage } {
   return {
     V: alloc.f64(nn),
-    store: { currents: alloc.f64(m), ic: withIc ? alloc.f64(m) : null, saturated: alloc.u8(m), railCurrents: alloc.f64(nn) },
+    store: {
+      currents: alloc.f64(m),
+      ic: withIc ? alloc.f64(m) : null,
+      saturated: alloc.u8(m),
+      railCurrents: alloc.f64(nn),
+    },
   };
 }
 
@@ -413,7 +473,10 @@ function startNewton(pnet: Network, cls: Classification, V: Float64Array): void 
   if (cls.reasons.length !== 1 || pnet.settings.model !== "ekv") return;
   // Only the model breaks linearity: the weak-inversion limit of EKV, I0 = ispec·exp(−κ·VT0/U_T) (PHYSICS.md §4).
   const s = pnet.settings;
-  const weak: Network = { ...pnet, settings: { ...s, model: "weak", i0: (s.ispec as number) * Math.exp((-s.kappa * (s.vt0 as number)) / s.ut) } };
+  const weak: Network = {
+    ...pnet,
+    settings: { ...s, model: "weak", i0: (s.ispec as number) * Math.exp((-s.kappa * (s.vt0 as number)) / s.ut) },
+  };
   const weakCls = classify(weak);
   if (!weakCls.linear) return;
   try {

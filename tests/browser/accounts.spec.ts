@@ -13,7 +13,10 @@ async function signIn(page: Page, who: { email: string; password: string }) {
   await page.getByRole("button", { name: "Sign in" }).click();
 }
 
-test("sign up, create a workspace, invite a reviewer, accept from the dev mailbox, sign in as the reviewer", async ({ page, browser }) => {
+test("sign up, create a workspace, invite a reviewer, accept from the dev mailbox, sign in as the reviewer", async ({
+  page,
+  browser,
+}) => {
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
 
@@ -104,7 +107,10 @@ test("an invitation is accepted by a browser that posts the form itself (no Java
   const context = await browser.newContext({ javaScriptEnabled: false });
   const r = await context.newPage();
   await r.goto("/dev/mailbox");
-  await r.getByRole("listitem", { name: `Message to ${invitee.email}` }).getByRole("link", { name: /\/invite\// }).click();
+  await r
+    .getByRole("listitem", { name: `Message to ${invitee.email}` })
+    .getByRole("link", { name: /\/invite\// })
+    .click();
   await expect(r.getByRole("heading", { name: "Join LM-64 edge row" })).toBeVisible();
   await r.getByLabel("Name").fill(invitee.name);
   await r.getByLabel("Password", { exact: true }).fill(invitee.password);
@@ -128,6 +134,8 @@ test("pages send anonymous visitors to sign in and back", async ({ page }) => {
 
 test("a wrong password says so at the form", async ({ page }) => {
   await signIn(page, { email: "viewer@larkspur.example", password: "not-the-password" });
-  await expect(page.locator("form").getByRole("alert")).toHaveText("That e-mail address and password do not match an account.");
+  await expect(page.locator("form").getByRole("alert")).toHaveText(
+    "That e-mail address and password do not match an account.",
+  );
   await expect(page.getByLabel("E-mail")).toHaveValue("viewer@larkspur.example");
 });

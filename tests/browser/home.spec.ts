@@ -14,7 +14,9 @@ test("the home page shows the shell, the demo accounts, and after sign-in the de
   await page.getByLabel("Password").fill("larkspur-demo");
   await page.getByRole("button", { name: "Sign in" }).click();
   await expect(page.getByTestId("signed-in-as")).toHaveText("Ada Marlow");
-  await expect(page.getByRole("list", { name: "Workspaces" }).getByRole("link", { name: "LM-64 edge row" })).toBeVisible();
+  await expect(
+    page.getByRole("list", { name: "Workspaces" }).getByRole("link", { name: "LM-64 edge row" }),
+  ).toBeVisible();
   await expect(page.getByText("Results in Runnel are model estimates")).toBeVisible();
   const fonts = await page.evaluate(async () => {
     await document.fonts.ready;

@@ -7,7 +7,8 @@ import { expect, test, type Page } from "@playwright/test";
  * without the sign-off buttons. Screenshots go to test-results/browser/review-*.png.
  */
 const THREAD = "/threads/t_demo_divider_ratio";
-const shot = (page: Page, name: string) => page.screenshot({ path: `test-results/browser/review-${name}.png`, fullPage: true });
+const shot = (page: Page, name: string) =>
+  page.screenshot({ path: `test-results/browser/review-${name}.png`, fullPage: true });
 
 async function signIn(page: Page, email: string) {
   await page.goto(`/signin?next=${encodeURIComponent(THREAD)}`);
@@ -17,7 +18,9 @@ async function signIn(page: Page, email: string) {
   await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
 }
 
-test("a reviewer opens a thread from its link, follows the run card, compares two commits, signs off", async ({ page }) => {
+test("a reviewer opens a thread from its link, follows the run card, compares two commits, signs off", async ({
+  page,
+}) => {
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
   await signIn(page, "reviewer@larkspur.example");
@@ -48,7 +51,10 @@ test("a reviewer opens a thread from its link, follows the run card, compares tw
   const fixRunCompare = page.getByRole("table", { name: "Side-by-side diff" });
   await expect(fixRunCompare.locator('[data-line="changed"]')).toContainText("26mV");
   await expect(page.getByTestId("moved-summary")).toContainText("values moved beyond tolerance");
-  const ratioRow = page.getByRole("table", { name: "Results diff" }).locator('tr[data-beyond="1"]', { hasText: "ratio" }).first();
+  const ratioRow = page
+    .getByRole("table", { name: "Results diff" })
+    .locator('tr[data-beyond="1"]', { hasText: "ratio" })
+    .first();
   await expect(ratioRow).toBeVisible();
   await page.getByRole("link", { name: "Unified view" }).click();
   await expect(page.getByRole("table", { name: "Unified diff" }).locator('[data-line="added"]')).toContainText("26mV");
@@ -75,21 +81,33 @@ test("a viewer reads the thread without sign-off buttons; an unknown thread is a
   expect(res?.status()).toBe(404);
 });
 
-test("a designer sees the bench data against the run, and a bad CSV is refused with its row and column", async ({ page }) => {
+test("a designer sees the bench data against the run, and a bad CSV is refused with its row and column", async ({
+  page,
+}) => {
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
   await signIn(page, "designer@larkspur.example");
   await page.goto("/w/lm64-edge-row/n/lm-64-edge-row");
   const panel = page.getByRole("region", { name: "Measurements" });
   await expect(panel.getByTestId("agreement-i")).toContainText("RMS of the log ratio");
-  await panel.getByLabel("Measurement CSV").setInputFiles({ name: "bad.csv", mimeType: "text/csv", buffer: Buffer.from("tap [1], i [nA]\n0, 0.5\n1, half\n") });
+  await panel.getByLabel("Measurement CSV").setInputFiles({
+    name: "bad.csv",
+    mimeType: "text/csv",
+    buffer: Buffer.from("tap [1], i [nA]\n0, 0.5\n1, half\n"),
+  });
   await panel.getByRole("button", { name: "Upload" }).click();
   await expect(panel.getByRole("alert")).toContainText('row 3, column 2 (i): "half" is not a number');
   await shot(page, "measurements");
   // a good file over a gate voltage: the row's operating-point run cannot be compared with it (used on the run page below)
-  await panel.getByLabel("Measurement CSV").setInputFiles({ name: "vh-sweep.csv", mimeType: "text/csv", buffer: Buffer.from("vh [mV], i [nA]\n700, 0.5\n750, 0.6\n") });
+  await panel.getByLabel("Measurement CSV").setInputFiles({
+    name: "vh-sweep.csv",
+    mimeType: "text/csv",
+    buffer: Buffer.from("vh [mV], i [nA]\n700, 0.5\n750, 0.6\n"),
+  });
   await panel.getByRole("button", { name: "Upload" }).click();
-  await expect(panel.getByLabel("Measurement", { exact: true }).locator("option:checked")).toContainText("vh-sweep.csv");
+  await expect(panel.getByLabel("Measurement", { exact: true }).locator("option:checked")).toContainText(
+    "vh-sweep.csv",
+  );
   await expect(panel.getByRole("alert")).toHaveCount(0);
 
   // the same bench data on the run page's own profile plot: the row's newest run is an operating point with probes i0…i63
@@ -99,7 +117,8 @@ test("a designer sees the bench data against the run, and a bad CSV is refused w
   await page.getByRole("tab", { name: "Profile" }).click();
   const profile = page.getByRole("tabpanel", { name: "Profile" });
   const benchData = profile.getByLabel("Bench data", { exact: true });
-  const choose = async (file: string) => benchData.selectOption((await benchData.locator("option", { hasText: file }).getAttribute("value"))!);
+  const choose = async (file: string) =>
+    benchData.selectOption((await benchData.locator("option", { hasText: file }).getAttribute("value"))!);
   await choose("lm64-row-bench.csv");
   await expect(profile.getByLabel("Profile of")).toHaveValue("probe:i");
   const plot = profile.locator("[data-slot=plot]");
@@ -114,7 +133,9 @@ test("a designer sees the bench data against the run, and a bad CSV is refused w
 
   // a measurement the run cannot cover: the route's one-line reason in place of the figures, and no measured points
   await choose("vh-sweep.csv");
-  await expect(profile.getByTestId("bench-refusal")).toContainText("the run is an operating point; its x would be a tap index");
+  await expect(profile.getByTestId("bench-refusal")).toContainText(
+    "the run is an operating point; its x would be a tap index",
+  );
   await expect(profile.getByTestId("bench-agreement-i")).toHaveCount(0);
   await expect(plot.locator(".u-legend")).not.toContainText("measured:");
 

@@ -25,7 +25,8 @@ probe far = current(out15) / current(out0)
 sweep vh from 0.6 to 0.8 points 400
 `;
 
-const shot = (page: Page, name: string) => page.screenshot({ path: `test-results/browser/workbench-${name}.png`, fullPage: true });
+const shot = (page: Page, name: string) =>
+  page.screenshot({ path: `test-results/browser/workbench-${name}.png`, fullPage: true });
 
 async function signIn(page: Page) {
   await page.goto("/signin");
@@ -122,12 +123,18 @@ test("edit, commit, run a sweep, read the plot and the table, export CSV", async
 
   // sort by the probe, descending: the strongest coupling (largest vh) comes first
   const farHeader = table.locator("th", { has: page.getByRole("button", { name: "far" }) });
-  while ((await farHeader.getAttribute("aria-sort")) !== "descending") await table.getByRole("button", { name: "far" }).click();
+  while ((await farHeader.getAttribute("aria-sort")) !== "descending")
+    await table.getByRole("button", { name: "far" }).click();
   await expect(table.locator("tbody tr").first().locator("td").nth(1)).toHaveText("800m");
 
   // the spatial profile of the output currents
   await page.getByRole("tab", { name: "Profile" }).click();
-  await expect(page.getByRole("img", { name: /along the index/ }).locator("canvas").first()).toBeVisible();
+  await expect(
+    page
+      .getByRole("img", { name: /along the index/ })
+      .locator("canvas")
+      .first(),
+  ).toBeVisible();
   await shot(page, "run-profile");
 
   // export CSV

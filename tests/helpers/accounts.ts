@@ -48,16 +48,33 @@ export function buildAccountsFixture(): AccountsFixture {
   const template = path.join(dir, "template.db");
   const db = openDatabase(template);
   seedDemo(db);
-  db.insert(users).values({ id: USER_OF.outsider.id, email: USER_OF.outsider.email, name: "Olle Outside", passwordHash: hashPasswordSync(DEMO_PASSWORD) }).run();
+  db.insert(users)
+    .values({
+      id: USER_OF.outsider.id,
+      email: USER_OF.outsider.email,
+      name: "Olle Outside",
+      passwordHash: hashPasswordSync(DEMO_PASSWORD),
+    })
+    .run();
   const actors = { anonymous: null } as Record<Who, ActorFixture | null>;
   for (const who of WHO) {
     if (who === "anonymous") continue;
     const u = USER_OF[who];
     const sessionId = `sess_${who}_${"x".repeat(20)}`;
-    db.insert(sessions).values({ id: sessionId, userId: u.id, expiresAt: Math.floor(Date.now() / 1000) + 30 * 86400 }).run();
+    db.insert(sessions)
+      .values({ id: sessionId, userId: u.id, expiresAt: Math.floor(Date.now() / 1000) + 30 * 86400 })
+      .run();
     const token = `runnel_${who}_${"t".repeat(40)}`;
     const tokenId = `tok_${who}`;
-    db.insert(apiTokens).values({ id: tokenId, userId: u.id, name: `${who} script`, prefix: token.slice(0, 11), tokenHash: secretHash(token) }).run();
+    db.insert(apiTokens)
+      .values({
+        id: tokenId,
+        userId: u.id,
+        name: `${who} script`,
+        prefix: token.slice(0, 11),
+        tokenHash: secretHash(token),
+      })
+      .run();
     actors[who] = { userId: u.id, email: u.email, cookie: `runnel_session=${sessionId}`, sessionId, token, tokenId };
   }
   db.$client.pragma("wal_checkpoint(TRUNCATE)");

@@ -27,7 +27,9 @@ export const requestContext = {
 };
 
 /** The incoming request: its cookies (name → value), Origin (default: our own site), Host and client address. */
-export function setRequest(r: { cookies?: Record<string, string>; origin?: string | null; host?: string; address?: string } = {}): void {
+export function setRequest(
+  r: { cookies?: Record<string, string>; origin?: string | null; host?: string; address?: string } = {},
+): void {
   requestContext.jar = new Map(Object.entries(r.cookies ?? {}));
   requestContext.setCookies = [];
   const h = new Headers({ host: r.host ?? new URL(SITE).host, "x-forwarded-for": r.address ?? "198.51.100.7" });
@@ -73,7 +75,10 @@ export interface ActionOutcome {
 }
 
 /** Runs a server action the way a form would, and says what the browser would get. */
-export async function runAction(action: (prev: FormState | undefined, f: FormData) => Promise<FormState | void>, f: FormData): Promise<ActionOutcome> {
+export async function runAction(
+  action: (prev: FormState | undefined, f: FormData) => Promise<FormState | void>,
+  f: FormData,
+): Promise<ActionOutcome> {
   try {
     const state = (await action(undefined, f)) ?? undefined;
     return { status: state?.status ?? 200, state };

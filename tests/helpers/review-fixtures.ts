@@ -51,7 +51,10 @@ export const LAYOUT = {
 const f64 = (xs: number[]) => Buffer.from(new Float64Array(xs).buffer);
 
 /** Writes a done run of `commitId` whose devices m1, m2 have widths w1, w2 (metres). */
-export function insertDividerRun(db: DB, input: { commitId: string; networkId: string; w2: number; createdBy?: string; createdAt?: Date }): string {
+export function insertDividerRun(
+  db: DB,
+  input: { commitId: string; networkId: string; w2: number; createdBy?: string; createdAt?: Date },
+): string {
   const id = newId("r");
   const g = (w: number) => I0 * (w / 1e-6) * Math.exp((KAPPA * VG) / UT);
   const ud = Math.exp(-VDD / UT);
@@ -100,10 +103,33 @@ export function insertDividerRun(db: DB, input: { commitId: string; networkId: s
 
 /** The divider network with two commits (m2 at 1 µm, then 2 µm) and a done run of each. */
 export function dividerHistory(db: DB) {
-  const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Divider", text: dividerText("1u"), message: "divider, equal widths", authorId: "u_designer1" }, db);
+  const { network, commit } = createNetwork(
+    {
+      workspaceId: "ws_lm64",
+      name: "Divider",
+      text: dividerText("1u"),
+      message: "divider, equal widths",
+      authorId: "u_designer1",
+    },
+    db,
+  );
   const first = commit!;
-  const second = commitText({ networkId: network.id, parentId: first.id, text: dividerText("2u"), message: "m2 twice as wide", authorId: "u_designer1" }, db);
-  const run1 = insertDividerRun(db, { commitId: first.id, networkId: network.id, w2: 1e-6, createdAt: new Date(Date.now() - 1000) });
+  const second = commitText(
+    {
+      networkId: network.id,
+      parentId: first.id,
+      text: dividerText("2u"),
+      message: "m2 twice as wide",
+      authorId: "u_designer1",
+    },
+    db,
+  );
+  const run1 = insertDividerRun(db, {
+    commitId: first.id,
+    networkId: network.id,
+    w2: 1e-6,
+    createdAt: new Date(Date.now() - 1000),
+  });
   const run2 = insertDividerRun(db, { commitId: second.id, networkId: network.id, w2: 2e-6 });
   return { network, first, second, run1, run2 };
 }

@@ -65,33 +65,101 @@ const PW = "a-long-enough-password";
 const withInvitation: Setup = (db) => {
   const token = `invite_${"k".repeat(40)}`;
   db.insert(invitations)
-    .values({ id: "inv_case", workspaceId: WORKSPACE.id, email: "newcomer@larkspur.example", role: "reviewer", tokenHash: secretHash(token), invitedBy: "u_owner", expiresAt: new Date(Date.now() + 86_400_000) })
+    .values({
+      id: "inv_case",
+      workspaceId: WORKSPACE.id,
+      email: "newcomer@larkspur.example",
+      role: "reviewer",
+      tokenHash: secretHash(token),
+      invitedBy: "u_owner",
+      expiresAt: new Date(Date.now() + 86_400_000),
+    })
     .run();
   return { invitationId: "inv_case", invitationToken: token };
 };
 
 /** A network with one commit and one finished run (solved in-process), for the workbench rows. */
-const DIVIDER = "rail vdd = 1.8\nrail gnd = 0\nrail g1 = 0.71\nrail g2 = 0.69\nnfet m1 gate=g1 source=tail drain=vdd\nnfet m2 gate=g2 source=tail drain=vdd\ninject tailsink from=tail to=gnd value=20n\nprobe ratio = current(m1) / current(m2)\n";
+const DIVIDER =
+  "rail vdd = 1.8\nrail gnd = 0\nrail g1 = 0.71\nrail g2 = 0.69\nnfet m1 gate=g1 source=tail drain=vdd\nnfet m2 gate=g2 source=tail drain=vdd\ninject tailsink from=tail to=gnd value=20n\nprobe ratio = current(m1) / current(m2)\n";
 const withRun: Setup = (db) => {
-  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" }, db);
-  db.insert(runs).values({ id: "r_case", commitId: commit!.id, networkId: network.id, workspaceId: WORKSPACE.id, createdBy: "u_designer1", pointsTotal: 1, timeLimitMs: 60_000 }).run();
+  const { network, commit } = createNetwork(
+    { workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" },
+    db,
+  );
+  db.insert(runs)
+    .values({
+      id: "r_case",
+      commitId: commit!.id,
+      networkId: network.id,
+      workspaceId: WORKSPACE.id,
+      createdBy: "u_designer1",
+      pointsTotal: 1,
+      timeLimitMs: 60_000,
+    })
+    .run();
   executeRun(db, "r_case");
   return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
 };
 /** As withRun, but the run is still queued (cancel rows). */
 const withQueuedRun: Setup = (db) => {
-  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" }, db);
-  db.insert(runs).values({ id: "r_case", commitId: commit!.id, networkId: network.id, workspaceId: WORKSPACE.id, createdBy: "u_designer1", pointsTotal: 1, timeLimitMs: 60_000 }).run();
+  const { network, commit } = createNetwork(
+    { workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" },
+    db,
+  );
+  db.insert(runs)
+    .values({
+      id: "r_case",
+      commitId: commit!.id,
+      networkId: network.id,
+      workspaceId: WORKSPACE.id,
+      createdBy: "u_designer1",
+      pointsTotal: 1,
+      timeLimitMs: 60_000,
+    })
+    .run();
   return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
 };
 
 /** Review rows: the divider with two commits and a done sweep run of each, a thread on the newer commit, a measurement. */
 const withReview: Setup = (db) => {
   const h = dividerHistory(db);
-  db.insert(threads).values({ id: "t_case", workspaceId: WORKSPACE.id, networkId: h.network.id, commitId: h.second.id, runId: h.run2, title: "m2 width", createdBy: "u_designer1" }).run();
-  db.insert(comments).values({ id: "c_case", threadId: "t_case", workspaceId: WORKSPACE.id, authorId: "u_designer1", body: `Widened m2, see [[run ${h.run2}]]` }).run();
-  const m = saveMeasurement({ networkId: h.network.id, name: "bench.csv", bytes: new TextEncoder().encode(BENCH_CSV), createdBy: "u_designer1" }, db);
-  return { networkId: h.network.id, fromId: h.first.id, toId: h.second.id, runId: h.run2, threadId: "t_case", measurementId: m.id };
+  db.insert(threads)
+    .values({
+      id: "t_case",
+      workspaceId: WORKSPACE.id,
+      networkId: h.network.id,
+      commitId: h.second.id,
+      runId: h.run2,
+      title: "m2 width",
+      createdBy: "u_designer1",
+    })
+    .run();
+  db.insert(comments)
+    .values({
+      id: "c_case",
+      threadId: "t_case",
+      workspaceId: WORKSPACE.id,
+      authorId: "u_designer1",
+      body: `Widened m2, see [[run ${h.run2}]]`,
+    })
+    .run();
+  const m = saveMeasurement(
+    {
+      networkId: h.network.id,
+      name: "bench.csv",
+      bytes: new TextEncoder().encode(BENCH_CSV),
+      createdBy: "u_designer1",
+    },
+    db,
+  );
+  return {
+    networkId: h.network.id,
+    fromId: h.first.id,
+    toId: h.second.id,
+    runId: h.run2,
+    threadId: "t_case",
+    measurementId: m.id,
+  };
 };
 const BENCH_CSV = "iin [nA], ratio [1]\n1, 0.51\n10, 0.5\n100, 0.49\n";
 
@@ -188,7 +256,8 @@ function filesNamed(name: string): string[] {
 }
 
 const fill = (s: string, vars: Vars) => s.replace(/\{(\w+)\}/g, (m, k: string) => vars[k] ?? m);
-const fillAll = (o: Vars, vars: Vars): Vars => Object.fromEntries(Object.entries(o).map(([k, v]) => [k, fill(v, vars)]));
+const fillAll = (o: Vars, vars: Vars): Vars =>
+  Object.fromEntries(Object.entries(o).map(([k, v]) => [k, fill(v, vars)]));
 
 let fixture: AccountsFixture;
 let sink: MailSink;
@@ -226,7 +295,10 @@ describe("the access matrix", () => {
     describe(`route handlers, signed in by ${credential}`, () => {
       for (const row of ROUTES) {
         it(`${row.method} ${row.url} → ${row.expect.join(" ")}`, async () => {
-          const mod = (await import(path.resolve(row.file))) as Record<string, (req: Request, ctx: unknown) => Promise<Response>>;
+          const mod = (await import(path.resolve(row.file))) as Record<
+            string,
+            (req: Request, ctx: unknown) => Promise<Response>
+          >;
           const got: number[] = [];
           for (const who of WHO) {
             const db = fixture.useCopy();
@@ -243,7 +315,9 @@ describe("the access matrix", () => {
             const res = await mod[row.method](req, { params: Promise.resolve(fillAll(row.params ?? {}, vars)) });
             got.push(res.status);
           }
-          expect(Object.fromEntries(WHO.map((w, i) => [w, got[i]]))).toEqual(Object.fromEntries(WHO.map((w, i) => [w, row.expect[i]])));
+          expect(Object.fromEntries(WHO.map((w, i) => [w, got[i]]))).toEqual(
+            Object.fromEntries(WHO.map((w, i) => [w, row.expect[i]])),
+          );
         });
       }
     });
@@ -261,7 +335,9 @@ describe("the access matrix", () => {
           setRequest({ cookies: actor ? { runnel_session: actor.sessionId } : {} });
           got.push((await runAction(mod[row.name], form(fillAll(row.form, vars)))).status);
         }
-        expect(Object.fromEntries(WHO.map((w, i) => [w, got[i]]))).toEqual(Object.fromEntries(WHO.map((w, i) => [w, row.expect[i]])));
+        expect(Object.fromEntries(WHO.map((w, i) => [w, got[i]]))).toEqual(
+          Object.fromEntries(WHO.map((w, i) => [w, row.expect[i]])),
+        );
       });
     }
   });
@@ -270,7 +346,9 @@ describe("the access matrix", () => {
     const { GET } = await import("@/app/api/w/[slug]/members/route");
     fixture.useCopy();
     for (const who of WHO.slice(1)) {
-      const req = new Request(`${SITE}/api/w/no-such-block/members`, { headers: { cookie: fixture.actors[who]!.cookie } });
+      const req = new Request(`${SITE}/api/w/no-such-block/members`, {
+        headers: { cookie: fixture.actors[who]!.cookie },
+      });
       expect((await GET(req, { params: Promise.resolve({ slug: "no-such-block" }) })).status).toBe(404);
     }
   });

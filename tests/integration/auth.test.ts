@@ -39,7 +39,10 @@ const sessionCookie = () => requestContext.setCookies.filter((c) => c.name === S
 describe("passwords", () => {
   it("are hashed with argon2id, m=19456 KiB, t=2, p=1 (OWASP Password Storage Cheat Sheet, 2023; common practice)", async () => {
     const password = "correct horse battery";
-    const out = await runAction(signUp, form({ name: "Nia Hale", email: "Nia.Hale@Elsewhere.example ", password, confirm: password }));
+    const out = await runAction(
+      signUp,
+      form({ name: "Nia Hale", email: "Nia.Hale@Elsewhere.example ", password, confirm: password }),
+    );
     expect(out).toMatchObject({ status: 303, location: "/" });
     const row = db().select().from(users).where(eq(users.email, "nia.hale@elsewhere.example")).get()!;
     expect(row.passwordHash).toMatch(/^\$argon2id\$v=19\$m=19456,t=2,p=1\$[A-Za-z0-9+/]{22}\$[A-Za-z0-9+/]{43}$/);
@@ -69,7 +72,10 @@ describe("passwords", () => {
   });
 
   it("sign-up explains each bad field and keeps what was typed (but not the password)", async () => {
-    const out = await runAction(signUp, form({ name: "", email: "not-an-address", password: "short", confirm: "other" }));
+    const out = await runAction(
+      signUp,
+      form({ name: "", email: "not-an-address", password: "short", confirm: "other" }),
+    );
     expect(out.status).toBe(400);
     expect(out.state?.fieldErrors).toEqual({
       name: ["enter your name"],
@@ -78,10 +84,16 @@ describe("passwords", () => {
       confirm: ["the two passwords differ"],
     });
     expect(out.state?.values).toEqual({ name: "", email: "not-an-address" });
-    const taken = await runAction(signUp, form({ name: "Ada", email: OWNER, password: "long enough pw", confirm: "long enough pw" }));
+    const taken = await runAction(
+      signUp,
+      form({ name: "Ada", email: OWNER, password: "long enough pw", confirm: "long enough pw" }),
+    );
     expect(taken.status).toBe(409);
     expect(taken.state?.fieldErrors?.email?.[0]).toMatch(/exists: sign in instead/);
-    const mismatch = await runAction(signUp, form({ name: "Bo", email: "bo@elsewhere.example", password: "long enough pw", confirm: "long enough px" }));
+    const mismatch = await runAction(
+      signUp,
+      form({ name: "Bo", email: "bo@elsewhere.example", password: "long enough pw", confirm: "long enough px" }),
+    );
     expect(mismatch.state?.fieldErrors).toEqual({ confirm: ["the two passwords differ"] });
   });
 });
@@ -128,7 +140,11 @@ describe("sessions", () => {
 
   it("an expired session is refused", async () => {
     const { sessionId } = fixture.actors.owner!;
-    db().update(sessions).set({ expiresAt: Math.floor(Date.now() / 1000) - 1 }).where(eq(sessions.id, sessionId)).run();
+    db()
+      .update(sessions)
+      .set({ expiresAt: Math.floor(Date.now() / 1000) - 1 })
+      .where(eq(sessions.id, sessionId))
+      .run();
     const req = new Request(`${SITE}/api/me`, { headers: { cookie: `${SESSION_COOKIE}=${sessionId}` } });
     expect((await getMe(req)).status).toBe(401);
   });
@@ -157,7 +173,9 @@ describe("sign-in rate limits", () => {
       message: "Too many failed sign-ins for this account. Try again in 14 minutes (after 14:15 UTC).",
     });
     // another account is not affected
-    expect(await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.1", new Date(t0.getTime() + 60_000))).toMatchObject({ ok: true });
+    expect(
+      await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.1", new Date(t0.getTime() + 60_000)),
+    ).toMatchObject({ ok: true });
     // when the first failure leaves the window, the account opens again
     const later = new Date(t0.getTime() + SIGN_IN_WINDOW_MS + 1);
     expect(await checkSignIn(OWNER, DEMO_PASSWORD, "192.0.2.50", later)).toMatchObject({ ok: true });
@@ -176,17 +194,28 @@ describe("sign-in rate limits", () => {
     for (let i = 0; i < ADDRESS_FAILURES; i++) {
       await checkSignIn(`guess${i}@larkspur.example`, "wrong", "203.0.113.99", new Date(t0.getTime() + i * 1000));
     }
-    const r = await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.99", new Date(t0.getTime() + 30_000));
+    const r = await checkSignIn(
+      "designer@larkspur.example",
+      DEMO_PASSWORD,
+      "203.0.113.99",
+      new Date(t0.getTime() + 30_000),
+    );
     expect(r).toMatchObject({ ok: false, status: 429 });
-    expect(r.ok ? "" : r.message).toMatch(/^Too many failed sign-ins from your network address\. Try again in 15 minutes \(after 10:15 UTC\)\.$/);
-    expect(await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.100", new Date(t0.getTime() + 30_000))).toMatchObject({ ok: true });
+    expect(r.ok ? "" : r.message).toMatch(
+      /^Too many failed sign-ins from your network address\. Try again in 15 minutes \(after 10:15 UTC\)\.$/,
+    );
+    expect(
+      await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.100", new Date(t0.getTime() + 30_000)),
+    ).toMatchObject({ ok: true });
   });
 
   it("the sign-in form shows the lock message", async () => {
     for (let i = 0; i < ACCOUNT_FAILURES; i++) await runAction(signIn, form({ email: OWNER, password: "wrong" }));
     const out = await runAction(signIn, form({ email: OWNER, password: DEMO_PASSWORD }));
     expect(out.status).toBe(429);
-    expect(out.state?.error).toMatch(/^Too many failed sign-ins for this account\. Try again in 15 minutes \(after \d\d:\d\d UTC\)\.$/);
+    expect(out.state?.error).toMatch(
+      /^Too many failed sign-ins for this account\. Try again in 15 minutes \(after \d\d:\d\d UTC\)\.$/,
+    );
   });
 });
 
@@ -205,7 +234,11 @@ describe("API tokens", () => {
     const res = await me(`Bearer ${token}`);
     expect(res.status).toBe(200);
     const body = await res.json();
-    expect(body).toMatchObject({ user: { id: "u_reviewer" }, via: "token", workspaces: [{ slug: "lm64-edge-row", role: "reviewer" }] });
+    expect(body).toMatchObject({
+      user: { id: "u_reviewer" },
+      via: "token",
+      workspaces: [{ slug: "lm64-edge-row", role: "reviewer" }],
+    });
     expect(db().select().from(apiTokens).where(eq(apiTokens.id, stored.id)).get()!.lastUsedAt).not.toBeNull();
   });
 
@@ -238,7 +271,13 @@ describe("API tokens", () => {
 
 describe("the Origin check", () => {
   const post = (headers: Record<string, string>) =>
-    postWorkspace(new Request(`${SITE}/api/workspaces`, { method: "POST", headers: { "content-type": "application/json", ...headers }, body: JSON.stringify({ name: "Divider C" }) }));
+    postWorkspace(
+      new Request(`${SITE}/api/workspaces`, {
+        method: "POST",
+        headers: { "content-type": "application/json", ...headers },
+        body: JSON.stringify({ name: "Divider C" }),
+      }),
+    );
   const host = new URL(SITE).host;
   const cookie = () => fixture.actors.designer!.cookie;
 
@@ -253,7 +292,16 @@ describe("the Origin check", () => {
 
   it("accepts our own origin (also behind a proxy that sets X-Forwarded-Host) and bearer tokens", async () => {
     expect((await post({ cookie: cookie(), host, origin: SITE })).status).toBe(201);
-    expect((await post({ cookie: cookie(), host: "10.0.0.5:3000", "x-forwarded-host": "runnel.lab.example", origin: "https://runnel.lab.example" })).status).toBe(201);
+    expect(
+      (
+        await post({
+          cookie: cookie(),
+          host: "10.0.0.5:3000",
+          "x-forwarded-host": "runnel.lab.example",
+          origin: "https://runnel.lab.example",
+        })
+      ).status,
+    ).toBe(201);
     expect((await post({ authorization: `Bearer ${fixture.actors.designer!.token}` })).status).toBe(201);
   });
 

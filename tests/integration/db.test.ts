@@ -23,7 +23,9 @@ describe("database", () => {
     expect(db.$client.pragma("journal_mode", { simple: true })).toBe("wal");
     expect(db.$client.pragma("foreign_keys", { simple: true })).toBe(1);
     expect(db.$client.pragma("busy_timeout", { simple: true })).toBe(5000);
-    const tables = db.all<{ name: string }>(sql`select name from sqlite_master where type = 'table'`).map((r) => r.name);
+    const tables = db
+      .all<{ name: string }>(sql`select name from sqlite_master where type = 'table'`)
+      .map((r) => r.name);
     expect(tables).toEqual(expect.arrayContaining(["users", "workspaces", "memberships", "__drizzle_migrations"]));
   });
 
@@ -36,16 +38,22 @@ describe("database", () => {
     expect(second).toEqual(first);
     expect(first.users).toBe(DEMO_USERS.length);
     expect(dump()).toBe(before);
-    const roles = new Set(db.select().from(memberships).all().map((m) => m.role));
+    const roles = new Set(
+      db
+        .select()
+        .from(memberships)
+        .all()
+        .map((m) => m.role),
+    );
     expect([...roles].sort()).toEqual(["designer", "owner", "reviewer", "viewer"]);
   });
 
   it("refuses a membership for a user that does not exist (foreign keys)", () => {
     const { db } = fresh();
     seedDemo(db);
-    expect(() => db.insert(memberships).values({ workspaceId: "ws_lm64", userId: "nobody", role: "viewer" }).run()).toThrow(
-      /FOREIGN KEY/,
-    );
+    expect(() =>
+      db.insert(memberships).values({ workspaceId: "ws_lm64", userId: "nobody", role: "viewer" }).run(),
+    ).toThrow(/FOREIGN KEY/);
   });
 
   it("names the path when the database folder cannot be made", () => {
@@ -53,7 +61,9 @@ describe("database", () => {
     fs.writeFileSync(file, "not a folder");
     cleanups.push(() => fs.rmSync(file, { force: true }));
     expect(() => openDatabase(path.join(file, "runnel.db"))).toThrow(DatabaseSetupError);
-    expect(() => openDatabase(path.join(file, "runnel.db"))).toThrow(/runnel-file-\d+\/runnel\.db is not usable: a parent is a file/);
+    expect(() => openDatabase(path.join(file, "runnel.db"))).toThrow(
+      /runnel-file-\d+\/runnel\.db is not usable: a parent is a file/,
+    );
   });
 
   it("reports a failed migration in one line, naming the file", () => {

@@ -88,7 +88,10 @@ describe("an invitation", () => {
     const accepted = await runAction(acceptInvitation, form({ token, name: "Ruth New", password: PW, confirm: PW }));
     expect(accepted).toMatchObject({ status: 303, location: "/w/lm64-edge-row" });
     const user = db().select().from(users).where(eq(users.email, "ruth.new@elsewhere.example")).get()!;
-    expect(db().select().from(memberships).where(eq(memberships.userId, user.id)).get()).toMatchObject({ workspaceId: WORKSPACE.id, role: "reviewer" });
+    expect(db().select().from(memberships).where(eq(memberships.userId, user.id)).get()).toMatchObject({
+      workspaceId: WORKSPACE.id,
+      role: "reviewer",
+    });
     expect(requestContext.jar.get(SESSION_COOKIE)).toBeTruthy(); // signed in as the new account
 
     // the same link again: refused, with a page that says why
@@ -102,7 +105,10 @@ describe("an invitation", () => {
 
   it("for an existing account asks for its password (and signs in as it)", async () => {
     const newWs = { id: "ws_mirror", slug: "mirror-bank", name: "Mirror bank" };
-    db().insert((await import("@/db/schema")).workspaces).values(newWs).run();
+    db()
+      .insert((await import("@/db/schema")).workspaces)
+      .values(newWs)
+      .run();
     db().insert(memberships).values({ workspaceId: newWs.id, userId: "u_owner", role: "owner" }).run();
     asOwner();
     await runAction(inviteMember, form({ slug: newWs.slug, email: "viewer@larkspur.example", role: "designer" }));
@@ -113,12 +119,23 @@ describe("an invitation", () => {
     expect(wrong.status).toBe(401);
     const ok = await runAction(acceptInvitation, form({ token, password: DEMO_PASSWORD }));
     expect(ok).toMatchObject({ status: 303, location: "/w/mirror-bank" });
-    expect(db().select().from(memberships).where(eq(memberships.workspaceId, newWs.id)).all().map((m) => m.role).sort()).toEqual(["designer", "owner"]);
+    expect(
+      db()
+        .select()
+        .from(memberships)
+        .where(eq(memberships.workspaceId, newWs.id))
+        .all()
+        .map((m) => m.role)
+        .sort(),
+    ).toEqual(["designer", "owner"]);
   });
 
   it("that expired is refused with a clear page", async () => {
     const token = await inviteByMail("late@elsewhere.example", "viewer");
-    db().update(invitations).set({ expiresAt: new Date(Date.now() - 1000) }).run();
+    db()
+      .update(invitations)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .run();
     setRequest();
     const page = await render(token);
     expect(page).toContain("Invitation expired");
@@ -143,8 +160,14 @@ describe("an invitation", () => {
 
   it("to a member, or without a valid address or role, is refused at the field", async () => {
     asOwner();
-    const member = await runAction(inviteMember, form({ slug: WORKSPACE.slug, email: "Reviewer@Larkspur.example", role: "viewer" }));
-    expect(member).toMatchObject({ status: 409, state: { fieldErrors: { email: ["reviewer@larkspur.example is already a member of this workspace"] } } });
+    const member = await runAction(
+      inviteMember,
+      form({ slug: WORKSPACE.slug, email: "Reviewer@Larkspur.example", role: "viewer" }),
+    );
+    expect(member).toMatchObject({
+      status: 409,
+      state: { fieldErrors: { email: ["reviewer@larkspur.example is already a member of this workspace"] } },
+    });
     const bad = await runAction(inviteMember, form({ slug: WORKSPACE.slug, email: "nope", role: "boss" }));
     expect(bad.status).toBe(400);
     expect(Object.keys(bad.state!.fieldErrors!).sort()).toEqual(["email", "role"]);
@@ -186,19 +209,29 @@ describe("members", () => {
   it("the last owner can be neither demoted nor removed, and cannot leave", async () => {
     const demote = await call(patchMember, "PATCH", "u_owner", "owner", { role: "designer" });
     expect(demote.status).toBe(409);
-    expect((await demote.json()).error).toBe("the workspace needs at least one owner: make another member an owner first");
+    expect((await demote.json()).error).toBe(
+      "the workspace needs at least one owner: make another member an owner first",
+    );
     expect((await call(deleteMember, "DELETE", "u_owner", "owner")).status).toBe(409);
     asOwner();
-    expect(await runAction(leaveWorkspace, form({ slug: WORKSPACE.slug }))).toMatchObject({ status: 409, state: { error: expect.stringMatching(/at least one owner/) } });
+    expect(await runAction(leaveWorkspace, form({ slug: WORKSPACE.slug }))).toMatchObject({
+      status: 409,
+      state: { error: expect.stringMatching(/at least one owner/) },
+    });
   });
 
   it("with a second owner, the first may step down or leave", async () => {
     asOwner();
-    expect((await runAction(changeMemberRole, form({ slug: WORKSPACE.slug, userId: "u_designer1", role: "owner" }))).status).toBe(200);
+    expect(
+      (await runAction(changeMemberRole, form({ slug: WORKSPACE.slug, userId: "u_designer1", role: "owner" }))).status,
+    ).toBe(200);
     expect((await call(patchMember, "PATCH", "u_owner", "owner", { role: "reviewer" })).status).toBe(200);
     // now a reviewer: managing is no longer allowed
     expect((await call(patchMember, "PATCH", "u_viewer", "owner", { role: "designer" })).status).toBe(403);
-    expect(await runAction(leaveWorkspace, form({ slug: WORKSPACE.slug }))).toMatchObject({ status: 303, location: "/" });
+    expect(await runAction(leaveWorkspace, form({ slug: WORKSPACE.slug }))).toMatchObject({
+      status: 303,
+      location: "/",
+    });
   });
 
   it("any member may leave; a person who is not a member is 404", async () => {

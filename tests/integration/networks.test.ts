@@ -1,7 +1,17 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { seedDemo } from "@/db/seed";
-import { commitIdOf, commitText, createNetwork, getCommit, listCommits, listNetworks, renameNetwork, sha256Hex, slugify } from "@/app/lib/networks";
+import {
+  commitIdOf,
+  commitText,
+  createNetwork,
+  getCommit,
+  listCommits,
+  listNetworks,
+  renameNetwork,
+  sha256Hex,
+  slugify,
+} from "@/app/lib/networks";
 import { RequestError } from "@/app/lib/http";
 import { freshDatabase } from "../helpers/db";
 
@@ -39,14 +49,26 @@ describe("networks and commits", () => {
 
   it("creates a network with a first commit, content-addressed", () => {
     const db = fresh();
-    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, message: "Upload divider.runnel", authorId: "u_designer1" }, db);
+    const { network, commit } = createNetwork(
+      {
+        workspaceId: "ws_lm64",
+        name: "Test divider",
+        text: DIVIDER,
+        message: "Upload divider.runnel",
+        authorId: "u_designer1",
+      },
+      db,
+    );
     expect(network.slug).toBe("test-divider");
     expect(commit!.id).toBe(commitIdOf(network.id, null, DIVIDER));
     expect(commit!.id).toBe(sha256Hex(`network:${network.id}\n${DIVIDER}`));
     expect(commit!.textSha256).toBe(sha256Hex(DIVIDER));
     expect(commit!.ok).toBe(true);
     expect(network.headCommitId).toBe(commit!.id);
-    const second = createNetwork({ workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, authorId: "u_designer1" }, db);
+    const second = createNetwork(
+      { workspaceId: "ws_lm64", name: "Test divider", text: DIVIDER, authorId: "u_designer1" },
+      db,
+    );
     expect(second.network.slug).toBe("test-divider-2");
     // same text, different network: a different commit, the same text hash
     expect(second.commit!.id).not.toBe(commit!.id);
@@ -55,23 +77,46 @@ describe("networks and commits", () => {
 
   it("commits on the head only, refuses an unchanged text, keeps a commit with errors", () => {
     const db = fresh();
-    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "d", text: DIVIDER, authorId: "u_designer1" }, db);
+    const { network, commit } = createNetwork(
+      { workspaceId: "ws_lm64", name: "d", text: DIVIDER, authorId: "u_designer1" },
+      db,
+    );
     const bad = `${DIVIDER}nfet m2 gate=nowhere\n`;
-    const c2 = commitText({ networkId: network.id, parentId: commit!.id, text: bad, message: "try m2", authorId: "u_designer2" }, db);
+    const c2 = commitText(
+      { networkId: network.id, parentId: commit!.id, text: bad, message: "try m2", authorId: "u_designer2" },
+      db,
+    );
     expect(c2.parentId).toBe(commit!.id);
     expect(c2.ok).toBe(false);
     expect(c2.errorCount).toBeGreaterThan(0);
     expect(c2.diagnostics[0]).toMatchObject({ severity: "error", line: 6 });
     expect(c2.authorName).toBe("Mina Osei");
-    const stale = errorOf(() => commitText({ networkId: network.id, parentId: commit!.id, text: DIVIDER + "\n", message: "x", authorId: "u_designer1" }, db));
+    const stale = errorOf(() =>
+      commitText(
+        { networkId: network.id, parentId: commit!.id, text: DIVIDER + "\n", message: "x", authorId: "u_designer1" },
+        db,
+      ),
+    );
     expect(stale.status).toBe(409);
     expect(stale.details.head).toBe(c2.id);
-    const same = errorOf(() => commitText({ networkId: network.id, parentId: c2.id, text: bad, message: "again", authorId: "u_designer1" }, db));
+    const same = errorOf(() =>
+      commitText({ networkId: network.id, parentId: c2.id, text: bad, message: "again", authorId: "u_designer1" }, db),
+    );
     expect(same.status).toBe(409);
     expect(same.message).toMatch(/nothing to commit/);
-    expect(errorOf(() => commitText({ networkId: network.id, parentId: c2.id, text: DIVIDER, message: "  ", authorId: "u_designer1" }, db)).status).toBe(400);
+    expect(
+      errorOf(() =>
+        commitText(
+          { networkId: network.id, parentId: c2.id, text: DIVIDER, message: "  ", authorId: "u_designer1" },
+          db,
+        ),
+      ).status,
+    ).toBe(400);
     // back to the first text on a new parent: a new commit
-    const c3 = commitText({ networkId: network.id, parentId: c2.id, text: DIVIDER, message: "drop m2", authorId: "u_designer1" }, db);
+    const c3 = commitText(
+      { networkId: network.id, parentId: c2.id, text: DIVIDER, message: "drop m2", authorId: "u_designer1" },
+      db,
+    );
     expect(c3.id).not.toBe(commit!.id);
     expect(listCommits(network.id, db).map((c) => c.id)).toEqual([c3.id, c2.id, commit!.id]);
     expect(getCommit(c3.id, db)!.text).toBe(DIVIDER);

@@ -27,7 +27,12 @@ afterAll(async () => {
   delete process.env.RUNNEL_MAIL_SINK_PORT;
 });
 
-function request(who: "reviewer" | "designer" | "viewer" | "outsider", method: string, url: string, body?: unknown): Request {
+function request(
+  who: "reviewer" | "designer" | "viewer" | "outsider",
+  method: string,
+  url: string,
+  body?: unknown,
+): Request {
   const headers = new Headers({ origin: SITE, host: new URL(SITE).host, cookie: fixture.actors[who]!.cookie });
   if (body !== undefined) headers.set("content-type", "application/json");
   return new Request(SITE + url, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) });
@@ -36,8 +41,19 @@ function request(who: "reviewer" | "designer" | "viewer" | "outsider", method: s
 function setup() {
   const db = fixture.useCopy();
   const h = dividerHistory(db);
-  db.insert(threads).values({ id: "t_r", workspaceId: WORKSPACE.id, networkId: h.network.id, commitId: h.second.id, title: "width", createdBy: "u_designer1" }).run();
-  db.insert(comments).values({ id: "c_r", threadId: "t_r", workspaceId: WORKSPACE.id, authorId: "u_designer1", body: "first" }).run();
+  db.insert(threads)
+    .values({
+      id: "t_r",
+      workspaceId: WORKSPACE.id,
+      networkId: h.network.id,
+      commitId: h.second.id,
+      title: "width",
+      createdBy: "u_designer1",
+    })
+    .run();
+  db.insert(comments)
+    .values({ id: "c_r", threadId: "t_r", workspaceId: WORKSPACE.id, authorId: "u_designer1", body: "first" })
+    .run();
   return h;
 }
 const ctx = (id: string) => ({ params: Promise.resolve({ id }) });
@@ -51,7 +67,12 @@ describe("review routes", () => {
     setup();
     inbox.length = 0;
     const { POST } = await import("@/app/api/threads/[id]/comments/route");
-    const res = await POST(request("designer", "POST", "/api/threads/t_r/comments", { body: "@reviewer could you check? (@reviewer, twice) @nobody" }), ctx("t_r"));
+    const res = await POST(
+      request("designer", "POST", "/api/threads/t_r/comments", {
+        body: "@reviewer could you check? (@reviewer, twice) @nobody",
+      }),
+      ctx("t_r"),
+    );
     expect(res.status).toBe(201);
     expect((await res.json()).notified).toEqual(["reviewer"]);
     await waitFor(1);
@@ -87,7 +108,9 @@ describe("review routes", () => {
   it("compare answers JSON with tolerances; a bad tolerance names the field", async () => {
     const h = setup();
     const { GET } = await import("@/app/api/compare/route");
-    const ok = await (await GET(request("viewer", "GET", `/api/compare?from=${h.first.id}&to=${h.second.id}&rel=1e-3`))).json();
+    const ok = await (
+      await GET(request("viewer", "GET", `/api/compare?from=${h.first.id}&to=${h.second.id}&rel=1e-3`))
+    ).json();
     expect(ok.results.beyond).toBe(12);
     expect(ok.results.tolerance.rel).toBe(1e-3);
     const bad = await GET(request("viewer", "GET", `/api/compare?from=${h.first.id}&to=${h.second.id}&rel=-1`));
@@ -99,14 +122,25 @@ describe("review routes", () => {
     const h = setup();
     const { POST, GET } = await import("@/app/api/networks/[id]/measurements/route");
     const fd = new FormData();
-    fd.set("file", new File([new Uint8Array([...new TextEncoder().encode("iin [nA], ratio [1]\n1, 0.5\n2, "), 0xe9, 0x0a])], "latin1.csv"));
+    fd.set(
+      "file",
+      new File(
+        [new Uint8Array([...new TextEncoder().encode("iin [nA], ratio [1]\n1, 0.5\n2, "), 0xe9, 0x0a])],
+        "latin1.csv",
+      ),
+    );
     const headers = new Headers({ origin: SITE, host: new URL(SITE).host, cookie: fixture.actors.designer!.cookie });
-    const res = await POST(new Request(`${SITE}/api/networks/${h.network.id}/measurements`, { method: "POST", headers, body: fd }), ctx(h.network.id));
+    const res = await POST(
+      new Request(`${SITE}/api/networks/${h.network.id}/measurements`, { method: "POST", headers, body: fd }),
+      ctx(h.network.id),
+    );
     expect(res.status).toBe(422);
     const body = await res.json();
     expect(body.error).toMatch(/^row 3, column 2: byte 0xE9/);
     expect(body.errors[0]).toMatchObject({ row: 3, column: 2 });
-    const list = await (await GET(request("designer", "GET", `/api/networks/${h.network.id}/measurements`), ctx(h.network.id))).json();
+    const list = await (
+      await GET(request("designer", "GET", `/api/networks/${h.network.id}/measurements`), ctx(h.network.id))
+    ).json();
     expect(list.measurements).toEqual([]);
   });
 });

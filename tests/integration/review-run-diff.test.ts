@@ -46,10 +46,35 @@ describe("stored commit diff after a real run", () => {
     });
     const db = t.db;
     seedDemo(db);
-    const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name: "Split", text: text("1u"), message: "equal", authorId: "u_designer1" }, db);
-    const second = commitText({ networkId: network.id, parentId: commit!.id, text: text("2u"), message: "m2 twice as wide", authorId: "u_designer1" }, db);
-    for (const [id, c] of [["r_one", commit!.id], ["r_two", second.id]] as const) {
-      db.insert(runs).values({ id, commitId: c, networkId: network.id, workspaceId: "ws_lm64", createdBy: "u_designer1", pointsTotal: 3, timeLimitMs: 60_000 }).run();
+    const { network, commit } = createNetwork(
+      { workspaceId: "ws_lm64", name: "Split", text: text("1u"), message: "equal", authorId: "u_designer1" },
+      db,
+    );
+    const second = commitText(
+      {
+        networkId: network.id,
+        parentId: commit!.id,
+        text: text("2u"),
+        message: "m2 twice as wide",
+        authorId: "u_designer1",
+      },
+      db,
+    );
+    for (const [id, c] of [
+      ["r_one", commit!.id],
+      ["r_two", second.id],
+    ] as const) {
+      db.insert(runs)
+        .values({
+          id,
+          commitId: c,
+          networkId: network.id,
+          workspaceId: "ws_lm64",
+          createdBy: "u_designer1",
+          pointsTotal: 3,
+          timeLimitMs: 60_000,
+        })
+        .run();
       expect(executeRun(db, id).state).toBe("done");
     }
     const first = db.select().from(commitDiffs).where(eq(commitDiffs.runId, "r_one")).get()!;

@@ -37,7 +37,13 @@ describe("stored commit diffs", () => {
     expect([...new Set(d2.summary.rows.map((r) => r.name))].sort()).toEqual(["m1", "m2", "ratio", "x"]);
     // computed once: a second call returns the stored row, nothing new is written
     expect(storeCommitDiff(run2, db)!.createdAt).toEqual(d2.createdAt);
-    expect(db.select().from(commitDiffs).all().filter((r) => r.runId === run1 || r.runId === run2)).toHaveLength(2);
+    expect(
+      db
+        .select()
+        .from(commitDiffs)
+        .all()
+        .filter((r) => r.runId === run1 || r.runId === run2),
+    ).toHaveLength(2);
     const badge = commitBadges([second.id], db).get(second.id)!;
     expect(badge.diffs[0]).toMatchObject({ analysis: "sweep iin", beyond: 12 });
     expect(badge.review).toBe("open");
@@ -65,7 +71,13 @@ describe("threads", () => {
     const { second, run2 } = dividerHistory(db);
     const { notify, sent } = recorder();
     const { thread, notified } = await createThread(
-      { commitId: second.id, runId: run2, title: "m2 width", body: "@reviewer please look at [[run " + run2 + "]]; cc @reviewer again, @nobody and me @designer", authorId: "u_designer1" },
+      {
+        commitId: second.id,
+        runId: run2,
+        title: "m2 width",
+        body: "@reviewer please look at [[run " + run2 + "]]; cc @reviewer again, @nobody and me @designer",
+        authorId: "u_designer1",
+      },
       notify,
       db,
     );
@@ -84,33 +96,71 @@ describe("threads", () => {
     const db = fresh();
     const { first, second, run2 } = dividerHistory(db);
     const { notify } = recorder();
-    const { thread } = await createThread({ commitId: first.id, title: "ratio", body: "Is 1:1 intended?", authorId: "u_reviewer" }, notify, db);
-    await addComment({ threadId: thread.id, body: "Make m2 twice as wide.", authorId: "u_reviewer", verdict: "changes_asked" }, notify, db);
+    const { thread } = await createThread(
+      { commitId: first.id, title: "ratio", body: "Is 1:1 intended?", authorId: "u_reviewer" },
+      notify,
+      db,
+    );
+    await addComment(
+      { threadId: thread.id, body: "Make m2 twice as wide.", authorId: "u_reviewer", verdict: "changes_asked" },
+      notify,
+      db,
+    );
     expect(commitBadges([first.id], db).get(first.id)!.review).toBe("changes_asked");
-    const t2 = await createThread({ commitId: second.id, runId: run2, title: "fix", body: `Fixed, see [[run ${run2}]]`, authorId: "u_designer1" }, notify, db);
+    const t2 = await createThread(
+      { commitId: second.id, runId: run2, title: "fix", body: `Fixed, see [[run ${run2}]]`, authorId: "u_designer1" },
+      notify,
+      db,
+    );
     await addComment({ threadId: t2.thread.id, body: "", authorId: "u_reviewer", verdict: "signed_off" }, notify, db);
     const b = commitBadges([first.id, second.id], db);
     expect(b.get(second.id)!.review).toBe("signed_off");
     expect(b.get(second.id)!.verdicts[0]).toMatchObject({ reviewerName: "Ruth Calder", verdict: "signed_off" });
     expect(getThread(t2.thread.id, db)!.review).toBe("signed_off");
     // a verdict in the first thread about the fix commit; a commit of another network is refused
-    await addComment({ threadId: thread.id, body: "The fix is good.", authorId: "u_owner", verdict: "signed_off", verdictCommitId: second.id }, notify, db);
+    await addComment(
+      {
+        threadId: thread.id,
+        body: "The fix is good.",
+        authorId: "u_owner",
+        verdict: "signed_off",
+        verdictCommitId: second.id,
+      },
+      notify,
+      db,
+    );
     const view = getThread(thread.id, db)!;
     expect(view.commitStates.map((c) => [c.commitId, c.review])).toEqual([
       [first.id, "changes_asked"],
       [second.id, "signed_off"],
     ]);
-    await expect(addComment({ threadId: thread.id, body: "x", authorId: "u_owner", verdict: "signed_off", verdictCommitId: "elsewhere" }, notify, db)).rejects.toThrow(/not a commit of this thread's network/);
+    await expect(
+      addComment(
+        { threadId: thread.id, body: "x", authorId: "u_owner", verdict: "signed_off", verdictCommitId: "elsewhere" },
+        notify,
+        db,
+      ),
+    ).rejects.toThrow(/not a commit of this thread's network/);
   });
 
   it("refuses an empty comment, an over-long one, a run of another commit, and hides runs of other workspaces", async () => {
     const db = fresh();
     const { first, run2 } = dividerHistory(db);
     const { notify } = recorder();
-    await expect(createThread({ commitId: first.id, title: "x", body: "  ", authorId: "u_reviewer" }, notify, db)).rejects.toThrow(/write a comment/);
-    await expect(createThread({ commitId: first.id, title: "x", body: "a".repeat(20_001), authorId: "u_reviewer" }, notify, db)).rejects.toThrow(/at most 20000/);
-    await expect(createThread({ commitId: first.id, runId: run2, title: "x", body: "b", authorId: "u_reviewer" }, notify, db)).rejects.toThrow(/not a run of this commit/);
-    const { thread } = await createThread({ commitId: first.id, title: "x", body: "[[run r_elsewhere]]", authorId: "u_reviewer" }, notify, db);
+    await expect(
+      createThread({ commitId: first.id, title: "x", body: "  ", authorId: "u_reviewer" }, notify, db),
+    ).rejects.toThrow(/write a comment/);
+    await expect(
+      createThread({ commitId: first.id, title: "x", body: "a".repeat(20_001), authorId: "u_reviewer" }, notify, db),
+    ).rejects.toThrow(/at most 20000/);
+    await expect(
+      createThread({ commitId: first.id, runId: run2, title: "x", body: "b", authorId: "u_reviewer" }, notify, db),
+    ).rejects.toThrow(/not a run of this commit/);
+    const { thread } = await createThread(
+      { commitId: first.id, title: "x", body: "[[run r_elsewhere]]", authorId: "u_reviewer" },
+      notify,
+      db,
+    );
     expect(getThread(thread.id, db)!.runCards).toEqual([{ id: "r_elsewhere", found: false }]);
   });
 });
@@ -121,7 +171,10 @@ describe("measurements", () => {
   it("stores a good CSV and compares it with a run that sweeps its x", () => {
     const db = fresh();
     const { network, run2 } = dividerHistory(db);
-    const m = saveMeasurement({ networkId: network.id, name: "bench.csv", bytes: new TextEncoder().encode(CSV), createdBy: "u_designer1" }, db);
+    const m = saveMeasurement(
+      { networkId: network.id, name: "bench.csv", bytes: new TextEncoder().encode(CSV), createdBy: "u_designer1" },
+      db,
+    );
     expect(m.x).toMatchObject({ name: "iin", unit: "nA" });
     expect(m.x.values).toEqual([1e-9, 1e-8, 1e-7]);
     const o = overlay(m.id, run2, {}, db);
@@ -138,13 +191,25 @@ describe("measurements", () => {
     const { network } = dividerHistory(db);
     let err: RequestError | null = null;
     try {
-      saveMeasurement({ networkId: network.id, name: "bad.csv", bytes: new TextEncoder().encode("iin [nA], ratio [1]\n1, 0.5\n2, half\n"), createdBy: "u_designer1" }, db);
+      saveMeasurement(
+        {
+          networkId: network.id,
+          name: "bad.csv",
+          bytes: new TextEncoder().encode("iin [nA], ratio [1]\n1, 0.5\n2, half\n"),
+          createdBy: "u_designer1",
+        },
+        db,
+      );
     } catch (e) {
       err = e as RequestError;
     }
     expect(err?.status).toBe(422);
-    expect(err?.message).toBe('row 3, column 2 (ratio): "half" is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)');
-    expect(db.$client.prepare("select count(*) as n from measurements where network_id = ?").get(network.id)).toEqual({ n: 0 });
+    expect(err?.message).toBe(
+      'row 3, column 2 (ratio): "half" is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)',
+    );
+    expect(db.$client.prepare("select count(*) as n from measurements where network_id = ?").get(network.id)).toEqual({
+      n: 0,
+    });
   });
 });
 
@@ -165,9 +230,14 @@ describe("demo review seed", () => {
     expect(fixCard).toMatchObject({ found: true, state: "done" });
     const badge = commitBadges([view.commitStates[1].commitId], db).get(view.commitStates[1].commitId)!;
     expect(badge.diffs[0].beyond).toBeGreaterThan(0);
-    const ms = db.$client.prepare("select id, commit_id as commitId from measurements").all() as { id: string; commitId: string }[];
+    const ms = db.$client.prepare("select id, commit_id as commitId from measurements").all() as {
+      id: string;
+      commitId: string;
+    }[];
     expect(ms).toHaveLength(1);
-    const rowRun = db.$client.prepare("select id from runs where commit_id = ? and state = 'done'").get(ms[0].commitId) as { id: string };
+    const rowRun = db.$client
+      .prepare("select id from runs where commit_id = ? and state = 'done'")
+      .get(ms[0].commitId) as { id: string };
     const o = overlay(ms[0].id, rowRun.id, {}, db);
     expect(o.series[0].against).toBe("i{k}");
     expect(o.series[0].agreement.n).toBe(22);

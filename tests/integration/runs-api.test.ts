@@ -58,12 +58,22 @@ afterAll(async () => {
 type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
 
 /** Calls a route handler as `who` (session cookie), with JSON in and out. */
-async function call(who: Who, file: string, method: string, url: string, params: Record<string, string> = {}, body?: unknown) {
+async function call(
+  who: Who,
+  file: string,
+  method: string,
+  url: string,
+  params: Record<string, string> = {},
+  body?: unknown,
+) {
   const mod = (await import(/* @vite-ignore */ `@/app/api/${file}`)) as Record<string, Handler>;
   const headers = new Headers({ origin: SITE, host: new URL(SITE).host, "content-type": "application/json" });
   const actor = fixture.actors[who];
   if (actor) headers.set("cookie", actor.cookie);
-  const res = await mod[method](new Request(SITE + url, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) }), { params: Promise.resolve(params) });
+  const res = await mod[method](
+    new Request(SITE + url, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) }),
+    { params: Promise.resolve(params) },
+  );
   const text = await res.text();
   let json: Record<string, unknown> = {};
   try {
@@ -75,7 +85,14 @@ async function call(who: Who, file: string, method: string, url: string, params:
 }
 
 async function newNetwork(name: string, text: string): Promise<{ networkId: string; commitId: string }> {
-  const r = await call("designer", "w/[slug]/networks/route", "POST", "/api/w/lm64-edge-row/networks", { slug: "lm64-edge-row" }, { name, text, message: "for the test" });
+  const r = await call(
+    "designer",
+    "w/[slug]/networks/route",
+    "POST",
+    "/api/w/lm64-edge-row/networks",
+    { slug: "lm64-edge-row" },
+    { name, text, message: "for the test" },
+  );
   expect(r.status).toBe(201);
   const body = r.json as { network: { id: string }; commit: { id: string } };
   return { networkId: body.network.id, commitId: body.commit.id };
@@ -99,7 +116,8 @@ async function until(id: string, done: (r: RunJson) => boolean, ms = 30_000): Pr
   for (;;) {
     const r = await runOf(id);
     if (done(r)) return r;
-    if (Date.now() > end) throw new Error(`run ${id} still ${r.state} (${r.pointsDone}/${r.pointsTotal}) after ${ms} ms`);
+    if (Date.now() > end)
+      throw new Error(`run ${id} still ${r.state} (${r.pointsDone}/${r.pointsTotal}) after ${ms} ms`);
     await new Promise((f) => setTimeout(f, 100));
   }
 }
@@ -111,7 +129,14 @@ describe("runs through the API", () => {
     // commit a second version as the owner; a reviewer and a viewer cannot commit
     const text2 = SWEEP.replace("value=20n", "value=40n");
     const commitAs = (who: Who) =>
-      call(who, "networks/[id]/commits/route", "POST", `/api/networks/${networkId}/commits`, { id: networkId }, { parent: commitId, text: text2, message: "double the tail" });
+      call(
+        who,
+        "networks/[id]/commits/route",
+        "POST",
+        `/api/networks/${networkId}/commits`,
+        { id: networkId },
+        { parent: commitId, text: text2, message: "double the tail" },
+      );
     expect((await commitAs("viewer")).status).toBe(403);
     expect((await commitAs("reviewer")).status).toBe(403);
     expect((await commitAs("outsider")).status).toBe(404);
@@ -135,12 +160,30 @@ describe("runs through the API", () => {
     expect((await until((asReviewer.json as { run: RunJson }).run.id, ended)).state).toBe("done");
 
     // results, read by a viewer
-    const series = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, { id: run.id });
+    const series = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, {
+      id: run.id,
+    });
     expect(series.status).toBe(200);
-    const s = (series.json as { series: { probes: string[]; params: string[]; paramValues: number[][]; probeValues: number[][]; method: string[] } }).series;
+    const s = (
+      series.json as {
+        series: {
+          probes: string[];
+          params: string[];
+          paramValues: number[][];
+          probeValues: number[][];
+          method: string[];
+        };
+      }
+    ).series;
     expect(s.probes).toEqual(["ratio"]);
     // a second read comes from the per-run cache and says the same
-    expect((await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, { id: run.id })).json).toEqual(series.json);
+    expect(
+      (
+        await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, {
+          id: run.id,
+        })
+      ).json,
+    ).toEqual(series.json);
     expect((series.json as { run: { state: string } }).run.state).toBe("done");
     const dv = s.paramValues[s.params.indexOf("dv")];
     expect(dv).toHaveLength(9);
@@ -150,35 +193,91 @@ describe("runs through the API", () => {
     expect(s.probeValues[0][4]).toBeCloseTo(1, 9);
     expect(s.probeValues[0][8]).toBeGreaterThan(s.probeValues[0][0]);
 
-    const point = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=point&point=8`, { id: run.id });
-    const p = (point.json as { point: { nodes: { names: string[]; voltage: number[] }; devices: { names: string[]; current: number[] }; probes: { value: number[] } } }).point;
+    const point = await call(
+      "viewer",
+      "runs/[id]/results/route",
+      "GET",
+      `/api/runs/${run.id}/results?view=point&point=8`,
+      { id: run.id },
+    );
+    const p = (
+      point.json as {
+        point: {
+          nodes: { names: string[]; voltage: number[] };
+          devices: { names: string[]; current: number[] };
+          probes: { value: number[] };
+        };
+      }
+    ).point;
     expect(p.devices.names).toEqual(["m1", "m2"]);
     expect(p.devices.current[0] + p.devices.current[1]).toBeCloseTo(40e-9, 15);
     expect(p.probes.value[0]).toBeCloseTo(s.probeValues[0][8], 12);
     // the binary form the run page reads carries the same numbers; the names come once, from view=layout
     const mod = await import("@/app/api/runs/[id]/results/route");
-    const binRes = await mod.GET(new Request(`${SITE}/api/runs/${run.id}/results?view=point&point=8&format=binary`, { headers: { cookie: fixture.actors.viewer!.cookie } }), { params: Promise.resolve({ id: run.id }) });
+    const binRes = await mod.GET(
+      new Request(`${SITE}/api/runs/${run.id}/results?view=point&point=8&format=binary`, {
+        headers: { cookie: fixture.actors.viewer!.cookie },
+      }),
+      { params: Promise.resolve({ id: run.id }) },
+    );
     expect(binRes.headers.get("content-type")).toBe("application/octet-stream");
     const bin = decodePoint(await binRes.arrayBuffer());
     expect(Array.from(bin.current)).toEqual(p.devices.current);
     expect(bin.probes[0]).toBe(p.probes.value[0]);
-    const layout = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=layout`, { id: run.id });
+    const layout = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=layout`, {
+      id: run.id,
+    });
     expect((layout.json as { layout: { devices: string[] } }).layout.devices).toEqual(["m1", "m2"]);
-    expect((await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=point&point=99`, { id: run.id })).status).toBe(404);
-    expect((await call("outsider", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, { id: run.id })).status).toBe(404);
+    expect(
+      (
+        await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=point&point=99`, {
+          id: run.id,
+        })
+      ).status,
+    ).toBe(404);
+    expect(
+      (
+        await call("outsider", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series`, {
+          id: run.id,
+        })
+      ).status,
+    ).toBe(404);
 
     // exports
-    const csv = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${run.id}/export?format=csv`, { id: run.id });
+    const csv = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${run.id}/export?format=csv`, {
+      id: run.id,
+    });
     expect(csv.status).toBe(200);
     expect(csv.headers.get("content-type")).toMatch(/text\/csv/);
     const lines = csv.text.trim().split("\r\n");
     expect(lines[0]).toBe("point,sample,dv,temp,ratio,method,iterations,residual_A,error");
     expect(lines).toHaveLength(10);
     expect(Number(lines[9].split(",")[4])).toBeCloseTo(s.probeValues[0][8], 12);
-    const devicesCsv = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${run.id}/export?format=csv&table=devices&point=0`, { id: run.id });
-    expect(devicesCsv.text.trim().split("\r\n")).toEqual([expect.stringMatching(/^point,sample,device,type,current_A/), expect.stringMatching(/^0,0,m1,nfet,/), expect.stringMatching(/^0,0,m2,nfet,/)]);
-    const json = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${run.id}/export?format=json`, { id: run.id });
-    const doc = json.json as { network: string; ok: boolean; points: { params: Record<string, number>; devices: Record<string, { current: number }>; probes: Record<string, number>; solver: { method: string } }[] };
+    const devicesCsv = await call(
+      "viewer",
+      "runs/[id]/export/route",
+      "GET",
+      `/api/runs/${run.id}/export?format=csv&table=devices&point=0`,
+      { id: run.id },
+    );
+    expect(devicesCsv.text.trim().split("\r\n")).toEqual([
+      expect.stringMatching(/^point,sample,device,type,current_A/),
+      expect.stringMatching(/^0,0,m1,nfet,/),
+      expect.stringMatching(/^0,0,m2,nfet,/),
+    ]);
+    const json = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${run.id}/export?format=json`, {
+      id: run.id,
+    });
+    const doc = json.json as {
+      network: string;
+      ok: boolean;
+      points: {
+        params: Record<string, number>;
+        devices: Record<string, { current: number }>;
+        probes: Record<string, number>;
+        solver: { method: string };
+      }[];
+    };
     expect(doc.network).toBe("split");
     expect(doc.ok).toBe(true);
     expect(doc.points).toHaveLength(9);
@@ -186,7 +285,9 @@ describe("runs through the API", () => {
     expect(Object.keys(doc.points[0].params)).toEqual(["dv"]);
 
     // the commit's text downloads as a file; the run lists under its commit
-    const dl = await call("viewer", "commits/[id]/route", "GET", `/api/commits/${commit2.id}?download`, { id: commit2.id });
+    const dl = await call("viewer", "commits/[id]/route", "GET", `/api/commits/${commit2.id}?download`, {
+      id: commit2.id,
+    });
     expect(dl.text).toBe(text2);
     expect(dl.headers.get("content-disposition")).toMatch(/attachment; filename="split-sweep-[0-9a-f]{12}\.runnel"/);
     const list = await call("viewer", "runs/route", "GET", `/api/runs?commit=${commit2.id}`);
@@ -226,7 +327,9 @@ describe("runs through the API", () => {
     expect(r.pointsDone).toBeGreaterThan(0);
     expect(r.pointsDone).toBeLessThan(200);
     expect(r.reason).toBe(`canceled after ${r.pointsDone} of 200 points`);
-    const series = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${id}/results?view=series`, { id });
+    const series = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${id}/results?view=series`, {
+      id,
+    });
     expect((series.json as { series: { point: number[] } }).series.point).toHaveLength(r.pointsDone);
     const again = await call("designer", "runs/[id]/cancel/route", "POST", `/api/runs/${id}/cancel`, { id });
     expect(again.status).toBe(409);
@@ -264,8 +367,31 @@ describe("runs through the API", () => {
     const { networkId, commitId } = await newNetwork("Restarted", SWEEP);
     await runsLib.whenIdle();
     // What a server that stopped mid-run leaves behind: one run running, one queued.
-    db.insert(runs).values({ id: "r_was_running", commitId, networkId, workspaceId: "ws_lm64", createdBy: "u_designer1", state: "running", pointsTotal: 9, pointsDone: 4, timeLimitMs: 60_000, startedAt: new Date() }).run();
-    db.insert(runs).values({ id: "r_was_queued", commitId, networkId, workspaceId: "ws_lm64", createdBy: "u_designer1", pointsTotal: 9, timeLimitMs: 60_000 }).run();
+    db.insert(runs)
+      .values({
+        id: "r_was_running",
+        commitId,
+        networkId,
+        workspaceId: "ws_lm64",
+        createdBy: "u_designer1",
+        state: "running",
+        pointsTotal: 9,
+        pointsDone: 4,
+        timeLimitMs: 60_000,
+        startedAt: new Date(),
+      })
+      .run();
+    db.insert(runs)
+      .values({
+        id: "r_was_queued",
+        commitId,
+        networkId,
+        workspaceId: "ws_lm64",
+        createdBy: "u_designer1",
+        pointsTotal: 9,
+        timeLimitMs: 60_000,
+      })
+      .run();
     runsLib.resetSupervisorForTests();
     process.env.NEXT_RUNTIME = "nodejs";
     try {
@@ -275,7 +401,11 @@ describe("runs through the API", () => {
       delete process.env.NEXT_RUNTIME;
     }
     const interrupted = db.select().from(runs).where(eq(runs.id, "r_was_running")).get()!;
-    expect(interrupted).toMatchObject({ state: "interrupted", pointsDone: 4, reason: "the server stopped while this run was running; start it again" });
+    expect(interrupted).toMatchObject({
+      state: "interrupted",
+      pointsDone: 4,
+      reason: "the server stopped while this run was running; start it again",
+    });
     expect(interrupted.finishedAt).toBeInstanceOf(Date);
     expect((await until("r_was_queued", ended)).state).toBe("done");
   });

@@ -36,7 +36,9 @@ describe("start-up failures are one line and a non-zero exit", () => {
     cleanups.push(() => fs.rmSync(file, { force: true }));
     const r = script("scripts/migrate.ts", { RUNNEL_DB: path.join(file, "runnel.db") });
     expect(r.status).toBe(1);
-    expect(r.stderr.trim().split("\n")).toEqual([`runnel: database path ${path.join(file, "runnel.db")} is not usable: a parent is a file, not a folder`]);
+    expect(r.stderr.trim().split("\n")).toEqual([
+      `runnel: database path ${path.join(file, "runnel.db")} is not usable: a parent is a file, not a folder`,
+    ]);
   });
 
   it("rejects a port that is not a number (npm start)", () => {

@@ -35,7 +35,19 @@ describe("statement keywords", () => {
     const r = completeAt(`${NET}nf|`);
     expect(r?.from).toBe(NET.length);
     expect(r?.options.map((o) => o.label)).toEqual(
-      expect.arrayContaining(["network", "set", "param", "rail", "nfet", "pfet", "inject", "probe", "for", "sweep", "mismatch"]),
+      expect.arrayContaining([
+        "network",
+        "set",
+        "param",
+        "rail",
+        "nfet",
+        "pfet",
+        "inject",
+        "probe",
+        "for",
+        "sweep",
+        "mismatch",
+      ]),
     );
   });
 
@@ -184,12 +196,16 @@ describe("names collected from the tree", () => {
     }
     let state = EditorState.create({ doc: lines.join("\n") + "\n", extensions: [runnel()] });
     // The editor's own (incrementally parsed) tree, against a fresh parse of the same text.
-    const incremental = (st: EditorState) => collectNames(ensureSyntaxTree(st, st.doc.length, 10_000)!, (a, b) => st.sliceDoc(a, b));
+    const incremental = (st: EditorState) =>
+      collectNames(ensureSyntaxTree(st, st.doc.length, 10_000)!, (a, b) => st.sliceDoc(a, b));
     const fresh = (st: EditorState) => collectNames(parser.parse(st.doc.toString()), (a, b) => st.sliceDoc(a, b));
     expect(incremental(state)).toEqual(fresh(state));
     const edits = [
       (st: EditorState) => ({ from: st.doc.line(2).from + 5, to: st.doc.line(2).from + 8, insert: "ground" }),
-      (st: EditorState) => ({ from: st.doc.line(700).from, insert: "rail vmid = 0.5\nnfet extra gate=vmid source=q1 drain=q2\n" }),
+      (st: EditorState) => ({
+        from: st.doc.line(700).from,
+        insert: "rail vmid = 0.5\nnfet extra gate=vmid source=q1 drain=q2\n",
+      }),
       (st: EditorState) => ({ from: st.doc.line(1200).from, to: st.doc.line(1203).to }),
     ];
     for (const edit of edits) {

@@ -64,11 +64,14 @@ describe("diagnostics", () => {
 
   it("are clamped into the document", () => {
     const d: Diagnostic = { severity: "warning", line: 9, column: 1, from: 120, to: 140, message: "past the end" };
-    expect(toEditorDiagnostics([d], 100)).toEqual([{ from: 100, to: 100, severity: "warning", source: "runnel", message: "past the end" }]);
+    expect(toEditorDiagnostics([d], 100)).toEqual([
+      { from: 100, to: 100, severity: "warning", source: "runnel", message: "past the end" },
+    ]);
   });
 
   it("reach onDiagnostics and publish the elaborated names for completion", async () => {
-    const text = "rail vdd = 1\nrail gnd = 0\nfor k in 1..3 {\n  nfet m{k} gate=vdd source=gnd drain=x{k}\n  inject i{k} from=vdd to=x{k} value=1n\n}\n";
+    const text =
+      "rail vdd = 1\nrail gnd = 0\nfor k in 1..3 {\n  nfet m{k} gate=vdd source=gnd drain=x{k}\n  inject i{k} from=vdd to=x{k} value=1n\n}\n";
     const { view, specs } = fakeView(text);
     const seen: Diagnostic[][] = [];
     await runnelLintSource({ onDiagnostics: (d) => seen.push(d) })(view);
@@ -96,7 +99,8 @@ class FakeWorker implements LintPort {
   answer = true;
   postMessage(message: LintRequest): void {
     this.received.push(message);
-    if (this.answer) setTimeout(() => this.emit("message", { data: answerLintRequest(message) } as MessageEvent<LintReply>), 0);
+    if (this.answer)
+      setTimeout(() => this.emit("message", { data: answerLintRequest(message) } as MessageEvent<LintReply>), 0);
   }
   addEventListener(type: string, listener: (e: MessageEvent<LintReply>) => void): void {
     this.listeners.set(type, [...(this.listeners.get(type) ?? []), listener]);

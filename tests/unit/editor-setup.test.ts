@@ -5,7 +5,10 @@ import { describe, expect, it } from "vitest";
 import { readOnlyExtension, replaceText, runnelEditorExtensions } from "../../src/editor/setup";
 
 function bindingsFor(state: EditorState, key: string) {
-  return state.facet(keymap).flat().filter((b) => b.key === key);
+  return state
+    .facet(keymap)
+    .flat()
+    .filter((b) => b.key === key);
 }
 
 function fakeView(state: EditorState): EditorView {
@@ -28,7 +31,10 @@ describe("the workbench editor configuration", () => {
   it("binds Mod-s to onSave and Mod-Enter to onRun ahead of the default keys", () => {
     const calls: string[] = [];
     const state = EditorState.create({
-      extensions: runnelEditorExtensions({ onSave: () => void calls.push("save"), onRun: () => void calls.push("run") }),
+      extensions: runnelEditorExtensions({
+        onSave: () => void calls.push("save"),
+        onRun: () => void calls.push("run"),
+      }),
     });
     const view = fakeView(state);
     const [save] = bindingsFor(state, "Mod-s");

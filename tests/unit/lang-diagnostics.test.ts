@@ -31,7 +31,9 @@ function cases(file: string): Case[] {
 
 function render(ds: Diagnostic[]): string {
   if (ds.length === 0) return "(none)";
-  return ds.map((d) => `${d.line}:${d.column}: ${d.severity}: ${d.message}` + (d.hint ? `\n  hint: ${d.hint}` : "")).join("\n");
+  return ds
+    .map((d) => `${d.line}:${d.column}: ${d.severity}: ${d.message}` + (d.hint ? `\n  hint: ${d.hint}` : ""))
+    .join("\n");
 }
 
 const corpus = join(__dirname, "corpus/diagnostics");
@@ -104,7 +106,8 @@ describe("limits", () => {
   });
 
   it("too many devices: an error at the outermost for, and expansion stops", () => {
-    const text = "rail v = 1\nfor i in 0..99 {\n  for j in 0..99 {\n    nfet m{i}_{j} gate=v source=v drain=v\n  }\n}\n";
+    const text =
+      "rail v = 1\nfor i in 0..99 {\n  for j in 0..99 {\n    nfet m{i}_{j} gate=v source=v drain=v\n  }\n}\n";
     const r = elaborate(text, { limits: { maxDevices: 500 } });
     expect(r.ok).toBe(false);
     expect(r.diagnostics).toHaveLength(1);
@@ -125,7 +128,9 @@ describe("limits", () => {
     const r = elaborate("for i in 0..100000000 {\n}\n");
     expect(r.diagnostics).toHaveLength(1);
     expect(r.diagnostics[0]).toMatchObject({ line: 1, column: 1 });
-    expect(r.diagnostics[0].message).toBe("this loop makes 100,000,001 statement runs, more than the limit of 20,000,000");
+    expect(r.diagnostics[0].message).toBe(
+      "this loop makes 100,000,001 statement runs, more than the limit of 20,000,000",
+    );
   });
 
   it("nested loops report the total statement runs of the outermost loop, not the inner loop's count", () => {
@@ -137,7 +142,9 @@ describe("limits", () => {
     expect(r.diagnostics[0].message).toBe("this loop makes 5,304 statement runs, more than the limit of 1,000");
     // The default limit: 5,001 × (1 + 1 + 5,001 × 1) with the body left empty by its error.
     const big = elaborate("for k in 0..5000 {\n  for j in 0..5000 {\n    param a = 1\n  }\n}\n");
-    expect(big.diagnostics[0].message).toBe("this loop makes 25,020,003 statement runs, more than the limit of 20,000,000");
+    expect(big.diagnostics[0].message).toBe(
+      "this loop makes 25,020,003 statement runs, more than the limit of 20,000,000",
+    );
   });
 
   it("a loop whose inner bounds depend on the outer variable stops at the limit without a wrong count", () => {
@@ -167,17 +174,23 @@ describe("limits", () => {
       [`param a = ${"max(".repeat(300)}1${")".repeat(300)}\n`, 815],
     ] as const) {
       const r = elaborate(text);
-      expect(r.diagnostics.map((d) => `${d.line}:${d.column} ${d.message}`)).toEqual([`1:${column} this expression nests deeper than 200 levels`]);
+      expect(r.diagnostics.map((d) => `${d.line}:${d.column} ${d.message}`)).toEqual([
+        `1:${column} this expression nests deeper than 200 levels`,
+      ]);
     }
   });
 
-  it("a degenerate parse with tens of thousands of error nodes still finishes with one diagnostic per line", { timeout: 120_000 }, () => {
-    // 300,000 unary minus signs: the parser gives up on the nesting and leaves ~90,000 error nodes on one line.
-    const r = elaborate(`param a = ${"-".repeat(300_000)}1\n`);
-    expect(r.ok).toBe(false);
-    expect(r.diagnostics).toHaveLength(1);
-    expect(r.diagnostics[0].line).toBe(1);
-  });
+  it(
+    "a degenerate parse with tens of thousands of error nodes still finishes with one diagnostic per line",
+    { timeout: 120_000 },
+    () => {
+      // 300,000 unary minus signs: the parser gives up on the nesting and leaves ~90,000 error nodes on one line.
+      const r = elaborate(`param a = ${"-".repeat(300_000)}1\n`);
+      expect(r.ok).toBe(false);
+      expect(r.diagnostics).toHaveLength(1);
+      expect(r.diagnostics[0].line).toBe(1);
+    },
+  );
 
   it("a flood of diagnostics is capped", () => {
     const lines = Array.from({ length: 50 }, (_, i) => `param p${i} = q${i}`).join("\n");

@@ -1,6 +1,15 @@
 import { describe, expect, it } from "vitest";
 import { all, create } from "mathjs/number";
-import { applyPoint, elaborate, NFET, parseNumber, PFET, pointScope, SUBSTRATE, thermalVoltage } from "../../src/lang/index";
+import {
+  applyPoint,
+  elaborate,
+  NFET,
+  parseNumber,
+  PFET,
+  pointScope,
+  SUBSTRATE,
+  thermalVoltage,
+} from "../../src/lang/index";
 import type { Network, ProbeContext } from "../../src/lang/network";
 
 const math = create(all);
@@ -71,7 +80,15 @@ describe("loop expansion and names", () => {
     const n = net(ROW);
     expect(n.devices.count).toBe(15);
     expect(n.devices.names.slice(0, 3)).toEqual(["lat0", "lat1", "lat2"]);
-    expect(device(n, "lat6")).toMatchObject({ type: NFET, gate: "gh", source: "x6", drain: "x7", bulk: "substrate", w: 1e-6, l: 1e-6 });
+    expect(device(n, "lat6")).toMatchObject({
+      type: NFET,
+      gate: "gh",
+      source: "x6",
+      drain: "x7",
+      bulk: "substrate",
+      w: 1e-6,
+      l: 1e-6,
+    });
     expect(device(n, "out7")).toMatchObject({ source: "x7", drain: "vdd", w: 2e-6, l: 4e-6 });
     expect(n.nodes.names.filter((x) => x.startsWith("x"))).toHaveLength(8);
   });
@@ -85,7 +102,14 @@ for i in 0..2 {
   }
 }
 `);
-    expect(n.devices.names.filter((x) => x.startsWith("m"))).toEqual(["m0_0t", "m1_0t", "m1_1t", "m2_0t", "m2_1t", "m2_2t"]);
+    expect(n.devices.names.filter((x) => x.startsWith("m"))).toEqual([
+      "m0_0t",
+      "m1_0t",
+      "m1_1t",
+      "m2_0t",
+      "m2_1t",
+      "m2_2t",
+    ]);
     expect(device(n, "m2_1t").drain).toBe("n5");
   });
 
@@ -109,7 +133,9 @@ for i in 0..2 {
   });
 
   it("pfet bulk holds its well; nfet bulk= is kept", () => {
-    const n = net("rail vdd = 1.8\nrail gnd = 0\nrail gp = 1.2\nrail b = 0\npfet p gate=gp source=vdd drain=x well=vdd\nnfet m gate=x source=gnd drain=x bulk=b\n");
+    const n = net(
+      "rail vdd = 1.8\nrail gnd = 0\nrail gp = 1.2\nrail b = 0\npfet p gate=gp source=vdd drain=x well=vdd\nnfet m gate=x source=gnd drain=x bulk=b\n",
+    );
     expect(device(n, "p")).toMatchObject({ type: PFET, bulk: "vdd" });
     expect(device(n, "m")).toMatchObject({ type: NFET, bulk: "b" });
   });
@@ -133,12 +159,22 @@ describe("params, settings and the thermal voltage", () => {
 
   it("has the documented defaults", () => {
     const n = net("");
-    expect(n.settings).toEqual({ kappa: 0.7, temp: 300, ut: thermalVoltage(300), i0: 1e-15, vt0: null, ispec: null, model: "weak" });
+    expect(n.settings).toEqual({
+      kappa: 0.7,
+      temp: 300,
+      ut: thermalVoltage(300),
+      i0: 1e-15,
+      vt0: null,
+      ispec: null,
+      model: "weak",
+    });
     expect(n.name).toBeNull();
   });
 
   it("reads network and set statements", () => {
-    const n = net("network lm64\nset kappa = 0.65\nset temp = 350K\nset i0 = 2f\nset vt0 = 450m\nset ispec = 100n\nset model = ekv\n");
+    const n = net(
+      "network lm64\nset kappa = 0.65\nset temp = 350K\nset i0 = 2f\nset vt0 = 450m\nset ispec = 100n\nset model = ekv\n",
+    );
     expect(n.name).toBe("lm64");
     expect(n.settings).toMatchObject({ kappa: 0.65, temp: 350, i0: 2e-15, vt0: 0.45, ispec: 1e-7, model: "ekv" });
   });
@@ -168,7 +204,9 @@ describe("sweeps and mismatch", () => {
   });
 
   it("points N spaces linearly, or geometrically with log", () => {
-    const n = net("param ib = 1n\nparam vv = 0.3\nsweep vv from 0.3 to 0.4 points 5\nsweep ib from 1n to 100n points 5 log\n");
+    const n = net(
+      "param ib = 1n\nparam vv = 0.3\nsweep vv from 0.3 to 0.4 points 5\nsweep ib from 1n to 100n points 5 log\n",
+    );
     expect(n.sweeps[0].values).toEqual([0.3, 0.325, 0.35, 0.375, 0.4]);
     const log = n.sweeps[1];
     expect(log.log).toBe(true);
@@ -244,7 +282,9 @@ sweep dv values [0, 10m, 20m]
   });
 
   it("set kappa may follow a swept param", () => {
-    const n = net("param k = 0.7\nset kappa = k\nparam x = kappa * 2\nrail v = x\nrail g = 0\nnfet m gate=v source=g drain=v\nsweep k values [0.6, 0.7]\n");
+    const n = net(
+      "param k = 0.7\nset kappa = k\nparam x = kappa * 2\nrail v = x\nrail g = 0\nnfet m gate=v source=g drain=v\nsweep k values [0.6, 0.7]\n",
+    );
     const p = applyPoint(n, { k: 0.6 });
     expect(p.settings.kappa).toBe(0.6);
     expect(pointScope(n, { k: 0.6 }).x).toBeCloseTo(1.2, 12);
@@ -252,9 +292,13 @@ sweep dv values [0, 10m, 20m]
   });
 
   it("bindings inside loops capture their loop variable", () => {
-    const n = net("param step = 0.1\nrail g = 0\nfor k in 1..3 {\n  rail r{k} = k * step\n  nfet m{k} gate=r{k} source=g drain=r{k}\n}\n");
+    const n = net(
+      "param step = 0.1\nrail g = 0\nfor k in 1..3 {\n  rail r{k} = k * step\n  nfet m{k} gate=r{k} source=g drain=r{k}\n}\n",
+    );
     const p = applyPoint(n, { step: 0.2 });
-    expect([1, 2, 3].map((k) => p.nodes.railValue[n.nodes.index.get(`r${k}`)!])).toEqual([0.2, 0.4, 0.6000000000000001]);
+    expect([1, 2, 3].map((k) => p.nodes.railValue[n.nodes.index.get(`r${k}`)!])).toEqual([
+      0.2, 0.4, 0.6000000000000001,
+    ]);
   });
 
   // Differential pair, both devices saturated: I1/I2 = exp(κΔV/U_T) = 1.3107989 at ΔV 10 mV, κ 0.7, 300.15 K
@@ -287,8 +331,15 @@ sweep dv values [0, 10m, 20m]
   });
 
   it("probes inside loops resolve each instance", () => {
-    const n = net("rail v = 1\nrail g = 0\nfor k in 0..2 {\n  nfet m{k} gate=v source=g drain=v\n  probe i{k} = current(m{k}) * (k + 1)\n}\n");
-    const ctx: ProbeContext = { voltage: () => 0, deviceCurrent: (i) => 10 ** i, injectCurrent: () => 0, railCurrent: () => 0 };
+    const n = net(
+      "rail v = 1\nrail g = 0\nfor k in 0..2 {\n  nfet m{k} gate=v source=g drain=v\n  probe i{k} = current(m{k}) * (k + 1)\n}\n",
+    );
+    const ctx: ProbeContext = {
+      voltage: () => 0,
+      deviceCurrent: (i) => 10 ** i,
+      injectCurrent: () => 0,
+      railCurrent: () => 0,
+    };
     expect(n.probes.map((p) => p.evaluate(ctx, {}, n.settings))).toEqual([1, 20, 300]);
   });
 });
@@ -302,9 +353,18 @@ describe("long runs of one precedence are not nesting", () => {
   it("a long mixed run folds from the left exactly as math.js does", () => {
     // math.js's own parse nests one level per operator: 1,000 terms stay within its stack.
     const terms = Array.from({ length: 1000 }, (_, i) => `${(i % 7) + 0.1 * (i % 3)}`);
-    const sum = terms[0] + terms.slice(1).map((t, i) => (i % 3 === 1 ? ` - ${t}` : ` + ${t}`)).join("");
+    const sum =
+      terms[0] +
+      terms
+        .slice(1)
+        .map((t, i) => (i % 3 === 1 ? ` - ${t}` : ` + ${t}`))
+        .join("");
     expect(net(`param a = ${sum}\n`).params[0].value).toBe(math.evaluate(sum));
-    const product = terms.slice(0, 600).map((t, i) => (i === 0 ? t : i % 2 ? ` * ${t}` : ` / ${t}`)).join("").replace(/ \/ 0(?!\.)/g, " / 3");
+    const product = terms
+      .slice(0, 600)
+      .map((t, i) => (i === 0 ? t : i % 2 ? ` * ${t}` : ` / ${t}`))
+      .join("")
+      .replace(/ \/ 0(?!\.)/g, " / 3");
     expect(net(`param b = ${product}\n`).params[0].value).toBe(math.evaluate(product));
     // 100,000 terms, past every chunk of the evaluator: the left fold in JavaScript.
     const many = Array.from({ length: 100_000 }, (_, i) => 0.1 * ((i * 37) % 11));
@@ -327,7 +387,12 @@ describe("long runs of one precedence are not nesting", () => {
     for (let k = 0; k < 300; k++) text += `rail out${k} = 0.5\nnfet n${k} gate=g source=gnd drain=out${k}\n`;
     text += `probe tot = ${Array.from({ length: 300 }, (_, k) => `current(n${k})`).join(" + ")}\n`;
     const n = net(text);
-    const ctx: ProbeContext = { voltage: () => NaN, deviceCurrent: (i) => (i + 1) * 1e-9, injectCurrent: () => NaN, railCurrent: () => NaN };
+    const ctx: ProbeContext = {
+      voltage: () => NaN,
+      deviceCurrent: (i) => (i + 1) * 1e-9,
+      injectCurrent: () => NaN,
+      railCurrent: () => NaN,
+    };
     let want = 0;
     for (let i = 0; i < 300; i++) want += (i + 1) * 1e-9;
     expect(n.probes[0].evaluate(ctx, {}, n.settings)).toBe(want);

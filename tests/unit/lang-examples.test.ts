@@ -20,7 +20,15 @@ function load(name: string): Network {
 describe("examples", () => {
   it("there are at least six", () => {
     expect(files.length).toBeGreaterThanOrEqual(6);
-    for (const f of ["row64.runnel", "grid32.runnel", "divider.runnel", "mirror.runnel", "biassweep.runnel", "mismatch.runnel"]) expect(files).toContain(f);
+    for (const f of [
+      "row64.runnel",
+      "grid32.runnel",
+      "divider.runnel",
+      "mirror.runnel",
+      "biassweep.runnel",
+      "mismatch.runnel",
+    ])
+      expect(files).toContain(f);
   });
 
   it.each(files)("%s checks clean: no errors, no warnings", (f) => {
@@ -52,7 +60,7 @@ describe("examples", () => {
     expect(n.nodes.names[n.devices.bulk[ref]]).toBe("vdd");
     const ratios = [0, 1, 2, 3].map((k) => {
       const i = n.devices.index.get(`copy${k}`)!;
-      return n.devices.w[i] / n.devices.l[i] / 1e0;
+      return n.devices.w[i] / n.devices.l[i] / 1;
     });
     expect(ratios).toEqual([1, 2, 4, 8]);
     expect(n.settings).toMatchObject({ i0: 0.5e-12, vt0: 0.45, ispec: 1e-7 });
@@ -75,7 +83,10 @@ describe("examples", () => {
 });
 
 function runnel(...args: string[]) {
-  return spawnSync(join(root, "node_modules/.bin/tsx"), [join(root, "scripts/runnel.ts"), ...args], { encoding: "utf8", cwd: root });
+  return spawnSync(join(root, "node_modules/.bin/tsx"), [join(root, "scripts/runnel.ts"), ...args], {
+    encoding: "utf8",
+    cwd: root,
+  });
 }
 
 /** `main` in-process: the same code the script runs, without a process start per case. */
@@ -98,9 +109,27 @@ describe("runnel command", () => {
       network: "broken",
       ok: false,
       diagnostics: [
-        { severity: "warning", line: 3, column: 23, message: "node 'x' is touched by only one terminal", hint: "a node joins at least two terminals: check the spelling of its name" },
-        { severity: "error", line: 3, column: 33, message: "nfet has no pin 'colour'", hint: "nfet pins: gate, source, drain, bulk, w, l" },
-        { severity: "error", line: 4, column: 11, message: "unknown name 'q'", hint: "declare it with param NAME = VALUE above this line" },
+        {
+          severity: "warning",
+          line: 3,
+          column: 23,
+          message: "node 'x' is touched by only one terminal",
+          hint: "a node joins at least two terminals: check the spelling of its name",
+        },
+        {
+          severity: "error",
+          line: 3,
+          column: 33,
+          message: "nfet has no pin 'colour'",
+          hint: "nfet pins: gate, source, drain, bulk, w, l",
+        },
+        {
+          severity: "error",
+          line: 4,
+          column: 11,
+          message: "unknown name 'q'",
+          hint: "declare it with param NAME = VALUE above this line",
+        },
       ],
     });
   });
@@ -118,7 +147,11 @@ describe("runnel command", () => {
   it("a clean example exits 0 and prints nothing; --json says ok", () => {
     const r = run("check", join(examplesDir, "row64.runnel"));
     expect(r).toEqual({ status: 0, stdout: "", stderr: "" });
-    expect(JSON.parse(run("check", join(examplesDir, "row64.runnel"), "--json").stdout)).toEqual({ network: "row64", ok: true, diagnostics: [] });
+    expect(JSON.parse(run("check", join(examplesDir, "row64.runnel"), "--json").stdout)).toEqual({
+      network: "row64",
+      ok: true,
+      diagnostics: [],
+    });
   });
 
   it("usage errors exit 2: unreadable file, no file, unknown option or command", () => {

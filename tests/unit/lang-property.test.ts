@@ -10,7 +10,9 @@ import type { ElaborateOptions } from "../../src/lang/index";
  * of the examples. The work is bounded by the limits (smaller ones here, so a
  * mutated loop cannot ask for millions of devices), not by wall-clock asserts.
  */
-const LIMITS: ElaborateOptions = { limits: { maxDevices: 20_000, maxWork: 200_000, maxSweepValues: 1000, maxPoints: 10_000 } };
+const LIMITS: ElaborateOptions = {
+  limits: { maxDevices: 20_000, maxWork: 200_000, maxSweepValues: 1000, maxPoints: 10_000 },
+};
 
 const examplesDir = join(__dirname, "../../examples");
 const examples = readdirSync(examplesDir)
@@ -29,24 +31,94 @@ function checkInvariants(text: string): void {
     expect(lines.position(d.from)).toEqual({ line: d.line, column: d.column });
     expect(d.message.length).toBeGreaterThan(0);
   }
-  for (let i = 1; i < r.diagnostics.length; i++) expect(r.diagnostics[i].from).toBeGreaterThanOrEqual(r.diagnostics[i - 1].from);
+  for (let i = 1; i < r.diagnostics.length; i++)
+    expect(r.diagnostics[i].from).toBeGreaterThanOrEqual(r.diagnostics[i - 1].from);
 }
 
 const TOKENS = [
-  "network", "set", "param", "rail", "nfet", "pfet", "inject", "probe", "for", "in", "sweep", "from", "to",
-  "step", "points", "log", "values", "mismatch", "runs", "seed", "avt", "gate=", "source=", "drain=", "well=",
-  "bulk=", "w=", "l=", "value=", "x", "x{k}", "n{i}_{j}", "{", "}", "(", ")", "[", "]", "=", "..", ",", "+", "-",
-  "*", "/", "^", "0", "1", "63", "0.45", "450mV", "10nA", "300K", "2u", "1e-15", "µ", "exp(", "voltage(", "current(",
-  "ut", "kappa", "#", "\n", " ", "\t", "\r\n",
+  "network",
+  "set",
+  "param",
+  "rail",
+  "nfet",
+  "pfet",
+  "inject",
+  "probe",
+  "for",
+  "in",
+  "sweep",
+  "from",
+  "to",
+  "step",
+  "points",
+  "log",
+  "values",
+  "mismatch",
+  "runs",
+  "seed",
+  "avt",
+  "gate=",
+  "source=",
+  "drain=",
+  "well=",
+  "bulk=",
+  "w=",
+  "l=",
+  "value=",
+  "x",
+  "x{k}",
+  "n{i}_{j}",
+  "{",
+  "}",
+  "(",
+  ")",
+  "[",
+  "]",
+  "=",
+  "..",
+  ",",
+  "+",
+  "-",
+  "*",
+  "/",
+  "^",
+  "0",
+  "1",
+  "63",
+  "0.45",
+  "450mV",
+  "10nA",
+  "300K",
+  "2u",
+  "1e-15",
+  "µ",
+  "exp(",
+  "voltage(",
+  "current(",
+  "ut",
+  "kappa",
+  "#",
+  "\n",
+  " ",
+  "\t",
+  "\r\n",
 ];
 
 const tokenText = fc.array(fc.constantFrom(...TOKENS), { maxLength: 120 }).map((t) => t.join(" "));
 
 const mutation = fc.oneof(
   fc.record({ kind: fc.constant("delete" as const), at: fc.nat(), len: fc.integer({ min: 1, max: 40 }) }),
-  fc.record({ kind: fc.constant("insert" as const), at: fc.nat(), text: fc.oneof(fc.constantFrom(...TOKENS), fc.string({ maxLength: 8 })) }),
+  fc.record({
+    kind: fc.constant("insert" as const),
+    at: fc.nat(),
+    text: fc.oneof(fc.constantFrom(...TOKENS), fc.string({ maxLength: 8 })),
+  }),
   fc.record({ kind: fc.constant("duplicate" as const), at: fc.nat(), len: fc.integer({ min: 1, max: 200 }) }),
-  fc.record({ kind: fc.constant("replace" as const), at: fc.nat(), char: fc.string({ minLength: 1, maxLength: 1, unit: "binary" }) }),
+  fc.record({
+    kind: fc.constant("replace" as const),
+    at: fc.nat(),
+    char: fc.string({ minLength: 1, maxLength: 1, unit: "binary" }),
+  }),
 );
 
 type Mutation = typeof mutation extends fc.Arbitrary<infer M> ? M : never;

@@ -30,7 +30,10 @@ for k in 1..1 {
 }
 nfet m1_2 gate=vdd source=a drain=gnd
 `;
-    expect(messages(text)).toEqual(["6: device 'm12' is defined twice (first on line 3)", "12: device 'm1_2' is defined twice (first on line 10)"]);
+    expect(messages(text)).toEqual([
+      "6: device 'm12' is defined twice (first on line 3)",
+      "12: device 'm1_2' is defined twice (first on line 10)",
+    ]);
   });
 
   it("the same shape in two statements shares one node", () => {
@@ -82,22 +85,26 @@ probe v = voltage(n3_0)
   });
 
   it("a node named like a device of another shape is reported", () => {
-    expect(messages(`${RAILS}for k in 0..1 {
+    expect(
+      messages(`${RAILS}for k in 0..1 {
   nfet q{k} gate=vdd source=gnd drain=x{k}a
 }
 nfet x1a_dev gate=vdd source=x1a drain=q1
-`)).toContain("6: node name 'q1' is already a device");
+`),
+    ).toContain("6: node name 'q1' is already a device");
   });
 
   it("a device named like a rail, param or inject made before its loop is a clash", () => {
-    expect(messages(`rail m3 = 1
+    expect(
+      messages(`rail m3 = 1
 param m1 = 2
 rail gnd = 0
 inject m0 from=x2 to=gnd value=1n
 for k in 0..4 {
   nfet m{k} gate=m3 source=gnd drain=x{k}
 }
-`).filter((m) => m.includes("already"))).toEqual([
+`).filter((m) => m.includes("already")),
+    ).toEqual([
       "6: device name 'm0' is already an inject (first on line 4)",
       "6: device name 'm1' is already a param (first on line 2)",
       "6: device name 'm3' is already a rail (first on line 1)",
@@ -118,8 +125,10 @@ rail y1 = 0.5
 
   it("past 256 loop statements with their own name shapes, names are still found", () => {
     let text = RAILS;
-    for (let s = 0; s < 300; s++) text += `for k in 0..2 {\n  nfet d${s}x{k} gate=vdd source=gnd drain=n${(s * 7) % 300}y{k}\n}\n`;
-    text += "nfet d5x1 gate=vdd source=n3y1 drain=gnd\nnfet q1 gate=vdd source=d7x2 drain=gnd\nfor k in 0..2 {\n  nfet d299x{k} gate=vdd source=gnd drain=n1y{k}\n}\n";
+    for (let s = 0; s < 300; s++)
+      text += `for k in 0..2 {\n  nfet d${s}x{k} gate=vdd source=gnd drain=n${(s * 7) % 300}y{k}\n}\n`;
+    text +=
+      "nfet d5x1 gate=vdd source=n3y1 drain=gnd\nnfet q1 gate=vdd source=d7x2 drain=gnd\nfor k in 0..2 {\n  nfet d299x{k} gate=vdd source=gnd drain=n1y{k}\n}\n";
     const r = elaborate(text);
     expect(r.diagnostics.filter((d) => d.severity === "error").map((d) => `${d.line}: ${d.message}`)).toEqual([
       "903: device 'd5x1' is defined twice (first on line 19)",

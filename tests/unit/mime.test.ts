@@ -8,7 +8,9 @@ import { describe, expect, it } from "vitest";
 import { decodeHeader, parseMail } from "@/scripts/lib/mime";
 
 function compose(options: ConstructorParameters<typeof MailComposer>[0]): Promise<Buffer> {
-  return new Promise((resolve, reject) => new MailComposer(options).compile().build((e, m) => (e ? reject(e) : resolve(m))));
+  return new Promise((resolve, reject) =>
+    new MailComposer(options).compile().build((e, m) => (e ? reject(e) : resolve(m))),
+  );
 }
 
 const longLink = `http://127.0.0.1:3000/invite/${"Ab_-9".repeat(12)}xyz`;

@@ -30,7 +30,11 @@ function diodeVoltage(): number {
 }
 
 function mesh(n: number) {
-  const b = new NetworkBuilder("mesh").set({ temp: T, kappa: KAPPA, i0: I0 }).rail("vdd", 1.8).rail("gnd", 0).rail("gh", 0.75);
+  const b = new NetworkBuilder("mesh")
+    .set({ temp: T, kappa: KAPPA, i0: I0 })
+    .rail("vdd", 1.8)
+    .rail("gnd", 0)
+    .rail("gh", 0.75);
   const at = (i: number, j: number) => `n${i}_${j}`;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
@@ -56,7 +60,8 @@ describe("Newton's column order on meshes (closed form: a diode at 1 nA, by symm
     expect(p.solver.ordering).toBe(ordering);
     const v = diodeVoltage();
     let worst = 0;
-    for (let k = 0; k < net.nodes.names.length; k++) if (!Number.isFinite(net.nodes.railValue[k])) worst = Math.max(worst, Math.abs(p.voltages[k] - v));
+    for (let k = 0; k < net.nodes.names.length; k++)
+      if (!Number.isFinite(net.nodes.railValue[k])) worst = Math.max(worst, Math.abs(p.voltages[k] - v));
     expect(worst).toBeLessThan(1e-9);
   });
 });

@@ -69,7 +69,11 @@ function expectOutput(v: number, vin: number): void {
 
 /** A chain of n inverters, input rail vin, outputs x1..xn. */
 function chain(n: number, vin: number): Network {
-  const b = new NetworkBuilder().set({ temp: T, kappa: KAPPA, i0: I0 }).rail("vdd", VDD).rail("gnd", 0).rail("vin", vin);
+  const b = new NetworkBuilder()
+    .set({ temp: T, kappa: KAPPA, i0: I0 })
+    .rail("vdd", VDD)
+    .rail("gnd", 0)
+    .rail("vin", vin);
   for (let k = 1; k <= n; k++) {
     const g = k === 1 ? "vin" : `x${k - 1}`;
     b.pfet(`p${k}`, { gate: g, source: "vdd", drain: `x${k}`, well: "vdd" });
@@ -91,7 +95,8 @@ describe("Newton on an inverter whose output is within picovolts of a rail", () 
     // elsewhere a range below 1e-14 V.
     expect(inverterOut(0.9 + DVIN)).toBeLessThan(0.9 - 0.1);
     expect(inverterOut(0.9 - DVIN)).toBeGreaterThan(0.9 + 0.1);
-    for (const vin of [0.5, 0.8, 1.0, 1.3]) expect(inverterOut(vin - DVIN) - inverterOut(vin + DVIN)).toBeLessThan(1e-14);
+    for (const vin of [0.5, 0.8, 1.0, 1.3])
+      expect(inverterOut(vin - DVIN) - inverterOut(vin + DVIN)).toBeLessThan(1e-14);
   });
 
   it("converges at vin = 0, 0.1, …, 1.8 V to the output of the device equation", () => {

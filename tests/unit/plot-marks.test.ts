@@ -19,7 +19,11 @@ describe("alignMarks", () => {
   });
 
   it("puts curves and marks on the sorted union of their x, undefined where a series has no value", () => {
-    const a = alignMarks([0, 2, 4], [{ label: "sim", values: [10, null, 30] }], [{ label: "measured: m", x: [3, 0, 5], y: [7, 8, 9], colour: "#b4532a" }]);
+    const a = alignMarks(
+      [0, 2, 4],
+      [{ label: "sim", values: [10, null, 30] }],
+      [{ label: "measured: m", x: [3, 0, 5], y: [7, 8, 9], colour: "#b4532a" }],
+    );
     expect(a.x).toEqual([0, 2, 3, 4, 5]);
     // the curve keeps its null (a real gap) and is undefined at the added x (joined over by uPlot)
     expect(a.curves[0]).toEqual([10, null, undefined, 30, undefined]);
@@ -27,7 +31,11 @@ describe("alignMarks", () => {
   });
 
   it("drops non-finite x of the marks rather than putting them on the axis", () => {
-    const a = alignMarks([1, 2], [{ label: "sim", values: [1, 2] }], [{ label: "m", x: [NaN, 1.5], y: [5, 6], colour: "#b4532a" }]);
+    const a = alignMarks(
+      [1, 2],
+      [{ label: "sim", values: [1, 2] }],
+      [{ label: "m", x: [NaN, 1.5], y: [5, 6], colour: "#b4532a" }],
+    );
     expect(a.x).toEqual([1, 1.5, 2]);
     expect(a.marks[0]).toEqual([undefined, 6, undefined]);
   });

@@ -12,7 +12,16 @@ describe("the binary point form", () => {
     const current = Float64Array.from([1e-9, -2e-12, 3e-15, 4e-18, 5e-21]);
     const ic = Float32Array.from([0.01, NaN, 0.2, 3, 40]);
     const saturated = Uint8Array.from([1, 0, 1, 1, 0]);
-    const header: PointHeader = { point: 7, sample: 2, grid: [1, 3], method: "linear", iterations: 1, residual: 1e-21, error: null, counts: { nodes: 3, rails: 1, probes: 2, params: 2, devices: 5 } };
+    const header: PointHeader = {
+      point: 7,
+      sample: 2,
+      grid: [1, 3],
+      method: "linear",
+      iterations: 1,
+      residual: 1e-21,
+      error: null,
+      counts: { nodes: 3, rails: 1, probes: 2, params: 2, devices: 5 },
+    };
     const enc = encodePoint(header, [nodes, rails, probes, params, current, ic, saturated].map(bytes));
     // decode from a copy (a fresh ArrayBuffer, as fetch gives it)
     const d = decodePoint(enc.slice().buffer);
@@ -24,7 +33,18 @@ describe("the binary point form", () => {
     expect(Array.from(d.current)).toEqual(Array.from(current));
     expect(Array.from(d.ic)).toEqual(Array.from(ic));
     expect(Array.from(d.saturated)).toEqual([1, 0, 1, 1, 0]);
-    const p = pointData({ nodes: ["a", "b", "vdd"], nodeIsRail: [false, false, true], devices: ["m1", "m2", "m3", "m4", "m5"], deviceTypes: "nnnpp", rails: ["vdd"], probes: ["r", "s"], params: ["vh", "temp"] }, d);
+    const p = pointData(
+      {
+        nodes: ["a", "b", "vdd"],
+        nodeIsRail: [false, false, true],
+        devices: ["m1", "m2", "m3", "m4", "m5"],
+        deviceTypes: "nnnpp",
+        rails: ["vdd"],
+        probes: ["r", "s"],
+        params: ["vh", "temp"],
+      },
+      d,
+    );
     expect(p.params).toEqual({ vh: 0.7, temp: 300 });
     expect(p.devices.types).toBe("nnnpp");
   });

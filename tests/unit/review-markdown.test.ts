@@ -3,7 +3,9 @@ import { extractMentions, extractRunRefs, renderComment, runRefText, safeUrl } f
 
 describe("comment Markdown", () => {
   it("renders ordinary Markdown: emphasis, code, lists, tables, links", () => {
-    const html = renderComment("**bold** _it_ `code`\n\n- one\n- two\n\n| a | b |\n|:-|-:|\n| 1 | 2 |\n\n[spec](https://example.com/x?a=1&b=2)");
+    const html = renderComment(
+      "**bold** _it_ `code`\n\n- one\n- two\n\n| a | b |\n|:-|-:|\n| 1 | 2 |\n\n[spec](https://example.com/x?a=1&b=2)",
+    );
     expect(html).toContain("<strong>bold</strong>");
     expect(html).toContain("<em>it</em>");
     expect(html).toContain("<code>code</code>");
@@ -13,7 +15,9 @@ describe("comment Markdown", () => {
   });
 
   it("keeps fenced code and its language class", () => {
-    expect(renderComment("```runnel\nnfet m1 gate=vg source=x drain=vdd\n```")).toContain('<pre><code class="language-runnel">nfet m1');
+    expect(renderComment("```runnel\nnfet m1 gate=vg source=x drain=vdd\n```")).toContain(
+      '<pre><code class="language-runnel">nfet m1',
+    );
   });
 
   it("turns [[run ID]] into a run placeholder, not inside code", () => {
@@ -38,13 +42,37 @@ describe("comment Markdown", () => {
     expect(safeUrl("/runs/r1")).toBe("/runs/r1");
     expect(safeUrl("#top")).toBe("#top");
     expect(safeUrl("runs/r1?x=a:b")).toBe("runs/r1?x=a:b");
-    for (const bad of ["javascript:alert(1)", "JaVaScRiPt:alert(1)", " javascript:x", "java\tscript:x", "java\nscript:x", "\u0001javascript:x", "data:text/html,x", "vbscript:x", "//evil.example", "\\\\evil.example", "file:///etc/passwd", "a:b"]) {
+    for (const bad of [
+      "javascript:alert(1)",
+      "JaVaScRiPt:alert(1)",
+      " javascript:x",
+      "java\tscript:x",
+      "java\nscript:x",
+      "\u0001javascript:x",
+      "data:text/html,x",
+      "vbscript:x",
+      "//evil.example",
+      "\\\\evil.example",
+      "file:///etc/passwd",
+      "a:b",
+    ]) {
       expect(safeUrl(bad), bad).toBeNull();
     }
   });
 
   it("never throws, whatever the input", () => {
-    for (const s of ["", "[", "[[run ", "@", "`", "<", "&", "\u0000", "*".repeat(5000), "[".repeat(2000) + "]".repeat(2000)]) {
+    for (const s of [
+      "",
+      "[",
+      "[[run ",
+      "@",
+      "`",
+      "<",
+      "&",
+      "\u0000",
+      "*".repeat(5000),
+      "[".repeat(2000) + "]".repeat(2000),
+    ]) {
       expect(typeof renderComment(s)).toBe("string");
     }
   });

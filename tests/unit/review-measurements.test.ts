@@ -19,7 +19,9 @@ function errors(input: string | Uint8Array): CsvError[] {
 
 describe("measurement CSV", () => {
   it("parses a good file: notes skipped, units scaled to SI, written units kept", () => {
-    const r = parseMeasurementCsv(utf8("# bench, chip 3 (invented)\nvin [mV], i_out [nA], i_ref (pA)\n100, 1.5, 20\n\n200, 3, 40\n300, 6, 80\n"));
+    const r = parseMeasurementCsv(
+      utf8("# bench, chip 3 (invented)\nvin [mV], i_out [nA], i_ref (pA)\n100, 1.5, 20\n\n200, 3, 40\n300, 6, 80\n"),
+    );
     expect(r.ok).toBe(true);
     if (!r.ok) return;
     const m = r.measurement;
@@ -57,23 +59,50 @@ describe("measurement CSV", () => {
       [5, 2, "i_out"],
       [6, 2, "i_out"],
     ]);
-    expect(formatCsvError(e[0])).toBe('row 3, column 2 (i_out): "3x" is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)');
+    expect(formatCsvError(e[0])).toBe(
+      'row 3, column 2 (i_out): "3x" is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)',
+    );
     expect(e[1].message).toMatch(/^an empty cell is not a number/);
   });
 
   it("wrong columns: one column, a missing unit, an unknown unit, a repeated name, a short row", () => {
     expect(errors("vin [V]\n1\n2\n")[0]).toMatchObject({ row: 1, column: 1 });
     expect(errors("vin [V]\n1\n2\n")[0].message).toMatch(/one column/);
-    expect(errors("# notes\nvin [V], i_out\n1, 2\n")[0]).toMatchObject({ row: 2, column: 2, message: expect.stringMatching(/has no unit/) });
-    expect(errors("vin [V], i_out [ohm]\n1, 2\n")[0]).toMatchObject({ row: 1, column: 2, columnName: "i_out", message: expect.stringMatching(/unit "ohm" is not known/) });
-    expect(errors("vin [V], vin [A]\n1, 2\n")[0]).toMatchObject({ row: 1, column: 2, message: expect.stringMatching(/appears twice/) });
-    expect(errors("vin [V], i [A]\n1, 2\n2\n3, 4\n")[0]).toMatchObject({ row: 3, column: 2, message: "this row has 1 cells; the header has 2" });
+    expect(errors("# notes\nvin [V], i_out\n1, 2\n")[0]).toMatchObject({
+      row: 2,
+      column: 2,
+      message: expect.stringMatching(/has no unit/),
+    });
+    expect(errors("vin [V], i_out [ohm]\n1, 2\n")[0]).toMatchObject({
+      row: 1,
+      column: 2,
+      columnName: "i_out",
+      message: expect.stringMatching(/unit "ohm" is not known/),
+    });
+    expect(errors("vin [V], vin [A]\n1, 2\n")[0]).toMatchObject({
+      row: 1,
+      column: 2,
+      message: expect.stringMatching(/appears twice/),
+    });
+    expect(errors("vin [V], i [A]\n1, 2\n2\n3, 4\n")[0]).toMatchObject({
+      row: 3,
+      column: 2,
+      message: "this row has 1 cells; the header has 2",
+    });
     expect(errors("vin [V], i [A]\n1, 2, 3\n2, 3\n")[0]).toMatchObject({ row: 2, column: 3 });
   });
 
   it("x must be a sweep axis: strictly monotonic", () => {
-    expect(errors("vin [V], i [A]\n1, 1\n2, 1\n2, 1\n")[0]).toMatchObject({ row: 4, column: 1, message: expect.stringMatching(/repeats/) });
-    expect(errors("vin [V], i [A]\n1, 1\n2, 1\n1.5, 1\n")[0]).toMatchObject({ row: 4, column: 1, message: expect.stringMatching(/strictly increasing/) });
+    expect(errors("vin [V], i [A]\n1, 1\n2, 1\n2, 1\n")[0]).toMatchObject({
+      row: 4,
+      column: 1,
+      message: expect.stringMatching(/repeats/),
+    });
+    expect(errors("vin [V], i [A]\n1, 1\n2, 1\n1.5, 1\n")[0]).toMatchObject({
+      row: 4,
+      column: 1,
+      message: expect.stringMatching(/strictly increasing/),
+    });
   });
 
   it("refuses too few rows, an empty file and a file over 10 MB", () => {
@@ -87,7 +116,11 @@ describe("measurement CSV", () => {
 
   it("refuses wrong encodings with the position: Latin-1 bytes, UTF-16, NUL bytes", () => {
     const latin1 = new Uint8Array([...utf8("vin [V], i [A]\n1, "), 0xb5, ...utf8("2\n")]);
-    expect(errors(latin1)[0]).toMatchObject({ row: 2, column: 2, message: expect.stringMatching(/byte 0xB5 .* not valid UTF-8/) });
+    expect(errors(latin1)[0]).toMatchObject({
+      row: 2,
+      column: 2,
+      message: expect.stringMatching(/byte 0xB5 .* not valid UTF-8/),
+    });
     const utf16 = new Uint8Array([0xff, 0xfe, 0x76, 0x00, 0x69, 0x00]);
     expect(errors(utf16)[0]).toMatchObject({ row: 1, column: 1, message: expect.stringMatching(/UTF-16/) });
     expect(errors(new Uint8Array([0x61, 0x2c, 0x00]))[0].message).toMatch(/NUL/);

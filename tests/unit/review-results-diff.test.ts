@@ -1,5 +1,13 @@
 import { describe, expect, it } from "vitest";
-import { diffResults, pointKey, relativeChange, summarize, tableFromPoints, within, type JsonPoint } from "@/app/lib/review/results-diff";
+import {
+  diffResults,
+  pointKey,
+  relativeChange,
+  summarize,
+  tableFromPoints,
+  within,
+  type JsonPoint,
+} from "@/app/lib/review/results-diff";
 
 /**
  * Fixture: a two-device current divider (m1, m2 share source node x, drains on
@@ -76,10 +84,15 @@ describe("results diff", () => {
 
   it("lists devices added and removed, and points only one side has", () => {
     const before = run(1e-6);
-    const after = tableFromPoints("sweep iin", [1e-9, 1e-8, 1e-6].map((iin) => solveDivider(1e-6, 1e-6, iin, { name: "m4", w: 1e-6 })));
+    const after = tableFromPoints(
+      "sweep iin",
+      [1e-9, 1e-8, 1e-6].map((iin) => solveDivider(1e-6, 1e-6, iin, { name: "m4", w: 1e-6 })),
+    );
     const d = diffResults([before], [after]);
     expect(d.names).toEqual([{ kind: "device", added: ["m4"], removed: [] }]);
-    expect(d.points).toEqual([{ analysis: "sweep iin", added: [pointKey({ iin: 1e-6 })], removed: [pointKey({ iin: 1e-7 })] }]);
+    expect(d.points).toEqual([
+      { analysis: "sweep iin", added: [pointKey({ iin: 1e-6 })], removed: [pointKey({ iin: 1e-7 })] },
+    ]);
     const back = diffResults([after], [before]);
     expect(back.names).toEqual([{ kind: "device", added: [], removed: ["m4"] }]);
   });
@@ -97,7 +110,9 @@ describe("results diff", () => {
     expect(within(NaN, NaN, 0, 0)).toBe(true);
     expect(within(NaN, 1, 1, 1)).toBe(false);
     const a = tableFromPoints("op", [{ params: {}, nodes: { x: 0.3 }, devices: { m: { current: 1e-9 } } }]);
-    const b = tableFromPoints("op", [{ params: {}, nodes: { x: 0.3 + 5e-7 }, devices: { m: { current: 1e-9 * (1 + 1e-5) } } }]);
+    const b = tableFromPoints("op", [
+      { params: {}, nodes: { x: 0.3 + 5e-7 }, devices: { m: { current: 1e-9 * (1 + 1e-5) } } },
+    ]);
     const loose = diffResults([a], [b]);
     expect(loose.rows.map((r) => r.name)).toEqual(["m"]); // 0.5 µV is within 1 µV; 1e-5 relative is not within 1e-6
     const tight = diffResults([a], [b], { tolerance: { absVoltage: 1e-7, rel: 1e-9 } });

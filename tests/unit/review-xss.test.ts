@@ -12,23 +12,23 @@ const PAYLOADS = [
   "<script>alert(1)</script>",
   "<SCRIPT SRC=//evil.example/x.js></SCRIPT>",
   "<img src=x onerror=alert(1)>",
-  "<img src=\"x\" onerror=\"alert(1)\">",
+  '<img src="x" onerror="alert(1)">',
   "<svg onload=alert(1)>",
   "<svg><script>alert(1)</script></svg>",
-  "<iframe src=\"javascript:alert(1)\"></iframe>",
-  "<iframe srcdoc=\"<script>alert(1)</script>\"></iframe>",
-  "<a href=\"javascript:alert(1)\">x</a>",
-  "<div style=\"background:url(javascript:alert(1))\">x</div>",
+  '<iframe src="javascript:alert(1)"></iframe>',
+  '<iframe srcdoc="<script>alert(1)</script>"></iframe>',
+  '<a href="javascript:alert(1)">x</a>',
+  '<div style="background:url(javascript:alert(1))">x</div>',
   "<style>body{background:red}</style>",
   "<body onload=alert(1)>",
   "<input autofocus onfocus=alert(1)>",
   "<details open ontoggle=alert(1)>",
   "<math><mtext><table><mglyph><style><img src=x onerror=alert(1)>",
-  "<object data=\"javascript:alert(1)\"></object>",
-  "<embed src=\"javascript:alert(1)\">",
-  "<form action=\"javascript:alert(1)\"><button>x</button></form>",
-  "<meta http-equiv=\"refresh\" content=\"0;url=javascript:alert(1)\">",
-  "<base href=\"javascript:alert(1)//\">",
+  '<object data="javascript:alert(1)"></object>',
+  '<embed src="javascript:alert(1)">',
+  '<form action="javascript:alert(1)"><button>x</button></form>',
+  '<meta http-equiv="refresh" content="0;url=javascript:alert(1)">',
+  '<base href="javascript:alert(1)//">',
   "<template><script>alert(1)</script></template>",
   "[x](javascript:alert(1))",
   "[x](JAVASCRIPT:alert(1))",
@@ -41,26 +41,54 @@ const PAYLOADS = [
   "[x](vbscript:msgbox(1))",
   "![x](javascript:alert(1))",
   "![x](data:image/svg+xml;base64,PHN2ZyBvbmxvYWQ9YWxlcnQoMSk+)",
-  "![x\" onerror=\"alert(1)](https://example.com/a.png)",
-  "[x](https://example.com/\" onmouseover=\"alert(1))",
-  "[x](https://example.com \"title\\\" onmouseover=alert(1) x=\\\"\")",
+  '![x" onerror="alert(1)](https://example.com/a.png)',
+  '[x](https://example.com/" onmouseover="alert(1))',
+  '[x](https://example.com "title\\" onmouseover=alert(1) x=\\"")',
   "[ref]\n\n[ref]: javascript:alert(1)",
   "<javascript:alert(1)>",
-  "<a href=\"https://ok.example\" onclick=\"alert(1)\">x</a>",
+  '<a href="https://ok.example" onclick="alert(1)">x</a>',
   "&lt;script&gt;alert(1)&lt;/script&gt;",
   "<scr<script>ipt>alert(1)</scr</script>ipt>",
   "<<script>script>alert(1)<</script>/script>",
   "`<script>` and ```\n<script>alert(1)</script>\n```",
   "<!-- --><script>alert(1)</script><!-- -->",
   "<img src=`x` onerror=alert(1)>",
-  "<a href=\"jav&#x09;ascript:alert(1)\">x</a>",
-  "[[run x\" onmouseover=\"alert(1)]] and [[run <img src=x onerror=alert(1)>]]",
+  '<a href="jav&#x09;ascript:alert(1)">x</a>',
+  '[[run x" onmouseover="alert(1)]] and [[run <img src=x onerror=alert(1)>]]',
   "@<img/src/onerror=alert(1)>",
-  "<span class=\"run-ref\" data-run=\"x\" onclick=\"alert(1)\">fake</span>",
-  "<noscript><p title=\"</noscript><img src=x onerror=alert(1)>\">",
+  '<span class="run-ref" data-run="x" onclick="alert(1)">fake</span>',
+  '<noscript><p title="</noscript><img src=x onerror=alert(1)>">',
 ];
 
-const ALLOWED_TAGS = new Set(["a", "p", "br", "hr", "strong", "em", "del", "code", "pre", "blockquote", "ul", "ol", "li", "h1", "h2", "h3", "h4", "h5", "h6", "table", "thead", "tbody", "tr", "th", "td", "img", "span"]);
+const ALLOWED_TAGS = new Set([
+  "a",
+  "p",
+  "br",
+  "hr",
+  "strong",
+  "em",
+  "del",
+  "code",
+  "pre",
+  "blockquote",
+  "ul",
+  "ol",
+  "li",
+  "h1",
+  "h2",
+  "h3",
+  "h4",
+  "h5",
+  "h6",
+  "table",
+  "thead",
+  "tbody",
+  "tr",
+  "th",
+  "td",
+  "img",
+  "span",
+]);
 const SAFE_URL = /^(https?:\/\/|mailto:|\/(?!\/)|#|\.{0,2}\/|[A-Za-z0-9_~.%-]+(?:[/?#]|$))/;
 
 /** Problems with one rendered string, from a browser's point of view. */
@@ -79,7 +107,8 @@ function vectors(html: string): string[] {
       const decoded = value.replace(/&amp;/g, "&").replace(/&quot;/g, '"');
       if (/^on/i.test(name)) problems.push(`event handler ${name}`);
       if (/^(style|srcdoc|formaction|action|xlink:href)$/i.test(name)) problems.push(`attribute ${name}`);
-      if ((name === "href" || name === "src") && !SAFE_URL.test(decoded)) problems.push(`unsafe URL ${name}="${value}"`);
+      if ((name === "href" || name === "src") && !SAFE_URL.test(decoded))
+        problems.push(`unsafe URL ${name}="${value}"`);
       if (/javascript:|vbscript:|data:/i.test(decoded)) problems.push(`script URL in ${name}`);
     }
   }
@@ -99,7 +128,9 @@ describe("comments render hostile input inert", () => {
     const html = renderComment(payload);
     expect(vectors(html)).toEqual([]);
     expect(html).not.toMatch(/<script/i);
-    expect(html).not.toMatch(/<(iframe|svg|style|object|embed|form|meta|base|math|template|input|button|body|details|noscript)\b/i);
+    expect(html).not.toMatch(
+      /<(iframe|svg|style|object|embed|form|meta|base|math|template|input|button|body|details|noscript)\b/i,
+    );
     // an on… attribute in attribute position (not text inside another attribute's quoted value)
     expect(html).not.toMatch(/<[a-z0-9]+(\s+[a-z-]+(="[^"]*")?)*\s+on\w+\s*=/i);
     expect(html).not.toMatch(/(href|src)="\s*(javascript|vbscript|data):/i);

@@ -28,20 +28,23 @@ describe("runnel solve --json on the examples", () => {
     expect(examples.length).toBeGreaterThanOrEqual(6);
   });
 
-  it.each(examples)("%s solves: ok, exit 0, a method on every point, KCL residual ≤ 1e-9 of the largest current", (f) => {
-    const { code, doc } = solveJson(join(root, "examples", f));
-    expect(doc.diagnostics.filter((d) => d.severity === "error")).toEqual([]);
-    expect(code).toBe(0);
-    expect(doc.ok).toBe(true);
-    expect(doc.points.length).toBeGreaterThan(0);
-    for (const p of doc.points) {
-      expect(["linear", "newton"]).toContain(p.solver.method);
-      expect(p.solver.reason.length).toBeGreaterThan(10);
-      let imax = 0;
-      for (const d of Object.values(p.devices)) imax = Math.max(imax, Math.abs(d.current));
-      expect(p.solver.residual).toBeLessThanOrEqual(1e-9 * imax);
-    }
-  });
+  it.each(examples)(
+    "%s solves: ok, exit 0, a method on every point, KCL residual ≤ 1e-9 of the largest current",
+    (f) => {
+      const { code, doc } = solveJson(join(root, "examples", f));
+      expect(doc.diagnostics.filter((d) => d.severity === "error")).toEqual([]);
+      expect(code).toBe(0);
+      expect(doc.ok).toBe(true);
+      expect(doc.points.length).toBeGreaterThan(0);
+      for (const p of doc.points) {
+        expect(["linear", "newton"]).toContain(p.solver.method);
+        expect(p.solver.reason.length).toBeGreaterThan(10);
+        let imax = 0;
+        for (const d of Object.values(p.devices)) imax = Math.max(imax, Math.abs(d.current));
+        expect(p.solver.residual).toBeLessThanOrEqual(1e-9 * imax);
+      }
+    },
+  );
 
   it("the mirror bank is solved by Newton, saying which gate is on an internal node", () => {
     const { doc } = solveJson(join(root, "examples", "mirror.runnel"));
@@ -55,7 +58,10 @@ describe("runnel solve --json on the examples", () => {
   });
 
   it("the exact command line prints one document and exits 0 (spawned)", () => {
-    const r = spawnSync("npm", ["run", "--silent", "runnel", "--", "solve", "examples/divider.runnel", "--json"], { cwd: root, encoding: "utf8" });
+    const r = spawnSync("npm", ["run", "--silent", "runnel", "--", "solve", "examples/divider.runnel", "--json"], {
+      cwd: root,
+      encoding: "utf8",
+    });
     expect(r.status).toBe(0);
     const doc = JSON.parse(r.stdout) as SolveJson;
     expect(doc).toMatchObject({ network: "divider", ok: true });
@@ -68,7 +74,10 @@ describe("runnel solve --json on the examples", () => {
     expect(main(["solve", join(root, "examples", "nope.runnel"), "--json"], io)).toBe(2);
     const dir = mkdtempSync(join(tmpdir(), "runnel-solve-"));
     const file = join(dir, "push.runnel");
-    writeFileSync(file, "rail gnd = 0\nrail vd = 1\nrail vg = 0.5\nnfet m gate=vg source=x drain=vd\ninject push from=gnd to=x value=1n\n");
+    writeFileSync(
+      file,
+      "rail gnd = 0\nrail vd = 1\nrail vg = 0.5\nnfet m gate=vg source=x drain=vd\ninject push from=gnd to=x value=1n\n",
+    );
     const { code, doc } = solveJson(file);
     expect(code).toBe(1);
     expect(doc.ok).toBe(false);
@@ -79,7 +88,10 @@ describe("runnel solve --json on the examples", () => {
   it("a run's document is printed a point at a time, exactly as JSON.stringify(doc, null, 2) prints it whole", () => {
     let out = "";
     let writes = 0;
-    const code = main(["solve", join(root, "examples", "biassweep.runnel"), "--json"], { out: (t) => ((out += t), writes++), err: () => undefined });
+    const code = main(["solve", join(root, "examples", "biassweep.runnel"), "--json"], {
+      out: (t) => ((out += t), writes++),
+      err: () => undefined,
+    });
     expect(code).toBe(0);
     const doc = JSON.parse(out) as SolveJson;
     expect(doc.points.length).toBeGreaterThan(1);
@@ -91,25 +103,40 @@ describe("runnel solve --json on the examples", () => {
     const dir = mkdtempSync(join(tmpdir(), "runnel-solve-"));
     const file = join(dir, "big.runnel");
     // 1,000 × 1,000 points of a one-device network: a million points, about 2e7 values.
-    writeFileSync(file, "param a = 0.6\nparam b = 1n\nrail vdd = 1.8\nrail gnd = 0\nrail g = a\nnfet m gate=g source=x drain=vdd\ninject s from=x to=gnd value=b\nsweep a from 0.5 to 0.7 points 1000\nsweep b from 1n to 2n points 1000\n");
+    writeFileSync(
+      file,
+      "param a = 0.6\nparam b = 1n\nrail vdd = 1.8\nrail gnd = 0\nrail g = a\nnfet m gate=g source=x drain=vdd\ninject s from=x to=gnd value=b\nsweep a from 0.5 to 0.7 points 1000\nsweep b from 1n to 2n points 1000\n",
+    );
     const { code, doc } = solveJson(file);
     expect(code).toBe(1);
     expect(doc.ok).toBe(false);
     expect(doc.points).toEqual([]);
     expect(doc.diagnostics[0]).toMatchObject({ severity: "error", line: 8 });
-    expect(doc.diagnostics[0].message).toMatch(/would print about .* values \(1,000,000 points of 4 nodes and 1 device\), more than the command line's 10,000,000/);
+    expect(doc.diagnostics[0].message).toMatch(
+      /would print about .* values \(1,000,000 points of 4 nodes and 1 device\), more than the command line's 10,000,000/,
+    );
     expect(MAX_PRINTED_VALUES).toBe(10_000_000);
   });
 
   it("a probe that is not a finite number prints null with a warning at the probe's line", () => {
     const dir = mkdtempSync(join(tmpdir(), "runnel-solve-"));
     const file = join(dir, "nan.runnel");
-    writeFileSync(file, "param z = 0\nrail vdd = 1.8\nrail gnd = 0\nrail gb = 0.6\nnfet m1 gate=gb source=x drain=vdd\ninject s from=x to=gnd value=1n\nprobe c = 1/z\nprobe v = voltage(x)\nsweep z values [1, 0]\n");
+    writeFileSync(
+      file,
+      "param z = 0\nrail vdd = 1.8\nrail gnd = 0\nrail gb = 0.6\nnfet m1 gate=gb source=x drain=vdd\ninject s from=x to=gnd value=1n\nprobe c = 1/z\nprobe v = voltage(x)\nsweep z values [1, 0]\n",
+    );
     const { code, doc } = solveJson(file);
     expect(code).toBe(0);
     expect(doc.points[0].probes.c).toBe(1);
     expect(doc.points[1].probes.c).toBeNull();
-    expect(doc.diagnostics).toEqual([{ severity: "warning", line: 7, column: 7, message: "probe c is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null (first at point 1)" }]);
+    expect(doc.diagnostics).toEqual([
+      {
+        severity: "warning",
+        line: 7,
+        column: 7,
+        message:
+          "probe c is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null (first at point 1)",
+      },
+    ]);
   });
 });
-

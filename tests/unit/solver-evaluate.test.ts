@@ -87,7 +87,14 @@ describe("evaluation along an inject-only sweep", () => {
       keepPoints: false,
       reuseArrays: true,
       onPoint: (p) =>
-        copies.push({ v: Array.from(p.voltages), i: Array.from(p.currents), ic: Array.from(p.ic), s: Array.from(p.saturated), r: Array.from(p.railCurrents), arrays: [p.voltages, p.currents] }),
+        copies.push({
+          v: Array.from(p.voltages),
+          i: Array.from(p.currents),
+          ic: Array.from(p.ic),
+          s: Array.from(p.saturated),
+          r: Array.from(p.railCurrents),
+          arrays: [p.voltages, p.currents],
+        }),
     });
     expect(copies.length).toBe(kept.length);
     for (let k = 0; k < kept.length; k++) {

@@ -67,7 +67,13 @@ function randomLinear(seed: number, maxN = 25, maxP = 8): Stmt[] {
   };
   const pfet = (a: string, b: string) => {
     const [s, d] = rnd() < 0.5 ? [a, b] : [b, a];
-    out.push({ kind: "pfet", name: `mp${dev++}`, pins: { gate: pick(gatesP), source: s, drain: d, well: "vdd" }, w: size(), l: size() });
+    out.push({
+      kind: "pfet",
+      name: `mp${dev++}`,
+      pins: { gate: pick(gatesP), source: s, drain: d, well: "vdd" },
+      w: size(),
+      l: size(),
+    });
   };
   const nNodes: string[] = [];
   for (let k = 0; k < nN; k++) {
@@ -75,8 +81,15 @@ function randomLinear(seed: number, maxN = 25, maxP = 8): Stmt[] {
     nfet(name, nNodes.length && rnd() < 0.7 ? pick(nNodes) : pick(["gnd", "vdd", "vmid"]));
     nNodes.push(name);
   }
-  for (let e = 0; e < Math.floor(rnd() * 2 * nN); e++) nfet(pick(nNodes), rnd() < 0.8 ? pick(nNodes) : pick(["vdd", "vmid"]));
-  for (let k = 0; k < 1 + Math.floor(rnd() * 3); k++) out.push({ kind: "inject", name: `in${k}`, pins: { from: pick(nNodes), to: "gnd" }, value: 1e-12 * Math.exp(8 * rnd()) });
+  for (let e = 0; e < Math.floor(rnd() * 2 * nN); e++)
+    nfet(pick(nNodes), rnd() < 0.8 ? pick(nNodes) : pick(["vdd", "vmid"]));
+  for (let k = 0; k < 1 + Math.floor(rnd() * 3); k++)
+    out.push({
+      kind: "inject",
+      name: `in${k}`,
+      pins: { from: pick(nNodes), to: "gnd" },
+      value: 1e-12 * Math.exp(8 * rnd()),
+    });
   const pNodes: string[] = [];
   for (let k = 0; k < nP; k++) {
     const name = `y${k}`;
@@ -84,7 +97,13 @@ function randomLinear(seed: number, maxN = 25, maxP = 8): Stmt[] {
     pNodes.push(name);
   }
   for (let e = 0; e < Math.floor(rnd() * nP); e++) pfet(pick(pNodes), pick(pNodes));
-  if (nP > 0) out.push({ kind: "inject", name: "ip", pins: { from: "vdd", to: pick(pNodes) }, value: 1e-11 * Math.exp(6 * rnd()) });
+  if (nP > 0)
+    out.push({
+      kind: "inject",
+      name: "ip",
+      pins: { from: "vdd", to: pick(pNodes) },
+      value: 1e-11 * Math.exp(6 * rnd()),
+    });
   return out;
 }
 
@@ -93,9 +112,26 @@ function build(stmts: Stmt[], rename: (n: string) => string = (n) => n): Network
   const pin = (n: string) => rename(n);
   for (const s of stmts) {
     if (s.kind === "rail") b.rail(pin(s.name), s.value as number);
-    else if (s.kind === "inject") b.inject(rename(s.name), { from: pin(s.pins.from), to: pin(s.pins.to), value: s.value as number });
-    else if (s.kind === "nfet") b.nfet(rename(s.name), { gate: pin(s.pins.gate), source: pin(s.pins.source), drain: pin(s.pins.drain), bulk: s.pins.bulk ? pin(s.pins.bulk) : undefined, w: s.w, l: s.l });
-    else b.pfet(rename(s.name), { gate: pin(s.pins.gate), source: pin(s.pins.source), drain: pin(s.pins.drain), well: pin(s.pins.well), w: s.w, l: s.l });
+    else if (s.kind === "inject")
+      b.inject(rename(s.name), { from: pin(s.pins.from), to: pin(s.pins.to), value: s.value as number });
+    else if (s.kind === "nfet")
+      b.nfet(rename(s.name), {
+        gate: pin(s.pins.gate),
+        source: pin(s.pins.source),
+        drain: pin(s.pins.drain),
+        bulk: s.pins.bulk ? pin(s.pins.bulk) : undefined,
+        w: s.w,
+        l: s.l,
+      });
+    else
+      b.pfet(rename(s.name), {
+        gate: pin(s.pins.gate),
+        source: pin(s.pins.source),
+        drain: pin(s.pins.drain),
+        well: pin(s.pins.well),
+        w: s.w,
+        l: s.l,
+      });
   }
   return b.build();
 }
@@ -148,7 +184,8 @@ function grossCurrents(net: Network, p: PointResult): Float64Array {
     const vb = bulk[d] >= 0 ? V[bulk[d]] : 0;
     const x = (t: number) => sg * (V[t] - vb);
     const a = i0 * (w[d] / l[d]);
-    out[d] = a * Math.exp((kappa * x(gate[d]) - x(source[d])) / ut) + a * Math.exp((kappa * x(gate[d]) - x(drain[d])) / ut);
+    out[d] =
+      a * Math.exp((kappa * x(gate[d]) - x(source[d])) / ut) + a * Math.exp((kappa * x(gate[d]) - x(drain[d])) / ut);
   }
   return out;
 }
@@ -173,7 +210,9 @@ describe("linear system against math.js lusolve", () => {
         const vb = bulk[d] >= 0 ? railValue[bulk[d]] : 0;
         const vg = railValue[gate[d]];
         const nch = type[d] === NFET;
-        const G = nch ? i0 * (w[d] / l[d]) * Math.exp((kappa * (vg - vb) + vb) / ut) : i0 * (w[d] / l[d]) * Math.exp((kappa * (vb - vg) - vb) / ut);
+        const G = nch
+          ? i0 * (w[d] / l[d]) * Math.exp((kappa * (vg - vb) + vb) / ut)
+          : i0 * (w[d] / l[d]) * Math.exp((kappa * (vb - vg) - vb) / ut);
         const u = (k: number) => (nch ? Math.exp(-railValue[k] / ut) : Math.exp(railValue[k] / ut));
         const ends = [source[d], drain[d]];
         for (const [a, c] of [ends, [ends[1], ends[0]]]) {
@@ -212,7 +251,8 @@ describe("linear and Newton paths agree on linear-class networks", () => {
       expect(b.solver.method).toBe("newton");
       // Newton stops at steps below 1e-9 V: currents agree to ~1e-9 of each channel's I_F + I_R.
       const gross = grossCurrents(net, a);
-      for (let d = 0; d < a.currents.length; d++) expect(Math.abs(a.currents[d] - b.currents[d])).toBeLessThanOrEqual(1e-8 * gross[d]);
+      for (let d = 0; d < a.currents.length; d++)
+        expect(Math.abs(a.currents[d] - b.currents[d])).toBeLessThanOrEqual(1e-8 * gross[d]);
     }
   });
 });
@@ -246,8 +286,13 @@ describe("the linear path's evaluation from pseudo-voltages", () => {
         for (let d = 0; d < net.devices.count; d++) if (source[d] === r.node || drain[d] === r.node) scale += gross[d];
         expect(Math.abs(p.railCurrents[r.node] - ref.railCurrents[r.node])).toBeLessThanOrEqual(1e-9 * scale + 1e-24);
       }
-      expect(p.warnings.map((w) => [w.kind, w.device, w.count])).toEqual(ref.warnings.map((w) => [w.kind, w.device, w.count]));
-      for (let k = 0; k < p.warnings.length; k++) expect(Math.abs(p.warnings[k].worst - ref.warnings[k].worst)).toBeLessThanOrEqual(1e-9 * ref.warnings[k].worst + 1e-12);
+      expect(p.warnings.map((w) => [w.kind, w.device, w.count])).toEqual(
+        ref.warnings.map((w) => [w.kind, w.device, w.count]),
+      );
+      for (let k = 0; k < p.warnings.length; k++)
+        expect(Math.abs(p.warnings[k].worst - ref.warnings[k].worst)).toBeLessThanOrEqual(
+          1e-9 * ref.warnings[k].worst + 1e-12,
+        );
       junctions += p.warnings.filter((w) => w.kind === "junction").length;
       inversions += p.warnings.filter((w) => w.kind === "inversion").length;
     }
@@ -270,7 +315,8 @@ describe("properties of random linear-class networks (fast-check)", () => {
         }
         // The reported residual is the same KCL error, in amperes.
         let worst = 0;
-        for (let k = 0; k < err.length; k++) if (!Number.isFinite(net.nodes.railValue[k])) worst = Math.max(worst, err[k]);
+        for (let k = 0; k < err.length; k++)
+          if (!Number.isFinite(net.nodes.railValue[k])) worst = Math.max(worst, err[k]);
         return Math.abs(p.solver.residual - worst) <= 1e-3 * worst + 1e-30;
       }),
       { numRuns: 60 },
@@ -310,20 +356,44 @@ describe("properties of random linear-class networks (fast-check)", () => {
 describe("classification and unsolvable networks", () => {
   it("gives the reason that breaks the linear class, naming the node or device", () => {
     const base = () => new NetworkBuilder().rail("gnd", 0).rail("vdd", 1.8).rail("vg", 0.6);
-    const mirror = base().inject("i", { from: "gnd", to: "x", value: 1e-9 }).nfet("m1", { gate: "x", source: "gnd", drain: "x" }).nfet("m2", { gate: "x", source: "gnd", drain: "vdd" }).build();
+    const mirror = base()
+      .inject("i", { from: "gnd", to: "x", value: 1e-9 })
+      .nfet("m1", { gate: "x", source: "gnd", drain: "x" })
+      .nfet("m2", { gate: "x", source: "gnd", drain: "vdd" })
+      .build();
     expect(classify(mirror)).toMatchObject({ linear: false, reason: "gate of m1 is on internal node x" });
-    const mixed = base().nfet("mn", { gate: "vg", source: "gnd", drain: "y" }).pfet("mp", { gate: "vg", source: "vdd", drain: "y", well: "vdd" }).build();
+    const mixed = base()
+      .nfet("mn", { gate: "vg", source: "gnd", drain: "y" })
+      .pfet("mp", { gate: "vg", source: "vdd", drain: "y", well: "vdd" })
+      .build();
     expect(classify(mixed).reason).toBe("node y joins n-channel mn and p-channel mp");
-    const well = base().pfet("mp", { gate: "vg", source: "vdd", drain: "y", well: "w" }).nfet("mn", { gate: "vg", source: "gnd", drain: "w" }).pfet("mq", { gate: "vg", source: "vdd", drain: "y", well: "vdd" }).build();
+    const well = base()
+      .pfet("mp", { gate: "vg", source: "vdd", drain: "y", well: "w" })
+      .nfet("mn", { gate: "vg", source: "gnd", drain: "w" })
+      .pfet("mq", { gate: "vg", source: "vdd", drain: "y", well: "vdd" })
+      .build();
     expect(classify(well).reasons).toContain("well of mp is on internal node w");
-    const ekv = base().set({ model: "ekv", ispec: 1e-7, vt0: 0.4 }).nfet("m", { gate: "vg", source: "gnd", drain: "z" }).nfet("m2", { gate: "vg", source: "z", drain: "vdd" }).build();
+    const ekv = base()
+      .set({ model: "ekv", ispec: 1e-7, vt0: 0.4 })
+      .nfet("m", { gate: "vg", source: "gnd", drain: "z" })
+      .nfet("m2", { gate: "vg", source: "z", drain: "vdd" })
+      .build();
     expect(classify(ekv).reason).toMatch(/EKV/);
-    const lin = base().nfet("m", { gate: "vg", source: "z", drain: "vdd" }).inject("i", { from: "z", to: "gnd", value: 1e-9 }).build();
+    const lin = base()
+      .nfet("m", { gate: "vg", source: "z", drain: "vdd" })
+      .inject("i", { from: "z", to: "gnd", value: 1e-9 })
+      .build();
     expect(classify(lin).linear).toBe(true);
   });
 
   it("a mirror is solved by Newton and says why", () => {
-    const net = new NetworkBuilder().rail("gnd", 0).rail("vout", 1).inject("iin", { from: "gnd", to: "x", value: 1e-9 }).nfet("m1", { gate: "x", source: "gnd", drain: "x" }).nfet("m2", { gate: "x", source: "gnd", drain: "vout" }).build();
+    const net = new NetworkBuilder()
+      .rail("gnd", 0)
+      .rail("vout", 1)
+      .inject("iin", { from: "gnd", to: "x", value: 1e-9 })
+      .nfet("m1", { gate: "x", source: "gnd", drain: "x" })
+      .nfet("m2", { gate: "x", source: "gnd", drain: "vout" })
+      .build();
     const run = solveNetwork(net);
     expect(run.ok).toBe(true);
     expect(run.points[0].solver).toMatchObject({ method: "newton", reason: "gate of m1 is on internal node x" });
@@ -331,7 +401,13 @@ describe("classification and unsolvable networks", () => {
 
   it("an inject asking more than the channels can carry has no physical operating point, naming the node", () => {
     // Pushing 1 nA into x, whose only channel leads to a 1 V drain: at most G·exp(−1/U_T) can leave.
-    const net = new NetworkBuilder().rail("gnd", 0).rail("vd", 1).rail("vg", 0.5).nfet("m", { gate: "vg", source: "x", drain: "vd" }).inject("push", { from: "gnd", to: "x", value: 1e-9 }).build();
+    const net = new NetworkBuilder()
+      .rail("gnd", 0)
+      .rail("vd", 1)
+      .rail("vg", 0.5)
+      .nfet("m", { gate: "vg", source: "x", drain: "vd" })
+      .inject("push", { from: "gnd", to: "x", value: 1e-9 })
+      .build();
     const run = solveNetwork(net);
     expect(run.ok).toBe(false);
     expect(run.points[0].ok).toBe(false);
@@ -358,12 +434,20 @@ describe("classification and unsolvable networks", () => {
   });
 
   it("a floating group of nodes and a node without a channel are errors, never answers", () => {
-    const floating = new NetworkBuilder().rail("vg", 0.5).nfet("m", { gate: "vg", source: "a", drain: "b" }).inject("i", { from: "a", to: "b", value: 1e-9 }).build();
+    const floating = new NetworkBuilder()
+      .rail("vg", 0.5)
+      .nfet("m", { gate: "vg", source: "a", drain: "b" })
+      .inject("i", { from: "a", to: "b", value: 1e-9 })
+      .build();
     const r1 = solveNetwork(floating);
     expect(r1.ok).toBe(false);
     expect(r1.points).toEqual([]);
     expect(r1.failures[0].message).toMatch(/node a .*no channel path to a rail/);
-    const gateOnly = new NetworkBuilder().rail("gnd", 0).rail("vd", 1).nfet("m", { gate: "g", source: "gnd", drain: "vd" }).build();
+    const gateOnly = new NetworkBuilder()
+      .rail("gnd", 0)
+      .rail("vd", 1)
+      .nfet("m", { gate: "g", source: "gnd", drain: "vd" })
+      .build();
     const r2 = solveNetwork(gateOnly);
     expect(r2.ok).toBe(false);
     expect(r2.failures[0].message).toMatch(/node g connects to no device channel/);

@@ -42,7 +42,9 @@ describe("Pelgrom mismatch", () => {
     expect(sigma).toBeCloseTo(0.0677, 4);
     expect(Math.abs(st.std / sigma - 1)).toBeLessThan(4 / Math.sqrt(2 * (N - 1)));
     // The mean of ln I is the nominal one (the offsets have zero mean).
-    const nominal = Math.log(1e-15 * Math.exp((0.7 * 0.5) / thermalVoltage(T)) * (1 - Math.exp(-1 / thermalVoltage(T))));
+    const nominal = Math.log(
+      1e-15 * Math.exp((0.7 * 0.5) / thermalVoltage(T)) * (1 - Math.exp(-1 / thermalVoltage(T))),
+    );
     expect(Math.abs(st.mean - nominal)).toBeLessThan((4 * sigma) / Math.sqrt(N));
     // The run's probe summary is the same statistic.
     expect(run.summaries.length).toBe(1);

@@ -121,7 +121,10 @@ function chain(N: number, j: number, vh: number, vv: number, iin: number, temp =
 
 function chainClosedForm(N: number, j: number, g: number): number[] {
   const theta = Math.acosh(1 + g / 2);
-  const w = Array.from({ length: N }, (_, k) => Math.cosh((Math.min(k, j) + 0.5) * theta) * Math.cosh((N - Math.max(k, j) - 0.5) * theta));
+  const w = Array.from(
+    { length: N },
+    (_, k) => Math.cosh((Math.min(k, j) + 0.5) * theta) * Math.cosh((N - Math.max(k, j) - 0.5) * theta),
+  );
   const sum = w.reduce((a, b) => a + b, 0);
   return w.map((x) => x / sum);
 }
@@ -212,7 +215,9 @@ describe("weak-inversion mirror (PHYSICS.md §8; Mead 1989, current mirror [conf
     // The closed form [(W/L)2/(W/L)1]·(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}) at the solved Vx.
     const ut = thermalVoltage(T);
     const vx = p.voltages[netOf.get(run)!.nodes.index.get("x")!];
-    expect(rel(dev(run, p, "m2") / 10e-9, (4 * (1 - Math.exp(-0.05 / ut))) / (1 - Math.exp(-vx / ut)))).toBeLessThan(1e-9);
+    expect(rel(dev(run, p, "m2") / 10e-9, (4 * (1 - Math.exp(-0.05 / ut))) / (1 - Math.exp(-vx / ut)))).toBeLessThan(
+      1e-9,
+    );
   });
 
   it("the continuation path (source stepping) reaches the same operating point", () => {
@@ -268,7 +273,12 @@ describe("EKV all-region model (PHYSICS.md §4; Enz, Krummenacher, Vittoz, Analo
 
   it("in strong inversion EKV gives the square law: I ≈ ispec·(W/L)·((Vp − Vs)/2U_T)² [derived from F(x) → (x/2)² for large x]", () => {
     const ispec = 100e-9;
-    const b = new NetworkBuilder("strong").set({ temp: T, ispec, vt0: 0.4, model: "ekv" }).rail("g", 1.4).rail("d", 3).rail("gnd", 0).nfet("m", { gate: "g", source: "gnd", drain: "d" });
+    const b = new NetworkBuilder("strong")
+      .set({ temp: T, ispec, vt0: 0.4, model: "ekv" })
+      .rail("g", 1.4)
+      .rail("d", 3)
+      .rail("gnd", 0)
+      .nfet("m", { gate: "g", source: "gnd", drain: "d" });
     const run = solve(b);
     const p = only(run);
     const ut = thermalVoltage(T);

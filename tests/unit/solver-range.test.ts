@@ -91,7 +91,13 @@ describe("rails, gates and temperatures far apart in units of U_T (closed forms:
   });
 
   it("a gate so high that the currents leave double precision's range fails, saying so, instead of reporting nulls", () => {
-    const net = new NetworkBuilder("hot").rail("vdd", 1.8).rail("gnd", 0).rail("g", 40).nfet("m1", { gate: "g", source: "x", drain: "vdd" }).inject("s", { from: "x", to: "gnd", value: 20e-9 }).build();
+    const net = new NetworkBuilder("hot")
+      .rail("vdd", 1.8)
+      .rail("gnd", 0)
+      .rail("g", 40)
+      .nfet("m1", { gate: "g", source: "x", drain: "vdd" })
+      .inject("s", { from: "x", to: "gnd", value: 20e-9 })
+      .build();
     const run = solveNetwork(net);
     expect(run.ok).toBe(false);
     expect(run.failures[0].message).toMatch(/beyond double precision's range/);
@@ -124,7 +130,9 @@ describe("a solve that cannot resolve the network (KCL against the device equati
     expect(run.ok).toBe(false);
     expect(run.points[0].ok).toBe(false);
     expect(run.failures[0].node).toBeGreaterThanOrEqual(0);
-    expect(run.failures[0].message).toMatch(/results not reliable: the KCL error at node x\d+ is .* more decades than double precision resolves/);
+    expect(run.failures[0].message).toMatch(
+      /results not reliable: the KCL error at node x\d+ is .* more decades than double precision resolves/,
+    );
   });
 
   it("the same row with the lateral gate at 1.2 V solves: the outputs add up to the sinks", () => {

@@ -9,7 +9,16 @@ import { describe, expect, it } from "vitest";
 import { cholesky, matrixTriangle } from "../../src/solver/cholesky";
 import { lu, luSolve } from "../../src/solver/lu";
 import { amd, nestedDissection, natural } from "../../src/solver/order";
-import { compress, compressPattern, type Csc, multiply, permutedTriangle, symmetricAdjacency, transpose, Triplet } from "../../src/solver/sparse";
+import {
+  compress,
+  compressPattern,
+  type Csc,
+  multiply,
+  permutedTriangle,
+  symmetricAdjacency,
+  transpose,
+  Triplet,
+} from "../../src/solver/sparse";
 import { analyse, etreeOfGraph, type Kernel } from "../../src/solver/symbolic";
 import { cholSolve } from "../../src/solver/triangular";
 
@@ -226,9 +235,10 @@ describe("Cholesky against math.js lusolve", () => {
       const n = 90;
       const L = new Laplacian(n);
       const link = (i: number, j: number) => L.link(i, j, Math.exp(4 * (rnd() - 0.5)));
-      for (let start = 0; start < n; ) {
+      for (let start = 0; start < n;) {
         const size = 3 + Math.floor(rnd() * 15);
-        for (let i = start; i < Math.min(n, start + size); i++) for (let j = i + 1; j < Math.min(n, start + size); j++) link(i, j);
+        for (let i = start; i < Math.min(n, start + size); i++)
+          for (let j = i + 1; j < Math.min(n, start + size); j++) link(i, j);
         start += size;
       }
       for (let e = 0; e < n; e++) {

@@ -41,11 +41,19 @@ describe("sweep grid", () => {
 
 /** A diffuser chain whose input current and lateral gate are params. */
 function chain(sweep: "iin" | "vh") {
-  const b = new NetworkBuilder("row").param("iin", 1e-10).param("vh", 0.6).rail("vh", "vh").rail("vv", 0.5).rail("vd", 1.5).rail("gnd", 0);
+  const b = new NetworkBuilder("row")
+    .param("iin", 1e-10)
+    .param("vh", 0.6)
+    .rail("vh", "vh")
+    .rail("vv", 0.5)
+    .rail("vd", 1.5)
+    .rail("gnd", 0);
   for (let k = 0; k < 30; k++) b.nfet(`o${k}`, { gate: "vv", source: `n${k}`, drain: "vd" });
   for (let k = 0; k + 1 < 30; k++) b.nfet(`l${k}`, { gate: "vh", source: `n${k}`, drain: `n${k + 1}` });
   b.inject("in", { from: "n15", to: "gnd", value: "iin" });
-  return sweep === "iin" ? b.sweep("iin", { from: 1e-11, to: 1e-9, points: 5, log: true }).build() : b.sweep("vh", [0.55, 0.6, 0.65]).build();
+  return sweep === "iin"
+    ? b.sweep("iin", { from: 1e-11, to: 1e-9, points: 5, log: true }).build()
+    : b.sweep("vh", [0.55, 0.6, 0.65]).build();
 }
 
 describe("work reuse across points", () => {
@@ -57,7 +65,8 @@ describe("work reuse across points", () => {
     const first = run.points[0];
     for (const p of run.points) {
       const scale = p.params.iin / first.params.iin;
-      for (let k = 0; k < 30; k++) expect(Math.abs(p.currents[k] / (first.currents[k] * scale) - 1)).toBeLessThan(1e-11);
+      for (let k = 0; k < 30; k++)
+        expect(Math.abs(p.currents[k] / (first.currents[k] * scale) - 1)).toBeLessThan(1e-11);
     }
   });
 
@@ -67,9 +76,11 @@ describe("work reuse across points", () => {
     // currents, saturation and KCL are linear in the pseudo-voltages). Each point against a run of that point alone.
     const n = 12;
     let text = "network g\nparam iin = 1n\nrail gh = 0.72\nrail gv = 0.6\nrail vd = 1\nrail gnd = 0\n";
-    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) text += `nfet o${i}_${j} gate=gv source=n${i}_${j} drain=vd\n`;
     for (let i = 0; i < n; i++)
-      for (let j = 0; j + 1 < n; j++) text += `nfet h${i}_${j} gate=gh source=n${i}_${j} drain=n${i}_${j + 1}\nnfet v${j}_${i} gate=gh source=n${j}_${i} drain=n${j + 1}_${i}\n`;
+      for (let j = 0; j < n; j++) text += `nfet o${i}_${j} gate=gv source=n${i}_${j} drain=vd\n`;
+    for (let i = 0; i < n; i++)
+      for (let j = 0; j + 1 < n; j++)
+        text += `nfet h${i}_${j} gate=gh source=n${i}_${j} drain=n${i}_${j + 1}\nnfet v${j}_${i} gate=gh source=n${j}_${i} drain=n${j + 1}_${i}\n`;
     text += "inject spot from=n5_6 to=gnd value=iin\nsweep iin from 10p to 10n points 7 log\n";
     const { network, diagnostics } = elaborate(text);
     expect(diagnostics.filter((d) => d.severity === "error")).toEqual([]);
@@ -146,7 +157,11 @@ describe("run controls", () => {
     expect(stopped.points.length).toBe(3);
     const progress: [number, number][] = [];
     const seen: number[] = [];
-    const quiet = solveNetwork(net, { keepPoints: false, onProgress: (d, t) => progress.push([d, t]), onPoint: (p) => seen.push(p.index) });
+    const quiet = solveNetwork(net, {
+      keepPoints: false,
+      onProgress: (d, t) => progress.push([d, t]),
+      onPoint: (p) => seen.push(p.index),
+    });
     expect(quiet.points).toEqual([]);
     expect(quiet.solved).toBe(5);
     expect(seen).toEqual([0, 1, 2, 3, 4]);

@@ -25,7 +25,13 @@ function lcg(seed: number): () => number {
 
 /** Rails, then internal nodes n0..n{count-1} each with an output nfet to vd and lateral nfets on `edges`. */
 function network(count: number, edges: [number, number][], rnd: () => number, pfets = false): Network {
-  const b = new NetworkBuilder("t").rail("gh", 0.7).rail("gv", 0.6).rail("vd", 1).rail("gnd", 0).rail("vdd", 1.8).rail("gp", 1.2);
+  const b = new NetworkBuilder("t")
+    .rail("gh", 0.7)
+    .rail("gv", 0.6)
+    .rail("vd", 1)
+    .rail("gnd", 0)
+    .rail("vdd", 1.8)
+    .rail("gp", 1.2);
   for (let k = 0; k < count; k++) {
     const w = 1e-6 * (0.5 + rnd());
     if (pfets) b.pfet(`o${k}`, { gate: "gp", source: "vdd", drain: `n${k}`, well: "vdd", w });
@@ -50,7 +56,8 @@ function solveBoth(net: Network): { fast: Float64Array; general: Float64Array; o
 }
 
 function expectClose(x: Float64Array, y: Float64Array): void {
-  for (let k = 0; k < x.length; k++) expect(Math.abs(x[k] - y[k])).toBeLessThanOrEqual(1e-12 * Math.max(Math.abs(y[k]), 1e-300));
+  for (let k = 0; k < x.length; k++)
+    expect(Math.abs(x[k] - y[k])).toBeLessThanOrEqual(1e-12 * Math.max(Math.abs(y[k]), 1e-300));
 }
 
 describe("leafFirstOrder", () => {
@@ -104,7 +111,8 @@ describe("forest fast path against the general path", () => {
       const n = 5 + Math.floor(rnd() * 120);
       const edges: [number, number][] = [];
       // Each node after the first joins an earlier one (a tree), sometimes not at all (a forest).
-      for (let k = 1; k < n; k++) if (rnd() < 0.9) edges.push(rnd() < 0.5 ? [Math.floor(rnd() * k), k] : [k, Math.floor(rnd() * k)]);
+      for (let k = 1; k < n; k++)
+        if (rnd() < 0.9) edges.push(rnd() < 0.5 ? [Math.floor(rnd() * k), k] : [k, Math.floor(rnd() * k)]);
       const r = solveBoth(network(n, edges, rnd, seed % 3 === 0));
       expect(r.ordering).toBe("tree");
       expectClose(r.fast, r.general);
@@ -123,13 +131,34 @@ describe("forest fast path against the general path", () => {
     // In node order (each node's only later neighbour is its parent) and in an
     // order the leaf peeling cannot take (a repeated edge): tree path, then general.
     for (const parallel of [
-      [[0, 1], [1, 2], [1, 2], [2, 3]],
-      [[0, 1], [0, 2], [0, 2], [2, 3]],
+      [
+        [0, 1],
+        [1, 2],
+        [1, 2],
+        [2, 3],
+      ],
+      [
+        [0, 1],
+        [0, 2],
+        [0, 2],
+        [2, 3],
+      ],
     ] as [number, number][][]) {
       const p = solveBoth(network(4, parallel, lcg(4)));
       expectClose(p.fast, p.general);
     }
-    const natural = solveNetwork(network(4, [[0, 1], [1, 2], [1, 2], [2, 3]], lcg(4)));
+    const natural = solveNetwork(
+      network(
+        4,
+        [
+          [0, 1],
+          [1, 2],
+          [1, 2],
+          [2, 3],
+        ],
+        lcg(4),
+      ),
+    );
     expect(natural.points[0].solver.ordering).toBe("tree");
   });
 });
@@ -177,9 +206,34 @@ describe("naturalHasNoFill", () => {
   const noFill = (g: { p: Int32Array; i: Int32Array }): boolean => naturalHasNoFill(g.p.length - 1, g.p, g.i);
 
   it("a triangle and a path have none; a 4-cycle in ring order has fill", () => {
-    expect(noFill(graph(3, [[0, 1], [1, 2], [0, 2]]))).toBe(true);
-    expect(noFill(graph(4, [[0, 1], [1, 2], [2, 3]]))).toBe(true);
-    expect(noFill(graph(4, [[0, 1], [1, 2], [2, 3], [3, 0]]))).toBe(false);
+    expect(
+      noFill(
+        graph(3, [
+          [0, 1],
+          [1, 2],
+          [0, 2],
+        ]),
+      ),
+    ).toBe(true);
+    expect(
+      noFill(
+        graph(4, [
+          [0, 1],
+          [1, 2],
+          [2, 3],
+        ]),
+      ),
+    ).toBe(true);
+    expect(
+      noFill(
+        graph(4, [
+          [0, 1],
+          [1, 2],
+          [2, 3],
+          [3, 0],
+        ]),
+      ),
+    ).toBe(false);
   });
 });
 
@@ -190,7 +244,10 @@ describe("iterative refinement", () => {
     for (let k = 1; k < 60; k++) tree.push([Math.floor(rnd() * k), k]);
     const ring: [number, number][] = [];
     for (let k = 0; k < 40; k++) ring.push([k, (k + 1) % 40], [k, (k + 7) % 40]);
-    for (const [n, edges] of [[60, tree], [40, ring]] as const) {
+    for (const [n, edges] of [
+      [60, tree],
+      [40, ring],
+    ] as const) {
       const plain = solveNetwork(network(n, edges, lcg(n)));
       const refined = solveNetwork(network(n, edges, lcg(n)), { refine: 1 });
       expect(refined.ok).toBe(true);

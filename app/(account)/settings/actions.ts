@@ -17,7 +17,11 @@ export async function createToken(_prev: FormState | undefined, form: FormData):
     if (!parsed.success) return invalid(parsed.error, values);
     const { token } = createApiToken(actor.userId, parsed.data.name);
     revalidatePath("/settings");
-    return { status: 201, message: `Token “${parsed.data.name}” made. Copy it now: it is shown only once.`, secret: token };
+    return {
+      status: 201,
+      message: `Token “${parsed.data.name}” made. Copy it now: it is shown only once.`,
+      secret: token,
+    };
   } catch (e) {
     return refusal(e, values);
   }

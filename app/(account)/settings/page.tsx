@@ -23,9 +23,9 @@ export default async function SettingsPage() {
           API tokens
         </h2>
         <p className="text-sm text-stone-600">
-          A personal token lets scripts and the <code className="font-mono">runnel</code> command act as you, with your roles in
-          each workspace. Send it as <code className="font-mono">Authorization: Bearer &lt;token&gt;</code>. It is shown once,
-          when made; Runnel keeps only a hash. Revoke a token you no longer use.
+          A personal token lets scripts and the <code className="font-mono">runnel</code> command act as you, with your
+          roles in each workspace. Send it as <code className="font-mono">Authorization: Bearer &lt;token&gt;</code>. It
+          is shown once, when made; Runnel keeps only a hash. Revoke a token you no longer use.
         </p>
         <TokenCreateForm />
         {tokens.length === 0 ? (

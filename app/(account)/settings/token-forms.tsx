@@ -29,7 +29,11 @@ export function RevokeTokenButton({ tokenId, name }: { tokenId: string; name: st
     <form action={action} className="inline-flex items-center gap-2">
       <input type="hidden" name="tokenId" value={tokenId} />
       {state?.error ? <span className="text-xs text-ember-500">{state.error}</span> : null}
-      <button type="submit" aria-label={`Revoke ${name}`} className="rounded border border-ember-500 px-2 py-1 text-xs text-ember-500 hover:bg-ember-50">
+      <button
+        type="submit"
+        aria-label={`Revoke ${name}`}
+        className="rounded border border-ember-500 px-2 py-1 text-xs text-ember-500 hover:bg-ember-50"
+      >
         Revoke
       </button>
     </form>

@@ -16,7 +16,10 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       <SignInForm next={next} />
       <p className="text-sm text-stone-600">
         No account yet?{" "}
-        <Link href={`/signup${next !== "/" ? `?next=${encodeURIComponent(next)}` : ""}`} className="text-moss-700 underline">
+        <Link
+          href={`/signup${next !== "/" ? `?next=${encodeURIComponent(next)}` : ""}`}
+          className="text-moss-700 underline"
+        >
           Create one
         </Link>
         . To join a team&apos;s workspace, use the link in your invitation e-mail.

@@ -11,8 +11,23 @@ export function SignUpForm({ next, minLength }: { next: string; minLength: numbe
       <FormMessage state={state} />
       <Field label="Name" name="name" autoComplete="name" state={state} required />
       <Field label="E-mail" name="email" type="email" autoComplete="email" state={state} required />
-      <Field label="Password" name="password" type="password" autoComplete="new-password" state={state} hint={`At least ${minLength} characters.`} required />
-      <Field label="Repeat password" name="confirm" type="password" autoComplete="new-password" state={state} required />
+      <Field
+        label="Password"
+        name="password"
+        type="password"
+        autoComplete="new-password"
+        state={state}
+        hint={`At least ${minLength} characters.`}
+        required
+      />
+      <Field
+        label="Repeat password"
+        name="confirm"
+        type="password"
+        autoComplete="new-password"
+        state={state}
+        required
+      />
       <Submit>Create account</Submit>
     </form>
   );

@@ -33,7 +33,11 @@ export function GET(request: Request) {
     // The newer commit is checked on its own, so a commit of a workspace the actor is not in stays a 404.
     await guard(request, "workspace.read", b ? getNetwork(b.networkId)?.workspaceId : null);
     if (a!.networkId !== b!.networkId) throw new RequestError(422, "from and to must be commits of the same network");
-    const tolerance = Object.fromEntries(Object.entries({ rel: q.rel, absCurrent: q.absCurrent, absVoltage: q.absVoltage, absProbe: q.absProbe }).filter(([, v]) => v !== undefined));
+    const tolerance = Object.fromEntries(
+      Object.entries({ rel: q.rel, absCurrent: q.absCurrent, absVoltage: q.absVoltage, absProbe: q.absProbe }).filter(
+        ([, v]) => v !== undefined,
+      ),
+    );
     const c = compareCommits(a!.id, b!.id, { tolerance, includeWithin: q.all === "1", limit: q.limit });
     return Response.json({ ...c, network: { id: net!.id, slug: net!.slug, name: net!.name } });
   });

@@ -22,7 +22,10 @@ export function POST(request: Request) {
     const n = c ? getNetwork(c.networkId) : null;
     const { actor } = await guard(request, "thread.comment", n?.workspaceId);
     const r = await createThread({ ...input, authorId: actor.userId }, sendMail);
-    return Response.json({ thread: r.thread, commentId: r.commentId, notified: r.notified, url: `/threads/${r.thread.id}` }, { status: 201 });
+    return Response.json(
+      { thread: r.thread, commentId: r.commentId, notified: r.notified, url: `/threads/${r.thread.id}` },
+      { status: 201 },
+    );
   });
 }
 

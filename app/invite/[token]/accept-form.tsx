@@ -7,7 +7,12 @@ import { acceptInvitation } from "./actions";
  * confirm: signed in as the invited account; signin: the account exists, enter its password;
  * create: no account with that address yet, choose a name and password.
  */
-export function AcceptForm(props: { token: string; mode: "confirm" | "signin" | "create"; email: string; minLength: number }) {
+export function AcceptForm(props: {
+  token: string;
+  mode: "confirm" | "signin" | "create";
+  email: string;
+  minLength: number;
+}) {
   const [state, action] = useActionState(acceptInvitation, undefined);
   return (
     <form action={action} className="space-y-4 rounded border border-stone-300 bg-white p-5" noValidate>
@@ -26,7 +31,14 @@ export function AcceptForm(props: { token: string; mode: "confirm" | "signin" | 
             Create your account for <span className="font-mono">{props.email}</span>.
           </p>
           <Field label="Name" name="name" autoComplete="name" state={state} />
-          <Field label="Password" name="password" type="password" autoComplete="new-password" state={state} hint={`At least ${props.minLength} characters.`} />
+          <Field
+            label="Password"
+            name="password"
+            type="password"
+            autoComplete="new-password"
+            state={state}
+            hint={`At least ${props.minLength} characters.`}
+          />
           <Field label="Repeat password" name="confirm" type="password" autoComplete="new-password" state={state} />
         </>
       ) : null}

@@ -10,7 +10,12 @@ import { z } from "zod";
 import { checkSignIn, newPasswordSchema, personNameSchema } from "@/app/lib/accounts";
 import { checkActionOrigin, clientAddress, getActor, startSession } from "@/app/lib/auth";
 import { formValues, invalid, refusal, type FormState } from "@/app/lib/forms";
-import { acceptInvitation as accept, INVITATION_PROBLEMS, InvitationUnusable, lookupInvitation } from "@/app/lib/invitations";
+import {
+  acceptInvitation as accept,
+  INVITATION_PROBLEMS,
+  InvitationUnusable,
+  lookupInvitation,
+} from "@/app/lib/invitations";
 import { hashPassword } from "@/app/lib/passwords";
 import { newId } from "@/app/lib/secrets";
 
@@ -25,21 +30,36 @@ export async function acceptInvitation(_prev: FormState | undefined, form: FormD
   try {
     await checkActionOrigin();
     const view = lookupInvitation(token);
-    if (view.state !== "valid") return { status: view.state === "unknown" ? 404 : 410, error: INVITATION_PROBLEMS[view.state] };
+    if (view.state !== "valid")
+      return { status: view.state === "unknown" ? 404 : 410, error: INVITATION_PROBLEMS[view.state] };
     const actor = await getActor();
     if (view.account && actor?.userId === view.account.id) {
       slug = accept(token, { userId: actor.userId }).slug;
     } else if (view.account) {
       const password = form.get("password");
-      if (typeof password !== "string" || password === "") return { status: 400, error: "Please correct the fields marked below.", fieldErrors: { password: ["enter your password"] }, values };
+      if (typeof password !== "string" || password === "")
+        return {
+          status: 400,
+          error: "Please correct the fields marked below.",
+          fieldErrors: { password: ["enter your password"] },
+          values,
+        };
       const check = await checkSignIn(view.email, password, clientAddress(await headers()));
       if (!check.ok) return { status: check.status, error: check.message, values };
       slug = accept(token, { userId: check.userId }).slug;
       await startSession(check.userId);
     } else {
-      const parsed = newAccountSchema.safeParse({ name: form.get("name") ?? undefined, password: form.get("password") ?? undefined, confirm: form.get("confirm") ?? undefined });
+      const parsed = newAccountSchema.safeParse({
+        name: form.get("name") ?? undefined,
+        password: form.get("password") ?? undefined,
+        confirm: form.get("confirm") ?? undefined,
+      });
       if (!parsed.success) return invalid(parsed.error, values);
-      const account = { id: newId("u_"), name: parsed.data.name, passwordHash: await hashPassword(parsed.data.password) };
+      const account = {
+        id: newId("u_"),
+        name: parsed.data.name,
+        passwordHash: await hashPassword(parsed.data.password),
+      };
       slug = accept(token, { newAccount: account }).slug;
       await startSession(account.id);
     }

@@ -30,7 +30,9 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
     return (
       <div className="mx-auto max-w-md space-y-4" data-invitation-state={view.state}>
         <h1 className="text-2xl font-semibold">{HEADINGS[view.state]}</h1>
-        <p className="rounded border border-ember-500 bg-ember-50 p-4 text-ember-500">{INVITATION_PROBLEMS[view.state]}</p>
+        <p className="rounded border border-ember-500 bg-ember-50 p-4 text-ember-500">
+          {INVITATION_PROBLEMS[view.state]}
+        </p>
         {view.state === "expired" ? (
           <p className="text-sm text-stone-600">
             It expired on {view.expiresAt.toISOString().slice(0, 16).replace("T", " ")} UTC

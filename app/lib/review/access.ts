@@ -9,7 +9,11 @@ import { checkOrigin, getActor } from "../auth";
 import { authorize, PolicyError, type Action, type Actor } from "../policy";
 
 /** `workspaceId` is null/undefined when the thing the URL names does not exist. */
-export async function reviewAccess(request: Request, action: Action, workspaceId: string | null | undefined): Promise<{ actor: Actor; role: Role }> {
+export async function reviewAccess(
+  request: Request,
+  action: Action,
+  workspaceId: string | null | undefined,
+): Promise<{ actor: Actor; role: Role }> {
   checkOrigin(request);
   const actor = await getActor(request);
   if (!actor) throw new PolicyError(401, "sign in first");

@@ -50,17 +50,37 @@ export function storeCommitDiff(runId: string, d: Q = db()): typeof commitDiffs.
     beyond = diff.beyond;
     summary = {
       names: summarize(diff, 8).names,
-      rows: diff.rows.map((r) => ({ point: r.point, kind: r.kind, quantity: r.quantity, name: r.name, from: finite(r.from), to: finite(r.to), rel: finite(r.rel) })),
+      rows: diff.rows.map((r) => ({
+        point: r.point,
+        kind: r.kind,
+        quantity: r.quantity,
+        name: r.name,
+        from: finite(r.from),
+        to: finite(r.to),
+        rel: finite(r.rel),
+      })),
       nameChanges: diff.names,
       tolerance: diff.tolerance,
     };
   }
-  return d
-    .insert(commitDiffs)
-    .values({ runId, commitId: run.commitId, workspaceId: run.workspaceId, baseRunId: base?.id ?? null, baseCommitId: base ? parentId : null, analysis, compared, beyond, summary })
-    .onConflictDoNothing()
-    .returning()
-    .get() ?? d.select().from(commitDiffs).where(eq(commitDiffs.runId, runId)).get()!;
+  return (
+    d
+      .insert(commitDiffs)
+      .values({
+        runId,
+        commitId: run.commitId,
+        workspaceId: run.workspaceId,
+        baseRunId: base?.id ?? null,
+        baseCommitId: base ? parentId : null,
+        analysis,
+        compared,
+        beyond,
+        summary,
+      })
+      .onConflictDoNothing()
+      .returning()
+      .get() ?? d.select().from(commitDiffs).where(eq(commitDiffs.runId, runId)).get()!
+  );
 }
 
 export type ReviewState = "open" | Verdict;
@@ -83,10 +103,19 @@ export function reviewStateOf(verdicts: { verdict: Verdict }[]): ReviewState {
 
 /** Sign-off state and "N values moved" for each commit (history badges). */
 export function commitBadges(commitIds: string[], d: Q = db()): Map<string, CommitBadge> {
-  const out = new Map<string, CommitBadge>(commitIds.map((id) => [id, { commitId: id, review: "open", verdicts: [], diffs: [] }]));
+  const out = new Map<string, CommitBadge>(
+    commitIds.map((id) => [id, { commitId: id, review: "open", verdicts: [], diffs: [] }]),
+  );
   if (commitIds.length === 0) return out;
   const rows = d
-    .select({ commitId: reviews.commitId, reviewerId: reviews.reviewerId, reviewerName: users.name, verdict: reviews.verdict, at: reviews.createdAt, threadId: reviews.threadId })
+    .select({
+      commitId: reviews.commitId,
+      reviewerId: reviews.reviewerId,
+      reviewerName: users.name,
+      verdict: reviews.verdict,
+      at: reviews.createdAt,
+      threadId: reviews.threadId,
+    })
     .from(reviews)
     .innerJoin(users, eq(users.id, reviews.reviewerId))
     .where(inArray(reviews.commitId, commitIds))
@@ -97,11 +126,23 @@ export function commitBadges(commitIds: string[], d: Q = db()): Map<string, Comm
     if (!b.verdicts.some((v) => v.reviewerId === r.reviewerId)) b.verdicts.push({ ...r, at: r.at.getTime() });
   }
   for (const b of out.values()) b.review = reviewStateOf(b.verdicts);
-  const diffs = d.select().from(commitDiffs).where(inArray(commitDiffs.commitId, commitIds)).orderBy(desc(commitDiffs.createdAt)).all();
+  const diffs = d
+    .select()
+    .from(commitDiffs)
+    .where(inArray(commitDiffs.commitId, commitIds))
+    .orderBy(desc(commitDiffs.createdAt))
+    .all();
   for (const x of diffs) {
     const b = out.get(x.commitId)!;
     if (b.diffs.some((y) => y.analysis === x.analysis)) continue;
-    b.diffs.push({ runId: x.runId, analysis: x.analysis, compared: x.compared, beyond: x.beyond, names: x.summary.names, note: x.summary.note });
+    b.diffs.push({
+      runId: x.runId,
+      analysis: x.analysis,
+      compared: x.compared,
+      beyond: x.beyond,
+      names: x.summary.names,
+      note: x.summary.note,
+    });
   }
   return out;
 }

@@ -72,7 +72,20 @@ const mention: TokenizerAndRendererExtension = {
   },
 };
 
-const NAMED: Record<string, string> = { colon: ":", tab: "\t", newline: "\n", amp: "&", sol: "/", lpar: "(", rpar: ")", quot: '"', apos: "'", lt: "<", gt: ">", nbsp: "\u00a0" };
+const NAMED: Record<string, string> = {
+  colon: ":",
+  tab: "\t",
+  newline: "\n",
+  amp: "&",
+  sol: "/",
+  lpar: "(",
+  rpar: ")",
+  quot: '"',
+  apos: "'",
+  lt: "<",
+  gt: ">",
+  nbsp: "\u00a0",
+};
 
 /** Decodes HTML character references (as a browser would in an attribute) so a scheme cannot hide behind them. */
 function decodeReferences(s: string): string {
@@ -89,8 +102,11 @@ function decodeReferences(s: string): string {
  * leading C0 controls/blanks, so those are removed before the scheme is read.
  */
 export function safeUrl(href: string): string | null {
-  // eslint-disable-next-line no-control-regex -- matching the control characters browsers skip is the point
-  const url = decodeReferences(href).replace(/^[\u0000-\u0020]+/, "").replace(/[\t\n\r]/g, "").trimEnd();
+  const url = decodeReferences(href)
+    // eslint-disable-next-line no-control-regex -- matching the control characters browsers skip is the point
+    .replace(/^[\u0000-\u0020]+/, "")
+    .replace(/[\t\n\r]/g, "")
+    .trimEnd();
   if (url === "") return null;
   // eslint-disable-next-line no-control-regex -- any other control character makes the URL suspect
   if (/[\u0000-\u001f\u007f]/.test(url)) return null;
@@ -107,7 +123,8 @@ export function safeUrl(href: string): string | null {
 
 const escapeHtml = (s: string) =>
   s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;").replace(/'/g, "&#39;");
-const escapeAttr = (s: string) => s.replace(/&/g, "&amp;").replace(/"/g, "&quot;").replace(/</g, "&lt;").replace(/>/g, "&gt;");
+const escapeAttr = (s: string) =>
+  s.replace(/&/g, "&amp;").replace(/"/g, "&quot;").replace(/</g, "&lt;").replace(/>/g, "&gt;");
 const REL = "noopener noreferrer nofollow";
 
 const marked = new Marked({ gfm: true, breaks: true, async: false });

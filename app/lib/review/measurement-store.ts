@@ -31,15 +31,28 @@ export interface MeasurementView {
  * row or column is bad; the error names the first problem, `errors` lists up to 20.
  */
 export function saveMeasurement(
-  input: { networkId: string; name: string; note?: string; commitId?: string | null; bytes: Uint8Array; createdBy: string },
+  input: {
+    networkId: string;
+    name: string;
+    note?: string;
+    commitId?: string | null;
+    bytes: Uint8Array;
+    createdBy: string;
+  },
   d: Q = db(),
 ): MeasurementView {
-  const net = d.select({ id: networks.id, workspaceId: networks.workspaceId }).from(networks).where(eq(networks.id, input.networkId)).get();
+  const net = d
+    .select({ id: networks.id, workspaceId: networks.workspaceId })
+    .from(networks)
+    .where(eq(networks.id, input.networkId))
+    .get();
   if (!net) throw new RequestError(404, "network not found");
   const name = input.name.trim().slice(0, 200) || "measurement.csv";
   const parsed = parseMeasurementCsv(input.bytes);
   if (!parsed.ok) {
-    throw new RequestError(422, formatCsvError(parsed.errors[0]), { errors: parsed.errors.map((e) => ({ ...e, text: formatCsvError(e) })) });
+    throw new RequestError(422, formatCsvError(parsed.errors[0]), {
+      errors: parsed.errors.map((e) => ({ ...e, text: formatCsvError(e) })),
+    });
   }
   const m = parsed.measurement;
   const data = new Float64Array(m.rows * (1 + m.series.length));
@@ -93,7 +106,17 @@ export function getMeasurement(id: string, d: Q = db()): MeasurementView | null 
 /** The measurements of a network, newest first (without their values). */
 export function listMeasurements(networkId: string, d: Q = db()) {
   return d
-    .select({ id: measurements.id, name: measurements.name, xName: measurements.xName, xUnit: measurements.xUnit, series: measurements.series, rows: measurements.rows, commitId: measurements.commitId, createdAt: measurements.createdAt, authorName: users.name })
+    .select({
+      id: measurements.id,
+      name: measurements.name,
+      xName: measurements.xName,
+      xUnit: measurements.xUnit,
+      series: measurements.series,
+      rows: measurements.rows,
+      commitId: measurements.commitId,
+      createdAt: measurements.createdAt,
+      authorName: users.name,
+    })
     .from(measurements)
     .innerJoin(users, eq(users.id, measurements.createdBy))
     .where(eq(measurements.networkId, networkId))
@@ -107,7 +130,14 @@ export interface Overlay {
   runId: string;
   /** The sweep param on x and the run quantity compared with each series. */
   x: { param: string; unit: string };
-  series: { name: string; unit: string; against: string; measured: { x: number[]; y: number[] }; simulated: { x: number[]; y: number[] }; agreement: Agreement }[];
+  series: {
+    name: string;
+    unit: string;
+    against: string;
+    measured: { x: number[]; y: number[] };
+    simulated: { x: number[]; y: number[] };
+    agreement: Agreement;
+  }[];
 }
 
 /**
@@ -117,19 +147,37 @@ export interface Overlay {
  * of that name. Mismatch samples at one sweep value are averaged.
  * 422 with a clear reason when the run and the measurement do not fit.
  */
-export function overlay(measurementId: string, runId: string, opts: { xParam?: string; against?: Record<string, string> } = {}, d: Q = db()): Overlay {
+export function overlay(
+  measurementId: string,
+  runId: string,
+  opts: { xParam?: string; against?: Record<string, string> } = {},
+  d: Q = db(),
+): Overlay {
   const m = getMeasurement(measurementId, d);
   const run = d.select().from(runs).where(eq(runs.id, runId)).get();
   if (!m || !run || m.workspaceId !== run.workspaceId) throw new RequestError(404, "measurement or run not found");
   const layout = parseLayout(run.layout);
   if (!layout) throw new RequestError(422, "the run has no results yet");
   if (layout.sweeps.length === 0) return profileOverlay(m, runId, layout, opts, d);
-  if (layout.sweeps.length !== 1) throw new RequestError(422, `the run sweeps ${layout.sweeps.length} params; an overlay needs a run that sweeps one param, or an operating point with indexed probes`);
+  if (layout.sweeps.length !== 1)
+    throw new RequestError(
+      422,
+      `the run sweeps ${layout.sweeps.length} params; an overlay needs a run that sweeps one param, or an operating point with indexed probes`,
+    );
   const sweep = layout.sweeps[0];
   const xParam = opts.xParam ?? m.x.name;
-  if (sweep.param !== xParam) throw new RequestError(422, `the run sweeps ${sweep.param}, the measurement's x is ${xParam}; pick a run that sweeps ${xParam}`);
+  if (sweep.param !== xParam)
+    throw new RequestError(
+      422,
+      `the run sweeps ${sweep.param}, the measurement's x is ${xParam}; pick a run that sweeps ${xParam}`,
+    );
 
-  const rows = d.select({ point: runPoints.point, probes: runPoints.probes, nodes: runPoints.nodes, current: runPoints.current }).from(runPoints).where(and(eq(runPoints.runId, runId))).orderBy(asc(runPoints.point)).all();
+  const rows = d
+    .select({ point: runPoints.point, probes: runPoints.probes, nodes: runPoints.nodes, current: runPoints.current })
+    .from(runPoints)
+    .where(and(eq(runPoints.runId, runId)))
+    .orderBy(asc(runPoints.point))
+    .all();
   const f64 = (b: Buffer) => {
     const c = new Uint8Array(b.byteLength);
     c.set(b);
@@ -168,7 +216,14 @@ export function overlay(measurementId: string, runId: string, opts: { xParam?: s
     // The curve must be monotonic in x for interpolation; sweeps are, but sort to be sure.
     const order = simX.map((_, i) => i).sort((a, b) => simX[a] - simX[b]);
     const curve = { x: order.map((i) => simX[i]), y: order.map((i) => simY[i]) };
-    return { name: s.name, unit: s.unit, against, measured: { x: m.x.values, y: s.values }, simulated: curve, agreement: compareToSimulation(m.x.values, s.values, curve) };
+    return {
+      name: s.name,
+      unit: s.unit,
+      against,
+      measured: { x: m.x.values, y: s.values },
+      simulated: curve,
+      agreement: compareToSimulation(m.x.values, s.values, curve),
+    };
   });
   return { measurementId, runId, x: { param: sweep.param, unit: m.x.unit }, series };
 }
@@ -179,8 +234,18 @@ export function overlay(measurementId: string, runId: string, opts: { xParam?: s
  * (unit `1`), e.g. the output current along a row of taps. Series `i` (or
  * `against[series]`) is compared with probes `i{k}` at x = k; mismatch samples are averaged.
  */
-function profileOverlay(m: MeasurementView, runId: string, layout: NonNullable<ReturnType<typeof parseLayout>>, opts: { against?: Record<string, string> }, d: Q): Overlay {
-  if (m.x.dimension !== "1") throw new RequestError(422, `the run is an operating point; its x would be a tap index, but the measurement's x (${m.x.name}) is in ${m.x.unit}; use [1] for an index column`);
+function profileOverlay(
+  m: MeasurementView,
+  runId: string,
+  layout: NonNullable<ReturnType<typeof parseLayout>>,
+  opts: { against?: Record<string, string> },
+  d: Q,
+): Overlay {
+  if (m.x.dimension !== "1")
+    throw new RequestError(
+      422,
+      `the run is an operating point; its x would be a tap index, but the measurement's x (${m.x.name}) is in ${m.x.unit}; use [1] for an index column`,
+    );
   const rows = d.select({ probes: runPoints.probes }).from(runPoints).where(eq(runPoints.runId, runId)).all();
   if (rows.length === 0) throw new RequestError(422, "the run has no stored points");
   const means = new Float64Array(layout.probes.length);
@@ -192,10 +257,22 @@ function profileOverlay(m: MeasurementView, runId: string, layout: NonNullable<R
   const series = m.series.map((s) => {
     const against = opts.against?.[s.name] ?? s.name;
     const pattern = new RegExp(`^${against.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}(\\d+)$`);
-    const pts = layout.probes.map((p, j) => ({ k: pattern.exec(p)?.[1], j })).filter((p) => p.k !== undefined).map((p) => ({ x: Number(p.k), y: means[p.j] })).sort((a, b) => a.x - b.x);
-    if (pts.length < 2) throw new RequestError(422, `series ${s.name}: the run has no indexed probes ${against}0, ${against}1, …`);
+    const pts = layout.probes
+      .map((p, j) => ({ k: pattern.exec(p)?.[1], j }))
+      .filter((p) => p.k !== undefined)
+      .map((p) => ({ x: Number(p.k), y: means[p.j] }))
+      .sort((a, b) => a.x - b.x);
+    if (pts.length < 2)
+      throw new RequestError(422, `series ${s.name}: the run has no indexed probes ${against}0, ${against}1, …`);
     const curve = { x: pts.map((p) => p.x), y: pts.map((p) => p.y) };
-    return { name: s.name, unit: s.unit, against: `${against}{k}`, measured: { x: m.x.values, y: s.values }, simulated: curve, agreement: compareToSimulation(m.x.values, s.values, curve) };
+    return {
+      name: s.name,
+      unit: s.unit,
+      against: `${against}{k}`,
+      measured: { x: m.x.values, y: s.values },
+      simulated: curve,
+      agreement: compareToSimulation(m.x.values, s.values, curve),
+    };
   });
   return { measurementId: m.id, runId, x: { param: m.x.name, unit: m.x.unit }, series };
 }

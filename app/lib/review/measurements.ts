@@ -59,7 +59,18 @@ export interface CsvError {
 
 export type ParseResult = { ok: true; measurement: Measurement } | { ok: false; errors: CsvError[] };
 
-const PREFIX: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, "µ": 1e-6, "μ": 1e-6, m: 1e-3, k: 1e3, M: 1e6, G: 1e9 };
+const PREFIX: Record<string, number> = {
+  f: 1e-15,
+  p: 1e-12,
+  n: 1e-9,
+  u: 1e-6,
+  µ: 1e-6,
+  μ: 1e-6,
+  m: 1e-3,
+  k: 1e3,
+  M: 1e6,
+  G: 1e9,
+};
 const HEADER = /^(.*?)\s*[[(]\s*([^\])]*?)\s*[\])]$/;
 const NAME = /^[A-Za-z_][A-Za-z0-9_.-]{0,63}$/;
 /** A plain decimal number: sign, digits with an optional point, optional exponent. */
@@ -121,7 +132,10 @@ const toSI = (x: number, scale: number) => (scale < 1 ? x / Math.round(1 / scale
 
 /** Decodes the upload to text, or says why it is not UTF-8 text. */
 export function decodeCsv(bytes: Uint8Array): { ok: true; text: string } | { ok: false; errors: CsvError[] } {
-  const fail = (row: number, column: number, message: string) => ({ ok: false as const, errors: [{ row, column, message }] });
+  const fail = (row: number, column: number, message: string) => ({
+    ok: false as const,
+    errors: [{ row, column, message }],
+  });
   if (bytes.length > MAX_MEASUREMENT_BYTES) {
     return fail(0, 0, `the file is ${(bytes.length / 1048576).toFixed(1)} MB; at most 10 MB is accepted`);
   }
@@ -132,7 +146,11 @@ export function decodeCsv(bytes: Uint8Array): { ok: true; text: string } | { ok:
   if (bad !== -1) {
     const { row, column } = csvPosition(bytes, bad);
     const hex = bytes[bad].toString(16).toUpperCase().padStart(2, "0");
-    return fail(row, column, `byte 0x${hex} at offset ${bad} is not valid UTF-8; save the file as UTF-8 (Latin-1 or UTF-16 text is not accepted)`);
+    return fail(
+      row,
+      column,
+      `byte 0x${hex} at offset ${bad} is not valid UTF-8; save the file as UTF-8 (Latin-1 or UTF-16 text is not accepted)`,
+    );
   }
   if (bytes.includes(0)) {
     const { row, column } = csvPosition(bytes, bytes.indexOf(0));
@@ -163,7 +181,10 @@ export function parseMeasurementCsv(input: Uint8Array | string): ParseResult {
   let text: string;
   if (typeof input === "string") {
     if (Buffer.byteLength(input, "utf8") > MAX_MEASUREMENT_BYTES) {
-      return { ok: false, errors: [{ row: 0, column: 0, message: "the file is larger than 10 MB; at most 10 MB is accepted" }] };
+      return {
+        ok: false,
+        errors: [{ row: 0, column: 0, message: "the file is larger than 10 MB; at most 10 MB is accepted" }],
+      };
     }
     text = input.charCodeAt(0) === 0xfeff ? input.slice(1) : input;
   } else {
@@ -184,18 +205,36 @@ export function parseMeasurementCsv(input: Uint8Array | string): ParseResult {
   if (errors.length) return { ok: false, errors };
   const spanning = parsed.data.findIndex((cells) => cells.some((c) => /[\r\n]/.test(c)));
   if (spanning !== -1) {
-    return { ok: false, errors: [{ row: spanning + 1, column: 0, message: "a quoted cell spans several lines; every row must be on one line" }] };
+    return {
+      ok: false,
+      errors: [
+        { row: spanning + 1, column: 0, message: "a quoted cell spans several lines; every row must be on one line" },
+      ],
+    };
   }
 
   const lines = parsed.data.map((cells, i) => ({ row: i + 1, cells }));
-  const content = lines.filter((l) => !(l.cells.length === 1 && l.cells[0].trim() === "") && !l.cells[0]?.trimStart().startsWith("#"));
-  if (content.length === 0) return { ok: false, errors: [{ row: 1, column: 1, message: "the file is empty; expected a header such as `vin [V], i_out [nA]`" }] };
+  const content = lines.filter(
+    (l) => !(l.cells.length === 1 && l.cells[0].trim() === "") && !l.cells[0]?.trimStart().startsWith("#"),
+  );
+  if (content.length === 0)
+    return {
+      ok: false,
+      errors: [{ row: 1, column: 1, message: "the file is empty; expected a header such as `vin [V], i_out [nA]`" }],
+    };
 
   const head = content[0];
   if (head.cells.length < 2) {
     return {
       ok: false,
-      errors: [{ row: head.row, column: 1, message: "the header has one column; expected an x column and at least one value column, separated by commas, e.g. `vin [V], i_out [nA]`" }],
+      errors: [
+        {
+          row: head.row,
+          column: 1,
+          message:
+            "the header has one column; expected an x column and at least one value column, separated by commas, e.g. `vin [V], i_out [nA]`",
+        },
+      ],
     };
   }
   const axes: Axis[] = [];
@@ -204,36 +243,64 @@ export function parseMeasurementCsv(input: Uint8Array | string): ParseResult {
     const at = { row: head.row, column: j + 1 };
     const m = HEADER.exec(cell.trim());
     if (!m) {
-      push({ ...at, message: `header cell "${cell.trim()}" has no unit; write it as \`name [unit]\`, e.g. \`i_out [nA]\` (\`[1]\` for a plain number)` });
+      push({
+        ...at,
+        message: `header cell "${cell.trim()}" has no unit; write it as \`name [unit]\`, e.g. \`i_out [nA]\` (\`[1]\` for a plain number)`,
+      });
       return;
     }
     const [, name, unitText] = m;
     const unit = parseUnit(unitText);
-    if (!NAME.test(name)) push({ ...at, message: `column name "${name}" must start with a letter or _ and use letters, digits, _ . - only` });
+    if (!NAME.test(name))
+      push({
+        ...at,
+        message: `column name "${name}" must start with a letter or _ and use letters, digits, _ . - only`,
+      });
     else if (seen.has(name)) push({ ...at, columnName: name, message: `column name "${name}" appears twice` });
-    if (!unit) push({ ...at, columnName: name, message: `unit "${unitText}" is not known; use V, A or K with an optional prefix f p n u m k M G (e.g. nA, mV), or 1 for a plain number` });
+    if (!unit)
+      push({
+        ...at,
+        columnName: name,
+        message: `unit "${unitText}" is not known; use V, A or K with an optional prefix f p n u m k M G (e.g. nA, mV), or 1 for a plain number`,
+      });
     seen.add(name);
     if (unit) axes.push({ name, unit: unitText, ...unit });
   });
   if (errors.length) return { ok: false, errors };
 
   const data = content.slice(1);
-  if (data.length < 2) return { ok: false, errors: [{ row: head.row, column: 0, message: `expected at least 2 data rows after the header, found ${data.length}` }] };
+  if (data.length < 2)
+    return {
+      ok: false,
+      errors: [
+        { row: head.row, column: 0, message: `expected at least 2 data rows after the header, found ${data.length}` },
+      ],
+    };
   const columns = axes.map(() => new Float64Array(data.length));
   data.forEach((line, i) => {
     if (line.cells.length !== axes.length) {
-      push({ row: line.row, column: Math.min(line.cells.length, axes.length) + 1, message: `this row has ${line.cells.length} cells; the header has ${axes.length}` });
+      push({
+        row: line.row,
+        column: Math.min(line.cells.length, axes.length) + 1,
+        message: `this row has ${line.cells.length} cells; the header has ${axes.length}`,
+      });
       return;
     }
     line.cells.forEach((cell, j) => {
       const v = cell.trim();
       if (!NUMBER.test(v)) {
         const what = v === "" ? "an empty cell" : `"${v.length > 24 ? v.slice(0, 24) + "…" : v}"`;
-        push({ row: line.row, column: j + 1, columnName: axes[j].name, message: `${what} is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)` });
+        push({
+          row: line.row,
+          column: j + 1,
+          columnName: axes[j].name,
+          message: `${what} is not a number; write plain decimals such as 1.5e-9 (the unit belongs in the header)`,
+        });
         return;
       }
       const x = Number(v);
-      if (!Number.isFinite(x)) push({ row: line.row, column: j + 1, columnName: axes[j].name, message: `"${v}" is out of range` });
+      if (!Number.isFinite(x))
+        push({ row: line.row, column: j + 1, columnName: axes[j].name, message: `"${v}" is out of range` });
       columns[j][i] = toSI(x, axes[j].scale);
     });
   });
@@ -272,7 +339,12 @@ export function parseMeasurementCsv(input: Uint8Array | string): ParseResult {
 
 /** "row 7, column 2 (i_out): …" — the one-line form used by the API and the upload form. */
 export function formatCsvError(e: CsvError): string {
-  const where = e.row === 0 ? "file" : e.column === 0 ? `row ${e.row}` : `row ${e.row}, column ${e.column}${e.columnName ? ` (${e.columnName})` : ""}`;
+  const where =
+    e.row === 0
+      ? "file"
+      : e.column === 0
+        ? `row ${e.row}`
+        : `row ${e.row}, column ${e.column}${e.columnName ? ` (${e.columnName})` : ""}`;
   return `${where}: ${e.message}`;
 }
 
@@ -329,7 +401,11 @@ export function interpolate(curve: SimulatedCurve, x: number): number {
  * linearly interpolated at each measured x. The log ratio is the natural
  * logarithm (a value of 0.1 means about 10 % off, either way).
  */
-export function compareToSimulation(x: ArrayLike<number>, measured: ArrayLike<number>, curve: SimulatedCurve): Agreement {
+export function compareToSimulation(
+  x: ArrayLike<number>,
+  measured: ArrayLike<number>,
+  curve: SimulatedCurve,
+): Agreement {
   let n = 0;
   let outside = 0;
   let signMismatch = 0;
@@ -357,5 +433,12 @@ export function compareToSimulation(x: ArrayLike<number>, measured: ArrayLike<nu
       nLog++;
     } else signMismatch++;
   }
-  return { n, outside, signMismatch, rmsLogRatio: nLog ? Math.sqrt(sumSq / nLog) : NaN, maxAbsError: maxAbs, maxAbsErrorAt: maxAt };
+  return {
+    n,
+    outside,
+    signMismatch,
+    rmsLogRatio: nLog ? Math.sqrt(sumSq / nLog) : NaN,
+    maxAbsError: maxAbs,
+    maxAbsErrorAt: maxAt,
+  };
 }

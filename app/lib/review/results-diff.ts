@@ -52,7 +52,13 @@ export interface Tolerance {
   absIc: number;
 }
 
-export const DEFAULT_TOLERANCE: Tolerance = { rel: 1e-6, absCurrent: 1e-15, absVoltage: 1e-6, absProbe: 1e-15, absIc: 1e-9 };
+export const DEFAULT_TOLERANCE: Tolerance = {
+  rel: 1e-6,
+  absCurrent: 1e-15,
+  absVoltage: 1e-6,
+  absProbe: 1e-15,
+  absIc: 1e-9,
+};
 
 export interface DiffRow {
   analysis: string;
@@ -165,7 +171,8 @@ export function diffResults(from: AnalysisTable[], to: AnalysisTable[], options:
     const bPoint = new Map(b.points.map((k, i) => [k, i]));
     const addedPoints = b.points.filter((k) => !aPoint.has(k));
     const removedPoints = a.points.filter((k) => !bPoint.has(k));
-    if (addedPoints.length || removedPoints.length) points.push({ analysis: name, added: addedPoints, removed: removedPoints });
+    if (addedPoints.length || removedPoints.length)
+      points.push({ analysis: name, added: addedPoints, removed: removedPoints });
     const pairs: [number, number, string][] = [];
     b.points.forEach((k, bi) => {
       const ai = aPoint.get(k);
@@ -251,7 +258,12 @@ export interface JsonPoint {
  */
 export function tableFromPoints(analysis: string, pts: JsonPoint[]): AnalysisTable {
   const first = pts[0];
-  const column = (kind: ValueKind, quantity: Quantity, names: string[], read: (p: JsonPoint, n: string) => number | null | undefined): ResultColumn => {
+  const column = (
+    kind: ValueKind,
+    quantity: Quantity,
+    names: string[],
+    read: (p: JsonPoint, n: string) => number | null | undefined,
+  ): ResultColumn => {
     const values = new Float64Array(pts.length * names.length);
     pts.forEach((p, i) => names.forEach((n, j) => (values[i * names.length + j] = read(p, n) ?? NaN)));
     return { kind, quantity, names, values };

@@ -75,13 +75,25 @@ export function runTable(runId: string, d: Q = db()): AnalysisTable | null {
   const layout = runLayout(runId, d);
   if (!layout) return null;
   const rows = d
-    .select({ point: runPoints.point, nodes: runPoints.nodes, rails: runPoints.rails, current: runPoints.current, ic: runPoints.ic, probes: runPoints.probes })
+    .select({
+      point: runPoints.point,
+      nodes: runPoints.nodes,
+      rails: runPoints.rails,
+      current: runPoints.current,
+      ic: runPoints.ic,
+      probes: runPoints.probes,
+    })
     .from(runPoints)
     .where(eq(runPoints.runId, runId))
     .orderBy(asc(runPoints.point))
     .all();
   const n = rows.length;
-  const col = (kind: ResultColumn["kind"], quantity: ResultColumn["quantity"], names: string[]): ResultColumn => ({ kind, quantity, names, values: new Float64Array(n * names.length) });
+  const col = (kind: ResultColumn["kind"], quantity: ResultColumn["quantity"], names: string[]): ResultColumn => ({
+    kind,
+    quantity,
+    names,
+    values: new Float64Array(n * names.length),
+  });
   const nodes = col("node", "voltage", layout.nodes);
   const rails = col("rail", "current", layout.rails);
   const current = col("device", "current", layout.devices);
@@ -142,15 +154,25 @@ export function runsOfCommit(commitId: string, d: Q = db()): RunBrief[] {
 /** The newest finished ("done") run of each analysis of a commit. */
 export function latestDoneRuns(commitId: string, d: Q = db()): Map<string, RunBrief> {
   const out = new Map<string, RunBrief>();
-  for (const r of runsOfCommit(commitId, d)) if (r.state === "done" && r.analysis && !out.has(r.analysis)) out.set(r.analysis, r);
+  for (const r of runsOfCommit(commitId, d))
+    if (r.state === "done" && r.analysis && !out.has(r.analysis)) out.set(r.analysis, r);
   return out;
 }
 
 /** The first stored point's probe values (and, for a sweep, min and max over the points): the run card's key figures. */
-export function keyProbes(runId: string, limit = 4, d: Q = db()): { name: string; first: number; min: number; max: number }[] {
+export function keyProbes(
+  runId: string,
+  limit = 4,
+  d: Q = db(),
+): { name: string; first: number; min: number; max: number }[] {
   const layout = runLayout(runId, d);
   if (!layout || layout.probes.length === 0) return [];
-  const rows = d.select({ probes: runPoints.probes }).from(runPoints).where(and(eq(runPoints.runId, runId))).orderBy(asc(runPoints.point)).all();
+  const rows = d
+    .select({ probes: runPoints.probes })
+    .from(runPoints)
+    .where(and(eq(runPoints.runId, runId)))
+    .orderBy(asc(runPoints.point))
+    .all();
   const names = layout.probes.slice(0, limit);
   return names.map((name, j) => {
     let first = NaN;

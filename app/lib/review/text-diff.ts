@@ -129,7 +129,11 @@ function pairSides(rows: UnifiedRow[]): SideRow[] {
       out.push({ kind: "gap", left: null, right: null, hidden: r.hidden });
       i++;
     } else if (r.kind === "same") {
-      out.push({ kind: "same", left: { line: r.oldLine!, text: r.text, kind: "same" }, right: { line: r.newLine!, text: r.text, kind: "same" } });
+      out.push({
+        kind: "same",
+        left: { line: r.oldLine!, text: r.text, kind: "same" },
+        right: { line: r.newLine!, text: r.text, kind: "same" },
+      });
       i++;
     } else {
       const dels: UnifiedRow[] = [];

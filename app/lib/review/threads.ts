@@ -15,7 +15,18 @@
  */
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
-import { comments, commits, memberships, networks, reviews, runs, threads, users, workspaces, type Verdict } from "@/db/schema";
+import {
+  comments,
+  commits,
+  memberships,
+  networks,
+  reviews,
+  runs,
+  threads,
+  users,
+  workspaces,
+  type Verdict,
+} from "@/db/schema";
 import { RequestError } from "../http";
 import { newId, type Q } from "../networks";
 import { commitBadges, type ReviewState } from "./diffs";
@@ -40,7 +51,8 @@ function origin(): string {
 
 function checkBody(body: string, verdict: Verdict | null): string {
   const b = body.replace(/\r\n/g, "\n").trim();
-  if (b.length > MAX_COMMENT_LENGTH) throw new RequestError(400, `body: at most ${MAX_COMMENT_LENGTH} characters (this one has ${b.length})`);
+  if (b.length > MAX_COMMENT_LENGTH)
+    throw new RequestError(400, `body: at most ${MAX_COMMENT_LENGTH} characters (this one has ${b.length})`);
   if (b.length === 0 && !verdict) throw new RequestError(400, "body: write a comment");
   return b;
 }
@@ -55,7 +67,20 @@ export interface ThreadRef {
 }
 
 export function getThreadRef(id: string, d: Q = db()): ThreadRef | null {
-  return d.select({ id: threads.id, workspaceId: threads.workspaceId, networkId: threads.networkId, commitId: threads.commitId, runId: threads.runId, title: threads.title }).from(threads).where(eq(threads.id, id)).get() ?? null;
+  return (
+    d
+      .select({
+        id: threads.id,
+        workspaceId: threads.workspaceId,
+        networkId: threads.networkId,
+        commitId: threads.commitId,
+        runId: threads.runId,
+        title: threads.title,
+      })
+      .from(threads)
+      .where(eq(threads.id, id))
+      .get() ?? null
+  );
 }
 
 /**
@@ -71,14 +96,30 @@ export async function createThread(
   if (title.length === 0) throw new RequestError(400, "title: give the thread a title");
   if (title.length > MAX_TITLE_LENGTH) throw new RequestError(400, `title: at most ${MAX_TITLE_LENGTH} characters`);
   const body = checkBody(input.body, null);
-  const commit = d.select({ id: commits.id, networkId: commits.networkId, workspaceId: networks.workspaceId }).from(commits).innerJoin(networks, eq(networks.id, commits.networkId)).where(eq(commits.id, input.commitId)).get();
+  const commit = d
+    .select({ id: commits.id, networkId: commits.networkId, workspaceId: networks.workspaceId })
+    .from(commits)
+    .innerJoin(networks, eq(networks.id, commits.networkId))
+    .where(eq(commits.id, input.commitId))
+    .get();
   if (!commit) throw new RequestError(404, `commit ${input.commitId} not found`);
   if (input.runId) {
     const run = d.select({ commitId: runs.commitId }).from(runs).where(eq(runs.id, input.runId)).get();
-    if (!run || run.commitId !== commit.id) throw new RequestError(422, `runId: run ${input.runId} is not a run of this commit`);
+    if (!run || run.commitId !== commit.id)
+      throw new RequestError(422, `runId: run ${input.runId} is not a run of this commit`);
   }
   const id = newId("t");
-  d.insert(threads).values({ id, workspaceId: commit.workspaceId, networkId: commit.networkId, commitId: commit.id, runId: input.runId ?? null, title, createdBy: input.authorId }).run();
+  d.insert(threads)
+    .values({
+      id,
+      workspaceId: commit.workspaceId,
+      networkId: commit.networkId,
+      commitId: commit.id,
+      runId: input.runId ?? null,
+      title,
+      createdBy: input.authorId,
+    })
+    .run();
   const c = await addComment({ threadId: id, body, authorId: input.authorId }, notify, d);
   return { thread: getThreadRef(id, d)!, commentId: c.commentId, notified: c.notified };
 }
@@ -89,7 +130,13 @@ export async function createThread(
  * a failed e-mail is reported in `mailErrors`, the comment stays.
  */
 export async function addComment(
-  input: { threadId: string; body: string; authorId: string; verdict?: Verdict | null; verdictCommitId?: string | null },
+  input: {
+    threadId: string;
+    body: string;
+    authorId: string;
+    verdict?: Verdict | null;
+    verdictCommitId?: string | null;
+  },
   notify: Notify,
   d: Q = db(),
 ): Promise<{ commentId: string; notified: string[]; mailErrors: string[] }> {
@@ -102,19 +149,52 @@ export async function addComment(
   const verdictCommit = input.verdictCommitId ?? thread.commitId;
   if (verdict && verdictCommit !== thread.commitId) {
     const c = d.select({ networkId: commits.networkId }).from(commits).where(eq(commits.id, verdictCommit)).get();
-    if (!c || c.networkId !== thread.networkId) throw new RequestError(422, `commitId: ${verdictCommit} is not a commit of this thread's network`);
+    if (!c || c.networkId !== thread.networkId)
+      throw new RequestError(422, `commitId: ${verdictCommit} is not a commit of this thread's network`);
   }
 
   const handles = extractMentions(body);
   const members = handles.length
-    ? d.select({ userId: users.id, email: users.email, name: users.name }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.workspaceId, thread.workspaceId)).all()
+    ? d
+        .select({ userId: users.id, email: users.email, name: users.name })
+        .from(memberships)
+        .innerJoin(users, eq(users.id, memberships.userId))
+        .where(eq(memberships.workspaceId, thread.workspaceId))
+        .all()
     : [];
   const byHandle = new Map(members.map((m) => [handleOf(m.email), m]));
-  const targets = [...new Map(handles.map((h) => byHandle.get(h)).filter((m) => m !== undefined && m.userId !== input.authorId).map((m) => [m!.userId, m!])).values()];
+  const targets = [
+    ...new Map(
+      handles
+        .map((h) => byHandle.get(h))
+        .filter((m) => m !== undefined && m.userId !== input.authorId)
+        .map((m) => [m!.userId, m!]),
+    ).values(),
+  ];
 
   d.transaction((tx) => {
-    tx.insert(comments).values({ id: commentId, threadId: thread.id, workspaceId: thread.workspaceId, authorId: input.authorId, body, notified: targets.map((t) => handleOf(t.email)) }).run();
-    if (verdict) tx.insert(reviews).values({ id: newId("rv"), commitId: verdictCommit, workspaceId: thread.workspaceId, reviewerId: input.authorId, verdict, threadId: thread.id, commentId }).run();
+    tx.insert(comments)
+      .values({
+        id: commentId,
+        threadId: thread.id,
+        workspaceId: thread.workspaceId,
+        authorId: input.authorId,
+        body,
+        notified: targets.map((t) => handleOf(t.email)),
+      })
+      .run();
+    if (verdict)
+      tx.insert(reviews)
+        .values({
+          id: newId("rv"),
+          commitId: verdictCommit,
+          workspaceId: thread.workspaceId,
+          reviewerId: input.authorId,
+          verdict,
+          threadId: thread.id,
+          commentId,
+        })
+        .run();
     tx.update(threads).set({ updatedAt: new Date() }).where(eq(threads.id, thread.id)).run();
   });
 
@@ -152,7 +232,15 @@ export function runCards(ids: string[], workspaceId: string, d: Q = db()): RunCa
   if (ids.length === 0) return [];
   const found = new Map(
     d
-      .select({ id: runs.id, workspaceId: runs.workspaceId, state: runs.state, pointsDone: runs.pointsDone, pointsTotal: runs.pointsTotal, commitId: runs.commitId, commitMessage: commits.message })
+      .select({
+        id: runs.id,
+        workspaceId: runs.workspaceId,
+        state: runs.state,
+        pointsDone: runs.pointsDone,
+        pointsTotal: runs.pointsTotal,
+        commitId: runs.commitId,
+        commitMessage: commits.message,
+      })
       .from(runs)
       .innerJoin(commits, eq(commits.id, runs.commitId))
       .where(inArray(runs.id, ids))
@@ -163,7 +251,16 @@ export function runCards(ids: string[], workspaceId: string, d: Q = db()): RunCa
   return ids.map((id) => {
     const r = found.get(id);
     if (!r) return { id, found: false };
-    return { id, found: true, state: r.state, pointsDone: r.pointsDone, pointsTotal: r.pointsTotal, commitId: r.commitId, commitMessage: r.commitMessage, probes: keyProbes(id, 4, d) };
+    return {
+      id,
+      found: true,
+      state: r.state,
+      pointsDone: r.pointsDone,
+      pointsTotal: r.pointsTotal,
+      commitId: r.commitId,
+      commitMessage: r.commitMessage,
+      probes: keyProbes(id, 4, d),
+    };
   });
 }
 
@@ -174,7 +271,16 @@ export interface ThreadView {
   commit: { id: string; parentId: string | null; message: string; authorName: string; createdAt: number };
   review: ReviewState;
   verdicts: { reviewerName: string; verdict: Verdict; at: number }[];
-  comments: { id: string; authorId: string; authorName: string; html: string; body: string; createdAt: number; verdict: Verdict | null; verdictCommitId: string | null }[];
+  comments: {
+    id: string;
+    authorId: string;
+    authorName: string;
+    html: string;
+    body: string;
+    createdAt: number;
+    verdict: Verdict | null;
+    verdictCommitId: string | null;
+  }[];
   /** Review state of each commit a verdict in this thread is about (the thread's commit first). */
   commitStates: { commitId: string; message: string; review: ReviewState }[];
   runCards: RunCard[];
@@ -183,7 +289,12 @@ export interface ThreadView {
 /** Everything the thread page shows; null for an unknown id. */
 export function getThread(id: string, d: Q = db()): ThreadView | null {
   const t = d
-    .select({ thread: threads, authorName: users.name, ws: { id: workspaces.id, slug: workspaces.slug, name: workspaces.name }, net: { id: networks.id, slug: networks.slug, name: networks.name } })
+    .select({
+      thread: threads,
+      authorName: users.name,
+      ws: { id: workspaces.id, slug: workspaces.slug, name: workspaces.name },
+      net: { id: networks.id, slug: networks.slug, name: networks.name },
+    })
     .from(threads)
     .innerJoin(users, eq(users.id, threads.createdBy))
     .innerJoin(workspaces, eq(workspaces.id, threads.workspaceId))
@@ -191,34 +302,100 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
     .where(eq(threads.id, id))
     .get();
   if (!t) return null;
-  const commit = d.select({ id: commits.id, parentId: commits.parentId, message: commits.message, authorName: users.name, createdAt: commits.createdAt }).from(commits).innerJoin(users, eq(users.id, commits.authorId)).where(eq(commits.id, t.thread.commitId)).get()!;
-  const rows = d.select({ c: comments, authorName: users.name }).from(comments).innerJoin(users, eq(users.id, comments.authorId)).where(eq(comments.threadId, id)).orderBy(asc(comments.createdAt), asc(comments.id)).all();
-  const verdictOf = new Map(d.select({ commentId: reviews.commentId, verdict: reviews.verdict, commitId: reviews.commitId }).from(reviews).where(eq(reviews.threadId, id)).all().map((r) => [r.commentId, r]));
-  const refs = [...new Set([...(t.thread.runId ? [t.thread.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))])];
+  const commit = d
+    .select({
+      id: commits.id,
+      parentId: commits.parentId,
+      message: commits.message,
+      authorName: users.name,
+      createdAt: commits.createdAt,
+    })
+    .from(commits)
+    .innerJoin(users, eq(users.id, commits.authorId))
+    .where(eq(commits.id, t.thread.commitId))
+    .get()!;
+  const rows = d
+    .select({ c: comments, authorName: users.name })
+    .from(comments)
+    .innerJoin(users, eq(users.id, comments.authorId))
+    .where(eq(comments.threadId, id))
+    .orderBy(asc(comments.createdAt), asc(comments.id))
+    .all();
+  const verdictOf = new Map(
+    d
+      .select({ commentId: reviews.commentId, verdict: reviews.verdict, commitId: reviews.commitId })
+      .from(reviews)
+      .where(eq(reviews.threadId, id))
+      .all()
+      .map((r) => [r.commentId, r]),
+  );
+  const refs = [
+    ...new Set([...(t.thread.runId ? [t.thread.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))]),
+  ];
   const verdictCommits = [...new Set([commit.id, ...[...verdictOf.values()].map((v) => v.commitId)])];
   const badgeMap = commitBadges(verdictCommits, d);
   const badge = badgeMap.get(commit.id)!;
-  const messages = new Map(d.select({ id: commits.id, message: commits.message }).from(commits).where(inArray(commits.id, verdictCommits)).all().map((c) => [c.id, c.message]));
+  const messages = new Map(
+    d
+      .select({ id: commits.id, message: commits.message })
+      .from(commits)
+      .where(inArray(commits.id, verdictCommits))
+      .all()
+      .map((c) => [c.id, c.message]),
+  );
   return {
-    thread: { id: t.thread.id, workspaceId: t.thread.workspaceId, networkId: t.thread.networkId, commitId: t.thread.commitId, runId: t.thread.runId, title: t.thread.title, createdAt: t.thread.createdAt.getTime(), authorName: t.authorName },
+    thread: {
+      id: t.thread.id,
+      workspaceId: t.thread.workspaceId,
+      networkId: t.thread.networkId,
+      commitId: t.thread.commitId,
+      runId: t.thread.runId,
+      title: t.thread.title,
+      createdAt: t.thread.createdAt.getTime(),
+      authorName: t.authorName,
+    },
     workspace: t.ws,
     network: t.net,
     commit: { ...commit, createdAt: commit.createdAt.getTime() },
     review: badge.review,
     verdicts: badge.verdicts.map((v) => ({ reviewerName: v.reviewerName, verdict: v.verdict, at: v.at })),
-    comments: rows.map((r) => ({ id: r.c.id, authorId: r.c.authorId, authorName: r.authorName, body: r.c.body, html: renderComment(r.c.body), createdAt: r.c.createdAt.getTime(), verdict: verdictOf.get(r.c.id)?.verdict ?? null, verdictCommitId: verdictOf.get(r.c.id)?.commitId ?? null })),
+    comments: rows.map((r) => ({
+      id: r.c.id,
+      authorId: r.c.authorId,
+      authorName: r.authorName,
+      body: r.c.body,
+      html: renderComment(r.c.body),
+      createdAt: r.c.createdAt.getTime(),
+      verdict: verdictOf.get(r.c.id)?.verdict ?? null,
+      verdictCommitId: verdictOf.get(r.c.id)?.commitId ?? null,
+    })),
     runCards: runCards(refs, t.thread.workspaceId, d),
-    commitStates: verdictCommits.map((id) => ({ commitId: id, message: messages.get(id) ?? "", review: badgeMap.get(id)!.review })),
+    commitStates: verdictCommits.map((id) => ({
+      commitId: id,
+      message: messages.get(id) ?? "",
+      review: badgeMap.get(id)!.review,
+    })),
   };
 }
 
 /** Threads of a network (or of one commit), newest activity first. */
 export function listThreads(where: { networkId: string; commitId?: string }, d: Q = db()) {
   return d
-    .select({ id: threads.id, title: threads.title, commitId: threads.commitId, runId: threads.runId, updatedAt: threads.updatedAt, authorName: users.name })
+    .select({
+      id: threads.id,
+      title: threads.title,
+      commitId: threads.commitId,
+      runId: threads.runId,
+      updatedAt: threads.updatedAt,
+      authorName: users.name,
+    })
     .from(threads)
     .innerJoin(users, eq(users.id, threads.createdBy))
-    .where(where.commitId ? and(eq(threads.networkId, where.networkId), eq(threads.commitId, where.commitId)) : eq(threads.networkId, where.networkId))
+    .where(
+      where.commitId
+        ? and(eq(threads.networkId, where.networkId), eq(threads.commitId, where.commitId))
+        : eq(threads.networkId, where.networkId),
+    )
     .orderBy(desc(threads.updatedAt))
     .all()
     .map((t) => ({ ...t, updatedAt: t.updatedAt.getTime() }));

@@ -26,7 +26,11 @@ export default async function RunPage({ params }: Props) {
   if (!run || !role) notFound();
   const network = getNetwork(run.networkId)!;
   const commit = getCommit(run.commitId)!;
-  const ws = db().select({ slug: workspaces.slug, name: workspaces.name }).from(workspaces).where(eq(workspaces.id, run.workspaceId)).get()!;
+  const ws = db()
+    .select({ slug: workspaces.slug, name: workspaces.name })
+    .from(workspaces)
+    .where(eq(workspaces.id, run.workspaceId))
+    .get()!;
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
@@ -45,7 +49,10 @@ export default async function RunPage({ params }: Props) {
         </h1>
         <p className="text-sm text-stone-600">
           of commit{" "}
-          <Link href={`/w/${ws.slug}/n/${network.slug}?commit=${commit.id}`} className="font-mono text-moss-700 hover:underline">
+          <Link
+            href={`/w/${ws.slug}/n/${network.slug}?commit=${commit.id}`}
+            className="font-mono text-moss-700 hover:underline"
+          >
             {commit.id.slice(0, 12)}
           </Link>{" "}
           “{commit.message}” by {commit.authorName} ·{" "}

@@ -26,29 +26,44 @@ export default async function ThreadPage({ params }: Props) {
   if (!ref || !role || !roleAllows(role, "workspace.read")) notFound();
   const t = getThread(id)!;
   const netPath = `/w/${t.workspace.slug}/n/${t.network.slug}`;
-  const runs = runsOfCommit(t.commit.id).map((r) => ({ id: r.id, label: `${r.id.slice(0, 10)} · ${r.analysis ?? "not started"} · ${r.state}` }));
+  const runs = runsOfCommit(t.commit.id).map((r) => ({
+    id: r.id,
+    label: `${r.id.slice(0, 10)} · ${r.analysis ?? "not started"} · ${r.state}`,
+  }));
   // A verdict may be about the thread's commit or a later one (the fix a reply links); default: the newest linked one.
   const history = listCommits(t.network.id);
   const threadCommitAt = history.findIndex((c) => c.id === t.commit.id);
-  const eligible = history.slice(0, threadCommitAt + 1).map((c) => ({ id: c.id, label: `${c.id.slice(0, 10)} ${c.message.slice(0, 40)}` }));
+  const eligible = history
+    .slice(0, threadCommitAt + 1)
+    .map((c) => ({ id: c.id, label: `${c.id.slice(0, 10)} ${c.message.slice(0, 40)}` }));
   const linked = new Set(t.runCards.filter((c) => c.found).map((c) => c.commitId));
   const defaultCommitId = eligible.find((c) => linked.has(c.id))?.id ?? t.commit.id;
   const pinned = t.thread.runId ? t.runCards.find((c) => c.id === t.thread.runId) : undefined;
   return (
     <div className="space-y-6">
       <nav className="text-sm text-stone-600" aria-label="Breadcrumb">
-        <Link href={`/w/${t.workspace.slug}`} className="hover:underline">{t.workspace.name}</Link> /{" "}
-        <Link href={netPath} className="hover:underline">{t.network.name}</Link> / thread
+        <Link href={`/w/${t.workspace.slug}`} className="hover:underline">
+          {t.workspace.name}
+        </Link>{" "}
+        /{" "}
+        <Link href={netPath} className="hover:underline">
+          {t.network.name}
+        </Link>{" "}
+        / thread
       </nav>
       <header className="space-y-2 border-b border-stone-200 pb-4">
         <h1 className="text-2xl font-semibold">{t.thread.title}</h1>
         <p className="flex flex-wrap items-center gap-2 text-sm text-stone-600">
           <span>
-            on commit <span className="font-mono">{t.commit.id.slice(0, 10)}</span> “{t.commit.message}” by {t.commit.authorName}
+            on commit <span className="font-mono">{t.commit.id.slice(0, 10)}</span> “{t.commit.message}” by{" "}
+            {t.commit.authorName}
           </span>
           <ReviewStateBadge state={t.review} />
           {t.commit.parentId ? (
-            <Link href={`${netPath}/compare?from=${t.commit.parentId}&to=${t.commit.id}`} className="text-moss-700 hover:underline">
+            <Link
+              href={`${netPath}/compare?from=${t.commit.parentId}&to=${t.commit.id}`}
+              className="text-moss-700 hover:underline"
+            >
               Compare with parent
             </Link>
           ) : null}
@@ -57,9 +72,13 @@ export default async function ThreadPage({ params }: Props) {
           <ul className="flex flex-wrap gap-3 text-xs text-stone-600" aria-label="Commits reviewed in this thread">
             {t.commitStates.map((c) => (
               <li key={c.commitId} className="flex items-center gap-1">
-                <span className="font-mono">{c.commitId.slice(0, 10)}</span> “{c.message}” <ReviewStateBadge state={c.review} />
+                <span className="font-mono">{c.commitId.slice(0, 10)}</span> “{c.message}”{" "}
+                <ReviewStateBadge state={c.review} />
                 {c.commitId !== t.commit.id ? (
-                  <Link href={`${netPath}/compare?from=${t.commit.id}&to=${c.commitId}`} className="text-moss-700 hover:underline">
+                  <Link
+                    href={`${netPath}/compare?from=${t.commit.id}&to=${c.commitId}`}
+                    className="text-moss-700 hover:underline"
+                  >
                     Compare {t.commit.id.slice(0, 10)} → {c.commitId.slice(0, 10)}
                   </Link>
                 ) : null}
@@ -71,7 +90,8 @@ export default async function ThreadPage({ params }: Props) {
           <ul className="text-xs text-stone-600" aria-label="Verdicts">
             {t.verdicts.map((v) => (
               <li key={v.reviewerName}>
-                {v.reviewerName} {VERDICT_TEXT[v.verdict]} ({new Date(v.at).toISOString().slice(0, 16).replace("T", " ")} UTC)
+                {v.reviewerName} {VERDICT_TEXT[v.verdict]} (
+                {new Date(v.at).toISOString().slice(0, 16).replace("T", " ")} UTC)
               </li>
             ))}
           </ul>
@@ -87,16 +107,32 @@ export default async function ThreadPage({ params }: Props) {
           <li key={c.id} id={c.id} className="rounded border border-stone-200 bg-white p-3 shadow-sm">
             <p className="mb-2 flex flex-wrap items-center gap-2 text-xs text-stone-500">
               <span className="font-medium text-stone-700">{c.authorName}</span>
-              <a href={`#${c.id}`} className="hover:underline">{new Date(c.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC</a>
+              <a href={`#${c.id}`} className="hover:underline">
+                {new Date(c.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC
+              </a>
               {c.verdict ? <ReviewStateBadge state={c.verdict} /> : null}
-              {c.verdict && c.verdictCommitId && c.verdictCommitId !== t.commit.id ? <span>on commit <span className="font-mono">{c.verdictCommitId.slice(0, 10)}</span></span> : null}
+              {c.verdict && c.verdictCommitId && c.verdictCommitId !== t.commit.id ? (
+                <span>
+                  on commit <span className="font-mono">{c.verdictCommitId.slice(0, 10)}</span>
+                </span>
+              ) : null}
             </p>
-            {c.body ? <CommentBody html={c.html} cards={t.runCards} /> : <p className="text-sm italic text-stone-500">{VERDICT_TEXT[c.verdict!]}</p>}
+            {c.body ? (
+              <CommentBody html={c.html} cards={t.runCards} />
+            ) : (
+              <p className="text-sm italic text-stone-500">{VERDICT_TEXT[c.verdict!]}</p>
+            )}
           </li>
         ))}
       </ol>
       {roleAllows(role, "thread.comment") ? (
-        <CommentForm threadId={t.thread.id} canSignOff={roleAllows(role, "commit.signoff")} runs={runs} commits={eligible} defaultCommitId={defaultCommitId} />
+        <CommentForm
+          threadId={t.thread.id}
+          canSignOff={roleAllows(role, "commit.signoff")}
+          runs={runs}
+          commits={eligible}
+          defaultCommitId={defaultCommitId}
+        />
       ) : (
         <p className="text-sm text-stone-500">As a {role} you can read this thread but not reply.</p>
       )}

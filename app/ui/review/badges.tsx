@@ -22,12 +22,33 @@ export function MovedBadge({ diffs }: { diffs: CommitBadge["diffs"] }) {
   return (
     <>
       {diffs.map((d) => {
-        const title = d.note ?? (d.beyond ? `${d.analysis}: ${d.names.join(", ")}${d.beyond > d.names.length ? ", …" : ""}` : `${d.analysis}: every value within tolerance`);
-        const style = d.compared === 0 ? "border-stone-300 text-stone-500" : d.beyond > 0 ? "border-amber-500 bg-amber-50 text-amber-800" : "border-moss-500 text-moss-700";
+        const title =
+          d.note ??
+          (d.beyond
+            ? `${d.analysis}: ${d.names.join(", ")}${d.beyond > d.names.length ? ", …" : ""}`
+            : `${d.analysis}: every value within tolerance`);
+        const style =
+          d.compared === 0
+            ? "border-stone-300 text-stone-500"
+            : d.beyond > 0
+              ? "border-amber-500 bg-amber-50 text-amber-800"
+              : "border-moss-500 text-moss-700";
         return (
-          <span key={d.runId} title={title} data-moved={d.beyond} className={`inline-block rounded border px-1.5 py-0.5 text-xs ${style}`}>
-            {d.compared === 0 ? "no base run" : `${d.beyond.toLocaleString("en-US")} ${d.beyond === 1 ? "value" : "values"} moved`}
-            {d.beyond > 0 && d.names.length ? <span className="ml-1 font-mono">({d.names.slice(0, 3).join(", ")}{d.names.length > 3 ? ", …" : ""})</span> : null}
+          <span
+            key={d.runId}
+            title={title}
+            data-moved={d.beyond}
+            className={`inline-block rounded border px-1.5 py-0.5 text-xs ${style}`}
+          >
+            {d.compared === 0
+              ? "no base run"
+              : `${d.beyond.toLocaleString("en-US")} ${d.beyond === 1 ? "value" : "values"} moved`}
+            {d.beyond > 0 && d.names.length ? (
+              <span className="ml-1 font-mono">
+                ({d.names.slice(0, 3).join(", ")}
+                {d.names.length > 3 ? ", …" : ""})
+              </span>
+            ) : null}
           </span>
         );
       })}

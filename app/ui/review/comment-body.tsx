@@ -13,7 +13,11 @@ import { formatNumber } from "@/app/lib/format";
 
 export function RunCard({ card }: { card: RunCardData | undefined }) {
   if (!card || !card.found) {
-    return <span className="rounded border border-dashed border-stone-300 px-1 text-xs text-stone-500">run {card?.id ?? "?"} not found</span>;
+    return (
+      <span className="rounded border border-dashed border-stone-300 px-1 text-xs text-stone-500">
+        run {card?.id ?? "?"} not found
+      </span>
+    );
   }
   return (
     <Link
@@ -23,7 +27,9 @@ export function RunCard({ card }: { card: RunCardData | undefined }) {
       className="my-1 inline-flex max-w-full flex-wrap items-baseline gap-x-3 gap-y-1 rounded border border-moss-500 bg-moss-50 px-2 py-1 align-middle text-xs text-stone-ink no-underline hover:border-moss-700"
     >
       <span className="font-mono font-semibold text-moss-700">run {card.id.slice(0, 10)}</span>
-      <span data-state={card.state} className="rounded bg-white px-1 font-medium">{card.state}</span>
+      <span data-state={card.state} className="rounded bg-white px-1 font-medium">
+        {card.state}
+      </span>
       <span className="tabular text-stone-600">
         {card.pointsDone}/{card.pointsTotal} points
       </span>
@@ -52,8 +58,14 @@ export function CommentBody({ html, cards }: { html: string; cards: RunCardData[
   const byId = new Map(cards.map((c) => [c.id, c]));
   return (
     <>
-      <div ref={host} className="space-y-2 text-sm leading-relaxed [&_a]:text-moss-700 [&_a]:underline [&_blockquote]:border-l-2 [&_blockquote]:border-stone-300 [&_blockquote]:pl-3 [&_code]:font-mono [&_code]:text-[0.92em] [&_ol]:list-decimal [&_ol]:pl-5 [&_pre]:overflow-x-auto [&_pre]:rounded [&_pre]:bg-stone-100 [&_pre]:p-2 [&_table]:text-xs [&_td]:border [&_td]:px-1 [&_th]:border [&_th]:px-1 [&_ul]:list-disc [&_ul]:pl-5 [&_.mention]:font-medium [&_.mention]:text-moss-700" dangerouslySetInnerHTML={{ __html: html }} />
-      {slots.map((s, i) => createPortal(<RunCard card={byId.get(s.id) ?? { id: s.id, found: false }} />, s.el, `${s.id}-${i}`))}
+      <div
+        ref={host}
+        className="space-y-2 text-sm leading-relaxed [&_a]:text-moss-700 [&_a]:underline [&_blockquote]:border-l-2 [&_blockquote]:border-stone-300 [&_blockquote]:pl-3 [&_code]:font-mono [&_code]:text-[0.92em] [&_ol]:list-decimal [&_ol]:pl-5 [&_pre]:overflow-x-auto [&_pre]:rounded [&_pre]:bg-stone-100 [&_pre]:p-2 [&_table]:text-xs [&_td]:border [&_td]:px-1 [&_th]:border [&_th]:px-1 [&_ul]:list-disc [&_ul]:pl-5 [&_.mention]:font-medium [&_.mention]:text-moss-700"
+        dangerouslySetInnerHTML={{ __html: html }}
+      />
+      {slots.map((s, i) =>
+        createPortal(<RunCard card={byId.get(s.id) ?? { id: s.id, found: false }} />, s.el, `${s.id}-${i}`),
+      )}
     </>
   );
 }

@@ -33,7 +33,11 @@ export function CommentForm({
     setError(null);
     setNote(null);
     try {
-      const r = await postJson<{ notified: string[]; mailErrors: string[] }>(`/api/threads/${threadId}/comments`, { body, verdict, commitId: verdict && commitId ? commitId : null });
+      const r = await postJson<{ notified: string[]; mailErrors: string[] }>(`/api/threads/${threadId}/comments`, {
+        body,
+        verdict,
+        commitId: verdict && commitId ? commitId : null,
+      });
       setBody("");
       if (r.notified.length) setNote(`Notified ${r.notified.map((h) => "@" + h).join(", ")} by e-mail.`);
       if (r.mailErrors.length) setError(`Comment saved, but e-mail failed: ${r.mailErrors.join("; ")}`);
@@ -84,13 +88,22 @@ export function CommentForm({
           </select>
         ) : null}
         <span className="flex-1" />
-        <button type="submit" disabled={busy || body.trim() === ""} className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:opacity-50">
+        <button
+          type="submit"
+          disabled={busy || body.trim() === ""}
+          className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:opacity-50"
+        >
           Comment
         </button>
         {canSignOff ? (
           <>
             {commits.length > 1 ? (
-              <select aria-label="Verdict about commit" value={commitId} onChange={(e) => setCommitId(e.target.value)} className="rounded border border-stone-300 px-2 py-1 font-mono text-sm">
+              <select
+                aria-label="Verdict about commit"
+                value={commitId}
+                onChange={(e) => setCommitId(e.target.value)}
+                className="rounded border border-stone-300 px-2 py-1 font-mono text-sm"
+              >
                 {commits.map((c) => (
                   <option key={c.id} value={c.id}>
                     {c.label}
@@ -98,17 +111,35 @@ export function CommentForm({
                 ))}
               </select>
             ) : null}
-            <button type="button" disabled={busy} onClick={() => void send("changes_asked")} className="rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50 disabled:opacity-50">
+            <button
+              type="button"
+              disabled={busy}
+              onClick={() => void send("changes_asked")}
+              className="rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50 disabled:opacity-50"
+            >
               Ask for changes
             </button>
-            <button type="button" disabled={busy} onClick={() => void send("signed_off")} className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+            <button
+              type="button"
+              disabled={busy}
+              onClick={() => void send("signed_off")}
+              className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50"
+            >
               Sign off
             </button>
           </>
         ) : null}
       </div>
-      {error ? <p role="alert" className="text-sm text-ember-500">{error}</p> : null}
-      {note ? <p role="status" className="text-sm text-moss-700">{note}</p> : null}
+      {error ? (
+        <p role="alert" className="text-sm text-ember-500">
+          {error}
+        </p>
+      ) : null}
+      {note ? (
+        <p role="status" className="text-sm text-moss-700">
+          {note}
+        </p>
+      ) : null}
     </form>
   );
 }
@@ -138,11 +169,30 @@ export function NewThreadForm({ commitId, runs }: { commitId: string; runs: { id
       }}
     >
       <h3 className="text-sm font-medium">Open a thread on this commit</h3>
-      <input aria-label="Thread title" value={title} onChange={(e) => setTitle(e.target.value)} maxLength={200} placeholder="Title" className="w-full rounded border border-stone-300 px-2 py-1 text-sm" />
-      <textarea aria-label="First comment" value={body} onChange={(e) => setBody(e.target.value)} rows={3} placeholder="Markdown; [[run ID]] links a run, @handle mentions a member" className="w-full rounded border border-stone-300 p-2 font-mono text-sm" />
+      <input
+        aria-label="Thread title"
+        value={title}
+        onChange={(e) => setTitle(e.target.value)}
+        maxLength={200}
+        placeholder="Title"
+        className="w-full rounded border border-stone-300 px-2 py-1 text-sm"
+      />
+      <textarea
+        aria-label="First comment"
+        value={body}
+        onChange={(e) => setBody(e.target.value)}
+        rows={3}
+        placeholder="Markdown; [[run ID]] links a run, @handle mentions a member"
+        className="w-full rounded border border-stone-300 p-2 font-mono text-sm"
+      />
       <div className="flex items-center gap-2">
         {runs.length ? (
-          <select aria-label="Pin to run" value={runId} onChange={(e) => setRunId(e.target.value)} className="rounded border border-stone-300 px-2 py-1 text-sm">
+          <select
+            aria-label="Pin to run"
+            value={runId}
+            onChange={(e) => setRunId(e.target.value)}
+            className="rounded border border-stone-300 px-2 py-1 text-sm"
+          >
             <option value="">Not pinned to a run</option>
             {runs.map((r) => (
               <option key={r.id} value={r.id}>
@@ -152,11 +202,19 @@ export function NewThreadForm({ commitId, runs }: { commitId: string; runs: { id
           </select>
         ) : null}
         <span className="flex-1" />
-        <button type="submit" disabled={busy} className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+        <button
+          type="submit"
+          disabled={busy}
+          className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50"
+        >
           Open thread
         </button>
       </div>
-      {error ? <p role="alert" className="text-sm text-ember-500">{error}</p> : null}
+      {error ? (
+        <p role="alert" className="text-sm text-ember-500">
+          {error}
+        </p>
+      ) : null}
     </form>
   );
 }

@@ -32,21 +32,39 @@ async function getJson<T>(url: string): Promise<T> {
 const SI: Record<string, string> = { V: "V", A: "A", K: "K", "1": "" };
 const siUnit = (unit: string) => SI[unit.slice(-1)] ?? (unit === "1" ? "" : unit);
 
-export function MeasurementPanel({ networkId, runs, commits, canWrite }: { networkId: string; runs: { id: string; label: string }[]; commits: { id: string; label: string }[]; canWrite: boolean }) {
+export function MeasurementPanel({
+  networkId,
+  runs,
+  commits,
+  canWrite,
+}: {
+  networkId: string;
+  runs: { id: string; label: string }[];
+  commits: { id: string; label: string }[];
+  canWrite: boolean;
+}) {
   const list = useSWR<{ measurements: Listed[] }>(`/api/networks/${networkId}/measurements`, getJson);
   const [errors, setErrors] = useState<string[]>([]);
   const [busy, setBusy] = useState(false);
   const [chosen, setChosen] = useState<string>("");
   const [runId, setRunId] = useState<string>(runs[0]?.id ?? "");
   const measurementId = chosen || list.data?.measurements[0]?.id || "";
-  const overlay = useSWR<Overlay>(measurementId && runId ? `/api/measurements/${measurementId}/overlay?run=${runId}` : null, getJson, { shouldRetryOnError: false });
+  const overlay = useSWR<Overlay>(
+    measurementId && runId ? `/api/measurements/${measurementId}/overlay?run=${runId}` : null,
+    getJson,
+    { shouldRetryOnError: false },
+  );
 
   async function upload(form: HTMLFormElement) {
     setBusy(true);
     setErrors([]);
     try {
       const res = await fetch(`/api/networks/${networkId}/measurements`, { method: "POST", body: new FormData(form) });
-      const body = (await res.json().catch(() => ({}))) as { error?: string; errors?: { text: string }[]; measurement?: { id: string } };
+      const body = (await res.json().catch(() => ({}))) as {
+        error?: string;
+        errors?: { text: string }[];
+        measurement?: { id: string };
+      };
       if (!res.ok) setErrors(body.errors?.map((e) => e.text) ?? [body.error ?? `upload failed (${res.status})`]);
       else {
         form.reset();
@@ -60,7 +78,9 @@ export function MeasurementPanel({ networkId, runs, commits, canWrite }: { netwo
 
   return (
     <section aria-labelledby="measurements-heading" className="space-y-3">
-      <h2 id="measurements-heading" className="text-lg font-semibold">Measurements</h2>
+      <h2 id="measurements-heading" className="text-lg font-semibold">
+        Measurements
+      </h2>
       {canWrite ? (
         <form
           className="flex flex-wrap items-end gap-3 rounded border border-stone-300 bg-white p-3 text-sm"
@@ -86,11 +106,17 @@ export function MeasurementPanel({ networkId, runs, commits, canWrite }: { netwo
               </select>
             </label>
           ) : null}
-          <button type="submit" disabled={busy} className="rounded bg-moss-600 px-3 py-1 text-white hover:bg-moss-700 disabled:opacity-50">
+          <button
+            type="submit"
+            disabled={busy}
+            className="rounded bg-moss-600 px-3 py-1 text-white hover:bg-moss-700 disabled:opacity-50"
+          >
             Upload
           </button>
           <p className="basis-full text-xs text-stone-500">
-            First line: <code className="font-mono">x [unit], series [unit], …</code> e.g. <code className="font-mono">iin [nA], ratio [1]</code>; units V, A, K with a prefix (f p n u m k M G) or 1. Lines starting with # are notes.
+            First line: <code className="font-mono">x [unit], series [unit], …</code> e.g.{" "}
+            <code className="font-mono">iin [nA], ratio [1]</code>; units V, A, K with a prefix (f p n u m k M G) or 1.
+            Lines starting with # are notes.
           </p>
         </form>
       ) : null}
@@ -104,10 +130,17 @@ export function MeasurementPanel({ networkId, runs, commits, canWrite }: { netwo
           </ul>
         </div>
       ) : null}
-      {list.data && list.data.measurements.length === 0 ? <p className="text-sm text-stone-500">No measurements yet.</p> : null}
+      {list.data && list.data.measurements.length === 0 ? (
+        <p className="text-sm text-stone-500">No measurements yet.</p>
+      ) : null}
       {list.data?.measurements.length ? (
         <div className="flex flex-wrap items-center gap-3 text-sm">
-          <select aria-label="Measurement" value={measurementId} onChange={(e) => setChosen(e.target.value)} className="rounded border border-stone-300 px-2 py-1">
+          <select
+            aria-label="Measurement"
+            value={measurementId}
+            onChange={(e) => setChosen(e.target.value)}
+            className="rounded border border-stone-300 px-2 py-1"
+          >
             {list.data.measurements.map((m) => (
               <option key={m.id} value={m.id}>
                 {m.name} · {m.rows} rows · {m.xName} [{m.xUnit}] vs {m.series.map((s) => s.name).join(", ")}
@@ -115,7 +148,12 @@ export function MeasurementPanel({ networkId, runs, commits, canWrite }: { netwo
             ))}
           </select>
           {runs.length ? (
-            <select aria-label="Run to overlay" value={runId} onChange={(e) => setRunId(e.target.value)} className="rounded border border-stone-300 px-2 py-1 font-mono">
+            <select
+              aria-label="Run to overlay"
+              value={runId}
+              onChange={(e) => setRunId(e.target.value)}
+              className="rounded border border-stone-300 px-2 py-1 font-mono"
+            >
               {runs.map((r) => (
                 <option key={r.id} value={r.id}>
                   {r.label}
@@ -145,13 +183,36 @@ function OverlayView({ data }: { data: Overlay }) {
         const unit = siUnit(s.unit);
         return (
           <figure key={s.name} className="space-y-1 rounded border border-stone-300 bg-white p-2">
-            <LinePlot title={`${s.name}: measured and simulated (${s.against})`} x={xs} xLabel={data.x.param} xUnit={siUnit(data.x.unit)} curves={[{ label: `simulated ${s.against}`, values: at(s.simulated) }, { label: `measured ${s.name}`, values: at(s.measured) }]} yUnit={unit} points height={240} />
+            <LinePlot
+              title={`${s.name}: measured and simulated (${s.against})`}
+              x={xs}
+              xLabel={data.x.param}
+              xUnit={siUnit(data.x.unit)}
+              curves={[
+                { label: `simulated ${s.against}`, values: at(s.simulated) },
+                { label: `measured ${s.name}`, values: at(s.measured) },
+              ]}
+              yUnit={unit}
+              points
+              height={240}
+            />
             <figcaption className="text-sm" data-testid={`agreement-${s.name}`}>
-              RMS of the log ratio <strong className="tabular">{Number.isFinite(s.agreement.rmsLogRatio) ? formatNumber(s.agreement.rmsLogRatio, 3) : "—"}</strong>
-              {Number.isFinite(s.agreement.rmsLogRatio) ? ` (about ${formatNumber((Math.exp(s.agreement.rmsLogRatio) - 1) * 100, 2)} % typical deviation)` : ""}; largest absolute error{" "}
-              <strong className="tabular">{Number.isFinite(s.agreement.maxAbsError) ? formatEng(s.agreement.maxAbsError, unit) : "—"}</strong> at {data.x.param} = {formatEng(s.agreement.maxAbsErrorAt, siUnit(data.x.unit))}; {s.agreement.n} points compared
+              RMS of the log ratio{" "}
+              <strong className="tabular">
+                {Number.isFinite(s.agreement.rmsLogRatio) ? formatNumber(s.agreement.rmsLogRatio, 3) : "—"}
+              </strong>
+              {Number.isFinite(s.agreement.rmsLogRatio)
+                ? ` (about ${formatNumber((Math.exp(s.agreement.rmsLogRatio) - 1) * 100, 2)} % typical deviation)`
+                : ""}
+              ; largest absolute error{" "}
+              <strong className="tabular">
+                {Number.isFinite(s.agreement.maxAbsError) ? formatEng(s.agreement.maxAbsError, unit) : "—"}
+              </strong>{" "}
+              at {data.x.param} = {formatEng(s.agreement.maxAbsErrorAt, siUnit(data.x.unit))}; {s.agreement.n} points
+              compared
               {s.agreement.outside ? `, ${s.agreement.outside} outside the simulated range` : ""}
-              {s.agreement.signMismatch ? `, ${s.agreement.signMismatch} with opposite signs` : ""}. Simulation is a model estimate; the bench decides.
+              {s.agreement.signMismatch ? `, ${s.agreement.signMismatch} with opposite signs` : ""}. Simulation is a
+              model estimate; the bench decides.
             </figcaption>
           </figure>
         );

@@ -43,16 +43,24 @@ export interface BenchData {
 
 /** The network's measurements and the chosen one's overlay on `runId`; state lives in the caller (shared by the views). */
 export function useBenchData(networkId: string, runId: string): BenchData {
-  const list = useSWR<{ measurements: Listed[] }>(`/api/networks/${networkId}/measurements`, getJson, { revalidateOnFocus: false });
+  const list = useSWR<{ measurements: Listed[] }>(`/api/networks/${networkId}/measurements`, getJson, {
+    revalidateOnFocus: false,
+  });
   const [chosenId, setChosenId] = useState("");
   const measurements = list.data?.measurements ?? NONE;
   const chosen = measurements.find((m) => m.id === chosenId) ?? null;
-  const overlay = useSWR<Overlay>(chosen ? `/api/measurements/${chosen.id}/overlay?run=${runId}` : null, getJson, { shouldRetryOnError: false, revalidateOnFocus: false });
+  const overlay = useSWR<Overlay>(chosen ? `/api/measurements/${chosen.id}/overlay?run=${runId}` : null, getJson, {
+    shouldRetryOnError: false,
+    revalidateOnFocus: false,
+  });
   const data = chosen ? overlay.data : undefined;
   const error = chosen && overlay.error ? (overlay.error as Error).message : null;
   const loading = !!chosen && overlay.isLoading;
   // One object per change, so plots that depend on it are redrawn only when the bench data changes.
-  return useMemo(() => ({ measurements, chosen, choose: setChosenId, overlay: data, error, loading }), [measurements, chosen, data, error, loading]);
+  return useMemo(
+    () => ({ measurements, chosen, choose: setChosenId, overlay: data, error, loading }),
+    [measurements, chosen, data, error, loading],
+  );
 }
 
 /** Unit symbol of a CSV unit in SI ("nA" → "A", "1" → ""): the overlay's values are in SI units. */
@@ -70,7 +78,12 @@ export function measuredLabel(bench: BenchData, s: OverlaySeries): string {
 
 /** The measured points of `series` as points-only marks for LinePlot. */
 export function measuredMarks(bench: BenchData, series: OverlaySeries[]): Marks[] {
-  return series.map((s) => ({ label: measuredLabel(bench, s), x: s.measured.x, y: s.measured.y, colour: MEASURED_COLOUR }));
+  return series.map((s) => ({
+    label: measuredLabel(bench, s),
+    x: s.measured.x,
+    y: s.measured.y,
+    colour: MEASURED_COLOUR,
+  }));
 }
 
 /** The select; renders nothing while the network has no measurements. `onChoose` runs after the choice (a view may follow the matched curve). */
@@ -113,20 +126,29 @@ export function BenchFigures({ bench, shown }: { bench: BenchData; shown: (s: Ov
         {bench.error}
       </p>
     );
-  if (!bench.overlay) return bench.loading ? <p className="text-sm text-stone-500">Comparing with the bench data…</p> : null;
+  if (!bench.overlay)
+    return bench.loading ? <p className="text-sm text-stone-500">Comparing with the bench data…</p> : null;
   const xUnit = siUnit(bench.overlay.x.unit);
   const xParam = bench.overlay.x.param;
   return (
-    <aside aria-label="Agreement with the bench data" className="space-y-1 rounded border border-stone-200 bg-white p-2 text-sm">
+    <aside
+      aria-label="Agreement with the bench data"
+      className="space-y-1 rounded border border-stone-200 bg-white p-2 text-sm"
+    >
       <ul className="space-y-1">
         {bench.overlay.series.map((s) => {
           const a = s.agreement;
           const unit = siUnit(s.unit);
           return (
             <li key={s.name} data-testid={`bench-agreement-${s.name}`} className="tabular">
-              <span className="font-medium">{s.name}</span> against {s.against}: RMS of the log ratio <strong>{Number.isFinite(a.rmsLogRatio) ? formatNumber(a.rmsLogRatio, 3) : "—"}</strong>
-              {Number.isFinite(a.rmsLogRatio) ? ` (about ${formatNumber((Math.exp(a.rmsLogRatio) - 1) * 100, 2)} % typical deviation)` : ""}; largest absolute error <strong>{formatEng(a.maxAbsError, unit)}</strong>
-              {Number.isFinite(a.maxAbsErrorAt) ? ` at ${xParam} = ${formatEng(a.maxAbsErrorAt, xUnit)}` : ""}; {a.n} points compared
+              <span className="font-medium">{s.name}</span> against {s.against}: RMS of the log ratio{" "}
+              <strong>{Number.isFinite(a.rmsLogRatio) ? formatNumber(a.rmsLogRatio, 3) : "—"}</strong>
+              {Number.isFinite(a.rmsLogRatio)
+                ? ` (about ${formatNumber((Math.exp(a.rmsLogRatio) - 1) * 100, 2)} % typical deviation)`
+                : ""}
+              ; largest absolute error <strong>{formatEng(a.maxAbsError, unit)}</strong>
+              {Number.isFinite(a.maxAbsErrorAt) ? ` at ${xParam} = ${formatEng(a.maxAbsErrorAt, xUnit)}` : ""}; {a.n}{" "}
+              points compared
               {a.outside ? `, ${a.outside} outside the simulated range` : ""}
               {a.signMismatch ? `, ${a.signMismatch} with opposite signs` : ""}
               {shown(s) ? "" : ` (not on this plot: choose ${s.against} to see it)`}.

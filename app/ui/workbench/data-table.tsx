@@ -28,7 +28,14 @@ export interface DataTableProps<T> {
   rowClass?(row: T): string;
 }
 
-export function DataTable<T>({ label, rows, columns, filterPlaceholder = "Filter by name", pageSize = 25, rowClass }: DataTableProps<T>) {
+export function DataTable<T>({
+  label,
+  rows,
+  columns,
+  filterPlaceholder = "Filter by name",
+  pageSize = 25,
+  rowClass,
+}: DataTableProps<T>) {
   const [sorting, setSorting] = useState<SortingState>([]);
   const [filter, setFilter] = useState("");
   const table = useReactTable({
@@ -37,7 +44,10 @@ export function DataTable<T>({ label, rows, columns, filterPlaceholder = "Filter
     state: { sorting, globalFilter: filter },
     onSortingChange: setSorting,
     onGlobalFilterChange: setFilter,
-    globalFilterFn: (row, _id, value: string) => String(row.getValue(columns[0].id ?? "name")).toLowerCase().includes(value.toLowerCase()),
+    globalFilterFn: (row, _id, value: string) =>
+      String(row.getValue(columns[0].id ?? "name"))
+        .toLowerCase()
+        .includes(value.toLowerCase()),
     getCoreRowModel: getCoreRowModel(),
     getSortedRowModel: getSortedRowModel(),
     getFilteredRowModel: getFilteredRowModel(),
@@ -69,8 +79,16 @@ export function DataTable<T>({ label, rows, columns, filterPlaceholder = "Filter
                 {hg.headers.map((h) => {
                   const sorted = h.column.getIsSorted();
                   return (
-                    <th key={h.id} className="px-3 py-2 font-medium" aria-sort={sorted === "asc" ? "ascending" : sorted === "desc" ? "descending" : undefined}>
-                      <button type="button" onClick={h.column.getToggleSortingHandler()} className="flex items-center gap-1 hover:text-moss-700">
+                    <th
+                      key={h.id}
+                      className="px-3 py-2 font-medium"
+                      aria-sort={sorted === "asc" ? "ascending" : sorted === "desc" ? "descending" : undefined}
+                    >
+                      <button
+                        type="button"
+                        onClick={h.column.getToggleSortingHandler()}
+                        className="flex items-center gap-1 hover:text-moss-700"
+                      >
                         {flexRender(h.column.columnDef.header, h.getContext())}
                         <span aria-hidden className="text-stone-400">
                           {sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : ""}
@@ -97,13 +115,23 @@ export function DataTable<T>({ label, rows, columns, filterPlaceholder = "Filter
       </div>
       {table.getPageCount() > 1 ? (
         <div className="flex items-center gap-2 text-sm">
-          <button type="button" className="rounded border border-stone-300 px-2 py-0.5 disabled:opacity-40" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
+          <button
+            type="button"
+            className="rounded border border-stone-300 px-2 py-0.5 disabled:opacity-40"
+            onClick={() => table.previousPage()}
+            disabled={!table.getCanPreviousPage()}
+          >
             Previous
           </button>
           <span className="text-stone-600">
             page {page.pageIndex + 1} of {table.getPageCount()}
           </span>
-          <button type="button" className="rounded border border-stone-300 px-2 py-0.5 disabled:opacity-40" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
+          <button
+            type="button"
+            className="rounded border border-stone-300 px-2 py-0.5 disabled:opacity-40"
+            onClick={() => table.nextPage()}
+            disabled={!table.getCanNextPage()}
+          >
             Next
           </button>
         </div>

@@ -14,7 +14,12 @@ export class ApiError extends Error {
 
 async function parse<T>(res: Response): Promise<T> {
   const body = (await res.json().catch(() => ({}))) as Record<string, unknown>;
-  if (!res.ok) throw new ApiError(res.status, typeof body.error === "string" ? body.error : `request failed (${res.status})`, body);
+  if (!res.ok)
+    throw new ApiError(
+      res.status,
+      typeof body.error === "string" ? body.error : `request failed (${res.status})`,
+      body,
+    );
   return body as T;
 }
 
@@ -25,7 +30,13 @@ export async function getJson<T>(url: string): Promise<T> {
 
 /** POST/PATCH a JSON body; resolves to the JSON answer. */
 export async function sendJson<T>(method: "POST" | "PATCH", url: string, body: unknown): Promise<T> {
-  return parse<T>(await fetch(url, { method, headers: { "content-type": "application/json", accept: "application/json" }, body: JSON.stringify(body) }));
+  return parse<T>(
+    await fetch(url, {
+      method,
+      headers: { "content-type": "application/json", accept: "application/json" },
+      body: JSON.stringify(body),
+    }),
+  );
 }
 
 /** SWR fetcher for binary answers (a point of a run): the body's bytes, or ApiError with the server's message. */

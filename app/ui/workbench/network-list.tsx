@@ -69,11 +69,26 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
               if (name.trim()) void create({ name });
             }}
           >
-            <input value={name} onChange={(e) => setName(e.target.value)} placeholder="New network name" aria-label="New network name" className="w-56 rounded border border-stone-300 bg-white px-2 py-1 text-sm" />
-            <button type="submit" disabled={busy || !name.trim()} className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+            <input
+              value={name}
+              onChange={(e) => setName(e.target.value)}
+              placeholder="New network name"
+              aria-label="New network name"
+              className="w-56 rounded border border-stone-300 bg-white px-2 py-1 text-sm"
+            />
+            <button
+              type="submit"
+              disabled={busy || !name.trim()}
+              className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50"
+            >
               Create
             </button>
-            <button type="button" disabled={busy} onClick={() => file.current?.click()} className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:opacity-50">
+            <button
+              type="button"
+              disabled={busy}
+              onClick={() => file.current?.click()}
+              className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:opacity-50"
+            >
               Upload .runnel file…
             </button>
             <input
@@ -98,9 +113,13 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
       ) : null}
       {error ? <p className="text-sm text-ember-500">Could not load the networks: {(error as Error).message}</p> : null}
       {!data ? (
-        !error ? <p className="text-sm text-stone-500">Loading…</p> : null
+        !error ? (
+          <p className="text-sm text-stone-500">Loading…</p>
+        ) : null
       ) : data.networks.length === 0 ? (
-        <p className="rounded border border-dashed border-stone-300 bg-white p-6 text-stone-600">No networks yet.{canWrite ? " Create one or upload a .runnel file." : ""}</p>
+        <p className="rounded border border-dashed border-stone-300 bg-white p-6 text-stone-600">
+          No networks yet.{canWrite ? " Create one or upload a .runnel file." : ""}
+        </p>
       ) : (
         <ul aria-label="Networks" className="divide-y divide-stone-200 rounded border border-stone-200 bg-white">
           {data.networks.map((n) => (
@@ -112,7 +131,17 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
   );
 }
 
-function NetworkItem({ slug, network: n, canWrite, onRenamed }: { slug: string; network: NetworkSummary; canWrite: boolean; onRenamed(): void }) {
+function NetworkItem({
+  slug,
+  network: n,
+  canWrite,
+  onRenamed,
+}: {
+  slug: string;
+  network: NetworkSummary;
+  canWrite: boolean;
+  onRenamed(): void;
+}) {
   const [editing, setEditing] = useState(false);
   const [name, setName] = useState(n.name);
   const [problem, setProblem] = useState<string | null>(null);
@@ -137,7 +166,13 @@ function NetworkItem({ slug, network: n, canWrite, onRenamed }: { slug: string; 
               void rename();
             }}
           >
-            <input value={name} onChange={(e) => setName(e.target.value)} aria-label={`New name for ${n.name}`} className="rounded border border-stone-300 px-2 py-0.5 text-sm" autoFocus />
+            <input
+              value={name}
+              onChange={(e) => setName(e.target.value)}
+              aria-label={`New name for ${n.name}`}
+              className="rounded border border-stone-300 px-2 py-0.5 text-sm"
+              autoFocus
+            />
             <button type="submit" className="text-sm text-moss-700 hover:underline">
               Save
             </button>
@@ -151,7 +186,12 @@ function NetworkItem({ slug, network: n, canWrite, onRenamed }: { slug: string; 
               {n.name}
             </Link>
             {canWrite ? (
-              <button type="button" onClick={() => setEditing(true)} className="text-xs text-stone-500 hover:text-moss-700" aria-label={`Rename ${n.name}`}>
+              <button
+                type="button"
+                onClick={() => setEditing(true)}
+                className="text-xs text-stone-500 hover:text-moss-700"
+                aria-label={`Rename ${n.name}`}
+              >
                 rename
               </button>
             ) : null}
@@ -161,7 +201,8 @@ function NetworkItem({ slug, network: n, canWrite, onRenamed }: { slug: string; 
         <p className="text-xs text-stone-500">
           {n.head ? (
             <>
-              <span className="font-mono">{n.head.id.slice(0, 8)}</span> “{n.head.message}” · {n.head.authorName} · {ago(n.head.createdAt)} · {n.commitCount} commit{n.commitCount === 1 ? "" : "s"}
+              <span className="font-mono">{n.head.id.slice(0, 8)}</span> “{n.head.message}” · {n.head.authorName} ·{" "}
+              {ago(n.head.createdAt)} · {n.commitCount} commit{n.commitCount === 1 ? "" : "s"}
             </>
           ) : (
             "no commits yet"
@@ -171,7 +212,9 @@ function NetworkItem({ slug, network: n, canWrite, onRenamed }: { slug: string; 
       <div className="text-xs">
         {n.head ? (
           n.head.ok ? (
-            <span className="text-moss-700">{n.head.warningCount ? `${n.head.warningCount} warning(s)` : "no errors"}</span>
+            <span className="text-moss-700">
+              {n.head.warningCount ? `${n.head.warningCount} warning(s)` : "no errors"}
+            </span>
           ) : (
             <span className="text-ember-500">{n.head.errorCount} error(s)</span>
           )
@@ -179,7 +222,11 @@ function NetworkItem({ slug, network: n, canWrite, onRenamed }: { slug: string; 
       </div>
       <div className="w-28 text-right">
         {n.lastRun ? (
-          <Link href={`/runs/${n.lastRun.id}`} className="inline-flex items-center gap-1 text-xs text-stone-600 hover:text-moss-700" aria-label={`Newest run of ${n.name}: ${n.lastRun.state}`}>
+          <Link
+            href={`/runs/${n.lastRun.id}`}
+            className="inline-flex items-center gap-1 text-xs text-stone-600 hover:text-moss-700"
+            aria-label={`Newest run of ${n.name}: ${n.lastRun.state}`}
+          >
             run <RunStateBadge state={n.lastRun.state} />
           </Link>
         ) : (

@@ -35,13 +35,20 @@ function starterText(name: string): string {
 }
 
 export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canWrite, canRun }: NetworkWorkbenchProps) {
-  const history = useSWR<{ commits: CommitSummary[]; network: NetworkRow }>(`/api/networks/${network.id}/commits`, getJson);
+  const history = useSWR<{ commits: CommitSummary[]; network: NetworkRow }>(
+    `/api/networks/${network.id}/commits`,
+    getJson,
+  );
   const commits = history.data?.commits ?? [];
   const headId = history.data ? history.data.network.headCommitId : network.headCommitId;
   const [selectedId, setSelectedId] = useState<string | null>(initialCommitId);
   // Commits never change: fetched once each.
-  const selected = useSWR<{ commit: CommitRow }>(selectedId ? `/api/commits/${selectedId}` : null, getJson, { revalidateOnFocus: false });
-  const head = useSWR<{ commit: CommitRow }>(headId ? `/api/commits/${headId}` : null, getJson, { revalidateOnFocus: false });
+  const selected = useSWR<{ commit: CommitRow }>(selectedId ? `/api/commits/${selectedId}` : null, getJson, {
+    revalidateOnFocus: false,
+  });
+  const head = useSWR<{ commit: CommitRow }>(headId ? `/api/commits/${headId}` : null, getJson, {
+    revalidateOnFocus: false,
+  });
   const headText = headId ? head.data?.commit.text : starterText(network.name);
   const viewingHead = selectedId === headId;
 
@@ -94,7 +101,10 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
   const commit = useCallback(async () => {
     if (!canWrite) return;
     if (!viewingHead) {
-      setNotice({ kind: "problem", text: "You are viewing an older commit: open the newest one (or restore this text) to edit and commit." });
+      setNotice({
+        kind: "problem",
+        text: "You are viewing an older commit: open the newest one (or restore this text) to edit and commit.",
+      });
       return;
     }
     if (!dirty || draft === null) {
@@ -108,7 +118,11 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
     }
     setBusy(true);
     try {
-      const r = await sendJson<{ commit: CommitRow }>("POST", `/api/networks/${network.id}/commits`, { parent: headId ?? null, text: draft, message });
+      const r = await sendJson<{ commit: CommitRow }>("POST", `/api/networks/${network.id}/commits`, {
+        parent: headId ?? null,
+        text: draft,
+        message,
+      });
       await history.mutate();
       setSelectedId(r.commit.id);
       setDraft(null);
@@ -116,7 +130,9 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
       setMessage("");
       setNotice({
         kind: r.commit.ok ? "ok" : "problem",
-        text: r.commit.ok ? `Committed ${r.commit.id.slice(0, 8)}.` : `Committed ${r.commit.id.slice(0, 8)} with ${r.commit.errorCount} error(s): it can be kept but not run.`,
+        text: r.commit.ok
+          ? `Committed ${r.commit.id.slice(0, 8)}.`
+          : `Committed ${r.commit.id.slice(0, 8)} with ${r.commit.errorCount} error(s): it can be kept but not run.`,
       });
     } catch (e) {
       setNotice({ kind: "problem", text: (e as Error).message });
@@ -203,7 +219,12 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
                 disabled={!viewingHead}
                 className="min-w-40 flex-1 rounded border border-stone-300 bg-white px-2 py-1 text-sm disabled:bg-stone-100"
               />
-              <button type="submit" disabled={busy || !viewingHead || !dirty} title="Ctrl+S / ⌘S" className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50">
+              <button
+                type="submit"
+                disabled={busy || !viewingHead || !dirty}
+                title="Ctrl+S / ⌘S"
+                className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50"
+              >
                 Commit
               </button>
             </form>
@@ -220,12 +241,20 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
             Run
           </button>
           {selectedId ? (
-            <a href={`/api/commits/${selectedId}?download`} download className="text-sm text-stone-600 hover:text-moss-700">
+            <a
+              href={`/api/commits/${selectedId}?download`}
+              download
+              className="text-sm text-stone-600 hover:text-moss-700"
+            >
               Download
             </a>
           ) : null}
         </div>
-        {runBlocked && selectedCommit ? <p className="text-xs text-stone-500" data-slot="run-blocked">Run: {runBlocked}.</p> : null}
+        {runBlocked && selectedCommit ? (
+          <p className="text-xs text-stone-500" data-slot="run-blocked">
+            Run: {runBlocked}.
+          </p>
+        ) : null}
         {!viewingHead && selectedCommit ? (
           <div className="flex flex-wrap items-center gap-3 rounded border border-stone-300 bg-stone-100 px-3 py-2 text-sm">
             <span>
@@ -243,8 +272,12 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
             ) : null}
           </div>
         ) : null}
-        {loading || (selectedId !== null && !selected.data && !selected.error) ? <p className="text-xs text-stone-500">Loading the text…</p> : null}
-        {selected.error ? <p className="text-sm text-ember-500">Could not load the commit: {(selected.error as Error).message}</p> : null}
+        {loading || (selectedId !== null && !selected.data && !selected.error) ? (
+          <p className="text-xs text-stone-500">Loading the text…</p>
+        ) : null}
+        {selected.error ? (
+          <p className="text-sm text-ember-500">Could not load the commit: {(selected.error as Error).message}</p>
+        ) : null}
         <NetworkEditor
           value={shown}
           onChange={onChange}
@@ -255,10 +288,19 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
           className="h-[60vh] min-h-80 overflow-hidden rounded border border-stone-300 bg-white"
         />
         <div className="flex flex-wrap items-center gap-4 text-xs" aria-live="polite">
-          <span data-slot="diagnostic-count" className={errors ? "text-ember-500" : warnings ? "text-amber-700" : "text-moss-700"}>
-            {errors || warnings ? `${errors} error${errors === 1 ? "" : "s"}, ${warnings} warning${warnings === 1 ? "" : "s"}` : "no problems"}
+          <span
+            data-slot="diagnostic-count"
+            className={errors ? "text-ember-500" : warnings ? "text-amber-700" : "text-moss-700"}
+          >
+            {errors || warnings
+              ? `${errors} error${errors === 1 ? "" : "s"}, ${warnings} warning${warnings === 1 ? "" : "s"}`
+              : "no problems"}
           </span>
-          {dirty ? <span className="text-amber-700" data-slot="dirty">uncommitted edits</span> : null}
+          {dirty ? (
+            <span className="text-amber-700" data-slot="dirty">
+              uncommitted edits
+            </span>
+          ) : null}
           <span className="text-stone-500">Ctrl+S commit · Ctrl+Enter run · Ctrl+Space complete</span>
         </div>
         {diagnostics.length ? (
@@ -271,7 +313,10 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
           </ul>
         ) : null}
         {notice ? (
-          <p role={notice.kind === "problem" ? "alert" : "status"} className={`text-sm ${notice.kind === "problem" ? "text-ember-500" : "text-moss-700"}`}>
+          <p
+            role={notice.kind === "problem" ? "alert" : "status"}
+            className={`text-sm ${notice.kind === "problem" ? "text-ember-500" : "text-moss-700"}`}
+          >
             {notice.text}
           </p>
         ) : null}
@@ -280,7 +325,10 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
         <HistoryPanel commits={commits} headId={headId} selectedId={selectedId} onOpen={open} />
         <RunsPanel runs={runs.data?.runs} commitId={selectedId} onCanceled={() => void runs.mutate()} canRun={canRun} />
         {commits.length > 1 ? (
-          <Link href={`/w/${workspaceSlug}/n/${network.slug}/compare`} className="block text-sm text-moss-700 hover:underline">
+          <Link
+            href={`/w/${workspaceSlug}/n/${network.slug}/compare`}
+            className="block text-sm text-moss-700 hover:underline"
+          >
             Compare commits →
           </Link>
         ) : null}
@@ -289,7 +337,17 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
   );
 }
 
-function HistoryPanel({ commits, headId, selectedId, onOpen }: { commits: CommitSummary[]; headId: string | null; selectedId: string | null; onOpen(id: string): void }) {
+function HistoryPanel({
+  commits,
+  headId,
+  selectedId,
+  onOpen,
+}: {
+  commits: CommitSummary[];
+  headId: string | null;
+  selectedId: string | null;
+  onOpen(id: string): void;
+}) {
   return (
     <section aria-labelledby="history-heading" className="space-y-2">
       <h2 id="history-heading" className="text-sm font-semibold">
@@ -298,7 +356,10 @@ function HistoryPanel({ commits, headId, selectedId, onOpen }: { commits: Commit
       {commits.length === 0 ? (
         <p className="text-sm text-stone-500">No commits yet.</p>
       ) : (
-        <ol aria-label="Commits" className="max-h-80 divide-y divide-stone-100 overflow-auto rounded border border-stone-200 bg-white">
+        <ol
+          aria-label="Commits"
+          className="max-h-80 divide-y divide-stone-100 overflow-auto rounded border border-stone-200 bg-white"
+        >
           {commits.map((c) => (
             <li key={c.id}>
               <button
@@ -313,10 +374,13 @@ function HistoryPanel({ commits, headId, selectedId, onOpen }: { commits: Commit
                 </span>
                 <span className="flex items-baseline justify-between gap-2 text-xs text-stone-500">
                   <span>
-                    {c.authorName} · {new Date(c.createdAt).toLocaleString("en-GB", { dateStyle: "short", timeStyle: "short" })}
+                    {c.authorName} ·{" "}
+                    {new Date(c.createdAt).toLocaleString("en-GB", { dateStyle: "short", timeStyle: "short" })}
                   </span>
                   <span>
-                    {c.id === headId ? <span className="mr-1 rounded bg-moss-100 px-1 text-moss-700">newest</span> : null}
+                    {c.id === headId ? (
+                      <span className="mr-1 rounded bg-moss-100 px-1 text-moss-700">newest</span>
+                    ) : null}
                     {c.ok ? null : <span className="text-ember-500">{c.errorCount} error(s)</span>}
                   </span>
                 </span>
@@ -341,7 +405,17 @@ function HistoryReview({ commitId }: { commitId: string }) {
   );
 }
 
-function RunsPanel({ runs, commitId, onCanceled, canRun }: { runs: RunRow[] | undefined; commitId: string | null; onCanceled(): void; canRun: boolean }) {
+function RunsPanel({
+  runs,
+  commitId,
+  onCanceled,
+  canRun,
+}: {
+  runs: RunRow[] | undefined;
+  commitId: string | null;
+  onCanceled(): void;
+  canRun: boolean;
+}) {
   const list = useMemo(() => runs ?? [], [runs]);
   return (
     <section aria-labelledby="runs-heading" className="space-y-2">

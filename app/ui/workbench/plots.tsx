@@ -47,7 +47,11 @@ export interface LinePlotProps {
  * passed unchanged. With marks, x is the sorted union; a value missing at an
  * added x is `undefined`, which uPlot joins over (only `null` breaks a line).
  */
-export function alignMarks(x: number[], curves: Curve[], marks: Marks[]): { x: number[]; curves: (number | null | undefined)[][]; marks: (number | undefined)[][] } {
+export function alignMarks(
+  x: number[],
+  curves: Curve[],
+  marks: Marks[],
+): { x: number[]; curves: (number | null | undefined)[][]; marks: (number | undefined)[][] } {
   if (marks.length === 0) return { x, curves: curves.map((c) => c.values), marks: [] };
   const xs = [...new Set([...x, ...marks.flatMap((m) => m.x)])].filter(Number.isFinite).sort((a, b) => a - b);
   const at = new Map(xs.map((v, i) => [v, i]));
@@ -67,14 +71,27 @@ function axisValues(unit: string | undefined) {
 }
 
 /** Curves over a shared x axis. Non-positive values are dropped on a log axis. */
-export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false, logY = false, points = false, height = 300, marks = NO_MARKS }: LinePlotProps) {
+export function LinePlot({
+  title,
+  x,
+  xLabel,
+  xUnit,
+  curves,
+  yUnit,
+  logX = false,
+  logY = false,
+  points = false,
+  height = 300,
+  marks = NO_MARKS,
+}: LinePlotProps) {
   const host = useRef<HTMLDivElement>(null);
   useEffect(() => {
     const el = host.current;
     if (!el || x.length === 0) return;
     let plot: uPlotType | null = null;
     let gone = false;
-    const clean = (v: number | null | undefined, log: boolean) => (v === undefined ? undefined : v === null || !Number.isFinite(v) || (log && v <= 0) ? null : v);
+    const clean = (v: number | null | undefined, log: boolean) =>
+      v === undefined ? undefined : v === null || !Number.isFinite(v) || (log && v <= 0) ? null : v;
     const aligned = alignMarks(x, curves, marks);
     const xs = logX ? aligned.x.map((v) => (v > 0 ? v : NaN)) : aligned.x;
     void import("uplot").then(({ default: uPlot }) => {
@@ -94,7 +111,11 @@ export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false,
             label: c.label,
             stroke: CURVE_COLOURS[i % CURVE_COLOURS.length],
             width: points ? 0 : 1.75,
-            points: { show: points || x.length < 40, size: points ? 4 : 5, fill: CURVE_COLOURS[i % CURVE_COLOURS.length] },
+            points: {
+              show: points || x.length < 40,
+              size: points ? 4 : 5,
+              fill: CURVE_COLOURS[i % CURVE_COLOURS.length],
+            },
             value: (_u: uPlotType, v: number | null) => (v == null ? "—" : formatEng(v, yUnit ?? "", 4)),
           })),
           ...marks.map((m) => ({
@@ -107,7 +128,11 @@ export function LinePlot({ title, x, xLabel, xUnit, curves, yUnit, logX = false,
         ],
         legend: { live: true },
       };
-      const data = [xs, ...aligned.curves.map((c) => c.map((v) => clean(v, logY))), ...aligned.marks.map((m) => m.map((v) => clean(v, logY)))] as uPlotType.AlignedData;
+      const data = [
+        xs,
+        ...aligned.curves.map((c) => c.map((v) => clean(v, logY))),
+        ...aligned.marks.map((m) => m.map((v) => clean(v, logY))),
+      ] as uPlotType.AlignedData;
       plot = new uPlot(opts, data, el);
     });
     const resize = () => plot?.setSize({ width: Math.max(320, el.clientWidth), height });
@@ -158,10 +183,20 @@ export function Histogram({ title, values, unit }: { title: string; values: numb
           width: Math.max(320, el.clientWidth),
           height: 260,
           scales: { x: { time: false }, y: { range: (_u, _min, max) => [0, Math.max(1, max) * 1.1] } },
-          axes: [{ values: axisValues(unit), size: 40 }, { label: "samples", size: 50 }],
+          axes: [
+            { values: axisValues(unit), size: 40 },
+            { label: "samples", size: 50 },
+          ],
           series: [
             { label: title, value: (_u, v) => (v == null ? "—" : formatEng(v, unit ?? "", 4)) },
-            { label: "samples", fill: "#3f7d5a99", stroke: CURVE_COLOURS[0], width: 1, paths: uPlot.paths.bars!({ size: [0.95, Infinity], align: 0 }), points: { show: false } },
+            {
+              label: "samples",
+              fill: "#3f7d5a99",
+              stroke: CURVE_COLOURS[0],
+              width: 1,
+              paths: uPlot.paths.bars!({ size: [0.95, Infinity], align: 0 }),
+              points: { show: false },
+            },
           ],
         },
         [centres, counts],
@@ -222,7 +257,8 @@ export function HeatMap({ title, values, unit, rowLabel, colLabel, log = false }
     for (let i = 0; i < rows; i++) {
       for (let j = 0; j < cols; j++) {
         const v = values[i][j];
-        g.fillStyle = v === null || !Number.isFinite(v) || (log && v <= 0) ? "#ddd" : mapColour((tr(v) - tr(lo)) / span);
+        g.fillStyle =
+          v === null || !Number.isFinite(v) || (log && v <= 0) ? "#ddd" : mapColour((tr(v) - tr(lo)) / span);
         g.fillRect(j * cell, i * cell, cell, cell);
       }
     }
@@ -231,7 +267,11 @@ export function HeatMap({ title, values, unit, rowLabel, colLabel, log = false }
       const j = Math.floor(((e.clientX - r.left) / r.width) * cols);
       const i = Math.floor(((e.clientY - r.top) / r.height) * rows);
       const v = values[i]?.[j];
-      if (readout.current) readout.current.textContent = v === undefined ? "" : `${rowLabel} ${i}, ${colLabel} ${j}: ${v === null ? "—" : formatEng(v, unit ?? "", 4)}`;
+      if (readout.current)
+        readout.current.textContent =
+          v === undefined
+            ? ""
+            : `${rowLabel} ${i}, ${colLabel} ${j}: ${v === null ? "—" : formatEng(v, unit ?? "", 4)}`;
     };
     c.addEventListener("mousemove", move);
     return () => c.removeEventListener("mousemove", move);
@@ -240,10 +280,20 @@ export function HeatMap({ title, values, unit, rowLabel, colLabel, log = false }
     <figure className="space-y-2">
       <figcaption className="text-sm font-medium">{title}</figcaption>
       <div className="flex items-start gap-4">
-        <canvas ref={canvas} role="img" aria-label={title} data-slot="heat-map" className="max-w-full border border-stone-300" style={{ imageRendering: "pixelated", width: "min(480px, 100%)" }} />
+        <canvas
+          ref={canvas}
+          role="img"
+          aria-label={title}
+          data-slot="heat-map"
+          className="max-w-full border border-stone-300"
+          style={{ imageRendering: "pixelated", width: "min(480px, 100%)" }}
+        />
         <div className="flex flex-col items-center gap-1 text-xs text-stone-600">
           <span>{formatEng(hi, unit ?? "")}</span>
-          <div className="h-40 w-4 rounded" style={{ background: `linear-gradient(to top, ${[0, 0.33, 0.66, 1].map(mapColour).join(",")})` }} />
+          <div
+            className="h-40 w-4 rounded"
+            style={{ background: `linear-gradient(to top, ${[0, 0.33, 0.66, 1].map(mapColour).join(",")})` }}
+          />
           <span>{formatEng(lo, unit ?? "")}</span>
           {log ? <span>log scale</span> : null}
         </div>

@@ -12,7 +12,10 @@ const STYLE: Record<RunState, string> = {
 /** A run's state as a small label. */
 export function RunStateBadge({ state }: { state: RunState }) {
   return (
-    <span data-state={state} className={`inline-block rounded border px-1.5 py-0.5 text-xs font-medium ${STYLE[state]}`}>
+    <span
+      data-state={state}
+      className={`inline-block rounded border px-1.5 py-0.5 text-xs font-medium ${STYLE[state]}`}
+    >
       {state}
     </span>
   );
@@ -44,8 +47,8 @@ export function ProgressBar({ done, total, label = "Run progress" }: { done: num
 export function ModelCaution() {
   return (
     <p role="note" className="rounded border border-amber-300 bg-amber-50 px-3 py-2 text-sm text-amber-900">
-      <strong>Results are model estimates.</strong> Runnel states its model and its limits below; silicon must be verified by
-      measurement, and a foundry&apos;s models and design rules take precedence over Runnel&apos;s defaults.
+      <strong>Results are model estimates.</strong> Runnel states its model and its limits below; silicon must be
+      verified by measurement, and a foundry&apos;s models and design rules take precedence over Runnel&apos;s defaults.
     </p>
   );
 }

@@ -68,14 +68,25 @@ export function RunView({ runId, canRun }: RunViewProps) {
             {run.startedAt && run.finishedAt ? ` · took ${formatDuration(run.finishedAt - run.startedAt)}` : ""}
           </span>
           {live && canRun ? (
-            <button type="button" onClick={cancel} className="ml-auto rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50">
+            <button
+              type="button"
+              onClick={cancel}
+              className="ml-auto rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50"
+            >
               Cancel run
             </button>
           ) : null}
         </div>
         <ProgressBar done={run.pointsDone} total={run.pointsTotal} />
         {run.reason ? (
-          <p className={run.state === "failed" || run.state === "interrupted" ? "text-sm text-ember-500" : "text-sm text-stone-600"} data-slot="run-reason">
+          <p
+            className={
+              run.state === "failed" || run.state === "interrupted"
+                ? "text-sm text-ember-500"
+                : "text-sm text-stone-600"
+            }
+            data-slot="run-reason"
+          >
             {run.reason}
           </p>
         ) : null}
@@ -85,7 +96,11 @@ export function RunView({ runId, canRun }: RunViewProps) {
       {hasResults ? (
         <>
           <ExportLinks runId={runId} />
-          {series.data ? <Results runId={runId} run={run} series={series.data.series} /> : <p className="text-stone-500">Loading results…</p>}
+          {series.data ? (
+            <Results runId={runId} run={run} series={series.data.series} />
+          ) : (
+            <p className="text-stone-500">Loading results…</p>
+          )}
         </>
       ) : !live ? (
         <p className="text-stone-600">This run stored no results.</p>
@@ -95,10 +110,27 @@ export function RunView({ runId, canRun }: RunViewProps) {
 }
 
 function ModelPanel({ run, swept }: { run: RunRow; swept: string[] }) {
-  const m = run.model as { model?: string; kappa?: number; temp?: number; ut?: number; i0?: number; vt0?: number | null; ispec?: number | null; devices?: number; nodes?: number } | null;
-  const method = run.newtonPoints ? "damped Newton" : run.solverReason ? "one sparse symmetric solve per point (pseudo-voltages)" : "—";
+  const m = run.model as {
+    model?: string;
+    kappa?: number;
+    temp?: number;
+    ut?: number;
+    i0?: number;
+    vt0?: number | null;
+    ispec?: number | null;
+    devices?: number;
+    nodes?: number;
+  } | null;
+  const method = run.newtonPoints
+    ? "damped Newton"
+    : run.solverReason
+      ? "one sparse symmetric solve per point (pseudo-voltages)"
+      : "—";
   return (
-    <section aria-label="Model and solver" className="grid gap-4 rounded border border-stone-200 bg-white p-4 md:grid-cols-2">
+    <section
+      aria-label="Model and solver"
+      className="grid gap-4 rounded border border-stone-200 bg-white p-4 md:grid-cols-2"
+    >
       <div className="space-y-1 text-sm">
         <h2 className="font-medium">Model</h2>
         {m ? (
@@ -114,9 +146,12 @@ function ModelPanel({ run, swept }: { run: RunRow; swept: string[] }) {
             </dd>
             <dt className="text-stone-500">I₀ (W/L = 1)</dt>
             <dd>{formatEng(m.i0 ?? NaN, "A")}</dd>
-            <dt className="text-stone-500">V<sub>T0</sub>, I<sub>spec</sub></dt>
+            <dt className="text-stone-500">
+              V<sub>T0</sub>, I<sub>spec</sub>
+            </dt>
             <dd>
-              {m.vt0 == null ? "not set" : formatEng(m.vt0, "V")}, {m.ispec == null ? "not set (no inversion coefficients)" : formatEng(m.ispec, "A")}
+              {m.vt0 == null ? "not set" : formatEng(m.vt0, "V")},{" "}
+              {m.ispec == null ? "not set (no inversion coefficients)" : formatEng(m.ispec, "A")}
             </dd>
             <dt className="text-stone-500">size</dt>
             <dd>
@@ -153,12 +188,21 @@ function Validity({ run }: { run: RunRow }) {
   const items: string[] = [];
   const ispec = (run.model as { ispec?: number | null } | null)?.ispec;
   if (ispec == null) items.push("Inversion coefficients are unknown (set ispec and vt0 to check weak inversion).");
-  else if (run.devicesNotWeak > 0) items.push(`${run.devicesNotWeak.toLocaleString("en-US")} device(s) leave weak inversion (IC > ${WEAK_IC}) at some point: the exponential model does not hold there.`);
-  if (run.devicesNotSaturated! > 0) items.push(`${run.devicesNotSaturated!.toLocaleString("en-US")} device(s) are not saturated (V_DS ≤ 4 U_T) at some point.`);
-  if (run.newtonPoints) items.push("The network is outside the linear class: solved by damped Newton iteration, not exactly.");
-  for (const w of run.warnings ?? []) items.push(`${w.message} (${w.points} point${w.points === 1 ? "" : "s"}, first at point ${w.firstPoint})`);
+  else if (run.devicesNotWeak > 0)
+    items.push(
+      `${run.devicesNotWeak.toLocaleString("en-US")} device(s) leave weak inversion (IC > ${WEAK_IC}) at some point: the exponential model does not hold there.`,
+    );
+  if (run.devicesNotSaturated! > 0)
+    items.push(
+      `${run.devicesNotSaturated!.toLocaleString("en-US")} device(s) are not saturated (V_DS ≤ 4 U_T) at some point.`,
+    );
+  if (run.newtonPoints)
+    items.push("The network is outside the linear class: solved by damped Newton iteration, not exactly.");
+  for (const w of run.warnings ?? [])
+    items.push(`${w.message} (${w.points} point${w.points === 1 ? "" : "s"}, first at point ${w.firstPoint})`);
   for (const f of (run.failures ?? []).slice(0, 5)) items.push(`Not solved: ${f.message}`);
-  if (items.length === 0) return <p className="text-moss-700">Every device stays in weak inversion and saturation at every point.</p>;
+  if (items.length === 0)
+    return <p className="text-moss-700">Every device stays in weak inversion and saturation at every point.</p>;
   return (
     <ul aria-label="Validity warnings" className="list-disc space-y-0.5 pl-5 text-amber-900">
       {items.map((t, i) => (
@@ -201,9 +245,17 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
   const [sample, setSample] = useState(0);
   const point = Math.min(gridPoint * samples + sample, Math.max(0, series.point.length - 1));
   const [tab, setTab] = useState<Tab>(series.sweeps.length ? "probes" : "operating");
-  const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, { revalidateOnFocus: false });
-  const bytes = useSWR<ArrayBuffer>(`/api/runs/${runId}/results?view=point&point=${point}&format=binary`, getBytes, { keepPreviousData: true, revalidateOnFocus: false });
-  const current = useMemo(() => (layout.data && bytes.data ? pointData(layout.data.layout, decodePoint(bytes.data)) : undefined), [layout.data, bytes.data]);
+  const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, {
+    revalidateOnFocus: false,
+  });
+  const bytes = useSWR<ArrayBuffer>(`/api/runs/${runId}/results?view=point&point=${point}&format=binary`, getBytes, {
+    keepPreviousData: true,
+    revalidateOnFocus: false,
+  });
+  const current = useMemo(
+    () => (layout.data && bytes.data ? pointData(layout.data.layout, decodePoint(bytes.data)) : undefined),
+    [layout.data, bytes.data],
+  );
   const bench = useBenchData(run.networkId, runId);
   const tabs: [Tab, string][] = [
     ["probes", "Probes"],
@@ -220,7 +272,14 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
           {gridPoints > 1 ? (
             <label className="flex items-center gap-2">
               <span className="text-stone-600">sweep point</span>
-              <input type="range" min={0} max={gridPoints - 1} value={gridPoint} onChange={(e) => setGridPoint(Number(e.target.value))} aria-label="Sweep point" />
+              <input
+                type="range"
+                min={0}
+                max={gridPoints - 1}
+                value={gridPoint}
+                onChange={(e) => setGridPoint(Number(e.target.value))}
+                aria-label="Sweep point"
+              />
               <span className="tabular w-16">
                 {gridPoint + 1} / {gridPoints}
               </span>
@@ -229,12 +288,22 @@ function Results({ runId, run, series }: { runId: string; run: RunRow; series: S
           {samples > 1 ? (
             <label className="flex items-center gap-2">
               <span className="text-stone-600">mismatch sample</span>
-              <input type="number" min={0} max={samples - 1} value={sample} onChange={(e) => setSample(Math.max(0, Math.min(samples - 1, Number(e.target.value) || 0)))} className="w-20 rounded border border-stone-300 px-1" aria-label="Mismatch sample" />
+              <input
+                type="number"
+                min={0}
+                max={samples - 1}
+                value={sample}
+                onChange={(e) => setSample(Math.max(0, Math.min(samples - 1, Number(e.target.value) || 0)))}
+                className="w-20 rounded border border-stone-300 px-1"
+                aria-label="Mismatch sample"
+              />
             </label>
           ) : null}
           {current ? (
             <span className="tabular text-stone-700" data-slot="point-params">
-              {series.sweeps.map((s) => `${s.param} = ${formatEng(current.params[s.param], paramUnit(s.param), 4)}`).join(", ")}
+              {series.sweeps
+                .map((s) => `${s.param} = ${formatEng(current.params[s.param], paramUnit(s.param), 4)}`)
+                .join(", ")}
               {samples > 1 ? ` · sample ${current.sample}` : ""}
             </span>
           ) : null}
@@ -317,7 +386,9 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
         idx[k] = rest % sweeps[k].values.length;
         rest = Math.floor(rest / sweeps[k].values.length);
       }
-      const others = sweeps.map((sw, k) => (k === xSweep ? null : `${sw.param} = ${formatEng(sw.values[idx[k]], paramUnit(sw.param), 3)}`)).filter((x): x is string => x !== null);
+      const others = sweeps
+        .map((sw, k) => (k === xSweep ? null : `${sw.param} = ${formatEng(sw.values[idx[k]], paramUnit(sw.param), 3)}`))
+        .filter((x): x is string => x !== null);
       const key = others.join(", ") || series.probes[probe];
       let c = curves.get(key);
       if (!c) {
@@ -330,7 +401,13 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
     return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(xs.param), curves: [...curves.values()] };
   }, [series, probe, samples, xSweep]);
   // Bench data is drawn on the probe it is matched to; the overlay route only answers for a run of one sweep.
-  const onPlot = useMemo(() => (bench.overlay && series.sweeps.length === 1 ? bench.overlay.series.filter((s) => s.against === series.probes[probe]) : []), [bench.overlay, series, probe]);
+  const onPlot = useMemo(
+    () =>
+      bench.overlay && series.sweeps.length === 1
+        ? bench.overlay.series.filter((s) => s.against === series.probes[probe])
+        : [],
+    [bench.overlay, series, probe],
+  );
   const marks = useMemo(() => measuredMarks(bench, onPlot), [bench, onPlot]);
   const rows = useMemo(
     () =>
@@ -348,14 +425,42 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
   const columns = useMemo<ColumnDef<Row>[]>(
     () => [
       { id: "name", header: "point", accessorFn: (r) => Number(r.name), cell: (c) => c.getValue<number>() },
-      ...(series.mismatch ? [{ id: "sample", header: "sample", accessorFn: (r: Row) => r.sample } as ColumnDef<Row>] : []),
-      ...series.sweeps.map((s, j) => ({ id: `param-${s.param}`, header: s.param, accessorFn: (r: Row) => r.params[j] ?? NaN, cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, paramUnit(s.param), 4) }) as ColumnDef<Row>),
-      ...series.probes.map((name, j) => ({ id: `probe-${name}`, header: name, accessorFn: (r: Row) => r.probes[j] ?? NaN, cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, "", 4) }) as ColumnDef<Row>),
-      { id: "residual", header: "residual", accessorFn: (r) => r.residual ?? NaN, cell: (c) => formatEng(c.getValue<number>(), "A", 2) },
+      ...(series.mismatch
+        ? [{ id: "sample", header: "sample", accessorFn: (r: Row) => r.sample } as ColumnDef<Row>]
+        : []),
+      ...series.sweeps.map(
+        (s, j) =>
+          ({
+            id: `param-${s.param}`,
+            header: s.param,
+            accessorFn: (r: Row) => r.params[j] ?? NaN,
+            cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, paramUnit(s.param), 4),
+          }) as ColumnDef<Row>,
+      ),
+      ...series.probes.map(
+        (name, j) =>
+          ({
+            id: `probe-${name}`,
+            header: name,
+            accessorFn: (r: Row) => r.probes[j] ?? NaN,
+            cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, "", 4),
+          }) as ColumnDef<Row>,
+      ),
+      {
+        id: "residual",
+        header: "residual",
+        accessorFn: (r) => r.residual ?? NaN,
+        cell: (c) => formatEng(c.getValue<number>(), "A", 2),
+      },
     ],
     [series],
   );
-  if (series.probes.length === 0) return <p className="text-stone-600">This network has no probes. Add `probe NAME = …` statements to follow outputs over a sweep.</p>;
+  if (series.probes.length === 0)
+    return (
+      <p className="text-stone-600">
+        This network has no probes. Add `probe NAME = …` statements to follow outputs over a sweep.
+      </p>
+    );
   return (
     <div className="space-y-4">
       {plot ? (
@@ -365,7 +470,12 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
             {series.sweeps.length > 1 ? (
               <label className="flex items-center gap-2">
                 along
-                <select value={xSweep} onChange={(e) => setXSweep(Number(e.target.value))} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label="Sweep along the x axis">
+                <select
+                  value={xSweep}
+                  onChange={(e) => setXSweep(Number(e.target.value))}
+                  className="rounded border border-stone-300 bg-white px-1 py-0.5"
+                  aria-label="Sweep along the x axis"
+                >
                   {series.sweeps.map((sw, k) => (
                     <option key={sw.param} value={k}>
                       {sw.param}
@@ -378,12 +488,23 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
               <input type="checkbox" checked={logX} onChange={(e) => setLogX(e.target.checked)} /> log {plot.xLabel}
             </label>
             <label className="flex items-center gap-1">
-              <input type="checkbox" checked={logY} onChange={(e) => setLogY(e.target.checked)} /> log {series.probes[probe]}
+              <input type="checkbox" checked={logY} onChange={(e) => setLogY(e.target.checked)} /> log{" "}
+              {series.probes[probe]}
             </label>
             {samples > 1 ? <span className="text-stone-500">mean over {samples} mismatch samples</span> : null}
             <BenchDataSelect bench={bench} onChoose={() => setProbeChoice(null)} />
           </div>
-          <LinePlot title={`${series.probes[probe]} over ${plot.xLabel}`} x={plot.x} xLabel={plot.xLabel} xUnit={plot.xUnit} curves={plot.curves} logX={logX} logY={logY} marks={marks} yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : undefined} />
+          <LinePlot
+            title={`${series.probes[probe]} over ${plot.xLabel}`}
+            x={plot.x}
+            xLabel={plot.xLabel}
+            xUnit={plot.xUnit}
+            curves={plot.curves}
+            logX={logX}
+            logY={logY}
+            marks={marks}
+            yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : undefined}
+          />
           <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
         </div>
       ) : null}
@@ -393,21 +514,34 @@ function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }
 }
 
 function OperatingPanel({ point }: { point: PointData }) {
-  const nodes = useMemo(() => point.nodes.names.map((name, k) => ({ name, rail: point.nodes.isRail[k], voltage: point.nodes.voltage[k] })), [point]);
+  const nodes = useMemo(
+    () => point.nodes.names.map((name, k) => ({ name, rail: point.nodes.isRail[k], voltage: point.nodes.voltage[k] })),
+    [point],
+  );
   const rails = useMemo(() => point.rails.names.map((name, k) => ({ name, current: point.rails.current[k] })), [point]);
   const probes = useMemo(() => point.probes.names.map((name, k) => ({ name, value: point.probes.value[k] })), [point]);
   const nodeCols = useMemo<ColumnDef<(typeof nodes)[number]>[]>(
     () => [
       { id: "name", header: "node", accessorKey: "name" },
       { id: "kind", header: "kind", accessorFn: (r) => (r.rail ? "rail" : "internal") },
-      { id: "voltage", header: "voltage", accessorFn: (r) => r.voltage, cell: (c) => formatEng(c.getValue<number>(), "V", 4) },
+      {
+        id: "voltage",
+        header: "voltage",
+        accessorFn: (r) => r.voltage,
+        cell: (c) => formatEng(c.getValue<number>(), "V", 4),
+      },
     ],
     [],
   );
   const railCols = useMemo<ColumnDef<(typeof rails)[number]>[]>(
     () => [
       { id: "name", header: "rail", accessorKey: "name" },
-      { id: "current", header: "current delivered", accessorFn: (r) => r.current, cell: (c) => formatEng(c.getValue<number>(), "A", 4) },
+      {
+        id: "current",
+        header: "current delivered",
+        accessorFn: (r) => r.current,
+        cell: (c) => formatEng(c.getValue<number>(), "A", 4),
+      },
     ],
     [],
   );
@@ -432,11 +566,18 @@ function OperatingPanel({ point }: { point: PointData }) {
         {probes.length ? (
           <div className="space-y-2">
             <h3 className="text-sm font-medium">Probes</h3>
-            <DataTable label="Probes" rows={probes} columns={probeCols} filterPlaceholder="Filter probes" pageSize={10} />
+            <DataTable
+              label="Probes"
+              rows={probes}
+              columns={probeCols}
+              filterPlaceholder="Filter probes"
+              pageSize={10}
+            />
           </div>
         ) : null}
         <p className="tabular text-xs text-stone-500">
-          solver: {point.solver.method}, {point.solver.iterations} iteration(s), residual {formatEng(point.solver.residual, "A", 2)}
+          solver: {point.solver.method}, {point.solver.iterations} iteration(s), residual{" "}
+          {formatEng(point.solver.residual, "A", 2)}
         </p>
       </div>
     </div>
@@ -463,13 +604,26 @@ function DevicesPanel({ point }: { point: PointData }) {
     [point],
   );
   const [onlyFlagged, setOnlyFlagged] = useState(false);
-  const shown = useMemo(() => (onlyFlagged ? rows.filter((r) => !r.saturated || r.ic > WEAK_IC) : rows), [rows, onlyFlagged]);
+  const shown = useMemo(
+    () => (onlyFlagged ? rows.filter((r) => !r.saturated || r.ic > WEAK_IC) : rows),
+    [rows, onlyFlagged],
+  );
   const cols = useMemo<ColumnDef<(typeof rows)[number]>[]>(
     () => [
       { id: "name", header: "device", accessorKey: "name" },
       { id: "type", header: "type", accessorKey: "type" },
-      { id: "current", header: "current", accessorFn: (r) => r.current, cell: (c) => formatEng(c.getValue<number>(), "A", 4) },
-      { id: "ic", header: "inversion coeff.", accessorFn: (r) => r.ic, cell: (c) => formatNumber(c.getValue<number>(), 3) },
+      {
+        id: "current",
+        header: "current",
+        accessorFn: (r) => r.current,
+        cell: (c) => formatEng(c.getValue<number>(), "A", 4),
+      },
+      {
+        id: "ic",
+        header: "inversion coeff.",
+        accessorFn: (r) => r.ic,
+        cell: (c) => formatNumber(c.getValue<number>(), 3),
+      },
       { id: "region", header: "region", accessorFn: (r) => region(r.ic) },
       { id: "saturated", header: "saturated", accessorFn: (r) => (r.saturated ? "yes" : "no") },
     ],
@@ -478,9 +632,16 @@ function DevicesPanel({ point }: { point: PointData }) {
   return (
     <div className="space-y-2">
       <label className="flex items-center gap-2 text-sm">
-        <input type="checkbox" checked={onlyFlagged} onChange={(e) => setOnlyFlagged(e.target.checked)} /> only devices outside weak inversion or not saturated
+        <input type="checkbox" checked={onlyFlagged} onChange={(e) => setOnlyFlagged(e.target.checked)} /> only devices
+        outside weak inversion or not saturated
       </label>
-      <DataTable label="Devices" rows={shown} columns={cols} filterPlaceholder="Filter devices" rowClass={(r) => (!r.saturated || r.ic > WEAK_IC ? "bg-amber-50" : "")} />
+      <DataTable
+        label="Devices"
+        rows={shown}
+        columns={cols}
+        filterPlaceholder="Filter devices"
+        rowClass={(r) => (!r.saturated || r.ic > WEAK_IC ? "bg-amber-50" : "")}
+      />
     </div>
   );
 }
@@ -492,28 +653,66 @@ function profileStem(against: string): string | null {
 
 function ProfilePanel({ point, bench }: { point: PointData; bench: BenchData }) {
   const groups = useMemo(() => {
-    const nodes = indexedGroups(point.nodes.names).profiles.map((p) => ({ key: `node:${p.stem}`, label: `voltage(${p.stem}·)`, unit: "V", index: p.index, values: p.at.map((k) => point.nodes.voltage[k]) }));
-    const devs = indexedGroups(point.devices.names).profiles.map((p) => ({ key: `device:${p.stem}`, label: `current(${p.stem}·)`, unit: "A", index: p.index, values: p.at.map((k) => point.devices.current[k]) }));
+    const nodes = indexedGroups(point.nodes.names).profiles.map((p) => ({
+      key: `node:${p.stem}`,
+      label: `voltage(${p.stem}·)`,
+      unit: "V",
+      index: p.index,
+      values: p.at.map((k) => point.nodes.voltage[k]),
+    }));
+    const devs = indexedGroups(point.devices.names).profiles.map((p) => ({
+      key: `device:${p.stem}`,
+      label: `current(${p.stem}·)`,
+      unit: "A",
+      index: p.index,
+      values: p.at.map((k) => point.devices.current[k]),
+    }));
     // Indexed probes (i0, i1, … as a for loop writes them): what a profile overlay compares bench data with. Their unit is not stored.
-    const probes = indexedGroups(point.probes.names).profiles.map((p) => ({ key: `probe:${p.stem}`, label: `probe ${p.stem}·`, unit: "", index: p.index, values: p.at.map((k) => point.probes.value[k]) }));
+    const probes = indexedGroups(point.probes.names).profiles.map((p) => ({
+      key: `probe:${p.stem}`,
+      label: `probe ${p.stem}·`,
+      unit: "",
+      index: p.index,
+      values: p.at.map((k) => point.probes.value[k]),
+    }));
     return [...nodes, ...devs, ...probes];
   }, [point]);
   // null: follow the probes the chosen bench data is matched to (else the first current profile).
   const [key, setKey] = useState<string | null>(null);
   const [log, setLog] = useState(true);
-  const matchedKey = bench.overlay?.series.map((s) => profileStem(s.against)).find((stem) => stem !== null && groups.some((x) => x.key === `probe:${stem}`));
-  const g = groups.find((x) => x.key === key) ?? groups.find((x) => x.key === `probe:${matchedKey}`) ?? groups.find((x) => x.unit === "A") ?? groups[0];
+  const matchedKey = bench.overlay?.series
+    .map((s) => profileStem(s.against))
+    .find((stem) => stem !== null && groups.some((x) => x.key === `probe:${stem}`));
+  const g =
+    groups.find((x) => x.key === key) ??
+    groups.find((x) => x.key === `probe:${matchedKey}`) ??
+    groups.find((x) => x.unit === "A") ??
+    groups[0];
   // The overlay route answers with a profile only for an operating point; its series are drawn on the probes they are matched to.
-  const onPlot = useMemo(() => bench.overlay?.series.filter((s) => `probe:${profileStem(s.against)}` === g?.key) ?? [], [bench.overlay, g?.key]);
+  const onPlot = useMemo(
+    () => bench.overlay?.series.filter((s) => `probe:${profileStem(s.against)}` === g?.key) ?? [],
+    [bench.overlay, g?.key],
+  );
   const marks = useMemo(() => measuredMarks(bench, onPlot), [bench, onPlot]);
-  if (!g) return <p className="text-stone-600">No indexed names here: a profile needs nodes or devices named with an index (x1, x2, … as a for loop makes them).</p>;
+  if (!g)
+    return (
+      <p className="text-stone-600">
+        No indexed names here: a profile needs nodes or devices named with an index (x1, x2, … as a for loop makes
+        them).
+      </p>
+    );
   const curves: Curve[] = [{ label: g.label, values: g.unit === "A" ? g.values.map((v) => Math.abs(v)) : g.values }];
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
         <label className="flex items-center gap-2">
           profile of
-          <select value={g.key} onChange={(e) => setKey(e.target.value)} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label="Profile of">
+          <select
+            value={g.key}
+            onChange={(e) => setKey(e.target.value)}
+            className="rounded border border-stone-300 bg-white px-1 py-0.5"
+            aria-label="Profile of"
+          >
             {groups.map((x) => (
               <option key={x.key} value={x.key}>
                 {x.label} ({x.index.length})
@@ -527,7 +726,15 @@ function ProfilePanel({ point, bench }: { point: PointData; bench: BenchData }) 
         {g.unit === "A" ? <span className="text-stone-500">magnitude of the current</span> : null}
         <BenchDataSelect bench={bench} onChoose={() => setKey(null)} />
       </div>
-      <LinePlot title={`${g.label} along the index`} x={g.index} xLabel="index" curves={curves} yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : g.unit} logY={log} marks={marks} />
+      <LinePlot
+        title={`${g.label} along the index`}
+        x={g.index}
+        xLabel="index"
+        curves={curves}
+        yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : g.unit}
+        logY={log}
+        marks={marks}
+      />
       <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
     </div>
   );
@@ -535,12 +742,33 @@ function ProfilePanel({ point, bench }: { point: PointData; bench: BenchData }) 
 
 function MapPanel({ point, series }: { point: PointData; series: SeriesView }) {
   const maps = useMemo(() => {
-    const out: { key: string; label: string; unit: string; values: (number | null)[][]; rowLabel: string; colLabel: string }[] = [];
+    const out: {
+      key: string;
+      label: string;
+      unit: string;
+      values: (number | null)[][];
+      rowLabel: string;
+      colLabel: string;
+    }[] = [];
     for (const gr of indexedGroups(point.nodes.names).grids) {
-      out.push({ key: `node:${gr.stem}`, label: `voltage(${gr.stem}·_·)`, unit: "V", values: gr.at.map((row) => row.map((k) => (k < 0 ? null : point.nodes.voltage[k]))), rowLabel: "row", colLabel: "column" });
+      out.push({
+        key: `node:${gr.stem}`,
+        label: `voltage(${gr.stem}·_·)`,
+        unit: "V",
+        values: gr.at.map((row) => row.map((k) => (k < 0 ? null : point.nodes.voltage[k]))),
+        rowLabel: "row",
+        colLabel: "column",
+      });
     }
     for (const gr of indexedGroups(point.devices.names).grids) {
-      out.push({ key: `device:${gr.stem}`, label: `|current(${gr.stem}·_·)|`, unit: "A", values: gr.at.map((row) => row.map((k) => (k < 0 ? null : Math.abs(point.devices.current[k])))), rowLabel: "row", colLabel: "column" });
+      out.push({
+        key: `device:${gr.stem}`,
+        label: `|current(${gr.stem}·_·)|`,
+        unit: "A",
+        values: gr.at.map((row) => row.map((k) => (k < 0 ? null : Math.abs(point.devices.current[k])))),
+        rowLabel: "row",
+        colLabel: "column",
+      });
     }
     if (series.sweeps.length >= 2) {
       const [a, b] = series.sweeps.slice(-2);
@@ -548,8 +776,16 @@ function MapPanel({ point, series }: { point: PointData; series: SeriesView }) {
       series.probes.forEach((name, j) => {
         const vals = meanOverSamples(series.probeValues[j], samples);
         const rows: (number | null)[][] = [];
-        for (let i = 0; i < a.values.length; i++) rows.push(b.values.map((_, k) => vals[i * b.values.length + k] ?? null));
-        out.push({ key: `probe:${name}`, label: `${name} over ${a.param} × ${b.param}`, unit: "", values: rows, rowLabel: a.param, colLabel: b.param });
+        for (let i = 0; i < a.values.length; i++)
+          rows.push(b.values.map((_, k) => vals[i * b.values.length + k] ?? null));
+        out.push({
+          key: `probe:${name}`,
+          label: `${name} over ${a.param} × ${b.param}`,
+          unit: "",
+          values: rows,
+          rowLabel: a.param,
+          colLabel: b.param,
+        });
       });
     }
     return out;
@@ -557,13 +793,24 @@ function MapPanel({ point, series }: { point: PointData; series: SeriesView }) {
   const [key, setKey] = useState<string | null>(null);
   const [log, setLog] = useState(false);
   const m = maps.find((x) => x.key === key) ?? maps.find((x) => x.unit === "A") ?? maps[0];
-  if (!m) return <p className="text-stone-600">No 2-D grid here: a map needs names with two indices (n3_4, as nested for loops make them) or a grid of two sweeps.</p>;
+  if (!m)
+    return (
+      <p className="text-stone-600">
+        No 2-D grid here: a map needs names with two indices (n3_4, as nested for loops make them) or a grid of two
+        sweeps.
+      </p>
+    );
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
         <label className="flex items-center gap-2">
           map of
-          <select value={m.key} onChange={(e) => setKey(e.target.value)} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label="Map of">
+          <select
+            value={m.key}
+            onChange={(e) => setKey(e.target.value)}
+            className="rounded border border-stone-300 bg-white px-1 py-0.5"
+            aria-label="Map of"
+          >
             {maps.map((x) => (
               <option key={x.key} value={x.key}>
                 {x.label}
@@ -584,7 +831,10 @@ function SpreadPanel({ series, gridPoint }: { series: SeriesView; gridPoint: num
   const [probe, setProbe] = useState(0);
   const samples = series.mismatch?.runs ?? 1;
   const values = useMemo(
-    () => (series.probeValues[probe] ?? []).slice(gridPoint * samples, (gridPoint + 1) * samples).filter((v): v is number => v !== null),
+    () =>
+      (series.probeValues[probe] ?? [])
+        .slice(gridPoint * samples, (gridPoint + 1) * samples)
+        .filter((v): v is number => v !== null),
     [series, probe, gridPoint, samples],
   );
   const mean = values.reduce((a, b) => a + b, 0) / Math.max(1, values.length);
@@ -595,7 +845,8 @@ function SpreadPanel({ series, gridPoint }: { series: SeriesView; gridPoint: num
       <div className="flex flex-wrap items-center gap-4 text-sm">
         <ProbeSelect probes={series.probes} value={probe} onChange={setProbe} label="Probe to spread" />
         <span className="tabular text-stone-700">
-          {values.length} samples · mean {formatEng(mean, "", 4)} · σ {formatEng(sd, "", 3)} · σ/mean {formatNumber(sd / Math.abs(mean), 3)}
+          {values.length} samples · mean {formatEng(mean, "", 4)} · σ {formatEng(sd, "", 3)} · σ/mean{" "}
+          {formatNumber(sd / Math.abs(mean), 3)}
         </span>
       </div>
       <Histogram title={`${series.probes[probe]} over mismatch samples`} values={values} />
@@ -604,11 +855,26 @@ function SpreadPanel({ series, gridPoint }: { series: SeriesView; gridPoint: num
 }
 
 /** "probe [select]": which of the run's probes a view shows. */
-function ProbeSelect({ probes, value, onChange, label }: { probes: string[]; value: number; onChange(index: number): void; label: string }) {
+function ProbeSelect({
+  probes,
+  value,
+  onChange,
+  label,
+}: {
+  probes: string[];
+  value: number;
+  onChange(index: number): void;
+  label: string;
+}) {
   return (
     <label className="flex items-center gap-2">
       probe
-      <select value={value} onChange={(e) => onChange(Number(e.target.value))} className="rounded border border-stone-300 bg-white px-1 py-0.5" aria-label={label}>
+      <select
+        value={value}
+        onChange={(e) => onChange(Number(e.target.value))}
+        className="rounded border border-stone-300 bg-white px-1 py-0.5"
+        aria-label={label}
+      >
         {probes.map((p, i) => (
           <option key={p} value={i}>
             {p}

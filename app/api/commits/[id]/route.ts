@@ -24,6 +24,9 @@ export function GET(request: Request, ctx: Ctx) {
       });
     }
     // A commit never changes: the browser may keep it.
-    return Response.json({ commit: c, network: n }, { headers: { "cache-control": "private, max-age=31536000, immutable" } });
+    return Response.json(
+      { commit: c, network: n },
+      { headers: { "cache-control": "private, max-age=31536000, immutable" } },
+    );
   });
 }

@@ -36,7 +36,11 @@ export async function inviteMember(_prev: FormState | undefined, form: FormData)
       throw e;
     }
     revalidatePath(`/w/${workspace.slug}/members`);
-    return { status: 200, message: `Invitation sent to ${parsed.data.email} as ${parsed.data.role}.`, values: { role: parsed.data.role } };
+    return {
+      status: 200,
+      message: `Invitation sent to ${parsed.data.email} as ${parsed.data.role}.`,
+      values: { role: parsed.data.role },
+    };
   } catch (e) {
     return refusal(e, values);
   }
@@ -47,7 +51,9 @@ export async function changeMemberRole(_prev: FormState | undefined, form: FormD
   try {
     await checkActionOrigin();
     const { workspace } = authorizeSlug(await getActor(), "workspace.manage", field(form, "slug") ?? "");
-    const parsed = z.object({ userId: z.string().min(1), role: roleSchema }).safeParse({ userId: field(form, "userId"), role: field(form, "role") });
+    const parsed = z
+      .object({ userId: z.string().min(1), role: roleSchema })
+      .safeParse({ userId: field(form, "userId"), role: field(form, "role") });
     if (!parsed.success) return invalid(parsed.error, values);
     const member = changeRole(workspace.id, parsed.data.userId, parsed.data.role);
     revalidatePath(`/w/${workspace.slug}/members`);

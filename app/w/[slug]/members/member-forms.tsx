@@ -10,7 +10,13 @@ export function InviteForm({ slug }: { slug: string }) {
     <form action={action} className="space-y-4 rounded border border-stone-300 bg-white p-5" noValidate>
       <input type="hidden" name="slug" value={slug} />
       <FormMessage state={state} />
-      <Field label="E-mail address" name="email" type="email" state={state} hint="They get a link that works once and expires in 7 days." />
+      <Field
+        label="E-mail address"
+        name="email"
+        type="email"
+        state={state}
+        hint="They get a link that works once and expires in 7 days."
+      />
       <div className="flex items-center gap-3">
         <label htmlFor="invite-role" className="text-sm font-medium text-stone-700">
           Role
@@ -30,7 +36,17 @@ function InlineError({ state }: { state?: FormState }) {
   ) : null;
 }
 
-export function MemberRoleForm({ slug, userId, name, role }: { slug: string; userId: string; name: string; role: string }) {
+export function MemberRoleForm({
+  slug,
+  userId,
+  name,
+  role,
+}: {
+  slug: string;
+  userId: string;
+  name: string;
+  role: string;
+}) {
   const [state, action] = useActionState(changeMemberRole, undefined);
   return (
     <form action={action} className="space-y-1">
@@ -51,7 +67,11 @@ export function RemoveMemberButton({ slug, userId, name }: { slug: string; userI
     <form action={action}>
       <input type="hidden" name="slug" value={slug} />
       <input type="hidden" name="userId" value={userId} />
-      <button type="submit" aria-label={`Remove ${name}`} className="rounded border border-ember-500 px-2 py-1 text-xs text-ember-500 hover:bg-ember-50">
+      <button
+        type="submit"
+        aria-label={`Remove ${name}`}
+        className="rounded border border-ember-500 px-2 py-1 text-xs text-ember-500 hover:bg-ember-50"
+      >
         Remove
       </button>
       <InlineError state={state} />
@@ -64,7 +84,10 @@ export function LeaveButton({ slug }: { slug: string }) {
   return (
     <form action={action}>
       <input type="hidden" name="slug" value={slug} />
-      <button type="submit" className="rounded border border-stone-300 px-2 py-1 text-xs text-stone-700 hover:bg-stone-100">
+      <button
+        type="submit"
+        className="rounded border border-stone-300 px-2 py-1 text-xs text-stone-700 hover:bg-stone-100"
+      >
         Leave
       </button>
       <InlineError state={state} />
@@ -72,13 +95,25 @@ export function LeaveButton({ slug }: { slug: string }) {
   );
 }
 
-export function WithdrawInvitationButton({ slug, invitationId, email }: { slug: string; invitationId: string; email: string }) {
+export function WithdrawInvitationButton({
+  slug,
+  invitationId,
+  email,
+}: {
+  slug: string;
+  invitationId: string;
+  email: string;
+}) {
   const [state, action] = useActionState(revokeInvitation, undefined);
   return (
     <form action={action}>
       <input type="hidden" name="slug" value={slug} />
       <input type="hidden" name="invitationId" value={invitationId} />
-      <button type="submit" aria-label={`Withdraw the invitation to ${email}`} className="rounded border border-stone-300 px-2 py-1 text-xs hover:bg-stone-100">
+      <button
+        type="submit"
+        aria-label={`Withdraw the invitation to ${email}`}
+        className="rounded border border-stone-300 px-2 py-1 text-xs hover:bg-stone-100"
+      >
         Withdraw
       </button>
       <InlineError state={state} />

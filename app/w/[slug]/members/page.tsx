@@ -52,7 +52,11 @@ export default async function MembersPage({ params }: { params: Promise<{ slug: 
               </td>
               <td className="py-2 font-mono">{m.email}</td>
               <td className="py-2">
-                {manage ? <MemberRoleForm slug={workspace.slug} userId={m.userId} name={m.name} role={m.role} /> : m.role}
+                {manage ? (
+                  <MemberRoleForm slug={workspace.slug} userId={m.userId} name={m.name} role={m.role} />
+                ) : (
+                  m.role
+                )}
               </td>
               <td className="py-2 tabular">{day(m.since)}</td>
               <td className="py-2 text-right">

@@ -28,7 +28,13 @@ export function POST(request: Request, ctx: Ctx) {
     const n = getNetwork((await ctx.params).id);
     const { actor } = await guard(request, "network.write", n?.workspaceId);
     const input = await readJson(request, Commit);
-    const commit = commitText({ networkId: n!.id, parentId: input.parent, text: input.text, message: input.message, authorId: actor.userId });
+    const commit = commitText({
+      networkId: n!.id,
+      parentId: input.parent,
+      text: input.text,
+      message: input.message,
+      authorId: actor.userId,
+    });
     return fresh({ commit }, { status: 201 });
   });
 }

@@ -29,9 +29,16 @@ export function POST(request: Request, ctx: Ctx) {
     const n = getNetwork((await ctx.params).id);
     const { actor } = await guard(request, "measurement.write", n?.workspaceId);
     const length = Number(request.headers.get("content-length") ?? "0");
-    if (length > MAX_MEASUREMENT_BYTES + 64 * 1024) throw new RequestError(413, `the upload is ${(length / 1048576).toFixed(1)} MB; a measurement CSV may be at most 10 MB`);
-    const upload = (request.headers.get("content-type") ?? "").startsWith("application/json") ? await fromJson(request) : await fromForm(request);
-    if (upload.commitId && getCommit(upload.commitId)?.networkId !== n!.id) throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
+    if (length > MAX_MEASUREMENT_BYTES + 64 * 1024)
+      throw new RequestError(
+        413,
+        `the upload is ${(length / 1048576).toFixed(1)} MB; a measurement CSV may be at most 10 MB`,
+      );
+    const upload = (request.headers.get("content-type") ?? "").startsWith("application/json")
+      ? await fromJson(request)
+      : await fromForm(request);
+    if (upload.commitId && getCommit(upload.commitId)?.networkId !== n!.id)
+      throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
     const m = saveMeasurement({ networkId: n!.id, ...upload, createdBy: actor.userId });
     return Response.json({ measurement: m }, { status: 201 });
   });
@@ -49,11 +56,15 @@ async function fromForm(request: Request): Promise<Upload> {
   try {
     form = await request.formData();
   } catch {
-    throw new RequestError(400, "send the CSV as multipart/form-data with a field named file (or JSON with a csv field)");
+    throw new RequestError(
+      400,
+      "send the CSV as multipart/form-data with a field named file (or JSON with a csv field)",
+    );
   }
   const file = form.get("file");
   if (!(file instanceof Blob)) throw new RequestError(400, "file: attach the CSV in a field named file");
-  if (file.size > MAX_MEASUREMENT_BYTES) throw new RequestError(413, `the file is ${(file.size / 1048576).toFixed(1)} MB; at most 10 MB is accepted`);
+  if (file.size > MAX_MEASUREMENT_BYTES)
+    throw new RequestError(413, `the file is ${(file.size / 1048576).toFixed(1)} MB; at most 10 MB is accepted`);
   return {
     name: String(form.get("name") ?? "") || (file instanceof File ? file.name : "") || "measurement.csv",
     note: String(form.get("note") ?? ""),
@@ -62,9 +73,19 @@ async function fromForm(request: Request): Promise<Upload> {
   };
 }
 
-const JsonUpload = z.object({ csv: z.string(), name: z.string().max(200).optional(), note: z.string().max(2000).optional(), commitId: z.string().min(1).nullish() });
+const JsonUpload = z.object({
+  csv: z.string(),
+  name: z.string().max(200).optional(),
+  note: z.string().max(2000).optional(),
+  commitId: z.string().min(1).nullish(),
+});
 
 async function fromJson(request: Request): Promise<Upload> {
   const b = await readJson(request, JsonUpload);
-  return { name: b.name ?? "measurement.csv", note: b.note ?? "", commitId: b.commitId ?? null, bytes: new TextEncoder().encode(b.csv) };
+  return {
+    name: b.name ?? "measurement.csv",
+    note: b.note ?? "",
+    commitId: b.commitId ?? null,
+    bytes: new TextEncoder().encode(b.csv),
+  };
 }

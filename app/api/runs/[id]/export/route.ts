@@ -34,11 +34,19 @@ export function GET(request: Request, ctx: Ctx) {
     const base = `${network.slug}-${run!.id}`;
     if (q.format === "json") {
       return new Response(jsonStream(db(), run!, commit, layout), {
-        headers: { "content-type": "application/json; charset=utf-8", "content-disposition": `attachment; filename="${base}.json"`, "cache-control": "no-store" },
+        headers: {
+          "content-type": "application/json; charset=utf-8",
+          "content-disposition": `attachment; filename="${base}.json"`,
+          "cache-control": "no-store",
+        },
       });
     }
     return new Response(csvStream(db(), run!.id, layout, q.table, q.point), {
-      headers: { "content-type": "text/csv; charset=utf-8", "content-disposition": `attachment; filename="${base}-${q.table}.csv"`, "cache-control": "no-store" },
+      headers: {
+        "content-type": "text/csv; charset=utf-8",
+        "content-disposition": `attachment; filename="${base}-${q.table}.csv"`,
+        "cache-control": "no-store",
+      },
     });
   });
 }

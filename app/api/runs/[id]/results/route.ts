@@ -9,8 +9,16 @@ export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
 
 const Query = z.discriminatedUnion("view", [
-  z.object({ view: z.literal("series"), from: z.coerce.number().int().min(0).optional(), to: z.coerce.number().int().min(0).optional() }),
-  z.object({ view: z.literal("point"), point: z.coerce.number().int().min(0).default(0), format: z.enum(["json", "binary"]).default("json") }),
+  z.object({
+    view: z.literal("series"),
+    from: z.coerce.number().int().min(0).optional(),
+    to: z.coerce.number().int().min(0).optional(),
+  }),
+  z.object({
+    view: z.literal("point"),
+    point: z.coerce.number().int().min(0).default(0),
+    format: z.enum(["json", "binary"]).default("json"),
+  }),
   z.object({ view: z.literal("layout") }),
 ]);
 
@@ -32,20 +40,31 @@ export function GET(request: Request, ctx: Ctx) {
     if (q.view === "series") {
       const head = { run: { id: run!.id, state: run!.state } };
       if (q.from === undefined && q.to === undefined) {
-        return new Response(seriesJson(db(), run!.id, layout, head), { headers: { "content-type": "application/json", "cache-control": "no-store" } });
+        return new Response(seriesJson(db(), run!.id, layout, head), {
+          headers: { "content-type": "application/json", "cache-control": "no-store" },
+        });
       }
       return fresh({ ...head, series: seriesView(db(), run!.id, layout, q.from, q.to) });
     }
     // The layout and a stored point never change: the browser may keep them.
     const keep = { "cache-control": "private, max-age=86400" };
-    if (q.view === "layout") return new Response(layoutJson(run!.id, layout), { headers: { ...keep, "content-type": "application/json" } });
+    if (q.view === "layout")
+      return new Response(layoutJson(run!.id, layout), { headers: { ...keep, "content-type": "application/json" } });
     if (q.format === "binary") {
       const bin = pointBinary(db(), run!.id, layout, q.point);
-      if (!bin) throw new RequestError(404, `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`);
+      if (!bin)
+        throw new RequestError(
+          404,
+          `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`,
+        );
       return new Response(bin, { headers: { ...keep, "content-type": "application/octet-stream" } });
     }
     const point = pointView(db(), run!.id, layout, q.point);
-    if (!point) throw new RequestError(404, `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`);
+    if (!point)
+      throw new RequestError(
+        404,
+        `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`,
+      );
     return fresh({ run: { id: run!.id, state: run!.state }, point });
   });
 }

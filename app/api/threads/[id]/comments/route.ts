@@ -9,7 +9,11 @@ import { VERDICTS } from "@/db/schema";
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
 
-const Body = z.object({ body: z.string().max(MAX_COMMENT_LENGTH), verdict: z.enum(VERDICTS).nullish(), commitId: z.string().min(1).nullish() });
+const Body = z.object({
+  body: z.string().max(MAX_COMMENT_LENGTH),
+  verdict: z.enum(VERDICTS).nullish(),
+  commitId: z.string().min(1).nullish(),
+});
 
 /**
  * POST /api/threads/[id]/comments {body, verdict?} (thread.comment; with a
@@ -23,7 +27,16 @@ export function POST(request: Request, ctx: Ctx) {
     const ref = getThreadRef((await ctx.params).id);
     const { actor } = await guard(request, "thread.comment", ref?.workspaceId);
     if (input.verdict) authorize(actor, "commit.signoff", ref!.workspaceId);
-    const r = await addComment({ threadId: ref!.id, body: input.body, verdict: input.verdict ?? null, verdictCommitId: input.commitId ?? null, authorId: actor.userId }, sendMail);
+    const r = await addComment(
+      {
+        threadId: ref!.id,
+        body: input.body,
+        verdict: input.verdict ?? null,
+        verdictCommitId: input.commitId ?? null,
+        authorId: actor.userId,
+      },
+      sendMail,
+    );
     return Response.json(r, { status: 201 });
   });
 }

@@ -26,7 +26,13 @@ export function POST(req: Request, ctx: Ctx) {
     const { workspace } = authorizeSlug(actor, "workspace.manage", slug);
     const { email, role } = await readJson(req, inviteSchema);
     try {
-      const invitation = await inviteMember({ workspace, email, role, inviter: actor!, baseUrl: publicBaseUrl(req.headers) });
+      const invitation = await inviteMember({
+        workspace,
+        email,
+        role,
+        inviter: actor!,
+        baseUrl: publicBaseUrl(req.headers),
+      });
       return fresh({ invitation }, { status: 201 });
     } catch (e) {
       if (e instanceof MailError) return Response.json({ error: e.message }, { status: 503 });

@@ -28,7 +28,13 @@ export function POST(request: Request, ctx: Ctx) {
     const ws = workspaceBySlug((await ctx.params).slug);
     const { actor } = await guard(request, "network.write", ws?.id);
     const input = await readJson(request, CreateNetwork);
-    const created = createNetwork({ workspaceId: ws!.id, name: input.name, text: input.text, message: input.message, authorId: actor.userId });
+    const created = createNetwork({
+      workspaceId: ws!.id,
+      name: input.name,
+      text: input.text,
+      message: input.message,
+      authorId: actor.userId,
+    });
     return fresh(created, { status: 201 });
   });
 }
