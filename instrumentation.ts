@@ -5,7 +5,7 @@
  */
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs" || process.env.NEXT_PHASE === "phase-production-build") return;
-  const { recoverRuns, warmPool } = await import("./app/lib/runs");
+  const { recoverRuns, warmPool } = await import("./app/lib/run-supervisor");
   try {
     await warmPool();
     const r = recoverRuns();

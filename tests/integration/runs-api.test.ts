@@ -39,13 +39,13 @@ const LONG = SWEEP.replace("points 9", "points 200");
 
 let fixture: AccountsFixture;
 let db: DB;
-let runsLib: typeof import("@/app/lib/runs");
+let runsLib: typeof import("@/app/lib/run-supervisor");
 
 beforeAll(async () => {
   process.env.RUNNEL_TEST_FAULTS = "1";
   fixture = buildAccountsFixture();
   db = fixture.useCopy();
-  runsLib = await import("@/app/lib/runs");
+  runsLib = await import("@/app/lib/run-supervisor");
 });
 
 afterAll(async () => {

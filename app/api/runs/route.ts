@@ -2,7 +2,8 @@ import { z } from "zod";
 import { guard } from "@/app/lib/guard";
 import { fresh, handle, parseInput, queryOf, readJson } from "@/app/lib/http";
 import { getCommit, getNetwork } from "@/app/lib/networks";
-import { listRuns, MAX_TIME_LIMIT_MS, startRun } from "@/app/lib/runs";
+import { MAX_TIME_LIMIT_MS, startRun } from "@/app/lib/run-supervisor";
+import { listRuns } from "@/app/lib/runs";
 
 export const dynamic = "force-dynamic";
 

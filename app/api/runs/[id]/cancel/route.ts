@@ -1,6 +1,7 @@
 import { guard } from "@/app/lib/guard";
 import { fresh, handle } from "@/app/lib/http";
-import { cancelRun, getRun } from "@/app/lib/runs";
+import { cancelRun } from "@/app/lib/run-supervisor";
+import { getRun } from "@/app/lib/runs";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
