@@ -9,23 +9,29 @@ import { tags as t } from "@lezer/highlight";
 
 export { runnelHighlighting } from "../lang/highlight";
 
-/** Runnel's colours, shared by the highlight style and the editor theme. */
+/**
+ * Runnel's colours, shared by the highlight style and the editor theme: the theme tokens of app/globals.css
+ * (`@theme static`) as CSS variables, so the palette is written in one place.
+ */
 export const palette = {
-  ink: "#1f2623",
-  moss50: "#f1f6f2",
-  moss100: "#dcebe0",
-  moss500: "#3f7d5a",
-  moss600: "#2f6748",
-  moss700: "#24523a",
-  ember500: "#b4532a",
-  ember50: "#fbf1ec",
-  stone50: "#f7f7f4",
-  stone200: "#e2e2dc",
-  stone300: "#d0d0c8",
-  stone500: "#7a7f78",
-  stone600: "#5b625d",
-  slate: "#3b6474",
-  ochre: "#80601f",
+  ink: "var(--color-stone-ink)",
+  white: "#ffffff",
+  moss50: "var(--color-moss-50)",
+  moss100: "var(--color-moss-100)",
+  moss200: "var(--color-moss-200)",
+  moss500: "var(--color-moss-500)",
+  moss600: "var(--color-moss-600)",
+  moss700: "var(--color-moss-700)",
+  ember500: "var(--color-ember-500)",
+  ember50: "var(--color-ember-50)",
+  stone50: "var(--color-stone-50)",
+  stone200: "var(--color-stone-200)",
+  stone300: "var(--color-stone-300)",
+  stone500: "var(--color-stone-500)",
+  stone600: "var(--color-stone-600)",
+  slate: "var(--color-tide-600)",
+  ochre: "var(--color-ochre-700)",
+  ochre50: "var(--color-ochre-50)",
 } as const;
 
 export const runnelHighlightStyle = HighlightStyle.define([

@@ -24,10 +24,13 @@ import { palette as c } from "./highlight";
 import { runnel } from "./index";
 import { type RunnelLintOptions, runnelLinter } from "./lint";
 
-const wavy = (colour: string) =>
-  `url("data:image/svg+xml,${encodeURIComponent(
-    `<svg xmlns="http://www.w3.org/2000/svg" width="6" height="3"><path d="M0 2.5 Q1.5 0 3 1.5 T6 1" fill="none" stroke="${colour}" stroke-width="0.8"/></svg>`,
-  )}")`;
+/** A wavy underline in `colour` (a CSS colour or variable) under a diagnostic's range. */
+const wavy = (colour: string) => ({
+  textDecoration: `underline wavy ${colour}`,
+  textDecorationSkipInk: "none",
+  textUnderlineOffset: "3px",
+  backgroundImage: "none",
+});
 
 /** Runnel's editor theme: moss greens on river-stone greys, the app's monospace font. */
 export const runnelTheme = EditorView.theme(
@@ -36,7 +39,7 @@ export const runnelTheme = EditorView.theme(
       height: "100%",
       fontSize: "13px",
       color: c.ink,
-      backgroundColor: "#ffffff",
+      backgroundColor: c.white,
       border: `1px solid ${c.stone300}`,
       borderRadius: "6px",
     },
@@ -51,10 +54,10 @@ export const runnelTheme = EditorView.theme(
       borderRadius: "6px 0 0 6px",
     },
     ".cm-activeLineGutter": { backgroundColor: c.moss50, color: c.moss700 },
-    ".cm-activeLine": { backgroundColor: "#f6faf7" },
+    ".cm-activeLine": { backgroundColor: c.moss50 },
     "&.cm-focused > .cm-scroller > .cm-selectionLayer .cm-selectionBackground, .cm-selectionBackground, .cm-content ::selection":
       { backgroundColor: c.moss100 },
-    ".cm-selectionMatch": { backgroundColor: "#e8efe9" },
+    ".cm-selectionMatch": { backgroundColor: c.moss100 },
     ".cm-matchingBracket, &.cm-focused .cm-matchingBracket": {
       backgroundColor: c.moss100,
       outline: `1px solid ${c.moss500}`,
@@ -68,27 +71,27 @@ export const runnelTheme = EditorView.theme(
       padding: "0 4px",
     },
     ".cm-foldGutter .cm-gutterElement": { color: c.stone500, cursor: "pointer" },
-    ".cm-searchMatch": { backgroundColor: "#f2e7c4", outline: `1px solid ${c.ochre}` },
+    ".cm-searchMatch": { backgroundColor: c.ochre50, outline: `1px solid ${c.ochre}` },
     ".cm-searchMatch.cm-searchMatch-selected": { backgroundColor: c.moss100 },
     ".cm-panels": { backgroundColor: c.stone50, color: c.ink, fontFamily: "var(--font-sans), sans-serif" },
     ".cm-panels.cm-panels-bottom": { borderTop: `1px solid ${c.stone300}` },
     ".cm-panels.cm-panels-top": { borderBottom: `1px solid ${c.stone300}` },
     ".cm-tooltip": {
-      backgroundColor: "#ffffff",
+      backgroundColor: c.white,
       border: `1px solid ${c.stone300}`,
       borderRadius: "4px",
       fontFamily: "var(--font-sans), sans-serif",
     },
     ".cm-tooltip.cm-tooltip-autocomplete > ul": { fontFamily: "var(--font-mono), ui-monospace, monospace" },
-    ".cm-tooltip.cm-tooltip-autocomplete > ul > li[aria-selected]": { backgroundColor: c.moss600, color: "#ffffff" },
+    ".cm-tooltip.cm-tooltip-autocomplete > ul > li[aria-selected]": { backgroundColor: c.moss600, color: c.white },
     ".cm-completionDetail": { color: c.stone500, fontStyle: "normal", marginLeft: "1em" },
     ".cm-tooltip-autocomplete ul li[aria-selected] .cm-completionDetail": { color: c.moss100 },
     ".cm-completionMatchedText": { textDecoration: "none", fontWeight: "700" },
     ".cm-diagnostic": { fontFamily: "var(--font-sans), sans-serif" },
     ".cm-diagnostic-error": { borderLeft: `4px solid ${c.ember500}` },
     ".cm-diagnostic-warning": { borderLeft: `4px solid ${c.ochre}` },
-    ".cm-lintRange-error": { backgroundImage: wavy(c.ember500) },
-    ".cm-lintRange-warning": { backgroundImage: wavy(c.ochre) },
+    ".cm-lintRange-error": wavy(c.ember500),
+    ".cm-lintRange-warning": wavy(c.ochre),
   },
   { dark: false },
 );

@@ -1,12 +1,12 @@
 /**
  * Bench data on the run page's plots: measured points at their own x merged
- * onto a curve's x axis (app/ui/workbench/plots.tsx alignMarks), and the unit
- * and label helpers of app/ui/workbench/bench-overlay.tsx. Pure bookkeeping,
+ * onto a curve's x axis (app/ui/plots/align-marks.ts), and the unit
+ * and label helpers of app/ui/run/bench-data.ts. Pure bookkeeping,
  * no physics: the expected columns are written out by hand.
  */
 import { describe, expect, it } from "vitest";
-import { siUnit } from "@/app/ui/workbench/bench-overlay";
-import { alignMarks } from "@/app/ui/workbench/plots";
+import { siUnit } from "@/app/ui/run/bench-data";
+import { alignMarks } from "@/app/ui/plots/align-marks";
 
 describe("alignMarks", () => {
   it("passes x and the curves through unchanged when there are no marks", () => {

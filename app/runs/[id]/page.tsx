@@ -8,7 +8,7 @@ import { getRun } from "@/app/lib/runs";
 import { db } from "@/db";
 import { workspaces } from "@/db/schema";
 import { eq } from "drizzle-orm";
-import { RunView } from "@/app/ui/workbench/run-view";
+import { RunView } from "@/app/ui/run/run-view";
 
 export const dynamic = "force-dynamic";
 type Props = { params: Promise<{ id: string }> };

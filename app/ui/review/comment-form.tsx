@@ -3,7 +3,7 @@
 /** The reply box of a thread: comment, and for those who may, ask for changes or sign off. */
 import { useRouter } from "next/navigation";
 import { useState } from "react";
-import { postJson } from "./send";
+import { sendJson } from "@/app/ui/fetch";
 
 type Verdict = "signed_off" | "changes_asked" | null;
 
@@ -33,11 +33,15 @@ export function CommentForm({
     setError(null);
     setNote(null);
     try {
-      const r = await postJson<{ notified: string[]; mailErrors: string[] }>(`/api/threads/${threadId}/comments`, {
-        body,
-        verdict,
-        commitId: verdict && commitId ? commitId : null,
-      });
+      const r = await sendJson<{ notified: string[]; mailErrors: string[] }>(
+        "POST",
+        `/api/threads/${threadId}/comments`,
+        {
+          body,
+          verdict,
+          commitId: verdict && commitId ? commitId : null,
+        },
+      );
       setBody("");
       if (r.notified.length) setNote(`Notified ${r.notified.map((h) => "@" + h).join(", ")} by e-mail.`);
       if (r.mailErrors.length) setError(`Comment saved, but e-mail failed: ${r.mailErrors.join("; ")}`);
@@ -160,7 +164,12 @@ export function NewThreadForm({ commitId, runs }: { commitId: string; runs: { id
         setBusy(true);
         setError(null);
         try {
-          const r = await postJson<{ url: string }>("/api/threads", { commitId, runId: runId || null, title, body });
+          const r = await sendJson<{ url: string }>("POST", "/api/threads", {
+            commitId,
+            runId: runId || null,
+            title,
+            body,
+          });
           router.push(r.url);
         } catch (err) {
           setError((err as Error).message);

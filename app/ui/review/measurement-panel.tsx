@@ -9,7 +9,8 @@ import { useState } from "react";
 import useSWR from "swr";
 import { formatEng, formatNumber } from "@/app/lib/format";
 import type { Overlay } from "@/app/lib/review/measurement-store";
-import { LinePlot } from "@/app/ui/workbench/plots";
+import { ApiError, getJson, sendForm } from "@/app/ui/fetch";
+import { LinePlot } from "@/app/ui/plots/line-plot";
 
 interface Listed {
   id: string;
@@ -20,13 +21,6 @@ interface Listed {
   rows: number;
   commitId: string | null;
   authorName: string;
-}
-
-async function getJson<T>(url: string): Promise<T> {
-  const res = await fetch(url, { headers: { accept: "application/json" } });
-  const body = (await res.json().catch(() => ({}))) as Record<string, unknown>;
-  if (!res.ok) throw new Error(typeof body.error === "string" ? body.error : `request failed (${res.status})`);
-  return body as T;
 }
 
 const SI: Record<string, string> = { V: "V", A: "A", K: "K", "1": "" };
@@ -59,18 +53,16 @@ export function MeasurementPanel({
     setBusy(true);
     setErrors([]);
     try {
-      const res = await fetch(`/api/networks/${networkId}/measurements`, { method: "POST", body: new FormData(form) });
-      const body = (await res.json().catch(() => ({}))) as {
-        error?: string;
-        errors?: { text: string }[];
-        measurement?: { id: string };
-      };
-      if (!res.ok) setErrors(body.errors?.map((e) => e.text) ?? [body.error ?? `upload failed (${res.status})`]);
-      else {
-        form.reset();
-        setChosen(body.measurement!.id);
-        await list.mutate();
-      }
+      const body = await sendForm<{ measurement: { id: string } }>(
+        `/api/networks/${networkId}/measurements`,
+        new FormData(form),
+      );
+      form.reset();
+      setChosen(body.measurement.id);
+      await list.mutate();
+    } catch (e) {
+      const listed = e instanceof ApiError ? (e.body.errors as { text: string }[] | undefined) : undefined;
+      setErrors(listed?.map((x) => x.text) ?? [(e as Error).message]);
     } finally {
       setBusy(false);
     }

@@ -7,16 +7,15 @@
  * first. Data from /api/networks/…, /api/commits/…, /api/runs… through SWR.
  */
 import Link from "next/link";
-import { useCallback, useEffect, useMemo, useRef, useState } from "react";
+import { useCallback, useEffect, useRef, useState } from "react";
 import useSWR from "swr";
 import type { CommitRow, CommitSummary, NetworkRow } from "@/app/lib/networks";
 import type { RunRow } from "@/app/lib/runs";
 import { NetworkEditor } from "@/app/ui/network-editor";
-import { CommitReviewBadges } from "@/app/ui/review/badges";
-import type { CommitBadge } from "@/app/lib/review/diffs";
+import { getJson, sendJson } from "@/app/ui/fetch";
 import type { Diagnostic } from "@/src/lang/network";
-import { getJson, sendJson } from "./fetch";
-import { ProgressBar, RunStateBadge } from "./run-state";
+import { HistoryPanel } from "./history-panel";
+import { RunsPanel } from "./runs-panel";
 
 export interface NetworkWorkbenchProps {
   workspaceSlug: string;
@@ -334,131 +333,5 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
         ) : null}
       </aside>
     </div>
-  );
-}
-
-function HistoryPanel({
-  commits,
-  headId,
-  selectedId,
-  onOpen,
-}: {
-  commits: CommitSummary[];
-  headId: string | null;
-  selectedId: string | null;
-  onOpen(id: string): void;
-}) {
-  return (
-    <section aria-labelledby="history-heading" className="space-y-2">
-      <h2 id="history-heading" className="text-sm font-semibold">
-        History
-      </h2>
-      {commits.length === 0 ? (
-        <p className="text-sm text-stone-500">No commits yet.</p>
-      ) : (
-        <ol
-          aria-label="Commits"
-          className="max-h-80 divide-y divide-stone-100 overflow-auto rounded border border-stone-200 bg-white"
-        >
-          {commits.map((c) => (
-            <li key={c.id}>
-              <button
-                type="button"
-                onClick={() => onOpen(c.id)}
-                aria-current={c.id === selectedId ? "true" : undefined}
-                className={`block w-full px-3 py-2 text-left text-sm hover:bg-moss-50 ${c.id === selectedId ? "bg-moss-50" : ""}`}
-              >
-                <span className="flex items-baseline justify-between gap-2">
-                  <span className="truncate">{c.message}</span>
-                  <span className="font-mono text-xs text-stone-500">{c.id.slice(0, 8)}</span>
-                </span>
-                <span className="flex items-baseline justify-between gap-2 text-xs text-stone-500">
-                  <span>
-                    {c.authorName} ·{" "}
-                    {new Date(c.createdAt).toLocaleString("en-GB", { dateStyle: "short", timeStyle: "short" })}
-                  </span>
-                  <span>
-                    {c.id === headId ? (
-                      <span className="mr-1 rounded bg-moss-100 px-1 text-moss-700">newest</span>
-                    ) : null}
-                    {c.ok ? null : <span className="text-ember-500">{c.errorCount} error(s)</span>}
-                  </span>
-                </span>
-                <HistoryReview commitId={c.id} />
-              </button>
-            </li>
-          ))}
-        </ol>
-      )}
-    </section>
-  );
-}
-
-/** A history row's review state and "N values moved" badges (GET /api/commits/[id]/review). */
-function HistoryReview({ commitId }: { commitId: string }) {
-  const { data } = useSWR<CommitBadge>(`/api/commits/${commitId}/review`, getJson, { revalidateOnFocus: false });
-  if (!data || (data.review === "open" && data.diffs.length === 0)) return null;
-  return (
-    <span className="mt-1 flex" data-slot="history-review">
-      <CommitReviewBadges badge={data} />
-    </span>
-  );
-}
-
-function RunsPanel({
-  runs,
-  commitId,
-  onCanceled,
-  canRun,
-}: {
-  runs: RunRow[] | undefined;
-  commitId: string | null;
-  onCanceled(): void;
-  canRun: boolean;
-}) {
-  const list = useMemo(() => runs ?? [], [runs]);
-  return (
-    <section aria-labelledby="runs-heading" className="space-y-2">
-      <h2 id="runs-heading" className="text-sm font-semibold">
-        Runs{commitId ? <span className="font-normal text-stone-500"> of {commitId.slice(0, 8)}</span> : null}
-      </h2>
-      {list.length === 0 ? (
-        <p className="text-sm text-stone-500">No runs of this commit yet.</p>
-      ) : (
-        <ul aria-label="Runs" className="divide-y divide-stone-100 rounded border border-stone-200 bg-white">
-          {list.map((r) => (
-            <li key={r.id} className="space-y-1 px-3 py-2 text-sm">
-              <div className="flex items-center justify-between gap-2">
-                <Link href={`/runs/${r.id}`} className="font-mono text-xs text-moss-700 hover:underline">
-                  {r.id}
-                </Link>
-                <RunStateBadge state={r.state} />
-              </div>
-              {LIVE.has(r.state) ? (
-                <div className="flex items-center gap-2">
-                  <div className="flex-1">
-                    <ProgressBar done={r.pointsDone} total={r.pointsTotal} label={`Progress of run ${r.id}`} />
-                  </div>
-                  {canRun ? (
-                    <button
-                      type="button"
-                      className="text-xs text-ember-500 hover:underline"
-                      onClick={() => void sendJson("POST", `/api/runs/${r.id}/cancel`, {}).then(onCanceled, onCanceled)}
-                    >
-                      Cancel
-                    </button>
-                  ) : null}
-                </div>
-              ) : (
-                <p className="text-xs text-stone-500">
-                  {r.pointsDone.toLocaleString("en-US")} point{r.pointsDone === 1 ? "" : "s"} · {r.createdByName}
-                  {r.reason ? ` · ${r.reason}` : ""}
-                </p>
-              )}
-            </li>
-          ))}
-        </ul>
-      )}
-    </section>
   );
 }

@@ -1,6 +1,8 @@
 /**
- * Client-side access to the workbench API: SWR's fetcher and a JSON sender.
- * Both throw ApiError carrying the server's one-line `error` message and status.
+ * The client's one way to the API: SWR fetchers (JSON, bytes) and senders
+ * (JSON, a multipart form). Every one throws ApiError carrying the server's
+ * one-line `error` message, the status and the whole answer (e.g. `errors`
+ * with line and column of a refused upload).
  */
 export class ApiError extends Error {
   constructor(
@@ -37,6 +39,11 @@ export async function sendJson<T>(method: "POST" | "PATCH", url: string, body: u
       body: JSON.stringify(body),
     }),
   );
+}
+
+/** POST a form (multipart, e.g. a file upload); resolves to the JSON answer. */
+export async function sendForm<T>(url: string, form: FormData): Promise<T> {
+  return parse<T>(await fetch(url, { method: "POST", headers: { accept: "application/json" }, body: form }));
 }
 
 /** SWR fetcher for binary answers (a point of a run): the body's bytes, or ApiError with the server's message. */

@@ -1,0 +1,166 @@
+"use client";
+
+/** Probes over the sweep: a curve per combination of the other sweeps, bench data on its matched probe, and the table of all points. */
+import type { ColumnDef } from "@tanstack/react-table";
+import { useMemo, useState } from "react";
+import { formatEng } from "@/app/lib/format";
+import type { SeriesView } from "@/app/lib/results";
+import { LinePlot } from "@/app/ui/plots/line-plot";
+import type { Curve } from "@/app/ui/plots/plot-types";
+import { DataTable } from "@/app/ui/workbench/data-table";
+import { measuredMarks, siUnit, type BenchData } from "./bench-data";
+import { BenchDataSelect } from "./bench-data-select";
+import { BenchFigures } from "./bench-figures";
+import { ProbeSelect } from "./probe-select";
+import { meanOverSamples, paramUnit } from "./sweep-values";
+
+export function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }) {
+  // null: follow the probe the chosen bench data is matched to (else the first probe).
+  const [probeChoice, setProbeChoice] = useState<number | null>(null);
+  const matchedProbe = bench.overlay?.series.map((s) => series.probes.indexOf(s.against)).find((j) => j >= 0);
+  const probe = probeChoice ?? matchedProbe ?? 0;
+  const setProbe = setProbeChoice;
+  const [logX, setLogX] = useState(series.sweeps[series.sweeps.length - 1]?.log ?? false);
+  const [logY, setLogY] = useState(false);
+  const samples = series.mismatch?.runs ?? 1;
+  const [xSweep, setXSweep] = useState(series.sweeps.length - 1);
+  const plot = useMemo(() => {
+    if (series.sweeps.length === 0 || series.probes.length === 0) return null;
+    const sweeps = series.sweeps;
+    const xs = sweeps[xSweep];
+    const values = meanOverSamples(series.probeValues[probe] ?? [], samples);
+    // One curve per combination of the other sweeps' values (outer sweep slowest in the grid order).
+    const curves = new Map<string, Curve>();
+    for (let g = 0; g < values.length; g++) {
+      let rest = g;
+      const idx = new Array<number>(sweeps.length);
+      for (let k = sweeps.length - 1; k >= 0; k--) {
+        idx[k] = rest % sweeps[k].values.length;
+        rest = Math.floor(rest / sweeps[k].values.length);
+      }
+      const others = sweeps
+        .map((sw, k) => (k === xSweep ? null : `${sw.param} = ${formatEng(sw.values[idx[k]], paramUnit(sw.param), 3)}`))
+        .filter((x): x is string => x !== null);
+      const key = others.join(", ") || series.probes[probe];
+      let c = curves.get(key);
+      if (!c) {
+        if (curves.size >= 12) continue;
+        c = { label: key, values: new Array<number | null>(xs.values.length).fill(null) };
+        curves.set(key, c);
+      }
+      c.values[idx[xSweep]] = values[g];
+    }
+    return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(xs.param), curves: [...curves.values()] };
+  }, [series, probe, samples, xSweep]);
+  // Bench data is drawn on the probe it is matched to; the overlay route only answers for a run of one sweep.
+  const onPlot = useMemo(
+    () =>
+      bench.overlay && series.sweeps.length === 1
+        ? bench.overlay.series.filter((s) => s.against === series.probes[probe])
+        : [],
+    [bench.overlay, series, probe],
+  );
+  const marks = useMemo(() => measuredMarks(bench, onPlot), [bench, onPlot]);
+  const rows = useMemo(
+    () =>
+      series.point.map((p, k) => ({
+        name: String(p),
+        sample: series.sample[k],
+        params: series.sweeps.map((s) => series.paramValues[series.params.indexOf(s.param)]?.[k] ?? null),
+        probes: series.probeValues.map((v) => v[k]),
+        method: series.method[k],
+        residual: series.residual[k],
+      })),
+    [series],
+  );
+  type Row = (typeof rows)[number];
+  const columns = useMemo<ColumnDef<Row>[]>(
+    () => [
+      { id: "name", header: "point", accessorFn: (r) => Number(r.name), cell: (c) => c.getValue<number>() },
+      ...(series.mismatch
+        ? [{ id: "sample", header: "sample", accessorFn: (r: Row) => r.sample } as ColumnDef<Row>]
+        : []),
+      ...series.sweeps.map(
+        (s, j) =>
+          ({
+            id: `param-${s.param}`,
+            header: s.param,
+            accessorFn: (r: Row) => r.params[j] ?? NaN,
+            cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, paramUnit(s.param), 4),
+          }) as ColumnDef<Row>,
+      ),
+      ...series.probes.map(
+        (name, j) =>
+          ({
+            id: `probe-${name}`,
+            header: name,
+            accessorFn: (r: Row) => r.probes[j] ?? NaN,
+            cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, "", 4),
+          }) as ColumnDef<Row>,
+      ),
+      {
+        id: "residual",
+        header: "residual",
+        accessorFn: (r) => r.residual ?? NaN,
+        cell: (c) => formatEng(c.getValue<number>(), "A", 2),
+      },
+    ],
+    [series],
+  );
+  if (series.probes.length === 0)
+    return (
+      <p className="text-stone-600">
+        This network has no probes. Add `probe NAME = …` statements to follow outputs over a sweep.
+      </p>
+    );
+  return (
+    <div className="space-y-4">
+      {plot ? (
+        <div className="space-y-2">
+          <div className="flex flex-wrap items-center gap-4 text-sm">
+            <ProbeSelect probes={series.probes} value={probe} onChange={setProbe} label="Probe to plot" />
+            {series.sweeps.length > 1 ? (
+              <label className="flex items-center gap-2">
+                along
+                <select
+                  value={xSweep}
+                  onChange={(e) => setXSweep(Number(e.target.value))}
+                  className="rounded border border-stone-300 bg-white px-1 py-0.5"
+                  aria-label="Sweep along the x axis"
+                >
+                  {series.sweeps.map((sw, k) => (
+                    <option key={sw.param} value={k}>
+                      {sw.param}
+                    </option>
+                  ))}
+                </select>
+              </label>
+            ) : null}
+            <label className="flex items-center gap-1">
+              <input type="checkbox" checked={logX} onChange={(e) => setLogX(e.target.checked)} /> log {plot.xLabel}
+            </label>
+            <label className="flex items-center gap-1">
+              <input type="checkbox" checked={logY} onChange={(e) => setLogY(e.target.checked)} /> log{" "}
+              {series.probes[probe]}
+            </label>
+            {samples > 1 ? <span className="text-stone-500">mean over {samples} mismatch samples</span> : null}
+            <BenchDataSelect bench={bench} onChoose={() => setProbeChoice(null)} />
+          </div>
+          <LinePlot
+            title={`${series.probes[probe]} over ${plot.xLabel}`}
+            x={plot.x}
+            xLabel={plot.xLabel}
+            xUnit={plot.xUnit}
+            curves={plot.curves}
+            logX={logX}
+            logY={logY}
+            marks={marks}
+            yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : undefined}
+          />
+          <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
+        </div>
+      ) : null}
+      <DataTable label="Probes by point" rows={rows} columns={columns} filterPlaceholder="Filter by point" />
+    </div>
+  );
+}

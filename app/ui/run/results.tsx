@@ -1,0 +1,127 @@
+"use client";
+
+/**
+ * A run's results: the point chooser (sweep point, mismatch sample) and the
+ * tabs of result views, fed by the series (all points' probes) and the chosen
+ * point's binary record.
+ */
+import Link from "next/link";
+import { useMemo, useState } from "react";
+import useSWR from "swr";
+import { formatEng } from "@/app/lib/format";
+import { decodePoint, pointData } from "@/app/lib/point-codec";
+import type { RunLayout, SeriesView } from "@/app/lib/results";
+import type { RunRow } from "@/app/lib/runs";
+import { getBytes, getJson } from "@/app/ui/fetch";
+import { useBenchData } from "./bench-data";
+import { DevicesPanel } from "./devices-panel";
+import { LoadingNote } from "./loading-note";
+import { MapPanel } from "./map-panel";
+import { OperatingPanel } from "./operating-panel";
+import { ProbesPanel } from "./probes-panel";
+import { ProfilePanel } from "./profile-panel";
+import { SpreadPanel } from "./spread-panel";
+import { paramUnit } from "./sweep-values";
+
+export type Tab = "probes" | "operating" | "devices" | "profile" | "map" | "spread";
+
+export function Results({ runId, run, series }: { runId: string; run: RunRow; series: SeriesView }) {
+  const samples = series.mismatch?.runs ?? 1;
+  const gridPoints = Math.max(1, Math.ceil(run.pointsTotal / samples));
+  const [gridPoint, setGridPoint] = useState(0);
+  const [sample, setSample] = useState(0);
+  const point = Math.min(gridPoint * samples + sample, Math.max(0, series.point.length - 1));
+  const [tab, setTab] = useState<Tab>(series.sweeps.length ? "probes" : "operating");
+  const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, {
+    revalidateOnFocus: false,
+  });
+  const bytes = useSWR<ArrayBuffer>(`/api/runs/${runId}/results?view=point&point=${point}&format=binary`, getBytes, {
+    keepPreviousData: true,
+    revalidateOnFocus: false,
+  });
+  const current = useMemo(
+    () => (layout.data && bytes.data ? pointData(layout.data.layout, decodePoint(bytes.data)) : undefined),
+    [layout.data, bytes.data],
+  );
+  const bench = useBenchData(run.networkId, runId);
+  const tabs: [Tab, string][] = [
+    ["probes", "Probes"],
+    ["operating", "Operating point"],
+    ["devices", "Devices"],
+    ["profile", "Profile"],
+    ["map", "Map"],
+  ];
+  if (series.mismatch) tabs.push(["spread", "Spread"]);
+  return (
+    <section aria-label="Results" className="space-y-4">
+      {run.pointsTotal > 1 ? (
+        <div className="flex flex-wrap items-center gap-4 rounded border border-stone-200 bg-white p-3 text-sm">
+          {gridPoints > 1 ? (
+            <label className="flex items-center gap-2">
+              <span className="text-stone-600">sweep point</span>
+              <input
+                type="range"
+                min={0}
+                max={gridPoints - 1}
+                value={gridPoint}
+                onChange={(e) => setGridPoint(Number(e.target.value))}
+                aria-label="Sweep point"
+              />
+              <span className="tabular w-16">
+                {gridPoint + 1} / {gridPoints}
+              </span>
+            </label>
+          ) : null}
+          {samples > 1 ? (
+            <label className="flex items-center gap-2">
+              <span className="text-stone-600">mismatch sample</span>
+              <input
+                type="number"
+                min={0}
+                max={samples - 1}
+                value={sample}
+                onChange={(e) => setSample(Math.max(0, Math.min(samples - 1, Number(e.target.value) || 0)))}
+                className="w-20 rounded border border-stone-300 px-1"
+                aria-label="Mismatch sample"
+              />
+            </label>
+          ) : null}
+          {current ? (
+            <span className="tabular text-stone-700" data-slot="point-params">
+              {series.sweeps
+                .map((s) => `${s.param} = ${formatEng(current.params[s.param], paramUnit(s.param), 4)}`)
+                .join(", ")}
+              {samples > 1 ? ` · sample ${current.sample}` : ""}
+            </span>
+          ) : null}
+        </div>
+      ) : null}
+      <div role="tablist" aria-label="Result views" className="flex flex-wrap gap-1 border-b border-stone-300">
+        {tabs.map(([id, label]) => (
+          <button
+            key={id}
+            role="tab"
+            type="button"
+            aria-selected={tab === id}
+            onClick={() => setTab(id)}
+            className={`-mb-px rounded-t border px-3 py-1.5 text-sm ${tab === id ? "border-stone-300 border-b-white bg-white font-medium text-moss-700" : "border-transparent text-stone-600 hover:text-moss-700"}`}
+          >
+            {label}
+          </button>
+        ))}
+      </div>
+      <div role="tabpanel" aria-label={tabs.find((t) => t[0] === tab)?.[1]}>
+        {tab === "probes" ? <ProbesPanel series={series} bench={bench} /> : null}
+        {tab === "operating" ? current ? <OperatingPanel point={current} /> : <LoadingNote /> : null}
+        {tab === "devices" ? current ? <DevicesPanel point={current} /> : <LoadingNote /> : null}
+        {tab === "profile" ? current ? <ProfilePanel point={current} bench={bench} /> : <LoadingNote /> : null}
+        {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <LoadingNote /> : null}
+        {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
+      </div>
+      {current?.error ? <p className="text-sm text-ember-500">This point was not solved: {current.error}</p> : null}
+      <p className="text-xs text-stone-500">
+        Permalink: <Link href={`/runs/${runId}`}>/runs/{runId}</Link>
+      </p>
+    </section>
+  );
+}

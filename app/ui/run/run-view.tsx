@@ -1,0 +1,103 @@
+"use client";
+
+/**
+ * The run page's live part: state and progress (polled while the run is live),
+ * model and solver, validity, and the results — probe curves, tables of nodes,
+ * devices and probes, spatial profiles, maps and mismatch spreads — with
+ * exports. Every value comes from /api/runs/[id]… through SWR.
+ */
+import { useState } from "react";
+import useSWR from "swr";
+import { formatDuration } from "@/app/lib/format";
+import type { SeriesView } from "@/app/lib/results";
+import type { RunRow } from "@/app/lib/runs";
+import { getJson, sendJson } from "@/app/ui/fetch";
+import { ExportLinks } from "./export-links";
+import { ModelCaution } from "./model-caution";
+import { ModelPanel } from "./model-panel";
+import { ProgressBar } from "./progress-bar";
+import { Results } from "./results";
+import { RunStateBadge } from "./run-state-badge";
+
+const LIVE = new Set(["queued", "running"]);
+
+export interface RunViewProps {
+  runId: string;
+  canRun: boolean;
+}
+
+export function RunView({ runId, canRun }: RunViewProps) {
+  const { data, error, mutate } = useSWR<{ run: RunRow }>(`/api/runs/${runId}`, getJson, {
+    refreshInterval: (d) => (d && !LIVE.has(d.run.state) ? 0 : 1000),
+  });
+  const run = data?.run;
+  const hasResults = !!run && run.pointsDone > 0;
+  const series = useSWR<{ series: SeriesView }>(hasResults ? `/api/runs/${runId}/results?view=series` : null, getJson, {
+    refreshInterval: run && LIVE.has(run.state) ? 2000 : 0,
+  });
+  const [cancelError, setCancelError] = useState<string | null>(null);
+  if (error) return <p className="text-ember-500">Could not load the run: {(error as Error).message}</p>;
+  if (!run) return <p className="text-stone-500">Loading the run…</p>;
+  const live = LIVE.has(run.state);
+
+  const cancel = async () => {
+    setCancelError(null);
+    try {
+      await sendJson("POST", `/api/runs/${runId}/cancel`, {});
+      await mutate();
+    } catch (e) {
+      setCancelError((e as Error).message);
+    }
+  };
+
+  return (
+    <div className="space-y-6">
+      <ModelCaution />
+      <section aria-label="Run state" className="space-y-2 rounded border border-stone-200 bg-white p-4">
+        <div className="flex flex-wrap items-center gap-3">
+          <RunStateBadge state={run.state} />
+          <span className="text-sm text-stone-600">
+            started by {run.createdByName} · {new Date(run.createdAt).toLocaleString("en-GB")}
+            {run.startedAt && run.finishedAt ? ` · took ${formatDuration(run.finishedAt - run.startedAt)}` : ""}
+          </span>
+          {live && canRun ? (
+            <button
+              type="button"
+              onClick={cancel}
+              className="ml-auto rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50"
+            >
+              Cancel run
+            </button>
+          ) : null}
+        </div>
+        <ProgressBar done={run.pointsDone} total={run.pointsTotal} />
+        {run.reason ? (
+          <p
+            className={
+              run.state === "failed" || run.state === "interrupted"
+                ? "text-sm text-ember-500"
+                : "text-sm text-stone-600"
+            }
+            data-slot="run-reason"
+          >
+            {run.reason}
+          </p>
+        ) : null}
+        {cancelError ? <p className="text-sm text-ember-500">{cancelError}</p> : null}
+      </section>
+      <ModelPanel run={run} swept={series.data?.series.sweeps.map((x) => x.param) ?? []} />
+      {hasResults ? (
+        <>
+          <ExportLinks runId={runId} />
+          {series.data ? (
+            <Results runId={runId} run={run} series={series.data.series} />
+          ) : (
+            <p className="text-stone-500">Loading results…</p>
+          )}
+        </>
+      ) : !live ? (
+        <p className="text-stone-600">This run stored no results.</p>
+      ) : null}
+    </div>
+  );
+}
