@@ -113,7 +113,7 @@ const pageBytes = () =>
 // --- writes (once each; a write benchmark that repeats would measure a growing file)
 const before = pageBytes();
 const blobWrite = time(() => {
-  for (let s = 0; s < POINTS; s += 64) db.transaction((tx) => insertPoints(tx, RUN, data.slice(s, s + 64)));
+  for (let s = 0; s < POINTS; s += 64) db.transaction((tx) => insertPoints(RUN, data.slice(s, s + 64), tx));
 });
 const blobBytes = pageBytes() - before;
 const KINDS: [number, keyof PointRecord][] = [
@@ -170,11 +170,11 @@ const results = {
   blob: {
     write_ms: blobWrite,
     mbytes: blobBytes / 1e6,
-    read_point_ms: reps(() => readPoint(db, RUN, mid)),
-    read_series_ms: reps(() => readSeries(db, RUN, layout)),
+    read_point_ms: reps(() => readPoint(RUN, mid, db)),
+    read_series_ms: reps(() => readSeries(RUN, layout, 0, Number.MAX_SAFE_INTEGER, db)),
     read_node_over_points_ms: reps(() => {
       const out = new Float64Array(POINTS);
-      for (let k = 0; k < POINTS; k++) out[k] = readPoint(db, RUN, k)!.nodes[100];
+      for (let k = 0; k < POINTS; k++) out[k] = readPoint(RUN, k, db)!.nodes[100];
       return out;
     }),
   },

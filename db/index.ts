@@ -1,12 +1,21 @@
 import fs from "node:fs";
 import path from "node:path";
 import Database from "better-sqlite3";
+import { sql } from "drizzle-orm";
+import type { RunResult } from "better-sqlite3";
 import { drizzle, type BetterSQLite3Database } from "drizzle-orm/better-sqlite3";
+import type { BaseSQLiteDatabase } from "drizzle-orm/sqlite-core";
 import { migrate } from "drizzle-orm/better-sqlite3/migrator";
 import * as schema from "./schema";
 // db/schema.ts re-exports every table module (auth-schema.ts, work-schema.ts, ...), so drizzle-kit and the app see one schema.
 
 export type DB = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
+
+/**
+ * The connection or a transaction on it: what every data-layer function reads
+ * and writes through (its last parameter, `d: Q = db()`).
+ */
+export type Q = BaseSQLiteDatabase<"sync", RunResult, typeof schema>;
 
 /** A database problem a person can act on; `message` is one line that says what and where. */
 export class DatabaseSetupError extends Error {
@@ -94,6 +103,16 @@ let shared: DB | null = null;
 export function db(): DB {
   if (!shared) shared = openDatabase();
   return shared;
+}
+
+/** Whether the process-wide connection answers a query; `detail` is the first line of the error when not. */
+export function databaseAnswers(): { ok: true } | { ok: false; detail: string } {
+  try {
+    db().get(sql`select 1`);
+    return { ok: true };
+  } catch (e) {
+    return { ok: false, detail: (e as Error).message.split("\n")[0] };
+  }
 }
 
 /** Closes the process-wide connection (tests and scripts). */

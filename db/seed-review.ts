@@ -9,7 +9,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import { commitText, getCommit, networkBySlug, newId, slugify } from "@/app/lib/networks";
+import { commitText, getCommit, networkBySlug, slugify } from "@/app/lib/networks";
+import { newId } from "@/db/ids";
 import { pointsOf } from "@/app/lib/results";
 import { executeRun } from "@/app/lib/run-exec";
 import { saveMeasurement } from "@/app/lib/review/measurement-store";
@@ -109,7 +110,7 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
           timeLimitMs: 10 * 60_000,
         })
         .run();
-      executeRun(db, fixRun);
+      executeRun(fixRun, {}, db);
     }
     db.insert(comments)
       .values({

@@ -8,7 +8,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import { commitText, createNetwork, newId, networkBySlug, slugify } from "@/app/lib/networks";
+import { commitText, createNetwork, networkBySlug, slugify } from "@/app/lib/networks";
+import { newId } from "@/db/ids";
 import { pointsOf } from "@/app/lib/results";
 import { executeRun } from "@/app/lib/run-exec";
 import { elaborate } from "@/src/lang/index";
@@ -129,7 +130,7 @@ export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; r
         timeLimitMs: 10 * 60_000,
       })
       .run();
-    executeRun(db, id);
+    executeRun(id, {}, db);
     addedRuns++;
   }
   return { networks: addedNetworks, runs: addedRuns };

@@ -9,7 +9,7 @@ import { db } from "@/db";
 import { users } from "@/db/schema";
 import { hashPassword, PASSWORD_MAX, PASSWORD_MIN, verifyPassword } from "./passwords";
 import { lockMessage, recordSignInAttempt, signInGate } from "./rate-limit";
-import { newId } from "./secrets";
+import { newId } from "@/db/ids";
 
 export const emailSchema = z
   .string({ error: "enter an e-mail address" })
@@ -73,7 +73,7 @@ export async function createAccount(input: {
   const email = input.email.trim().toLowerCase();
   if (userByEmail(email)) return null;
   const passwordHash = await hashPassword(input.password);
-  const id = newId("u_");
+  const id = newId("u");
   const r = db().insert(users).values({ id, email, name: input.name, passwordHash }).onConflictDoNothing().run();
   return r.changes === 1 ? { id } : null;
 }

@@ -9,7 +9,7 @@
  */
 import type { CommitDiagnostic } from "@/db/schema";
 import type { CommitRow } from "./networks";
-import type { Q } from "./networks";
+import { db, type Q } from "@/db";
 import { eachPoint, readPoint, type PointRecord, type RunLayout } from "./results";
 import type { RunRow } from "./runs";
 
@@ -95,20 +95,20 @@ function streamOf(chunks: Generator<string>): ReadableStream<Uint8Array> {
 }
 
 export function csvStream(
-  d: Q,
   runId: string,
   layout: RunLayout,
   table: CsvTable,
   point?: number,
+  d: Q = db(),
 ): ReadableStream<Uint8Array> {
   function* gen(): Generator<string> {
     yield csvHeader(layout, table);
     if (point !== undefined) {
-      const p = readPoint(d, runId, point);
+      const p = readPoint(runId, point, d);
       if (p) yield csvRows(layout, table, p);
       return;
     }
-    for (const p of eachPoint(d, runId)) yield csvRows(layout, table, p);
+    for (const p of eachPoint(runId, d)) yield csvRows(layout, table, p);
   }
   return streamOf(gen());
 }
@@ -146,7 +146,7 @@ export function pointJson(layout: RunLayout, p: PointRecord): Record<string, unk
   };
 }
 
-export function jsonStream(d: Q, run: RunRow, commit: CommitRow, layout: RunLayout): ReadableStream<Uint8Array> {
+export function jsonStream(run: RunRow, commit: CommitRow, layout: RunLayout, d: Q = db()): ReadableStream<Uint8Array> {
   function* gen(): Generator<string> {
     const diagnostics = commit.diagnostics.map((x: CommitDiagnostic) => ({
       severity: x.severity,
@@ -171,7 +171,7 @@ export function jsonStream(d: Q, run: RunRow, commit: CommitRow, layout: RunLayo
     };
     yield JSON.stringify(head).slice(0, -1) + ',"points":[';
     let first = true;
-    for (const p of eachPoint(d, run.id)) {
+    for (const p of eachPoint(run.id, d)) {
       yield (first ? "" : ",") + JSON.stringify(pointJson(layout, p));
       first = false;
     }

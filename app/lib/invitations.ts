@@ -19,7 +19,8 @@ import { RequestError } from "./http";
 import { sendMail } from "./mail";
 import { roleSchema } from "./members";
 import type { Actor, WorkspaceRef } from "./policy";
-import { newId, newSecret, secretHash } from "./secrets";
+import { newSecret, secretHash } from "./secrets";
+import { newId } from "@/db/ids";
 
 export const INVITATION_LIFETIME_MS = 7 * 24 * 60 * 60 * 1000;
 
@@ -95,7 +96,7 @@ export async function inviteMember(input: {
   const email = input.email.trim().toLowerCase();
   const token = newSecret();
   const row = {
-    id: newId("inv_"),
+    id: newId("inv"),
     workspaceId: input.workspace.id,
     email,
     role: input.role,

@@ -8,34 +8,16 @@
  * A commit must name the network's current head as its parent, so two people
  * committing from the same head cannot silently overwrite each other (409).
  */
-import { createHash, randomBytes } from "node:crypto";
 import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
-import type { RunResult } from "better-sqlite3";
-import type { BaseSQLiteDatabase } from "drizzle-orm/sqlite-core";
-import { db, type schema } from "@/db";
-import { commits, networks, runs, users, workspaces, type CommitDiagnostic, type RunState } from "@/db/schema";
+import { db, type Q } from "@/db";
+import { newId, sha256Hex } from "@/db/ids";
+import { commits, networks, runs, users, type CommitDiagnostic, type RunState } from "@/db/schema";
 import { elaborate } from "@/src/lang/index";
 import { RequestError } from "./http";
-
-/** The connection or a transaction on it: what every data-layer function reads and writes through. */
-export type Q = BaseSQLiteDatabase<"sync", RunResult, typeof schema>;
-
-export function sha256Hex(text: string): string {
-  return createHash("sha256").update(text, "utf8").digest("hex");
-}
 
 /** The content address of a commit (module comment). */
 export function commitIdOf(networkId: string, parentId: string | null, text: string): string {
   return sha256Hex(`${parentId ?? `network:${networkId}`}\n${text}`);
-}
-
-/** A random id with a kind prefix, e.g. `n_3kq8…` (base32, 80 bits). */
-export function newId(prefix: string): string {
-  const alphabet = "abcdefghijklmnopqrstuvwxyz234567";
-  const bytes = randomBytes(16);
-  let s = "";
-  for (let i = 0; i < 16; i++) s += alphabet[bytes[i] & 31];
-  return `${prefix}_${s}`;
 }
 
 /** URL name from a display name: lower-case words joined by "-", at most 48 characters. */
@@ -48,22 +30,6 @@ export function slugify(name: string): string {
     .slice(0, 48)
     .replace(/-+$/, "");
   return s || "network";
-}
-
-export interface WorkspaceRef {
-  id: string;
-  slug: string;
-  name: string;
-}
-
-export function workspaceBySlug(slug: string, d: Q = db()): WorkspaceRef | null {
-  return (
-    d
-      .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name })
-      .from(workspaces)
-      .where(eq(workspaces.slug, slug))
-      .get() ?? null
-  );
 }
 
 export interface NetworkSummary {

@@ -12,7 +12,7 @@ import { and, asc, eq, gte, lt } from "drizzle-orm";
 import type { Network } from "@/src/lang/index";
 import { NFET } from "@/src/lang/index";
 import { runPoints, runs } from "@/db/schema";
-import type { Q } from "./networks";
+import { db, type Q } from "@/db";
 import { encodePoint, type PointHeader } from "./point-codec";
 
 /** Names of everything a point stores, in the order of the blob columns. */
@@ -121,7 +121,7 @@ function view<T extends Float64Array | Float32Array | Uint8Array>(
 }
 
 /** Inserts points (one statement per point; call inside a transaction for speed). */
-export function insertPoints(d: Q, runId: string, points: readonly PointRecord[]): void {
+export function insertPoints(runId: string, points: readonly PointRecord[], d: Q = db()): void {
   for (const p of points) {
     d.insert(runPoints)
       .values({
@@ -145,7 +145,7 @@ export function insertPoints(d: Q, runId: string, points: readonly PointRecord[]
 }
 
 /** One whole point, or null when it is not stored. */
-export function readPoint(d: Q, runId: string, point: number): PointRecord | null {
+export function readPoint(runId: string, point: number, d: Q = db()): PointRecord | null {
   const r = d
     .select()
     .from(runPoints)
@@ -187,11 +187,11 @@ export interface SeriesColumns {
  * Reads only the small leading columns of each row, never the big blobs.
  */
 export function readSeries(
-  d: Q,
   runId: string,
   layout: Pick<RunLayout, "params" | "probes">,
   from = 0,
   to = Number.MAX_SAFE_INTEGER,
+  d: Q = db(),
 ): SeriesColumns {
   const rows = d
     .select({
@@ -244,7 +244,7 @@ const layoutCache = new Map<string, RunLayout>();
 const LAYOUT_CACHE_SIZE = 32;
 
 /** A run's layout (immutable once written), parsed once per process; null before the run started. */
-export function runLayout(d: Q, runId: string): RunLayout | null {
+export function runLayout(runId: string, d: Q = db()): RunLayout | null {
   const hit = layoutCache.get(runId);
   if (hit) return hit;
   const text = d.select({ layout: runs.layout }).from(runs).where(eq(runs.id, runId)).get()?.layout;
@@ -269,8 +269,8 @@ export interface PointView {
   probes: { names: string[]; value: (number | null)[] };
 }
 
-export function pointView(d: Q, runId: string, layout: RunLayout, point: number): PointView | null {
-  const p = readPoint(d, runId, point);
+export function pointView(runId: string, layout: RunLayout, point: number, d: Q = db()): PointView | null {
+  const p = readPoint(runId, point, d);
   if (!p) return null;
   return {
     point: p.point,
@@ -310,8 +310,14 @@ export interface SeriesView {
   error: (string | null)[];
 }
 
-export function seriesView(d: Q, runId: string, layout: RunLayout, from = 0, to = Number.MAX_SAFE_INTEGER): SeriesView {
-  const s = readSeries(d, runId, layout, from, to);
+export function seriesView(
+  runId: string,
+  layout: RunLayout,
+  from = 0,
+  to = Number.MAX_SAFE_INTEGER,
+  d: Q = db(),
+): SeriesView {
+  const s = readSeries(runId, layout, from, to, d);
   return {
     params: layout.params,
     probes: layout.probes,
@@ -329,7 +335,7 @@ export function seriesView(d: Q, runId: string, layout: RunLayout, from = 0, to 
 }
 
 /** Stored points of a run, in order (export). */
-export function* eachPoint(d: Q, runId: string): Generator<PointRecord> {
+export function* eachPoint(runId: string, d: Q = db()): Generator<PointRecord> {
   const ids = d
     .select({ point: runPoints.point })
     .from(runPoints)
@@ -337,13 +343,18 @@ export function* eachPoint(d: Q, runId: string): Generator<PointRecord> {
     .orderBy(asc(runPoints.point))
     .all();
   for (const { point } of ids) {
-    const p = readPoint(d, runId, point);
+    const p = readPoint(runId, point, d);
     if (p) yield p;
   }
 }
 
 /** One point's stored blobs in the binary form of app/lib/point-codec.ts, or null when it is not stored. */
-export function pointBinary(d: Q, runId: string, layout: RunLayout, point: number): Uint8Array<ArrayBuffer> | null {
+export function pointBinary(
+  runId: string,
+  layout: RunLayout,
+  point: number,
+  d: Q = db(),
+): Uint8Array<ArrayBuffer> | null {
   const r = d
     .select()
     .from(runPoints)
@@ -375,20 +386,17 @@ export function pointBinary(d: Q, runId: string, layout: RunLayout, point: numbe
  * point order; points are stored in order) and re-serialises. The run page's
  * readers poll this every few seconds while a run is live.
  */
-const seriesCache = new Map<
-  string,
-  { columns: SeriesColumns; count: number; /** The SeriesView as JSON. */ json: string }
->();
+const seriesCache = new Map<string, { columns: SeriesColumns; /** The SeriesView as JSON. */ json: string }>();
 const SERIES_CACHE_SIZE = 16;
 
-export function seriesJson(d: Q, runId: string, layout: RunLayout, head: Record<string, unknown>): string {
+export function seriesJson(runId: string, layout: RunLayout, head: Record<string, unknown>, d: Q = db()): string {
   let entry = seriesCache.get(runId);
-  const next = entry ? readSeries(d, runId, layout, entry.columns.point.length) : readSeries(d, runId, layout);
+  const next = readSeries(runId, layout, entry ? entry.columns.point.length : 0, Number.MAX_SAFE_INTEGER, d);
   const wrap = (series: string) => `${JSON.stringify(head).slice(0, -1)},"series":${series}}`;
   if (entry && next.point.length === 0) return wrap(entry.json);
   if (!entry) {
     if (seriesCache.size >= SERIES_CACHE_SIZE) seriesCache.delete(seriesCache.keys().next().value!);
-    entry = { columns: next, count: 0, json: "" };
+    entry = { columns: next, json: "" };
     seriesCache.set(runId, entry);
   } else {
     const c = entry.columns;
@@ -402,7 +410,6 @@ export function seriesJson(d: Q, runId: string, layout: RunLayout, head: Record<
     c.error.push(...next.error);
   }
   const c = entry.columns;
-  entry.count = c.point.length;
   const view: SeriesView = {
     params: layout.params,
     probes: layout.probes,

@@ -19,7 +19,7 @@ import { commits, runs, type RunState } from "@/db/schema";
 import { elaborate, type Network } from "@/src/lang/index";
 import type { PointResult, RunResult } from "@/src/solver/results";
 import { solveNetwork } from "@/src/solver/index";
-import type { Q } from "./networks";
+import { db, type Q } from "@/db";
 import { insertPoints, layoutOf, type PointRecord, type RunLayout } from "./results";
 import { storeCommitDiff } from "./review/diffs";
 
@@ -69,7 +69,7 @@ export interface RunWarning {
   firstPoint: number;
 }
 
-export function executeRun(d: Q, runId: string, control: ExecControl = {}): RunTaskResult {
+export function executeRun(runId: string, control: ExecControl = {}, d: Q = db()): RunTaskResult {
   const now = control.now ?? Date.now;
   const startedAt = new Date(now());
   const claimed = d
@@ -145,7 +145,7 @@ function runClaimed(
       const b = batch;
       batch = [];
       d.transaction((tx) => {
-        insertPoints(tx, runId, b);
+        insertPoints(runId, b, tx);
         tx.update(runs)
           .set({ pointsDone: stored + b.length })
           .where(eq(runs.id, runId))

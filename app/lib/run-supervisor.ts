@@ -23,7 +23,8 @@ import { databasePath, db } from "@/db";
 import { FINAL_RUN_STATES, type RunState } from "@/db/schema";
 import { elaborate } from "@/src/lang/index";
 import { RequestError } from "./http";
-import { getCommit, type Q } from "./networks";
+import type { Q } from "@/db";
+import { getCommit } from "./networks";
 import { RUN_LIMITS, pointsOf, valuesPerPoint } from "./results";
 import { STOP_CANCEL, STOP_TIME, type RunTask, type RunTaskResult } from "./run-exec";
 import {
@@ -231,8 +232,8 @@ async function dispatch(): Promise<void> {
       () => undefined,
       (e: unknown) => {
         const t = active.terminated;
-        if (t) finishRun(db(), runId, t.state, t.reason);
-        else finishRun(db(), runId, "failed", `the run failed: ${workerMessage(e)}`);
+        if (t) finishRun(runId, t.state, t.reason);
+        else finishRun(runId, "failed", `the run failed: ${workerMessage(e)}`);
       },
     ).finally(() => {
       if (active.hardTimer) clearTimeout(active.hardTimer);
@@ -280,7 +281,7 @@ export function cancelRun(runId: string, d: Q = db()): RunRow {
   const queuedAt = s.queue.indexOf(runId);
   if (queuedAt >= 0) s.queue.splice(queuedAt, 1);
   if (run.state === "queued" && !s.active.has(runId)) {
-    finishRun(d, runId, "canceled", "canceled before it started");
+    finishRun(runId, "canceled", "canceled before it started", d);
   } else {
     const a = s.active.get(runId);
     if (a) {

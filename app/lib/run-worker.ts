@@ -16,5 +16,5 @@ export default function runTask(task: RunTask): RunTaskResult {
     connections.set(task.dbFile, d);
   }
   const fault = process.env.RUNNEL_TEST_FAULTS === "1" ? task.fault : undefined;
-  return executeRun(d, task.runId, { stop: new Int32Array(task.stop), fault });
+  return executeRun(task.runId, { stop: new Int32Array(task.stop), fault }, d);
 }

@@ -4,16 +4,16 @@
  * start-up recovery scan. Who executes a run lives in run-supervisor.ts.
  */
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
-import { db } from "@/db";
+import { db, type Q } from "@/db";
 import { networks, runs, users, type RunState } from "@/db/schema";
 import { RequestError } from "./http";
-import { newId, type Q } from "./networks";
+import { newId } from "@/db/ids";
 import type { RunWarning } from "./run-exec";
 
 const OPEN_STATES: RunState[] = ["queued", "running"];
 
 /** Ends a run that is still queued or running; no-op (false) for a run that already ended. */
-export function finishRun(d: Q, runId: string, state: RunState, reason: string | null): boolean {
+export function finishRun(runId: string, state: RunState, reason: string | null, d: Q = db()): boolean {
   const r = d
     .update(runs)
     .set({ state, reason, finishedAt: new Date() })
@@ -156,7 +156,7 @@ export function getRun(id: string, d: Q = db()): RunRow | null {
 }
 
 /** Runs of a commit (or of a network when `commitId` is null), newest first. */
-export function listRuns(where: { commitId?: string; networkId?: string }, d: Q = db(), limit = 100): RunRow[] {
+export function listRuns(where: { commitId?: string; networkId?: string }, limit = 100, d: Q = db()): RunRow[] {
   const cond = where.commitId ? eq(runs.commitId, where.commitId) : eq(runs.networkId, where.networkId ?? "");
   return d
     .select(runColumns)

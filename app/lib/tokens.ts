@@ -9,7 +9,8 @@ import { z } from "zod";
 import { db } from "@/db";
 import { apiTokens, users } from "@/db/schema";
 import type { Actor } from "./policy";
-import { newId, newSecret, secretHash } from "./secrets";
+import { newSecret, secretHash } from "./secrets";
+import { newId } from "@/db/ids";
 
 export const TOKEN_PREFIX = "runnel_";
 /** How many characters of a token the lists show. */
@@ -32,7 +33,7 @@ export interface ApiTokenSummary {
 /** Makes a token for the user; the returned `token` is the only time the secret exists outside its hash. */
 export function createApiToken(userId: string, name: string): { id: string; token: string; prefix: string } {
   const token = newSecret(TOKEN_PREFIX);
-  const id = newId("tok_");
+  const id = newId("tok");
   const prefix = token.slice(0, SHOWN);
   db()
     .insert(apiTokens)

@@ -2,12 +2,12 @@
  * Workspaces as their members see them. One workspace per chip or block; the
  * person who creates one becomes its owner.
  */
-import { and, asc, eq } from "drizzle-orm";
+import { asc, eq } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "@/db";
 import { memberships, workspaces, type Role } from "@/db/schema";
 import { RequestError } from "./http";
-import { newId } from "./secrets";
+import { newId } from "@/db/ids";
 
 export interface WorkspaceSummary {
   id: string;
@@ -71,20 +71,13 @@ export function listWorkspacesFor(userId: string): MyWorkspace[] {
     .all();
 }
 
-/** The workspace at /w/[slug] if the user is a member, else null (unknown and not-a-member look the same). */
-export function memberWorkspace(userId: string, slug: string): MyWorkspace | null {
+/** The workspace with this id, or null. */
+export function getWorkspace(id: string): WorkspaceSummary | null {
   return (
     db()
-      .select({
-        id: workspaces.id,
-        slug: workspaces.slug,
-        name: workspaces.name,
-        description: workspaces.description,
-        role: memberships.role,
-      })
+      .select({ id: workspaces.id, slug: workspaces.slug, name: workspaces.name, description: workspaces.description })
       .from(workspaces)
-      .innerJoin(memberships, and(eq(memberships.workspaceId, workspaces.id), eq(memberships.userId, userId)))
-      .where(eq(workspaces.slug, slug))
+      .where(eq(workspaces.id, id))
       .get() ?? null
   );
 }
@@ -107,7 +100,7 @@ export function createWorkspace(ownerId: string, input: NewWorkspace): MyWorkspa
       while (taken(`${base.slice(0, 44)}-${n}`)) n++;
       slug = `${base.slice(0, 44)}-${n}`;
     }
-    const id = newId("ws_");
+    const id = newId("ws");
     const row = { id, slug, name: input.name, description: input.description ?? "" };
     tx.insert(workspaces).values(row).run();
     tx.insert(memberships).values({ workspaceId: id, userId: ownerId, role: "owner" }).run();

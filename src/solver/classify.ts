@@ -15,8 +15,7 @@
 import { type Network, NFET } from "../lang/network";
 import { pool } from "./pool";
 
-/** Polarity class of an internal node: none (only gates/injects), n, p, or both. */
-export const CLASS_NONE = 0;
+/** Polarity class of an internal node: 0 when none (only gates/injects), n, p, or both. */
 export const CLASS_N = 1;
 export const CLASS_P = 2;
 export const CLASS_MIXED = 3;

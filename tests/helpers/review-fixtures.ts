@@ -12,7 +12,8 @@
  */
 import { runPoints, runs } from "@/db/schema";
 import type { DB } from "@/db";
-import { commitText, createNetwork, newId } from "@/app/lib/networks";
+import { commitText, createNetwork } from "@/app/lib/networks";
+import { newId } from "@/db/ids";
 
 const UT = (1.380649e-23 * 300.15) / 1.602176634e-19;
 const I0 = 1e-15;

@@ -97,7 +97,7 @@ const withRun: Setup = (db) => {
       timeLimitMs: 60_000,
     })
     .run();
-  executeRun(db, "r_case");
+  executeRun("r_case", {}, db);
   return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
 };
 /** As withRun, but the run is still queued (cancel rows). */

@@ -9,9 +9,9 @@ import {
   listCommits,
   listNetworks,
   renameNetwork,
-  sha256Hex,
   slugify,
 } from "@/app/lib/networks";
+import { sha256Hex } from "@/db/ids";
 import { RequestError } from "@/app/lib/http";
 import { freshDatabase } from "../helpers/db";
 
@@ -140,7 +140,7 @@ describe("the demo seed", () => {
     const demo = listNetworks("ws_lm64", db).filter((n) => DEMO_NETWORKS.some((d) => slugify(d.name) === n.slug));
     expect(demo).toHaveLength(DEMO_NETWORKS.length);
     for (const n of demo) {
-      const runs = listRuns({ commitId: n.headCommitId! }, db);
+      const runs = listRuns({ commitId: n.headCommitId! }, undefined, db);
       expect(runs.map((r) => [n.slug, r.state, r.pointsDone === r.pointsTotal])).toEqual([[n.slug, "done", true]]);
     }
     expect(demo.find((n) => n.slug === "lm-64-edge-row")!.commitCount).toBe(2);

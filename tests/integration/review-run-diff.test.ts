@@ -75,7 +75,7 @@ describe("stored commit diff after a real run", () => {
           timeLimitMs: 60_000,
         })
         .run();
-      expect(executeRun(db, id).state).toBe("done");
+      expect(executeRun(id, {}, db).state).toBe("done");
     }
     const first = db.select().from(commitDiffs).where(eq(commitDiffs.runId, "r_one")).get()!;
     expect(first.compared).toBe(0);

@@ -1,7 +1,6 @@
 import { z } from "zod";
-import { reviewAccess as guard } from "@/app/lib/review/access";
+import { commitAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { getCommit, getNetwork } from "@/app/lib/networks";
 import { compareCommits } from "@/app/lib/review/diffs";
 
 export const dynamic = "force-dynamic";
@@ -26,19 +25,17 @@ const Query = z.object({
 export function GET(request: Request) {
   return handle(async () => {
     const q = parseInput(Query, queryOf(request));
-    const a = getCommit(q.from);
-    const b = getCommit(q.to);
-    const net = a ? getNetwork(a.networkId) : null;
-    await guard(request, "workspace.read", net?.workspaceId);
+    const actor = await requestActor(request);
+    const { commit: a, network } = commitAccess(actor, "workspace.read", q.from);
     // The newer commit is checked on its own, so a commit of a workspace the actor is not in stays a 404.
-    await guard(request, "workspace.read", b ? getNetwork(b.networkId)?.workspaceId : null);
-    if (a!.networkId !== b!.networkId) throw new RequestError(422, "from and to must be commits of the same network");
+    const { commit: b } = commitAccess(actor, "workspace.read", q.to);
+    if (a.networkId !== b.networkId) throw new RequestError(422, "from and to must be commits of the same network");
     const tolerance = Object.fromEntries(
       Object.entries({ rel: q.rel, absCurrent: q.absCurrent, absVoltage: q.absVoltage, absProbe: q.absProbe }).filter(
         ([, v]) => v !== undefined,
       ),
     );
-    const c = compareCommits(a!.id, b!.id, { tolerance, includeWithin: q.all === "1", limit: q.limit });
-    return Response.json({ ...c, network: { id: net!.id, slug: net!.slug, name: net!.name } });
+    const c = compareCommits(a.id, b.id, { tolerance, includeWithin: q.all === "1", limit: q.limit });
+    return Response.json({ ...c, network: { id: network.id, slug: network.slug, name: network.name } });
   });
 }

@@ -1,21 +1,18 @@
-import { sql } from "drizzle-orm";
-import { db } from "@/db";
+import { databaseAnswers } from "@/db";
 import { APP_VERSION } from "@/app/lib/version";
 
 export const dynamic = "force-dynamic";
 
 /** GET /api/health: the app's version and whether the database answers. Public, reads nothing private. */
 export function GET() {
-  let dbState: "ok" | "error" = "ok";
-  let detail: string | undefined;
-  try {
-    db().get(sql`select 1`);
-  } catch (e) {
-    dbState = "error";
-    detail = (e as Error).message.split("\n")[0];
-  }
+  const answer = databaseAnswers();
   return Response.json(
-    { app: "runnel", version: APP_VERSION, db: dbState, ...(detail ? { detail } : {}) },
-    { status: dbState === "ok" ? 200 : 503, headers: { "cache-control": "no-store" } },
+    {
+      app: "runnel",
+      version: APP_VERSION,
+      db: answer.ok ? "ok" : "error",
+      ...(answer.ok ? {} : { detail: answer.detail }),
+    },
+    { status: answer.ok ? 200 : 503, headers: { "cache-control": "no-store" } },
   );
 }

@@ -1,7 +1,6 @@
 import { z } from "zod";
-import { guard } from "@/app/lib/guard";
+import { commitAccess, networkAccess, requestActor } from "@/app/lib/access";
 import { fresh, handle, parseInput, queryOf, readJson } from "@/app/lib/http";
-import { getCommit, getNetwork } from "@/app/lib/networks";
 import { MAX_TIME_LIMIT_MS, startRun } from "@/app/lib/run-supervisor";
 import { listRuns } from "@/app/lib/runs";
 
@@ -13,11 +12,13 @@ const RunsQuery = z.union([z.object({ commit: z.string().min(1) }), z.object({ n
 export function GET(request: Request) {
   return handle(async () => {
     const q = parseInput(RunsQuery, queryOf(request));
-    const networkId = "commit" in q ? getCommit(q.commit)?.networkId : q.network;
-    const n = networkId ? getNetwork(networkId) : null;
-    await guard(request, "workspace.read", n?.workspaceId);
-    const runs = "commit" in q ? listRuns({ commitId: q.commit }) : listRuns({ networkId: n!.id });
-    return fresh({ runs });
+    const actor = await requestActor(request);
+    if ("commit" in q) {
+      const { commit } = commitAccess(actor, "workspace.read", q.commit);
+      return fresh({ runs: listRuns({ commitId: commit.id }) });
+    }
+    const { network } = networkAccess(actor, "workspace.read", q.network);
+    return fresh({ runs: listRuns({ networkId: network.id }) });
   });
 }
 
@@ -38,11 +39,9 @@ const StartRun = z.object({
 export function POST(request: Request) {
   return handle(async () => {
     const input = await readJson(request, StartRun);
-    const c = getCommit(input.commit);
-    const n = c ? getNetwork(c.networkId) : null;
-    const { actor } = await guard(request, "run.start", n?.workspaceId);
+    const { actor, commit } = commitAccess(await requestActor(request), "run.start", input.commit);
     const run = startRun({
-      commitId: c!.id,
+      commitId: commit.id,
       actorId: actor.userId,
       timeLimitMs: input.timeLimitSeconds === undefined ? undefined : Math.round(input.timeLimitSeconds * 1000),
       fault: process.env.RUNNEL_TEST_FAULTS === "1" ? input.fault : undefined,

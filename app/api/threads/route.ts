@@ -1,8 +1,7 @@
 import { z } from "zod";
-import { reviewAccess as guard } from "@/app/lib/review/access";
+import { commitAccess, networkAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf, readJson } from "@/app/lib/http";
 import { sendMail } from "@/app/lib/mail";
-import { getCommit, getNetwork } from "@/app/lib/networks";
 import { createThread, listThreads, MAX_COMMENT_LENGTH, MAX_TITLE_LENGTH } from "@/app/lib/review/threads";
 
 export const dynamic = "force-dynamic";
@@ -18,9 +17,7 @@ const Body = z.object({
 export function POST(request: Request) {
   return handle(async () => {
     const input = await readJson(request, Body);
-    const c = getCommit(input.commitId);
-    const n = c ? getNetwork(c.networkId) : null;
-    const { actor } = await guard(request, "thread.comment", n?.workspaceId);
+    const { actor } = commitAccess(await requestActor(request), "thread.comment", input.commitId);
     const r = await createThread({ ...input, authorId: actor.userId }, sendMail);
     return Response.json(
       { thread: r.thread, commentId: r.commentId, notified: r.notified, url: `/threads/${r.thread.id}` },
@@ -35,8 +32,7 @@ const Query = z.object({ networkId: z.string().min(1), commitId: z.string().min(
 export function GET(request: Request) {
   return handle(async () => {
     const q = parseInput(Query, queryOf(request));
-    const n = getNetwork(q.networkId);
-    await guard(request, "workspace.read", n?.workspaceId);
+    networkAccess(await requestActor(request), "workspace.read", q.networkId);
     return Response.json({ threads: listThreads(q) });
   });
 }

@@ -17,7 +17,7 @@ import {
   lookupInvitation,
 } from "@/app/lib/invitations";
 import { hashPassword } from "@/app/lib/passwords";
-import { newId } from "@/app/lib/secrets";
+import { newId } from "@/db/ids";
 
 const newAccountSchema = z
   .object({ name: personNameSchema, password: newPasswordSchema, confirm: z.string({ error: "repeat the password" }) })
@@ -56,7 +56,7 @@ export async function acceptInvitation(_prev: FormState | undefined, form: FormD
       });
       if (!parsed.success) return invalid(parsed.error, values);
       const account = {
-        id: newId("u_"),
+        id: newId("u"),
         name: parsed.data.name,
         passwordHash: await hashPassword(parsed.data.password),
       };

@@ -7,7 +7,8 @@ import { desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
 import { commitDiffs, commits, reviews, runs, users, type StoredDiffSummary, type Verdict } from "@/db/schema";
 import { RequestError } from "../http";
-import { getCommit, type Q } from "../networks";
+import { getCommit } from "../networks";
+import type { Q } from "@/db";
 import { DEFAULT_TOLERANCE, diffResults, summarize, type ResultsDiff, type Tolerance } from "./results-diff";
 import { diffText, type TextDiff } from "./text-diff";
 import { latestDoneRuns, runTable, parseLayout, analysisName } from "./run-tables";
@@ -145,6 +146,13 @@ export function commitBadges(commitIds: string[], d: Q = db()): Map<string, Comm
     });
   }
   return out;
+}
+
+/** The review badge of one commit. */
+export function commitBadge(commitId: string, d: Q = db()): CommitBadge {
+  const badge = commitBadges([commitId], d).get(commitId);
+  if (!badge) throw new Error(`commitBadges left out ${commitId}`);
+  return badge;
 }
 
 export interface Comparison {

@@ -7,7 +7,8 @@ import { and, asc, desc, eq } from "drizzle-orm";
 import { db } from "@/db";
 import { measurements, networks, runPoints, runs, users } from "@/db/schema";
 import { RequestError } from "../http";
-import { newId, type Q } from "../networks";
+import type { Q } from "@/db";
+import { newId } from "@/db/ids";
 import { compareToSimulation, formatCsvError, parseMeasurementCsv, type Agreement } from "./measurements";
 import { parseLayout } from "./run-tables";
 
@@ -101,6 +102,11 @@ export function getMeasurement(id: string, d: Q = db()): MeasurementView | null 
     createdBy: r.createdBy,
     createdAt: r.createdAt.getTime(),
   };
+}
+
+/** Removes a measurement (nothing else refers to it). */
+export function deleteMeasurement(id: string, d: Q = db()): void {
+  d.delete(measurements).where(eq(measurements.id, id)).run();
 }
 
 /** The measurements of a network, newest first (without their values). */

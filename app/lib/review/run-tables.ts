@@ -10,7 +10,7 @@
 import { and, asc, desc, eq } from "drizzle-orm";
 import { db } from "@/db";
 import { runPoints, runs } from "@/db/schema";
-import type { Q } from "../networks";
+import type { Q } from "@/db";
 import { pointKey, type AnalysisTable, type ResultColumn } from "./results-diff";
 
 /** The parts of a run's layout (app/lib/results.ts RunLayout) this module reads. */

@@ -28,7 +28,8 @@ import {
   type Verdict,
 } from "@/db/schema";
 import { RequestError } from "../http";
-import { newId, type Q } from "../networks";
+import type { Q } from "@/db";
+import { newId } from "@/db/ids";
 import { commitBadges, type ReviewState } from "./diffs";
 import { extractMentions, extractRunRefs, renderComment } from "./markdown";
 import { keyProbes } from "./run-tables";

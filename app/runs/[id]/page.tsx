@@ -1,13 +1,9 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
-import { requireActor } from "@/app/lib/auth";
-import { getCommit, getNetwork } from "@/app/lib/networks";
-import { roleAllows, roleIn } from "@/app/lib/policy";
-import { getRun } from "@/app/lib/runs";
-import { db } from "@/db";
-import { workspaces } from "@/db/schema";
-import { eq } from "drizzle-orm";
+import { commitAccess, found, runAccess } from "@/app/lib/access";
+import { pageAccess } from "@/app/lib/pages";
+import { roleAllows } from "@/app/lib/policy";
+import { getWorkspace } from "@/app/lib/workspaces";
 import { RunView } from "@/app/ui/run/run-view";
 
 export const dynamic = "force-dynamic";
@@ -20,17 +16,11 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 /** /runs/[id]: the permalink of a run, for members of its workspace (others get 404). */
 export default async function RunPage({ params }: Props) {
   const { id } = await params;
-  const actor = await requireActor(`/runs/${id}`);
-  const run = getRun(id);
-  const role = run ? roleIn(actor, run.workspaceId) : null;
-  if (!run || !role) notFound();
-  const network = getNetwork(run.networkId)!;
-  const commit = getCommit(run.commitId)!;
-  const ws = db()
-    .select({ slug: workspaces.slug, name: workspaces.name })
-    .from(workspaces)
-    .where(eq(workspaces.id, run.workspaceId))
-    .get()!;
+  const { run, role, commit, network, ws } = await pageAccess(`/runs/${id}`, (actor) => {
+    const { run, role } = runAccess(actor, "workspace.read", id);
+    const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
+    return { run, role, commit, network, ws: found(getWorkspace(run.workspaceId)) };
+  });
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">

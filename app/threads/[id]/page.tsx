@@ -1,10 +1,10 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
-import { requireActor } from "@/app/lib/auth";
+import { found, threadAccess } from "@/app/lib/access";
 import { listCommits } from "@/app/lib/networks";
-import { roleAllows, roleIn } from "@/app/lib/policy";
-import { getThread, getThreadRef } from "@/app/lib/review/threads";
+import { pageAccess } from "@/app/lib/pages";
+import { roleAllows } from "@/app/lib/policy";
+import { getThread } from "@/app/lib/review/threads";
 import { runsOfCommit } from "@/app/lib/review/run-tables";
 import { ReviewStateBadge } from "@/app/ui/review/badges";
 import { CommentBody, RunCard } from "@/app/ui/review/comment-body";
@@ -20,11 +20,10 @@ const VERDICT_TEXT = { signed_off: "signed the commit off", changes_asked: "aske
 /** /threads/[id]: a review thread's permalink. A non-member (or an unknown id) gets 404. */
 export default async function ThreadPage({ params }: Props) {
   const { id } = await params;
-  const actor = await requireActor(`/threads/${id}`);
-  const ref = getThreadRef(id);
-  const role = ref ? roleIn(actor, ref.workspaceId) : null;
-  if (!ref || !role || !roleAllows(role, "workspace.read")) notFound();
-  const t = getThread(id)!;
+  const { role, t } = await pageAccess(`/threads/${id}`, (actor) => {
+    const { role, thread } = threadAccess(actor, "workspace.read", id);
+    return { role, t: found(getThread(thread.id)) };
+  });
   const netPath = `/w/${t.workspace.slug}/n/${t.network.slug}`;
   const runs = runsOfCommit(t.commit.id).map((r) => ({
     id: r.id,

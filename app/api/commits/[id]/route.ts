@@ -1,6 +1,5 @@
-import { guard } from "@/app/lib/guard";
+import { commitAccess, requestActor } from "@/app/lib/access";
 import { handle } from "@/app/lib/http";
-import { getCommit, getNetwork } from "@/app/lib/networks";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -11,22 +10,17 @@ type Ctx = { params: Promise<{ id: string }> };
  */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const c = getCommit((await ctx.params).id);
-    const n = c ? getNetwork(c.networkId) : null;
-    await guard(request, "workspace.read", n?.workspaceId);
+    const { commit, network } = commitAccess(await requestActor(request), "workspace.read", (await ctx.params).id);
     if (new URL(request.url).searchParams.has("download")) {
-      return new Response(c!.text, {
+      return new Response(commit.text, {
         headers: {
           "content-type": "text/plain; charset=utf-8",
-          "content-disposition": `attachment; filename="${n!.slug}-${c!.id.slice(0, 12)}.runnel"`,
+          "content-disposition": `attachment; filename="${network.slug}-${commit.id.slice(0, 12)}.runnel"`,
           "cache-control": "private, max-age=31536000, immutable",
         },
       });
     }
     // A commit never changes: the browser may keep it.
-    return Response.json(
-      { commit: c, network: n },
-      { headers: { "cache-control": "private, max-age=31536000, immutable" } },
-    );
+    return Response.json({ commit, network }, { headers: { "cache-control": "private, max-age=31536000, immutable" } });
   });
 }

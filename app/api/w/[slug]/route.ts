@@ -1,6 +1,5 @@
-import { getActor } from "@/app/lib/auth";
+import { requestActor, workspaceAccess } from "@/app/lib/access";
 import { fresh, handle } from "@/app/lib/http";
-import { authorizeSlug } from "@/app/lib/policy";
 
 export const dynamic = "force-dynamic";
 
@@ -8,7 +7,7 @@ export const dynamic = "force-dynamic";
 export function GET(req: Request, ctx: { params: Promise<{ slug: string }> }) {
   return handle(async () => {
     const { slug } = await ctx.params;
-    const { workspace, role } = authorizeSlug(await getActor(req), "workspace.read", slug);
+    const { workspace, role } = workspaceAccess(await requestActor(req), "workspace.read", slug);
     return fresh({ workspace, role });
   });
 }

@@ -9,12 +9,12 @@ import { headers } from "next/headers";
 import { revalidatePath } from "next/cache";
 import { redirect } from "next/navigation";
 import { z } from "zod";
-import { checkActionOrigin, getActor, publicBaseUrl } from "@/app/lib/auth";
+import { actionActor, workspaceAccess } from "@/app/lib/access";
+import { publicBaseUrl } from "@/app/lib/auth";
 import { formValues, invalid, refusal, type FormState } from "@/app/lib/forms";
 import { inviteMember as invite, inviteSchema, revokeInvitation as revoke } from "@/app/lib/invitations";
 import { MailError } from "@/app/lib/mail";
 import { changeRole, removeMember as remove, roleSchema } from "@/app/lib/members";
-import { authorizeSlug } from "@/app/lib/policy";
 
 const field = (form: FormData, name: string) => {
   const v = form.get(name);
@@ -24,13 +24,11 @@ const field = (form: FormData, name: string) => {
 export async function inviteMember(_prev: FormState | undefined, form: FormData): Promise<FormState> {
   const values = formValues(form);
   try {
-    await checkActionOrigin();
-    const actor = await getActor();
-    const { workspace } = authorizeSlug(actor, "workspace.manage", field(form, "slug") ?? "");
+    const { actor, workspace } = workspaceAccess(await actionActor(), "workspace.manage", field(form, "slug") ?? "");
     const parsed = inviteSchema.safeParse({ email: field(form, "email"), role: field(form, "role") });
     if (!parsed.success) return invalid(parsed.error, values);
     try {
-      await invite({ workspace, ...parsed.data, inviter: actor!, baseUrl: publicBaseUrl(await headers()) });
+      await invite({ workspace, ...parsed.data, inviter: actor, baseUrl: publicBaseUrl(await headers()) });
     } catch (e) {
       if (e instanceof MailError) return { status: 503, error: `The invitation was not sent: ${e.message}.`, values };
       throw e;
@@ -49,8 +47,7 @@ export async function inviteMember(_prev: FormState | undefined, form: FormData)
 export async function changeMemberRole(_prev: FormState | undefined, form: FormData): Promise<FormState> {
   const values = formValues(form);
   try {
-    await checkActionOrigin();
-    const { workspace } = authorizeSlug(await getActor(), "workspace.manage", field(form, "slug") ?? "");
+    const { workspace } = workspaceAccess(await actionActor(), "workspace.manage", field(form, "slug") ?? "");
     const parsed = z
       .object({ userId: z.string().min(1), role: roleSchema })
       .safeParse({ userId: field(form, "userId"), role: field(form, "role") });
@@ -65,8 +62,7 @@ export async function changeMemberRole(_prev: FormState | undefined, form: FormD
 
 export async function removeMember(_prev: FormState | undefined, form: FormData): Promise<FormState> {
   try {
-    await checkActionOrigin();
-    const { workspace } = authorizeSlug(await getActor(), "workspace.manage", field(form, "slug") ?? "");
+    const { workspace } = workspaceAccess(await actionActor(), "workspace.manage", field(form, "slug") ?? "");
     remove(workspace.id, field(form, "userId") ?? "");
     revalidatePath(`/w/${workspace.slug}/members`);
     return { status: 200, message: "Member removed." };
@@ -77,10 +73,8 @@ export async function removeMember(_prev: FormState | undefined, form: FormData)
 
 export async function leaveWorkspace(_prev: FormState | undefined, form: FormData): Promise<FormState> {
   try {
-    await checkActionOrigin();
-    const actor = await getActor();
-    const { workspace } = authorizeSlug(actor, "workspace.read", field(form, "slug") ?? "");
-    remove(workspace.id, actor!.userId);
+    const { actor, workspace } = workspaceAccess(await actionActor(), "workspace.read", field(form, "slug") ?? "");
+    remove(workspace.id, actor.userId);
   } catch (e) {
     return refusal(e);
   }
@@ -89,8 +83,7 @@ export async function leaveWorkspace(_prev: FormState | undefined, form: FormDat
 
 export async function revokeInvitation(_prev: FormState | undefined, form: FormData): Promise<FormState> {
   try {
-    await checkActionOrigin();
-    const { workspace } = authorizeSlug(await getActor(), "workspace.manage", field(form, "slug") ?? "");
+    const { workspace } = workspaceAccess(await actionActor(), "workspace.manage", field(form, "slug") ?? "");
     revoke(workspace.id, field(form, "invitationId") ?? "");
     revalidatePath(`/w/${workspace.slug}/members`);
     return { status: 200, message: "Invitation withdrawn." };

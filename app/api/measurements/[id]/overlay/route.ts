@@ -1,7 +1,7 @@
 import { z } from "zod";
-import { reviewAccess as guard } from "@/app/lib/review/access";
+import { measurementAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf } from "@/app/lib/http";
-import { getMeasurement, overlay } from "@/app/lib/review/measurement-store";
+import { overlay } from "@/app/lib/review/measurement-store";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -16,8 +16,7 @@ const Query = z.object({ run: z.string().min(1, "name the run"), x: z.string().m
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
     const q = parseInput(Query, queryOf(request));
-    const m = getMeasurement((await ctx.params).id);
-    await guard(request, "workspace.read", m?.workspaceId);
-    return Response.json(overlay(m!.id, q.run, { xParam: q.x }));
+    const { measurement } = measurementAccess(await requestActor(request), "workspace.read", (await ctx.params).id);
+    return Response.json(overlay(measurement.id, q.run, { xParam: q.x }));
   });
 }

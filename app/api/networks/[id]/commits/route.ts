@@ -1,7 +1,7 @@
 import { z } from "zod";
-import { guard } from "@/app/lib/guard";
+import { networkAccess, requestActor } from "@/app/lib/access";
 import { fresh, handle, readJson } from "@/app/lib/http";
-import { commitText, getNetwork, listCommits } from "@/app/lib/networks";
+import { commitText, listCommits } from "@/app/lib/networks";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -9,9 +9,8 @@ type Ctx = { params: Promise<{ id: string }> };
 /** GET /api/networks/[id]/commits (workspace.read): the history, newest first, without texts. */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const n = getNetwork((await ctx.params).id);
-    await guard(request, "workspace.read", n?.workspaceId);
-    return fresh({ network: n, commits: listCommits(n!.id) });
+    const { network } = networkAccess(await requestActor(request), "workspace.read", (await ctx.params).id);
+    return fresh({ network, commits: listCommits(network.id) });
   });
 }
 
@@ -25,11 +24,10 @@ const Commit = z.object({
 /** POST /api/networks/[id]/commits (network.write): commit a text on top of the head. 409 when the head moved or nothing changed. */
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const n = getNetwork((await ctx.params).id);
-    const { actor } = await guard(request, "network.write", n?.workspaceId);
+    const { actor, network } = networkAccess(await requestActor(request), "network.write", (await ctx.params).id);
     const input = await readJson(request, Commit);
     const commit = commitText({
-      networkId: n!.id,
+      networkId: network.id,
       parentId: input.parent,
       text: input.text,
       message: input.message,

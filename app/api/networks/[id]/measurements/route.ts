@@ -1,7 +1,7 @@
 import { z } from "zod";
-import { reviewAccess as guard } from "@/app/lib/review/access";
+import { networkAccess, requestActor } from "@/app/lib/access";
 import { handle, readJson, RequestError } from "@/app/lib/http";
-import { getCommit, getNetwork } from "@/app/lib/networks";
+import { getCommit } from "@/app/lib/networks";
 import { MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
 import { listMeasurements, saveMeasurement } from "@/app/lib/review/measurement-store";
 
@@ -11,9 +11,8 @@ type Ctx = { params: Promise<{ id: string }> };
 /** GET /api/networks/[id]/measurements (workspace.read): the network's measurements, newest first. */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const n = getNetwork((await ctx.params).id);
-    await guard(request, "workspace.read", n?.workspaceId);
-    return Response.json({ measurements: listMeasurements(n!.id) });
+    const { network } = networkAccess(await requestActor(request), "workspace.read", (await ctx.params).id);
+    return Response.json({ measurements: listMeasurements(network.id) });
   });
 }
 
@@ -26,8 +25,7 @@ export function GET(request: Request, ctx: Ctx) {
  */
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const n = getNetwork((await ctx.params).id);
-    const { actor } = await guard(request, "measurement.write", n?.workspaceId);
+    const { actor, network } = networkAccess(await requestActor(request), "measurement.write", (await ctx.params).id);
     const length = Number(request.headers.get("content-length") ?? "0");
     if (length > MAX_MEASUREMENT_BYTES + 64 * 1024)
       throw new RequestError(
@@ -37,9 +35,9 @@ export function POST(request: Request, ctx: Ctx) {
     const upload = (request.headers.get("content-type") ?? "").startsWith("application/json")
       ? await fromJson(request)
       : await fromForm(request);
-    if (upload.commitId && getCommit(upload.commitId)?.networkId !== n!.id)
+    if (upload.commitId && getCommit(upload.commitId)?.networkId !== network.id)
       throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
-    const m = saveMeasurement({ networkId: n!.id, ...upload, createdBy: actor.userId });
+    const m = saveMeasurement({ networkId: network.id, ...upload, createdBy: actor.userId });
     return Response.json({ measurement: m }, { status: 201 });
   });
 }

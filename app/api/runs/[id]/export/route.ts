@@ -1,11 +1,8 @@
 import { z } from "zod";
-import { db } from "@/db";
+import { commitAccess, requestActor, runAccess } from "@/app/lib/access";
 import { csvStream, jsonStream } from "@/app/lib/export";
-import { guard } from "@/app/lib/guard";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { getCommit, getNetwork } from "@/app/lib/networks";
 import { runLayout } from "@/app/lib/results";
-import { getRun } from "@/app/lib/runs";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -24,16 +21,15 @@ const Query = z.object({
  */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const run = getRun((await ctx.params).id);
-    await guard(request, "workspace.read", run?.workspaceId);
+    const actor = await requestActor(request);
+    const { run } = runAccess(actor, "workspace.read", (await ctx.params).id);
     const q = parseInput(Query, queryOf(request));
-    const layout = runLayout(db(), run!.id);
-    if (!layout) throw new RequestError(409, `the run has no results yet (${run!.state})`, { state: run!.state });
-    const network = getNetwork(run!.networkId)!;
-    const commit = getCommit(run!.commitId)!;
-    const base = `${network.slug}-${run!.id}`;
+    const layout = runLayout(run.id);
+    if (!layout) throw new RequestError(409, `the run has no results yet (${run.state})`, { state: run.state });
+    const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
+    const base = `${network.slug}-${run.id}`;
     if (q.format === "json") {
-      return new Response(jsonStream(db(), run!, commit, layout), {
+      return new Response(jsonStream(run, commit, layout), {
         headers: {
           "content-type": "application/json; charset=utf-8",
           "content-disposition": `attachment; filename="${base}.json"`,
@@ -41,7 +37,7 @@ export function GET(request: Request, ctx: Ctx) {
         },
       });
     }
-    return new Response(csvStream(db(), run!.id, layout, q.table, q.point), {
+    return new Response(csvStream(run.id, layout, q.table, q.point), {
       headers: {
         "content-type": "text/csv; charset=utf-8",
         "content-disposition": `attachment; filename="${base}-${q.table}.csv"`,

@@ -1,9 +1,7 @@
 import { z } from "zod";
-import { db } from "@/db";
-import { guard } from "@/app/lib/guard";
+import { requestActor, runAccess } from "@/app/lib/access";
 import { fresh, handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
 import { layoutJson, pointBinary, pointView, runLayout, seriesJson, seriesView } from "@/app/lib/results";
-import { getRun } from "@/app/lib/runs";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -32,39 +30,38 @@ const Query = z.discriminatedUnion("view", [
  */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const run = getRun((await ctx.params).id);
-    await guard(request, "workspace.read", run?.workspaceId);
+    const { run } = runAccess(await requestActor(request), "workspace.read", (await ctx.params).id);
     const q = parseInput(Query, { view: "series", ...queryOf(request) });
-    const layout = runLayout(db(), run!.id);
-    if (!layout) throw new RequestError(409, `the run has no results yet (${run!.state})`, { state: run!.state });
+    const layout = runLayout(run.id);
+    if (!layout) throw new RequestError(409, `the run has no results yet (${run.state})`, { state: run.state });
     if (q.view === "series") {
-      const head = { run: { id: run!.id, state: run!.state } };
+      const head = { run: { id: run.id, state: run.state } };
       if (q.from === undefined && q.to === undefined) {
-        return new Response(seriesJson(db(), run!.id, layout, head), {
+        return new Response(seriesJson(run.id, layout, head), {
           headers: { "content-type": "application/json", "cache-control": "no-store" },
         });
       }
-      return fresh({ ...head, series: seriesView(db(), run!.id, layout, q.from, q.to) });
+      return fresh({ ...head, series: seriesView(run.id, layout, q.from, q.to) });
     }
     // The layout and a stored point never change: the browser may keep them.
     const keep = { "cache-control": "private, max-age=86400" };
     if (q.view === "layout")
-      return new Response(layoutJson(run!.id, layout), { headers: { ...keep, "content-type": "application/json" } });
+      return new Response(layoutJson(run.id, layout), { headers: { ...keep, "content-type": "application/json" } });
     if (q.format === "binary") {
-      const bin = pointBinary(db(), run!.id, layout, q.point);
+      const bin = pointBinary(run.id, layout, q.point);
       if (!bin)
         throw new RequestError(
           404,
-          `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`,
+          `point ${q.point} is not stored (the run has ${run.pointsDone} of ${run.pointsTotal} points)`,
         );
       return new Response(bin, { headers: { ...keep, "content-type": "application/octet-stream" } });
     }
-    const point = pointView(db(), run!.id, layout, q.point);
+    const point = pointView(run.id, layout, q.point);
     if (!point)
       throw new RequestError(
         404,
-        `point ${q.point} is not stored (the run has ${run!.pointsDone} of ${run!.pointsTotal} points)`,
+        `point ${q.point} is not stored (the run has ${run.pointsDone} of ${run.pointsTotal} points)`,
       );
-    return fresh({ run: { id: run!.id, state: run!.state }, point });
+    return fresh({ run: { id: run.id, state: run.state }, point });
   });
 }

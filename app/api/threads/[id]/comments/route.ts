@@ -1,9 +1,9 @@
 import { z } from "zod";
-import { reviewAccess as guard } from "@/app/lib/review/access";
+import { requestActor, threadAccess } from "@/app/lib/access";
 import { handle, readJson } from "@/app/lib/http";
 import { sendMail } from "@/app/lib/mail";
 import { authorize } from "@/app/lib/policy";
-import { addComment, getThreadRef, MAX_COMMENT_LENGTH } from "@/app/lib/review/threads";
+import { addComment, MAX_COMMENT_LENGTH } from "@/app/lib/review/threads";
 import { VERDICTS } from "@/db/schema";
 
 export const dynamic = "force-dynamic";
@@ -24,12 +24,11 @@ const Body = z.object({
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
     const input = await readJson(request, Body);
-    const ref = getThreadRef((await ctx.params).id);
-    const { actor } = await guard(request, "thread.comment", ref?.workspaceId);
-    if (input.verdict) authorize(actor, "commit.signoff", ref!.workspaceId);
+    const { actor, thread } = threadAccess(await requestActor(request), "thread.comment", (await ctx.params).id);
+    if (input.verdict) authorize(actor, "commit.signoff", thread.workspaceId);
     const r = await addComment(
       {
-        threadId: ref!.id,
+        threadId: thread.id,
         body: input.body,
         verdict: input.verdict ?? null,
         verdictCommitId: input.commitId ?? null,

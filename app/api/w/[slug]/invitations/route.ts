@@ -1,8 +1,8 @@
-import { checkOrigin, getActor, publicBaseUrl } from "@/app/lib/auth";
+import { requestActor, workspaceAccess } from "@/app/lib/access";
+import { publicBaseUrl } from "@/app/lib/auth";
 import { fresh, handle, readJson } from "@/app/lib/http";
 import { inviteMember, inviteSchema, listPendingInvitations } from "@/app/lib/invitations";
 import { MailError } from "@/app/lib/mail";
-import { authorizeSlug } from "@/app/lib/policy";
 
 export const dynamic = "force-dynamic";
 
@@ -12,7 +12,7 @@ type Ctx = { params: Promise<{ slug: string }> };
 export function GET(req: Request, ctx: Ctx) {
   return handle(async () => {
     const { slug } = await ctx.params;
-    const { workspace } = authorizeSlug(await getActor(req), "workspace.manage", slug);
+    const { workspace } = workspaceAccess(await requestActor(req), "workspace.manage", slug);
     return fresh({ invitations: listPendingInvitations(workspace.id) });
   });
 }
@@ -20,17 +20,15 @@ export function GET(req: Request, ctx: Ctx) {
 /** POST /api/w/[slug]/invitations {email, role}: invites and e-mails the link (owners). 201; 503 when mail cannot be sent. */
 export function POST(req: Request, ctx: Ctx) {
   return handle(async () => {
-    checkOrigin(req);
     const { slug } = await ctx.params;
-    const actor = await getActor(req);
-    const { workspace } = authorizeSlug(actor, "workspace.manage", slug);
+    const { actor, workspace } = workspaceAccess(await requestActor(req), "workspace.manage", slug);
     const { email, role } = await readJson(req, inviteSchema);
     try {
       const invitation = await inviteMember({
         workspace,
         email,
         role,
-        inviter: actor!,
+        inviter: actor,
         baseUrl: publicBaseUrl(req.headers),
       });
       return fresh({ invitation }, { status: 201 });

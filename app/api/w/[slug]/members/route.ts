@@ -1,7 +1,6 @@
-import { getActor } from "@/app/lib/auth";
+import { requestActor, workspaceAccess } from "@/app/lib/access";
 import { fresh, handle } from "@/app/lib/http";
 import { listMembers } from "@/app/lib/members";
-import { authorizeSlug } from "@/app/lib/policy";
 
 export const dynamic = "force-dynamic";
 
@@ -9,7 +8,7 @@ export const dynamic = "force-dynamic";
 export function GET(req: Request, ctx: { params: Promise<{ slug: string }> }) {
   return handle(async () => {
     const { slug } = await ctx.params;
-    const { workspace } = authorizeSlug(await getActor(req), "workspace.read", slug);
+    const { workspace } = workspaceAccess(await requestActor(req), "workspace.read", slug);
     return fresh({ members: listMembers(workspace.id) });
   });
 }

@@ -1,7 +1,7 @@
 import { z } from "zod";
-import { guard } from "@/app/lib/guard";
+import { requestActor, workspaceAccess } from "@/app/lib/access";
 import { fresh, handle, readJson } from "@/app/lib/http";
-import { createNetwork, listNetworks, workspaceBySlug } from "@/app/lib/networks";
+import { createNetwork, listNetworks } from "@/app/lib/networks";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ slug: string }> };
@@ -9,9 +9,8 @@ type Ctx = { params: Promise<{ slug: string }> };
 /** GET /api/w/[slug]/networks (workspace.read): the workspace's networks with their head commit and newest run. */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const ws = workspaceBySlug((await ctx.params).slug);
-    await guard(request, "workspace.read", ws?.id);
-    return fresh({ workspace: ws, networks: listNetworks(ws!.id) });
+    const { workspace: w } = workspaceAccess(await requestActor(request), "workspace.read", (await ctx.params).slug);
+    return fresh({ workspace: { id: w.id, slug: w.slug, name: w.name }, networks: listNetworks(w.id) });
   });
 }
 
@@ -25,11 +24,10 @@ const CreateNetwork = z.object({
 /** POST /api/w/[slug]/networks (network.write): create a network, optionally with a first commit of `text`. */
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const ws = workspaceBySlug((await ctx.params).slug);
-    const { actor } = await guard(request, "network.write", ws?.id);
+    const { actor, workspace } = workspaceAccess(await requestActor(request), "network.write", (await ctx.params).slug);
     const input = await readJson(request, CreateNetwork);
     const created = createNetwork({
-      workspaceId: ws!.id,
+      workspaceId: workspace.id,
       name: input.name,
       text: input.text,
       message: input.message,

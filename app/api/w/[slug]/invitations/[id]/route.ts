@@ -1,16 +1,14 @@
-import { checkOrigin, getActor } from "@/app/lib/auth";
+import { requestActor, workspaceAccess } from "@/app/lib/access";
 import { handle } from "@/app/lib/http";
 import { revokeInvitation } from "@/app/lib/invitations";
-import { authorizeSlug } from "@/app/lib/policy";
 
 export const dynamic = "force-dynamic";
 
 /** DELETE /api/w/[slug]/invitations/[id]: withdraws a pending invitation (owners). 204. */
 export function DELETE(req: Request, ctx: { params: Promise<{ slug: string; id: string }> }) {
   return handle(async () => {
-    checkOrigin(req);
     const { slug, id } = await ctx.params;
-    const { workspace } = authorizeSlug(await getActor(req), "workspace.manage", slug);
+    const { workspace } = workspaceAccess(await requestActor(req), "workspace.manage", slug);
     revokeInvitation(workspace.id, id);
     return new Response(null, { status: 204 });
   });

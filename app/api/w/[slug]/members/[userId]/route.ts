@@ -1,8 +1,7 @@
 import { z } from "zod";
-import { checkOrigin, getActor } from "@/app/lib/auth";
+import { requestActor, workspaceAccess } from "@/app/lib/access";
 import { fresh, handle, readJson } from "@/app/lib/http";
 import { changeRole, removeMember, roleSchema } from "@/app/lib/members";
-import { authorizeSlug } from "@/app/lib/policy";
 
 export const dynamic = "force-dynamic";
 
@@ -11,9 +10,8 @@ type Ctx = { params: Promise<{ slug: string; userId: string }> };
 /** PATCH /api/w/[slug]/members/[userId] {role}: owners change roles; 409 for demoting the last owner. */
 export function PATCH(req: Request, ctx: Ctx) {
   return handle(async () => {
-    checkOrigin(req);
     const { slug, userId } = await ctx.params;
-    const { workspace } = authorizeSlug(await getActor(req), "workspace.manage", slug);
+    const { workspace } = workspaceAccess(await requestActor(req), "workspace.manage", slug);
     const { role } = await readJson(req, z.object({ role: roleSchema }));
     return fresh({ member: changeRole(workspace.id, userId, role) });
   });
@@ -25,11 +23,10 @@ export function PATCH(req: Request, ctx: Ctx) {
  */
 export function DELETE(req: Request, ctx: Ctx) {
   return handle(async () => {
-    checkOrigin(req);
     const { slug, userId } = await ctx.params;
-    const actor = await getActor(req);
+    const actor = await requestActor(req);
     const self = actor !== null && actor.userId === userId;
-    const { workspace } = authorizeSlug(actor, self ? "workspace.read" : "workspace.manage", slug);
+    const { workspace } = workspaceAccess(actor, self ? "workspace.read" : "workspace.manage", slug);
     removeMember(workspace.id, userId);
     return new Response(null, { status: 204 });
   });
