@@ -16,7 +16,8 @@ import path from "node:path";
 import { openDatabase } from "../db/index";
 import { seedDemo } from "../db/seed";
 import { commits, networks, runs } from "../db/schema";
-import { insertPoints, readPoint, readSeries, type PointRecord } from "../app/lib/results";
+import { POINT_SECTIONS, type SectionName, type StoredPoint } from "../app/lib/point-codec";
+import { insertPoints, readPoint, readSeries } from "../app/lib/results";
 
 const argv = process.argv.slice(2);
 const opt = (name: string, dflt: number) => (argv.includes(name) ? Number(argv[argv.indexOf(name) + 1]) : dflt);
@@ -41,7 +42,7 @@ function values(n: number, seed: number): Float64Array {
   return a;
 }
 
-function point(k: number): PointRecord {
+function point(k: number): StoredPoint {
   const sat = new Uint8Array(DEVICES);
   for (let i = 0; i < DEVICES; i++) sat[i] = (i + k) % 3 ? 1 : 0;
   return {
@@ -116,15 +117,10 @@ const blobWrite = time(() => {
   for (let s = 0; s < POINTS; s += 64) db.transaction((tx) => insertPoints(RUN, data.slice(s, s + 64), tx));
 });
 const blobBytes = pageBytes() - before;
-const KINDS: [number, keyof PointRecord][] = [
-  [0, "params"],
-  [1, "probes"],
-  [2, "rails"],
-  [3, "nodes"],
-  [4, "current"],
-  [5, "ic"],
-  [6, "saturated"],
-];
+const KINDS = POINT_SECTIONS.map((s, kind) => [kind, s.name] as const);
+const kindOf = (name: SectionName) => KINDS.findIndex(([, n]) => n === name);
+const K_NODES = kindOf("nodes");
+const K_CURRENT = kindOf("current");
 const ins = db.$client.prepare("insert into narrow values (?, ?, ?, ?, ?)");
 const narrowWrite = time(() => {
   for (let s = 0; s < POINTS; s += 64) {
@@ -145,10 +141,10 @@ const selPoint = db.$client.prepare(
   "select kind, entity, value from narrow where run_id = ? and point = ? order by kind, entity",
 );
 const selSeries = db.$client.prepare(
-  "select point, kind, entity, value from narrow where run_id = ? and kind in (0, 1) order by point, kind, entity",
+  `select point, kind, entity, value from narrow where run_id = ? and kind in (${kindOf("params")}, ${kindOf("probes")}) order by point, kind, entity`,
 );
 const selNode = db.$client.prepare(
-  "select point, value from narrow where run_id = ? and kind = 3 and entity = ? order by point",
+  `select point, value from narrow where run_id = ? and kind = ${K_NODES} and entity = ? order by point`,
 );
 const layout = { params: ["a", "b", "temp"], probes: ["p", "q"] };
 const mid = Math.floor(POINTS / 2);
@@ -156,8 +152,8 @@ const mid = Math.floor(POINTS / 2);
 function narrowPoint() {
   const out = { nodes: new Float64Array(NODES), current: new Float64Array(DEVICES) };
   for (const r of selPoint.iterate(RUN, mid) as Iterable<{ kind: number; entity: number; value: number }>) {
-    if (r.kind === 3) out.nodes[r.entity] = r.value;
-    else if (r.kind === 4) out.current[r.entity] = r.value;
+    if (r.kind === K_NODES) out.nodes[r.entity] = r.value;
+    else if (r.kind === K_CURRENT) out.current[r.entity] = r.value;
   }
   return out;
 }

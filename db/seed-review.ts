@@ -11,7 +11,7 @@ import path from "node:path";
 import { and, eq } from "drizzle-orm";
 import { commitText, getCommit, networkBySlug, slugify } from "@/app/lib/networks";
 import { newId } from "@/db/ids";
-import { pointsOf } from "@/app/lib/results";
+import { pointCount } from "@/src/solver/index";
 import { executeRun } from "@/app/lib/run-exec";
 import { saveMeasurement } from "@/app/lib/review/measurement-store";
 import { elaborate } from "@/src/lang/index";
@@ -106,7 +106,7 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
           networkId: network.id,
           workspaceId,
           createdBy: "u_designer1",
-          pointsTotal: pointsOf(net),
+          pointsTotal: pointCount(net),
           timeLimitMs: 10 * 60_000,
         })
         .run();

@@ -10,7 +10,7 @@ import path from "node:path";
 import { and, eq } from "drizzle-orm";
 import { commitText, createNetwork, networkBySlug, slugify } from "@/app/lib/networks";
 import { newId } from "@/db/ids";
-import { pointsOf } from "@/app/lib/results";
+import { pointCount } from "@/src/solver/index";
 import { executeRun } from "@/app/lib/run-exec";
 import { elaborate } from "@/src/lang/index";
 import type { DB } from "./index";
@@ -126,7 +126,7 @@ export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; r
         networkId: network.id,
         workspaceId,
         createdBy: demo.author,
-        pointsTotal: pointsOf(result.network),
+        pointsTotal: pointCount(result.network),
         timeLimitMs: 10 * 60_000,
       })
       .run();

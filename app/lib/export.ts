@@ -8,9 +8,11 @@
  * - JSON: the document of `runnel solve --json` (LANGUAGE.md) with a `run` member.
  */
 import type { CommitDiagnostic } from "@/db/schema";
+import type { JsonPoint } from "@/src/solver/index";
 import type { CommitRow } from "./networks";
 import { db, type Q } from "@/db";
-import { eachPoint, readPoint, type PointRecord, type RunLayout } from "./results";
+import type { StoredPoint } from "./point-codec";
+import { eachPoint, readPoint, type RunLayout } from "./results";
 import type { RunRow } from "./runs";
 
 export type CsvTable = "probes" | "nodes" | "devices" | "rails";
@@ -46,7 +48,7 @@ export function csvHeader(layout: RunLayout, table: CsvTable): string {
   }
 }
 
-export function csvRows(layout: RunLayout, table: CsvTable, p: PointRecord): string {
+export function csvRows(layout: RunLayout, table: CsvTable, p: StoredPoint): string {
   switch (table) {
     case "probes":
       return line([p.point, p.sample, ...p.params, ...p.probes, p.method, p.iterations, p.residual, p.error]);
@@ -115,22 +117,22 @@ export function csvStream(
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
-/** One point in the `runnel solve --json` shape. */
-export function pointJson(layout: RunLayout, p: PointRecord): Record<string, unknown> {
-  const params: Record<string, number | null> = {};
+/** One point in the `runnel solve --json` shape (a NaN prints as null). */
+export function pointJson(layout: RunLayout, p: StoredPoint): JsonPoint {
+  const params: Record<string, number> = {};
   // Only swept params and temp vary; the document lists every param, as the CLI does.
   layout.params.forEach((name, j) => {
-    if (name !== "temp" || layout.sweeps.some((s) => s.param === "temp")) params[name] = num(p.params[j]);
+    if (name !== "temp" || layout.sweeps.some((s) => s.param === "temp")) params[name] = p.params[j];
   });
-  const nodes: Record<string, number | null> = {};
+  const nodes: Record<string, number> = {};
   layout.nodes.forEach((name, k) => {
-    if (!layout.nodeIsRail[k]) nodes[name] = num(p.nodes[k]);
+    if (!layout.nodeIsRail[k]) nodes[name] = p.nodes[k];
   });
-  const rails: Record<string, number | null> = {};
-  layout.rails.forEach((name, k) => (rails[name] = num(p.rails[k])));
-  const devices: Record<string, { current: number | null; ic: number | null; saturated: boolean }> = {};
+  const rails: Record<string, number> = {};
+  layout.rails.forEach((name, k) => (rails[name] = p.rails[k]));
+  const devices: JsonPoint["devices"] = {};
   layout.devices.forEach(
-    (name, k) => (devices[name] = { current: num(p.current[k]), ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }),
+    (name, k) => (devices[name] = { current: p.current[k], ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }),
   );
   const probes: Record<string, number | null> = {};
   layout.probes.forEach((name, k) => (probes[name] = num(p.probes[k])));
@@ -140,7 +142,7 @@ export function pointJson(layout: RunLayout, p: PointRecord): Record<string, unk
     rails,
     devices,
     probes,
-    solver: { method: p.method, iterations: p.iterations, residual: num(p.residual) },
+    solver: { method: p.method, iterations: p.iterations, residual: p.residual },
     sample: layout.mismatch ? p.sample : 0,
     ...(p.error ? { error: p.error } : {}),
   };

@@ -5,41 +5,92 @@
  * than copying the stored blobs.
  *
  * Layout (little-endian): u32 header length H; H bytes of UTF-8 JSON (PointHeader);
- * zero padding to a multiple of 8; then the arrays in SECTION order, each
+ * zero padding to a multiple of 8; then the sections in POINT_SECTIONS order, each
  * `count × element size` bytes, each Float64 section starting on a multiple of 8.
  * Names are not repeated here: they are the run's layout (view=layout).
  * Pure: used on the server (encode) and in the browser (decode).
  */
 
-export interface PointHeader {
+/**
+ * The seven arrays a point stores, in the one order every writer and reader
+ * follows: the `run_points` blob columns (app/lib/results.ts), this binary
+ * form, the run worker's record (app/lib/run-exec.ts) and the exports. Each
+ * holds one value per element of its `count` in the run's layout (names).
+ */
+export const POINT_SECTIONS = [
+  { name: "nodes", type: Float64Array, count: "nodes" },
+  { name: "rails", type: Float64Array, count: "rails" },
+  { name: "probes", type: Float64Array, count: "probes" },
+  { name: "params", type: Float64Array, count: "params" },
+  { name: "current", type: Float64Array, count: "devices" },
+  { name: "ic", type: Float32Array, count: "devices" },
+  { name: "saturated", type: Uint8Array, count: "devices" },
+] as const;
+
+export type Section = (typeof POINT_SECTIONS)[number];
+export type SectionName = Section["name"];
+
+/** Element counts of a point's sections (from the run's layout). */
+export type PointCounts = Record<Section["count"], number>;
+
+/** A point's sections as typed arrays: node voltages, rail currents, probes, params, and per device current, ic, saturation. */
+export type PointSections = { [S in Section as S["name"]]: ArrayOf<S["type"]> };
+type ArrayOf<C> = C extends Float64ArrayConstructor
+  ? Float64Array
+  : C extends Float32ArrayConstructor
+    ? Float32Array
+    : Uint8Array;
+
+/**
+ * One stored point: its place in the run, its solver figures and its
+ * sections (NaN where a value is unknown; every section NaN when `error`).
+ */
+export interface StoredPoint extends PointSections {
   point: number;
   sample: number;
-  grid: number[];
-  method: string;
+  method: "linear" | "newton";
   iterations: number;
   residual: number;
+  /** Why the point could not be solved; null when solved. */
   error: string | null;
-  /** Element counts: nodes, rails, probes, params, devices. */
-  counts: { nodes: number; rails: number; probes: number; params: number; devices: number };
 }
 
-export interface DecodedPoint {
-  header: PointHeader;
-  nodes: Float64Array;
-  rails: Float64Array;
-  probes: Float64Array;
-  params: Float64Array;
-  current: Float64Array;
-  ic: Float32Array;
-  saturated: Uint8Array;
+/** The binary form's JSON header: the point without its sections, its grid indices and the sections' counts. */
+export type PointHeader = Omit<StoredPoint, SectionName> & { grid: number[]; counts: PointCounts };
+
+/** A decoded point: its header and its sections (views into the received buffer). */
+export type DecodedPoint = PointSections & { header: PointHeader };
+
+/** Values a point stores in all its sections. */
+export function valuesOf(counts: PointCounts): number {
+  let n = 0;
+  for (const s of POINT_SECTIONS) n += counts[s.count];
+  return n;
+}
+
+/** Typed views of a point's sections over their stored bytes (copied only when a blob is not aligned for its type). */
+export function sectionsFrom(bytes: (s: Section) => Uint8Array): PointSections {
+  const out: Partial<Record<SectionName, ArrayBufferView>> = {};
+  for (const s of POINT_SECTIONS) {
+    let b = bytes(s);
+    const size = s.type.BYTES_PER_ELEMENT;
+    if (b.byteOffset % size !== 0) b = b.slice();
+    out[s.name] = new s.type(b.buffer as ArrayBuffer, b.byteOffset, b.byteLength / size);
+  }
+  return out as PointSections;
+}
+
+/** A point's sections as bytes, in section order. */
+export function sectionBytes(p: PointSections): Uint8Array[] {
+  return POINT_SECTIONS.map((s) => {
+    const a = p[s.name];
+    return new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
+  });
 }
 
 const pad8 = (n: number) => (n + 7) & ~7;
 
-/**
- * Encodes a point from its stored blobs (each already the right element type);
- * `arrays` in the order nodes, rails, probes, params, current (Float64), ic (Float32), saturated (Uint8).
- */
+/** Encodes a point from its header and its sections' bytes (each already the right element type), in section order. */
 export function encodePoint(header: PointHeader, arrays: readonly Uint8Array[]): Uint8Array<ArrayBuffer> {
   const json = new TextEncoder().encode(JSON.stringify(header));
   const start = pad8(4 + json.length);
@@ -60,22 +111,14 @@ export function decodePoint(buf: ArrayBuffer): DecodedPoint {
   const view = new DataView(buf);
   const h = view.getUint32(0, true);
   const header = JSON.parse(new TextDecoder().decode(new Uint8Array(buf, 4, h))) as PointHeader;
-  const c = header.counts;
   let at = pad8(4 + h);
-  const f64 = (n: number) => {
-    const a = new Float64Array(buf, at, n);
-    at += pad8(n * 8);
-    return a;
-  };
-  const nodes = f64(c.nodes);
-  const rails = f64(c.rails);
-  const probes = f64(c.probes);
-  const params = f64(c.params);
-  const current = f64(c.devices);
-  const ic = new Float32Array(buf, at, c.devices);
-  at += pad8(c.devices * 4);
-  const saturated = new Uint8Array(buf, at, c.devices);
-  return { header, nodes, rails, probes, params, current, ic, saturated };
+  const sections = sectionsFrom((s) => {
+    const bytes = header.counts[s.count] * s.type.BYTES_PER_ELEMENT;
+    const b = new Uint8Array(buf, at, bytes);
+    at += pad8(bytes);
+    return b;
+  });
+  return { header, ...sections };
 }
 
 /** Names the decoded arrays are in the order of (the run's layout; see app/lib/results.ts RunLayout). */
@@ -89,19 +132,25 @@ export interface PointNames {
   params: string[];
 }
 
-/** One point with its names, as the run page's tables and plots read it; NaN where a value is unknown. */
-export interface PointData {
+/**
+ * One point with its names, as the run page's tables and plots read it (NaN
+ * where a value is unknown). `?view=point` sends the same shape as JSON,
+ * its arrays as lists with null for NaN (app/lib/results.ts PointView).
+ */
+export interface NamedPoint<Values = Float64Array, Small = Float32Array, Flags = Uint8Array, Num = number> {
   point: number;
   sample: number;
   grid: number[];
-  params: Record<string, number>;
-  solver: { method: string; iterations: number; residual: number };
+  params: Record<string, Num>;
+  solver: { method: string; iterations: number; residual: Num };
   error: string | null;
-  nodes: { names: string[]; isRail: boolean[]; voltage: Float64Array };
-  devices: { names: string[]; types: string; current: Float64Array; ic: Float32Array; saturated: Uint8Array };
-  rails: { names: string[]; current: Float64Array };
-  probes: { names: string[]; value: Float64Array };
+  nodes: { names: string[]; isRail: boolean[]; voltage: Values };
+  devices: { names: string[]; types: string; current: Values; ic: Small; saturated: Flags };
+  rails: { names: string[]; current: Values };
+  probes: { names: string[]; value: Values };
 }
+
+export type PointData = NamedPoint;
 
 export function pointData(names: PointNames, p: DecodedPoint): PointData {
   const h = p.header;

@@ -13,7 +13,16 @@ import type { Network } from "@/src/lang/index";
 import { NFET } from "@/src/lang/index";
 import { runPoints, runs } from "@/db/schema";
 import { db, type Q } from "@/db";
-import { encodePoint, type PointHeader } from "./point-codec";
+import {
+  encodePoint,
+  type NamedPoint,
+  POINT_SECTIONS,
+  type PointCounts,
+  type PointHeader,
+  sectionsFrom,
+  type StoredPoint,
+  valuesOf,
+} from "./point-codec";
 
 /** Names of everything a point stores, in the order of the blob columns. */
 export interface RunLayout {
@@ -30,26 +39,6 @@ export interface RunLayout {
   params: string[];
   sweeps: { param: string; values: number[]; log: boolean }[];
   mismatch: { runs: number; seed: number; avt: number } | null;
-}
-
-/** One solved point, in the layout's order. */
-export interface PointRecord {
-  point: number;
-  sample: number;
-  params: Float64Array;
-  probes: Float64Array;
-  method: "linear" | "newton";
-  iterations: number;
-  residual: number;
-  /** Why the point could not be solved (its arrays are then NaN); null when solved. */
-  error: string | null;
-  rails: Float64Array;
-  nodes: Float64Array;
-  current: Float64Array;
-  /** NaN where unknown. */
-  ic: Float32Array;
-  /** 1 saturated, 0 not. */
-  saturated: Uint8Array;
 }
 
 /** Limits checked before a run is queued (POST /api/runs answers 422 with the numbers). */
@@ -75,16 +64,26 @@ export function layoutOf(net: Network): RunLayout {
   };
 }
 
-/** Points of a run: the product of the sweep lengths, times the mismatch samples. */
-export function pointsOf(net: Pick<Network, "sweeps" | "mismatch">): number {
-  let n = 1;
-  for (const s of net.sweeps) n *= s.values.length;
-  return n * (net.mismatch?.runs ?? 1);
+/** Element counts of the sections a point of this layout stores. */
+export function countsOf(layout: Pick<RunLayout, "nodes" | "rails" | "probes" | "params" | "devices">): PointCounts {
+  return {
+    nodes: layout.nodes.length,
+    rails: layout.rails.length,
+    probes: layout.probes.length,
+    params: layout.params.length,
+    devices: layout.devices.length,
+  };
 }
 
-/** Values stored per point: node voltages, rail currents, probes, params, and current, ic, saturation per device. */
+/** Values stored per point: node voltages, rail currents, probes, params (and temp), and current, ic, saturation per device. */
 export function valuesPerPoint(net: Network): number {
-  return net.nodes.names.length + net.rails.length + net.probes.length + net.params.length + 1 + 3 * net.devices.count;
+  return valuesOf({
+    nodes: net.nodes.names.length,
+    rails: net.rails.length,
+    probes: net.probes.length,
+    params: net.params.length + 1,
+    devices: net.devices.count,
+  });
 }
 
 /** The grid indices of point `k` (outer sweep first) and its mismatch sample. */
@@ -121,7 +120,7 @@ function view<T extends Float64Array | Float32Array | Uint8Array>(
 }
 
 /** Inserts points (one statement per point; call inside a transaction for speed). */
-export function insertPoints(runId: string, points: readonly PointRecord[], d: Q = db()): void {
+export function insertPoints(runId: string, points: readonly StoredPoint[], d: Q = db()): void {
   for (const p of points) {
     d.insert(runPoints)
       .values({
@@ -145,7 +144,7 @@ export function insertPoints(runId: string, points: readonly PointRecord[], d: Q
 }
 
 /** One whole point, or null when it is not stored. */
-export function readPoint(runId: string, point: number, d: Q = db()): PointRecord | null {
+export function readPoint(runId: string, point: number, d: Q = db()): StoredPoint | null {
   const r = d
     .select()
     .from(runPoints)
@@ -155,17 +154,11 @@ export function readPoint(runId: string, point: number, d: Q = db()): PointRecor
   return {
     point: r.point,
     sample: r.sample,
-    params: view(r.params, Float64Array),
-    probes: view(r.probes, Float64Array),
     method: r.method,
     iterations: r.iterations,
     residual: r.residual,
     error: r.error,
-    rails: view(r.rails, Float64Array),
-    nodes: view(r.nodes, Float64Array),
-    current: view(r.current, Float64Array),
-    ic: view(r.ic, Float32Array),
-    saturated: view(r.saturated, Uint8Array),
+    ...sectionsFrom((s) => r[s.name]),
   };
 }
 
@@ -255,19 +248,8 @@ export function runLayout(runId: string, d: Q = db()): RunLayout | null {
   return layout;
 }
 
-/** What the run page's tables show for one point (GET /api/runs/[id]/results?view=point). */
-export interface PointView {
-  point: number;
-  sample: number;
-  grid: number[];
-  params: Record<string, number | null>;
-  solver: { method: string; iterations: number; residual: number };
-  error: string | null;
-  nodes: { names: string[]; isRail: boolean[]; voltage: (number | null)[] };
-  devices: { names: string[]; types: string; current: (number | null)[]; ic: (number | null)[]; saturated: number[] };
-  rails: { names: string[]; current: (number | null)[] };
-  probes: { names: string[]; value: (number | null)[] };
-}
+/** What the run page's tables show for one point (GET /api/runs/[id]/results?view=point): lists, null for NaN. */
+export type PointView = NamedPoint<(number | null)[], (number | null)[], number[], number | null>;
 
 export function pointView(runId: string, layout: RunLayout, point: number, d: Q = db()): PointView | null {
   const p = readPoint(runId, point, d);
@@ -335,7 +317,7 @@ export function seriesView(
 }
 
 /** Stored points of a run, in order (export). */
-export function* eachPoint(runId: string, d: Q = db()): Generator<PointRecord> {
+export function* eachPoint(runId: string, d: Q = db()): Generator<StoredPoint> {
   const ids = d
     .select({ point: runPoints.point })
     .from(runPoints)
@@ -369,15 +351,12 @@ export function pointBinary(
     iterations: r.iterations,
     residual: r.residual,
     error: r.error,
-    counts: {
-      nodes: layout.nodes.length,
-      rails: layout.rails.length,
-      probes: layout.probes.length,
-      params: layout.params.length,
-      devices: layout.devices.length,
-    },
+    counts: countsOf(layout),
   };
-  return encodePoint(header, [r.nodes, r.rails, r.probes, r.params, r.current, r.ic, r.saturated]);
+  return encodePoint(
+    header,
+    POINT_SECTIONS.map((s) => r[s.name]),
+  );
 }
 
 /**

@@ -20,7 +20,8 @@ import { elaborate, type Network } from "@/src/lang/index";
 import type { PointResult, RunResult } from "@/src/solver/results";
 import { solveNetwork } from "@/src/solver/index";
 import { db, type Q } from "@/db";
-import { insertPoints, layoutOf, type PointRecord, type RunLayout } from "./results";
+import type { StoredPoint } from "./point-codec";
+import { insertPoints, layoutOf, type RunLayout } from "./results";
 import { storeCommitDiff } from "./review/diffs";
 
 /** Values of the shared stop flag. */
@@ -138,7 +139,7 @@ function runClaimed(
       if (control.fault === "throw" && pointsDone >= 1) throw new Error("test fault: the solver threw at point 1");
     };
     const stats = new RunStats(net.devices.count);
-    let batch: PointRecord[] = [];
+    let batch: StoredPoint[] = [];
     let lastFlush = now();
     const flush = (): void => {
       if (batch.length === 0) return;
@@ -266,7 +267,7 @@ class RunStats {
   }
 }
 
-function toRecord(net: Network, layout: RunLayout, p: PointResult): PointRecord {
+function toRecord(net: Network, layout: RunLayout, p: PointResult): StoredPoint {
   const paramNames = layout.params;
   const params = new Float64Array(paramNames.length);
   for (let j = 0; j < paramNames.length; j++) {

@@ -25,7 +25,8 @@ import { elaborate } from "@/src/lang/index";
 import { RequestError } from "./http";
 import type { Q } from "@/db";
 import { getCommit } from "./networks";
-import { RUN_LIMITS, pointsOf, valuesPerPoint } from "./results";
+import { pointCount } from "@/src/solver/index";
+import { RUN_LIMITS, valuesPerPoint } from "./results";
 import { STOP_CANCEL, STOP_TIME, type RunTask, type RunTaskResult } from "./run-exec";
 import {
   finishRun,
@@ -146,7 +147,7 @@ export function startRun(input: StartRunInput, d: Q = db()): RunRow {
   }
   const result = elaborate(commit.text);
   if (!result.network) throw new RequestError(422, "the commit does not elaborate to a network");
-  const points = pointsOf(result.network);
+  const points = pointCount(result.network);
   const values = points * valuesPerPoint(result.network);
   if (points > RUN_LIMITS.pointsPerRun) {
     throw new RequestError(

@@ -2,27 +2,14 @@
  * The Runnel solver: pure TypeScript, no I/O (server, worker threads, CLI, tests).
  *
  *   classify(net)                       which method a network needs, and why
- *   solveNetwork(net, opts) → RunResult every point: sweep grid (outer first) × mismatch samples
- *   toSolveJson(net, diagnostics, run)  the LANGUAGE.md `solve --json` document
- *   NetworkBuilder                      networks in code (tests, benchmarks)
+ *   solveNetwork(net, opts) → RunResult every point (or a range): sweep grid (outer first) × mismatch samples
+ *   toSolveJson(net, diagnostics, run)  the docs/language.md `solve --json` document
  */
 
 export { classify, type Classification } from "./classify";
 export { solveNetwork, sweepGrid, pointCount, type SolveOptions } from "./sweep";
-export {
-  toSolveJson,
-  pointJson,
-  evaluate,
-  type PointResult,
-  type RunResult,
-  type RunTimings,
-  type SolverInfo,
-  type SolverWarning,
-  type ProbeSummary,
-  type SolveJson,
-  type JsonPoint,
-  type Method,
-} from "./results";
-export { NetworkBuilder, type Value, type Pin, type SweepSpec } from "./build";
+export { evaluate } from "./evaluate";
+export type { PointResult, RunResult, RunTimings, SolverInfo, SolverWarning, ProbeSummary, Method } from "./results";
+export { toSolveJson, pointJson, type SolveJson, type JsonPoint } from "./json";
 export { DEFAULT_ORDERING, type OrderingChoice } from "./linear";
 export { summarize } from "./mismatch";

@@ -2,7 +2,7 @@
  * The evaluation of a linear-class point from its solved pseudo-voltages:
  * every device's current, saturation, inversion coefficient and junction
  * check, every rail's current and the KCL residual — the same quantities as
- * results.ts `evaluate`, from the same device equation (LANGUAGE.md):
+ * evaluate.ts `evaluate`, from the same device equation (LANGUAGE.md):
  *
  *   I = i0·(W/L)·e^{−κ·dVT/U_T}·exp(κ·Vg/U_T)·(exp(−Vs/U_T) − exp(−Vd/U_T))
  *     = gs_c·ĝ·(û_s − û_d)                              (linear.ts scaling)
@@ -19,23 +19,8 @@
 import type { Network } from "../lang/network";
 import type { LinearPlan, SuperposedParts } from "./linear";
 import { pool } from "./pool";
-import {
-  currentScale,
-  type Evaluation,
-  evalStats,
-  KCL_LIMIT,
-  noIc,
-  type PointStorage,
-  S_ICOUNT,
-  S_IFIRST,
-  S_IWORST,
-  S_JCOUNT,
-  S_JFIRST,
-  S_JWORST,
-  S_MAX,
-  validityWarnings,
-  WEAK_LIMIT,
-} from "./results";
+import { currentScale, EvalStats, KCL_LIMIT, noIc, validityWarnings, WEAK_LIMIT } from "./evaluate";
+import type { Evaluation, PointStorage } from "./results";
 
 /** e^{−4}: V_DS > 4·U_T in pseudo-voltages. */
 const E4 = Math.exp(-4);
@@ -57,10 +42,7 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
   const ispec = settings.ispec;
   const hasIc = ispec !== null;
   const ic = hasIc && out.ic ? out.ic : noIc(net);
-  const st = evalStats;
-  st.fill(0);
-  st[S_JFIRST] = -1;
-  st[S_IFIRST] = -1;
+  const st = new EvalStats();
   const gsN = Math.exp(plan.lnScale[1]);
   const gsP = Math.exp(plan.lnScale[0]);
   const junctions = junctionPossible(plan);
@@ -69,12 +51,12 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
     // A point superposed from one changed inject: every per-device quantity is part0 + v·part1 too.
     const parts = sup.parts ?? (sup.parts = superposedParts(plan, gsN, gsP));
     const v = injects.value[sup.changed[0]];
-    st[S_MAX] = superposedLoop(m, parts, v, out.currents, out.saturated);
+    st.maxCurrent = superposedLoop(m, parts, v, out.currents, out.saturated);
     const { e0, e1 } = parts;
     for (let e = 0; e < ends; e++) ent[e] = e0[e] + v * e1[e];
   } else {
     ent.fill(0);
-    st[S_MAX] = currentLoop(
+    st.maxCurrent = currentLoop(
       m,
       plan.pack,
       plan.c,
@@ -124,7 +106,7 @@ export function evaluateLinear(plan: LinearPlan, net: Network, V: Float64Array, 
     railCurrents,
     residual,
     worstNode: worst < 0 ? -1 : plan.nodeAt[worst],
-    maxCurrent: st[S_MAX],
+    maxCurrent: st.maxCurrent,
     warnings: validityWarnings(net, st),
   };
 }
@@ -166,7 +148,7 @@ function currentLoop(
   currents: Float64Array,
   saturated: Uint8Array,
   ent: Float64Array,
-  st: Float64Array,
+  st: EvalStats,
 ): number {
   let most = 0;
   let first = -1;
@@ -192,8 +174,8 @@ function currentLoop(
       count++;
     }
   }
-  st[S_JCOUNT] = count;
-  st[S_JFIRST] = first;
+  st.junctionCount = count;
+  st.junctionFirst = first;
   return most;
 }
 
@@ -214,7 +196,7 @@ function superposedParts(plan: LinearPlan, gsN: number, gsP: number): Superposed
   const ends = y.length;
   const u = pool.takeF64(ends);
   const flags = pool.takeU8(m);
-  const stats = new Float64Array(evalStats.length);
+  const stats = new EvalStats();
   const parts: SuperposedParts = {
     i0: pool.takeF64(m),
     i1: pool.takeF64(m),
@@ -264,9 +246,9 @@ function superposedLoop(
  * The forward bias in volts (from V) of the devices currentLoop flagged as
  * beyond their bulk/well: the largest into st.
  */
-function junctionWorst(plan: LinearPlan, net: Network, V: Float64Array, st: Float64Array): void {
-  const first = st[S_JFIRST];
-  if (st[S_JCOUNT] === 0 || first < 0) return;
+function junctionWorst(plan: LinearPlan, net: Network, V: Float64Array, st: EvalStats): void {
+  const first = st.junctionFirst;
+  if (st.junctionCount === 0 || first < 0) return;
   const { pack, y, keyJunction, keyType, keyBulk } = plan;
   const { source, drain } = net.devices;
   const m = net.devices.count;
@@ -285,7 +267,7 @@ function junctionWorst(plan: LinearPlan, net: Network, V: Float64Array, st: Floa
     const fwd = keyType[key] === 0 ? vb - Math.min(vs, vd) : Math.max(vs, vd) - vb;
     if (fwd > worst) worst = fwd;
   }
-  st[S_JWORST] = worst;
+  st.junctionWorst = worst;
 }
 
 /** Inversion coefficients I_F/(ispec·W/L) and the devices beyond weak inversion. */
@@ -300,7 +282,7 @@ function icLoop(
   l: Float64Array,
   ispec: number,
   ic: Float64Array,
-  st: Float64Array,
+  st: EvalStats,
 ): void {
   let first = -1;
   let count = 0;
@@ -316,9 +298,9 @@ function icLoop(
       if (v > worst) worst = v;
     }
   }
-  st[S_ICOUNT] = count;
-  st[S_IFIRST] = first;
-  st[S_IWORST] = worst;
+  st.inversionCount = count;
+  st.inversionFirst = first;
+  st.inversionWorst = worst;
 }
 
 /**

@@ -51,7 +51,7 @@ import { cholesky, type CholeskyWork, choleskyWork, emptyFactor, type Factor, ma
 import type { DeviceParams } from "./device";
 import { natural, order, type OrderingName } from "./order";
 import { Arena, pool } from "./pool";
-import { JUNCTION_TOLERANCE } from "./results";
+import { JUNCTION_TOLERANCE } from "./evaluate";
 import { cumsum, dedupeAdjacency, type Csc } from "./sparse";
 import { analyse, type Kernel, naturalHasNoFill, type Symbolic } from "./symbolic";
 import { lsolve, ltsolve } from "./triangular";

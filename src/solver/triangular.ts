@@ -111,24 +111,3 @@ function ltsolveSupernodal(sn: Supernodes, lx: Float64Array, x: Float64Array): v
     }
   }
 }
-
-/** x = P·b, i.e. x[k] = b[perm[k]]. */
-export function pvec(perm: Int32Array, b: Float64Array, x: Float64Array): void {
-  for (let k = 0; k < perm.length; k++) x[k] = b[perm[k]];
-}
-
-/** x = Pᵀ·b, i.e. x[perm[k]] = b[k]. */
-export function ipvec(perm: Int32Array, b: Float64Array, x: Float64Array): void {
-  for (let k = 0; k < perm.length; k++) x[perm[k]] = b[k];
-}
-
-/**
- * x = A⁻¹·b for A = Pᵀ·L·Lᵀ·P: y = P·b, y = L \ y, y = Lᵀ \ y, x = Pᵀ·y.
- * `work` (length n) is scratch; b and x may be the same array.
- */
-export function cholSolve(L: Factor, perm: Int32Array, b: Float64Array, x: Float64Array, work: Float64Array): void {
-  pvec(perm, b, work);
-  lsolve(L, work);
-  ltsolve(L, work);
-  ipvec(perm, work, x);
-}

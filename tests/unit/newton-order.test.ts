@@ -9,7 +9,7 @@
  * here by bisection.
  */
 import { describe, expect, it } from "vitest";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { solveNetwork } from "../../src/solver/sweep";
 
 const T = 300.15;
@@ -30,7 +30,7 @@ function diodeVoltage(): number {
 }
 
 function mesh(n: number) {
-  const b = new NetworkBuilder("mesh")
+  const b = new NetworkText("mesh")
     .set({ temp: T, kappa: KAPPA, i0: I0 })
     .rail("vdd", 1.8)
     .rail("gnd", 0)

@@ -15,7 +15,7 @@
  */
 import { describe, expect, it } from "vitest";
 import type { Network } from "../../src/lang/network";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { deviceParams } from "../../src/solver/device";
 import { initialGuess, planNewton, solveNewton } from "../../src/solver/newton";
 import { solveNetwork } from "../../src/solver/sweep";
@@ -69,11 +69,7 @@ function expectOutput(v: number, vin: number): void {
 
 /** A chain of n inverters, input rail vin, outputs x1..xn. */
 function chain(n: number, vin: number): Network {
-  const b = new NetworkBuilder()
-    .set({ temp: T, kappa: KAPPA, i0: I0 })
-    .rail("vdd", VDD)
-    .rail("gnd", 0)
-    .rail("vin", vin);
+  const b = new NetworkText().set({ temp: T, kappa: KAPPA, i0: I0 }).rail("vdd", VDD).rail("gnd", 0).rail("vin", vin);
   for (let k = 1; k <= n; k++) {
     const g = k === 1 ? "vin" : `x${k - 1}`;
     b.pfet(`p${k}`, { gate: g, source: "vdd", drain: `x${k}`, well: "vdd" });

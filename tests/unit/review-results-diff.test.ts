@@ -6,7 +6,7 @@ import {
   summarize,
   tableFromPoints,
   within,
-  type JsonPoint,
+  type PointValues,
 } from "@/app/lib/review/results-diff";
 
 /**
@@ -25,13 +25,13 @@ const KAPPA = 0.7;
 const VG = 0.6;
 const VDD = 1.8;
 
-function solveDivider(w1: number, w2: number, iin: number, extra?: { name: string; w: number }): JsonPoint {
+function solveDivider(w1: number, w2: number, iin: number, extra?: { name: string; w: number }): PointValues {
   const g = (w: number) => I0 * (w / 1e-6) * Math.exp((KAPPA * VG) / UT);
   const ud = Math.exp(-VDD / UT);
   const ux = ud + iin / (g(w1) + g(w2) + (extra ? g(extra.w) : 0));
   const uy = ud + 5e-9 / g(1e-6);
   const i = (w: number, u: number) => g(w) * (u - ud);
-  const devices: JsonPoint["devices"] = {
+  const devices: PointValues["devices"] = {
     m1: { current: i(w1, ux), ic: null },
     m2: { current: i(w2, ux), ic: null },
     m3: { current: i(1e-6, uy), ic: null },

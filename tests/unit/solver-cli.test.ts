@@ -11,7 +11,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { MAX_PRINTED_VALUES, main } from "../../scripts/runnel";
-import type { SolveJson } from "../../src/solver/results";
+import type { SolveJson } from "../../src/solver/json";
 
 const root = join(__dirname, "../..");
 const examples = readdirSync(join(root, "examples")).filter((f) => f.endsWith(".runnel"));
@@ -38,7 +38,7 @@ describe("runnel solve --json on the examples", () => {
       expect(doc.points.length).toBeGreaterThan(0);
       for (const p of doc.points) {
         expect(["linear", "newton"]).toContain(p.solver.method);
-        expect(p.solver.reason.length).toBeGreaterThan(10);
+        expect(p.solver.reason?.length).toBeGreaterThan(10);
         let imax = 0;
         for (const d of Object.values(p.devices)) imax = Math.max(imax, Math.abs(d.current));
         expect(p.solver.residual).toBeLessThanOrEqual(1e-9 * imax);

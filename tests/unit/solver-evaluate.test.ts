@@ -10,12 +10,12 @@
  * KCL at the internal node (common practice).
  */
 import { describe, expect, it } from "vitest";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import type { PointResult } from "../../src/solver/results";
 import { solveNetwork } from "../../src/solver/sweep";
 
 function mirror() {
-  return new NetworkBuilder()
+  return new NetworkText()
     .set({ ispec: 1e-7 })
     .param("iin", 1e-9)
     .rail("vdd", 1.8)
@@ -23,7 +23,7 @@ function mirror() {
     .rail("gnd", 0)
     .pfet("a", { gate: "vg", well: "vdd", source: "vdd", drain: "x" })
     .pfet("b", { gate: "vg", well: "vdd", source: "x", drain: "gnd", w: 2e-6 })
-    .inject("i", { from: "x", to: "gnd", value: { deps: ["iin"], expr: (s) => s.iin } })
+    .inject("i", { from: "x", to: "gnd", value: "iin" })
     .sweep("iin", [1e-10, 1e-9, 5e-9, 2e-8])
     .build();
 }

@@ -11,10 +11,11 @@ import fc from "fast-check";
 import { all, create } from "mathjs";
 import { describe, expect, it } from "vitest";
 import { type Network, NFET } from "../../src/lang/network";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { classify } from "../../src/solver/classify";
 import { deviceParams } from "../../src/solver/device";
-import { evaluate, type PointResult } from "../../src/solver/results";
+import { evaluate } from "../../src/solver/evaluate";
+import type { PointResult } from "../../src/solver/results";
 import { solveNetwork } from "../../src/solver/sweep";
 
 // math.js with exact zero tests: pseudo-voltages span ~30 decades, far beyond its default absolute tolerance.
@@ -108,7 +109,7 @@ function randomLinear(seed: number, maxN = 25, maxP = 8): Stmt[] {
 }
 
 function build(stmts: Stmt[], rename: (n: string) => string = (n) => n): Network {
-  const b = new NetworkBuilder("random").set({ temp: 300.15 });
+  const b = new NetworkText("random").set({ temp: 300.15 });
   const pin = (n: string) => rename(n);
   for (const s of stmts) {
     if (s.kind === "rail") b.rail(pin(s.name), s.value as number);
@@ -355,7 +356,7 @@ describe("properties of random linear-class networks (fast-check)", () => {
 
 describe("classification and unsolvable networks", () => {
   it("gives the reason that breaks the linear class, naming the node or device", () => {
-    const base = () => new NetworkBuilder().rail("gnd", 0).rail("vdd", 1.8).rail("vg", 0.6);
+    const base = () => new NetworkText().rail("gnd", 0).rail("vdd", 1.8).rail("vg", 0.6);
     const mirror = base()
       .inject("i", { from: "gnd", to: "x", value: 1e-9 })
       .nfet("m1", { gate: "x", source: "gnd", drain: "x" })
@@ -387,7 +388,7 @@ describe("classification and unsolvable networks", () => {
   });
 
   it("a mirror is solved by Newton and says why", () => {
-    const net = new NetworkBuilder()
+    const net = new NetworkText()
       .rail("gnd", 0)
       .rail("vout", 1)
       .inject("iin", { from: "gnd", to: "x", value: 1e-9 })
@@ -401,7 +402,7 @@ describe("classification and unsolvable networks", () => {
 
   it("an inject asking more than the channels can carry has no physical operating point, naming the node", () => {
     // Pushing 1 nA into x, whose only channel leads to a 1 V drain: at most G·exp(−1/U_T) can leave.
-    const net = new NetworkBuilder()
+    const net = new NetworkText()
       .rail("gnd", 0)
       .rail("vd", 1)
       .rail("vg", 0.5)
@@ -417,7 +418,7 @@ describe("classification and unsolvable networks", () => {
 
   it("Newton without an operating point fails naming the node, and reports no answer", () => {
     // 100 nA pushed into y, whose only way out is a mirror output that carries at most 4 × 10 nA.
-    const net = new NetworkBuilder()
+    const net = new NetworkText()
       .rail("gnd", 0)
       .inject("iin", { from: "gnd", to: "x", value: 10e-9 })
       .nfet("m1", { gate: "x", source: "gnd", drain: "x" })
@@ -434,20 +435,33 @@ describe("classification and unsolvable networks", () => {
   });
 
   it("a floating group of nodes and a node without a channel are errors, never answers", () => {
-    const floating = new NetworkBuilder()
+    // Elaboration refuses both networks itself; the solver must refuse them too when a network comes from
+    // elsewhere, so each is elaborated whole and then cut: k's drain moves from gnd to a (a and b float).
+    const whole = new NetworkText()
       .rail("vg", 0.5)
+      .rail("gnd", 0)
       .nfet("m", { gate: "vg", source: "a", drain: "b" })
+      .nfet("k", { gate: "vg", source: "b", drain: "gnd" })
       .inject("i", { from: "a", to: "b", value: 1e-9 })
       .build();
+    const drain = whole.devices.drain.slice();
+    drain[1] = whole.nodes.index.get("a") as number;
+    const floating = { ...whole, devices: { ...whole.devices, drain } };
     const r1 = solveNetwork(floating);
     expect(r1.ok).toBe(false);
     expect(r1.points).toEqual([]);
     expect(r1.failures[0].message).toMatch(/node a .*no channel path to a rail/);
-    const gateOnly = new NetworkBuilder()
+    // k's channel from g to gnd is cut (its source moves to gnd): g is left a gate only.
+    const withChannel = new NetworkText()
       .rail("gnd", 0)
       .rail("vd", 1)
+      .rail("vg", 0.5)
       .nfet("m", { gate: "g", source: "gnd", drain: "vd" })
+      .nfet("k", { gate: "vg", source: "g", drain: "gnd" })
       .build();
+    const source = withChannel.devices.source.slice();
+    source[1] = withChannel.nodes.index.get("gnd") as number;
+    const gateOnly = { ...withChannel, devices: { ...withChannel.devices, source } };
     const r2 = solveNetwork(gateOnly);
     expect(r2.ok).toBe(false);
     expect(r2.failures[0].message).toMatch(/node g connects to no device channel/);
@@ -455,7 +469,7 @@ describe("classification and unsolvable networks", () => {
 
   it("flags a forward-biased junction and devices outside weak inversion", () => {
     // A pair whose tail is pulled below the substrate by a large tail current.
-    const net = new NetworkBuilder()
+    const net = new NetworkText()
       .set({ ispec: 1e-7 })
       .rail("vdd", 1.8)
       .rail("gnd", 0)

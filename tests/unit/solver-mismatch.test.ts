@@ -10,20 +10,20 @@
  */
 import { describe, expect, it } from "vitest";
 import { thermalVoltage } from "../../src/lang/point";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { MismatchSampler, summarize } from "../../src/solver/mismatch";
 import { solveNetwork } from "../../src/solver/sweep";
 
 const T = 300.15;
 
 function single(runs: number, seed: number, avt: number, w = 2e-6, l = 2e-6) {
-  return new NetworkBuilder("one")
+  return new NetworkText("one")
     .set({ temp: T })
     .rail("gnd", 0)
     .rail("vg", 0.5)
     .rail("vd", 1)
     .nfet("m", { gate: "vg", source: "gnd", drain: "vd", w, l })
-    .probe("lnI", (ctx) => Math.log(ctx.deviceCurrent(0)))
+    .probe("lnI", "log(current(m) / 1A)")
     .mismatch(runs, seed, avt)
     .build();
 }
@@ -63,7 +63,7 @@ describe("Pelgrom mismatch", () => {
 
   it("a pair's ratio spreads by σ(ln I1/I2) = √2·κ·σ(VT)/U_T (independent devices)", () => {
     const N = 3000;
-    const net = new NetworkBuilder("pair")
+    const net = new NetworkText("pair")
       .set({ temp: T })
       .rail("vdd", 1.8)
       .rail("gnd", 0)

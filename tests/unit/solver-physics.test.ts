@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { thermalVoltage } from "../../src/lang/point";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { ekvF } from "../../src/solver/ekv";
 import type { PointResult, RunResult } from "../../src/solver/results";
 import { solveNetwork } from "../../src/solver/sweep";
@@ -31,13 +31,13 @@ function only(run: RunResult): PointResult {
   return run.points[0];
 }
 
-const netOf = new WeakMap<RunResult, ReturnType<NetworkBuilder["build"]>>();
+const netOf = new WeakMap<RunResult, ReturnType<NetworkText["build"]>>();
 
 /** Current of the device called `name` at point p of run. */
 function dev(run: RunResult, p: PointResult, name: string): number {
   return p.currents[netOf.get(run)!.devices.index.get(name)!];
 }
-function solve(b: NetworkBuilder, opts: Parameters<typeof solveNetwork>[1] = {}): RunResult {
+function solve(b: NetworkText, opts: Parameters<typeof solveNetwork>[1] = {}): RunResult {
   const net = b.build();
   const run = solveNetwork(net, opts);
   netOf.set(run, net);
@@ -52,14 +52,14 @@ describe("thermal voltage (PHYSICS.md §1; BIPM SI Brochure 9th ed. 2019, CODATA
     [350, 30.160666e-3],
   ])("U_T(%f K) = %f V, and the solver's settings carry it", (temp, ut) => {
     expect(Math.abs(thermalVoltage(temp) - ut)).toBeLessThan(5e-10);
-    const net = new NetworkBuilder().set({ temp }).build();
+    const net = new NetworkText().set({ temp }).build();
     expect(Math.abs(net.settings.ut - ut)).toBeLessThan(5e-10);
   });
 });
 
 /** Differential pair: both saturated, common source node drawn by a tail sink of Ib. */
-function pair(dv: number, ib: number, temp = T): NetworkBuilder {
-  return new NetworkBuilder("pair")
+function pair(dv: number, ib: number, temp = T): NetworkText {
+  return new NetworkText("pair")
     .set({ temp })
     .rail("vdd", 1.8)
     .rail("gnd", 0)
@@ -111,8 +111,8 @@ describe("differential pair (PHYSICS.md §5; C. Mead, Analog VLSI and Neural Sys
  * u_k ∝ cosh((min(k,j) + ½)θ)·cosh((N − max(k,j) − ½)θ) = w_k, continuous at j,
  * and since Σ_k Gv·u_k = Iin (every output current comes from the sink's node), I_k/Iin = w_k/Σw.
  */
-function chain(N: number, j: number, vh: number, vv: number, iin: number, temp = T): NetworkBuilder {
-  const b = new NetworkBuilder("chain").set({ temp }).rail("vh", vh).rail("vv", vv).rail("vd", 1.8).rail("gnd", 0);
+function chain(N: number, j: number, vh: number, vv: number, iin: number, temp = T): NetworkText {
+  const b = new NetworkText("chain").set({ temp }).rail("vh", vh).rail("vv", vv).rail("vd", 1.8).rail("gnd", 0);
   for (let k = 0; k < N; k++) b.nfet(`out${k}`, { gate: "vv", source: `n${k}`, drain: "vd" });
   for (let k = 0; k + 1 < N; k++) b.nfet(`lat${k}`, { gate: "vh", source: `n${k}`, drain: `n${k + 1}` });
   b.inject("iin", { from: `n${j}`, to: "gnd", value: iin });
@@ -162,7 +162,7 @@ describe("1-D diffuser chain against its closed form (PHYSICS.md §6 [derived])"
 describe("two-node diffuser (Vittoz & Arreguit, Electronics Letters 29(3), 1993 [memory]; PHYSICS.md §3 pseudo-conductances)", () => {
   it("the lateral current is (lateral weight / output weight) × the difference of the output currents", () => {
     // Weights G = (W/L)·exp(κVg/U_T): output devices W/L = 3, lateral W/L = 1/2.
-    const b = new NetworkBuilder("two")
+    const b = new NetworkText("two")
       .set({ temp: T })
       .rail("vh", 0.62)
       .rail("vv", 0.55)
@@ -185,8 +185,8 @@ describe("two-node diffuser (Vittoz & Arreguit, Electronics Letters 29(3), 1993 
 });
 
 /** Mirror: diode-connected m1 (gate = drain = x) fed Iin, m2 (gate x) into Vout. */
-function mirror(vout: number, ratio = 4): NetworkBuilder {
-  return new NetworkBuilder("mirror")
+function mirror(vout: number, ratio = 4): NetworkText {
+  return new NetworkText("mirror")
     .set({ temp: T })
     .rail("gnd", 0)
     .rail("vout", vout)
@@ -273,7 +273,7 @@ describe("EKV all-region model (PHYSICS.md §4; Enz, Krummenacher, Vittoz, Analo
 
   it("in strong inversion EKV gives the square law: I ≈ ispec·(W/L)·((Vp − Vs)/2U_T)² [derived from F(x) → (x/2)² for large x]", () => {
     const ispec = 100e-9;
-    const b = new NetworkBuilder("strong")
+    const b = new NetworkText("strong")
       .set({ temp: T, ispec, vt0: 0.4, model: "ekv" })
       .rail("g", 1.4)
       .rail("d", 3)

@@ -5,7 +5,7 @@
  * Unless stated: T = 300.15 K, κ = 0.7, I0 = 1e-15 A, W/L = 1 (PHYSICS.md).
  */
 import { describe, expect, it } from "vitest";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { solveNetwork } from "../../src/solver/sweep";
 
 const KAPPA = 0.7;
@@ -23,7 +23,7 @@ function rel(a: number, b: number): number {
  * V_tail = U_T·ln(I0·(exp(κV1/U_T) + exp(κV2/U_T))/ib).
  */
 function pair(vdd: number, v1: number, v2: number, ib: number, temp = 300.15) {
-  const net = new NetworkBuilder("pair")
+  const net = new NetworkText("pair")
     .set({ temp })
     .rail("vdd", vdd)
     .rail("gnd", 0)
@@ -68,7 +68,7 @@ describe("rails, gates and temperatures far apart in units of U_T (closed forms:
   it("the p-channel mirror image (wells 20 V up, every voltage measured down from them) gives the n-channel pair's currents", () => {
     const top = 20;
     const n = pair(top, 0.71, 0.69, 20e-9);
-    const net = new NetworkBuilder("ppair")
+    const net = new NetworkText("ppair")
       .set({ temp: 300.15 })
       .rail("vw", top)
       .rail("gnd", 0)
@@ -91,7 +91,7 @@ describe("rails, gates and temperatures far apart in units of U_T (closed forms:
   });
 
   it("a gate so high that the currents leave double precision's range fails, saying so, instead of reporting nulls", () => {
-    const net = new NetworkBuilder("hot")
+    const net = new NetworkText("hot")
       .rail("vdd", 1.8)
       .rail("gnd", 0)
       .rail("g", 40)
@@ -114,7 +114,7 @@ describe("rails, gates and temperatures far apart in units of U_T (closed forms:
  * node; at vh = 1.2 V the same row solves and keeps KCL.
  */
 function row(vh: number) {
-  const b = new NetworkBuilder("row").rail("vdd", 1.8).rail("gnd", 0).rail("gh", vh).rail("gv", 0.65);
+  const b = new NetworkText("row").rail("vdd", 1.8).rail("gnd", 0).rail("gh", vh).rail("gv", 0.65);
   for (let k = 0; k < 64; k++) {
     b.nfet(`out${k}`, { gate: "gv", source: `x${k}`, drain: "vdd" });
     b.inject(`ph${k}`, { from: `x${k}`, to: "gnd", value: k < 32 ? 0.5e-9 : 1.5e-9 });

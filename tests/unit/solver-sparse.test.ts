@@ -9,18 +9,9 @@ import { describe, expect, it } from "vitest";
 import { cholesky, matrixTriangle } from "../../src/solver/cholesky";
 import { lu, luSolve } from "../../src/solver/lu";
 import { amd, nestedDissection, natural } from "../../src/solver/order";
-import {
-  compress,
-  compressPattern,
-  type Csc,
-  multiply,
-  permutedTriangle,
-  symmetricAdjacency,
-  transpose,
-  Triplet,
-} from "../../src/solver/sparse";
+import { compressPattern, type Csc, symmetricAdjacency } from "../../src/solver/sparse";
 import { analyse, etreeOfGraph, type Kernel } from "../../src/solver/symbolic";
-import { cholSolve } from "../../src/solver/triangular";
+import { cholSolve, compress, multiply, permutedTriangle, transpose, Triplet } from "../helpers/sparse";
 
 /** A small deterministic generator (not the mismatch PRNG): Park–Miller minimal standard. */
 function lcg(seed: number): () => number {

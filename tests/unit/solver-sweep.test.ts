@@ -7,20 +7,20 @@
 import { describe, expect, it } from "vitest";
 import { elaborate } from "../../src/lang/index";
 import { applyPoint, thermalVoltage } from "../../src/lang/point";
-import { NetworkBuilder } from "../../src/solver/build";
-import { toSolveJson } from "../../src/solver/results";
+import { NetworkText } from "../helpers/network-text";
+import { toSolveJson } from "../../src/solver/json";
 import { solveNetwork, sweepGrid } from "../../src/solver/sweep";
 
 describe("sweep grid", () => {
   it("orders points with the first sweep outermost, and reports every param", () => {
-    const net = new NetworkBuilder()
+    const net = new NetworkText()
       .param("a", 1)
       .param("b", 10)
       .param("c", 7)
       .rail("gnd", 0)
       .rail("vg", 0.5)
       .nfet("m", { gate: "vg", source: "x", drain: "gnd" })
-      .inject("i", { from: "x", to: "gnd", value: { deps: ["a", "b"], expr: (s) => 1e-12 * (s.a + s.b) } })
+      .inject("i", { from: "x", to: "gnd", value: "1e-12 * (a + b)" })
       .sweep("a", [1, 2])
       .sweep("b", { from: 10, to: 30, step: 10 })
       .build();
@@ -41,15 +41,15 @@ describe("sweep grid", () => {
 
 /** A diffuser chain whose input current and lateral gate are params. */
 function chain(sweep: "iin" | "vh") {
-  const b = new NetworkBuilder("row")
+  const b = new NetworkText("row")
     .param("iin", 1e-10)
     .param("vh", 0.6)
-    .rail("vh", "vh")
+    .rail("gh", "vh")
     .rail("vv", 0.5)
     .rail("vd", 1.5)
     .rail("gnd", 0);
   for (let k = 0; k < 30; k++) b.nfet(`o${k}`, { gate: "vv", source: `n${k}`, drain: "vd" });
-  for (let k = 0; k + 1 < 30; k++) b.nfet(`l${k}`, { gate: "vh", source: `n${k}`, drain: `n${k + 1}` });
+  for (let k = 0; k + 1 < 30; k++) b.nfet(`l${k}`, { gate: "gh", source: `n${k}`, drain: `n${k + 1}` });
   b.inject("in", { from: "n15", to: "gnd", value: "iin" });
   return sweep === "iin"
     ? b.sweep("iin", { from: 1e-11, to: 1e-9, points: 5, log: true }).build()
@@ -124,14 +124,14 @@ describe("work reuse across points", () => {
   });
 
   it("Newton starts each point from the previous solution", () => {
-    const net = new NetworkBuilder("mirror")
+    const net = new NetworkText("mirror")
       .set({ temp: 300.15 })
       .param("vout", 1)
       .rail("gnd", 0)
-      .rail("vout", "vout")
+      .rail("vo", "vout")
       .inject("iin", { from: "gnd", to: "x", value: 10e-9 })
       .nfet("m1", { gate: "x", source: "gnd", drain: "x" })
-      .nfet("m2", { gate: "x", source: "gnd", drain: "vout", w: 4e-6 })
+      .nfet("m2", { gate: "x", source: "gnd", drain: "vo", w: 4e-6 })
       .sweep("vout", { from: 0.05, to: 1, points: 20 })
       .build();
     const run = solveNetwork(net);

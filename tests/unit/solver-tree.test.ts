@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from "vitest";
 import type { Network } from "../../src/lang/network";
-import { NetworkBuilder } from "../../src/solver/build";
+import { NetworkText } from "../helpers/network-text";
 import { solveNetwork } from "../../src/solver/sweep";
 import { dedupeAdjacency } from "../../src/solver/sparse";
 import { analyse, naturalHasNoFill } from "../../src/solver/symbolic";
@@ -25,7 +25,7 @@ function lcg(seed: number): () => number {
 
 /** Rails, then internal nodes n0..n{count-1} each with an output nfet to vd and lateral nfets on `edges`. */
 function network(count: number, edges: [number, number][], rnd: () => number, pfets = false): Network {
-  const b = new NetworkBuilder("t")
+  const b = new NetworkText("t")
     .rail("gh", 0.7)
     .rail("gv", 0.6)
     .rail("vd", 1)

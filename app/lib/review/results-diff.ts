@@ -21,6 +21,8 @@
  * Two NaNs are equal; one NaN against a number is always beyond tolerance.
  */
 
+import type { JsonPoint } from "@/src/solver/index";
+
 export type ValueKind = "node" | "rail" | "device" | "probe";
 export type Quantity = "voltage" | "current" | "ic" | "value";
 
@@ -241,28 +243,25 @@ export function diffResults(from: AnalysisTable[], to: AnalysisTable[], options:
   return { tolerance, compared, beyond, rows: [...beyondRows, ...withinRows], truncated, analyses, points, names };
 }
 
-/** One solved point in the `runnel solve --json` shape of LANGUAGE.md. */
-export interface JsonPoint {
-  params: Record<string, number>;
-  nodes: Record<string, number>;
-  rails?: Record<string, number>;
-  devices?: Record<string, { current: number; ic?: number | null }>;
-  probes?: Record<string, number>;
-  sample?: number | null;
-}
+/** What tableFromPoints reads of a point in the `runnel solve --json` shape: its values (solver figures may be absent). */
+export type PointValues = Pick<JsonPoint, "params" | "nodes"> &
+  Partial<Pick<JsonPoint, "rails" | "probes">> & {
+    devices?: Record<string, Pick<JsonPoint["devices"][string], "current"> & { ic?: number | null }>;
+    sample?: number | null;
+  };
 
 /**
  * An analysis table from points in the `runnel solve --json` shape. Names come
  * from the first point (every point of one run has the same names); a value
  * missing in a later point is NaN.
  */
-export function tableFromPoints(analysis: string, pts: JsonPoint[]): AnalysisTable {
+export function tableFromPoints(analysis: string, pts: PointValues[]): AnalysisTable {
   const first = pts[0];
   const column = (
     kind: ValueKind,
     quantity: Quantity,
     names: string[],
-    read: (p: JsonPoint, n: string) => number | null | undefined,
+    read: (p: PointValues, n: string) => number | null | undefined,
   ): ResultColumn => {
     const values = new Float64Array(pts.length * names.length);
     pts.forEach((p, i) => names.forEach((n, j) => (values[i * names.length + j] = read(p, n) ?? NaN)));

@@ -1,0 +1,124 @@
+/**
+ * The `runnel solve --json` document (docs/language.md, command line): the
+ * diagnostics of elaboration and solve, and one entry per point with its
+ * values by name.
+ */
+
+import { type JsonDiagnostic, LineIndex } from "../lang/diagnostics";
+import type { Diagnostic, Network } from "../lang/network";
+import { firstDeviceAt } from "./evaluate";
+import type { Method, PointResult, RunResult } from "./results";
+
+/**
+ * One point of the document, by name: what the command line prints, what a
+ * run's JSON export writes (with a failed point's error) and what the results
+ * diff reads. A number that is not finite prints as null.
+ */
+export interface JsonPoint {
+  params: Record<string, number>;
+  nodes: Record<string, number>;
+  rails: Record<string, number>;
+  devices: Record<string, { current: number; ic: number | null; saturated: boolean }>;
+  probes: Record<string, number | null>;
+  solver: { method: Method; iterations: number; residual: number; reason?: string };
+  sample: number;
+  error?: string;
+}
+
+export interface SolveJson {
+  network: string | null;
+  ok: boolean;
+  diagnostics: JsonDiagnostic[];
+  points: JsonPoint[];
+}
+
+const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
+
+/** One point as docs/language.md specifies (names as keys, null for missing numbers). */
+export function pointJson(net: Network, p: PointResult): JsonPoint {
+  const nodes: Record<string, number> = {};
+  const names = net.nodes.names;
+  for (let k = 0; k < names.length; k++) nodes[names[k]] = p.voltages[k];
+  const rails: Record<string, number> = {};
+  for (const r of net.rails) rails[r.name] = p.railCurrents[r.node];
+  const devices: JsonPoint["devices"] = {};
+  const dn = net.devices.names;
+  for (let d = 0; d < dn.length; d++)
+    devices[dn[d]] = { current: p.currents[d], ic: finiteOrNull(p.ic[d]), saturated: p.saturated[d] === 1 };
+  const probes: Record<string, number | null> = {};
+  for (const [k, v] of Object.entries(p.probes)) probes[k] = finiteOrNull(v);
+  const { method, iterations, residual, reason } = p.solver;
+  return {
+    params: p.params,
+    nodes,
+    rails,
+    devices,
+    probes,
+    solver: { method, iterations, residual, reason },
+    sample: p.sample ?? 0,
+  };
+}
+
+/**
+ * The `runnel solve --json` document. `diagnostics` are the elaboration's;
+ * solver failures become errors and validity warnings become warnings, placed
+ * at the device's statement when `text` is given. `ok` is false, with no
+ * points, when any diagnostic is an error or any point failed.
+ */
+export function toSolveJson(
+  net: Network | null,
+  diagnostics: Diagnostic[],
+  run: RunResult | null,
+  text?: string,
+  name?: string | null,
+  withPoints = true,
+): SolveJson {
+  // (The command line's document carries no hints: `runnel check` prints those.)
+  const out: JsonDiagnostic[] = diagnostics.map((d) => ({
+    severity: d.severity,
+    line: d.line,
+    column: d.column,
+    message: d.message,
+  }));
+  const lines = text !== undefined ? new LineIndex(text) : null;
+  const at = (offset: number): { line: number; column: number } =>
+    lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 };
+  let ok = !diagnostics.some((d) => d.severity === "error") && net !== null && run !== null;
+  if (net && run) {
+    const seen = new Set<string>();
+    for (const f of run.failures) {
+      const dev = f.node >= 0 ? firstDeviceAt(net, f.node) : -1;
+      out.push({ severity: "error", ...at(dev >= 0 ? net.devices.at[dev] : -1), message: f.message });
+    }
+    for (const p of run.points) {
+      for (const w of p.warnings) {
+        const key = `${w.kind}:${w.device}`;
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const where =
+          run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+        out.push({ severity: "warning", ...at(net.devices.at[w.device]), message: w.message + where });
+      }
+    }
+    // A probe that is not a number (0/0, log of 0, a ratio over a current of 0 A) prints null: say so, once per probe.
+    for (const probe of net.probes) {
+      const p = run.points.find((q) => q.ok && probe.name in q.probes && !Number.isFinite(q.probes[probe.name]));
+      if (!p) continue;
+      const where =
+        run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+      out.push({
+        severity: "warning",
+        ...at(probe.span.from),
+        message: `probe ${probe.name} is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null${where}`,
+      });
+    }
+    if (!run.ok) ok = false;
+  }
+  return {
+    network: net ? net.name : (name ?? null),
+    ok,
+    diagnostics: out,
+    // (Without points, a caller prints them one by one with pointJson: a big run's text would not fit one string.)
+    points: ok && net && run && withPoints ? run.points.map((p) => pointJson(net, p)) : [],
+  };
+}
