@@ -1,7 +1,7 @@
 /**
  * Next's start-up hook (runs once per server process, before any request):
  * runs left `running` by a stopped server are marked interrupted, and queued
- * runs are queued again, and one run worker thread is started (app/lib/runs.ts).
+ * runs are queued again, and one run worker thread is started (app/lib/run-supervisor.ts).
  */
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs" || process.env.NEXT_PHASE === "phase-production-build") return;

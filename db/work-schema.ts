@@ -111,9 +111,9 @@ export const runs = sqliteTable(
     timeLimitMs: integer("time_limit_ms").notNull(),
     /** Set by the supervisor to ask the worker to stop; the worker then ends the run canceled. */
     cancelRequested: integer("cancel_requested", { mode: "boolean" }).notNull().default(false),
-    /** Names of nodes, devices, rails, probes and params (JSON RunLayout), written when the run starts. */
+    /** Names of nodes, devices, rails, probes and params (JSON RunLayout), written when the run is queued (or by its first chunk). */
     layout: text("layout"),
-    /** Model settings of the commit (JSON), written when the run starts. */
+    /** Model settings of the commit (JSON), written with the layout. */
     model: text("model"),
     /** Counts over all points, written when the run ends. */
     newtonPoints: integer("newton_points"),
@@ -171,4 +171,76 @@ export const runPoints = sqliteTable(
     saturated: blob("saturated", { mode: "buffer" }).notNull(),
   },
   (t) => [primaryKey({ columns: [t.runId, t.point] })],
+);
+
+/** stopped: a stop request (cancel, time limit, another chunk failed) ended the chunk before its last point. */
+export const CHUNK_STATES = ["queued", "running", "done", "stopped", "failed"] as const;
+export type ChunkState = (typeof CHUNK_STATES)[number];
+
+/**
+ * A run's points split into chunks [start, end) solved independently (in the
+ * local pool or by queue workers). Planned when the run is queued; a chunk is
+ * `done` once every point of its range is stored and its statistics written.
+ * The run's figures (warnings, counts, failures) are merged from the chunks'
+ * `stats` and `flags` when every chunk is in.
+ */
+export const runChunks = sqliteTable(
+  "run_chunks",
+  {
+    runId: text("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    chunk: integer("chunk").notNull(),
+    /** First point and one past the last point of the chunk, in run order. */
+    start: integer("start").notNull(),
+    end: integer("end").notNull(),
+    /** Fair-queue order (virtual time): lower runs first; the queue's job priority. */
+    tag: integer("tag").notNull().default(0),
+    state: text("state", { enum: CHUNK_STATES }).notNull().default("queued"),
+    /** Times the chunk was handed out (a retry after a lost worker counts again). */
+    attempts: integer("attempts").notNull().default(0),
+    /** The worker token the chunk is currently handed out under (queue workers); null in the local pool. */
+    workerTokenId: text("worker_token_id"),
+    /** Chunk statistics (JSON ChunkStats, app/lib/run-stats.ts), written when the chunk is done. */
+    stats: text("stats"),
+    /** Per-device flags of the chunk (two bit sets: outside weak inversion, not saturated), written with `stats`. */
+    flags: blob("flags", { mode: "buffer" }),
+    /** Why the chunk failed (its message fails the run). */
+    error: text("error"),
+    claimedAt: integer("claimed_at", { mode: "timestamp_ms" }),
+    finishedAt: integer("finished_at", { mode: "timestamp_ms" }),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.chunk] })],
+);
+
+/**
+ * Tokens that let a worker process (`npm run worker`) take a workspace's run
+ * chunks from the queue and post their results. Stored as SHA-256 of the
+ * secret; valid while `revoked_at` is null. An operator token (configured
+ * setting, not a row) serves every workspace.
+ */
+export const workerTokens = sqliteTable(
+  "worker_tokens",
+  {
+    id: text("id").primaryKey(),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    /** The first characters of the token, shown in lists. */
+    prefix: text("prefix").notNull(),
+    tokenHash: text("token_hash").notNull(),
+    createdBy: text("created_by")
+      .notNull()
+      .references(() => users.id),
+    lastUsedAt: integer("last_used_at", { mode: "timestamp_ms" }),
+    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    // the Authorization: Bearer lookup of a worker
+    uniqueIndex("worker_tokens_hash_idx").on(t.tokenHash),
+    // a workspace's token list
+    index("worker_tokens_workspace_idx").on(t.workspaceId),
+  ],
 );

@@ -7,7 +7,7 @@
 import type { z } from "zod";
 import { PolicyError, policyResponse } from "./policy";
 
-export type RequestStatus = 400 | 404 | 409 | 413 | 422;
+export type RequestStatus = 400 | 404 | 409 | 413 | 422 | 429 | 503;
 
 /** A request the server understood but will not carry out; `details` are added to the JSON body. */
 export class RequestError extends Error {

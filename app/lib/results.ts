@@ -119,10 +119,15 @@ function view<T extends Float64Array | Float32Array | Uint8Array>(
   return new Kind(copy, 0, b.byteLength / size);
 }
 
-/** Inserts points (one statement per point; call inside a transaction for speed). */
-export function insertPoints(runId: string, points: readonly StoredPoint[], d: Q = db()): void {
+/**
+ * Inserts points (one statement per point; call inside a transaction for speed). A point already stored is left
+ * as it is (a chunk solved twice stores every point once). Returns how many points were new.
+ */
+export function insertPoints(runId: string, points: readonly StoredPoint[], d: Q = db()): number {
+  let added = 0;
   for (const p of points) {
-    d.insert(runPoints)
+    added += d
+      .insert(runPoints)
       .values({
         runId,
         point: p.point,
@@ -139,8 +144,10 @@ export function insertPoints(runId: string, points: readonly StoredPoint[], d: Q
         ic: bytes(p.ic),
         saturated: bytes(p.saturated),
       })
-      .run();
+      .onConflictDoNothing()
+      .run().changes;
   }
+  return added;
 }
 
 /** One whole point, or null when it is not stored. */

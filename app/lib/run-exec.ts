@@ -1,46 +1,58 @@
 /**
- * Executes one queued run to its end, synchronously, against a database
- * connection: claims the run (queued → running), elaborates the commit,
- * solves every point, stores the points, and writes the final state. The run
- * worker calls it in a worker thread; the demo seed calls it in-process.
+ * The database side of executing a run: claiming it, solving a chunk into
+ * `run_points` (the local pool's threads; the demo seed in-process), storing
+ * a chunk's points posted by a queue worker, and ending the run once every
+ * chunk is in (run-wide figures merged from the chunks, final state, the
+ * stored commit diff).
  *
  * Contracts
- * - Only a `queued` run without a cancel request is claimed; anything else is
- *   left as it is (a run canceled before it started ends canceled).
- * - Progress (`points_done`) is written at most every PROGRESS_MS.
- * - A stop request (shared flag or `cancel_requested`) ends the run canceled
- *   after the current point; the time limit ends it failed; both keep the
- *   points already solved. An exception ends it failed with its message.
- * - Points are written in transactions of at most WRITE_BATCH points, so the
- *   write lock is never held for long (readers are never blocked: WAL).
+ * - A run is claimed (queued → running, started_at) once, by its first chunk;
+ *   a run with a cancel request is never claimed.
+ * - Points are written with INSERT … ON CONFLICT DO NOTHING in short
+ *   BEGIN IMMEDIATE transactions (a batch of run-chunk.ts: ≤ 64 points, about
+ *   4 MB, 200 ms of solving), and `points_done` grows by the rows actually
+ *   inserted: a chunk solved twice (a retry) stores every point once. A write
+ *   that meets SQLITE_BUSY after the busy timeout is retried with back-off.
+ * - A chunk is `done` in the same transaction as its last points, with its
+ *   figures; `failed` with its message. `finalizeRun` ends the run from the
+ *   chunks (and the stop request that ended it early) and is a no-op for a run
+ *   that has already ended, so any number of callers may race to it.
  */
-import { and, eq } from "drizzle-orm";
-import { commits, runs, type RunState } from "@/db/schema";
+import { and, asc, count, eq, inArray, sql } from "drizzle-orm";
+import { commits, runChunks, runPoints, runs, type RunState } from "@/db/schema";
 import { elaborate, type Network } from "@/src/lang/index";
-import type { PointResult, RunResult } from "@/src/solver/results";
-import { solveNetwork } from "@/src/solver/index";
 import { db, type Q } from "@/db";
 import type { StoredPoint } from "./point-codec";
 import { insertPoints, layoutOf, type RunLayout } from "./results";
+import {
+  solveChunk,
+  STOP_CANCEL,
+  STOP_NONE,
+  STOP_TIME,
+  type ChunkRange,
+  type StopKind,
+  type TestFault,
+} from "./run-chunk";
+import { modelOf } from "./run-plan";
+import { mergeChunks, type ChunkStats } from "./run-stats";
 import { storeCommitDiff } from "./review/diffs";
 
-/** Values of the shared stop flag. */
-export const STOP_NONE = 0;
-export const STOP_CANCEL = 1;
-export const STOP_TIME = 2;
+export { STOP_CANCEL, STOP_FAILED, STOP_NONE, STOP_TIME } from "./run-chunk";
+export type { RunWarning } from "./run-stats";
 
-export interface RunTask {
-  runId: string;
-  /** Absolute path of the SQLite file. */
-  dbFile: string;
-  /** Int32Array(1) over this buffer: STOP_* set by the supervisor. */
-  stop: SharedArrayBuffer;
-  /**
-   * Test hooks, honoured only when RUNNEL_TEST_FAULTS=1: "throw" after the first point, "slow" sleeps 25 ms per
-   * point, "stuck" spins for a minute inside the first point without looking at stop requests.
-   */
-  fault?: "throw" | "slow" | "stuck";
-}
+/** A task of the local pool's threads (app/lib/run-worker.ts). */
+export type RunTask =
+  | {
+      kind: "chunk";
+      runId: string;
+      chunk: number;
+      /** Absolute path of the SQLite file. */
+      dbFile: string;
+      /** Int32Array(1) over this buffer: STOP_* set by the supervisor for every chunk of the run. */
+      stop: SharedArrayBuffer;
+      fault?: TestFault;
+    }
+  | { kind: "finalize"; runId: string; dbFile: string; forced?: { state: RunState; reason: string } };
 
 export interface RunTaskResult {
   state: RunState;
@@ -48,251 +60,322 @@ export interface RunTaskResult {
   pointsDone: number;
 }
 
+/** How a chunk ended in a pool thread. */
+export interface ChunkResult {
+  /** done: every point stored; stopped: a stop request ended it early; failed: `message`; skipped: the run is not running. */
+  outcome: "done" | "stopped" | "failed" | "skipped";
+  stopped: StopKind;
+  message: string | null;
+}
+
 export interface ExecControl {
   stop?: Int32Array;
-  fault?: RunTask["fault"];
+  fault?: TestFault;
   now?: () => number;
 }
 
-const PROGRESS_MS = 200;
 const CANCEL_POLL_MS = 250;
-const WRITE_BATCH = 64;
-/** Inversion coefficient above which a device is outside weak inversion (common practice: IC < 0.1 is weak inversion). */
-export const WEAK_INVERSION_LIMIT = 0.1;
 
-/** A validity warning aggregated over a run. */
-export interface RunWarning {
-  kind: string;
-  message: string;
-  /** Points where it occurred. */
-  points: number;
-  /** First point where it occurred. */
-  firstPoint: number;
+/** Claims a queued run (queued → running) unless a cancel was requested; true when this call claimed it. */
+export function claimRun(runId: string, now = Date.now(), d: Q = db()): boolean {
+  return (
+    d
+      .update(runs)
+      .set({ state: "running", startedAt: new Date(now) })
+      .where(and(eq(runs.id, runId), eq(runs.state, "queued"), eq(runs.cancelRequested, false)))
+      .run().changes > 0
+  );
 }
 
-export function executeRun(runId: string, control: ExecControl = {}, d: Q = db()): RunTaskResult {
+/** Stores the run's chunk plan (one chunk over every point when none is given) unless it has one. */
+export function ensureChunks(runId: string, ranges?: readonly ChunkRange[], d: Q = db()): ChunkRange[] {
+  const have = d
+    .select({ start: runChunks.start, end: runChunks.end })
+    .from(runChunks)
+    .where(eq(runChunks.runId, runId))
+    .orderBy(asc(runChunks.chunk))
+    .all();
+  if (have.length > 0) return have;
+  const row = d.select({ total: runs.pointsTotal }).from(runs).where(eq(runs.id, runId)).get();
+  const plan = ranges && ranges.length > 0 ? ranges : [{ start: 0, end: row?.total ?? 0 }];
+  d.insert(runChunks)
+    .values(plan.map((r, chunk) => ({ runId, chunk, start: r.start, end: r.end })))
+    .onConflictDoNothing()
+    .run();
+  return [...plan];
+}
+
+/** The elaborated network and layout of a commit, kept per thread for the commits it last ran. */
+const networkCache = new Map<string, { net: Network; layout: RunLayout } | { error: string }>();
+const CACHED_NETWORKS = 2;
+
+export function networkOf(
+  commitId: string,
+  text: () => string | null,
+): { net: Network; layout: RunLayout } | { error: string } {
+  const hit = networkCache.get(commitId);
+  if (hit) {
+    networkCache.delete(commitId);
+    networkCache.set(commitId, hit);
+    return hit;
+  }
+  const t = text();
+  let entry: { net: Network; layout: RunLayout } | { error: string };
+  if (t === null) entry = { error: "the commit of this run no longer exists" };
+  else {
+    const result = elaborate(t);
+    entry = result.network
+      ? { net: result.network, layout: layoutOf(result.network) }
+      : {
+          error: `the commit has errors: ${result.diagnostics.find((x) => x.severity === "error")?.message ?? "it does not elaborate"}`,
+        };
+  }
+  networkCache.set(commitId, entry);
+  while (networkCache.size > CACHED_NETWORKS) networkCache.delete(networkCache.keys().next().value as string);
+  return entry;
+}
+
+/**
+ * Solves one chunk of a running run into run_points (see the module comment). Claims the run when it is still
+ * queued. Never throws for a problem of the run: it ends `failed` with the message.
+ */
+export function executeChunk(runId: string, chunk: number, control: ExecControl = {}, d: Q = db()): ChunkResult {
   const now = control.now ?? Date.now;
-  const startedAt = new Date(now());
-  const claimed = d
-    .update(runs)
-    .set({ state: "running", startedAt })
-    .where(and(eq(runs.id, runId), eq(runs.state, "queued")))
-    .run().changes;
+  claimRun(runId, now(), d);
+  const row = d
+    .select({
+      state: runs.state,
+      commitId: runs.commitId,
+      startedAt: runs.startedAt,
+      timeLimitMs: runs.timeLimitMs,
+      layout: runs.layout,
+    })
+    .from(runs)
+    .where(eq(runs.id, runId))
+    .get();
+  const c = d
+    .select({ start: runChunks.start, end: runChunks.end, state: runChunks.state })
+    .from(runChunks)
+    .where(and(eq(runChunks.runId, runId), eq(runChunks.chunk, chunk)))
+    .get();
+  if (!row || row.state !== "running" || !c || c.state === "done")
+    return { outcome: "skipped", stopped: STOP_NONE, message: null };
+  writeBusy(() =>
+    d
+      .update(runChunks)
+      .set({ state: "running", attempts: sql`${runChunks.attempts} + 1`, claimedAt: new Date(now()) })
+      .where(and(eq(runChunks.runId, runId), eq(runChunks.chunk, chunk)))
+      .run(),
+  );
+  try {
+    const found = networkOf(row.commitId, () => {
+      const r = d.select({ text: commits.text }).from(commits).where(eq(commits.id, row.commitId)).get();
+      return r?.text ?? null;
+    });
+    if ("error" in found) return failChunk(runId, chunk, found.error, d);
+    const { net, layout } = found;
+    if (row.layout === null) {
+      writeBusy(() =>
+        d
+          .update(runs)
+          .set({ layout: JSON.stringify(layout), model: JSON.stringify(modelOf(net)) })
+          .where(and(eq(runs.id, runId), sql`${runs.layout} is null`))
+          .run(),
+      );
+    }
+    const deadline = (row.startedAt?.getTime() ?? now()) + row.timeLimitMs;
+    let lastPoll = now();
+    let polled: StopKind = STOP_NONE;
+    const stop = (): StopKind => {
+      const flag = control.stop ? (Atomics.load(control.stop, 0) as StopKind) : STOP_NONE;
+      if (flag !== STOP_NONE) return flag;
+      if (now() > deadline) return STOP_TIME;
+      if (polled === STOP_NONE && now() - lastPoll > CANCEL_POLL_MS) {
+        lastPoll = now();
+        if (d.select({ c: runs.cancelRequested }).from(runs).where(eq(runs.id, runId)).get()?.c) polled = STOP_CANCEL;
+      }
+      return polled;
+    };
+    let pending: StoredPoint[] | null = null;
+    const outcome = solveChunk(net, layout, c, {
+      stop,
+      fault: control.fault,
+      now,
+      onBatch: (points) => {
+        // One batch behind, so that the last one is stored in the same transaction as the chunk's figures.
+        if (pending) storePoints(runId, pending, d);
+        pending = points;
+      },
+    });
+    const stopped = outcome.stopped;
+    writeBusy(() =>
+      d.transaction(
+        (tx) => {
+          if (pending) storePointsIn(runId, pending, tx);
+          tx.update(runChunks)
+            .set({
+              state: stopped === STOP_NONE ? "done" : "stopped",
+              stats: JSON.stringify(outcome.stats),
+              flags: Buffer.from(outcome.flags.buffer, outcome.flags.byteOffset, outcome.flags.byteLength),
+              finishedAt: new Date(now()),
+            })
+            .where(and(eq(runChunks.runId, runId), eq(runChunks.chunk, chunk)))
+            .run();
+        },
+        { behavior: "immediate" },
+      ),
+    );
+    return { outcome: stopped === STOP_NONE ? "done" : "stopped", stopped, message: null };
+  } catch (e) {
+    return failChunk(runId, chunk, ((e as Error).message ?? String(e)).split("\n")[0], d);
+  }
+}
+
+/** Marks a chunk failed with `message` (its run then ends failed with it). */
+export function failChunk(runId: string, chunk: number, message: string, d: Q = db()): ChunkResult {
+  writeBusy(() =>
+    d
+      .update(runChunks)
+      .set({ state: "failed", error: message, finishedAt: new Date() })
+      .where(and(eq(runChunks.runId, runId), eq(runChunks.chunk, chunk)))
+      .run(),
+  );
+  return { outcome: "failed", stopped: STOP_NONE, message };
+}
+
+/** Stores points of a run in one short immediate transaction; returns how many were new. */
+export function storePoints(runId: string, points: readonly StoredPoint[], d: Q = db()): number {
+  return writeBusy(() => d.transaction((tx) => storePointsIn(runId, points, tx), { behavior: "immediate" }));
+}
+
+function storePointsIn(runId: string, points: readonly StoredPoint[], tx: Q): number {
+  const added = insertPoints(runId, points, tx);
+  if (added > 0)
+    tx.update(runs)
+      .set({ pointsDone: sql`${runs.pointsDone} + ${added}` })
+      .where(eq(runs.id, runId))
+      .run();
+  return added;
+}
+
+/** Retries a write that met SQLITE_BUSY after the connection's busy timeout: up to BUSY_TRIES times, with back-off. */
+export function writeBusy<T>(write: () => T): T {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return write();
+    } catch (e) {
+      const code = (e as { code?: string }).code ?? "";
+      if (!code.startsWith("SQLITE_BUSY") || attempt >= BUSY_TRIES) throw e;
+      Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, Math.min(1_000, 25 * 2 ** attempt));
+    }
+  }
+}
+const BUSY_TRIES = 6;
+
+/**
+ * Ends a run from its chunks: the merged figures, then the final state. Without `forced`, a run whose chunks
+ * are not all in (done, failed, or stopped by a stop request) is left as it is (null). A run that has already
+ * ended is left as it is (its state is returned).
+ */
+export function finalizeRun(
+  runId: string,
+  forced?: { state: RunState; reason: string },
+  now = Date.now(),
+  d: Q = db(),
+): RunTaskResult | null {
   const row = d.select().from(runs).where(eq(runs.id, runId)).get();
   if (!row) return { state: "failed", reason: "the run does not exist", pointsDone: 0 };
-  if (claimed === 0) return { state: row.state, reason: row.reason, pointsDone: row.pointsDone };
-  return runClaimed(d, row, startedAt.getTime(), control, now);
-}
+  if (row.state !== "queued" && row.state !== "running")
+    return { state: row.state, reason: row.reason, pointsDone: row.pointsDone };
+  const chunks = d.select().from(runChunks).where(eq(runChunks.runId, runId)).orderBy(asc(runChunks.chunk)).all();
+  const pointsDone = d.select({ n: count() }).from(runPoints).where(eq(runPoints.runId, runId)).get()?.n ?? 0;
+  const failed = chunks.find((c) => c.state === "failed");
+  const allDone = chunks.length > 0 && chunks.every((c) => c.state === "done");
+  const timeUp = row.startedAt !== null && now > row.startedAt.getTime() + row.timeLimitMs;
+  const of = `${pointsDone.toLocaleString("en-US")} of ${row.pointsTotal.toLocaleString("en-US")} points`;
+  let end: { state: RunState; reason: string | null } | null = null;
+  if (forced) end = forced;
+  else if (failed) end = { state: "failed", reason: `the run failed: ${failed.error ?? "a chunk failed"}` };
+  else if (row.cancelRequested)
+    end = { state: "canceled", reason: row.startedAt ? `canceled after ${of}` : "canceled before it started" };
+  else if (!allDone && timeUp)
+    end = { state: "failed", reason: `time limit of ${seconds(row.timeLimitMs)} reached after ${of}` };
+  else if (!allDone) return null;
 
-function runClaimed(
-  d: Q,
-  row: typeof runs.$inferSelect,
-  startedAt: number,
-  control: ExecControl,
-  now: () => number,
-): RunTaskResult {
-  const runId = row.id;
-  const end = (state: RunState, reason: string | null, pointsDone: number): RunTaskResult => {
-    d.update(runs)
-      .set({ state, reason, finishedAt: new Date(now()), pointsDone })
-      .where(eq(runs.id, runId))
-      .run();
-    return { state, reason, pointsDone };
-  };
-  if (row.cancelRequested) return end("canceled", "canceled before it started", 0);
-  /** Points solved, and points stored (the progress others see). */
-  let done = 0;
-  let stored = 0;
-  try {
-    const commit = d.select({ text: commits.text }).from(commits).where(eq(commits.id, row.commitId)).get();
-    if (!commit) return end("failed", "the commit of this run no longer exists", 0);
-    const result = elaborate(commit.text);
-    if (!result.network)
-      return end(
-        "failed",
-        `the commit has errors: ${result.diagnostics.find((x) => x.severity === "error")?.message ?? "it does not elaborate"}`,
-        0,
-      );
-    const net = result.network;
-    const layout = layoutOf(net);
-    d.update(runs)
-      .set({ layout: JSON.stringify(layout), model: JSON.stringify(modelOf(net)) })
-      .where(eq(runs.id, runId))
-      .run();
-
-    const deadline = startedAt + row.timeLimitMs;
-    let stopKind = STOP_NONE;
-    let lastCancelPoll = now();
-    const shouldStop = (): boolean => {
-      if (stopKind !== STOP_NONE) return true;
-      if (control.fault === "slow") sleep(25);
-      const flag = control.stop ? Atomics.load(control.stop, 0) : STOP_NONE;
-      if (flag !== STOP_NONE) stopKind = flag;
-      else if (now() > deadline) stopKind = STOP_TIME;
-      else if (now() - lastCancelPoll > CANCEL_POLL_MS) {
-        lastCancelPoll = now();
-        if (d.select({ c: runs.cancelRequested }).from(runs).where(eq(runs.id, runId)).get()?.c) stopKind = STOP_CANCEL;
-      }
-      return stopKind !== STOP_NONE;
-    };
-    const onProgress = (pointsDone: number): void => {
-      if (control.fault === "throw" && pointsDone >= 1) throw new Error("test fault: the solver threw at point 1");
-    };
-    const stats = new RunStats(net.devices.count);
-    let batch: StoredPoint[] = [];
-    let lastFlush = now();
-    const flush = (): void => {
-      if (batch.length === 0) return;
-      const b = batch;
-      batch = [];
-      d.transaction((tx) => {
-        insertPoints(runId, b, tx);
-        tx.update(runs)
-          .set({ pointsDone: stored + b.length })
-          .where(eq(runs.id, runId))
-          .run();
-      });
-      stored += b.length;
-      lastFlush = now();
-    };
-    const onPoint = (p: PointResult): void => {
-      if (control.fault === "stuck") for (const end = Date.now() + 60_000; Date.now() < end;);
-      if (done === 0) d.update(runs).set({ solverReason: p.solver.reason }).where(eq(runs.id, runId)).run();
-      stats.add(p);
-      batch.push(toRecord(net, layout, p));
-      done++;
-      if (batch.length >= WRITE_BATCH || now() - lastFlush >= PROGRESS_MS) flush();
-    };
-
-    // The point's arrays are reused by the next point: toRecord copies what the batch keeps.
-    const run: RunResult = solveNetwork(net, {
-      onProgress,
-      onPoint,
-      shouldStop,
-      maxPoints: row.pointsTotal,
-      keepPoints: false,
-      reuseArrays: true,
-    });
-    flush();
-    d.update(runs)
+  const withStats = chunks.filter((c) => c.stats !== null);
+  const devices = row.layout ? (JSON.parse(row.layout) as RunLayout).devices.length : 0;
+  const fig = mergeChunks(
+    withStats.map((c) => ({ stats: JSON.parse(c.stats as string) as ChunkStats, flags: c.flags ?? null })),
+    devices,
+  );
+  if (!end) {
+    if (fig.structural) end = { state: "failed", reason: `the network cannot be solved: ${fig.structural}` };
+    else if (fig.points > 0 && fig.failureCount === fig.points)
+      end = {
+        state: "failed",
+        reason: `no point could be solved: ${fig.failures[0]?.message ?? "every point failed"}`,
+      };
+    else end = { state: "done", reason: null };
+  }
+  const ended = writeBusy(() =>
+    d
+      .update(runs)
       .set({
-        solverReason: run.reason,
-        newtonPoints: stats.newtonPoints,
-        devicesNotWeak: stats.count(stats.notWeak),
-        devicesNotSaturated: stats.count(stats.notSaturated),
-        maxResidual: stats.maxResidual,
-        warnings: JSON.stringify([...stats.warnings.values()]),
-        failures: JSON.stringify(run.failures.slice(0, 50).map((f) => ({ point: f.point, message: f.message }))),
+        state: end.state,
+        reason: end.reason,
+        finishedAt: new Date(now),
+        pointsDone,
+        solverReason: fig.solverReason ?? row.solverReason,
+        newtonPoints: fig.newtonPoints,
+        devicesNotWeak: fig.devicesNotWeak,
+        devicesNotSaturated: fig.devicesNotSaturated,
+        maxResidual: fig.maxResidual,
+        warnings: JSON.stringify(fig.warnings),
+        failures: JSON.stringify(fig.failures),
       })
-      .where(eq(runs.id, runId))
-      .run();
-    const of = `${done.toLocaleString("en-US")} of ${row.pointsTotal.toLocaleString("en-US")} points`;
-    if (stopKind === STOP_CANCEL) return end("canceled", `canceled after ${of}`, done);
-    if (stopKind === STOP_TIME)
-      return end("failed", `time limit of ${row.timeLimitMs / 1000} s reached after ${of}`, done);
-    const structural = run.failures.find((f) => f.point < 0);
-    if (structural) return end("failed", `the network cannot be solved: ${structural.message}`, done);
-    if (done === 0 && run.failures.length)
-      return end("failed", `no point could be solved: ${run.failures[0].message}`, done);
-    const finished = end("done", null, done);
+      .where(and(eq(runs.id, runId), inArray(runs.state, ["queued", "running"])))
+      .run(),
+  );
+  if (ended.changes === 0) {
+    const again = d.select().from(runs).where(eq(runs.id, runId)).get()!;
+    return { state: again.state, reason: again.reason, pointsDone: again.pointsDone };
+  }
+  if (end.state === "done") {
     // Review: the results diff against the parent commit's run, computed once (app/lib/review/diffs.ts); it never fails the run.
     try {
       storeCommitDiff(runId, d);
     } catch (e) {
       console.error(`run ${runId}: storing its commit diff failed: ${(e as Error).message}`);
     }
-    return finished;
-  } catch (e) {
-    return end("failed", `the run failed: ${((e as Error).message ?? String(e)).split("\n")[0]}`, stored);
   }
+  return { state: end.state, reason: end.reason, pointsDone };
 }
 
-function sleep(ms: number): void {
-  Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
+function seconds(ms: number): string {
+  return ms % 1000 === 0 ? `${ms / 1000} s` : `${(ms / 1000).toFixed(1)} s`;
 }
 
-/** The model figures a result page states. */
-export function modelOf(net: Network): Record<string, unknown> {
-  const s = net.settings;
-  return {
-    model: s.model,
-    kappa: s.kappa,
-    temp: s.temp,
-    ut: s.ut,
-    i0: s.i0,
-    vt0: s.vt0,
-    ispec: s.ispec,
-    devices: net.devices.count,
-    nodes: net.nodes.names.length,
-  };
-}
-
-/** Run-wide validity figures; a device counts once if it is flagged at any solved point. */
-class RunStats {
-  readonly notWeak: Uint8Array;
-  readonly notSaturated: Uint8Array;
-  readonly warnings = new Map<string, RunWarning>();
-  newtonPoints = 0;
-  maxResidual = 0;
-
-  constructor(devices: number) {
-    this.notWeak = new Uint8Array(devices);
-    this.notSaturated = new Uint8Array(devices);
-  }
-
-  add(p: PointResult): void {
-    if (p.solver.method === "newton") this.newtonPoints++;
-    if (Number.isFinite(p.solver.residual) && p.solver.residual > this.maxResidual)
-      this.maxResidual = p.solver.residual;
-    if (p.ok) {
-      const m = this.notWeak.length;
-      for (let k = 0; k < m; k++) {
-        if (p.ic[k] > WEAK_INVERSION_LIMIT) this.notWeak[k] = 1;
-        if (!p.saturated[k]) this.notSaturated[k] = 1;
-      }
-    }
-    for (const w of p.warnings) {
-      const key = `${w.kind}:${w.device}`;
-      const have = this.warnings.get(key);
-      if (have) have.points++;
-      else if (this.warnings.size < 50)
-        this.warnings.set(key, { kind: w.kind, message: w.message, points: 1, firstPoint: p.index });
+/**
+ * Executes a whole queued run in this thread, chunk after chunk, and ends it (the demo seed and tests; the
+ * server runs chunks in its pool). A run without a chunk plan runs as one chunk.
+ */
+export function executeRun(runId: string, control: ExecControl = {}, d: Q = db()): RunTaskResult {
+  const now = control.now ?? Date.now;
+  const row = d.select({ state: runs.state }).from(runs).where(eq(runs.id, runId)).get();
+  if (!row) return { state: "failed", reason: "the run does not exist", pointsDone: 0 };
+  if (row.state === "queued") {
+    const chunks = ensureChunks(runId, undefined, d);
+    if (!claimRun(runId, now(), d)) return finalizeRun(runId, undefined, now(), d)!;
+    for (let k = 0; k < chunks.length; k++) {
+      const r = executeChunk(runId, k, control, d);
+      if (r.outcome !== "done") break;
     }
   }
-
-  count(flags: Uint8Array): number {
-    let n = 0;
-    for (let k = 0; k < flags.length; k++) n += flags[k];
-    return n;
-  }
-}
-
-function toRecord(net: Network, layout: RunLayout, p: PointResult): StoredPoint {
-  const paramNames = layout.params;
-  const params = new Float64Array(paramNames.length);
-  for (let j = 0; j < paramNames.length; j++) {
-    const v = p.params[paramNames[j]];
-    params[j] =
-      v ??
-      (paramNames[j] === "temp" ? net.settings.temp : (net.params.find((x) => x.name === paramNames[j])?.value ?? NaN));
-  }
-  const probes = new Float64Array(layout.probes.length);
-  for (let j = 0; j < probes.length; j++) probes[j] = p.probes[layout.probes[j]] ?? NaN;
-  const rails = new Float64Array(net.rails.length);
-  for (let j = 0; j < rails.length; j++) rails[j] = p.railCurrents[net.rails[j].node];
-  return {
-    point: p.index,
-    sample: p.sample ?? 0,
-    params,
-    probes,
-    method: p.solver.method,
-    iterations: p.solver.iterations,
-    residual: p.solver.residual,
-    error: p.ok ? null : (p.error ?? "not solved"),
-    rails,
-    nodes: p.voltages.slice(),
-    current: p.currents.slice(),
-    ic: Float32Array.from(p.ic),
-    saturated: p.saturated.slice(),
-  };
+  return (
+    finalizeRun(runId, undefined, now(), d) ?? {
+      state: row.state,
+      reason: null,
+      pointsDone: 0,
+    }
+  );
 }

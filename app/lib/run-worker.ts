@@ -1,20 +1,27 @@
 /**
- * The run worker: piscina's entry in a worker thread (bundled to
- * .build/run-worker.mjs by scripts/build-worker.mjs). One connection per
- * database file per thread; the run's progress, results and final state are
- * written from here (SQLite WAL lets the request thread read meanwhile).
+ * The run worker: piscina's entry in a worker thread of the local pool
+ * (bundled to .build/run-worker.mjs by scripts/build-worker.mjs). It solves a
+ * chunk of a run into the database, or ends a run from its chunks. One
+ * connection per database file per thread (SQLite WAL lets the request thread
+ * read meanwhile).
  */
 import { openDatabase, type DB } from "@/db";
-import { executeRun, type RunTask, type RunTaskResult } from "./run-exec";
+import { executeChunk, finalizeRun, type ChunkResult, type RunTask, type RunTaskResult } from "./run-exec";
 
 const connections = new Map<string, DB>();
 
-export default function runTask(task: RunTask): RunTaskResult {
-  let d = connections.get(task.dbFile);
+function connection(file: string): DB {
+  let d = connections.get(file);
   if (!d) {
-    d = openDatabase(task.dbFile, { migrate: false });
-    connections.set(task.dbFile, d);
+    d = openDatabase(file, { migrate: false });
+    connections.set(file, d);
   }
+  return d;
+}
+
+export default function runTask(task: RunTask): ChunkResult | RunTaskResult | null {
+  const d = connection(task.dbFile);
+  if (task.kind === "finalize") return finalizeRun(task.runId, task.forced, Date.now(), d);
   const fault = process.env.RUNNEL_TEST_FAULTS === "1" ? task.fault : undefined;
-  return executeRun(task.runId, { stop: new Int32Array(task.stop), fault }, d);
+  return executeChunk(task.runId, task.chunk, { stop: new Int32Array(task.stop), fault }, d);
 }

@@ -3,12 +3,12 @@
  * queued run, ending a run that is still open, cancel requests and the
  * start-up recovery scan. Who executes a run lives in run-supervisor.ts.
  */
-import { and, asc, desc, eq, inArray } from "drizzle-orm";
+import { and, asc, count, desc, eq, inArray } from "drizzle-orm";
 import { db, type Q } from "@/db";
-import { networks, runs, users, type RunState } from "@/db/schema";
-import { RequestError } from "./http";
 import { newId } from "@/db/ids";
-import type { RunWarning } from "./run-exec";
+import { networks, runChunks, runs, users, type RunState } from "@/db/schema";
+import { RequestError } from "./http";
+import type { RunWarning } from "./run-stats";
 
 const OPEN_STATES: RunState[] = ["queued", "running"];
 
@@ -28,15 +28,52 @@ export interface NewRun {
   createdBy: string;
   pointsTotal: number;
   timeLimitMs: number;
+  /** The run's layout and model figures (JSON), when known at queue time. */
+  layout?: string;
+  model?: string;
+  /** The chunk plan; none: one chunk over every point, made when the run is dispatched. */
+  chunks?: readonly { start: number; end: number }[];
 }
 
-/** Inserts a `queued` run of a commit; returns its id. */
+/** Inserts a `queued` run of a commit and its chunk plan, in one transaction; returns its id. */
 export function insertRun(run: NewRun, d: Q = db()): string {
   const id = newId("r");
-  d.insert(runs)
-    .values({ id, ...run, workspaceId: workspaceOfNetwork(d, run.networkId) })
-    .run();
+  const { chunks, ...fields } = run;
+  d.transaction(
+    (tx) => {
+      tx.insert(runs)
+        .values({ id, ...fields, workspaceId: workspaceOfNetwork(tx, run.networkId) })
+        .run();
+      if (chunks && chunks.length > 0)
+        tx.insert(runChunks)
+          .values(chunks.map((c, chunk) => ({ runId: id, chunk, start: c.start, end: c.end })))
+          .run();
+    },
+    { behavior: "immediate" },
+  );
   return id;
+}
+
+/** How many runs a user has queued (not started yet). */
+export function queuedRunsOf(userId: string, d: Q = db()): number {
+  return (
+    d
+      .select({ n: count() })
+      .from(runs)
+      .where(and(eq(runs.createdBy, userId), eq(runs.state, "queued")))
+      .get()?.n ?? 0
+  );
+}
+
+/** Chunks of a run not solved yet (queued, or left running or stopped by a process that ended), in order. */
+export function openChunksOf(runId: string, d: Q = db()): number[] {
+  return d
+    .select({ chunk: runChunks.chunk })
+    .from(runChunks)
+    .where(and(eq(runChunks.runId, runId), inArray(runChunks.state, ["queued", "running", "stopped"])))
+    .orderBy(asc(runChunks.chunk))
+    .all()
+    .map((c) => c.chunk);
 }
 
 function workspaceOfNetwork(d: Q, networkId: string): string {
@@ -50,10 +87,22 @@ export function requestCancel(runId: string, d: Q = db()): void {
   d.update(runs).set({ cancelRequested: true }).where(eq(runs.id, runId)).run();
 }
 
-/** The state and time limit of a run, for the dispatcher; null when it does not exist. */
-export function runDispatchInfo(runId: string, d: Q = db()): { state: RunState; timeLimitMs: number } | null {
+/** What the dispatcher needs of a run; null when it does not exist. */
+export function runDispatchInfo(
+  runId: string,
+  d: Q = db(),
+): { state: RunState; workspaceId: string; timeLimitMs: number; startedAt: Date | null } | null {
   return (
-    d.select({ state: runs.state, timeLimitMs: runs.timeLimitMs }).from(runs).where(eq(runs.id, runId)).get() ?? null
+    d
+      .select({
+        state: runs.state,
+        workspaceId: runs.workspaceId,
+        timeLimitMs: runs.timeLimitMs,
+        startedAt: runs.startedAt,
+      })
+      .from(runs)
+      .where(eq(runs.id, runId))
+      .get() ?? null
   );
 }
 

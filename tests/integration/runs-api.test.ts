@@ -17,6 +17,7 @@ import type { DB } from "@/db";
 import { runs } from "@/db/schema";
 import { decodePoint } from "@/app/lib/point-codec";
 import { buildAccountsFixture, type AccountsFixture, type Who } from "../helpers/accounts";
+import { apiCaller } from "../helpers/api";
 import { SITE } from "../helpers/request-context";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
@@ -45,6 +46,7 @@ beforeAll(async () => {
   process.env.RUNNEL_TEST_FAULTS = "1";
   fixture = buildAccountsFixture();
   db = fixture.useCopy();
+  call = apiCaller(fixture);
   runsLib = await import("@/app/lib/run-supervisor");
 });
 
@@ -55,34 +57,7 @@ afterAll(async () => {
   delete process.env.RUNNEL_TEST_FAULTS;
 });
 
-type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
-
-/** Calls a route handler as `who` (session cookie), with JSON in and out. */
-async function call(
-  who: Who,
-  file: string,
-  method: string,
-  url: string,
-  params: Record<string, string> = {},
-  body?: unknown,
-) {
-  const mod = (await import(/* @vite-ignore */ `@/app/api/${file}`)) as Record<string, Handler>;
-  const headers = new Headers({ origin: SITE, host: new URL(SITE).host, "content-type": "application/json" });
-  const actor = fixture.actors[who];
-  if (actor) headers.set("cookie", actor.cookie);
-  const res = await mod[method](
-    new Request(SITE + url, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) }),
-    { params: Promise.resolve(params) },
-  );
-  const text = await res.text();
-  let json: Record<string, unknown> = {};
-  try {
-    json = JSON.parse(text) as Record<string, unknown>;
-  } catch {
-    json = { text };
-  }
-  return { status: res.status, json, text, headers: res.headers };
-}
+let call: ReturnType<typeof apiCaller>;
 
 async function newNetwork(name: string, text: string): Promise<{ networkId: string; commitId: string }> {
   const r = await call(
