@@ -13,39 +13,19 @@ import { type EditorState, StateEffect, StateField } from "@codemirror/state";
 import { NodeType, type SyntaxNode, Tree, type TreeBuffer } from "@lezer/common";
 import { BUILTINS, FUNCTIONS, PROBE_FUNCTIONS } from "../lang/expr";
 import { STATEMENT_WORDS } from "../lang/syntax";
+import {
+  MISMATCH_OPTIONS,
+  MODEL_DETAIL,
+  MODELS,
+  NODE_PINS,
+  PIN_DETAIL,
+  pinsOf,
+  SETTING_NAMES,
+  SETTINGS,
+} from "../lang/vocabulary";
 
-/** Pins of each element kind, in the order they are usually written. */
-export const FET_PINS = ["gate", "source", "drain", "bulk", "well", "w", "l"] as const;
-export const NFET_PINS = ["gate", "source", "drain", "bulk", "w", "l"] as const;
-export const PFET_PINS = ["gate", "source", "drain", "well", "w", "l"] as const;
-export const INJECT_PINS = ["from", "to", "value"] as const;
-/** Pins whose value is a node name (all others take an expression). */
-export const NODE_PINS: ReadonlySet<string> = new Set(["gate", "source", "drain", "bulk", "well", "from", "to"]);
-export const SETTING_NAMES = ["kappa", "temp", "i0", "vt0", "ispec", "model"] as const;
-export const MODELS = ["weak", "ekv"] as const;
-const MISMATCH_OPTIONS = ["runs", "seed", "avt"] as const;
-
-const SETTING_INFO: Record<(typeof SETTING_NAMES)[number], string> = {
-  kappa: "subthreshold slope factor (default 0.7)",
-  temp: "temperature in kelvin (default 300K)",
-  i0: "pre-exponential current of a W/L = 1 device (default 1f)",
-  vt0: "threshold voltage for the all-region model",
-  ispec: "specific current of a W/L = 1 device",
-  model: "weak (default) or ekv",
-};
-
-const PIN_INFO: Record<string, string> = {
-  gate: "node",
-  source: "node",
-  drain: "node",
-  bulk: "node (default: substrate at 0 V)",
-  well: "node the pfet's voltages are referenced to",
-  w: "width in metres (default 1u)",
-  l: "length in metres (default 1u)",
-  from: "node the current leaves",
-  to: "node the current enters",
-  value: "amperes",
-};
+/** Pins to offer when the element kind is not known (a statement being typed). */
+const ANY_ELEMENT_PINS = [...new Set([...pinsOf("nfet"), ...pinsOf("pfet")])];
 
 /** Names a document defines or uses, read from its syntax tree. */
 export interface DocumentNames {
@@ -381,8 +361,7 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
       return STATEMENT_WORDS.map((w) => ({ label: w, type: "keyword", apply: `${w} ` }));
     case "pin": {
       const kind = slot.statement.firstChild?.name;
-      const all =
-        kind === "nfet" ? NFET_PINS : kind === "pfet" ? PFET_PINS : kind === "inject" ? INJECT_PINS : FET_PINS;
+      const all = kind === "nfet" || kind === "pfet" || kind === "inject" ? pinsOf(kind) : ANY_ELEMENT_PINS;
       const present = new Set<string>();
       for (let pin = slot.statement.getChild("Pin"); pin; pin = pin.nextSibling) {
         const pn = pin.name === "Pin" ? pin.getChild("PinName") : null;
@@ -390,16 +369,17 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
       }
       return all
         .filter((p) => !present.has(p))
-        .map((p, i) => ({ label: p, type: "property", apply: `${p}=`, detail: PIN_INFO[p], boost: -i }));
+        .map((p, i) => ({ label: p, type: "property", apply: `${p}=`, detail: PIN_DETAIL[p], boost: -i }));
     }
     case "setting":
-      return SETTING_NAMES.map((s) => ({ label: s, type: "property", detail: SETTING_INFO[s], apply: `${s} = ` }));
-    case "model":
-      return MODELS.map((m) => ({
-        label: m,
-        type: "enum",
-        detail: m === "weak" ? "weak-inversion exponential" : "all-region EKV interpolation",
+      return SETTING_NAMES.map((s) => ({
+        label: s,
+        type: "property",
+        detail: SETTINGS[s].detail,
+        apply: `${s} = `,
       }));
+    case "model":
+      return MODELS.map((m) => ({ label: m, type: "enum", detail: MODEL_DETAIL[m] }));
     case "sweepParam":
       return [
         ...names.params.map((p) => ({ label: p.name, type: "variable", detail: "param" })),

@@ -5,11 +5,12 @@
  */
 import { LanguageSupport } from "@codemirror/language";
 import { elaboratedNames, runnelCompletionSource } from "./complete";
-import { runnelSyntaxHighlighting } from "./highlight";
+import { runnelSyntaxHighlighting } from "./theme";
 import { runnelLanguage } from "./language";
 
 export { runnelLanguage } from "./language";
-export { palette, runnelHighlighting, runnelHighlightStyle, runnelSyntaxHighlighting } from "./highlight";
+export { runnelHighlighting } from "../lang/highlight";
+export { palette, runnelHighlightStyle, runnelSyntaxHighlighting } from "./theme";
 export {
   collectNames,
   documentNames,

@@ -20,7 +20,7 @@ import {
   keymap,
   lineNumbers,
 } from "@codemirror/view";
-import { palette as c } from "./highlight";
+import { palette as c } from "./theme";
 import { runnel } from "./index";
 import { type RunnelLintOptions, runnelLinter } from "./lint";
 

@@ -1,5 +1,14 @@
 import type { Diagnostic, ElaborationResult, Severity } from "./network";
 
+/** A number as a message shows it: six significant digits, and words for NaN and the infinities. */
+export function fmt(v: number): string {
+  if (Number.isNaN(v)) return "not a number";
+  if (!Number.isFinite(v)) return v > 0 ? "infinite" : "-infinite";
+  const r = Number(v.toPrecision(6));
+  const a = Math.abs(r);
+  return a === 0 || (a >= 1e-3 && a < 1e6) ? String(r) : r.toExponential();
+}
+
 /** 1-based line and column (UTF-16 code units) of offsets in one text. */
 export class LineIndex {
   private readonly starts: number[] = [0];

@@ -1,5 +1,6 @@
 import type { SyntaxNode, Tree } from "@lezer/common";
 import type { DiagnosticSink, LineIndex } from "./diagnostics";
+import { pinsOf, SETTING_NAMES } from "./vocabulary";
 
 /** The statement words, in the order a designer meets them. */
 export const STATEMENT_WORDS = [
@@ -151,8 +152,7 @@ function explain(err: SyntaxNode, text: string): Explained {
     case "ProbeStatement":
     case "SetStatement":
       if (prevName && NAMED_KEYWORDS.has(prevName)) return expected(`a name after '${prevName}'`);
-      if (prevName === "set")
-        return expected("a setting name after 'set'", "settings: kappa, temp, i0, vt0, ispec, model");
+      if (prevName === "set") return expected("a setting name after 'set'", `settings: ${SETTING_NAMES.join(", ")}`);
       if (prevName === "Definition" || prevName === "SettingName") return expected(`'=' after '${prevText}'`);
       if (prevName === "=") return expected("a value after '='");
       if (afterValue) return at(`unexpected ${tok.found} after the value`, valueHint);
@@ -161,12 +161,7 @@ function explain(err: SyntaxNode, text: string): Explained {
     case "InjectStatement": {
       if (prevName && NAMED_KEYWORDS.has(prevName)) return expected(`a name after '${prevName}'`);
       const kind = parent?.firstChild?.name ?? "nfet";
-      const pins =
-        kind === "inject"
-          ? "from, to, value"
-          : kind === "pfet"
-            ? "gate, source, drain, well, w, l"
-            : "gate, source, drain, bulk, w, l";
+      const pins = pinsOf(kind === "inject" || kind === "pfet" ? kind : "nfet").join(", ");
       return expected(
         `a pin such as ${kind === "inject" ? "from=NODE" : "gate=NODE"}`,
         `${kind} pins: ${pins}, written key=value`,

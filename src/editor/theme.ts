@@ -1,13 +1,10 @@
 /**
- * Highlighting for Runnel. The one styleTags table (node → tag) lives beside the
- * grammar in src/lang/highlight.ts, where the generated parser reads it; this
- * file maps those tags to Runnel's own colours (app/globals.css palette: moss
- * greens on river-stone greys, ember for what is wrong).
+ * Runnel's colours in the editor (the app's palette: moss greens on river-stone greys, ember for what is wrong),
+ * and the highlight style that gives each highlighting tag its colour. Which syntax node gets which tag is the one
+ * styleTags table beside the grammar, src/lang/highlight.ts, which the generated parser reads.
  */
 import { HighlightStyle, syntaxHighlighting } from "@codemirror/language";
 import { tags as t } from "@lezer/highlight";
-
-export { runnelHighlighting } from "../lang/highlight";
 
 /**
  * Runnel's colours, shared by the highlight style and the editor theme: the theme tokens of app/globals.css
