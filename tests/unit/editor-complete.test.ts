@@ -4,13 +4,13 @@ import { EditorState } from "@codemirror/state";
 import { describe, expect, it } from "vitest";
 import { collectNames, runnel, setElaboratedNames } from "../../src/editor/index";
 import { parser } from "../../src/lang/parser";
+import { parsed } from "../helpers/editor-state";
 
 /** Completion at the `|` in `doc` through the language's own completion source. */
 function completeAt(doc: string, explicit = false): CompletionResult | null {
   const pos = doc.indexOf("|");
   const text = doc.slice(0, pos) + doc.slice(pos + 1);
-  const state = EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [runnel()] });
-  ensureSyntaxTree(state, state.doc.length, 5000);
+  const state = parsed(EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [runnel()] }));
   const sources = state.languageDataAt<CompletionSource>("autocomplete", pos);
   expect(sources).toHaveLength(1);
   return sources[0](new CompletionContext(state, pos, explicit)) as CompletionResult | null;
@@ -114,8 +114,7 @@ describe("node names as pin values", () => {
     const pos = doc.indexOf("|");
     const text = doc.replace("|", "");
     let state = EditorState.create({ doc: text, selection: { anchor: pos }, extensions: [runnel()] });
-    state = state.update({ effects: setElaboratedNames.of({ nodes: ["x1", "x2", "x9"], elements: [] }) }).state;
-    ensureSyntaxTree(state, state.doc.length, 5000);
+    state = parsed(state.update({ effects: setElaboratedNames.of({ nodes: ["x1", "x2", "x9"], elements: [] }) }).state);
     const source = state.languageDataAt<CompletionSource>("autocomplete", pos)[0];
     const r = source(new CompletionContext(state, pos, false)) as CompletionResult;
     expect(r.options.map((o) => o.label)).toEqual(expect.arrayContaining(["x9", "x1", "vdd"]));

@@ -3,11 +3,10 @@ import { EditorState } from "@codemirror/state";
 import { highlightTree, tags as t } from "@lezer/highlight";
 import { describe, expect, it } from "vitest";
 import { runnel, runnelHighlightStyle, runnelLanguage } from "../../src/editor/index";
+import { parsed } from "../helpers/editor-state";
 
 function stateOf(doc: string): EditorState {
-  const state = EditorState.create({ doc, extensions: [runnel()] });
-  ensureSyntaxTree(state, state.doc.length, 5000);
-  return state;
+  return parsed(EditorState.create({ doc, extensions: [runnel()] }));
 }
 
 /** The highlight class of each token, as `text → class`. */

@@ -1,4 +1,3 @@
-import { ensureSyntaxTree } from "@codemirror/language";
 import { EditorState, type TransactionSpec } from "@codemirror/state";
 import type { EditorView } from "@codemirror/view";
 import { describe, expect, it } from "vitest";
@@ -15,6 +14,7 @@ import {
   runnelLintSource,
   toEditorDiagnostics,
 } from "../../src/editor/index";
+import { parsed } from "../helpers/editor-state";
 
 const BROKEN = [
   "rail vdd = 1.2\nnfet m1 gate=vdd source=x drain=\nfrob 3\nprobe p = voltage(nope)\n",
@@ -29,13 +29,12 @@ const GOOD = "rail vdd = 1\nrail gnd = 0\nnfet m1 gate=vdd source=gnd drain=x\ni
 function fakeView(doc: string): { view: EditorView; specs: TransactionSpec[] } {
   const specs: TransactionSpec[] = [];
   const holder = {
-    state: EditorState.create({ doc, extensions: [runnel()] }),
+    state: parsed(EditorState.create({ doc, extensions: [runnel()] })),
     dispatch(spec: TransactionSpec) {
       specs.push(spec);
       holder.state = holder.state.update(spec).state;
     },
   };
-  ensureSyntaxTree(holder.state, holder.state.doc.length, 5000);
   return { view: holder as unknown as EditorView, specs };
 }
 
