@@ -1,9 +1,22 @@
 /**
- * The `runnel` command line: `runnel check FILE [--json]`, `runnel solve FILE --json`.
+ * The `runnel` command line: `runnel check FILE [--json]`, `runnel solve FILE [output options]`
+ * (docs/language.md, command line; `npm run runnel` runs it from its bundle, scripts/runnel-bundle.mjs).
  * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file).
  * File reading lives here only; src/lang has no I/O.
  */
-import { readFileSync, realpathSync, statSync } from "node:fs";
+import {
+  closeSync,
+  mkdtempSync,
+  openSync,
+  readFileSync,
+  readSync,
+  realpathSync,
+  rmSync,
+  statSync,
+  writeSync,
+} from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { pathToFileURL } from "node:url";
 import {
   DEFAULT_LIMITS,
@@ -14,15 +27,38 @@ import {
   tooLargeResult,
 } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
-import { pointCount, pointJson, type RunResult, solveNetwork, type SolveJson, toSolveJson } from "../src/solver/index";
+import { pointCount, type PointResult, solveNetwork } from "../src/solver/index";
+import { CsvRows } from "../src/solver/csv";
+import {
+  ByteWriter,
+  EVERYTHING,
+  matching,
+  PointFormatter,
+  PROBES_ONLY,
+  type Selection,
+} from "../src/solver/json-format";
+import { RunNotes, type SolveJson, toSolveJson } from "../src/solver/json";
 
 const EXIT_OK = 0;
 const EXIT_ERRORS = 1;
 const EXIT_USAGE = 2;
 
 export interface Io {
+  /** A whole message (a line break is added when it has none). */
   out(text: string): void;
   err(text: string): void;
+  /** Raw text, as it is (default: out). */
+  write?(text: string): void;
+  /** Raw UTF-8 bytes, consumed before the call returns (default: decoded, to write). */
+  bytes?(b: Uint8Array): void;
+}
+
+/** The raw byte output of `io`. */
+function bytesOut(io: Io): (b: Uint8Array) => void {
+  if (io.bytes) return io.bytes;
+  const write = io.write ?? io.out;
+  const utf8 = new TextDecoder();
+  return (b) => write(utf8.decode(b, { stream: true }));
 }
 
 /** A subcommand gets its arguments (after the subcommand word) and returns the exit status. */
@@ -82,35 +118,96 @@ const check: Subcommand = {
 };
 
 /**
- * Most values `runnel solve --json` prints (points × values per point), checked
- * before anything is solved. About 40 bytes each in the printed text
- * (measured: 16.5 M values printed 628 MB), so the document stays below
- * 512 M characters, the longest string Node.js reads whole.
+ * Most values the `--json` document may print (points × values per point),
+ * checked before anything is solved: its head (ok, diagnostics) is known only
+ * when the run ends, so its points wait on disk until then (--ndjson and
+ * --csv print each point as it is solved, with no limit). About 40 bytes
+ * each (measured: 16.5 M values printed 628 MB).
  */
 export const MAX_PRINTED_VALUES = 10_000_000;
 
-/** What one point prints: every node's voltage and rail current, each device's three values, probes and params. */
-function printedValues(net: Network): number {
+/** What `runnel solve` prints, from its options. */
+interface Output {
+  format: "summary" | "json" | "ndjson" | "csv";
+  table: CsvTable;
+  select: Selection;
+}
+
+const CSV_TABLES = ["probes", "nodes", "devices", "rails"] as const;
+type CsvTable = (typeof CSV_TABLES)[number];
+
+/** Values a point prints with this selection: its nodes, rails, three per device, probes, params and the solver's. */
+function printedValues(net: Network, select: Selection): number {
+  const n = (pick: Int32Array | null, all: number) => (pick ? pick.length : all);
   return (
-    pointCount(net) * (2 * net.nodes.names.length + 3 * net.devices.count + net.probes.length + net.params.length + 8)
+    pointCount(net) *
+    (n(select.nodes, net.nodes.names.length) +
+      n(select.rails, net.rails.length) +
+      3 * n(select.devices, net.devices.count) +
+      net.probes.length +
+      net.params.length +
+      8)
   );
 }
 
-/** The document as JSON.stringify(doc, null, 2) prints it, written a point at a time. */
-function writeSolveJson(doc: SolveJson, net: Network | null, run: RunResult | null, io: Io): void {
-  const points = doc.ok && net && run ? run.points : [];
-  const head = JSON.stringify({ ...doc, points: [] }, null, 2);
-  if (points.length === 0) {
-    io.out(head);
-    return;
+/**
+ * The selection options: `--probes-only`, or `--nodes`, `--rails`,
+ * `--devices` with comma-separated names (`*` matches any run of
+ * characters). Once one of them is given, a section it does not name is left out.
+ */
+function selection(net: Network, opts: Map<string, string>): Selection {
+  if (opts.has("--probes-only")) {
+    if (["--nodes", "--rails", "--devices"].some((o) => opts.has(o)))
+      throw new UsageError("--probes-only leaves out every node, rail and device: give it alone");
+    return PROBES_ONLY;
   }
-  // head ends with `"points": []` and the closing brace: open the array there instead.
-  io.out(`${head.slice(0, head.lastIndexOf("[]"))}[\n`);
-  for (let k = 0; k < points.length; k++) {
-    const text = JSON.stringify(pointJson(net as Network, points[k]), null, 2).replace(/\n/g, "\n    ");
-    io.out(`    ${text}${k + 1 < points.length ? "," : ""}\n`);
+  if (!["--nodes", "--rails", "--devices"].some((o) => opts.has(o))) return EVERYTHING;
+  const pick = (option: string, what: string, names: readonly string[]): Int32Array => {
+    const list = opts.get(option);
+    if (list === undefined) return new Int32Array(0);
+    const patterns = list.split(",").map((x) => x.trim());
+    if (patterns.some((x) => x === "")) throw new UsageError(`${option}: an empty name in '${list}'`);
+    const { at, unmatched } = matching(names, patterns);
+    if (unmatched.length)
+      throw new UsageError(`${option}: no ${what} matches ${unmatched.map((x) => `'${x}'`).join(", ")}`);
+    return at;
+  };
+  return {
+    nodes: pick("--nodes", "node", net.nodes.names),
+    rails: pick(
+      "--rails",
+      "rail",
+      net.rails.map((r) => r.name),
+    ),
+    devices: pick("--devices", "device", net.devices.names),
+  };
+}
+
+/** Parses `runnel solve`'s arguments: one FILE, flags, and options that take a value. */
+function solveArgs(args: string[]): { file: string; opts: Map<string, string> } {
+  const flags = ["--json", "--ndjson", "--probes-only"];
+  const valued = ["--csv", "--nodes", "--rails", "--devices"];
+  const opts = new Map<string, string>();
+  const files: string[] = [];
+  for (let k = 0; k < args.length; k++) {
+    const a = args[k];
+    const eq = a.indexOf("=");
+    const name = a.startsWith("--") && eq > 0 ? a.slice(0, eq) : a;
+    if (flags.includes(name)) opts.set(name, "");
+    else if (valued.includes(name)) {
+      const v = eq > 0 ? a.slice(eq + 1) : args[++k];
+      if (v === undefined || v.startsWith("--")) throw new UsageError(`${name} needs a value`);
+      opts.set(name, v);
+    } else if (a.startsWith("--")) throw new UsageError(`unknown option ${a}`);
+    else files.push(a);
   }
-  io.out("  ]\n}\n");
+  if (files.length !== 1) throw new UsageError(files.length === 0 ? "missing FILE" : "give exactly one FILE");
+  const formats = ["--json", "--ndjson", "--csv"].filter((f) => opts.has(f));
+  if (formats.length > 1) throw new UsageError(`give one of ${formats.join(", ")}`);
+  const table = opts.get("--csv");
+  if (table !== undefined && !(CSV_TABLES as readonly string[]).includes(table))
+    throw new UsageError(`--csv: a table is one of ${CSV_TABLES.join(", ")}, not '${table}'`);
+  return { file: files[0], opts };
 }
 
 /** After the first 2 s of a run, a line on stderr every 2 s: how far it is and how long the rest will take at this pace. */
@@ -128,20 +225,44 @@ function progress(io: Io): (done: number, total: number) => void {
   };
 }
 
+/** Prints the diagnostics of a document as `FILE:LINE:COLUMN: severity: message` lines (to stderr with `err`). */
+function printDiagnostics(file: string, doc: SolveJson, print: (t: string) => void): void {
+  if (doc.diagnostics.length)
+    print(
+      formatDiagnostics(
+        file,
+        doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 })),
+      ),
+    );
+}
+
 const solve: Subcommand = {
-  usage: "runnel solve FILE --json",
-  summary: "solve every point and print one JSON document",
+  usage:
+    "runnel solve FILE [--json | --ndjson | --csv probes|nodes|devices|rails] [--probes-only | --nodes LIST --rails LIST --devices LIST]",
+  summary: "solve every point; print a summary, the JSON document, one JSON line per point, or a CSV table",
   run(args, io) {
-    const { file, flags } = fileAndFlags(args, ["--json"]);
+    const { file, opts } = solveArgs(args);
     const result = elaborateFile(file);
     const net = result.network;
     // The text places solver diagnostics at their device's line (the file was readable a moment ago).
     const text = net ? readFileSync(file, "utf8") : undefined;
-    const printed = net ? printedValues(net) : 0;
-    if (net && printed > MAX_PRINTED_VALUES) {
+    const format: Output["format"] = opts.has("--json")
+      ? "json"
+      : opts.has("--ndjson")
+        ? "ndjson"
+        : opts.has("--csv")
+          ? "csv"
+          : "summary";
+    const out: Output = {
+      format,
+      table: (opts.get("--csv") ?? "probes") as CsvTable,
+      select: net ? selection(net, opts) : EVERYTHING,
+    };
+    const printed = net ? printedValues(net, out.select) : 0;
+    if (net && format === "json" && printed > MAX_PRINTED_VALUES) {
       const at = net.sweeps[0]?.span.from ?? 0;
       const line = (text ?? "").slice(0, at).split("\n").length;
-      const message = `this run would print about ${printed.toExponential(1)} values (${pointCount(net).toLocaleString("en-US")} points of ${net.nodes.names.length.toLocaleString("en-US")} nodes and ${net.devices.count.toLocaleString("en-US")} device${net.devices.count === 1 ? "" : "s"}), more than the command line's ${MAX_PRINTED_VALUES.toLocaleString("en-US")}: use fewer points, or run it in the workbench, which stores results point by point`;
+      const message = `this run would print about ${printed.toExponential(1)} values (${pointCount(net).toLocaleString("en-US")} points of ${net.nodes.names.length.toLocaleString("en-US")} nodes and ${net.devices.count.toLocaleString("en-US")} device${net.devices.count === 1 ? "" : "s"}), more than the command line's ${MAX_PRINTED_VALUES.toLocaleString("en-US")}: use fewer points, print less (--probes-only, --nodes, --devices), stream it (--ndjson, --csv), or run it in the workbench, which stores results point by point`;
       const doc = toSolveJson(
         null,
         [...result.diagnostics, { severity: "error", line, column: 1, from: at, to: at, message }],
@@ -149,35 +270,183 @@ const solve: Subcommand = {
         undefined,
         net.name,
       );
-      if (flags.has("--json")) io.out(JSON.stringify(doc, null, 2));
-      else
-        io.out(
-          formatDiagnostics(
-            file,
-            doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 })),
-          ),
-        );
+      io.out(JSON.stringify(doc, null, 2));
       return EXIT_ERRORS;
     }
-    const run = net ? solveNetwork(net, { onProgress: progress(io) }) : null;
-    const doc = toSolveJson(net, result.diagnostics, run, text, result.name, false);
-    if (flags.has("--json")) writeSolveJson(doc, net, run, io);
+    if (!net) {
+      const doc = toSolveJson(null, result.diagnostics, null, text, result.name, false);
+      if (format === "json") io.out(JSON.stringify(doc, null, 2));
+      else if (format === "ndjson") io.out(JSON.stringify(doc));
+      else printDiagnostics(file, doc, format === "csv" ? io.err : io.out);
+      return EXIT_ERRORS;
+    }
+    const notes = new RunNotes();
+    const sink = format === "summary" ? null : pointSink(net, out, io);
+    const run = solveNetwork(net, {
+      keepPoints: false,
+      reuseArrays: true,
+      onProgress: progress(io),
+      onPoint: (p) => {
+        notes.note(p);
+        sink?.point(p);
+      },
+    });
+    const doc = toSolveJson(net, result.diagnostics, run, text, result.name, false, notes);
+    if (sink) sink.end(doc, file);
     else {
-      if (doc.diagnostics.length)
-        io.out(
-          formatDiagnostics(
-            file,
-            doc.diagnostics.map((d) => ({ ...d, from: 0, to: 0 })),
-          ),
-        );
-      if (run)
-        io.out(
-          `${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`,
-        );
+      printDiagnostics(file, doc, io.out);
+      io.out(
+        `${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`,
+      );
     }
     return doc.ok ? EXIT_OK : EXIT_ERRORS;
   },
 };
+
+/** Where solved points go: formatted as they come, and finished when the run ends. */
+interface PointSink {
+  point(p: PointResult): void;
+  end(doc: SolveJson, file: string): void;
+}
+
+function pointSink(net: Network, out: Output, io: Io): PointSink {
+  const emit = bytesOut(io);
+  if (out.format === "csv") {
+    // The rows of one table (the columns of the workbench's CSV export), a point at a time; diagnostics to stderr.
+    const w = new ByteWriter(emit);
+    const csv = new CsvRows(net, out.table, out.select);
+    const put = (t: string) => w.text(t);
+    put(csv.header());
+    return {
+      point: (p) => csv.rows(p, put),
+      end: (doc, file) => {
+        w.flush();
+        printDiagnostics(file, doc, io.err);
+      },
+    };
+  }
+  if (out.format === "ndjson") {
+    // One line per point as it is solved (a failed point carries its error); last, the document without points.
+    const f = new PointFormatter(net, false, out.select);
+    const w = new ByteWriter(emit);
+    return {
+      point: (p) => {
+        f.format(p, w, p.ok ? undefined : (p.error ?? "not solved"));
+        w.ascii("\n");
+      },
+      end: (doc) => {
+        const { points: _, ...head } = doc;
+        w.text(`${JSON.stringify(head)}\n`);
+        w.flush();
+      },
+    };
+  }
+  // The document: its points wait (in memory, then on disk) until the head, known at the end, is printed.
+  const f = new PointFormatter(net, true, out.select);
+  const held = new HeldBytes();
+  const w = new ByteWriter(held.put);
+  let first = true;
+  return {
+    point: (p) => {
+      w.ascii(first ? "    " : ",\n    ");
+      first = false;
+      f.format(p, w);
+      w.flush(); // a point at a time (a big one in pieces)
+    },
+    end: (doc) => {
+      w.flush();
+      const head = JSON.stringify({ ...doc, points: [] }, null, 2);
+      if (!doc.ok || first) {
+        held.discard();
+        io.out(head);
+        return;
+      }
+      // head ends with `"points": []` and the closing brace: open the array there instead.
+      const tail = new ByteWriter(emit);
+      tail.text(`${head.slice(0, head.lastIndexOf("[]"))}[\n`);
+      tail.flush();
+      held.replay(emit);
+      tail.ascii("\n  ]\n}\n");
+      tail.flush();
+    },
+  };
+}
+
+/** Held bytes beyond this many move to a temporary file. */
+const HOLD_IN_MEMORY = 1 << 25;
+
+/**
+ * Bytes held until the run ends: in memory while they are few, then in a
+ * temporary file, so memory stays bounded whatever the number of points.
+ */
+export class HeldBytes {
+  private parts: Uint8Array[] = [];
+  private size = 0;
+  private fd = -1;
+  private path = "";
+
+  constructor(private readonly limit = HOLD_IN_MEMORY) {}
+
+  /** Whether the bytes went to a temporary file. */
+  get spilled(): boolean {
+    return this.fd >= 0;
+  }
+
+  put = (b: Uint8Array): void => {
+    if (this.fd < 0 && this.size + b.length <= this.limit) {
+      this.parts.push(b.slice());
+      this.size += b.length;
+      return;
+    }
+    if (this.fd < 0) {
+      const dir = mkdtempSync(path.join(tmpdir(), "runnel-solve-"));
+      this.path = path.join(dir, "points.json");
+      this.fd = openSync(this.path, "w+");
+      for (const p of this.parts) writeAll(this.fd, p);
+      this.parts = [];
+      this.size = 0;
+    }
+    writeAll(this.fd, b);
+  };
+
+  /** Hands every held byte to `out` in order, then lets them go. */
+  replay(out: (b: Uint8Array) => void): void {
+    if (this.fd >= 0) {
+      const buf = new Uint8Array(1 << 20);
+      for (let at = 0; ;) {
+        const n = readSync(this.fd, buf, 0, buf.length, at);
+        if (n <= 0) break;
+        out(buf.subarray(0, n));
+        at += n;
+      }
+    }
+    for (const p of this.parts) out(p);
+    this.discard();
+  }
+
+  discard(): void {
+    this.parts = [];
+    this.size = 0;
+    if (this.fd >= 0) {
+      closeSync(this.fd);
+      rmSync(path.dirname(this.path), { recursive: true, force: true });
+      this.fd = -1;
+    }
+  }
+}
+
+/** Writes all of b to fd; a pipe whose reader is behind (EAGAIN) is waited for, a millisecond at a time. */
+function writeAll(fd: number, b: Uint8Array): void {
+  for (let at = 0; at < b.length;) {
+    try {
+      at += writeSync(fd, b, at);
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== "EAGAIN") throw e;
+      Atomics.wait(PAUSE, 0, 0, 1);
+    }
+  }
+}
+const PAUSE = new Int32Array(new SharedArrayBuffer(4));
 
 /** The subcommands; adding one is one entry here. */
 const SUBCOMMANDS: Record<string, Subcommand> = { check, solve };
@@ -209,17 +478,31 @@ export function main(argv: string[], io: Io): number {
   }
 }
 
-const io: Io = {
+const processIo: Io = {
   out: (t) => process.stdout.write(t.endsWith("\n") ? t : `${t}\n`),
   err: (t) => process.stderr.write(t.endsWith("\n") ? t : `${t}\n`),
+  write: (t) => process.stdout.write(t),
+  bytes: (b) => {
+    try {
+      writeAll(1, b);
+    } catch (e) {
+      // A reader that stops early (`| head`) closes the pipe: stop quietly, as other commands do.
+      if ((e as NodeJS.ErrnoException).code === "EPIPE") process.exit(process.exitCode ?? 0);
+      throw e;
+    }
+  },
 };
 
-// Run when executed as a script (not when a test imports `main`).
-if (process.argv[1] && import.meta.url === pathToFileURL(realpathSync(process.argv[1])).href) {
+/** Runs the command line in this process: `argv` after the command's name; sets the exit status. */
+export function cli(argv: string[]): void {
   // A reader that stops early (`| head`) closes the pipe: stop quietly, as other commands do.
   process.stdout.on("error", (e: NodeJS.ErrnoException) => {
     if (e.code !== "EPIPE") throw e;
     process.exit(process.exitCode ?? 0);
   });
-  process.exitCode = main(process.argv.slice(2), io);
+  process.exitCode = main(argv, processIo);
 }
+
+// Run when executed as a script (npm run runnel runs the bundle through scripts/runnel-bundle.mjs instead).
+if (process.argv[1] && import.meta.url === pathToFileURL(realpathSync(process.argv[1])).href)
+  cli(process.argv.slice(2));

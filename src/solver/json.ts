@@ -7,7 +7,7 @@
 import { type JsonDiagnostic, LineIndex } from "../lang/diagnostics";
 import type { Diagnostic, Network } from "../lang/network";
 import { firstDeviceAt } from "./evaluate";
-import type { Method, PointResult, RunResult } from "./results";
+import type { Method, PointResult, RunResult, SolverWarning } from "./results";
 
 /**
  * One point of the document, by name: what the command line prints, what a
@@ -60,10 +60,44 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
 }
 
 /**
+ * What the document's diagnostics need from a run's points, gathered point
+ * by point (so a run that streams its points keeps none): each validity
+ * warning's first point, and each probe's first solved point where it is not
+ * a finite number.
+ */
+export class RunNotes {
+  points = 0;
+  readonly warnings: { warning: SolverWarning; index: number; sample: number | null }[] = [];
+  readonly notFinite = new Map<string, { index: number; sample: number | null }>();
+  private readonly seen = new Set<string>();
+
+  note(p: PointResult): void {
+    this.points++;
+    for (const w of p.warnings) {
+      const key = `${w.kind}:${w.device}`;
+      if (this.seen.has(key)) continue;
+      this.seen.add(key);
+      this.warnings.push({ warning: w, index: p.index, sample: p.sample });
+    }
+    if (!p.ok) return;
+    for (const name in p.probes)
+      if (!Number.isFinite(p.probes[name]) && !this.notFinite.has(name))
+        this.notFinite.set(name, { index: p.index, sample: p.sample });
+  }
+
+  static of(points: readonly PointResult[]): RunNotes {
+    const n = new RunNotes();
+    for (const p of points) n.note(p);
+    return n;
+  }
+}
+
+/**
  * The `runnel solve --json` document. `diagnostics` are the elaboration's;
  * solver failures become errors and validity warnings become warnings, placed
  * at the device's statement when `text` is given. `ok` is false, with no
- * points, when any diagnostic is an error or any point failed.
+ * points, when any diagnostic is an error or any point failed. `notes` are
+ * the run's points' (made from run.points when not given).
  */
 export function toSolveJson(
   net: Network | null,
@@ -72,6 +106,7 @@ export function toSolveJson(
   text?: string,
   name?: string | null,
   withPoints = true,
+  notes?: RunNotes,
 ): SolveJson {
   // (The command line's document carries no hints: `runnel check` prints those.)
   const out: JsonDiagnostic[] = diagnostics.map((d) => ({
@@ -85,31 +120,23 @@ export function toSolveJson(
     lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 };
   let ok = !diagnostics.some((d) => d.severity === "error") && net !== null && run !== null;
   if (net && run) {
-    const seen = new Set<string>();
+    const n = notes ?? RunNotes.of(run.points);
+    const where = (index: number, sample: number | null) =>
+      n.points > 1 ? ` (first at point ${index}${sample !== null ? `, sample ${sample}` : ""})` : "";
     for (const f of run.failures) {
       const dev = f.node >= 0 ? firstDeviceAt(net, f.node) : -1;
       out.push({ severity: "error", ...at(dev >= 0 ? net.devices.at[dev] : -1), message: f.message });
     }
-    for (const p of run.points) {
-      for (const w of p.warnings) {
-        const key = `${w.kind}:${w.device}`;
-        if (seen.has(key)) continue;
-        seen.add(key);
-        const where =
-          run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
-        out.push({ severity: "warning", ...at(net.devices.at[w.device]), message: w.message + where });
-      }
-    }
+    for (const { warning: w, index, sample } of n.warnings)
+      out.push({ severity: "warning", ...at(net.devices.at[w.device]), message: w.message + where(index, sample) });
     // A probe that is not a number (0/0, log of 0, a ratio over a current of 0 A) prints null: say so, once per probe.
     for (const probe of net.probes) {
-      const p = run.points.find((q) => q.ok && probe.name in q.probes && !Number.isFinite(q.probes[probe.name]));
-      if (!p) continue;
-      const where =
-        run.points.length > 1 ? ` (first at point ${p.index}${p.sample !== null ? `, sample ${p.sample}` : ""})` : "";
+      const first = n.notFinite.get(probe.name);
+      if (!first) continue;
       out.push({
         severity: "warning",
         ...at(probe.span.from),
-        message: `probe ${probe.name} is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null${where}`,
+        message: `probe ${probe.name} is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null${where(first.index, first.sample)}`,
       });
     }
     if (!run.ok) ok = false;
@@ -118,7 +145,7 @@ export function toSolveJson(
     network: net ? net.name : (name ?? null),
     ok,
     diagnostics: out,
-    // (Without points, a caller prints them one by one with pointJson: a big run's text would not fit one string.)
+    // (Without points, a caller prints them one by one: a big run's text would not fit one string.)
     points: ok && net && run && withPoints ? run.points.map((p) => pointJson(net, p)) : [],
   };
 }

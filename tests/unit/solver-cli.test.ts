@@ -10,7 +10,7 @@ import { mkdtempSync, readdirSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { MAX_PRINTED_VALUES, main } from "../../scripts/runnel";
+import { HeldBytes, MAX_PRINTED_VALUES, main } from "../../scripts/runnel";
 import type { SolveJson } from "../../src/solver/json";
 
 const root = join(__dirname, "../..");
@@ -138,5 +138,73 @@ describe("runnel solve --json on the examples", () => {
           "probe c is not a finite number (a division by zero, or a logarithm or root out of its domain): printed as null (first at point 1)",
       },
     ]);
+  });
+});
+
+describe("runnel solve output options", () => {
+  const biassweep = join(root, "examples", "biassweep.runnel");
+  const grid = join(root, "examples", "grid32.runnel");
+  const run = (...args: string[]) => {
+    let out = "";
+    let err = "";
+    const code = main(["solve", ...args], { out: (t) => (out += t), err: (t) => (err += t) });
+    return { code, out, err };
+  };
+  const doc = JSON.parse(run(biassweep, "--json").out) as SolveJson;
+
+  it("--ndjson prints each point of the document on a line of its own, then the document without its points", () => {
+    const r = run(biassweep, "--ndjson");
+    expect(r.code).toBe(0);
+    const lines = r.out.trimEnd().split("\n");
+    expect(lines.length).toBe(doc.points.length + 1);
+    expect(lines.slice(0, -1).map((l) => JSON.parse(l))).toEqual(doc.points);
+    const { points: _, ...head } = doc;
+    expect(JSON.parse(lines.at(-1)!)).toEqual(head);
+    // Compact: JSON.stringify's own text of each point.
+    expect(lines[0]).toBe(JSON.stringify(doc.points[0]));
+  });
+
+  it("--csv prints one table: a row per point for probes, a row per point and element otherwise", () => {
+    const probes = run(biassweep, "--csv", "probes").out.trimEnd().split("\r\n");
+    expect(probes[0]).toBe("point,sample,vv,vh,iin,temp,peak,spread,method,iterations,residual_A,error");
+    expect(probes.length).toBe(doc.points.length + 1);
+    const row = probes[3].split(",");
+    expect(Number(row[6])).toBe(doc.points[2].probes.peak);
+    expect(row[8]).toBe("linear");
+    const nodes = run(grid, "--csv=nodes", "--nodes", "n16_*").out.trimEnd().split("\r\n");
+    expect(nodes[0]).toBe("point,sample,node,rail,voltage_V");
+    expect(nodes.length).toBe(1 + 32);
+    expect(nodes[1]).toMatch(/^0,0,n16_0,0,0\.\d+$/);
+  });
+
+  it("--probes-only and --nodes/--devices/--rails print only what they name; a name that matches nothing is a usage error", () => {
+    const only = JSON.parse(run(grid, "--json", "--probes-only").out) as SolveJson;
+    expect(Object.keys(only.points[0])).toEqual(["params", "probes", "solver", "sample"]);
+    const full = JSON.parse(run(grid, "--json").out) as SolveJson;
+    expect(only.points[0].probes).toEqual(full.points[0].probes);
+    const some = JSON.parse(run(grid, "--json", "--nodes", "n0_0,n31_*", "--devices", "o16_16").out) as SolveJson;
+    expect(Object.keys(some.points[0].nodes)).toEqual(["n0_0", ...Array.from({ length: 32 }, (_, j) => `n31_${j}`)]);
+    expect(some.points[0].nodes.n0_0).toBe(full.points[0].nodes.n0_0);
+    expect(some.points[0].devices).toEqual({ o16_16: full.points[0].devices.o16_16 });
+    expect(some.points[0].rails).toBeUndefined();
+    const bad = run(grid, "--json", "--nodes", "nope*");
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/--nodes: no node matches 'nope\*'/);
+    expect(run(grid, "--json", "--csv", "nodes").code).toBe(2);
+    expect(run(grid, "--csv", "wires").err).toMatch(/--csv: a table is one of probes, nodes, devices, rails/);
+  });
+
+  it("held points move to a temporary file past the limit and come back byte for byte", () => {
+    const held = new HeldBytes(1000);
+    const pieces = Array.from({ length: 50 }, (_, k) =>
+      new TextEncoder().encode(`piece ${k} µ ${"x".repeat(k * 7)}\n`),
+    );
+    for (const p of pieces) held.put(p);
+    expect(held.spilled).toBe(true);
+    let back = "";
+    const utf8 = new TextDecoder();
+    held.replay((b) => (back += utf8.decode(b, { stream: true })));
+    expect(back).toBe(pieces.map((p) => new TextDecoder().decode(p)).join(""));
+    expect(held.spilled).toBe(false);
   });
 });
