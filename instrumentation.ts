@@ -1,13 +1,15 @@
 /**
  * Next's start-up hook (runs once per server process, before any request):
  * runs left `running` by a stopped server are marked interrupted, and queued
- * runs are queued again, and one run worker thread is started (app/lib/run-supervisor.ts).
+ * runs are queued again, and one run worker thread is started (app/lib/run-supervisor.ts), and one thread
+ * of the interactive pool (app/lib/interactive.ts), so the first commit does not wait for it to load.
  */
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs" || process.env.NEXT_PHASE === "phase-production-build") return;
   const { recoverRuns, warmPool } = await import("./app/lib/run-supervisor");
+  const { warmInteractivePool } = await import("./app/lib/interactive");
   try {
-    await warmPool();
+    await Promise.all([warmPool(), warmInteractivePool()]);
     const r = recoverRuns();
     if (r.interrupted || r.requeued)
       console.log(`runnel: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again`);

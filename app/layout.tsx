@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
+import { connection } from "next/server";
 import type { ReactNode } from "react";
 import { inter, jetbrains } from "./fonts";
 import { mailboxEnabled } from "./lib/mail";
@@ -11,7 +12,9 @@ export const metadata: Metadata = {
   description: "Workbench for weak-inversion transistor networks: write, check, solve, sweep, compare and sign off.",
 };
 
-export default function RootLayout({ children }: { children: ReactNode }) {
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  // Every page renders per request: its scripts carry that response's CSP nonce (scripts/lib/next-server.ts).
+  await connection();
   return (
     <html lang="en" className={`${inter.variable} ${jetbrains.variable}`}>
       <body className="min-h-screen font-sans antialiased">

@@ -7,7 +7,9 @@
  *   the SHA-256 hex of its random value (`token_hash`); passwords live in
  *   users.password_hash as argon2id PHC strings.
  * - `sessions` has exactly the shape @lucia-auth/adapter-drizzle expects:
- *   `expires_at` is in SECONDS since the epoch (the adapter writes it).
+ *   `expires_at` is in SECONDS since the epoch (the adapter writes it). Its
+ *   `id` is the SHA-256 hex of the session id the cookie carries (app/lib/auth.ts
+ *   hashes it on the way in), so a copy of the database signs no one in.
  * - An invitation is usable while `accepted_at` and `revoked_at` are null and
  *   `expires_at` is in the future; accepting sets `accepted_at` once.
  * - An API token is valid while `revoked_at` is null.
@@ -99,6 +101,18 @@ export const signInAttempts = sqliteTable(
     // failures from one address in the window
     index("sign_in_attempts_address_idx").on(t.address, t.at),
   ],
+);
+
+/** Sign-up attempts per client address (app/lib/rate-limit.ts `takeSignUp`); rows older than the window are deleted. */
+export const signUps = sqliteTable(
+  "sign_ups",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    address: text("address").notNull(),
+    at: integer("at", { mode: "timestamp_ms" }).notNull(),
+  },
+  // sign-ups from one address in the window
+  (t) => [index("sign_ups_address_idx").on(t.address, t.at)],
 );
 
 /** Messages received by the local SMTP sink (demo and tests only; empty in production). */

@@ -37,7 +37,10 @@ export function migrationsFolder(): string {
  * connection needs and applies pending migrations. Throws DatabaseSetupError
  * with a one-line message for a path that cannot be used or a migration that fails.
  */
-export function openDatabase(file: string = databasePath(), options: { migrate?: boolean } = {}): DB {
+export function openDatabase(
+  file: string = databasePath(),
+  options: { migrate?: boolean; busyTimeoutMs?: number } = {},
+): DB {
   if (file !== ":memory:") {
     const dir = path.dirname(file);
     try {
@@ -55,7 +58,7 @@ export function openDatabase(file: string = databasePath(), options: { migrate?:
     client = new Database(file);
     client.pragma("journal_mode = WAL");
     client.pragma("foreign_keys = ON");
-    client.pragma("busy_timeout = 5000");
+    client.pragma(`busy_timeout = ${Math.max(0, Math.round(options.busyTimeoutMs ?? 5000))}`);
     client.pragma("synchronous = NORMAL");
   } catch (e) {
     throw new DatabaseSetupError(`cannot open database ${file}: ${(e as Error).message}`);
@@ -99,9 +102,15 @@ function makeFolder(dir: string): void {
 
 let shared: DB | null = null;
 
+/**
+ * How long the request thread's connection waits for a lock, synchronously: short, so a write never holds
+ * the event loop while a run worker commits; app/lib/db-busy.ts retries asynchronously and answers 503 after that.
+ */
+export const REQUEST_BUSY_TIMEOUT_MS = 250;
+
 /** The process-wide connection used by route handlers and server components. */
 export function db(): DB {
-  if (!shared) shared = openDatabase();
+  if (!shared) shared = openDatabase(databasePath(), { busyTimeoutMs: REQUEST_BUSY_TIMEOUT_MS });
   return shared;
 }
 

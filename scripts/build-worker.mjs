@@ -1,8 +1,10 @@
 /**
- * Bundles the run worker (app/lib/run-worker.ts and everything it imports,
- * except native and worker-pool packages) into .build/run-worker.mjs, the
- * plain-JS file piscina loads (Node 20 cannot load a .ts worker).
- * `node scripts/build-worker.mjs` builds; importing `buildWorker()` does the same.
+ * Bundles the worker-thread entries (each with everything it imports, except
+ * native and worker-pool packages) into plain-JS files piscina loads (Node 20
+ * cannot load a .ts worker): the run worker (app/lib/run-worker.ts →
+ * .build/run-worker.mjs) and the interactive worker (app/lib/interactive-worker.ts
+ * → .build/interactive-worker.mjs).
+ * `node scripts/build-worker.mjs` builds both; importing `buildWorker()` does the same.
  */
 import { build } from "esbuild";
 import path from "node:path";
@@ -10,12 +12,21 @@ import { fileURLToPath } from "node:url";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 export const WORKER_OUT = path.join(root, ".build", "run-worker.mjs");
+export const INTERACTIVE_WORKER_OUT = path.join(root, ".build", "interactive-worker.mjs");
 
 export async function buildWorker() {
-  await build({
+  await Promise.all([
+    bundle("app/lib/run-worker.ts", WORKER_OUT),
+    bundle("app/lib/interactive-worker.ts", INTERACTIVE_WORKER_OUT),
+  ]);
+  return WORKER_OUT;
+}
+
+function bundle(entry, outfile) {
+  return build({
     absWorkingDir: root,
-    entryPoints: ["app/lib/run-worker.ts"],
-    outfile: WORKER_OUT,
+    entryPoints: [entry],
+    outfile,
     bundle: true,
     platform: "node",
     format: "esm",
@@ -30,10 +41,9 @@ export async function buildWorker() {
     sourcemap: "linked",
     logLevel: "warning",
   });
-  return WORKER_OUT;
 }
 
 if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
   const out = await buildWorker();
-  console.log(`run worker: ${path.relative(root, out)}`);
+  console.log(`workers: ${path.relative(root, out)}, ${path.relative(root, INTERACTIVE_WORKER_OUT)}`);
 }

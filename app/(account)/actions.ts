@@ -2,9 +2,19 @@
 /** Sign-up, sign-in and sign-out forms. Each returns a FormState (../lib/forms) or redirects. */
 import { headers } from "next/headers";
 import { redirect } from "next/navigation";
-import { checkSignIn, createAccount, signInSchema, signUpSchema } from "@/app/lib/accounts";
-import { checkActionOrigin, clientAddress, endSession, safeNext, startSession } from "@/app/lib/auth";
+import { checkSignIn, SIGN_UP_DONE, signInSchema, signUpAccount, signUpSchema } from "@/app/lib/accounts";
+import {
+  checkActionOrigin,
+  clientAddress,
+  endAllSessions,
+  endSession,
+  getActor,
+  publicBaseUrl,
+  safeNext,
+  startSession,
+} from "@/app/lib/auth";
 import { formValues, invalid, refusal, type FormState } from "@/app/lib/forms";
+import { lockMessage, takeSignUp } from "@/app/lib/rate-limit";
 
 const SECRET_FIELDS = ["password", "confirm"];
 
@@ -26,10 +36,16 @@ export async function signIn(_prev: FormState | undefined, form: FormData): Prom
   redirect(safeNext(values.next));
 }
 
+/**
+ * Sign-up: the same answer whether or not the address has an account (the
+ * holder is told by e-mail; app/lib/accounts.ts `signUpAccount`); at most
+ * SIGN_UPS_PER_ADDRESS attempts per client address per hour.
+ */
 export async function signUp(_prev: FormState | undefined, form: FormData): Promise<FormState> {
   const values = formValues(form, SECRET_FIELDS);
   try {
     await checkActionOrigin();
+    const h = await headers();
     const parsed = signUpSchema.safeParse({
       name: form.get("name") ?? undefined,
       email: form.get("email") ?? undefined,
@@ -37,20 +53,24 @@ export async function signUp(_prev: FormState | undefined, form: FormData): Prom
       confirm: form.get("confirm") ?? undefined,
     });
     if (!parsed.success) return invalid(parsed.error, values);
-    const account = await createAccount(parsed.data);
-    if (!account) {
-      return {
-        status: 409,
-        error: "Please correct the fields marked below.",
-        fieldErrors: { email: ["an account with this address exists: sign in instead"] },
-        values,
-      };
+    const gate = takeSignUp(clientAddress(h));
+    if (!gate.allowed) {
+      const message = lockMessage({ scope: "address", retryAt: gate.retryAt }).replace("failed sign-ins", "sign-ups");
+      return { status: 429, error: message, values };
     }
-    await startSession(account.id);
+    await signUpAccount(parsed.data, publicBaseUrl(h));
+    return { status: 200, message: SIGN_UP_DONE, values: { email: parsed.data.email, next: values.next ?? "" } };
   } catch (e) {
     return refusal(e, values);
   }
-  redirect(safeNext(values.next));
+}
+
+/** Ends every session of the signed-in person (all browsers and devices); API tokens stay (revoke them one by one). */
+export async function signOutEverywhere(): Promise<void> {
+  await checkActionOrigin();
+  const actor = await getActor();
+  if (actor) await endAllSessions(actor.userId);
+  redirect("/signin");
 }
 
 export async function signOut(): Promise<void> {

@@ -14,19 +14,49 @@
  * Server actions: `await checkActionOrigin(); const actor = await getActor()`.
  */
 import { DrizzleSQLiteAdapter } from "@lucia-auth/adapter-drizzle";
-import { Lucia, TimeSpan, type Cookie } from "lucia";
+import { Lucia, TimeSpan, type Adapter, type Cookie, type DatabaseSession } from "lucia";
 import { cookies, headers } from "next/headers";
 import { redirect } from "next/navigation";
 import { db, type DB } from "@/db";
 import { sessions, users } from "@/db/schema";
 import { PolicyError, type Actor } from "./policy";
+import { isBusy } from "./db-busy";
+import { secretHash } from "./secrets";
+import { originAllowed, safeNext } from "./request-edge";
 import { actorFromToken } from "./tokens";
+
+export { clientAddress, originAllowed, safeNext } from "./request-edge";
 
 export const SESSION_COOKIE = "runnel_session";
 export const SESSION_LIFETIME = new TimeSpan(30, "d");
 
+/**
+ * The Drizzle adapter with session ids hashed on the way in: the table keeps
+ * SHA-256(id) (as API tokens keep theirs), the cookie carries the id itself.
+ * lucia never sees the difference; a leaked database holds no usable session.
+ */
+export function hashedSessionAdapter(inner: Adapter): Adapter {
+  const stored = (s: DatabaseSession, id: string): DatabaseSession => ({ ...s, id });
+  return {
+    async getSessionAndUser(id) {
+      const [session, user] = await inner.getSessionAndUser(secretHash(id));
+      return [session ? stored(session, id) : null, user];
+    },
+    getUserSessions: (userId) => inner.getUserSessions(userId),
+    setSession: (session) => inner.setSession(stored(session, secretHash(session.id))),
+    // Extending a session is best effort: under a busy database it happens on a later request.
+    updateSessionExpiration: (id, expiresAt) =>
+      inner.updateSessionExpiration(secretHash(id), expiresAt).catch((e: unknown) => {
+        if (!isBusy(e)) throw e;
+      }),
+    deleteSession: (id) => inner.deleteSession(secretHash(id)),
+    deleteUserSessions: (userId) => inner.deleteUserSessions(userId),
+    deleteExpiredSessions: () => inner.deleteExpiredSessions(),
+  };
+}
+
 function createLucia(d: DB) {
-  return new Lucia(new DrizzleSQLiteAdapter(d, sessions, users), {
+  return new Lucia(hashedSessionAdapter(new DrizzleSQLiteAdapter(d, sessions, users)), {
     sessionExpiresIn: SESSION_LIFETIME,
     sessionCookie: {
       name: SESSION_COOKIE,
@@ -116,6 +146,14 @@ export async function startSession(userId: string): Promise<void> {
   jar.set(cookie.name, cookie.value, cookie.attributes);
 }
 
+/** Ends every session of the user (every browser, this one included) and clears this browser's cookie. */
+export async function endAllSessions(userId: string): Promise<void> {
+  const l = lucia();
+  await l.invalidateUserSessions(userId);
+  const blank = l.createBlankSessionCookie();
+  (await cookies()).set(blank.name, blank.value, blank.attributes);
+}
+
 /** Ends the browser's session (if any) and clears its cookie. */
 export async function endSession(): Promise<void> {
   const l = lucia();
@@ -124,42 +162,6 @@ export async function endSession(): Promise<void> {
   if (current) await l.invalidateSession(current);
   const blank = l.createBlankSessionCookie();
   jar.set(blank.name, blank.value, blank.attributes);
-}
-
-const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
-
-/**
- * True when a request with these headers may mutate: a safe method, a bearer
- * token (not an ambient credential, so no cross-site forgery), or an Origin
- * whose host is the Host the request was sent to (X-Forwarded-Host first,
- * as a proxy sets it), or the host of $RUNNEL_PUBLIC_URL.
- */
-export function originAllowed(method: string, h: Headers, url?: string): boolean {
-  if (SAFE_METHODS.has(method.toUpperCase())) return true;
-  if (/^Bearer\s/i.test(h.get("authorization") ?? "")) return true;
-  const origin = h.get("origin");
-  if (!origin || origin === "null") return false;
-  let originHost: string;
-  try {
-    originHost = new URL(origin).host;
-  } catch {
-    return false;
-  }
-  const allowed = new Set<string>();
-  const forwarded = h.get("x-forwarded-host")?.split(",")[0]?.trim();
-  if (forwarded) allowed.add(forwarded);
-  const host = h.get("host");
-  if (host) allowed.add(host);
-  if (!forwarded && !host && url) allowed.add(new URL(url).host);
-  const publicUrl = process.env.RUNNEL_PUBLIC_URL;
-  if (publicUrl) {
-    try {
-      allowed.add(new URL(publicUrl).host);
-    } catch {
-      // a malformed RUNNEL_PUBLIC_URL adds nothing
-    }
-  }
-  return allowed.has(originHost);
 }
 
 /** Throws PolicyError 403 for a mutating request whose Origin does not match the Host. */
@@ -174,25 +176,6 @@ export async function checkActionOrigin(): Promise<void> {
   if (!originAllowed("POST", await headers())) {
     throw new PolicyError(403, "this form was not sent from Runnel's own pages (Origin does not match Host)");
   }
-}
-
-/** A redirect target from a `next` parameter: a local path, else "/". */
-export function safeNext(next: unknown): string {
-  if (typeof next !== "string" || !next.startsWith("/") || next.startsWith("//") || next.startsWith("/\\")) return "/";
-  return next;
-}
-
-/**
- * The client's address for rate limiting: the nearest hop of X-Forwarded-For
- * (Next sets it from the socket when absent; a proxy in front appends to it),
- * else X-Real-IP, else "unknown".
- */
-export function clientAddress(h: Headers): string {
-  const hops = (h.get("x-forwarded-for") ?? "")
-    .split(",")
-    .map((s) => s.trim())
-    .filter(Boolean);
-  return hops.at(-1) ?? h.get("x-real-ip")?.trim() ?? "unknown";
 }
 
 /** The site's base URL for links in e-mail: $RUNNEL_PUBLIC_URL, else the request's own scheme and host. */

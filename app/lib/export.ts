@@ -8,9 +8,9 @@
  * - JSON: the document of `runnel solve --json` (LANGUAGE.md) with a `run` member.
  */
 import type { CommitDiagnostic } from "@/db/schema";
-import type { JsonPoint } from "@/src/solver/index";
 import type { CommitRow } from "./networks";
 import { db, type Q } from "@/db";
+import type { JsonPoint } from "@/src/solver/index";
 import type { StoredPoint } from "./point-codec";
 import { eachPoint, readPoint, type RunLayout } from "./results";
 import type { RunRow } from "./runs";
@@ -48,20 +48,30 @@ export function csvHeader(layout: RunLayout, table: CsvTable): string {
   }
 }
 
-export function csvRows(layout: RunLayout, table: CsvTable, p: StoredPoint): string {
+/** How many names (nodes, devices, rails) one chunk of an export holds: a chunk is a few hundred kB at most. */
+export const NAMES_PER_CHUNK = 2048;
+
+/** The rows of one point, NAMES_PER_CHUNK names per chunk (a point of a 2,000,000-device run is ~1,000 chunks). */
+export function* csvRows(layout: RunLayout, table: CsvTable, p: StoredPoint): Generator<string> {
+  const sliced = function* (count: number, row: (k: number) => string): Generator<string> {
+    for (let from = 0; from < count; from += NAMES_PER_CHUNK) {
+      let s = "";
+      for (let k = from; k < Math.min(count, from + NAMES_PER_CHUNK); k++) s += row(k);
+      yield s;
+    }
+  };
   switch (table) {
     case "probes":
-      return line([p.point, p.sample, ...p.params, ...p.probes, p.method, p.iterations, p.residual, p.error]);
-    case "nodes": {
-      let s = "";
-      for (let k = 0; k < layout.nodes.length; k++)
-        s += line([p.point, p.sample, layout.nodes[k], layout.nodeIsRail[k] ? 1 : 0, p.nodes[k]]);
-      return s;
-    }
-    case "devices": {
-      let s = "";
-      for (let k = 0; k < layout.devices.length; k++) {
-        s += line([
+      yield line([p.point, p.sample, ...p.params, ...p.probes, p.method, p.iterations, p.residual, p.error]);
+      return;
+    case "nodes":
+      yield* sliced(layout.nodes.length, (k) =>
+        line([p.point, p.sample, layout.nodes[k], layout.nodeIsRail[k] ? 1 : 0, p.nodes[k]]),
+      );
+      return;
+    case "devices":
+      yield* sliced(layout.devices.length, (k) =>
+        line([
           p.point,
           p.sample,
           layout.devices[k],
@@ -69,83 +79,147 @@ export function csvRows(layout: RunLayout, table: CsvTable, p: StoredPoint): str
           p.current[k],
           Number.isFinite(p.ic[k]) ? Number(p.ic[k].toPrecision(7)) : null,
           p.saturated[k],
-        ]);
-      }
-      return s;
-    }
-    case "rails": {
-      let s = "";
-      for (let k = 0; k < layout.rails.length; k++) s += line([p.point, p.sample, layout.rails[k], p.rails[k]]);
-      return s;
-    }
+        ]),
+      );
+      return;
+    case "rails":
+      yield* sliced(layout.rails.length, (k) => line([p.point, p.sample, layout.rails[k], p.rails[k]]));
+      return;
   }
 }
 
-/** A byte stream of chunks from a generator of strings, one chunk per pull. */
-function streamOf(chunks: Generator<string>): ReadableStream<Uint8Array> {
-  const enc = new TextEncoder();
-  return new ReadableStream<Uint8Array>({
-    pull(controller) {
-      const next = chunks.next();
-      if (next.done) controller.close();
-      else controller.enqueue(enc.encode(next.value));
-    },
-    cancel() {
-      chunks.return(undefined);
-    },
-  });
+/** What an export says about a run that did not end `done`: its results are partial. */
+export interface RunStatus {
+  id: string;
+  state: string;
+  reason: string | null;
+  pointsDone: number;
+  pointsTotal: number;
 }
 
+/** A sentence for a run whose stored points are not all of its points; null for a run that ended `done`. */
+export function partialNote(run: RunStatus): string | null {
+  if (run.state === "done") return null;
+  const why = run.reason ? ` (${run.reason.replace(/[\r\n]+/g, " ")})` : "";
+  return `run ${run.id} is ${run.state}${why}: this file holds the ${run.pointsDone} of ${run.pointsTotal} points stored so far, not a complete result`;
+}
+
+/**
+ * A byte stream of chunks from a generator of strings, one chunk per pull.
+ * Between chunks the request thread gets back to its other requests
+ * (setImmediate), so a large export never holds it for more than one chunk.
+ */
+function streamOf(chunks: Generator<string>): ReadableStream<Uint8Array> {
+  const enc = new TextEncoder();
+  return new ReadableStream<Uint8Array>(
+    {
+      async pull(controller) {
+        await new Promise<void>((r) => setImmediate(r));
+        const next = chunks.next();
+        if (next.done) controller.close();
+        else controller.enqueue(enc.encode(next.value));
+      },
+      cancel() {
+        chunks.return(undefined);
+      },
+    },
+    { highWaterMark: 1 },
+  );
+}
+
+/** The CSV export of a run: a `#` note first when the run is partial (not `done`), then the header and rows. */
 export function csvStream(
-  runId: string,
+  run: RunStatus,
   layout: RunLayout,
   table: CsvTable,
   point?: number,
   d: Q = db(),
 ): ReadableStream<Uint8Array> {
   function* gen(): Generator<string> {
+    const note = partialNote(run);
+    if (note) yield `# ${note}\r\n`;
     yield csvHeader(layout, table);
     if (point !== undefined) {
-      const p = readPoint(runId, point, d);
-      if (p) yield csvRows(layout, table, p);
+      const p = readPoint(run.id, point, d);
+      if (p) yield* csvRows(layout, table, p);
       return;
     }
-    for (const p of eachPoint(runId, d)) yield csvRows(layout, table, p);
+    for (const p of eachPoint(run.id, d)) yield* csvRows(layout, table, p);
   }
   return streamOf(gen());
 }
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
-/** One point in the `runnel solve --json` shape (a NaN prints as null). */
-export function pointJson(layout: RunLayout, p: StoredPoint): JsonPoint {
-  const params: Record<string, number> = {};
+/** The small members of a point's document (all but nodes and devices), in document order. */
+function pointHead(layout: RunLayout, p: StoredPoint) {
+  const params: Record<string, number | null> = {};
   // Only swept params and temp vary; the document lists every param, as the CLI does.
   layout.params.forEach((name, j) => {
-    if (name !== "temp" || layout.sweeps.some((s) => s.param === "temp")) params[name] = p.params[j];
+    if (name !== "temp" || layout.sweeps.some((s) => s.param === "temp")) params[name] = num(p.params[j]);
   });
-  const nodes: Record<string, number> = {};
-  layout.nodes.forEach((name, k) => {
-    if (!layout.nodeIsRail[k]) nodes[name] = p.nodes[k];
-  });
-  const rails: Record<string, number> = {};
-  layout.rails.forEach((name, k) => (rails[name] = p.rails[k]));
-  const devices: JsonPoint["devices"] = {};
-  layout.devices.forEach(
-    (name, k) => (devices[name] = { current: p.current[k], ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }),
-  );
+  const rails: Record<string, number | null> = {};
+  layout.rails.forEach((name, k) => (rails[name] = num(p.rails[k])));
   const probes: Record<string, number | null> = {};
   layout.probes.forEach((name, k) => (probes[name] = num(p.probes[k])));
   return {
     params,
-    nodes,
     rails,
-    devices,
-    probes,
-    solver: { method: p.method, iterations: p.iterations, residual: p.residual },
-    sample: layout.mismatch ? p.sample : 0,
-    ...(p.error ? { error: p.error } : {}),
+    tail: {
+      probes,
+      solver: { method: p.method, iterations: p.iterations, residual: num(p.residual) },
+      sample: layout.mismatch ? p.sample : 0,
+      ...(p.error ? { error: p.error } : {}),
+    },
   };
+}
+
+/** One point in the `runnel solve --json` shape. */
+export function pointJson(layout: RunLayout, p: StoredPoint): JsonPoint {
+  const { params, rails, tail } = pointHead(layout, p);
+  const nodes: Record<string, number | null> = {};
+  layout.nodes.forEach((name, k) => {
+    if (!layout.nodeIsRail[k]) nodes[name] = num(p.nodes[k]);
+  });
+  const devices: Record<string, { current: number | null; ic: number | null; saturated: boolean }> = {};
+  layout.devices.forEach(
+    (name, k) => (devices[name] = { current: num(p.current[k]), ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }),
+  );
+  // null where a value is not finite: the same bytes JSON.stringify writes for NaN.
+  return { params, nodes, rails, devices, ...tail } as unknown as JsonPoint;
+}
+
+/** `"name":value` members of an object, NAMES_PER_CHUNK per chunk, each chunk after the first led by a comma. */
+function* members(count: number, member: (k: number) => string | null): Generator<string> {
+  let first = true;
+  for (let from = 0; from < count; from += NAMES_PER_CHUNK) {
+    const parts: string[] = [];
+    for (let k = from; k < Math.min(count, from + NAMES_PER_CHUNK); k++) {
+      const m = member(k);
+      if (m !== null) parts.push(m);
+    }
+    if (parts.length === 0) continue;
+    yield (first ? "" : ",") + parts.join(",");
+    first = false;
+  }
+}
+
+/** `JSON.stringify(pointJson(layout, p))`, in chunks of NAMES_PER_CHUNK names (the same bytes). */
+export function* pointJsonChunks(layout: RunLayout, p: StoredPoint): Generator<string> {
+  const { params, rails, tail } = pointHead(layout, p);
+  const key = (name: string) => JSON.stringify(name) + ":";
+  yield `{"params":${JSON.stringify(params)},"nodes":{`;
+  yield* members(layout.nodes.length, (k) =>
+    layout.nodeIsRail[k] ? null : key(layout.nodes[k]) + JSON.stringify(num(p.nodes[k])),
+  );
+  yield `},"rails":${JSON.stringify(rails)},"devices":{`;
+  yield* members(
+    layout.devices.length,
+    (k) =>
+      key(layout.devices[k]) +
+      JSON.stringify({ current: num(p.current[k]), ic: num(p.ic[k]), saturated: p.saturated[k] === 1 }),
+  );
+  yield "}," + JSON.stringify(tail).slice(1);
 }
 
 export function jsonStream(run: RunRow, commit: CommitRow, layout: RunLayout, d: Q = db()): ReadableStream<Uint8Array> {
@@ -170,11 +244,14 @@ export function jsonStream(run: RunRow, commit: CommitRow, layout: RunLayout, d:
         solverReason: run.solverReason,
       },
       diagnostics,
+      // A run that did not end `done` holds only some of its points: say so in the file.
+      ...(partialNote(run) ? { partial: partialNote(run) } : {}),
     };
     yield JSON.stringify(head).slice(0, -1) + ',"points":[';
     let first = true;
     for (const p of eachPoint(run.id, d)) {
-      yield (first ? "" : ",") + JSON.stringify(pointJson(layout, p));
+      if (!first) yield ",";
+      yield* pointJsonChunks(layout, p);
       first = false;
     }
     yield "]}";

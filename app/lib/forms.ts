@@ -6,6 +6,7 @@
  */
 import type { z } from "zod";
 import { PolicyError } from "./policy";
+import { isBusy } from "./db-busy";
 import { RequestError } from "./http";
 
 export interface FormState {
@@ -46,6 +47,8 @@ export function refusal(e: unknown, values?: Record<string, string>): FormState 
     const error = e.status === 404 ? "Not found." : e.status === 401 ? "Sign in first." : `Not allowed: ${e.message}.`;
     return { status: e.status, error, values };
   }
+  if (isBusy(e))
+    return { status: 503, error: "The database is busy with other writes; try again in a moment.", values };
   if (e instanceof RequestError) {
     // "field: what is wrong" names a field of the form: show it there.
     const m = /^([a-zA-Z]\w*): (.+)$/.exec(e.message);

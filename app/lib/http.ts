@@ -2,9 +2,12 @@
  * What every route handler shares: one error type for bad requests, the JSON
  * body parser (zod), and `handle`, which turns known errors into JSON
  * responses with their status. Contract: bad input of any kind answers 4xx
- * with `{ error: "<what and where>" }`, never a 500.
+ * with `{ error: "<what and where>" }`, never a 500; a database locked by other
+ * writers past the retry budget answers 503 with Retry-After (app/lib/db-busy.ts).
  */
 import type { z } from "zod";
+import { readBodyText } from "./body";
+import { busyResponse, isBusy } from "./db-busy";
 import { PolicyError, policyResponse } from "./policy";
 
 export type RequestStatus = 400 | 404 | 409 | 413 | 422 | 429 | 503;
@@ -27,6 +30,7 @@ export async function handle(body: () => Promise<Response> | Response): Promise<
   } catch (e) {
     if (e instanceof PolicyError) return policyResponse(e);
     if (e instanceof RequestError) return Response.json({ error: e.message, ...e.details }, { status: e.status });
+    if (isBusy(e)) return busyResponse();
     console.error(e);
     return Response.json({ error: "internal error (the server log has the details)" }, { status: 500 });
   }
@@ -35,14 +39,12 @@ export async function handle(body: () => Promise<Response> | Response): Promise<
 /** Largest JSON body accepted (a network text may be up to 2 MiB; JSON escaping adds some). */
 export const MAX_BODY_BYTES = 6 * 1024 * 1024;
 
-/** The request's JSON body checked against `schema`; RequestError 400/413 naming the field otherwise. */
+/**
+ * The request's JSON body checked against `schema`; RequestError 400/413 naming the field otherwise.
+ * The body is streamed and refused as soon as it crosses MAX_BODY_BYTES (app/lib/body.ts).
+ */
 export async function readJson<S extends z.ZodType>(request: Request, schema: S): Promise<z.infer<S>> {
-  const length = Number(request.headers.get("content-length") ?? "0");
-  if (length > MAX_BODY_BYTES)
-    throw new RequestError(413, `the body is too large: ${length} bytes, the limit is ${MAX_BODY_BYTES}`);
-  const raw = await request.text();
-  if (raw.length > MAX_BODY_BYTES)
-    throw new RequestError(413, `the body is too large: the limit is ${MAX_BODY_BYTES} bytes`);
+  const raw = await readBodyText(request, MAX_BODY_BYTES);
   let value: unknown;
   try {
     value = raw === "" ? {} : JSON.parse(raw);

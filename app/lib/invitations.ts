@@ -21,6 +21,7 @@ import { roleSchema } from "./members";
 import type { Actor, WorkspaceRef } from "./policy";
 import { newSecret, secretHash } from "./secrets";
 import { newId } from "@/db/ids";
+import { immediate } from "./db-busy";
 
 export const INVITATION_LIFETIME_MS = 7 * 24 * 60 * 60 * 1000;
 
@@ -105,7 +106,7 @@ export async function inviteMember(input: {
     expiresAt: new Date(now.getTime() + INVITATION_LIFETIME_MS),
     createdAt: now,
   };
-  db().transaction((tx) => {
+  immediate(db(), (tx) => {
     const member = tx
       .select({ id: users.id })
       .from(users)
@@ -244,7 +245,7 @@ export function acceptInvitation(
   as: { userId: string } | { newAccount: { id: string; name: string; passwordHash: string } },
   now = new Date(),
 ): { userId: string; slug: string } {
-  return db().transaction((tx) => {
+  return immediate(db(), (tx) => {
     const inv = tx
       .select({
         id: invitations.id,

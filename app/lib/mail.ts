@@ -31,9 +31,32 @@ export function mailConfig(): MailConfig | null {
   return null;
 }
 
-/** True while mail goes to the local sink: the development mailbox page exists only then. */
+/** True for a host name or address on the loopback interface (127.0.0.0/8, ::1, localhost). */
+export function isLoopbackHost(host: string | undefined): boolean {
+  if (!host) return false;
+  const h = host
+    .trim()
+    .toLowerCase()
+    .replace(/^\[|\]$/g, "");
+  return h === "localhost" || h === "::1" || /^127(\.\d{1,3}){3}$/.test(h) || /^::ffff:127(\.\d{1,3}){3}$/.test(h);
+}
+
+/**
+ * Whether the development mailbox (/dev/mailbox) exists. All of:
+ * - mail goes to the local sink (RUNNEL_MAIL_SINK_PORT, no RUNNEL_SMTP_URL);
+ * - demo or development mode turned it on (RUNNEL_DEMO=1, which `npm run demo`
+ *   sets, or `next dev`);
+ * - in production, the server listens on a loopback address only
+ *   (RUNNEL_LISTEN_HOST, which Runnel's start scripts set from `--host`; an
+ *   unknown address counts as not loopback).
+ * Reading it also needs a signed-in person (app/dev/mailbox/page.tsx).
+ */
 export function mailboxEnabled(): boolean {
-  return mailConfig()?.kind === "sink";
+  if (mailConfig()?.kind !== "sink") return false;
+  const development = process.env.NODE_ENV === "development";
+  if (!development && process.env.RUNNEL_DEMO !== "1") return false;
+  if (process.env.NODE_ENV === "production" && !isLoopbackHost(process.env.RUNNEL_LISTEN_HOST)) return false;
+  return true;
 }
 
 let cached: { key: string; transport: Transporter } | null = null;

@@ -8,6 +8,7 @@ import { z } from "zod";
 import { db } from "@/db";
 import { memberships, ROLES, users, type Role } from "@/db/schema";
 import { RequestError } from "./http";
+import { immediate } from "./db-busy";
 
 export const roleSchema = z.enum(ROLES, { error: `choose one of: ${ROLES.join(", ")}` });
 
@@ -63,7 +64,7 @@ const LAST_OWNER = "the workspace needs at least one owner: make another member 
 
 /** Sets a member's role; 404 for a non-member, 409 for demoting the last owner. */
 export function changeRole(workspaceId: string, userId: string, role: Role): Member {
-  db().transaction((tx) => {
+  immediate(db(), (tx) => {
     const was = currentRole(tx, workspaceId, userId);
     if (was === "owner" && role !== "owner" && ownerCount(tx, workspaceId) === 1)
       throw new RequestError(409, LAST_OWNER);
@@ -77,7 +78,7 @@ export function changeRole(workspaceId: string, userId: string, role: Role): Mem
 
 /** Removes a member (also used to leave); 404 for a non-member, 409 for the last owner. */
 export function removeMember(workspaceId: string, userId: string): void {
-  db().transaction((tx) => {
+  immediate(db(), (tx) => {
     const was = currentRole(tx, workspaceId, userId);
     if (was === "owner" && ownerCount(tx, workspaceId) === 1) throw new RequestError(409, LAST_OWNER);
     tx.delete(memberships)

@@ -12,8 +12,9 @@ import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { db, type Q } from "@/db";
 import { newId, sha256Hex } from "@/db/ids";
 import { commits, networks, runs, users, type CommitDiagnostic, type RunState } from "@/db/schema";
-import { elaborate } from "@/src/lang/index";
 import { RequestError } from "./http";
+import { checkNetworkText, type TextCheck } from "./text-check";
+import { immediate } from "./db-busy";
 
 /** The content address of a commit (module comment). */
 export function commitIdOf(networkId: string, parentId: string | null, text: string): string {
@@ -179,11 +180,11 @@ function freeSlug(d: Q, workspaceId: string, base: string): string {
  * and stays fixed when the network is renamed (links keep working).
  */
 export function createNetwork(
-  input: { workspaceId: string; name: string; text?: string; message?: string; authorId: string },
+  input: { workspaceId: string; name: string; text?: string; message?: string; authorId: string; check?: TextCheck },
   d: Q = db(),
 ): { network: NetworkRow; commit: CommitRow | null } {
   const name = cleanName(input.name);
-  return d.transaction((tx) => {
+  return immediate(d, (tx) => {
     const id = newId("n");
     const slug = freeSlug(tx, input.workspaceId, slugify(name));
     tx.insert(networks).values({ id, workspaceId: input.workspaceId, slug, name, createdBy: input.authorId }).run();
@@ -195,6 +196,7 @@ export function createNetwork(
         text: input.text,
         message: input.message ?? "First version",
         authorId: input.authorId,
+        check: input.check,
       });
     }
     return { network: getNetwork(id, tx)!, commit };
@@ -264,21 +266,23 @@ export function getCommit(id: string, d: Q = db()): CommitRow | null {
   return c ? { ...c, createdAt: c.createdAt.getTime() } : null;
 }
 
-function insertCommit(
-  d: Q,
-  input: { networkId: string; parentId: string | null; text: string; message: string; authorId: string },
-): CommitRow {
+/** What a commit stores. `check` is the text's checks when already made (off the request thread, app/lib/interactive.ts). */
+type CommitInput = {
+  networkId: string;
+  parentId: string | null;
+  text: string;
+  message: string;
+  authorId: string;
+  check?: TextCheck;
+};
+
+function insertCommit(d: Q, input: CommitInput): CommitRow {
   const message = input.message.trim();
   if (message.length === 0) throw new RequestError(400, "message: say what changed");
   if (message.length > MAX_MESSAGE_LENGTH)
     throw new RequestError(400, `message: at most ${MAX_MESSAGE_LENGTH} characters`);
-  const result = elaborate(input.text);
-  const diagnostics: CommitDiagnostic[] = result.diagnostics.map((x) => ({
-    severity: x.severity,
-    line: x.line,
-    column: x.column,
-    message: x.message,
-  }));
+  const result = input.check ?? checkNetworkText(input.text);
+  const diagnostics: CommitDiagnostic[] = result.diagnostics;
   const errorCount = diagnostics.filter((x) => x.severity === "error").length;
   const id = commitIdOf(input.networkId, input.parentId, input.text);
   d.insert(commits)
@@ -306,11 +310,8 @@ function insertCommit(
  * (409 otherwise). A text equal to the head's is refused (409, nothing to commit).
  * A text with errors is committed (it can be saved but not run).
  */
-export function commitText(
-  input: { networkId: string; parentId: string | null; text: string; message: string; authorId: string },
-  d: Q = db(),
-): CommitRow {
-  return d.transaction((tx) => {
+export function commitText(input: CommitInput, d: Q = db()): CommitRow {
+  return immediate(d, (tx) => {
     const t = tx;
     const n = getNetwork(input.networkId, t);
     if (!n) throw new RequestError(404, "not found");

@@ -1,26 +1,44 @@
 /**
- * Sign-in rate limits, kept in SQLite (`sign_in_attempts`), per account and
- * per client address, over a sliding window:
- * - an account (the normalised e-mail typed, whether or not it exists) gets
- *   ACCOUNT_FAILURES failed attempts per window, counted since its last
- *   successful sign-in;
- * - an address gets ADDRESS_FAILURES failed attempts per window, whatever the
- *   accounts (a success does not reset it, so owning one account does not
- *   buy more guesses at others).
+ * Sign-in and sign-up rate limits, kept in SQLite (`sign_in_attempts`,
+ * `sign_ups`), over a sliding window (OWASP ASVS 4.0 V2.2.1: anti-automation
+ * that does not let an attacker lock the real user out).
+ *
+ * Sign-in, three limits; an attempt is refused when any is reached:
+ * - a pair (account, address): PAIR_FAILURES failed attempts per window,
+ *   counted since that pair's last success. Guesses from one place lock only
+ *   that place out of that account: the owner elsewhere still signs in.
+ * - an address: ADDRESS_FAILURES failed attempts per window over any accounts
+ *   (a success does not reset it, so owning one account buys no guesses at others).
+ * - an account, from addresses it has not signed in from in KNOWN_MS:
+ *   ACCOUNT_FAILURES failed attempts per window over all such addresses (a
+ *   guess spread over many addresses). An address the account signed in from
+ *   before is not held back by it, so the owner's usual places keep working.
  * A refused attempt is not recorded and its password is not checked, so a
  * lock ends at a time known when it starts: `retryAt`.
+ *
+ * The address is `clientAddress` (app/lib/request-edge.ts): the connection's
+ * peer, or with $RUNNEL_TRUSTED_PROXIES the address the outermost trusted proxy saw.
+ *
+ * Sign-up: SIGN_UPS_PER_ADDRESS attempts per address per SIGN_UP_WINDOW_MS.
  */
-import { and, asc, desc, eq, gt, lt } from "drizzle-orm";
+import { and, asc, count, desc, eq, gt, lt, or } from "drizzle-orm";
 import { db } from "@/db";
-import { signInAttempts } from "@/db/schema";
+import { signInAttempts, signUps } from "@/db/schema";
 
 export const SIGN_IN_WINDOW_MS = 15 * 60 * 1000;
-export const ACCOUNT_FAILURES = 5;
+export const PAIR_FAILURES = 5;
 export const ADDRESS_FAILURES = 20;
-/** Attempts older than this are deleted when a new one is recorded. */
-const KEEP_MS = 24 * 60 * 60 * 1000;
+export const ACCOUNT_FAILURES = 50;
+/** An address counts as one the account uses when it signed in from there within this time. */
+export const KNOWN_MS = 30 * 24 * 60 * 60 * 1000;
+/** Failed attempts older than this are deleted when a new one is recorded (successes are kept KNOWN_MS). */
+const KEEP_FAILURES_MS = 24 * 60 * 60 * 1000;
 
-export type SignInGate = { allowed: true } | { allowed: false; scope: "account" | "address"; retryAt: Date };
+export const SIGN_UP_WINDOW_MS = 60 * 60 * 1000;
+export const SIGN_UPS_PER_ADDRESS = 10;
+
+type Scope = "pair" | "address" | "account";
+export type SignInGate = { allowed: true } | { allowed: false; scope: Scope; retryAt: Date };
 
 /** The earliest time when fewer than `limit` of these ascending failure times lie in the window; null when that is now. */
 function lockedUntil(failures: Date[], limit: number): Date | null {
@@ -30,31 +48,61 @@ function lockedUntil(failures: Date[], limit: number): Date | null {
 
 /** Whether a sign-in for `email` from `address` may be tried at `now`. */
 export function signInGate(email: string, address: string, now = new Date()): SignInGate {
+  const d = db();
   const windowStart = new Date(now.getTime() - SIGN_IN_WINDOW_MS);
-  const lastSuccess = db()
-    .select({ at: signInAttempts.at })
+  // The account's attempts in the window and its successes (a small set: indexed by email and time).
+  const successes = d
+    .select({ address: signInAttempts.address, at: signInAttempts.at })
     .from(signInAttempts)
-    .where(and(eq(signInAttempts.email, email), eq(signInAttempts.succeeded, true)))
+    .where(
+      and(
+        eq(signInAttempts.email, email),
+        eq(signInAttempts.succeeded, true),
+        gt(signInAttempts.at, new Date(now.getTime() - KNOWN_MS)),
+      ),
+    )
     .orderBy(desc(signInAttempts.at))
-    .limit(1)
-    .get()?.at;
-  const accountSince = lastSuccess && lastSuccess > windowStart ? lastSuccess : windowStart;
-  const failuresOf = (
-    column: typeof signInAttempts.email | typeof signInAttempts.address,
-    value: string,
-    since: Date,
-  ) =>
-    db()
+    .all();
+  const known = new Set(successes.map((s) => s.address));
+  const pairSuccess = successes.find((s) => s.address === address)?.at;
+  const accountFailures = d
+    .select({ address: signInAttempts.address, at: signInAttempts.at })
+    .from(signInAttempts)
+    .where(
+      and(eq(signInAttempts.email, email), eq(signInAttempts.succeeded, false), gt(signInAttempts.at, windowStart)),
+    )
+    .orderBy(asc(signInAttempts.at))
+    .all();
+  const pairSince = pairSuccess && pairSuccess > windowStart ? pairSuccess : windowStart;
+  const pair = lockedUntil(
+    accountFailures.filter((f) => f.address === address && f.at > pairSince).map((f) => f.at),
+    PAIR_FAILURES,
+  );
+  if (pair && pair > now) return { allowed: false, scope: "pair", retryAt: pair };
+  const byAddress = lockedUntil(
+    d
       .select({ at: signInAttempts.at })
       .from(signInAttempts)
-      .where(and(eq(column, value), eq(signInAttempts.succeeded, false), gt(signInAttempts.at, since)))
+      .where(
+        and(
+          eq(signInAttempts.address, address),
+          eq(signInAttempts.succeeded, false),
+          gt(signInAttempts.at, windowStart),
+        ),
+      )
       .orderBy(asc(signInAttempts.at))
       .all()
-      .map((r) => r.at);
-  const account = lockedUntil(failuresOf(signInAttempts.email, email, accountSince), ACCOUNT_FAILURES);
-  if (account && account > now) return { allowed: false, scope: "account", retryAt: account };
-  const byAddress = lockedUntil(failuresOf(signInAttempts.address, address, windowStart), ADDRESS_FAILURES);
+      .map((r) => r.at),
+    ADDRESS_FAILURES,
+  );
   if (byAddress && byAddress > now) return { allowed: false, scope: "address", retryAt: byAddress };
+  if (!known.has(address)) {
+    const spread = lockedUntil(
+      accountFailures.filter((f) => !known.has(f.address)).map((f) => f.at),
+      ACCOUNT_FAILURES,
+    );
+    if (spread && spread > now) return { allowed: false, scope: "account", retryAt: spread };
+  }
   return { allowed: true };
 }
 
@@ -62,14 +110,64 @@ export function recordSignInAttempt(email: string, address: string, succeeded: b
   const d = db();
   d.insert(signInAttempts).values({ email, address, succeeded, at: now }).run();
   d.delete(signInAttempts)
-    .where(lt(signInAttempts.at, new Date(now.getTime() - KEEP_MS)))
+    .where(
+      or(
+        and(eq(signInAttempts.succeeded, false), lt(signInAttempts.at, new Date(now.getTime() - KEEP_FAILURES_MS))),
+        lt(signInAttempts.at, new Date(now.getTime() - KNOWN_MS)),
+      ),
+    )
     .run();
 }
 
+const WHO: Record<Scope, string> = {
+  pair: "for this account from your network address",
+  address: "from your network address",
+  account: "for this account from new network addresses",
+};
+
 /** "Too many … Try again in 14 minutes (after 15:02 UTC)." */
-export function lockMessage(gate: Extract<SignInGate, { allowed: false }>, now = new Date()): string {
+export function lockMessage(gate: { retryAt: Date; scope: Scope }, now = new Date()): string {
   const minutes = Math.max(1, Math.ceil((gate.retryAt.getTime() - now.getTime()) / 60_000));
   const clock = gate.retryAt.toISOString().slice(11, 16);
-  const who = gate.scope === "account" ? "for this account" : "from your network address";
-  return `Too many failed sign-ins ${who}. Try again in ${minutes} minute${minutes === 1 ? "" : "s"} (after ${clock} UTC).`;
+  return `Too many failed sign-ins ${WHO[gate.scope]}. Try again in ${minutes} minute${minutes === 1 ? "" : "s"} (after ${clock} UTC).`;
+}
+
+/**
+ * Records a sign-up attempt from `address` when the address is under its
+ * limit; otherwise records nothing and says when it may try again.
+ */
+export function takeSignUp(address: string, now = new Date()): { allowed: true } | { allowed: false; retryAt: Date } {
+  const d = db();
+  const since = new Date(now.getTime() - SIGN_UP_WINDOW_MS);
+  return d.transaction(
+    (tx) => {
+      const recent = tx
+        .select({ at: signUps.at })
+        .from(signUps)
+        .where(and(eq(signUps.address, address), gt(signUps.at, since)))
+        .orderBy(asc(signUps.at))
+        .all();
+      if (recent.length >= SIGN_UPS_PER_ADDRESS) {
+        return {
+          allowed: false as const,
+          retryAt: new Date(recent[recent.length - SIGN_UPS_PER_ADDRESS].at.getTime() + SIGN_UP_WINDOW_MS),
+        };
+      }
+      tx.insert(signUps).values({ address, at: now }).run();
+      tx.delete(signUps).where(lt(signUps.at, since)).run();
+      return { allowed: true as const };
+    },
+    { behavior: "immediate" },
+  );
+}
+
+/** How many sign-ups `address` made in the window (tests, diagnostics). */
+export function signUpCount(address: string, now = new Date()): number {
+  return (
+    db()
+      .select({ n: count() })
+      .from(signUps)
+      .where(and(eq(signUps.address, address), gt(signUps.at, new Date(now.getTime() - SIGN_UP_WINDOW_MS))))
+      .get()?.n ?? 0
+  );
 }

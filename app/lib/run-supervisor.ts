@@ -13,14 +13,14 @@
  */
 import { db } from "@/db";
 import { FINAL_RUN_STATES } from "@/db/schema";
-import { elaborate } from "@/src/lang/index";
+import { retryBusy } from "./db-busy";
 import { RequestError } from "./http";
+import { planTextInWorker } from "./interactive";
 import type { Q } from "@/db";
 import { getCommit } from "./networks";
 import { RUN_LIMITS } from "./results";
 import type { TestFault } from "./run-chunk";
 import { ensureChunks } from "./run-exec";
-import { planRun } from "./run-plan";
 import {
   cancelLocal,
   closeLocalPool,
@@ -105,6 +105,8 @@ export interface StartRunInput {
   timeLimitMs?: number;
   /** Test hooks honoured by the worker only when RUNNEL_TEST_FAULTS=1. */
   fault?: TestFault;
+  /** The request's signal: the elaboration in the interactive pool stops when the client goes away. */
+  signal?: AbortSignal;
 }
 
 /**
@@ -112,7 +114,7 @@ export interface StartRunInput {
  * 422 when the commit has errors or the run would exceed RUN_LIMITS (with the numbers);
  * 429 when the user already has `queuedRunsPerUser()` runs queued.
  */
-export function startRun(input: StartRunInput, d: Q = db()): RunRow {
+export async function startRun(input: StartRunInput, d: Q = db()): Promise<RunRow> {
   const commit = getCommit(input.commitId, d);
   if (!commit) throw new RequestError(404, "not found");
   if (!commit.ok) {
@@ -124,9 +126,9 @@ export function startRun(input: StartRunInput, d: Q = db()): RunRow {
       },
     );
   }
-  const result = elaborate(commit.text);
-  if (!result.network) throw new RequestError(422, "the commit does not elaborate to a network");
-  const plan = planRun(result.network, concurrency());
+  // Elaboration and planning (up to millions of devices) run in the interactive pool, off the request thread.
+  const plan = await planTextInWorker(commit.text, concurrency(), input.signal);
+  if (!plan) throw new RequestError(422, "the commit does not elaborate to a network");
   const points = plan.points;
   const values = points * plan.valuesPerPoint;
   if (points > RUN_LIMITS.pointsPerRun) {
@@ -161,18 +163,20 @@ export function startRun(input: StartRunInput, d: Q = db()): RunRow {
       `you have ${queued} run${queued === 1 ? "" : "s"} queued; the limit is ${cap} queued runs per user. Wait for one to start, or cancel one.`,
       { limit: cap, queued },
     );
-  const id = insertRun(
-    {
-      commitId: commit.id,
-      networkId: commit.networkId,
-      createdBy: input.actorId,
-      pointsTotal: points,
-      timeLimitMs,
-      layout: JSON.stringify(plan.layout),
-      model: JSON.stringify(plan.model),
-      chunks: plan.chunks,
-    },
-    d,
+  const id = await retryBusy(() =>
+    insertRun(
+      {
+        commitId: commit.id,
+        networkId: commit.networkId,
+        createdBy: input.actorId,
+        pointsTotal: points,
+        timeLimitMs,
+        layout: plan.layoutJson,
+        model: plan.modelJson,
+        chunks: plan.chunks,
+      },
+      d,
+    ),
   );
   enqueue(id, d, input.fault);
   return getRun(id, d)!;

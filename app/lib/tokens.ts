@@ -8,6 +8,7 @@ import { and, desc, eq, isNull } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "@/db";
 import { apiTokens, users } from "@/db/schema";
+import { isBusy } from "./db-busy";
 import type { Actor } from "./policy";
 import { newSecret, secretHash } from "./secrets";
 import { newId } from "@/db/ids";
@@ -78,6 +79,11 @@ export function actorFromToken(token: string): Actor | null {
     .where(and(eq(apiTokens.tokenHash, secretHash(token)), isNull(apiTokens.revokedAt)))
     .get();
   if (!row) return null;
-  db().update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.id)).run();
+  try {
+    db().update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.id)).run();
+  } catch (e) {
+    // "last used" is a hint; a database busy with run writes must not refuse the request.
+    if (!isBusy(e)) throw e;
+  }
   return { userId: row.userId, email: row.email, name: row.name, via: "token" };
 }

@@ -8,6 +8,7 @@ import { db } from "@/db";
 import { memberships, workspaces, type Role } from "@/db/schema";
 import { RequestError } from "./http";
 import { newId } from "@/db/ids";
+import { immediate } from "./db-busy";
 
 export interface WorkspaceSummary {
   id: string;
@@ -90,7 +91,7 @@ export function getWorkspace(id: string): WorkspaceSummary | null {
 export function createWorkspace(ownerId: string, input: NewWorkspace): MyWorkspace {
   const given = input.slug ? input.slug : null;
   const base = given ?? slugFrom(input.name);
-  return db().transaction((tx) => {
+  return immediate(db(), (tx) => {
     const taken = (slug: string) =>
       tx.select({ id: workspaces.id }).from(workspaces).where(eq(workspaces.slug, slug)).get() !== undefined;
     let slug = base;

@@ -25,7 +25,8 @@ export function serveOptions(argv: string[]): ServeOptions {
 
 /**
  * Checks the build, the database (migrating it) and the port, then runs
- * `next start` in a child process that ends with this one.
+ * Runnel's server (./next-server.ts: Next's handler plus the client's socket
+ * address and the pages' Content-Security-Policy) in a child process that ends with this one.
  */
 export async function startNext(options: ServeOptions): Promise<ChildProcess> {
   if (!fs.existsSync(".next/BUILD_ID")) fail("no build found in .next/: run `npm run build` first");
@@ -34,8 +35,17 @@ export async function startNext(options: ServeOptions): Promise<ChildProcess> {
   await assertPortFree(options.host, options.port).catch((e: Error) => fail(e.message));
   const child = spawn(
     process.execPath,
-    ["node_modules/next/dist/bin/next", "start", "-H", options.host, "-p", String(options.port)],
-    { stdio: "inherit", env: { ...process.env, ...options.env, RUNNEL_DB: file, NEXT_TELEMETRY_DISABLED: "1" } },
+    ["--import", "tsx", "scripts/lib/next-server.ts", options.host, String(options.port)],
+    {
+      stdio: "inherit",
+      env: {
+        ...process.env,
+        ...options.env,
+        RUNNEL_DB: file,
+        RUNNEL_LISTEN_HOST: options.host,
+        NEXT_TELEMETRY_DISABLED: "1",
+      },
+    },
   );
   const stop = () => child.kill("SIGTERM");
   process.on("SIGINT", stop);

@@ -62,7 +62,7 @@ export function buildAccountsFixture(): AccountsFixture {
     const u = USER_OF[who];
     const sessionId = `sess_${who}_${"x".repeat(20)}`;
     db.insert(sessions)
-      .values({ id: sessionId, userId: u.id, expiresAt: Math.floor(Date.now() / 1000) + 30 * 86400 })
+      .values({ id: secretHash(sessionId), userId: u.id, expiresAt: Math.floor(Date.now() / 1000) + 30 * 86400 })
       .run();
     const token = `runnel_${who}_${"t".repeat(40)}`;
     const tokenId = `tok_${who}`;

@@ -6,14 +6,22 @@
 import fs from "node:fs";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from "vitest";
-import { signIn, signOut, signUp } from "@/app/(account)/actions";
+import { signIn, signOut, signOutEverywhere, signUp } from "@/app/(account)/actions";
 import { createToken, revokeToken } from "@/app/(account)/settings/actions";
 import { GET as getMe } from "@/app/api/me/route";
 import { POST as postWorkspace } from "@/app/api/workspaces/route";
-import { checkSignIn } from "@/app/lib/accounts";
+import { checkSignIn, SIGN_UP_DONE } from "@/app/lib/accounts";
 import { getActor, originAllowed, SESSION_COOKIE } from "@/app/lib/auth";
 import { PASSWORD_HASH_OPTIONS, verifyPassword } from "@/app/lib/passwords";
-import { ACCOUNT_FAILURES, ADDRESS_FAILURES, SIGN_IN_WINDOW_MS } from "@/app/lib/rate-limit";
+import {
+  ACCOUNT_FAILURES,
+  ADDRESS_FAILURES,
+  PAIR_FAILURES,
+  SIGN_IN_WINDOW_MS,
+  SIGN_UPS_PER_ADDRESS,
+} from "@/app/lib/rate-limit";
+import { clientAddress, SOCKET_ADDRESS_HEADER } from "@/app/lib/request-edge";
+import { secretHash } from "@/app/lib/secrets";
 import { db } from "@/db";
 import { DEMO_PASSWORD } from "@/db/seed";
 import { apiTokens, sessions, users } from "@/db/schema";
@@ -43,7 +51,7 @@ describe("passwords", () => {
       signUp,
       form({ name: "Nia Hale", email: "Nia.Hale@Elsewhere.example ", password, confirm: password }),
     );
-    expect(out).toMatchObject({ status: 303, location: "/" });
+    expect(out).toMatchObject({ status: 200, state: { message: SIGN_UP_DONE } });
     const row = db().select().from(users).where(eq(users.email, "nia.hale@elsewhere.example")).get()!;
     expect(row.passwordHash).toMatch(/^\$argon2id\$v=19\$m=19456,t=2,p=1\$[A-Za-z0-9+/]{22}\$[A-Za-z0-9+/]{43}$/);
     expect(PASSWORD_HASH_OPTIONS).toMatchObject({ memoryCost: 19456, timeCost: 2, parallelism: 1, algorithm: 2 });
@@ -84,12 +92,7 @@ describe("passwords", () => {
       confirm: ["the two passwords differ"],
     });
     expect(out.state?.values).toEqual({ name: "", email: "not-an-address" });
-    const taken = await runAction(
-      signUp,
-      form({ name: "Ada", email: OWNER, password: "long enough pw", confirm: "long enough pw" }),
-    );
-    expect(taken.status).toBe(409);
-    expect(taken.state?.fieldErrors?.email?.[0]).toMatch(/exists: sign in instead/);
+    // an address that has an account gets the same answer as a new one (checked in "sign-up" below)
     const mismatch = await runAction(
       signUp,
       form({ name: "Bo", email: "bo@elsewhere.example", password: "long enough pw", confirm: "long enough px" }),
@@ -120,12 +123,24 @@ describe("sessions", () => {
     await runAction(signIn, form({ email: OWNER, password: DEMO_PASSWORD }));
     const fresh = sessionCookie()!.value;
     expect(fresh).not.toBe(planted);
-    expect(db().select().from(sessions).where(eq(sessions.id, planted)).get()).toBeUndefined();
+    expect(
+      db()
+        .select()
+        .from(sessions)
+        .where(eq(sessions.id, secretHash(planted)))
+        .get(),
+    ).toBeUndefined();
     // an arbitrary id chosen by the client is never adopted either
     setRequest({ cookies: { [SESSION_COOKIE]: "chosen-by-attacker" } });
     await runAction(signIn, form({ email: OWNER, password: DEMO_PASSWORD }));
     expect(sessionCookie()!.value).not.toBe("chosen-by-attacker");
-    expect(db().select().from(sessions).where(eq(sessions.id, "chosen-by-attacker")).get()).toBeUndefined();
+    expect(
+      db()
+        .select()
+        .from(sessions)
+        .where(eq(sessions.id, secretHash("chosen-by-attacker")))
+        .get(),
+    ).toBeUndefined();
   });
 
   it("sign-out ends the session and clears the cookie", async () => {
@@ -133,9 +148,43 @@ describe("sessions", () => {
     setRequest({ cookies: { [SESSION_COOKIE]: sessionId } });
     expect(await runAction(signOut, form({}))).toMatchObject({ status: 303, location: "/" });
     expect(sessionCookie()!.value).toBe("");
-    expect(db().select().from(sessions).where(eq(sessions.id, sessionId)).get()).toBeUndefined();
+    expect(
+      db()
+        .select()
+        .from(sessions)
+        .where(eq(sessions.id, secretHash(sessionId)))
+        .get(),
+    ).toBeUndefined();
     const req = new Request(`${SITE}/api/me`, { headers: { cookie: `${SESSION_COOKIE}=${sessionId}` } });
     expect((await getMe(req)).status).toBe(401);
+  });
+
+  it("are stored hashed: the database never holds an id a cookie could carry", async () => {
+    await runAction(signIn, form({ email: OWNER, password: DEMO_PASSWORD }));
+    const id = sessionCookie()!.value;
+    const rows = db().select().from(sessions).all();
+    expect(rows.some((r) => r.id === id)).toBe(false);
+    expect(rows.some((r) => r.id === secretHash(id))).toBe(true);
+    // a stored value used as a cookie signs no one in
+    const stored = rows.find((r) => r.userId === fixture.actors.viewer!.userId)!.id;
+    const req = new Request(`${SITE}/api/me`, { headers: { cookie: `${SESSION_COOKIE}=${stored}` } });
+    expect((await getMe(req)).status).toBe(401);
+  });
+
+  it("sign out everywhere ends every session of the person, and only theirs", async () => {
+    setRequest({ address: "198.51.100.8" });
+    await runAction(signIn, form({ email: OWNER, password: DEMO_PASSWORD }));
+    const other = sessionCookie()!.value; // a second browser
+    const { sessionId } = fixture.actors.owner!;
+    setRequest({ cookies: { [SESSION_COOKIE]: sessionId } });
+    expect(await runAction(signOutEverywhere, form({}))).toMatchObject({ status: 303, location: "/signin" });
+    expect(sessionCookie()!.value).toBe("");
+    for (const id of [sessionId, other]) {
+      const req = new Request(`${SITE}/api/me`, { headers: { cookie: `${SESSION_COOKIE}=${id}` } });
+      expect((await getMe(req)).status).toBe(401);
+    }
+    const viewer = new Request(`${SITE}/api/me`, { headers: { cookie: fixture.actors.viewer!.cookie } });
+    expect((await getMe(viewer)).status).toBe(200);
   });
 
   it("an expired session is refused", async () => {
@@ -143,7 +192,7 @@ describe("sessions", () => {
     db()
       .update(sessions)
       .set({ expiresAt: Math.floor(Date.now() / 1000) - 1 })
-      .where(eq(sessions.id, sessionId))
+      .where(eq(sessions.id, secretHash(sessionId)))
       .run();
     const req = new Request(`${SITE}/api/me`, { headers: { cookie: `${SESSION_COOKIE}=${sessionId}` } });
     expect((await getMe(req)).status).toBe(401);
@@ -159,32 +208,53 @@ describe("sessions", () => {
 });
 
 describe("sign-in rate limits", () => {
-  it(`locks an account after ${ACCOUNT_FAILURES} failures and says when to try again`, async () => {
+  it(`locks an account for one address after ${PAIR_FAILURES} failures there, and says when to try again`, async () => {
     const t0 = new Date("2026-12-01T14:00:00Z");
-    for (let i = 0; i < ACCOUNT_FAILURES; i++) {
-      const r = await checkSignIn(OWNER, "wrong password", `203.0.113.${i}`, new Date(t0.getTime() + i * 1000));
+    for (let i = 0; i < PAIR_FAILURES; i++) {
+      const r = await checkSignIn(OWNER, "wrong password", "203.0.113.7", new Date(t0.getTime() + i * 1000));
       expect(r).toMatchObject({ ok: false, status: 401 });
     }
-    // even the right password is refused while locked, from any address
-    const locked = await checkSignIn(OWNER, DEMO_PASSWORD, "192.0.2.50", new Date(t0.getTime() + 60_000));
+    // even the right password is refused from that address while locked
+    const locked = await checkSignIn(OWNER, DEMO_PASSWORD, "203.0.113.7", new Date(t0.getTime() + 60_000));
     expect(locked).toEqual({
       ok: false,
       status: 429,
-      message: "Too many failed sign-ins for this account. Try again in 14 minutes (after 14:15 UTC).",
+      message:
+        "Too many failed sign-ins for this account from your network address. Try again in 14 minutes (after 14:15 UTC).",
     });
-    // another account is not affected
+    // another account from that address is not affected
     expect(
-      await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.1", new Date(t0.getTime() + 60_000)),
+      await checkSignIn("designer@larkspur.example", DEMO_PASSWORD, "203.0.113.7", new Date(t0.getTime() + 60_000)),
     ).toMatchObject({ ok: true });
-    // when the first failure leaves the window, the account opens again
+    // when the first failure leaves the window, the pair opens again
     const later = new Date(t0.getTime() + SIGN_IN_WINDOW_MS + 1);
-    expect(await checkSignIn(OWNER, DEMO_PASSWORD, "192.0.2.50", later)).toMatchObject({ ok: true });
+    expect(await checkSignIn(OWNER, DEMO_PASSWORD, "203.0.113.7", later)).toMatchObject({ ok: true });
   });
 
-  it("a successful sign-in resets the account's count", async () => {
+  it("the owner still signs in from their own address while someone guesses from another", async () => {
+    const t0 = new Date("2026-12-01T15:00:00Z");
+    const at = (s: number) => new Date(t0.getTime() + s * 1000);
+    // the owner signed in from home last week
+    expect(
+      await checkSignIn(OWNER, DEMO_PASSWORD, "198.51.100.20", new Date(t0.getTime() - 7 * 86400_000)),
+    ).toMatchObject({ ok: true });
+    // an attacker guesses from one address until locked, then from many (as a botnet would)
+    for (let i = 0; i < PAIR_FAILURES + 3; i++) await checkSignIn(OWNER, `guess ${i}`, "203.0.113.66", at(i));
+    expect(await checkSignIn(OWNER, "guess", "203.0.113.66", at(20))).toMatchObject({ status: 429 });
+    for (let i = 0; i < ACCOUNT_FAILURES + 5; i++)
+      await checkSignIn(OWNER, `guess ${i}`, `192.0.2.${i % 250}`, at(30 + i));
+    // guesses from yet another new address are held back now ...
+    const spread = await checkSignIn(OWNER, DEMO_PASSWORD, "233.252.0.9", at(200));
+    expect(spread).toMatchObject({ ok: false, status: 429 });
+    expect(spread.ok ? "" : spread.message).toMatch(/^Too many failed sign-ins for this account from new network/);
+    // ... but the owner, at home, signs in
+    expect(await checkSignIn(OWNER, DEMO_PASSWORD, "198.51.100.20", at(201))).toMatchObject({ ok: true });
+  });
+
+  it("a successful sign-in resets the pair's count", async () => {
     const t0 = new Date("2026-12-01T09:00:00Z");
     const at = (s: number) => new Date(t0.getTime() + s * 1000);
-    for (let i = 0; i < ACCOUNT_FAILURES - 1; i++) await checkSignIn(OWNER, "wrong", "198.51.100.1", at(i));
+    for (let i = 0; i < PAIR_FAILURES - 1; i++) await checkSignIn(OWNER, "wrong", "198.51.100.1", at(i));
     expect(await checkSignIn(OWNER, DEMO_PASSWORD, "198.51.100.1", at(10))).toMatchObject({ ok: true });
     expect(await checkSignIn(OWNER, "wrong", "198.51.100.1", at(11))).toMatchObject({ status: 401 });
   });
@@ -209,13 +279,121 @@ describe("sign-in rate limits", () => {
     ).toMatchObject({ ok: true });
   });
 
+  it("a rotating X-Forwarded-For does not give more guesses (no trusted proxy configured)", async () => {
+    // Runnel's server (scripts/lib/next-server.ts) puts the connection's peer address in its own header.
+    const from = (xff: string) =>
+      setRequest({ address: xff }) ?? requestContext.headers.set(SOCKET_ADDRESS_HEADER, "203.0.113.45");
+    for (let i = 0; i < ADDRESS_FAILURES; i++) {
+      from(`10.9.${i}.1`);
+      const out = await runAction(signIn, form({ email: `guess${i}@larkspur.example`, password: "wrong" }));
+      expect(out.status).toBe(401);
+    }
+    from("10.9.200.1");
+    const out = await runAction(signIn, form({ email: "designer@larkspur.example", password: DEMO_PASSWORD }));
+    expect(out.status).toBe(429);
+    expect(out.state?.error).toMatch(/from your network address/);
+  });
+
+  it("X-Forwarded-For counts only through the configured number of trusted proxies", () => {
+    const h = (xff: string) => new Headers({ "x-forwarded-for": xff, [SOCKET_ADDRESS_HEADER]: "10.0.0.2" });
+    const saved = process.env.RUNNEL_TRUSTED_PROXIES;
+    try {
+      delete process.env.RUNNEL_TRUSTED_PROXIES;
+      expect(clientAddress(h("1.2.3.4"))).toBe("10.0.0.2");
+      process.env.RUNNEL_TRUSTED_PROXIES = "1";
+      // one proxy (10.0.0.2) appended the address it saw; what the client wrote before it is ignored
+      expect(clientAddress(h("6.6.6.6, 198.51.100.4"))).toBe("198.51.100.4");
+      process.env.RUNNEL_TRUSTED_PROXIES = "2";
+      expect(clientAddress(h("6.6.6.6, 198.51.100.4, 10.0.0.1"))).toBe("198.51.100.4");
+      process.env.RUNNEL_TRUSTED_PROXIES = "junk";
+      expect(clientAddress(h("1.2.3.4"))).toBe("10.0.0.2");
+    } finally {
+      if (saved === undefined) delete process.env.RUNNEL_TRUSTED_PROXIES;
+      else process.env.RUNNEL_TRUSTED_PROXIES = saved;
+    }
+  });
+
   it("the sign-in form shows the lock message", async () => {
-    for (let i = 0; i < ACCOUNT_FAILURES; i++) await runAction(signIn, form({ email: OWNER, password: "wrong" }));
+    for (let i = 0; i < PAIR_FAILURES; i++) await runAction(signIn, form({ email: OWNER, password: "wrong" }));
     const out = await runAction(signIn, form({ email: OWNER, password: DEMO_PASSWORD }));
     expect(out.status).toBe(429);
     expect(out.state?.error).toMatch(
-      /^Too many failed sign-ins for this account\. Try again in 15 minutes \(after \d\d:\d\d UTC\)\.$/,
+      /^Too many failed sign-ins for this account from your network address\. Try again in 15 minutes \(after \d\d:\d\d UTC\)\.$/,
     );
+  });
+});
+
+describe("sign-up", () => {
+  it("answers the same whether or not the address has an account; the holder is told by e-mail", async () => {
+    const { startMailSink } = await import("@/scripts/lib/mail-sink");
+    const inbox: { recipients: string[]; subject: string }[] = [];
+    const sink = await startMailSink({ onMessage: (m) => void inbox.push(m) });
+    process.env.RUNNEL_MAIL_SINK_PORT = String(sink.port);
+    try {
+      const pw = "a long phrase of words 9";
+      const fresh = await runAction(
+        signUp,
+        form({ name: "Lee Fresh", email: "lee@elsewhere.example", password: pw, confirm: pw }),
+      );
+      setRequest();
+      const taken = await runAction(signUp, form({ name: "Mallory", email: OWNER, password: pw, confirm: pw }));
+      expect(taken).toEqual({ ...fresh, state: { ...fresh.state, values: { ...fresh.state!.values, email: OWNER } } });
+      expect(fresh.state?.message).toBe(SIGN_UP_DONE);
+      expect(requestContext.setCookies).toEqual([]); // no session either way
+      // the existing account is untouched; the holder hears of the attempt
+      expect(
+        await verifyPassword(
+          db().select().from(users).where(eq(users.email, OWNER)).get()!.passwordHash,
+          DEMO_PASSWORD,
+        ),
+      ).toBe(true);
+      expect(inbox.map((m) => [m.recipients[0], m.subject])).toEqual([
+        ["lee@elsewhere.example", "Your Runnel account"],
+        [OWNER, "Someone tried to create a Runnel account with your address"],
+      ]);
+    } finally {
+      delete process.env.RUNNEL_MAIL_SINK_PORT;
+      await sink.close();
+    }
+  });
+
+  it("refuses common and guessable passwords and says why", async () => {
+    const cases: [string, RegExp][] = [
+      ["password12", /commonly used password/],
+      ["1234567890", /hundred most used passwords/],
+      ["aaaaaaaaaaaa", /repeats a character/],
+      ["qwertyuiop", /too easy to guess/],
+    ];
+    for (const [pw, why] of cases) {
+      const out = await runAction(
+        signUp,
+        form({ name: "Lee Fresh", email: "lee.fresh@elsewhere.example", password: pw, confirm: pw }),
+      );
+      expect(out.status, pw).toBe(400);
+      expect(out.state?.fieldErrors?.password?.[0], pw).toMatch(/^too easy to guess: /);
+      expect(out.state?.fieldErrors?.password?.[0], pw).toMatch(why);
+    }
+    expect(db().select().from(users).where(eq(users.email, "lee.fresh@elsewhere.example")).get()).toBeUndefined();
+  });
+
+  it(`allows ${SIGN_UPS_PER_ADDRESS} sign-ups per address an hour`, async () => {
+    const pw = "a long phrase of words 9";
+    for (let i = 0; i < SIGN_UPS_PER_ADDRESS; i++) {
+      setRequest({ address: "203.0.113.5" });
+      const out = await runAction(
+        signUp,
+        form({ name: "N", email: `n${i}@elsewhere.example`, password: pw, confirm: pw }),
+      );
+      expect(out.status).toBe(200);
+    }
+    setRequest({ address: "203.0.113.5" });
+    const out = await runAction(signUp, form({ name: "N", email: "n99@elsewhere.example", password: pw, confirm: pw }));
+    expect(out.status).toBe(429);
+    expect(out.state?.error).toMatch(/^Too many sign-ups from your network address\. Try again in 60 minutes/);
+    setRequest({ address: "203.0.113.6" });
+    expect(
+      (await runAction(signUp, form({ name: "N", email: "n99@elsewhere.example", password: pw, confirm: pw }))).status,
+    ).toBe(200);
   });
 });
 

@@ -160,6 +160,16 @@ describe("runs through the API", () => {
       ).json,
     ).toEqual(series.json);
     expect((series.json as { run: { state: string } }).run.state).toBe("done");
+    // a range that ends before it starts is a bad request, not an empty answer
+    const backwards = await call(
+      "viewer",
+      "runs/[id]/results/route",
+      "GET",
+      `/api/runs/${run.id}/results?view=series&from=5&to=1`,
+      { id: run.id },
+    );
+    expect(backwards.status).toBe(400);
+    expect((backwards.json as { error: string }).error).toMatch(/^from: .*from=5, to=1/);
     const dv = s.paramValues[s.params.indexOf("dv")];
     expect(dv).toHaveLength(9);
     expect(dv[0]).toBeCloseTo(-0.04, 12);
@@ -226,6 +236,7 @@ describe("runs through the API", () => {
     expect(csv.headers.get("content-type")).toMatch(/text\/csv/);
     const lines = csv.text.trim().split("\r\n");
     expect(lines[0]).toBe("point,sample,dv,temp,ratio,method,iterations,residual_A,error");
+    expect(csv.text).not.toContain("#"); // a run that ended done is complete: no note
     expect(lines).toHaveLength(10);
     expect(Number(lines[9].split(",")[4])).toBeCloseTo(s.probeValues[0][8], 12);
     const devicesCsv = await call(
@@ -254,6 +265,7 @@ describe("runs through the API", () => {
       }[];
     };
     expect(doc.network).toBe("split");
+    expect(doc).not.toHaveProperty("partial");
     expect(doc.ok).toBe(true);
     expect(doc.points).toHaveLength(9);
     expect(doc.points[8].probes.ratio).toBeCloseTo(s.probeValues[0][8], 12);
@@ -306,6 +318,14 @@ describe("runs through the API", () => {
       id,
     });
     expect((series.json as { series: { point: number[] } }).series.point).toHaveLength(r.pointsDone);
+    // its exports say that they hold only part of the run
+    const note = `run ${id} is canceled (canceled after ${r.pointsDone} of 200 points): this file holds the ${r.pointsDone} of 200 points stored so far, not a complete result`;
+    const csv = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${id}/export?format=csv`, { id });
+    expect(csv.text.split("\r\n")[0]).toBe(`# ${note}`);
+    expect(csv.text.trim().split("\r\n")).toHaveLength(2 + r.pointsDone);
+    const json = await call("viewer", "runs/[id]/export/route", "GET", `/api/runs/${id}/export?format=json`, { id });
+    expect(json.json).toMatchObject({ partial: note, run: { state: "canceled" } });
+    expect((json.json as { points: unknown[] }).points).toHaveLength(r.pointsDone);
     const again = await call("designer", "runs/[id]/cancel/route", "POST", `/api/runs/${id}/cancel`, { id });
     expect(again.status).toBe(409);
     expect(again.json.error).toBe("the run has already ended (canceled)");

@@ -77,3 +77,23 @@ describe("comment Markdown", () => {
     }
   });
 });
+
+describe("images in comments", () => {
+  it("loads an image from our own origin", () => {
+    expect(renderComment("![plot](/runs/r_1/plot.png)")).toContain('<img src="/runs/r_1/plot.png" alt="plot"');
+  });
+
+  it("shows an image on another server as a link, never as an image", () => {
+    for (const src of [
+      "http://127.0.0.1:9/pixel.png",
+      "https://images.example.org/a.png",
+      "HTTPS://images.example.org/a.png",
+    ]) {
+      const html = renderComment(`![bench photo](${src})`);
+      expect(html, src).not.toContain("<img");
+      expect(html, src).toContain(
+        `<a href="${src}" rel="noopener noreferrer nofollow">bench photo (image: ${src})</a>`,
+      );
+    }
+  });
+});

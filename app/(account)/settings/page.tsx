@@ -1,5 +1,7 @@
 import type { Metadata } from "next";
 import { requireActor } from "@/app/lib/auth";
+import { Submit } from "@/app/ui/form";
+import { signOutEverywhere } from "../actions";
 import { listApiTokens } from "@/app/lib/tokens";
 import { RevokeTokenButton, TokenCreateForm } from "./token-forms";
 
@@ -17,6 +19,19 @@ export default async function SettingsPage() {
         <p className="text-stone-600">
           Signed in as {actor.name} (<span className="font-mono">{actor.email}</span>).
         </p>
+      </section>
+      <section className="space-y-3" aria-labelledby="sessions-heading">
+        <h2 id="sessions-heading" className="text-lg font-semibold">
+          Sessions
+        </h2>
+        <p className="text-sm text-stone-600">
+          Signing out everywhere ends your session in every browser and on every device, this one included (for a
+          browser you lost, or a shared computer you forgot to sign out of). API tokens are not sessions: revoke them
+          below.
+        </p>
+        <form action={signOutEverywhere}>
+          <Submit tone="danger">Sign out everywhere</Submit>
+        </form>
       </section>
       <section className="space-y-3" aria-labelledby="tokens-heading">
         <h2 id="tokens-heading" className="text-lg font-semibold">

@@ -1,10 +1,25 @@
 "use client";
 import { useActionState } from "react";
+import Link from "next/link";
 import { Field, FormMessage, Submit } from "@/app/ui/form";
 import { signUp } from "../actions";
 
 export function SignUpForm({ next, minLength }: { next: string; minLength: number }) {
   const [state, action] = useActionState(signUp, undefined);
+  if (state?.status === 200) {
+    // The same answer whether or not the address already had an account (app/lib/accounts.ts signUpAccount).
+    return (
+      <div className="space-y-4 rounded border border-stone-300 bg-white p-5">
+        <FormMessage state={state} />
+        <Link
+          href={`/signin?next=${encodeURIComponent(next)}`}
+          className="inline-block rounded bg-moss-600 px-3 py-1.5 text-sm text-white hover:bg-moss-700"
+        >
+          Sign in
+        </Link>
+      </div>
+    );
+  }
   return (
     <form action={action} className="space-y-4 rounded border border-stone-300 bg-white p-5" noValidate>
       <input type="hidden" name="next" value={next} />
@@ -17,7 +32,7 @@ export function SignUpForm({ next, minLength }: { next: string; minLength: numbe
         type="password"
         autoComplete="new-password"
         state={state}
-        hint={`At least ${minLength} characters.`}
+        hint={`At least ${minLength} characters, not easy to guess: a phrase of several unrelated words works well.`}
         required
       />
       <Field

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { commitAccess, networkAccess, requestActor } from "@/app/lib/access";
+import { authenticated } from "@/app/lib/policy";
 import { fresh, handle, parseInput, queryOf, readJson } from "@/app/lib/http";
 import { MAX_TIME_LIMIT_MS, startRun } from "@/app/lib/run-supervisor";
 import { listRuns } from "@/app/lib/runs";
@@ -38,13 +39,16 @@ const StartRun = z.object({
  */
 export function POST(request: Request) {
   return handle(async () => {
+    // Signed in before the body is read: an anonymous request's body is never read.
+    const signedIn = authenticated(await requestActor(request));
     const input = await readJson(request, StartRun);
-    const { actor, commit } = commitAccess(await requestActor(request), "run.start", input.commit);
-    const run = startRun({
+    const { actor, commit } = commitAccess(signedIn, "run.start", input.commit);
+    const run = await startRun({
       commitId: commit.id,
       actorId: actor.userId,
       timeLimitMs: input.timeLimitSeconds === undefined ? undefined : Math.round(input.timeLimitSeconds * 1000),
       fault: process.env.RUNNEL_TEST_FAULTS === "1" ? input.fault : undefined,
+      signal: request.signal,
     });
     return fresh({ run }, { status: 201 });
   });

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { commitAccess, networkAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf, readJson } from "@/app/lib/http";
+import { authenticated } from "@/app/lib/policy";
 import { sendMail } from "@/app/lib/mail";
 import { createThread, listThreads, MAX_COMMENT_LENGTH, MAX_TITLE_LENGTH } from "@/app/lib/review/threads";
 
@@ -16,8 +17,10 @@ const Body = z.object({
 /** POST /api/threads {commitId, runId?, title, body} (thread.comment): opens a thread on a commit; 201 with its permalink. */
 export function POST(request: Request) {
   return handle(async () => {
+    // Signed in before the body is read: an anonymous request's body is never read.
+    const signedIn = authenticated(await requestActor(request));
     const input = await readJson(request, Body);
-    const { actor } = commitAccess(await requestActor(request), "thread.comment", input.commitId);
+    const { actor } = commitAccess(signedIn, "thread.comment", input.commitId);
     const r = await createThread({ ...input, authorId: actor.userId }, sendMail);
     return Response.json(
       { thread: r.thread, commentId: r.commentId, notified: r.notified, url: `/threads/${r.thread.id}` },

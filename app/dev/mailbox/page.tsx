@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { Fragment } from "react";
+import { requireActor } from "@/app/lib/auth";
 import { mailboxEnabled } from "@/app/lib/mail";
 import { listMailbox } from "@/app/lib/mailbox";
 
@@ -26,18 +27,22 @@ function Linked({ text }: { text: string }) {
 }
 
 /**
- * /dev/mailbox: every message the local SMTP sink received, newest first. It
- * exists only while mail goes to that sink (`npm run demo`, tests); with
- * RUNNEL_SMTP_URL set it is a 404.
+ * /dev/mailbox: the messages of the local SMTP sink that the signed-in person
+ * may read (app/lib/mailbox.ts: mail to them, and the invitations of the
+ * workspaces they own), newest first. It exists only when `mailboxEnabled()`
+ * (demo or development, mail to the sink, a loopback address); else a 404.
  */
-export default function MailboxPage() {
+export default async function MailboxPage() {
   if (!mailboxEnabled()) notFound();
-  const messages = listMailbox();
+  const actor = await requireActor("/dev/mailbox");
+  const messages = listMailbox(actor);
   return (
     <div className="max-w-3xl space-y-4">
       <h1 className="text-2xl font-semibold">Mailbox (development)</h1>
       <p className="text-sm text-stone-600">
-        Mail that Runnel sent while running with its local mail sink. In production, mail goes to the SMTP server in{" "}
+        This is a local mail sink: mail that Runnel sent while running in demo or development mode never left this
+        machine; it was kept here instead. You see the mail addressed to you ({actor.email}) and the invitations of the
+        workspaces you own. In production, mail goes to the SMTP server in{" "}
         <code className="font-mono">RUNNEL_SMTP_URL</code> and this page does not exist.
       </p>
       {messages.length === 0 ? (

@@ -7,7 +7,7 @@
 import { headers } from "next/headers";
 import { redirect } from "next/navigation";
 import { z } from "zod";
-import { checkSignIn, newPasswordSchema, personNameSchema } from "@/app/lib/accounts";
+import { checkSignIn, newPasswordSchema, personNameSchema, strongPassword } from "@/app/lib/accounts";
 import { checkActionOrigin, clientAddress, getActor, startSession } from "@/app/lib/auth";
 import { formValues, invalid, refusal, type FormState } from "@/app/lib/forms";
 import {
@@ -49,7 +49,7 @@ export async function acceptInvitation(_prev: FormState | undefined, form: FormD
       slug = accept(token, { userId: check.userId }).slug;
       await startSession(check.userId);
     } else {
-      const parsed = newAccountSchema.safeParse({
+      const parsed = newAccountSchema.superRefine(strongPassword((v) => [v.name, view.email])).safeParse({
         name: form.get("name") ?? undefined,
         password: form.get("password") ?? undefined,
         confirm: form.get("confirm") ?? undefined,

@@ -10,6 +10,9 @@
  *   removing the control characters and blanks browsers ignore inside a scheme);
  *   anything else renders as plain text. Every link gets
  *   rel="noopener noreferrer nofollow".
+ * - An image is loaded only from Runnel's own origin (a relative URL). An image
+ *   on another server becomes a link to it: a reader's browser never fetches
+ *   it unasked (which would tell that server who read the thread, and when).
  * - A run reference, written `[[run ID]]` (ID: letters, digits, `_` and `-`),
  *   becomes `<span class="run-ref" data-run="ID">run ID</span>`; the thread page
  *   turns each such placeholder into a card with the run's state and probes.
@@ -121,6 +124,9 @@ export function safeUrl(href: string): string | null {
   return url;
 }
 
+/** True for a URL that `safeUrl` passed and that has no scheme: it stays on our own origin. */
+const isRelative = (url: string) => !/^[A-Za-z][A-Za-z0-9+.-]*:/.test(url);
+
 const escapeHtml = (s: string) =>
   s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;").replace(/'/g, "&#39;");
 const escapeAttr = (s: string) =>
@@ -145,6 +151,10 @@ marked.use({
       const url = safeUrl(href);
       if (url === null || url.toLowerCase().startsWith("mailto:")) return escapeHtml(text);
       const t = title ? ` title="${escapeAttr(title)}"` : "";
+      if (!isRelative(url)) {
+        const label = `${text ? text + " " : ""}(image: ${url})`;
+        return `<a href="${escapeAttr(url)}"${t} rel="${REL}">${escapeHtml(label)}</a>`;
+      }
       return `<img src="${escapeAttr(url)}" alt="${escapeAttr(text)}"${t} loading="lazy">`;
     },
     checkbox({ checked }) {
@@ -196,7 +206,8 @@ const sanitizer = new FilterXSS({
       case "href":
       case "src": {
         const url = safeUrl(v.replace(/&amp;/g, "&"));
-        return url === null ? "" : escapeAttr(url);
+        if (url === null || (name === "src" && !isRelative(url))) return "";
+        return escapeAttr(url);
       }
       case "rel":
         return REL;

@@ -9,7 +9,13 @@ import { measurements, networks, runPoints, runs, users } from "@/db/schema";
 import { RequestError } from "../http";
 import type { Q } from "@/db";
 import { newId } from "@/db/ids";
-import { compareToSimulation, formatCsvError, parseMeasurementCsv, type Agreement } from "./measurements";
+import {
+  compareToSimulation,
+  formatCsvError,
+  parseMeasurementCsv,
+  type Agreement,
+  type ParseResult,
+} from "./measurements";
 import { parseLayout } from "./run-tables";
 
 export interface MeasurementView {
@@ -39,6 +45,8 @@ export function saveMeasurement(
     commitId?: string | null;
     bytes: Uint8Array;
     createdBy: string;
+    /** The bytes already parsed (off the request thread, app/lib/interactive.ts); parsed here when absent. */
+    parsed?: ParseResult;
   },
   d: Q = db(),
 ): MeasurementView {
@@ -49,7 +57,7 @@ export function saveMeasurement(
     .get();
   if (!net) throw new RequestError(404, "network not found");
   const name = input.name.trim().slice(0, 200) || "measurement.csv";
-  const parsed = parseMeasurementCsv(input.bytes);
+  const parsed = input.parsed ?? parseMeasurementCsv(input.bytes);
   if (!parsed.ok) {
     throw new RequestError(422, formatCsvError(parsed.errors[0]), {
       errors: parsed.errors.map((e) => ({ ...e, text: formatCsvError(e) })),

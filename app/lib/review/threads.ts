@@ -33,6 +33,7 @@ import { newId } from "@/db/ids";
 import { commitBadges, type ReviewState } from "./diffs";
 import { extractMentions, extractRunRefs, renderComment } from "./markdown";
 import { keyProbes } from "./run-tables";
+import { immediate } from "../db-busy";
 
 export const MAX_COMMENT_LENGTH = 20_000;
 export const MAX_TITLE_LENGTH = 200;
@@ -173,7 +174,7 @@ export async function addComment(
     ).values(),
   ];
 
-  d.transaction((tx) => {
+  immediate(d, (tx) => {
     tx.insert(comments)
       .values({
         id: commentId,

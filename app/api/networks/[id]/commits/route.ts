@@ -2,6 +2,8 @@ import { z } from "zod";
 import { networkAccess, requestActor } from "@/app/lib/access";
 import { fresh, handle, readJson } from "@/app/lib/http";
 import { commitText, listCommits } from "@/app/lib/networks";
+import { retryBusy } from "@/app/lib/db-busy";
+import { checkTextInWorker } from "@/app/lib/interactive";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -26,13 +28,18 @@ export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
     const { actor, network } = networkAccess(await requestActor(request), "network.write", (await ctx.params).id);
     const input = await readJson(request, Commit);
-    const commit = commitText({
-      networkId: network.id,
-      parentId: input.parent,
-      text: input.text,
-      message: input.message,
-      authorId: actor.userId,
-    });
+    // Elaboration (up to millions of devices) runs in the interactive pool; the write is one short transaction.
+    const check = await checkTextInWorker(input.text, request.signal);
+    const commit = await retryBusy(() =>
+      commitText({
+        networkId: network.id,
+        parentId: input.parent,
+        text: input.text,
+        message: input.message,
+        authorId: actor.userId,
+        check,
+      }),
+    );
     return fresh({ commit }, { status: 201 });
   });
 }

@@ -1,6 +1,9 @@
 import { z } from "zod";
 import { networkAccess, requestActor } from "@/app/lib/access";
+import { readBodyBytes } from "@/app/lib/body";
+import { retryBusy } from "@/app/lib/db-busy";
 import { handle, readJson, RequestError } from "@/app/lib/http";
+import { parseCsvInWorker } from "@/app/lib/interactive";
 import { getCommit } from "@/app/lib/networks";
 import { MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
 import { listMeasurements, saveMeasurement } from "@/app/lib/review/measurement-store";
@@ -26,18 +29,16 @@ export function GET(request: Request, ctx: Ctx) {
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
     const { actor, network } = networkAccess(await requestActor(request), "measurement.write", (await ctx.params).id);
-    const length = Number(request.headers.get("content-length") ?? "0");
-    if (length > MAX_MEASUREMENT_BYTES + 64 * 1024)
-      throw new RequestError(
-        413,
-        `the upload is ${(length / 1048576).toFixed(1)} MB; a measurement CSV may be at most 10 MB`,
-      );
     const upload = (request.headers.get("content-type") ?? "").startsWith("application/json")
       ? await fromJson(request)
       : await fromForm(request);
     if (upload.commitId && getCommit(upload.commitId)?.networkId !== network.id)
       throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
-    const m = saveMeasurement({ networkId: network.id, ...upload, createdBy: actor.userId });
+    // Parsing (up to 10 MB, a million rows) runs in the interactive pool, off the request thread.
+    const parsed = await parseCsvInWorker(upload.bytes, request.signal);
+    const m = await retryBusy(() =>
+      saveMeasurement({ networkId: network.id, ...upload, createdBy: actor.userId, parsed }),
+    );
     return Response.json({ measurement: m }, { status: 201 });
   });
 }
@@ -51,8 +52,12 @@ interface Upload {
 
 async function fromForm(request: Request): Promise<Upload> {
   let form: FormData;
+  // The form is streamed and refused as soon as it crosses the limit (the file plus its fields).
+  const bytes = await readBodyBytes(request, MAX_MEASUREMENT_BYTES + 64 * 1024, "the upload");
   try {
-    form = await request.formData();
+    form = await new Response(bytes as Uint8Array<ArrayBuffer>, {
+      headers: { "content-type": request.headers.get("content-type") ?? "" },
+    }).formData();
   } catch {
     throw new RequestError(
       400,

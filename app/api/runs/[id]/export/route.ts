@@ -37,7 +37,7 @@ export function GET(request: Request, ctx: Ctx) {
         },
       });
     }
-    return new Response(csvStream(run.id, layout, q.table, q.point), {
+    return new Response(csvStream(run, layout, q.table, q.point), {
       headers: {
         "content-type": "text/csv; charset=utf-8",
         "content-disposition": `attachment; filename="${base}-${q.table}.csv"`,

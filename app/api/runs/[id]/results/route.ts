@@ -35,6 +35,8 @@ export function GET(request: Request, ctx: Ctx) {
     const layout = runLayout(run.id);
     if (!layout) throw new RequestError(409, `the run has no results yet (${run.state})`, { state: run.state });
     if (q.view === "series") {
+      if (q.from !== undefined && q.to !== undefined && q.from > q.to)
+        throw new RequestError(400, `from: must not be after to (from=${q.from}, to=${q.to})`);
       const head = { run: { id: run.id, state: run.state } };
       if (q.from === undefined && q.to === undefined) {
         return new Response(seriesJson(run.id, layout, head), {

@@ -2,7 +2,7 @@ import { z } from "zod";
 import { requestActor, threadAccess } from "@/app/lib/access";
 import { handle, readJson } from "@/app/lib/http";
 import { sendMail } from "@/app/lib/mail";
-import { authorize } from "@/app/lib/policy";
+import { authenticated, authorize } from "@/app/lib/policy";
 import { addComment, MAX_COMMENT_LENGTH } from "@/app/lib/review/threads";
 import { VERDICTS } from "@/db/schema";
 
@@ -23,8 +23,10 @@ const Body = z.object({
  */
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
+    // Signed in before the body is read: an anonymous request's body is never read.
+    const signedIn = authenticated(await requestActor(request));
     const input = await readJson(request, Body);
-    const { actor, thread } = threadAccess(await requestActor(request), "thread.comment", (await ctx.params).id);
+    const { actor, thread } = threadAccess(signedIn, "thread.comment", (await ctx.params).id);
     if (input.verdict) authorize(actor, "commit.signoff", thread.workspaceId);
     const r = await addComment(
       {

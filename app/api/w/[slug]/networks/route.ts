@@ -2,6 +2,8 @@ import { z } from "zod";
 import { requestActor, workspaceAccess } from "@/app/lib/access";
 import { fresh, handle, readJson } from "@/app/lib/http";
 import { createNetwork, listNetworks } from "@/app/lib/networks";
+import { retryBusy } from "@/app/lib/db-busy";
+import { checkTextInWorker } from "@/app/lib/interactive";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ slug: string }> };
@@ -26,13 +28,17 @@ export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
     const { actor, workspace } = workspaceAccess(await requestActor(request), "network.write", (await ctx.params).slug);
     const input = await readJson(request, CreateNetwork);
-    const created = createNetwork({
-      workspaceId: workspace.id,
-      name: input.name,
-      text: input.text,
-      message: input.message,
-      authorId: actor.userId,
-    });
+    const check = input.text === undefined ? undefined : await checkTextInWorker(input.text, request.signal);
+    const created = await retryBusy(() =>
+      createNetwork({
+        workspaceId: workspace.id,
+        name: input.name,
+        text: input.text,
+        message: input.message,
+        authorId: actor.userId,
+        check,
+      }),
+    );
     return fresh(created, { status: 201 });
   });
 }

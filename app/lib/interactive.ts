@@ -1,0 +1,117 @@
+/**
+ * The interactive pool: worker threads for heavy work a request waits on —
+ * elaborating a text for a commit or a run start, parsing a measurement CSV —
+ * so the request thread keeps serving everyone else meanwhile. It is separate
+ * from the run pool (app/lib/runs.ts): a long run queue never delays a commit.
+ *
+ * Contract
+ * - At most `interactiveThreads()` tasks run at once ($RUNNEL_INTERACTIVE_THREADS,
+ *   default: one per core but one); the rest wait in piscina's queue.
+ * - A task has a time limit ($RUNNEL_INTERACTIVE_TIME_LIMIT_MS, default 60 s)
+ *   and is cancelled when the request's signal aborts (the client went away):
+ *   piscina terminates the thread that runs it. The time limit answers 422 with
+ *   what took too long; a client that went away gets nothing.
+ * - One thread stays (started with the server, `warmInteractivePool`), so a
+ *   commit never waits for a thread to load the worker bundle; threads beyond
+ *   it end after IDLE_MS without work, so their memory goes back to the system.
+ * - The pool lives on globalThis, so every route bundle shares one.
+ */
+import os from "node:os";
+import path from "node:path";
+import type Piscina from "piscina";
+import { RequestError } from "./http";
+import type { InteractiveResult, InteractiveTask } from "./interactive-worker";
+import type { ParseResult } from "./review/measurements";
+import type { PlanText, TextCheck } from "./text-check";
+
+export const INTERACTIVE_WORKER_FILE = () =>
+  path.join(/*turbopackIgnore: true*/ process.cwd(), ".build", "interactive-worker.mjs");
+const IDLE_MS = 5_000;
+
+export function interactiveThreads(): number {
+  const env = Number(process.env.RUNNEL_INTERACTIVE_THREADS);
+  return Number.isInteger(env) && env > 0 ? env : Math.max(1, os.availableParallelism() - 1);
+}
+
+export function interactiveTimeLimitMs(): number {
+  const env = Number(process.env.RUNNEL_INTERACTIVE_TIME_LIMIT_MS);
+  return Number.isFinite(env) && env > 0 ? env : 60_000;
+}
+
+const KEY = Symbol.for("runnel.interactive.pool");
+type Pool = Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | null>;
+
+async function pool(): Promise<Pool> {
+  return poolWith(0);
+}
+
+/** Starts the pool's first thread and keeps it (the server calls this at start-up). */
+export async function warmInteractivePool(): Promise<void> {
+  const p = await poolWith(1);
+  // A no-op task makes the thread load the bundle now rather than at the first request.
+  await p.run({ kind: "check", text: "" });
+}
+
+async function poolWith(minThreads: number): Promise<Pool> {
+  const g = globalThis as unknown as Record<symbol, Pool | undefined>;
+  if (!g[KEY]) {
+    const { Piscina } = await import("piscina");
+    g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | null>({
+      filename: INTERACTIVE_WORKER_FILE(),
+      maxThreads: interactiveThreads(),
+      minThreads,
+      idleTimeout: IDLE_MS,
+    });
+  }
+  return g[KEY];
+}
+
+const WHAT: Record<InteractiveTask["kind"], string> = {
+  check: "checking the network text",
+  plan: "planning the run",
+  csv: "reading the measurement CSV",
+};
+
+/** Runs `task` in the interactive pool, under its time limit, cancelled when `signal` aborts. */
+export async function runInteractive<T extends InteractiveTask>(
+  task: T,
+  signal?: AbortSignal,
+): Promise<InteractiveResult<T>> {
+  const limit = interactiveTimeLimitMs();
+  const timeout = AbortSignal.timeout(limit);
+  const both = signal ? AbortSignal.any([signal, timeout]) : timeout;
+  try {
+    return (await (await pool()).run(task, { signal: both })) as InteractiveResult<T>;
+  } catch (e) {
+    if (timeout.aborted)
+      throw new RequestError(
+        422,
+        `${WHAT[task.kind]} took longer than ${Math.round(limit / 1000)} s; nothing was stored`,
+      );
+    if (signal?.aborted) throw new RequestError(400, "the request was cancelled by the client");
+    throw e;
+  }
+}
+
+/** The checks of a network text (diagnostics, run size), computed in the interactive pool. */
+export function checkTextInWorker(text: string, signal?: AbortSignal): Promise<TextCheck> {
+  return runInteractive({ kind: "check", text }, signal);
+}
+
+/** The plan of a run of `text` (null when it does not elaborate), made in the interactive pool. */
+export function planTextInWorker(text: string, workers: number, signal?: AbortSignal): Promise<PlanText | null> {
+  return runInteractive({ kind: "plan", text, workers }, signal);
+}
+
+/** A measurement CSV parsed in the interactive pool. */
+export function parseCsvInWorker(bytes: Uint8Array, signal?: AbortSignal): Promise<ParseResult> {
+  return runInteractive({ kind: "csv", bytes }, signal);
+}
+
+/** Ends the pool's threads (tests and scripts that must exit). */
+export async function closeInteractivePool(): Promise<void> {
+  const g = globalThis as unknown as Record<symbol, Pool | undefined>;
+  const p = g[KEY];
+  g[KEY] = undefined;
+  await p?.destroy();
+}

@@ -1,0 +1,57 @@
+/**
+ * What the server needs to know about a network text before it stores a
+ * commit or queues a run: its diagnostics, whether it elaborates, and the size
+ * of a run of it. Pure (no I/O): computed in the interactive worker
+ * (./interactive-worker.ts), or inline where no pool is wanted (seed, tests).
+ */
+import type { CommitDiagnostic } from "@/db/schema";
+import { elaborate } from "@/src/lang/index";
+import { pointCount } from "@/src/solver/index";
+import { valuesPerPoint } from "./results";
+import { planRun } from "./run-plan";
+import type { ChunkRange } from "./run-chunk";
+
+export interface TextCheck {
+  /** No diagnostic is an error. */
+  ok: boolean;
+  diagnostics: CommitDiagnostic[];
+  /** The size of a run of every analysis; null when the text does not elaborate to a network. */
+  run: { points: number; valuesPerPoint: number } | null;
+}
+
+export function checkNetworkText(text: string): TextCheck {
+  const result = elaborate(text);
+  return {
+    ok: result.ok,
+    diagnostics: result.diagnostics.map((x) => ({
+      severity: x.severity,
+      line: x.line,
+      column: x.column,
+      message: x.message,
+    })),
+    run: result.network ? { points: pointCount(result.network), valuesPerPoint: valuesPerPoint(result.network) } : null,
+  };
+}
+
+/** A run's plan (app/lib/run-plan.ts) with its layout and model already as JSON text, as the runs table stores them. */
+export interface PlanText {
+  points: number;
+  valuesPerPoint: number;
+  layoutJson: string;
+  modelJson: string;
+  chunks: ChunkRange[];
+}
+
+/** The plan of a run of `text` for `workers` workers; null when the text does not elaborate to a network. */
+export function planNetworkText(text: string, workers: number): PlanText | null {
+  const result = elaborate(text);
+  if (!result.network) return null;
+  const plan = planRun(result.network, workers);
+  return {
+    points: plan.points,
+    valuesPerPoint: plan.valuesPerPoint,
+    layoutJson: JSON.stringify(plan.layout),
+    modelJson: JSON.stringify(plan.model),
+    chunks: plan.chunks,
+  };
+}

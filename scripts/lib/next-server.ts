@@ -1,0 +1,73 @@
+/**
+ * Runnel's HTTP server: Next's request handler behind a thin node:http layer
+ * that does what Next cannot be told to do. `startNext` (./server.ts) runs it
+ * as `node --import tsx scripts/lib/next-server.ts HOST PORT`.
+ * - Every request carries the connection's peer address in
+ *   `x-runnel-socket-address` (a client's own header of that name is dropped),
+ *   so rate limits never depend on a header the client wrote
+ *   (app/lib/request-edge.ts `clientAddress`).
+ * - Every page gets a fresh script nonce and its Content-Security-Policy, on
+ *   the request (Next reads the nonce from there and puts it on its scripts)
+ *   and on the response; other answers get a policy that allows nothing.
+ * - A form post or server-action call to a page from another origin is
+ *   answered 403 here (Next would answer it 500).
+ */
+import { randomBytes } from "node:crypto";
+import http from "node:http";
+import next from "next";
+import {
+  contentSecurityPolicy,
+  NON_PAGE_POLICY,
+  originAllowed,
+  SOCKET_ADDRESS_HEADER,
+} from "../../app/lib/request-edge";
+
+const [host = "127.0.0.1", portText = "3000"] = process.argv.slice(2);
+const port = Number(portText);
+
+/** Static build output, images and API answers are not pages. */
+function isPage(pathname: string): boolean {
+  return !/^\/(api|_next)\//.test(pathname) && !/\.(ico|svg|png|txt|xml|webmanifest)$/.test(pathname);
+}
+
+function headersOf(req: http.IncomingMessage): Headers {
+  const h = new Headers();
+  for (const [k, v] of Object.entries(req.headers)) {
+    if (typeof v === "string") h.set(k, v);
+    else if (Array.isArray(v)) h.set(k, v.join(", "));
+  }
+  return h;
+}
+
+const app = next({ dev: false, hostname: host, port, dir: process.cwd() });
+await app.prepare();
+const handle = app.getRequestHandler();
+
+const server = http.createServer((req, res) => {
+  delete req.headers[SOCKET_ADDRESS_HEADER];
+  req.headers[SOCKET_ADDRESS_HEADER] = req.socket.remoteAddress ?? "unknown";
+  const pathname = (req.url ?? "/").split("?")[0];
+  const method = (req.method ?? "GET").toUpperCase();
+  if (isPage(pathname)) {
+    if (!originAllowed(method, headersOf(req))) {
+      res.writeHead(403, { "content-type": "text/plain; charset=utf-8", connection: "close" });
+      res.end("403 Forbidden: this form was not sent from Runnel's own pages (its Origin does not match the Host).\n");
+      req.resume();
+      return;
+    }
+    const policy = contentSecurityPolicy(randomBytes(16).toString("base64"));
+    req.headers["content-security-policy"] = policy;
+    res.setHeader("Content-Security-Policy", policy);
+  } else if (pathname.startsWith("/api/")) {
+    res.setHeader("Content-Security-Policy", NON_PAGE_POLICY);
+  }
+  void handle(req, res);
+});
+server.listen(port, host, () => console.log(`runnel: serving http://${host}:${port}/`));
+const stop = () => {
+  server.close(() => process.exit(0));
+  server.closeIdleConnections();
+  setTimeout(() => process.exit(0), 3000).unref();
+};
+process.on("SIGTERM", stop);
+process.on("SIGINT", stop);
