@@ -258,9 +258,28 @@ export function runLayout(runId: string, d: Q = db()): RunLayout | null {
 /** What the run page's tables show for one point (GET /api/runs/[id]/results?view=point): lists, null for NaN. */
 export type PointView = NamedPoint<(number | null)[], (number | null)[], number[], number | null>;
 
-export function pointView(runId: string, layout: RunLayout, point: number, d: Q = db()): PointView | null {
+/** The most nodes and devices one JSON point view holds (the whole point is in the binary view and the CSV export). */
+export const POINT_VIEW_LIMIT = 10_000;
+
+/**
+ * One point's tables; nodes and devices from `offset`, at most `limit` of each. `page` says what was left out
+ * (so a 2,000,000-device point never becomes one 200 MB JSON answer).
+ */
+export function pointView(
+  runId: string,
+  layout: RunLayout,
+  point: number,
+  d: Q = db(),
+  offset = 0,
+  limit = POINT_VIEW_LIMIT,
+): (PointView & { page?: { offset: number; limit: number; nodes: number; devices: number; note: string } }) | null {
   const p = readPoint(runId, point, d);
   if (!p) return null;
+  const [from, to] = [offset, offset + limit];
+  const cut = (n: number) => n > limit || offset > 0;
+  const clipped = cut(layout.nodes.length) || cut(layout.devices.length);
+  const range = (n: number) =>
+    `${Math.min(from, n).toLocaleString("en-US")}–${Math.min(to, n).toLocaleString("en-US")}`;
   return {
     point: p.point,
     sample: p.sample,
@@ -270,16 +289,31 @@ export function pointView(runId: string, layout: RunLayout, point: number, d: Q 
     ),
     solver: { method: p.method, iterations: p.iterations, residual: p.residual },
     error: p.error,
-    nodes: { names: layout.nodes, isRail: layout.nodeIsRail, voltage: jsonNumbers(p.nodes) },
+    nodes: {
+      names: layout.nodes.slice(from, to),
+      isRail: layout.nodeIsRail.slice(from, to),
+      voltage: jsonNumbers(p.nodes.subarray(from, to)),
+    },
     devices: {
-      names: layout.devices,
-      types: layout.deviceTypes,
-      current: jsonNumbers(p.current),
-      ic: jsonNumbers(p.ic),
-      saturated: Array.from(p.saturated),
+      names: layout.devices.slice(from, to),
+      types: layout.deviceTypes.slice(from, to),
+      current: jsonNumbers(p.current.subarray(from, to)),
+      ic: jsonNumbers(p.ic.subarray(from, to)),
+      saturated: Array.from(p.saturated.subarray(from, to)),
     },
     rails: { names: layout.rails, current: jsonNumbers(p.rails) },
     probes: { names: layout.probes, value: jsonNumbers(p.probes) },
+    ...(clipped
+      ? {
+          page: {
+            offset,
+            limit,
+            nodes: layout.nodes.length,
+            devices: layout.devices.length,
+            note: `this view holds nodes ${range(layout.nodes.length)} of ${layout.nodes.length.toLocaleString("en-US")} and devices ${range(layout.devices.length)} of ${layout.devices.length.toLocaleString("en-US")}; ask for more with offset= and limit= (at most ${POINT_VIEW_LIMIT.toLocaleString("en-US")}), or download the CSV export for all of them`,
+          },
+        }
+      : {}),
   };
 }
 

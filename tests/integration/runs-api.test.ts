@@ -196,6 +196,20 @@ describe("runs through the API", () => {
     ).point;
     expect(p.devices.names).toEqual(["m1", "m2"]);
     expect(p.devices.current[0] + p.devices.current[1]).toBeCloseTo(40e-9, 15);
+    expect(point.json.point).not.toHaveProperty("page"); // the whole point fits
+    // a window of the tables, with a note saying what it left out
+    const second = await call(
+      "viewer",
+      "runs/[id]/results/route",
+      "GET",
+      `/api/runs/${run.id}/results?view=point&point=8&offset=1&limit=1`,
+      { id: run.id },
+    );
+    const w = (second.json as { point: { devices: { names: string[] }; page: { note: string; devices: number } } })
+      .point;
+    expect(w.devices.names).toEqual(["m2"]);
+    expect(w.page).toMatchObject({ devices: 2 });
+    expect(w.page.note).toMatch(/^this view holds nodes .* and devices 1–2 of 2; ask for more with offset=/);
     expect(p.probes.value[0]).toBeCloseTo(s.probeValues[0][8], 12);
     // the binary form the run page reads carries the same numbers; the names come once, from view=layout
     const mod = await import("@/app/api/runs/[id]/results/route");

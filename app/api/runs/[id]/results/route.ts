@@ -1,7 +1,15 @@
 import { z } from "zod";
 import { requestActor, runAccess } from "@/app/lib/access";
 import { fresh, handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { layoutJson, pointBinary, pointView, runLayout, seriesJson, seriesView } from "@/app/lib/results";
+import {
+  layoutJson,
+  pointBinary,
+  pointView,
+  POINT_VIEW_LIMIT,
+  runLayout,
+  seriesJson,
+  seriesView,
+} from "@/app/lib/results";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -16,6 +24,9 @@ const Query = z.discriminatedUnion("view", [
     view: z.literal("point"),
     point: z.coerce.number().int().min(0).default(0),
     format: z.enum(["json", "binary"]).default("json"),
+    /** JSON only: the first node and device, and how many of each (at most POINT_VIEW_LIMIT). */
+    offset: z.coerce.number().int().min(0).default(0),
+    limit: z.coerce.number().int().min(1).max(POINT_VIEW_LIMIT).default(POINT_VIEW_LIMIT),
   }),
   z.object({ view: z.literal("layout") }),
 ]);
@@ -23,7 +34,8 @@ const Query = z.discriminatedUnion("view", [
 /**
  * GET /api/runs/[id]/results (workspace.read)
  * - `?view=series[&from=A&to=B]`: params, probes and solver figures of every stored point, column by column;
- * - `?view=point&point=K`: every node, device, rail and probe of point K (names included);
+ * - `?view=point&point=K[&offset=O&limit=L]`: point K's rails and probes, and its nodes and devices from O, at most
+ *   L (default and largest POINT_VIEW_LIMIT) of each, names included; `page` says what was left out;
  *   `&format=binary`: the same numbers without names as stored (app/lib/point-codec.ts), what the run page reads;
  * - `?view=layout`: the names (nodes, devices, rails, probes, params), sweeps and mismatch of the run.
  * Results never change once stored; a live run's series grows as points are stored.
@@ -58,7 +70,7 @@ export function GET(request: Request, ctx: Ctx) {
         );
       return new Response(bin, { headers: { ...keep, "content-type": "application/octet-stream" } });
     }
-    const point = pointView(run.id, layout, q.point);
+    const point = pointView(run.id, layout, q.point, undefined, q.offset, q.limit);
     if (!point)
       throw new RequestError(
         404,
