@@ -39,7 +39,7 @@ for (const need of [".next/BUILD_ID", ".build/run-worker.mjs"]) {
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-bench-api-"));
 process.env.RUNNEL_DB = path.join(dir, "runnel.db");
 const { openDatabase, closeDb } = await import("../db/index");
-const { seedDemo } = await import("../db/seed");
+const { seedDemo } = await import("../scripts/seed/index");
 const { createApiToken } = await import("../app/lib/tokens");
 const seeded = openDatabase(process.env.RUNNEL_DB);
 seedDemo(seeded);

@@ -14,7 +14,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { openDatabase } from "../db/index";
-import { seedDemo } from "../db/seed";
+import { seedDemo } from "../scripts/seed/index";
 import { commits, networks, runs } from "../db/schema";
 import { POINT_SECTIONS, type SectionName, type StoredPoint } from "../app/lib/point-codec";
 import { insertPoints, readPoint, readSeries } from "../app/lib/results";

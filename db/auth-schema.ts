@@ -14,13 +14,8 @@
  *   `expires_at` is in the future; accepting sets `accepted_at` once.
  * - An API token is valid while `revoked_at` is null.
  */
-import { sql } from "drizzle-orm";
 import { index, integer, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
-import type { Role } from "./schema";
-import { users, workspaces } from "./schema";
-
-const now = sql`(cast(unixepoch('subsec') * 1000 as integer))`;
-const createdAt = () => integer("created_at", { mode: "timestamp_ms" }).notNull().default(now);
+import { createdAt, nowMs, timestamp, users, workspaces, type Role } from "./base-schema";
 
 export const sessions = sqliteTable(
   "sessions",
@@ -47,10 +42,10 @@ export const invitations = sqliteTable(
     role: text("role").$type<Role>().notNull(),
     tokenHash: text("token_hash").notNull(),
     invitedBy: text("invited_by").references(() => users.id, { onDelete: "set null" }),
-    expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
-    acceptedAt: integer("accepted_at", { mode: "timestamp_ms" }),
+    expiresAt: timestamp("expires_at").notNull(),
+    acceptedAt: timestamp("accepted_at"),
     acceptedBy: text("accepted_by").references(() => users.id, { onDelete: "set null" }),
-    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    revokedAt: timestamp("revoked_at"),
     createdAt: createdAt(),
   },
   (t) => [
@@ -72,8 +67,8 @@ export const apiTokens = sqliteTable(
     /** The first characters of the token, shown in lists so a person can tell tokens apart. */
     prefix: text("prefix").notNull(),
     tokenHash: text("token_hash").notNull(),
-    lastUsedAt: integer("last_used_at", { mode: "timestamp_ms" }),
-    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    lastUsedAt: timestamp("last_used_at"),
+    revokedAt: timestamp("revoked_at"),
     createdAt: createdAt(),
   },
   (t) => [
@@ -93,7 +88,7 @@ export const signInAttempts = sqliteTable(
     /** Client address as the server saw it (x-forwarded-for's nearest hop), or "unknown". */
     address: text("address").notNull(),
     succeeded: integer("succeeded", { mode: "boolean" }).notNull(),
-    at: integer("at", { mode: "timestamp_ms" }).notNull(),
+    at: timestamp("at").notNull(),
   },
   (t) => [
     // failures of one account in the window
@@ -127,7 +122,7 @@ export const devMail = sqliteTable(
     subject: text("subject").notNull(),
     text: text("text").notNull(),
     html: text("html"),
-    receivedAt: integer("received_at", { mode: "timestamp_ms" }).notNull().default(now),
+    receivedAt: timestamp("received_at").notNull().default(nowMs),
   },
   // newest first on the mailbox page
   (t) => [index("dev_mail_received_idx").on(t.receivedAt)],

@@ -20,11 +20,8 @@
  */
 import { sql } from "drizzle-orm";
 import { blob, index, integer, sqliteTable, text } from "drizzle-orm/sqlite-core";
-import { users, workspaces } from "./schema";
+import { createdAt, nowMs, timestamp, users, workspaces } from "./base-schema";
 import { commits, networks, runs } from "./work-schema";
-
-const now = sql`(cast(unixepoch('subsec') * 1000 as integer))`;
-const createdAt = () => integer("created_at", { mode: "timestamp_ms" }).notNull().default(now);
 
 export const VERDICTS = ["signed_off", "changes_asked"] as const;
 export type Verdict = (typeof VERDICTS)[number];
@@ -50,7 +47,7 @@ export const threads = sqliteTable(
       .references(() => users.id),
     createdAt: createdAt(),
     /** Time of the newest comment or verdict. */
-    updatedAt: integer("updated_at", { mode: "timestamp_ms" }).notNull().default(now),
+    updatedAt: timestamp("updated_at").notNull().default(nowMs),
   },
   (t) => [
     // the threads of a commit (history and network page)

@@ -15,17 +15,29 @@
  *   little-endian blobs whose element order is the run's `layout` (node,
  *   device, rail, probe and param names, fixed when the run starts).
  */
-import { sql } from "drizzle-orm";
 import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
-import { users, workspaces } from "./schema";
-
-const now = sql`(cast(unixepoch('subsec') * 1000 as integer))`;
-const createdAt = () => integer("created_at", { mode: "timestamp_ms" }).notNull().default(now);
+import { createdAt, nowMs, timestamp, users, workspaces } from "./base-schema";
 
 export const RUN_STATES = ["queued", "running", "done", "failed", "canceled", "interrupted"] as const;
 export type RunState = (typeof RUN_STATES)[number];
 /** States a run never leaves. */
 export const FINAL_RUN_STATES: readonly RunState[] = ["done", "failed", "canceled", "interrupted"];
+
+/** A validity warning of a run, aggregated over its points. */
+export interface RunWarning {
+  kind: string;
+  message: string;
+  /** Points where it occurred. */
+  points: number;
+  /** First point where it occurred. */
+  firstPoint: number;
+}
+
+/** A point of a run that could not be solved. */
+export interface RunFailure {
+  point: number;
+  message: string;
+}
 
 export const networks = sqliteTable(
   "networks",
@@ -43,7 +55,7 @@ export const networks = sqliteTable(
       .notNull()
       .references(() => users.id),
     createdAt: createdAt(),
-    updatedAt: integer("updated_at", { mode: "timestamp_ms" }).notNull().default(now),
+    updatedAt: timestamp("updated_at").notNull().default(nowMs),
   },
   (t) => [
     // "the network /w/[ws]/n/[slug]" and the workspace's network list
@@ -114,7 +126,7 @@ export const runs = sqliteTable(
     /** Names of nodes, devices, rails, probes and params (JSON RunLayout), written when the run is queued (or by its first chunk). */
     layout: text("layout"),
     /** Model settings of the commit (JSON), written with the layout. */
-    model: text("model"),
+    model: text("model", { mode: "json" }).$type<Record<string, unknown>>(),
     /** Counts over all points, written when the run ends. */
     newtonPoints: integer("newton_points"),
     devicesNotWeak: integer("devices_not_weak"),
@@ -122,13 +134,13 @@ export const runs = sqliteTable(
     maxResidual: real("max_residual"),
     /** Solver's reason for its method (same for every point of a run), null before the first point. */
     solverReason: text("solver_reason"),
-    /** Validity warnings aggregated over the points (JSON RunWarning[]), written when the run ends. */
-    warnings: text("warnings"),
-    /** Points that could not be solved (JSON, at most 50: point, message), written when the run ends. */
-    failures: text("failures"),
+    /** Validity warnings aggregated over the points (JSON), written when the run ends. */
+    warnings: text("warnings", { mode: "json" }).$type<RunWarning[]>(),
+    /** Points that could not be solved (JSON, at most 50), written when the run ends. */
+    failures: text("failures", { mode: "json" }).$type<RunFailure[]>(),
     createdAt: createdAt(),
-    startedAt: integer("started_at", { mode: "timestamp_ms" }),
-    finishedAt: integer("finished_at", { mode: "timestamp_ms" }),
+    startedAt: timestamp("started_at"),
+    finishedAt: timestamp("finished_at"),
   },
   (t) => [
     // the runs of a commit (network page), newest first
@@ -207,8 +219,8 @@ export const runChunks = sqliteTable(
     flags: blob("flags", { mode: "buffer" }),
     /** Why the chunk failed (its message fails the run). */
     error: text("error"),
-    claimedAt: integer("claimed_at", { mode: "timestamp_ms" }),
-    finishedAt: integer("finished_at", { mode: "timestamp_ms" }),
+    claimedAt: timestamp("claimed_at"),
+    finishedAt: timestamp("finished_at"),
   },
   (t) => [primaryKey({ columns: [t.runId, t.chunk] })],
 );
@@ -233,8 +245,8 @@ export const workerTokens = sqliteTable(
     createdBy: text("created_by")
       .notNull()
       .references(() => users.id),
-    lastUsedAt: integer("last_used_at", { mode: "timestamp_ms" }),
-    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    lastUsedAt: timestamp("last_used_at"),
+    revokedAt: timestamp("revoked_at"),
     createdAt: createdAt(),
   },
   (t) => [

@@ -9,7 +9,7 @@ import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
 import { databasePath, openDatabase } from "../db";
-import { seedDemo } from "../db/seed";
+import { seedDemo } from "./seed/index";
 import { fail, runScript } from "./lib/fail";
 import { startMailSink, storeInMailbox } from "./lib/mail-sink";
 import { serveOptions, startNext } from "./lib/server";

@@ -1,5 +1,5 @@
 import { databasePath, openDatabase } from "../db";
-import { seedDemo } from "../db/seed";
+import { seedDemo } from "./seed/index";
 import { runScript } from "./lib/fail";
 
 await runScript(() => {

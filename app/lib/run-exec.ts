@@ -178,7 +178,7 @@ export function executeChunk(runId: string, chunk: number, control: ExecControl 
       writeBusy(() =>
         d
           .update(runs)
-          .set({ layout: JSON.stringify(layout), model: JSON.stringify(modelOf(net)) })
+          .set({ layout: JSON.stringify(layout), model: modelOf(net) })
           .where(and(eq(runs.id, runId), sql`${runs.layout} is null`))
           .run(),
       );
@@ -330,8 +330,8 @@ export function finalizeRun(
         devicesNotWeak: fig.devicesNotWeak,
         devicesNotSaturated: fig.devicesNotSaturated,
         maxResidual: fig.maxResidual,
-        warnings: JSON.stringify(fig.warnings),
-        failures: JSON.stringify(fig.failures),
+        warnings: fig.warnings,
+        failures: fig.failures,
       })
       .where(and(eq(runs.id, runId), inArray(runs.state, ["queued", "running"])))
       .run(),

@@ -12,6 +12,7 @@
  * - Pure: used by the local pool's threads, queue workers and the app.
  */
 import type { PointResult } from "@/src/solver/results";
+import type { RunWarning } from "@/db/schema";
 
 /** Inversion coefficient above which a device is outside weak inversion (common practice: IC < 0.1 is weak inversion). */
 export const WEAK_INVERSION_LIMIT = 0.1;
@@ -21,15 +22,7 @@ export const RUN_FAILURES_KEPT = 50;
 /** Distinct warnings a chunk counts (see the module comment). */
 export const WARNING_KEYS = 10_000;
 
-/** A validity warning aggregated over a run. */
-export interface RunWarning {
-  kind: string;
-  message: string;
-  /** Points where it occurred. */
-  points: number;
-  /** First point where it occurred. */
-  firstPoint: number;
-}
+export type { RunWarning };
 
 export interface PointFailure {
   point: number;

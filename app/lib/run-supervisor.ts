@@ -172,7 +172,7 @@ export async function startRun(input: StartRunInput, d: Q = db()): Promise<RunRo
         pointsTotal: points,
         timeLimitMs,
         layout: plan.layoutJson,
-        model: plan.modelJson,
+        model: plan.model,
         chunks: plan.chunks,
       },
       d,

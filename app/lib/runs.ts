@@ -6,9 +6,8 @@
 import { and, asc, count, desc, eq, inArray } from "drizzle-orm";
 import { db, type Q } from "@/db";
 import { newId } from "@/db/ids";
-import { networks, runChunks, runs, users, type RunState } from "@/db/schema";
+import { networks, runChunks, runs, users, type RunFailure, type RunState, type RunWarning } from "@/db/schema";
 import { RequestError } from "./http";
-import type { RunWarning } from "./run-stats";
 
 const OPEN_STATES: RunState[] = ["queued", "running"];
 
@@ -28,9 +27,9 @@ export interface NewRun {
   createdBy: string;
   pointsTotal: number;
   timeLimitMs: number;
-  /** The run's layout and model figures (JSON), when known at queue time. */
+  /** The run's layout (JSON) and model figures, when known at queue time. */
   layout?: string;
-  model?: string;
+  model?: Record<string, unknown>;
   /** The chunk plan; none: one chunk over every point, made when the run is dispatched. */
   chunks?: readonly { start: number; end: number }[];
 }
@@ -80,6 +79,17 @@ function workspaceOfNetwork(d: Q, networkId: string): string {
   const row = d.select({ workspaceId: networks.workspaceId }).from(networks).where(eq(networks.id, networkId)).get();
   if (!row) throw new RequestError(404, "not found");
   return row.workspaceId;
+}
+
+/** The id of a finished (`done`) run of the commit, or null. */
+export function doneRunOf(commitId: string, d: Q = db()): string | null {
+  return (
+    d
+      .select({ id: runs.id })
+      .from(runs)
+      .where(and(eq(runs.commitId, commitId), eq(runs.state, "done")))
+      .get()?.id ?? null
+  );
 }
 
 /** Records a cancel request (the worker executing the run reads it). */
@@ -146,7 +156,7 @@ export interface RunRow {
   solverReason: string | null;
   model: Record<string, unknown> | null;
   warnings: RunWarning[] | null;
-  failures: { point: number; message: string }[] | null;
+  failures: RunFailure[] | null;
   createdAt: number;
   startedAt: number | null;
   finishedAt: number | null;
@@ -178,21 +188,15 @@ const runColumns = {
   finishedAt: runs.finishedAt,
 };
 
-type StoredRun = Omit<RunRow, "createdAt" | "startedAt" | "finishedAt" | "model" | "warnings" | "failures"> & {
+type StoredRun = Omit<RunRow, "createdAt" | "startedAt" | "finishedAt"> & {
   createdAt: Date;
   startedAt: Date | null;
   finishedAt: Date | null;
-  model: string | null;
-  warnings: string | null;
-  failures: string | null;
 };
 
 function toRunRow(r: StoredRun): RunRow {
   return {
     ...r,
-    model: r.model ? (JSON.parse(r.model) as Record<string, unknown>) : null,
-    warnings: r.warnings ? (JSON.parse(r.warnings) as RunWarning[]) : null,
-    failures: r.failures ? (JSON.parse(r.failures) as { point: number; message: string }[]) : null,
     createdAt: r.createdAt.getTime(),
     startedAt: r.startedAt?.getTime() ?? null,
     finishedAt: r.finishedAt?.getTime() ?? null,

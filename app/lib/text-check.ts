@@ -33,12 +33,12 @@ export function checkNetworkText(text: string): TextCheck {
   };
 }
 
-/** A run's plan (app/lib/run-plan.ts) with its layout and model already as JSON text, as the runs table stores them. */
+/** A run's plan (app/lib/run-plan.ts) with its layout already as JSON text, as the runs table stores it. */
 export interface PlanText {
   points: number;
   valuesPerPoint: number;
   layoutJson: string;
-  modelJson: string;
+  model: Record<string, unknown>;
   chunks: ChunkRange[];
 }
 
@@ -51,7 +51,7 @@ export function planNetworkText(text: string, workers: number): PlanText | null 
     points: plan.points,
     valuesPerPoint: plan.valuesPerPoint,
     layoutJson: JSON.stringify(plan.layout),
-    modelJson: JSON.stringify(plan.model),
+    model: plan.model,
     chunks: plan.chunks,
   };
 }

@@ -1,4 +1,4 @@
-import { DEMO_PASSWORD, DEMO_USERS } from "@/db/demo";
+import { DEMO_PASSWORD, DEMO_USERS } from "@/app/lib/demo";
 
 /** Demo mode only (RUNNEL_DEMO=1, set by `npm run demo`): the invented demo team and its documented password. */
 export function demoMode(): boolean {

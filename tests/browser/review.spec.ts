@@ -1,7 +1,7 @@
 import { expect, test, type Page } from "@playwright/test";
 
 /**
- * Review in the browser, on the seeded demo thread (db/seed-review.ts): the
+ * Review in the browser, on the seeded demo thread (scripts/seed/review.ts): the
  * reviewer opens the thread from its link, follows the run card to the run,
  * compares the fix with its parent, and signs off; a viewer sees the thread
  * without the sign-off buttons. Screenshots go to test-results/browser/review-*.png.

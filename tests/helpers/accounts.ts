@@ -7,7 +7,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { closeDb, db as processDb, openDatabase, type DB } from "@/db";
-import { DEMO_PASSWORD, seedDemo } from "@/db/seed";
+import { DEMO_PASSWORD, seedDemo } from "@/scripts/seed/index";
 import { apiTokens, sessions, users } from "@/db/schema";
 import { hashPasswordSync } from "@/app/lib/passwords";
 import { secretHash } from "@/app/lib/secrets";

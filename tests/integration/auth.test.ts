@@ -23,7 +23,7 @@ import {
 import { clientAddress, SOCKET_ADDRESS_HEADER } from "@/app/lib/request-edge";
 import { secretHash } from "@/app/lib/secrets";
 import { db } from "@/db";
-import { DEMO_PASSWORD } from "@/db/seed";
+import { DEMO_PASSWORD } from "@/scripts/seed/index";
 import { apiTokens, sessions, users } from "@/db/schema";
 import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
 import { form, requestContext, runAction, setRequest, SITE } from "../helpers/request-context";

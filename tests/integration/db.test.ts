@@ -4,7 +4,7 @@ import path from "node:path";
 import { sql } from "drizzle-orm";
 import { afterEach, describe, expect, it } from "vitest";
 import { DatabaseSetupError, openDatabase } from "@/db";
-import { seedDemo, DEMO_USERS } from "@/db/seed";
+import { seedDemo, DEMO_USERS } from "@/scripts/seed/index";
 import { memberships } from "@/db/schema";
 import { freshDatabase } from "../helpers/db";
 

@@ -15,7 +15,7 @@ import InvitePage from "@/app/invite/[token]/page";
 import { changeMemberRole, inviteMember, leaveWorkspace } from "@/app/w/[slug]/members/actions";
 import { SESSION_COOKIE } from "@/app/lib/auth";
 import { db } from "@/db";
-import { DEMO_PASSWORD } from "@/db/seed";
+import { DEMO_PASSWORD } from "@/scripts/seed/index";
 import { invitations, memberships, users } from "@/db/schema";
 import { startMailSink, storeInMailbox, type MailSink, type ReceivedMail } from "@/scripts/lib/mail-sink";
 import { buildAccountsFixture, WORKSPACE, type AccountsFixture } from "../helpers/accounts";

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { DB } from "@/db";
-import { seedDemo } from "@/db/seed";
+import { seedDemo } from "@/scripts/seed/index";
 import {
   commitIdOf,
   commitText,
@@ -136,7 +136,7 @@ describe("the demo seed", () => {
   it("commits the example networks with a finished run each, idempotently", async () => {
     const db = fresh();
     const { listRuns } = await import("@/app/lib/runs");
-    const { DEMO_NETWORKS, seedWork } = await import("@/db/seed-work");
+    const { DEMO_NETWORKS, seedWork } = await import("@/scripts/seed/work");
     const demo = listNetworks("ws_lm64", db).filter((n) => DEMO_NETWORKS.some((d) => slugify(d.name) === n.slug));
     expect(demo).toHaveLength(DEMO_NETWORKS.length);
     for (const n of demo) {

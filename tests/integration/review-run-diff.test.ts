@@ -10,7 +10,7 @@
  */
 import { afterEach, describe, expect, it } from "vitest";
 import { closeDb } from "@/db";
-import { seedDemo } from "@/db/seed";
+import { seedDemo } from "@/scripts/seed/index";
 import { commitDiffs, runs } from "@/db/schema";
 import { commitText, createNetwork } from "@/app/lib/networks";
 import { executeRun } from "@/app/lib/run-exec";

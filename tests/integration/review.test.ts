@@ -1,5 +1,5 @@
 import { afterEach, describe, expect, it } from "vitest";
-import { seedDemo } from "@/db/seed";
+import { seedDemo } from "@/scripts/seed/index";
 import { commitDiffs } from "@/db/schema";
 import { commitBadges, compareCommits, storeCommitDiff } from "@/app/lib/review/diffs";
 import { addComment, createThread, getThread, type Notify } from "@/app/lib/review/threads";
@@ -216,9 +216,9 @@ describe("measurements", () => {
 describe("demo review seed", () => {
   it("tells the story once: changes asked, the fix with its run linked, the sign-off; bench data overlays the fix run", async () => {
     const db = fresh(); // seedDemo ran once
-    const { seedDemo: again } = await import("@/db/seed");
+    const { seedDemo: again } = await import("@/scripts/seed/index");
     again(db); // and a second time changes nothing
-    const { DEMO_THREAD_ID } = await import("@/db/seed-review");
+    const { DEMO_THREAD_ID } = await import("@/scripts/seed/review");
     const view = getThread(DEMO_THREAD_ID, db)!;
     expect(view.comments.map((c) => [c.authorName, c.verdict])).toEqual([
       ["Ruth Calder", "changes_asked"],

@@ -98,8 +98,8 @@ function figures(runId: string) {
     newtonPoints: r.newtonPoints,
     devicesNotWeak: r.devicesNotWeak,
     devicesNotSaturated: r.devicesNotSaturated,
-    warnings: JSON.parse(r.warnings!),
-    failures: JSON.parse(r.failures!),
+    warnings: r.warnings,
+    failures: r.failures,
     solverReason: r.solverReason,
     maxResidual: r.maxResidual,
   };

@@ -162,7 +162,7 @@ describe("bad numbers", () => {
     expect(run.reason).not.toMatch(/constraint|NOT NULL/i);
     const row = db.select().from(runs).where(eq(runs.id, run.id)).get()!;
     expect(row.pointsDone).toBe(1);
-    expect(JSON.parse(row.failures!)).toEqual([{ point: 0, message: expect.stringMatching(/^rail vdd = 100000 V/) }]);
+    expect(row.failures).toEqual([{ point: 0, message: expect.stringMatching(/^rail vdd = 100000 V/) }]);
   });
 
   it("every example with its ground at 3.2 kV or its supply at 100 kV ends with a clear state, never a database error", async () => {

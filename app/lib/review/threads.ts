@@ -15,18 +15,7 @@
  */
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
-import {
-  comments,
-  commits,
-  memberships,
-  networks,
-  reviews,
-  runs,
-  threads,
-  users,
-  workspaces,
-  type Verdict,
-} from "@/db/schema";
+import { comments, commits, memberships, networks, reviews, runs, threads, users, type Verdict } from "@/db/schema";
 import { RequestError } from "../http";
 import type { Q } from "@/db";
 import { newId } from "@/db/ids";
@@ -290,32 +279,24 @@ export interface ThreadView {
 
 /** Everything the thread page shows; null for an unknown id. */
 export function getThread(id: string, d: Q = db()): ThreadView | null {
-  const t = d
-    .select({
-      thread: threads,
-      authorName: users.name,
-      ws: { id: workspaces.id, slug: workspaces.slug, name: workspaces.name },
-      net: { id: networks.id, slug: networks.slug, name: networks.name },
+  const named = { columns: { id: true, slug: true, name: true } } as const;
+  const t = d.query.threads
+    .findFirst({
+      where: eq(threads.id, id),
+      with: {
+        creator: { columns: { name: true } },
+        workspace: named,
+        network: named,
+        commit: {
+          columns: { id: true, parentId: true, message: true, createdAt: true },
+          with: { author: { columns: { name: true } } },
+        },
+      },
     })
-    .from(threads)
-    .innerJoin(users, eq(users.id, threads.createdBy))
-    .innerJoin(workspaces, eq(workspaces.id, threads.workspaceId))
-    .innerJoin(networks, eq(networks.id, threads.networkId))
-    .where(eq(threads.id, id))
-    .get();
+    .sync();
   if (!t) return null;
-  const commit = d
-    .select({
-      id: commits.id,
-      parentId: commits.parentId,
-      message: commits.message,
-      authorName: users.name,
-      createdAt: commits.createdAt,
-    })
-    .from(commits)
-    .innerJoin(users, eq(users.id, commits.authorId))
-    .where(eq(commits.id, t.thread.commitId))
-    .get()!;
+  const { author, ...c } = t.commit;
+  const commit = { ...c, authorName: author.name };
   const rows = d
     .select({ c: comments, authorName: users.name })
     .from(comments)
@@ -331,9 +312,7 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
       .all()
       .map((r) => [r.commentId, r]),
   );
-  const refs = [
-    ...new Set([...(t.thread.runId ? [t.thread.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))]),
-  ];
+  const refs = [...new Set([...(t.runId ? [t.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))])];
   const verdictCommits = [...new Set([commit.id, ...[...verdictOf.values()].map((v) => v.commitId)])];
   const badgeMap = commitBadges(verdictCommits, d);
   const badge = badgeMap.get(commit.id)!;
@@ -347,17 +326,17 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
   );
   return {
     thread: {
-      id: t.thread.id,
-      workspaceId: t.thread.workspaceId,
-      networkId: t.thread.networkId,
-      commitId: t.thread.commitId,
-      runId: t.thread.runId,
-      title: t.thread.title,
-      createdAt: t.thread.createdAt.getTime(),
-      authorName: t.authorName,
+      id: t.id,
+      workspaceId: t.workspaceId,
+      networkId: t.networkId,
+      commitId: t.commitId,
+      runId: t.runId,
+      title: t.title,
+      createdAt: t.createdAt.getTime(),
+      authorName: t.creator.name,
     },
-    workspace: t.ws,
-    network: t.net,
+    workspace: t.workspace,
+    network: t.network,
     commit: { ...commit, createdAt: commit.createdAt.getTime() },
     review: badge.review,
     verdicts: badge.verdicts.map((v) => ({ reviewerName: v.reviewerName, verdict: v.verdict, at: v.at })),
@@ -371,7 +350,7 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
       verdict: verdictOf.get(r.c.id)?.verdict ?? null,
       verdictCommitId: verdictOf.get(r.c.id)?.commitId ?? null,
     })),
-    runCards: runCards(refs, t.thread.workspaceId, d),
+    runCards: runCards(refs, t.workspaceId, d),
     commitStates: verdictCommits.map((id) => ({
       commitId: id,
       message: messages.get(id) ?? "",

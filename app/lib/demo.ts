@@ -1,4 +1,4 @@
-import type { Role } from "./schema";
+import type { Role } from "@/db/schema";
 
 /**
  * The password of every demo account: documented in the README ("Demo

@@ -7,14 +7,12 @@
  */
 import fs from "node:fs";
 import path from "node:path";
-import { and, eq } from "drizzle-orm";
 import { commitText, createNetwork, networkBySlug, slugify } from "@/app/lib/networks";
-import { newId } from "@/db/ids";
-import { pointCount } from "@/src/solver/index";
 import { executeRun } from "@/app/lib/run-exec";
+import { doneRunOf, insertRun } from "@/app/lib/runs";
+import type { DB } from "@/db";
 import { elaborate } from "@/src/lang/index";
-import type { DB } from "./index";
-import { runs } from "./schema";
+import { pointCount } from "@/src/solver/index";
 
 /** Demo networks: file, display name, author, commit message, and an earlier version to make a history. */
 export const DEMO_NETWORKS: {
@@ -110,28 +108,25 @@ export function seedWork(db: DB, workspaceId = "ws_lm64"): { networks: number; r
     }
     const head = network.headCommitId;
     if (!head) continue;
-    const done = db
-      .select({ id: runs.id })
-      .from(runs)
-      .where(and(eq(runs.commitId, head), eq(runs.state, "done")))
-      .get();
-    if (done) continue;
-    const result = elaborate(text);
-    if (!result.network) continue;
-    const id = newId("r");
-    db.insert(runs)
-      .values({
-        id,
-        commitId: head,
-        networkId: network.id,
-        workspaceId,
-        createdBy: demo.author,
-        pointsTotal: pointCount(result.network),
-        timeLimitMs: 10 * 60_000,
-      })
-      .run();
-    executeRun(id, {}, db);
+    if (doneRunOf(head, db)) continue;
+    if (!solveNow({ commitId: head, networkId: network.id, createdBy: demo.author, text }, db)) continue;
     addedRuns++;
   }
   return { networks: addedNetworks, runs: addedRuns };
+}
+
+/**
+ * Queues a run of the commit and executes it in this process, as the run
+ * worker would; returns its id, or null when the text does not elaborate.
+ */
+export function solveNow(
+  run: { commitId: string; networkId: string; createdBy: string; text: string },
+  db: DB,
+): string | null {
+  const net = elaborate(run.text).network;
+  if (!net) return null;
+  const { text: _text, ...rest } = run;
+  const id = insertRun({ ...rest, pointsTotal: pointCount(net), timeLimitMs: 10 * 60_000 }, db);
+  executeRun(id, {}, db);
+  return id;
 }

@@ -1,10 +1,10 @@
 import { and, inArray, isNotNull, isNull, sql } from "drizzle-orm";
-import { hashPasswordSync } from "../app/lib/passwords";
-import type { DB } from "./index";
-import { DEMO_PASSWORD, DEMO_USERS, DEMO_WORKSPACES } from "./demo";
-import { memberships, users, workspaces } from "./schema";
-import { seedWork } from "./seed-work";
-import { seedReview } from "./seed-review";
+import { DEMO_PASSWORD, DEMO_USERS, DEMO_WORKSPACES } from "@/app/lib/demo";
+import { hashPasswordSync } from "@/app/lib/passwords";
+import type { DB } from "@/db";
+import { memberships, users, workspaces } from "@/db/schema";
+import { seedWork } from "./work";
+import { seedReview } from "./review";
 
 export { DEMO_PASSWORD, DEMO_USERS, DEMO_WORKSPACES };
 
@@ -38,8 +38,8 @@ export function seedDemo(db: DB): { users: number; workspaces: number } {
       tx.insert(memberships).values({ workspaceId: "ws_lm64", userId: u.id, role: u.role }).onConflictDoNothing().run();
     }
   });
-  seedWork(db); // the workbench's demo networks, commits and finished runs (db/seed-work.ts)
-  seedReview(db); // the review demo: a thread with changes asked, the fix and its run, the sign-off (db/seed-review.ts)
+  seedWork(db); // the workbench's demo networks, commits and finished runs (scripts/seed/work.ts)
+  seedReview(db); // the review demo: a thread with changes asked, the fix and its run, the sign-off (scripts/seed/review.ts)
   const count = (t: typeof users | typeof workspaces) =>
     db
       .select({ n: sql<number>`count(*)` })

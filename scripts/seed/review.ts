@@ -3,33 +3,22 @@
  * divider, the reviewer asks for a change in a thread, the designer commits
  * the fix, runs it and links the new run in the thread, and the reviewer signs
  * the fix off. Plus a bench measurement of the LM-64 edge row (INVENTED
- * numbers, see db/demo-data/lm64-row-bench.csv) attached to its head commit. Idempotent: keyed by fixed ids; a second
+ * numbers, see scripts/seed/demo-data/lm64-row-bench.csv) attached to its head commit. Idempotent: keyed by fixed ids; a second
  * run changes nothing.
  */
 import fs from "node:fs";
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
 import { commitText, getCommit, networkBySlug, slugify } from "@/app/lib/networks";
-import { newId } from "@/db/ids";
-import { pointCount } from "@/src/solver/index";
-import { executeRun } from "@/app/lib/run-exec";
 import { saveMeasurement } from "@/app/lib/review/measurement-store";
-import { elaborate } from "@/src/lang/index";
-import type { DB } from "./index";
-import { comments, measurements, reviews, runs, threads } from "./schema";
+import { doneRunOf } from "@/app/lib/runs";
+import type { DB } from "@/db";
+import { newId } from "@/db/ids";
+import { comments, measurements, reviews, threads } from "@/db/schema";
+import { solveNow } from "./work";
 
 export const DEMO_THREAD_ID = "t_demo_divider_ratio";
 const BENCH_FILE = "lm64-row-bench.csv";
-
-function doneRun(db: DB, commitId: string): string | null {
-  return (
-    db
-      .select({ id: runs.id })
-      .from(runs)
-      .where(and(eq(runs.commitId, commitId), eq(runs.state, "done")))
-      .get()?.id ?? null
-  );
-}
 
 /** Seeds the demo review; returns whether it added the thread. */
 export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; measurement: boolean } {
@@ -41,7 +30,7 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
   const existing = db.select().from(threads).where(eq(threads.id, DEMO_THREAD_ID)).get();
   if (!existing) {
     const asked = getCommit(network.headCommitId, db)!;
-    const askedRun = doneRun(db, asked.id);
+    const askedRun = doneRunOf(asked.id, db);
     if (!askedRun || !/param dv = /.test(asked.text)) return { thread: false, measurement: false };
     const at = (minutesAgo: number) => new Date(Date.now() - minutesAgo * 60_000);
 
@@ -95,23 +84,7 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
       },
       db,
     );
-    const net = elaborate(text).network;
-    let fixRun: string | null = null;
-    if (net) {
-      fixRun = newId("r");
-      db.insert(runs)
-        .values({
-          id: fixRun,
-          commitId: fix.id,
-          networkId: network.id,
-          workspaceId,
-          createdBy: "u_designer1",
-          pointsTotal: pointCount(net),
-          timeLimitMs: 10 * 60_000,
-        })
-        .run();
-      executeRun(fixRun, {}, db);
-    }
+    const fixRun = solveNow({ commitId: fix.id, networkId: network.id, createdBy: "u_designer1", text }, db);
     db.insert(comments)
       .values({
         id: newId("c"),
@@ -152,7 +125,7 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
 
   // 4. Bench data of the signed-off revision (invented numbers).
   let addedMeasurement = false;
-  const file = path.resolve(/*turbopackIgnore: true*/ "db", "demo-data", BENCH_FILE);
+  const file = path.resolve(/*turbopackIgnore: true*/ "scripts", "seed", "demo-data", BENCH_FILE);
   const have = row
     ? db
         .select({ id: measurements.id })
