@@ -112,16 +112,23 @@ await waitRun(smallRun.json.run.id);
 const pageUrl = `/runs/${smallRun.json.run.id}`;
 const cookie = `runnel_session=${sessionId}`;
 
-/** Probes every 50 ms until `stop()` is true; latencies in ms. */
+const failures: string[] = [];
+server.on("exit", (code, signal) => console.error(`stall: the server exited (${code ?? signal})`));
+
+/** Probes every 50 ms until `stop()` is true; latencies in ms (a failed probe counts with its time, and is listed). */
 async function probe(done: () => boolean): Promise<number[]> {
   const out: number[] = [];
   let k = 0;
   while (!done()) {
     const t0 = performance.now();
     const url = k++ % 2 === 0 ? "/api/health" : pageUrl;
-    const res = await fetch(base + url, { headers: { cookie } });
-    await res.arrayBuffer();
-    if (!res.ok) throw new Error(`probe ${url}: ${res.status}`);
+    try {
+      const res = await fetch(base + url, { headers: { cookie } });
+      await res.arrayBuffer();
+      if (!res.ok) failures.push(`${url}: ${res.status}`);
+    } catch (e) {
+      failures.push(`${url}: ${(e as Error).message} ${String((e as { cause?: unknown }).cause ?? "")}`);
+    }
     const ms = performance.now() - t0;
     out.push(ms);
     await pause(Math.max(0, 50 - ms));
@@ -155,7 +162,12 @@ async function measure(workload: string, heavy: () => Promise<{ status: number |
   let finished = false;
   const probing = probe(() => finished);
   const t0 = performance.now();
-  const r = await heavy().finally(() => (finished = true));
+  const r = await heavy()
+    .catch((e: Error) => ({
+      status: `error: ${e.message} ${String((e as { cause?: unknown }).cause ?? "")}`,
+      detail: "",
+    }))
+    .finally(() => (finished = true));
   const seconds = (performance.now() - t0) / 1000;
   const lat = await probing;
   rows.push({
