@@ -14,6 +14,7 @@
  */
 import type { Role } from "@/db/schema";
 import { checkActionOrigin, checkOrigin, getActor } from "./auth";
+import { RequestError } from "./http";
 import { getCommit, getNetwork, type CommitRow, type NetworkRow } from "./networks";
 import {
   authenticated,
@@ -100,4 +101,22 @@ export function measurementAccess(
   const a = authenticated(actor);
   const measurement = found(getMeasurement(id));
   return { actor: a, role: authorize(a, action, measurement.workspaceId), measurement };
+}
+
+/**
+ * Two commits compared (workspace.read on each, checked on its own so a commit
+ * of a workspace the actor is not in stays a 404); 422 when they belong to
+ * different networks.
+ */
+export function commitPairAccess(
+  actor: Actor | null,
+  action: Action,
+  fromId: string,
+  toId: string,
+): Allowed & { from: CommitRow; to: CommitRow; network: NetworkRow } {
+  const a = commitAccess(actor, action, fromId);
+  const b = commitAccess(actor, action, toId);
+  if (a.commit.networkId !== b.commit.networkId)
+    throw new RequestError(422, "from and to must be commits of the same network");
+  return { actor: a.actor, role: a.role, from: a.commit, to: b.commit, network: a.network };
 }

@@ -205,6 +205,10 @@ const ROUTES: RouteRow[] = [
                                                                                                                                                 expect: [401, 404, 200, 200, 200, 200] },
   // review: comparisons, threads, verdicts, measurements
   { file: "app/api/compare/route.ts",                   method: "GET",    url: "/api/compare?from={fromId}&to={toId}", setup: withReview,    expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/compare/entities/route.ts",          method: "GET",    url: "/api/compare/entities?from={fromId}&to={toId}&analysis=sweep%20iin&kind=node&quantity=voltage", setup: withReview,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/compare/series/route.ts",            method: "GET",    url: "/api/compare/series?from={fromId}&to={toId}&analysis=sweep%20iin", setup: withReview,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/threads/route.ts",                   method: "GET",    url: "/api/threads?networkId={networkId}", setup: withReview,      expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/threads/route.ts",                   method: "POST",   url: "/api/threads", setup: withReview, body: { commitId: "{toId}", runId: "{runId}", title: "ratio", body: "Is 1:2 intended?" },
                                                                                                                                                 expect: [401, 404, 403, 201, 201, 201] },

@@ -12,6 +12,7 @@ import { db } from "@/db";
 import { runPoints, runs } from "@/db/schema";
 import type { Q } from "@/db";
 import { pointKey, type AnalysisTable, type ResultColumn } from "./results-diff";
+import type { RunSource } from "./sweep-compare";
 
 /** The parts of a run's layout (app/lib/results.ts RunLayout) this module reads. */
 export interface LayoutNames {
@@ -22,6 +23,9 @@ export interface LayoutNames {
   params: string[];
   sweeps: { param: string; values: number[] }[];
   mismatch: { runs: number } | null;
+  /** Unit symbols from the unit checker (absent in older runs): app/lib/results.ts RunLayout. */
+  probeUnits?: (string | null)[];
+  paramUnits?: (string | null)[];
 }
 
 export function parseLayout(json: string | null): LayoutNames | null {
@@ -186,4 +190,80 @@ export function keyProbes(
     });
     return { name, first, min: rows.length ? min : NaN, max: rows.length ? max : NaN };
   });
+}
+
+/**
+ * A stored run as a comparison source (sweep-compare.ts `RunSource`): the
+ * point list is read at once, each point's blobs only when asked for, so a
+ * comparison of two runs of a big grid never holds either run whole. Null
+ * before the run has a layout.
+ */
+export function runSource(runId: string, d: Q = db()): RunSource | null {
+  const layout = runLayout(runId, d);
+  if (!layout) return null;
+  const stored = Int32Array.from(
+    d
+      .select({ point: runPoints.point })
+      .from(runPoints)
+      .where(eq(runPoints.runId, runId))
+      .orderBy(asc(runPoints.point))
+      .all(),
+    (r) => r.point,
+  );
+  const columns: RunSource["columns"] = [
+    { kind: "node", quantity: "voltage", names: layout.nodes },
+    { kind: "rail", quantity: "current", names: layout.rails },
+    { kind: "device", quantity: "current", names: layout.devices },
+    { kind: "device", quantity: "ic", names: layout.devices },
+    { kind: "probe", quantity: "value", names: layout.probes },
+  ];
+  return {
+    id: runId,
+    analysis: analysisName(layout),
+    layout,
+    stored,
+    keys: Array.from(stored, (k) => storedPointKey(layout, k)),
+    columns,
+    read(i) {
+      const r = d
+        .select({
+          nodes: runPoints.nodes,
+          rails: runPoints.rails,
+          current: runPoints.current,
+          ic: runPoints.ic,
+          probes: runPoints.probes,
+        })
+        .from(runPoints)
+        .where(and(eq(runPoints.runId, runId), eq(runPoints.point, stored[i])))
+        .get();
+      if (!r) return columns.map((c) => new Float64Array(c.names.length).fill(NaN));
+      return [
+        floats(r.nodes, Float64Array),
+        floats(r.rails, Float64Array),
+        floats(r.current, Float64Array),
+        floats(r.ic, Float32Array),
+        floats(r.probes, Float64Array),
+      ];
+    },
+  };
+}
+
+/** The probe values of every stored point of a run (small columns only), by probe: what overlays draw. */
+export function probeColumns(
+  runId: string,
+  probes: number,
+  d: Q = db(),
+): { stored: Int32Array; values: Float64Array[] } {
+  const rows = d
+    .select({ point: runPoints.point, probes: runPoints.probes })
+    .from(runPoints)
+    .where(eq(runPoints.runId, runId))
+    .orderBy(asc(runPoints.point))
+    .all();
+  const values = Array.from({ length: probes }, () => new Float64Array(rows.length));
+  rows.forEach((r, i) => {
+    const f = floats(r.probes, Float64Array);
+    for (let j = 0; j < probes; j++) values[j][i] = j < f.length ? f[j] : NaN;
+  });
+  return { stored: Int32Array.from(rows, (r) => r.point), values };
 }

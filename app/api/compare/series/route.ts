@@ -1,0 +1,29 @@
+import { z } from "zod";
+import { commitPairAccess, requestActor } from "@/app/lib/access";
+import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
+import { comparisonSeries } from "@/app/lib/review/compare-data";
+
+export const dynamic = "force-dynamic";
+
+const Query = z.object({
+  from: z.string().min(1, "name the older commit"),
+  to: z.string().min(1, "name the newer commit"),
+  analysis: z.string().min(1, "name the analysis"),
+  grid: z.coerce.number().int().min(0).max(20_000).optional(),
+});
+
+/**
+ * GET /api/compare/series?from=C1&to=C2&analysis=A[&grid=G] (workspace.read):
+ * both runs' probe values at every point (the overlay plots), the relative
+ * change per matched point, and for Monte Carlo runs the distributions of the
+ * samples at grid point G with the two-sample Kolmogorov–Smirnov test.
+ */
+export function GET(request: Request) {
+  return handle(async () => {
+    const q = parseInput(Query, queryOf(request));
+    const { from, to } = commitPairAccess(await requestActor(request), "workspace.read", q.from, q.to);
+    const s = comparisonSeries(from.id, to.id, q.analysis, q.grid ?? 0);
+    if (!s) throw new RequestError(404, `"${q.analysis}" has no finished run in both commits`);
+    return Response.json(s);
+  });
+}
