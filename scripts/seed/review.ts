@@ -18,7 +18,88 @@ import { comments, measurements, reviews, threads } from "@/db/schema";
 import { solveNow } from "./work";
 
 export const DEMO_THREAD_ID = "t_demo_divider_ratio";
+export const DEMO_SWEEP_THREAD_ID = "t_demo_sweep_output_gate";
+export const DEMO_SPREAD_THREAD_ID = "t_demo_mismatch_area";
 const BENCH_FILE = "lm64-row-bench.csv";
+
+/** Commits `edit` of a network's head and runs it to the end in-process; returns the commit and run ids. */
+function commitAndRun(
+  db: DB,
+  networkId: string,
+  headId: string,
+  edit: (text: string) => string,
+  message: string,
+  authorId: string,
+): { commitId: string; runId: string } | null {
+  const head = getCommit(headId, db)!;
+  const text = edit(head.text);
+  if (text === head.text) return null;
+  const c = commitText({ networkId, parentId: head.id, text, message, authorId }, db);
+  const runId = solveNow({ commitId: c.id, networkId, createdBy: authorId, text }, db);
+  return runId ? { commitId: c.id, runId } : null;
+}
+
+/**
+ * Two review threads that open on a comparison (invented): the bias sweep with
+ * its output gate raised (overlays of two 2-D sweeps), and the mismatch study
+ * with devices four times the area (two Monte Carlo runs compared as
+ * distributions; Pelgrom's law halves σ). Idempotent by thread id.
+ */
+function seedComparisons(db: DB, workspaceId: string): void {
+  const at = (minutesAgo: number) => new Date(Date.now() - minutesAgo * 60_000);
+  const cases = [
+    {
+      thread: DEMO_SWEEP_THREAD_ID,
+      network: "Bias sweep",
+      edit: (t: string) => t.replace(/param vv = [^\n#]+/, "param vv = 0.68"),
+      message: "Output gate 0.68 V: more headroom for the readout",
+      author: "u_designer1",
+      title: "Does the higher output gate change the spread along vh?",
+      body: (run: string) =>
+        `@reviewer I raised the output gate from 0.65 V to 0.68 V. The compare page overlays both sweeps per probe; \`peak\` and \`spread\` should not move, since the output devices only read the nodes. Run: [[run ${run}]]`,
+    },
+    {
+      thread: DEMO_SPREAD_THREAD_ID,
+      network: "Divider mismatch study",
+      edit: (t: string) => t.replace(/param wl = [^\n#]+/, "param wl = 4u"),
+      message: "Devices 4u × 4u: four times the area against threshold mismatch",
+      author: "u_designer2",
+      title: "Spread of the split after quadrupling the area",
+      body: (run: string) =>
+        `@reviewer Pelgrom's law says σ(ΔVt) ∝ 1/√(WL), so four times the area should halve the spread of \`lnratio\`. The compare page has both distributions with a two-sample Kolmogorov–Smirnov test. Run: [[run ${run}]]`,
+    },
+  ];
+  for (const c of cases) {
+    if (db.select({ id: threads.id }).from(threads).where(eq(threads.id, c.thread)).get()) continue;
+    const network = networkBySlug(workspaceId, slugify(c.network), db);
+    if (!network?.headCommitId || !doneRunOf(network.headCommitId, db)) continue;
+    const made = commitAndRun(db, network.id, network.headCommitId, c.edit, c.message, c.author);
+    if (!made) continue;
+    db.insert(threads)
+      .values({
+        id: c.thread,
+        workspaceId,
+        networkId: network.id,
+        commitId: made.commitId,
+        runId: made.runId,
+        title: c.title,
+        createdBy: c.author,
+        createdAt: at(20),
+        updatedAt: at(20),
+      })
+      .run();
+    db.insert(comments)
+      .values({
+        id: newId("c"),
+        threadId: c.thread,
+        workspaceId,
+        authorId: c.author,
+        createdAt: at(20),
+        body: c.body(made.runId),
+      })
+      .run();
+  }
+}
 
 /** Seeds the demo review; returns whether it added the thread. */
 export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; measurement: boolean } {
@@ -122,6 +203,8 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
       .run();
     addedThread = true;
   }
+
+  seedComparisons(db, workspaceId);
 
   // 4. Bench data of the signed-off revision (invented numbers).
   let addedMeasurement = false;

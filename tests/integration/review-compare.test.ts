@@ -70,7 +70,9 @@ describe("sweep-aware comparison", () => {
     const byName = comparisonPage(h.first.id, h.second.id, "sweep iin", "rail", "current", { sort: "name" }, h.db)!;
     expect(byName.rows.map((r) => r.name)).toEqual(["gnd", "vdd", "vg"]);
     // a page past the end is the last page; an unknown analysis is null
-    expect(comparisonPage(h.first.id, h.second.id, "sweep iin", "node", "voltage", { size: 2, page: 99 }, h.db)!.page).toBe(2);
+    expect(
+      comparisonPage(h.first.id, h.second.id, "sweep iin", "node", "voltage", { size: 2, page: 99 }, h.db)!.page,
+    ).toBe(2);
     expect(comparisonPage(h.first.id, h.second.id, "nope", "node", "voltage", {}, h.db)).toBeNull();
   });
 

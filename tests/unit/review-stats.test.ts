@@ -71,7 +71,8 @@ describe("two-sample Kolmogorov–Smirnov test", () => {
     const n = 3;
     const m = 3;
     const orders: number[][] = [];
-    for (let mask = 0; mask < 64; mask++) if (popcount(mask) === n) orders.push([...Array(6)].map((_, i) => (mask >> i) & 1));
+    for (let mask = 0; mask < 64; mask++)
+      if (popcount(mask) === n) orders.push([...Array(6)].map((_, i) => (mask >> i) & 1));
     const dnmOf = (o: number[]) => {
       let i = 0;
       let j = 0;

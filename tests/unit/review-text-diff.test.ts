@@ -18,11 +18,17 @@ describe("text diff", () => {
       ["same", 3, 3],
     ]);
     expect(d.sideBySide).toHaveLength(3);
-    expect(d.sideBySide[1]).toEqual({
+    expect(d.sideBySide[1]).toMatchObject({
       kind: "changed",
       left: { line: 2, text: "nfet m1 gate=vg source=x drain=vdd w=1u", kind: "removed" },
       right: { line: 2, text: "nfet m1 gate=vg source=x drain=vdd w=2u", kind: "added" },
     });
+    // Within the line, only the changed token is marked; the pieces join back to the line.
+    const changed = (m: { text: string; changed: boolean }[]) => m.filter((x) => x.changed).map((x) => x.text);
+    expect(changed(d.sideBySide[1].left!.marks!)).toEqual(["1u"]);
+    expect(changed(d.sideBySide[1].right!.marks!)).toEqual(["2u"]);
+    expect(d.sideBySide[1].right!.marks!.map((m) => m.text).join("")).toBe(d.sideBySide[1].right!.text);
+    expect(changed(d.unified[2].marks!)).toEqual(["2u"]);
   });
 
   it("folds long unchanged runs into gaps that count the hidden lines", () => {
@@ -41,6 +47,14 @@ describe("text diff", () => {
     expect(d.sideBySide.map((r) => r.kind)).toEqual(["same", "changed", "added", "added", "same"]);
     expect(diffText("", "x\n").unified).toEqual([{ kind: "added", oldLine: null, newLine: 1, text: "x" }]);
     expect(diffText("same\n", "same\n").added).toBe(0);
+  });
+
+  it("marks nothing within lines that have no partner, or are too long to mark", () => {
+    const d = diffText("a\n", "a\nnew line\n");
+    expect(d.unified[1].marks).toBeUndefined();
+    const long = "x".repeat(5000);
+    const e = diffText(`${long}1\n`, `${long}2\n`);
+    expect(e.sideBySide[0].left!.marks).toBeUndefined();
   });
 
   it("gives up line-by-line beyond maxEdit and shows a whole replacement", () => {

@@ -9,8 +9,22 @@
  * - When the edit distance exceeds `maxEdit` lines, the diff is the whole old
  *   text removed and the whole new text added (`complete: false`), so a huge
  *   rewrite cannot stall the server.
+ * - A removed line paired with the added line that replaces it (the k-th line
+ *   of a removed block with the k-th of the added block after it) carries
+ *   `marks`: the line cut into pieces, each flagged when it changed (jsdiff's
+ *   word diff, whitespace kept). Joining the pieces gives the line back. Lines
+ *   longer than MARK_LIMIT characters are not marked (the whole line counts).
  */
-import { createTwoFilesPatch, diffLines, type Change } from "diff";
+import { createTwoFilesPatch, diffLines, diffWordsWithSpace, type Change } from "diff";
+
+/** A piece of a changed line; `changed` when it differs from the paired line. */
+export interface Mark {
+  text: string;
+  changed: boolean;
+}
+
+/** Longest line whose changes are marked within the line. */
+export const MARK_LIMIT = 4000;
 
 export type LineKind = "same" | "added" | "removed";
 
@@ -22,12 +36,15 @@ export interface UnifiedRow {
   text: string;
   /** For a gap: how many unchanged lines it hides. */
   hidden?: number;
+  /** For a paired removed or added line: its pieces, changed ones flagged (see the invariants). */
+  marks?: Mark[];
 }
 
 export interface SideCell {
   line: number;
   text: string;
   kind: LineKind;
+  marks?: Mark[];
 }
 
 export interface SideRow {
@@ -89,8 +106,32 @@ export function diffText(oldText: string, newText: string, options: TextDiffOpti
     }
   }
 
+  markPairs(flat);
   const unified = fold(flat, context);
   return { added, removed, unified, sideBySide: pairSides(unified), complete };
+}
+
+/** Marks, within each removed line paired with an added one, the pieces that changed (see the invariants). */
+function markPairs(flat: UnifiedRow[]): void {
+  let i = 0;
+  while (i < flat.length) {
+    if (flat[i].kind !== "removed") {
+      i++;
+      continue;
+    }
+    const start = i;
+    while (i < flat.length && flat[i].kind === "removed") i++;
+    const mid = i;
+    while (i < flat.length && flat[i].kind === "added") i++;
+    for (let k = 0; k < Math.min(mid - start, i - mid); k++) {
+      const was = flat[start + k];
+      const now = flat[mid + k];
+      if (was.text.length > MARK_LIMIT || now.text.length > MARK_LIMIT) continue;
+      const parts = diffWordsWithSpace(was.text, now.text);
+      was.marks = parts.filter((p) => !p.added).map((p) => ({ text: p.value, changed: !!p.removed }));
+      now.marks = parts.filter((p) => !p.removed).map((p) => ({ text: p.value, changed: !!p.added }));
+    }
+  }
 }
 
 /** Folds long unchanged runs into gap rows, keeping `context` lines next to each change. */
@@ -145,8 +186,8 @@ function pairSides(rows: UnifiedRow[]): SideRow[] {
         const a = adds[k];
         out.push({
           kind: d && a ? "changed" : d ? "removed" : "added",
-          left: d ? { line: d.oldLine!, text: d.text, kind: "removed" } : null,
-          right: a ? { line: a.newLine!, text: a.text, kind: "added" } : null,
+          left: d ? { line: d.oldLine!, text: d.text, kind: "removed", ...(d.marks ? { marks: d.marks } : {}) } : null,
+          right: a ? { line: a.newLine!, text: a.text, kind: "added", ...(a.marks ? { marks: a.marks } : {}) } : null,
         });
       }
     }

@@ -1,4 +1,4 @@
-/** The compare page's form (GET): which two commits, the tolerances, whether to list values within tolerance. */
+/** The compare page's form (GET): which two commits, and the tolerances. */
 import type { CommitSummary } from "@/app/lib/networks";
 import { DEFAULT_TOLERANCE } from "@/app/lib/review/results-diff";
 
@@ -10,13 +10,12 @@ export interface ComparisonFormProps {
   toId: string | null;
   /** The query as the page received it (tolerance fields keep what was typed). */
   query: Record<string, string | undefined>;
-  showAll: boolean;
   view: "side" | "unified";
 }
 
 const short = (id: string) => id.slice(0, 10);
 
-export function ComparisonForm({ action, history, fromId, toId, query, showAll, view }: ComparisonFormProps) {
+export function ComparisonForm({ action, history, fromId, toId, query, view }: ComparisonFormProps) {
   return (
     <form
       method="get"
@@ -70,9 +69,6 @@ export function ComparisonForm({ action, history, fromId, toId, query, showAll, 
           placeholder={String(DEFAULT_TOLERANCE.absVoltage)}
           className="w-24 rounded border border-stone-300 px-2 py-1 font-mono"
         />
-      </label>
-      <label className="flex items-center gap-1">
-        <input type="checkbox" name="all" value="1" defaultChecked={showAll} /> show values within tolerance
       </label>
       <input type="hidden" name="view" value={view} />
       <button type="submit" className="rounded bg-moss-600 px-3 py-1 text-white hover:bg-moss-700">

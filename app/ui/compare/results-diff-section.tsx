@@ -1,26 +1,37 @@
-/** The compare page's results section: runs compared, how many values moved, what was added or removed, the rows. */
+/** The compare page's results: per matched analysis, what moved (summaries, overlays, tables by kind). */
 import { formatEng } from "@/app/lib/format";
+import type { AnalysisSummary } from "@/app/lib/review/compare-data";
 import type { Comparison } from "@/app/lib/review/diffs";
 import { AddedRemoved } from "./added-removed";
-import { ComparedRuns } from "./compared-runs";
-import { ResultsTable } from "./results-table";
+import { AnalysisComparison } from "./analysis-comparison";
 
-export function ResultsDiffSection({ comparison }: { comparison: Comparison }) {
+export interface ResultsDiffSectionProps {
+  comparison: Comparison;
+  analyses: AnalysisSummary[];
+  query: Record<string, string>;
+}
+
+export function ResultsDiffSection({ comparison, analyses, query }: ResultsDiffSectionProps) {
   const results = comparison.results;
+  const labels: [string, string] = [
+    `before ${comparison.from.id.slice(0, 7)}`,
+    `after ${comparison.to.id.slice(0, 7)}`,
+  ];
   return (
-    <section aria-labelledby="results-diff" className="space-y-2">
+    <section aria-labelledby="results-diff" className="space-y-3">
       <h2 id="results-diff" className="text-lg font-semibold">
         Results
       </h2>
-      <ComparedRuns runs={comparison.runs} />
       <p className="text-sm" data-testid="moved-summary">
         <strong>{results.beyond.toLocaleString("en-US")}</strong> of {results.compared.toLocaleString("en-US")} values
         moved beyond tolerance (relative {results.tolerance.rel}, currents{" "}
         {formatEng(results.tolerance.absCurrent, "A")}, voltages {formatEng(results.tolerance.absVoltage, "V")}).
-        {results.truncated ? " Only the first 2000 rows are listed." : ""}
       </p>
       <AddedRemoved results={results} />
-      {results.rows.length ? <ResultsTable rows={results.rows} /> : null}
+      {analyses.length === 0 ? <p className="text-sm text-stone-600">Neither commit has a finished run.</p> : null}
+      {analyses.map((a) => (
+        <AnalysisComparison key={a.analysis} summary={a} query={query} labels={labels} />
+      ))}
       <p role="note" className="text-xs text-stone-500">
         Results are model estimates: silicon must be verified by measurement, and a foundry&apos;s models and design
         rules take precedence.

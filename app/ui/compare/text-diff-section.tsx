@@ -1,4 +1,4 @@
-/** The compare page's text section: lines added and removed, a link to switch the view, and the diff. */
+/** The compare page's text section: how many lines went and came, a link to switch the view, and the diff. */
 import Link from "next/link";
 import type { TextDiff } from "@/app/lib/review/text-diff";
 import { SideBySideDiff } from "./side-by-side-diff";
@@ -7,31 +7,39 @@ import { UnifiedDiff } from "./unified-diff";
 export interface TextDiffSectionProps {
   text: TextDiff;
   view: "side" | "unified";
-  /** Where the "Unified view" / "Side-by-side view" link goes (the same comparison in the other view). */
+  /** Where the "One column" / "Facing columns" link goes (the same comparison in the other view). */
   otherViewHref: string;
+  /** Headings of the two columns (older, newer). */
+  labels: [string, string];
 }
 
-export function TextDiffSection({ text, view, otherViewHref }: TextDiffSectionProps) {
+export function TextDiffSection({ text, view, otherViewHref, labels }: TextDiffSectionProps) {
   return (
     <section aria-labelledby="text-diff" className="space-y-2">
       <div className="flex items-baseline gap-4">
         <h2 id="text-diff" className="text-lg font-semibold">
           Text
         </h2>
-        <span className="text-sm text-stone-600">
-          <span className="text-moss-700">+{text.added}</span> <span className="text-ember-500">−{text.removed}</span>{" "}
-          lines
+        <span className="text-sm text-stone-600" data-testid="text-counts">
+          {text.removed} {text.removed === 1 ? "line" : "lines"} went, {text.added} came
         </span>
         <span className="flex-1" />
-        <Link href={otherViewHref} className="text-sm text-moss-700 hover:underline">
-          {view === "side" ? "Unified view" : "Side-by-side view"}
-        </Link>
+        <span className="text-sm text-stone-600">
+          {view === "side" ? "facing columns" : "one column"} ·{" "}
+          <Link href={otherViewHref} className="text-moss-700 hover:underline">
+            {view === "side" ? "show in one column" : "show in facing columns"}
+          </Link>
+        </span>
       </div>
       {!text.complete ? (
         <p className="text-sm text-amber-800">The texts differ too much to pair lines; shown as a whole replacement.</p>
       ) : null}
       <div className="overflow-x-auto rounded border border-stone-300 bg-white font-mono text-xs">
-        {view === "unified" ? <UnifiedDiff rows={text.unified} /> : <SideBySideDiff rows={text.sideBySide} />}
+        {view === "unified" ? (
+          <UnifiedDiff rows={text.unified} />
+        ) : (
+          <SideBySideDiff rows={text.sideBySide} labels={labels} />
+        )}
       </div>
     </section>
   );

@@ -1,28 +1,41 @@
 import type { UnifiedRow } from "@/app/lib/review/text-diff";
+import { KeptLines, LineMarks } from "./line-marks";
 
-/** A text diff as one column: old and new line numbers, then the line marked +, − or blank; gaps of unchanged lines folded. */
+/**
+ * A text diff in one column: each line once, with its line numbers before and
+ * after; a line that changed reads "was" then "now", the changed words marked
+ * within the line. Long lines wrap, so a change is never off to the side.
+ */
 export function UnifiedDiff({ rows }: { rows: UnifiedRow[] }) {
   return (
-    <table className="w-full border-collapse" aria-label="Unified diff">
+    <table className="w-full table-fixed border-collapse" aria-label="One-column diff">
+      <colgroup>
+        <col className="w-10" />
+        <col className="w-10" />
+        <col className="w-11" />
+        <col />
+      </colgroup>
       <tbody>
         {rows.map((r, i) =>
           r.kind === "gap" ? (
-            <tr key={i} className="bg-stone-50 text-stone-500">
-              <td colSpan={3} className="px-2 py-0.5">
-                ⋯ {r.hidden} unchanged lines
-              </td>
-            </tr>
+            <KeptLines key={i} hidden={r.hidden} columns={4} />
           ) : (
-            <tr
-              key={i}
-              data-line={r.kind}
-              className={r.kind === "added" ? "bg-moss-50" : r.kind === "removed" ? "bg-ember-50" : ""}
-            >
-              <td className="w-10 select-none px-1 text-right text-stone-400">{r.oldLine ?? ""}</td>
-              <td className="w-10 select-none px-1 text-right text-stone-400">{r.newLine ?? ""}</td>
-              <td className="whitespace-pre px-2">
-                {r.kind === "added" ? "+ " : r.kind === "removed" ? "− " : "  "}
-                {r.text}
+            <tr key={i} data-line={r.kind} className={r.kind === "same" ? "" : "bg-stone-50"}>
+              <td className="select-none px-1 text-right align-top text-stone-400">{r.oldLine ?? ""}</td>
+              <td className="select-none px-1 text-right align-top text-stone-400">{r.newLine ?? ""}</td>
+              <td
+                className={`select-none border-l-4 px-1 align-top text-[10px] uppercase tracking-wider ${
+                  r.kind === "removed"
+                    ? "border-ember-500 text-ember-700"
+                    : r.kind === "added"
+                      ? "border-moss-500 text-moss-700"
+                      : "border-transparent"
+                }`}
+              >
+                {r.kind === "removed" ? "was" : r.kind === "added" ? "now" : ""}
+              </td>
+              <td className={`whitespace-pre-wrap break-all px-2 ${r.kind === "removed" ? "text-stone-600" : ""}`}>
+                <LineMarks text={r.text} marks={r.marks} side={r.kind === "removed" ? "was" : "now"} />
               </td>
             </tr>
           ),

@@ -149,7 +149,15 @@ export function CommentForm({
 }
 
 /** Opens a thread on a commit (optionally pinned to a run); goes to the new thread's permalink. */
-export function NewThreadForm({ commitId, runs }: { commitId: string; runs: { id: string; label: string }[] }) {
+export function NewThreadForm({
+  commitId,
+  runs,
+}: {
+  commitId: string;
+  runs: { id: string; label: string }[];
+  /** Members who may be mentioned (handle and name). */
+  members?: { handle: string; name: string }[];
+}) {
   const router = useRouter();
   const [title, setTitle] = useState("");
   const [body, setBody] = useState("");

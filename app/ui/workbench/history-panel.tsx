@@ -3,18 +3,21 @@
 import type { CommitSummary } from "@/app/lib/networks";
 import { HistoryReview } from "./history-review";
 
-/** The network's commits, newest first, with their review badges; choosing one opens it. */
+/** The network's commits, newest first, with their review badges; choosing one opens it; each links to its review. */
 
 export function HistoryPanel({
   commits,
   headId,
   selectedId,
   onOpen,
+  reviewHref,
 }: {
   commits: CommitSummary[];
   headId: string | null;
   selectedId: string | null;
   onOpen(id: string): void;
+  /** Where a commit's review starts (its compare page, review block at the top). */
+  reviewHref?(id: string): string;
 }) {
   return (
     <section aria-labelledby="history-heading" className="space-y-2">
@@ -54,6 +57,15 @@ export function HistoryPanel({
                 </span>
                 <HistoryReview commitId={c.id} />
               </button>
+              {reviewHref ? (
+                <a
+                  href={reviewHref(c.id)}
+                  data-review-link={c.id}
+                  className="block px-3 pb-1.5 text-right text-xs text-moss-700 hover:underline"
+                >
+                  review this commit ›
+                </a>
+              ) : null}
             </li>
           ))}
         </ol>

@@ -321,7 +321,13 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
         ) : null}
       </div>
       <aside className="space-y-6">
-        <HistoryPanel commits={commits} headId={headId} selectedId={selectedId} onOpen={open} />
+        <HistoryPanel
+          commits={commits}
+          headId={headId}
+          selectedId={selectedId}
+          onOpen={open}
+          reviewHref={(id) => `/w/${workspaceSlug}/n/${network.slug}/compare?to=${id}&thread=new#review`}
+        />
         <RunsPanel runs={runs.data?.runs} commitId={selectedId} onCanceled={() => void runs.mutate()} canRun={canRun} />
         {commits.length > 1 ? (
           <Link

@@ -4,9 +4,11 @@ import { notFound } from "next/navigation";
 import { RequestError } from "@/app/lib/http";
 import { getCommit, listCommits, networkBySlug } from "@/app/lib/networks";
 import { workspacePage } from "@/app/lib/pages";
+import { analysisSummaries, type AnalysisSummary } from "@/app/lib/review/compare-data";
 import { commitBadges, compareCommits, type Comparison } from "@/app/lib/review/diffs";
 import { runsOfCommit } from "@/app/lib/review/run-tables";
-import { listThreads } from "@/app/lib/review/threads";
+import { handleOf, listThreads } from "@/app/lib/review/threads";
+import { listMembers } from "@/app/lib/members";
 import { CommitHistory } from "@/app/ui/compare/commit-history";
 import { CommitThreads } from "@/app/ui/compare/commit-threads";
 import { ComparisonForm } from "@/app/ui/compare/comparison-form";
@@ -45,13 +47,14 @@ export default async function ComparePage({ params, searchParams }: Props) {
     absProbe: num(q.absProbe),
   };
   const tol = Object.fromEntries(Object.entries(tolerance).filter(([, v]) => v !== undefined));
-  const all = q.all === "1";
   const view = q.view === "unified" ? "unified" : "side";
   let cmp: Comparison | null = null;
+  let analyses: AnalysisSummary[] = [];
   let problem: string | null = null;
   if (from && to) {
     try {
-      cmp = compareCommits(from.id, to.id, { tolerance: tol, includeWithin: all, limit: 2000 });
+      cmp = compareCommits(from.id, to.id, { tolerance: tol, limit: 0 });
+      analyses = analysisSummaries(from.id, to.id, tol);
     } catch (e) {
       if (e instanceof RequestError) problem = e.message;
       else throw e;
@@ -91,9 +94,21 @@ export default async function ComparePage({ params, searchParams }: Props) {
         fromId={from?.id ?? null}
         toId={to?.id ?? null}
         query={q}
-        showAll={all}
         view={view}
       />
+
+      {to ? (
+        <CommitThreads
+          commitId={to.id}
+          message={to.message}
+          review={badges.get(to.id)?.review ?? "open"}
+          threads={threads}
+          runs={toRuns}
+          canComment={can("thread.comment")}
+          members={listMembers(workspace.id).map((m) => ({ handle: handleOf(m.email), name: m.name }))}
+          startOpen={q.thread === "new"}
+        />
+      ) : null}
 
       {history.length === 0 ? <p className="text-stone-600">This network has no commits yet.</p> : null}
       {problem ? (
@@ -108,13 +123,22 @@ export default async function ComparePage({ params, searchParams }: Props) {
 
       {cmp ? (
         <>
-          <TextDiffSection text={cmp.text} view={view} otherViewHref={otherViewHref} />
-          <ResultsDiffSection comparison={cmp} />
+          <TextDiffSection
+            text={cmp.text}
+            view={view}
+            otherViewHref={otherViewHref}
+            labels={[`before · ${short(cmp.from.id)}`, `after · ${short(cmp.to.id)}`]}
+          />
+          <ResultsDiffSection
+            comparison={cmp}
+            analyses={analyses}
+            query={{
+              from: cmp.from.id,
+              to: cmp.to.id,
+              ...(Object.fromEntries(Object.entries(tol).map(([k, v]) => [k, String(v)])) as Record<string, string>),
+            }}
+          />
         </>
-      ) : null}
-
-      {to ? (
-        <CommitThreads commitId={to.id} threads={threads} runs={toRuns} canComment={can("thread.comment")} />
       ) : null}
 
       <CommitHistory history={history} badges={badges} comparePath={path} />
