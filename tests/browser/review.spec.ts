@@ -48,16 +48,18 @@ test("a reviewer opens a thread from its link, follows the run card, compares tw
   // the thread is on the commit the reviewer questioned; the header links the comparison with the fix
   await page.getByRole("link", { name: /^Compare \w+ → \w+$/ }).click();
   await expect(page).toHaveURL(/\/compare\?from=.*&to=/);
-  const fixRunCompare = page.getByRole("table", { name: "Side-by-side diff" });
-  await expect(fixRunCompare.locator('[data-line="changed"]')).toContainText("26mV");
+  const facing = page.getByRole("table", { name: "Facing-columns diff" });
+  // the changed token is marked within the line, on both sides
+  await expect(facing.locator('[data-line="changed"] mark[data-mark="now"]')).toHaveText("26mV");
+  await expect(facing.locator('[data-line="changed"] mark[data-mark="was"]')).toContainText("20mV");
   await expect(page.getByTestId("moved-summary")).toContainText("values moved beyond tolerance");
-  const ratioRow = page
-    .getByRole("table", { name: "Results diff" })
-    .locator('tr[data-beyond="1"]', { hasText: "ratio" })
-    .first();
-  await expect(ratioRow).toBeVisible();
-  await page.getByRole("link", { name: "Unified view" }).click();
-  await expect(page.getByRole("table", { name: "Unified diff" }).locator('[data-line="added"]')).toContainText("26mV");
+  // the per-probe summary lists the ratio as moved, with where it moved most
+  const ratioRow = page.getByTestId("probe-summary").locator('tr[data-probe="ratio"]');
+  await expect(ratioRow).toHaveAttribute("data-moved", "1");
+  await page.getByRole("link", { name: "show in one column" }).click();
+  await expect(page.getByRole("table", { name: "One-column diff" }).locator('[data-line="added"]')).toContainText(
+    "26mV",
+  );
   await shot(page, "compare");
 
   // back to the thread, sign off the fix with a comment

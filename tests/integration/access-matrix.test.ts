@@ -209,6 +209,8 @@ const ROUTES: RouteRow[] = [
                                                                                                                                                 expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/compare/series/route.ts",            method: "GET",    url: "/api/compare/series?from={fromId}&to={toId}&analysis=sweep%20iin", setup: withReview,
                                                                                                                                                 expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/comments/preview/route.ts",          method: "POST",   url: "/api/comments/preview", setup: withReview, body: { threadId: "{threadId}", body: "see [[run {runId}]], @ruth" },
+                                                                                                                                                expect: [401, 404, 403, 200, 200, 200] },
   { file: "app/api/threads/route.ts",                   method: "GET",    url: "/api/threads?networkId={networkId}", setup: withReview,      expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/threads/route.ts",                   method: "POST",   url: "/api/threads", setup: withReview, body: { commitId: "{toId}", runId: "{runId}", title: "ratio", body: "Is 1:2 intended?" },
                                                                                                                                                 expect: [401, 404, 403, 201, 201, 201] },

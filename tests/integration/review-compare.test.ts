@@ -10,7 +10,7 @@
  * exp(−1.8 V/U_T) is negligible) [derived]. Node y, m3 and the rails stay.
  */
 import { afterEach, describe, expect, it } from "vitest";
-import { seedDemo } from "@/db/seed";
+import { seedDemo } from "@/scripts/seed/index";
 import { analysisSummaries, comparisonPage, comparisonSeries } from "@/app/lib/review/compare-data";
 import { freshDatabase } from "../helpers/db";
 import { dividerHistory, SWEEP } from "../helpers/review-fixtures";

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { commitAccess, networkAccess, requestActor } from "@/app/lib/access";
+import { publicBaseUrl } from "@/app/lib/auth";
 import { handle, parseInput, queryOf, readJson } from "@/app/lib/http";
 import { authenticated } from "@/app/lib/policy";
 import { sendMail } from "@/app/lib/mail";
@@ -21,7 +22,10 @@ export function POST(request: Request) {
     const signedIn = authenticated(await requestActor(request));
     const input = await readJson(request, Body);
     const { actor } = commitAccess(signedIn, "thread.comment", input.commitId);
-    const r = await createThread({ ...input, authorId: actor.userId }, sendMail);
+    const r = await createThread(
+      { ...input, authorId: actor.userId, baseUrl: publicBaseUrl(request.headers) },
+      sendMail,
+    );
     return Response.json(
       { thread: r.thread, commentId: r.commentId, notified: r.notified, url: `/threads/${r.thread.id}` },
       { status: 201 },

@@ -13,20 +13,40 @@
  * - An image is loaded only from Runnel's own origin (a relative URL). An image
  *   on another server becomes a link to it: a reader's browser never fetches
  *   it unasked (which would tell that server who read the thread, and when).
- * - A run reference, written `[[run ID]]` (ID: letters, digits, `_` and `-`),
- *   becomes `<span class="run-ref" data-run="ID">run ID</span>`; the thread page
+ * - A run reference, written `[[run ID]]` or `[[ID]]` (ID: letters, digits,
+ *   `_` and `-`), as a bare run id (`r_` and 16 characters) or as a pasted run
+ *   URL (`https://…/runs/ID`), becomes
+ *   `<span class="run-ref" data-run="ID">run ID</span>`; the thread page
  *   turns each such placeholder into a card with the run's state and probes.
+ *   With a render context, a reference that does not resolve stays plain text.
  * - A mention, written `@handle` at the start of a word (handle: a letter or
  *   digit, then letters, digits, `.`, `_`, `-`; at most 40), becomes
  *   `<span class="mention" data-mention="handle">@handle</span>`. Handles are
- *   compared in lower case. Mentions and run references inside code are text.
+ *   compared in lower case; with a render context, a handle that is no member
+ *   stays plain text. Mentions and run references inside code are text.
  */
 import { Marked, type Token, type Tokens, type TokenizerAndRendererExtension } from "marked";
 import { FilterXSS } from "xss";
 
-/** `[[run ID]]`: our run-reference syntax. */
-export const RUN_REF = /^\[\[run ([A-Za-z0-9_-]{1,64})\]\]/;
+/** `[[run ID]]` or `[[ID]]`: our run-reference syntax. */
+export const RUN_REF = /^\[\[(?:run )?([A-Za-z0-9_-]{1,64})\]\]/;
+/** A run id on its own (`r_` and 16 letters or digits 2–7, as the server makes them). */
+const BARE_RUN = /^r_[a-z2-7]{16}(?![A-Za-z0-9_-])/;
+/** A pasted run URL: any origin (the public URL may differ from the one a browser used), path /runs/ID. */
+const RUN_URL = /^https?:\/\/[^\s/<>]+\/runs\/([A-Za-z0-9_-]{1,64})(?:[/?#][^\s<>]*)?/;
 const MENTION = /^@([A-Za-z0-9][A-Za-z0-9._-]{0,39})/;
+
+/**
+ * What a comment is rendered against: the run ids that resolve in its
+ * workspace and the handles of its members. A reference or mention outside
+ * them renders as plain text (never a card or a styled mention). Without a
+ * context every well-formed one is rendered (the form's own syntax check).
+ */
+export interface RenderContext {
+  runs: ReadonlySet<string>;
+  handles: ReadonlySet<string>;
+}
+let context: RenderContext | null = null;
 
 interface RunRefToken extends Tokens.Generic {
   type: "runRef";
@@ -37,17 +57,29 @@ interface MentionToken extends Tokens.Generic {
   handle: string;
 }
 
+/** Earliest index in `src` where a run reference of any form may start, or −1. */
+function runRefStart(src: string): number {
+  const found = [src.indexOf("[["), src.search(/https?:\/\/[^\s/<>]+\/runs\//)];
+  const bare = /(^|[^A-Za-z0-9_-])r_[a-z2-7]{16}(?![A-Za-z0-9_-])/.exec(src);
+  if (bare) found.push(bare.index + bare[1].length);
+  const hits = found.filter((i) => i >= 0);
+  return hits.length ? Math.min(...hits) : -1;
+}
+
 const runRef: TokenizerAndRendererExtension = {
   name: "runRef",
   level: "inline",
-  start: (src) => src.indexOf("[[run "),
+  start: runRefStart,
   tokenizer(src) {
-    const m = RUN_REF.exec(src);
-    return m ? ({ type: "runRef", raw: m[0], runId: m[1] } as RunRefToken) : undefined;
+    const m = RUN_REF.exec(src) ?? RUN_URL.exec(src);
+    if (m) return { type: "runRef", raw: m[0], runId: m[1] } as RunRefToken;
+    const b = BARE_RUN.exec(src);
+    return b ? ({ type: "runRef", raw: b[0], runId: b[0] } as RunRefToken) : undefined;
   },
   renderer(token) {
-    const id = (token as RunRefToken).runId;
-    return `<span class="run-ref" data-run="${id}">run ${id}</span>`;
+    const t = token as RunRefToken;
+    if (context && !context.runs.has(t.runId)) return escapeHtml(t.raw);
+    return `<span class="run-ref" data-run="${t.runId}">run ${t.runId}</span>`;
   },
 };
 
@@ -70,8 +102,9 @@ const mention: TokenizerAndRendererExtension = {
     return { type: "mention", raw: `@${handle}`, handle: handle.toLowerCase() } as MentionToken;
   },
   renderer(token) {
-    const h = (token as MentionToken).handle;
-    return `<span class="mention" data-mention="${h}">@${h}</span>`;
+    const t = token as MentionToken;
+    if (context && !context.handles.has(t.handle)) return escapeHtml(t.raw);
+    return `<span class="mention" data-mention="${t.handle}">@${t.handle}</span>`;
   },
 };
 
@@ -231,10 +264,17 @@ const sanitizer = new FilterXSS({
   },
 });
 
-/** Safe HTML for a comment's Markdown (see the contract at the top). Never throws on any input string. */
-export function renderComment(markdown: string): string {
-  const html = marked.parse(markdown, { async: false });
-  return sanitizer.process(html);
+/**
+ * Safe HTML for a comment's Markdown (see the contract at the top), references
+ * and mentions resolved against `ctx` when given. Never throws on any input string.
+ */
+export function renderComment(markdown: string, ctx: RenderContext | null = null): string {
+  context = ctx;
+  try {
+    return sanitizer.process(marked.parse(markdown, { async: false }));
+  } finally {
+    context = null;
+  }
 }
 
 function walk(markdown: string, visit: (t: Token) => void): void {
@@ -250,7 +290,7 @@ export function extractMentions(markdown: string): string[] {
   return [...seen];
 }
 
-/** Run ids referenced with `[[run ID]]`, first occurrence order, without repeats. */
+/** Run ids referenced (`[[run ID]]`, `[[ID]]`, a bare run id or a run URL), first occurrence order, without repeats. */
 export function extractRunRefs(markdown: string): string[] {
   const seen = new Set<string>();
   walk(markdown, (t) => {

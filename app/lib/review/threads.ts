@@ -20,7 +20,7 @@ import { RequestError } from "../http";
 import type { Q } from "@/db";
 import { newId } from "@/db/ids";
 import { commitBadges, type ReviewState } from "./diffs";
-import { extractMentions, extractRunRefs, renderComment } from "./markdown";
+import { extractMentions, extractRunRefs, renderComment, type RenderContext } from "./markdown";
 import { keyProbes } from "./run-tables";
 import { immediate } from "../db-busy";
 
@@ -35,9 +35,9 @@ export function handleOf(email: string): string {
   return email.split("@")[0].toLowerCase();
 }
 
-/** The absolute origin for links in e-mails. */
-function origin(): string {
-  return (process.env.RUNNEL_ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, "");
+/** The base of links in e-mails when the caller gives none: $RUNNEL_PUBLIC_URL (README, Configuration), else this host. */
+function defaultBaseUrl(): string {
+  return (process.env.RUNNEL_PUBLIC_URL ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/+$/, "");
 }
 
 function checkBody(body: string, verdict: Verdict | null): string {
@@ -79,7 +79,7 @@ export function getThreadRef(id: string, d: Q = db()): ThreadRef | null {
  * comment. 404 for an unknown commit, 422 for a run of another commit.
  */
 export async function createThread(
-  input: { commitId: string; runId?: string | null; title: string; body: string; authorId: string },
+  input: { commitId: string; runId?: string | null; title: string; body: string; authorId: string; baseUrl?: string },
   notify: Notify,
   d: Q = db(),
 ): Promise<{ thread: ThreadRef; commentId: string; notified: string[] }> {
@@ -111,7 +111,7 @@ export async function createThread(
       createdBy: input.authorId,
     })
     .run();
-  const c = await addComment({ threadId: id, body, authorId: input.authorId }, notify, d);
+  const c = await addComment({ threadId: id, body, authorId: input.authorId, baseUrl: input.baseUrl }, notify, d);
   return { thread: getThreadRef(id, d)!, commentId: c.commentId, notified: c.notified };
 }
 
@@ -127,6 +127,8 @@ export async function addComment(
     authorId: string;
     verdict?: Verdict | null;
     verdictCommitId?: string | null;
+    /** Base of the link in the e-mails (app/lib/auth.ts publicBaseUrl); default $RUNNEL_PUBLIC_URL. */
+    baseUrl?: string;
   },
   notify: Notify,
   d: Q = db(),
@@ -190,7 +192,7 @@ export async function addComment(
   });
 
   const author = d.select({ name: users.name }).from(users).where(eq(users.id, input.authorId)).get();
-  const link = `${origin()}/threads/${thread.id}#${commentId}`;
+  const link = `${(input.baseUrl ?? defaultBaseUrl()).replace(/\/+$/, "")}/threads/${thread.id}#${commentId}`;
   const mailErrors: string[] = [];
   for (const t of targets) {
     const excerpt = body.length > 600 ? `${body.slice(0, 600)}…` : body;
@@ -216,6 +218,68 @@ export interface RunCard {
   commitId?: string;
   commitMessage?: string;
   probes?: { name: string; first: number; min: number; max: number }[];
+}
+
+/** Member handles of a workspace, with names (mention completion and resolution). */
+export function memberHandles(workspaceId: string, d: Q = db()): { handle: string; name: string; userId: string }[] {
+  return d
+    .select({ userId: users.id, email: users.email, name: users.name })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.workspaceId, workspaceId))
+    .all()
+    .map((m) => ({ handle: handleOf(m.email), name: m.name, userId: m.userId }))
+    .sort((a, b) => a.handle.localeCompare(b.handle));
+}
+
+/** What comments of a workspace render against: the referenced runs found there, and its members' handles. */
+function renderContext(workspaceId: string, cards: RunCard[], d: Q): RenderContext {
+  return {
+    runs: new Set(cards.filter((c) => c.found).map((c) => c.id)),
+    handles: new Set(memberHandles(workspaceId, d).map((m) => m.handle)),
+  };
+}
+
+export interface CommentPreview {
+  html: string;
+  cards: RunCard[];
+  /** What will not be posted as a card or a mention, and why. */
+  warnings: string[];
+  /** Members who will be notified. */
+  mentions: { handle: string; name: string }[];
+}
+
+/**
+ * A comment as it will be posted in a workspace: rendered against the
+ * workspace, with a warning for each run reference that does not resolve
+ * there (unknown, or a run of another workspace: the same words, nothing
+ * leaks) and each handle that is no member. The author is not notified of
+ * their own mention.
+ */
+export function previewComment(workspaceId: string, body: string, authorId: string, d: Q = db()): CommentPreview {
+  const text = body.slice(0, MAX_COMMENT_LENGTH);
+  const cards = runCards(extractRunRefs(text), workspaceId, d);
+  const members = memberHandles(workspaceId, d);
+  const byHandle = new Map(members.map((m) => [m.handle, m]));
+  const warnings = [
+    ...cards
+      .filter((c) => !c.found)
+      .map((c) => `run ${c.id} is not a run of this workspace: it will be posted as plain text, not as a card`),
+    ...extractMentions(text)
+      .filter((h) => !byHandle.has(h))
+      .map((h) => `@${h} is not a member of this workspace: it will be posted as plain text and notify nobody`),
+  ];
+  if (body.length > MAX_COMMENT_LENGTH)
+    warnings.push(`the comment is ${body.length} characters long; at most ${MAX_COMMENT_LENGTH} can be posted`);
+  return {
+    html: renderComment(text, renderContext(workspaceId, cards, d)),
+    cards: cards.filter((c) => c.found),
+    warnings,
+    mentions: extractMentions(text)
+      .map((h) => byHandle.get(h))
+      .filter((m) => m !== undefined && m.userId !== authorId)
+      .map((m) => ({ handle: m!.handle, name: m!.name })),
+  };
 }
 
 /** Cards for run ids referenced in a workspace's comments (see the module contract). */
@@ -313,6 +377,8 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
       .map((r) => [r.commentId, r]),
   );
   const refs = [...new Set([...(t.runId ? [t.runId] : []), ...rows.flatMap((r) => extractRunRefs(r.c.body))])];
+  const cards = runCards(refs, t.workspaceId, d);
+  const ctx = renderContext(t.workspaceId, cards, d);
   const verdictCommits = [...new Set([commit.id, ...[...verdictOf.values()].map((v) => v.commitId)])];
   const badgeMap = commitBadges(verdictCommits, d);
   const badge = badgeMap.get(commit.id)!;
@@ -345,12 +411,12 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
       authorId: r.c.authorId,
       authorName: r.authorName,
       body: r.c.body,
-      html: renderComment(r.c.body),
+      html: renderComment(r.c.body, ctx),
       createdAt: r.c.createdAt.getTime(),
       verdict: verdictOf.get(r.c.id)?.verdict ?? null,
       verdictCommitId: verdictOf.get(r.c.id)?.commitId ?? null,
     })),
-    runCards: runCards(refs, t.workspaceId, d),
+    runCards: cards.filter((c) => c.found),
     commitStates: verdictCommits.map((id) => ({
       commitId: id,
       message: messages.get(id) ?? "",

@@ -4,7 +4,7 @@ import { found, threadAccess } from "@/app/lib/access";
 import { listCommits } from "@/app/lib/networks";
 import { pageAccess } from "@/app/lib/pages";
 import { roleAllows } from "@/app/lib/policy";
-import { getThread } from "@/app/lib/review/threads";
+import { getThread, memberHandles } from "@/app/lib/review/threads";
 import { runsOfCommit } from "@/app/lib/review/run-tables";
 import { ReviewStateBadge } from "@/app/ui/review/badges";
 import { CommentBody, RunCard } from "@/app/ui/review/comment-body";
@@ -131,6 +131,7 @@ export default async function ThreadPage({ params }: Props) {
           runs={runs}
           commits={eligible}
           defaultCommitId={defaultCommitId}
+          members={memberHandles(t.workspace.id).map(({ handle, name }) => ({ handle, name }))}
         />
       ) : (
         <p className="text-sm text-stone-500">As a {role} you can read this thread but not reply.</p>

@@ -4,6 +4,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { sendJson } from "@/app/ui/fetch";
+import { CommentComposer, type MemberHandle } from "./comment-composer";
 
 type Verdict = "signed_off" | "changes_asked" | null;
 
@@ -13,8 +14,10 @@ export function CommentForm({
   runs,
   commits = [],
   defaultCommitId,
+  members = [],
 }: {
   threadId: string;
+  members?: MemberHandle[];
   canSignOff: boolean;
   runs: { id: string; label: string }[];
   /** Commits a verdict may be about (the thread's and later ones of the network). */
@@ -61,17 +64,13 @@ export function CommentForm({
         void send(null);
       }}
     >
-      <label htmlFor="comment" className="block text-sm font-medium">
-        Reply
-      </label>
-      <textarea
+      <CommentComposer
         id="comment"
+        label="Reply"
         value={body}
-        onChange={(e) => setBody(e.target.value)}
-        rows={4}
-        maxLength={20000}
-        className="w-full rounded border border-stone-300 p-2 font-mono text-sm"
-        placeholder="Markdown. Link a run with [[run ID]]; mention a member with @handle (the part of their address before @)."
+        onChange={setBody}
+        target={{ threadId }}
+        members={members}
       />
       <div className="flex flex-wrap items-center gap-2">
         {runs.length ? (
@@ -152,6 +151,7 @@ export function CommentForm({
 export function NewThreadForm({
   commitId,
   runs,
+  members = [],
 }: {
   commitId: string;
   runs: { id: string; label: string }[];
@@ -194,13 +194,13 @@ export function NewThreadForm({
         placeholder="Title"
         className="w-full rounded border border-stone-300 px-2 py-1 text-sm"
       />
-      <textarea
-        aria-label="First comment"
+      <CommentComposer
+        label="First comment"
         value={body}
-        onChange={(e) => setBody(e.target.value)}
+        onChange={setBody}
+        target={{ commitId }}
+        members={members}
         rows={3}
-        placeholder="Markdown; [[run ID]] links a run, @handle mentions a member"
-        className="w-full rounded border border-stone-300 p-2 font-mono text-sm"
       />
       <div className="flex items-center gap-2">
         {runs.length ? (

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { requestActor, threadAccess } from "@/app/lib/access";
+import { publicBaseUrl } from "@/app/lib/auth";
 import { handle, readJson } from "@/app/lib/http";
 import { sendMail } from "@/app/lib/mail";
 import { authenticated, authorize } from "@/app/lib/policy";
@@ -35,6 +36,7 @@ export function POST(request: Request, ctx: Ctx) {
         verdict: input.verdict ?? null,
         verdictCommitId: input.commitId ?? null,
         authorId: actor.userId,
+        baseUrl: publicBaseUrl(request.headers),
       },
       sendMail,
     );
