@@ -161,7 +161,11 @@ describe("threads", () => {
       notify,
       db,
     );
-    expect(getThread(thread.id, db)!.runCards).toEqual([{ id: "r_elsewhere", found: false }]);
+    // a reference that does not resolve in the workspace gets no card and stays plain text
+    const view = getThread(thread.id, db)!;
+    expect(view.runCards).toEqual([]);
+    expect(view.comments[0].html).toContain("[[run r_elsewhere]]");
+    expect(view.comments[0].html).not.toContain("run-ref");
   });
 });
 
@@ -243,5 +247,27 @@ describe("demo review seed", () => {
     expect(o.series[0].agreement.n).toBe(22);
     expect(o.series[0].agreement.rmsLogRatio).toBeGreaterThan(0.01);
     expect(o.series[0].agreement.rmsLogRatio).toBeLessThan(0.2);
+  });
+});
+
+describe("comment preview", () => {
+  it("cards for runs of the workspace, a warning for anything that will stay plain text, who is notified", async () => {
+    const db = fresh();
+    const { run2 } = dividerHistory(db);
+    const { previewComment } = await import("@/app/lib/review/threads");
+    const p = previewComment(
+      "ws_lm64",
+      `see ${run2} and [[r_elsewhere]]; @reviewer and @designer, and @noone`,
+      "u_designer1",
+      db,
+    );
+    expect(p.cards.map((c) => c.id)).toEqual([run2]);
+    expect(p.warnings).toEqual([
+      "run r_elsewhere is not a run of this workspace: it will be posted as plain text, not as a card",
+      "@noone is not a member of this workspace: it will be posted as plain text and notify nobody",
+    ]);
+    // the author (designer@…, u_designer1) is not notified of their own mention
+    expect(p.mentions).toEqual([{ handle: "reviewer", name: "Ruth Calder" }]);
+    expect(p.html).toContain(`data-run="${run2}"`);
   });
 });

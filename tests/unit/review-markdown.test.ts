@@ -97,3 +97,35 @@ describe("images in comments", () => {
     }
   });
 });
+
+describe("run references in every form, resolved against the workspace", () => {
+  const id = "r_abcdefghijklmn23";
+  it("accepts the bare id, [[id]], [[run id]] and a pasted run URL", () => {
+    for (const body of [
+      `see ${id} please`,
+      `see [[${id}]] please`,
+      `see [[run ${id}]] please`,
+      `see https://runnel.example.org/runs/${id} please`,
+      `see http://127.0.0.1:3000/runs/${id}?tab=probes please`,
+    ]) {
+      expect(extractRunRefs(body)).toEqual([id]);
+      expect(renderComment(body)).toContain(`data-run="${id}"`);
+    }
+  });
+
+  it("leaves an id in code, a longer id-like word, or a link target alone", () => {
+    expect(extractRunRefs(`\`${id}\` ${id}xyz`)).toEqual([]);
+    expect(extractRunRefs(`[the run](https://elsewhere.example/docs)`)).toEqual([]);
+  });
+
+  it("with a context, a reference that does not resolve and a handle that is no member stay plain text", () => {
+    const ctx = { runs: new Set([id]), handles: new Set(["ruth"]) };
+    const html = renderComment(`[[run ${id}]] r_zzzzzzzzzzzzzzzz @ruth @teo`, ctx);
+    expect(html).toContain(`data-run="${id}"`);
+    expect(html).not.toContain('data-run="r_zzzzzzzzzzzzzzzz"');
+    expect(html).toContain("r_zzzzzzzzzzzzzzzz");
+    expect(html).toContain('data-mention="ruth"');
+    expect(html).not.toContain('data-mention="teo"');
+    expect(html).toContain("@teo");
+  });
+});

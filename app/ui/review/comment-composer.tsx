@@ -150,7 +150,8 @@ export function CommentComposer({ value, onChange, target, members, label, rows 
       </div>
       <p className="text-xs text-stone-500" data-testid="handle-rule">
         A handle is the part of a member&apos;s e-mail address before the @, in lower case (letters, digits, “.”, “_”,
-        “-”): Ruth at ruth@larkspur.example is @ruth. A handle that is no member stays plain text and notifies nobody.
+        “-”): the member at ada.marlow@example.org is @ada.marlow. Type @ to pick from the members. A handle that is no
+        member stays plain text and notifies nobody.
       </p>
       {value.trim() ? (
         <div className="rounded border border-dashed border-stone-300 bg-stone-50 p-2" aria-label="Preview">
