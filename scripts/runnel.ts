@@ -1,7 +1,8 @@
 /**
  * The `runnel` command line: `runnel check FILE [--json]`, `runnel solve FILE [output options]`
  * (docs/language.md, command line; `npm run runnel` runs it from its bundle, scripts/runnel-bundle.mjs).
- * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file).
+ * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file), 3 (with --strict)
+ * the network is valid but an expectation fails.
  * File reading lives here only; src/lang has no I/O.
  */
 import {
@@ -27,7 +28,7 @@ import {
   tooLargeResult,
 } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
-import { pointCount, type PointResult, solveNetwork } from "../src/solver/index";
+import { type ExpectationSummary, pointCount, type PointResult, solveNetwork } from "../src/solver/index";
 import { CsvRows } from "../src/solver/csv";
 import {
   ByteWriter,
@@ -42,6 +43,7 @@ import { RunNotes, type SolveJson, toSolveJson } from "../src/solver/json";
 const EXIT_OK = 0;
 const EXIT_ERRORS = 1;
 const EXIT_USAGE = 2;
+const EXIT_EXPECTATIONS = 3;
 
 export interface Io {
   /** A whole message (a line break is added when it has none). */
@@ -185,7 +187,7 @@ function selection(net: Network, opts: Map<string, string>): Selection {
 
 /** Parses `runnel solve`'s arguments: one FILE, flags, and options that take a value. */
 function solveArgs(args: string[]): { file: string; opts: Map<string, string> } {
-  const flags = ["--json", "--ndjson", "--probes-only"];
+  const flags = ["--json", "--ndjson", "--probes-only", "--strict"];
   const valued = ["--csv", "--nodes", "--rails", "--devices"];
   const opts = new Map<string, string>();
   const files: string[] = [];
@@ -225,6 +227,31 @@ function progress(io: Io): (done: number, total: number) => void {
   };
 }
 
+/** A margin for the plain-text output: 3 significant digits and its unit. */
+function formatMargin(v: number, unit: string | null): string {
+  const a = Math.abs(v);
+  const text = a === 0 || (a >= 1e-3 && a < 1e4) ? String(Number(v.toPrecision(3))) : v.toExponential(2);
+  return unit ? `${text} ${unit}` : text;
+}
+
+/** One line per expectation for the summary output. */
+function expectationLines(summaries: readonly ExpectationSummary[]): string[] {
+  return summaries.map((x) => {
+    const margin = x.margin === null ? "" : `, margin ${formatMargin(x.margin, x.unit)}`;
+    const y = x.yield;
+    const yieldText = y
+      ? `, yield ${y.passed}/${y.samples} (95 % interval ${(y.low * 100).toFixed(1)}–${(y.high * 100).toFixed(1)} %)`
+      : "";
+    if (x.passed) return `  expect ${x.name} (line ${x.line}): holds at all ${x.points} points${margin}${yieldText}`;
+    const f = x.firstFailure;
+    const params = f ? Object.entries(f.params).map(([k, v]) => `${k} = ${v}`) : [];
+    const at = f
+      ? `, first at point ${f.point}${params.length ? ` (${params.join(", ")})` : ""}${f.sample !== null ? `, sample ${f.sample}` : ""}`
+      : "";
+    return `  expect ${x.name} (line ${x.line}): FAILS at ${x.points - x.pointsPassed} of ${x.points} points${at}${margin}${yieldText}`;
+  });
+}
+
 /** Prints the diagnostics of a document as `FILE:LINE:COLUMN: severity: message` lines (to stderr with `err`). */
 function printDiagnostics(file: string, doc: SolveJson, print: (t: string) => void): void {
   if (doc.diagnostics.length)
@@ -238,8 +265,9 @@ function printDiagnostics(file: string, doc: SolveJson, print: (t: string) => vo
 
 const solve: Subcommand = {
   usage:
-    "runnel solve FILE [--json | --ndjson | --csv probes|nodes|devices|rails] [--probes-only | --nodes LIST --rails LIST --devices LIST]",
-  summary: "solve every point; print a summary, the JSON document, one JSON line per point, or a CSV table",
+    "runnel solve FILE [--json | --ndjson | --csv probes|nodes|devices|rails] [--probes-only | --nodes LIST --rails LIST --devices LIST] [--strict]",
+  summary:
+    "solve every point; print a summary, the JSON document, one JSON line per point, or a CSV table (--strict: exit 3 when an expectation fails)",
   run(args, io) {
     const { file, opts } = solveArgs(args);
     const result = elaborateFile(file);
@@ -280,7 +308,7 @@ const solve: Subcommand = {
       else printDiagnostics(file, doc, format === "csv" ? io.err : io.out);
       return EXIT_ERRORS;
     }
-    const notes = new RunNotes();
+    const notes = new RunNotes(net, text);
     const sink = format === "summary" ? null : pointSink(net, out, io);
     const run = solveNetwork(net, {
       keepPoints: false,
@@ -298,8 +326,10 @@ const solve: Subcommand = {
       io.out(
         `${file}: ${run.solved} point${run.solved === 1 ? "" : "s"}, ${run.method} (${run.reason})${doc.ok ? "" : ", with errors"}`,
       );
+      if (doc.ok && notes.expectations) io.out(expectationLines(notes.expectations.finish()).join("\n"));
     }
-    return doc.ok ? EXIT_OK : EXIT_ERRORS;
+    if (!doc.ok) return EXIT_ERRORS;
+    return opts.has("--strict") && doc.expectations?.some((x) => !x.passed) ? EXIT_EXPECTATIONS : EXIT_OK;
   },
 };
 
@@ -355,18 +385,23 @@ function pointSink(net: Network, out: Output, io: Io): PointSink {
     },
     end: (doc) => {
       w.flush();
-      const head = JSON.stringify({ ...doc, points: [] }, null, 2);
       if (!doc.ok || first) {
         held.discard();
-        io.out(head);
+        io.out(JSON.stringify(doc, null, 2));
         return;
       }
+      // The expectations (known at the end) follow the points.
+      const { expectations, ...rest } = doc;
+      const head = JSON.stringify({ ...rest, points: [] }, null, 2);
       // head ends with `"points": []` and the closing brace: open the array there instead.
       const tail = new ByteWriter(emit);
       tail.text(`${head.slice(0, head.lastIndexOf("[]"))}[\n`);
       tail.flush();
       held.replay(emit);
-      tail.ascii("\n  ]\n}\n");
+      tail.ascii("\n  ]");
+      if (expectations)
+        tail.text(`,\n  "expectations": ${JSON.stringify(expectations, null, 2).replace(/\n/g, "\n  ")}`);
+      tail.ascii("\n}\n");
       tail.flush();
     },
   };

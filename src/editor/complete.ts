@@ -14,6 +14,9 @@ import { NodeType, type SyntaxNode, Tree, type TreeBuffer } from "@lezer/common"
 import { BUILTINS, FUNCTIONS, PROBE_FUNCTIONS } from "../lang/expr";
 import { STATEMENT_WORDS } from "../lang/syntax";
 import {
+  CHECK_DETAIL,
+  CHECK_OPTIONS,
+  CHECKS,
   MISMATCH_OPTIONS,
   MODEL_DETAIL,
   MODELS,
@@ -39,6 +42,10 @@ export interface DocumentNames {
   injects: string[];
   /** Interpolated names used as node pins inside `for` bodies, as written (`x{k+1}`). */
   patterns: string[];
+  /** Probe names written out (not made by a loop). */
+  probes: string[];
+  /** Device names made by loops, as name patterns (`out{k}` → `out*`). */
+  devicePatterns: string[];
 }
 
 /** Names the elaborated network holds (after loops were expanded); published by the linter. */
@@ -79,6 +86,8 @@ interface PartialNames {
   patterns: string[];
   devices: DocumentNames["devices"];
   injects: string[];
+  probes: string[];
+  devicePatterns: string[];
 }
 
 /**
@@ -102,6 +111,8 @@ export function collectNames(tree: Tree, text: (from: number, to: number) => str
   const patterns = new Set<string>();
   const devices: DocumentNames["devices"] = [];
   const injects: string[] = [];
+  const probes: string[] = [];
+  const devicePatterns = new Set<string>();
   for (const { part, base } of parts) {
     for (const p of part.params) params.push({ name: p.name, at: base + p.at });
     for (const r of part.rails) rails.add(r);
@@ -109,9 +120,20 @@ export function collectNames(tree: Tree, text: (from: number, to: number) => str
     for (const q of part.patterns) patterns.add(q);
     for (const d of part.devices) devices.push(d);
     for (const i of part.injects) injects.push(i);
+    for (const p of part.probes) probes.push(p);
+    for (const q of part.devicePatterns) devicePatterns.add(q);
   }
   const nodes = [...used].filter((n) => !rails.has(n));
-  return { params, rails: [...rails], nodes, devices, injects, patterns: [...patterns] };
+  return {
+    params,
+    rails: [...rails],
+    nodes,
+    devices,
+    injects,
+    patterns: [...patterns],
+    probes,
+    devicePatterns: [...devicePatterns],
+  };
 }
 
 function gather(
@@ -135,7 +157,16 @@ function gather(
 
 /** Names in the statements of `tree` (offsets relative to it); expressions are not entered except pin values. */
 function readStatements(tree: Tree, text: (from: number, to: number) => string): PartialNames {
-  const part: PartialNames = { params: [], rails: [], used: [], patterns: [], devices: [], injects: [] };
+  const part: PartialNames = {
+    params: [],
+    rails: [],
+    used: [],
+    patterns: [],
+    devices: [],
+    injects: [],
+    probes: [],
+    devicePatterns: [],
+  };
   const plainDefinition = (stmt: SyntaxNode): string | null => {
     const def = stmt.getChild("Definition");
     return def && !def.firstChild ? text(def.from, def.to) : null;
@@ -169,7 +200,16 @@ function readStatements(tree: Tree, text: (from: number, to: number) => string):
           const node = ref.node;
           const name = plainDefinition(node);
           if (name) part.devices.push({ name, kind: node.firstChild?.name === "pfet" ? "pfet" : "nfet" });
+          else {
+            const def = node.getChild("Definition");
+            if (def && !containsError(def)) part.devicePatterns.push(namePattern(text(def.from, def.to)));
+          }
           pins(node);
+          return false;
+        }
+        case "ProbeStatement": {
+          const name = plainDefinition(ref.node);
+          if (name) part.probes.push(name);
           return false;
         }
         case "InjectStatement": {
@@ -187,6 +227,19 @@ function readStatements(tree: Tree, text: (from: number, to: number) => string):
   return part;
 }
 
+/** A loop-made name as a name pattern: every `{…}` piece becomes `*` (`out{k+1}_{j}` → `out*_*`). */
+function namePattern(written: string): string {
+  let out = "";
+  let depth = 0;
+  for (const c of written) {
+    if (c === "{") {
+      if (depth++ === 0) out += "*";
+    } else if (c === "}") depth--;
+    else if (depth === 0) out += c;
+  }
+  return out;
+}
+
 function containsError(node: SyntaxNode): boolean {
   let found = false;
   node.toTree().iterate({
@@ -199,8 +252,8 @@ function containsError(node: SyntaxNode): boolean {
 }
 
 const WORD = /^[A-Za-z_][A-Za-z0-9_]*$/;
-const OPERATORS = new Set(["+", "-", "*", "/", "^", "ArithOp"]);
-const EXPRESSION_KEYWORDS = new Set(["in", "from", "to", "step", "points", "runs", "seed", "avt"]);
+const OPERATORS = new Set(["+", "-", "*", "/", "^", "ArithOp", "<", "<=", ">", ">=", "==", "!=", "CompareOp"]);
+const EXPRESSION_KEYWORDS = new Set(["in", "from", "to", "step", "points", "runs", "seed", "avt", "and", "or", "not"]);
 
 /** What kind of name the cursor's slot takes. */
 type Slot =
@@ -209,8 +262,12 @@ type Slot =
   | { kind: "setting" }
   | { kind: "model" }
   | { kind: "expression"; at: SyntaxNode }
+  | { kind: "condition"; at: SyntaxNode }
   | { kind: "node" }
   | { kind: "element" }
+  | { kind: "rail" }
+  | { kind: "devicePattern" }
+  | { kind: "checkOption"; check: SyntaxNode }
   | { kind: "sweepParam" }
   | { kind: "keywords"; words: readonly string[] };
 
@@ -283,6 +340,8 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
         ? { kind: "node" }
         : { kind: "expression", at: prev };
     }
+    if (parent?.name === "ExpectStatement") return { kind: "condition", at: prev };
+    if (parent?.name === "CheckOption" && parent.firstChild?.name === "devices") return { kind: "devicePattern" };
     return { kind: "expression", at: prev };
   }
   if (name === "(" || name === ",") {
@@ -291,6 +350,7 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
       const fnName = fn ? state.sliceDoc(fn.from, fn.to) : "";
       if (fnName === "voltage") return { kind: "node" };
       if (fnName === "current") return { kind: "element" };
+      if (fnName === "power") return { kind: "rail" };
     }
     return { kind: "expression", at: prev };
   }
@@ -328,6 +388,15 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
     }
   }
   if (statement.name === "MismatchStatement") return { kind: "keywords", words: MISMATCH_OPTIONS };
+  if (statement.name === "ExpectStatement") {
+    const check = ancestor(prev, "DeviceCheck");
+    if (check) return { kind: "checkOption", check };
+    const value = statement.getChild("Expression");
+    // `saturated` alone parses as a name until its devices= is written.
+    if (value?.name === "Identifier" && (CHECKS as readonly string[]).includes(state.sliceDoc(value.from, value.to)))
+      return { kind: "checkOption", check: value };
+    if (value && p >= value.to) return { kind: "keywords", words: ["and", "or"] };
+  }
   return null;
 }
 
@@ -417,11 +486,43 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
       if (elaborated) for (const e of elaborated.elements) add(e, "element");
       return out;
     }
+    case "rail":
+      return names.rails.filter((r) => r !== own).map((r) => ({ label: r, type: "variable", detail: "rail" }));
+    case "devicePattern": {
+      const out: Completion[] = [{ label: "*", type: "variable", detail: "every device", boost: 2 }];
+      for (const q of names.devicePatterns)
+        out.push({ label: q, type: "variable", detail: "devices of a loop", boost: 1 });
+      for (const d of names.devices) out.push({ label: d.name, type: "variable", detail: d.kind });
+      return out.filter((o) => o.label !== own);
+    }
+    case "checkOption": {
+      const kind = slot.check.name === "Identifier" ? slot.check : slot.check.getChild("CheckName");
+      const weak = kind !== null && state.sliceDoc(kind.from, kind.to) === "weak";
+      const present = new Set<string>();
+      for (let o = slot.check.getChild("CheckOption"); o; o = o.nextSibling)
+        if (o.name === "CheckOption" && o.firstChild && o.firstChild.from !== typed?.from)
+          present.add(o.firstChild.name);
+      return CHECK_OPTIONS.filter((o) => !present.has(o) && (o !== "below" || weak)).map((o) => ({
+        label: o,
+        type: "property",
+        apply: `${o}=`,
+        detail: o === "devices" ? "name pattern: out*, lat*, *" : "inversion coefficient bound (default 0.1)",
+      }));
+    }
+    case "condition":
     case "expression": {
       const at = slot.at;
       const paramStatement = ancestor(at, "ParamStatement");
-      const inProbe = ancestor(at, "ProbeStatement") !== null;
+      const inExpect = ancestor(at, "ExpectStatement") !== null;
+      const inProbe = inExpect || ancestor(at, "ProbeStatement") !== null;
       const out: Completion[] = [];
+      if (slot.kind === "condition")
+        for (const c of CHECKS)
+          out.push({ label: c, type: "keyword", detail: CHECK_DETAIL[c], apply: `${c} devices=` });
+      if (inExpect) {
+        for (const p of names.probes) out.push({ label: p, type: "variable", detail: "probe", boost: 2 });
+        out.push({ label: "not", type: "keyword", apply: "not " });
+      }
       for (const v of loopVariables(state, at, pos))
         out.push({ label: v, type: "variable", detail: "loop variable", boost: 3 });
       for (const p of names.params) {
@@ -451,6 +552,7 @@ const BUILTIN_INFO: Record<string, string> = {
 const PROBE_INFO: Record<string, string> = {
   voltage: "voltage(node), volts",
   current: "current(device, inject or rail), amperes",
+  power: "power() or power(rail, …): power drawn from the rails, watts",
 };
 
 /**
@@ -470,7 +572,10 @@ export const runnelCompletionSource: CompletionSource = (context: CompletionCont
   if (!word && !context.explicit) {
     const before = state.sliceDoc(pos - 1, pos);
     const trigger =
-      before === "=" || before === "(" || before === "," || (before === "{" && slot.kind === "expression");
+      before === "=" ||
+      before === "(" ||
+      before === "," ||
+      (before === "{" && (slot.kind === "expression" || slot.kind === "condition"));
     if (!trigger) return null;
   }
   const options = optionsFor(state, slot, pos, word?.node ?? null);

@@ -35,6 +35,8 @@ export const runnelHighlightStyle = HighlightStyle.define([
   { tag: t.definitionKeyword, color: palette.moss700, fontWeight: "700" },
   { tag: t.controlKeyword, color: palette.moss600, fontWeight: "700" },
   { tag: t.keyword, color: palette.moss600 },
+  { tag: t.logicOperator, color: palette.moss600, fontWeight: "700" },
+  { tag: t.atom, color: palette.moss700 },
   { tag: t.lineComment, color: palette.stone500, fontStyle: "italic" },
   { tag: t.number, color: palette.ochre },
   { tag: t.definition(t.variableName), color: palette.ink, fontWeight: "700" },
@@ -43,7 +45,10 @@ export const runnelHighlightStyle = HighlightStyle.define([
   { tag: t.function(t.variableName), color: palette.moss500 },
   { tag: t.variableName, color: palette.ink },
   { tag: t.propertyName, color: palette.stone600 },
-  { tag: [t.arithmeticOperator, t.definitionOperator, t.punctuation, t.separator], color: palette.stone600 },
+  {
+    tag: [t.arithmeticOperator, t.compareOperator, t.definitionOperator, t.punctuation, t.separator],
+    color: palette.stone600,
+  },
   { tag: [t.paren, t.squareBracket, t.brace], color: palette.stone600 },
   { tag: t.invalid, color: palette.ember500 },
 ]);

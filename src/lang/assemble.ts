@@ -1,12 +1,13 @@
 /**
  * The elaborated `Network` (network.ts), assembled from an elaboration without errors: the tables finished into
- * typed arrays, and each probe resolved to the nodes, devices, injects and rails it reads.
+ * typed arrays, and each probe and expectation resolved to the nodes, devices, injects and rails it reads.
  */
 import type { Elaboration, PendingProbe } from "./context";
+import type { PendingExpectation } from "./expectations";
 import { evaluateNumber, LayeredScope } from "./expr";
-import type { Network, Probe, ProbeContext, Settings, Sweep } from "./network";
+import type { Expectation, Network, Probe, ProbeContext, Settings, Sweep } from "./network";
 import { pointScope } from "./point";
-import { probeArgName } from "./templates";
+import { readName, resolveReads } from "./reads";
 
 export function assembleNetwork(cx: Elaboration): Network {
   const net: Network = {
@@ -21,34 +22,47 @@ export function assembleNetwork(cx: Elaboration): Network {
     sweeps: cx.sweeps.map((s): Sweep => ({ param: s.param, values: s.values, log: s.log, span: s.span })),
     mismatch: cx.mismatch,
     bindings: cx.values.bindings,
+    expectations: [],
   };
   net.probes = cx.probes.map((p) => resolveProbe(p, net));
+  net.expectations = cx.expectations.map((x) => resolveExpectation(x, net));
   return net;
 }
 
-/** What a probe argument reads. */
-const Reads = { Voltage: 0, Device: 1, Inject: 2, Rail: 3 } as const;
+/** An expectation whose reads are resolved against the network (their names were checked in checks.ts). */
+function resolveExpectation(x: PendingExpectation, net: Network): Expectation {
+  const reads = resolveReads(net, x.reads);
+  const names = x.reads.map((_, i) => readName(i));
+  const fns = x.operands;
+  const { name, span, unit, mixedUnits, condition, check } = x;
+  return {
+    name,
+    span,
+    unit,
+    mixedUnits,
+    condition,
+    check,
+    operandCount: fns.length,
+    operands(ctx, params, settings, probes, out) {
+      const base: Record<string, number> = { ...params, ...probes };
+      base.temp = settings.temp;
+      base.ut = settings.ut;
+      base.kappa = settings.kappa;
+      const values: number[] = [];
+      reads.fill(ctx, values);
+      const scope = new LayeredScope(base, names, values);
+      for (let i = 0; i < fns.length; i++) {
+        const v = evaluateNumber(fns[i], scope);
+        out[i] = Number.isFinite(v) ? v : NaN;
+      }
+    },
+  };
+}
 
-/** A probe whose arguments are resolved against the network (their names were checked in checks.ts). */
+/** A probe whose reads are resolved against the network (their names were checked in checks.ts). */
 function resolveProbe(p: PendingProbe, net: Network): Probe {
-  const kinds = new Int8Array(p.args.length);
-  const index = new Int32Array(p.args.length);
-  p.args.forEach((a, i) => {
-    if (a.kind === "voltage") {
-      kinds[i] = Reads.Voltage;
-      index[i] = net.nodes.index.get(a.name)!;
-    } else if (net.devices.index.has(a.name)) {
-      kinds[i] = Reads.Device;
-      index[i] = net.devices.index.get(a.name)!;
-    } else if (net.injects.index.has(a.name)) {
-      kinds[i] = Reads.Inject;
-      index[i] = net.injects.index.get(a.name)!;
-    } else {
-      kinds[i] = Reads.Rail;
-      index[i] = net.nodes.index.get(a.name)!;
-    }
-  });
-  const names = [...p.loopNames, ...p.args.map((_, i) => probeArgName(i))];
+  const reads = resolveReads(net, p.args);
+  const names = [...p.loopNames, ...p.args.map((_, i) => readName(i))];
   const { fn, loopValues } = p;
   let lastParams: object | null = null;
   let lastSettings: object | null = null;
@@ -65,18 +79,7 @@ function resolveProbe(p: PendingProbe, net: Network): Probe {
         lastSettings = settings;
       }
       const values = loopValues.slice();
-      for (let i = 0; i < kinds.length; i++) {
-        const j = index[i];
-        values.push(
-          kinds[i] === Reads.Voltage
-            ? ctx.voltage(j)
-            : kinds[i] === Reads.Device
-              ? ctx.deviceCurrent(j)
-              : kinds[i] === Reads.Inject
-                ? ctx.injectCurrent(j)
-                : ctx.railCurrent(j),
-        );
-      }
+      reads.fill(ctx, values);
       return evaluateNumber(fn, new LayeredScope(lastScope, names, values));
     },
   };

@@ -10,10 +10,8 @@ import { fmt } from "./diagnostics";
 import type { Network } from "./network";
 import { pointScope } from "./point";
 import { suggest } from "./suggest";
+import { checkReads } from "./reads";
 import { compatible, describeDim, KELVIN } from "./units";
-
-/** Most names offered to "did you mean" from a table; a larger table offers none. */
-const SUGGEST_FROM = 5000;
 
 /** Every check that needs the finished tables (before the network is assembled). */
 export function checkElaboration(cx: Elaboration, syntaxErrors: number): void {
@@ -24,46 +22,10 @@ export function checkElaboration(cx: Elaboration, syntaxErrors: number): void {
   checkConnections(cx, syntaxErrors);
 }
 
-/** Checks every probe argument against the finished tables. */
+/** Checks what every probe and expectation reads against the finished tables. */
 function resolveProbes(cx: Elaboration): void {
-  const { sink, namespace, nodes, devices, injects } = cx;
-  for (const p of cx.probes) {
-    for (const a of p.args) {
-      if (namespace.broken.has(a.name)) continue;
-      if (a.kind === "voltage") {
-        if (nodes.names.find(a.name) !== undefined) continue;
-        const isDev = devices.names.has(a.name);
-        const hint =
-          isDev || injects.index.has(a.name)
-            ? `'${a.name}' is a ${isDev ? "device" : "inject"}: use current(${a.name})`
-            : suggest(a.name, nodes.length < SUGGEST_FROM ? nodes.names.names.all() : []);
-        sink.error(a.from, a.to, `voltage() of unknown node '${a.name}'`, hint);
-      } else {
-        if (devices.names.has(a.name) || injects.index.has(a.name)) continue;
-        const node = nodes.names.find(a.name);
-        if (node !== undefined && nodes.isRail.data[node]) continue;
-        if (node !== undefined) {
-          sink.error(
-            a.from,
-            a.to,
-            `current() needs a device, an inject or a rail, but '${a.name}' is an internal node`,
-            `to read its voltage use voltage(${a.name})`,
-          );
-          continue;
-        }
-        const candidates =
-          devices.length < SUGGEST_FROM
-            ? [...devices.names.names.all(), ...injects.names, ...nodes.rails.map((r) => r.name)]
-            : [];
-        sink.error(
-          a.from,
-          a.to,
-          `current() of unknown device, inject or rail '${a.name}'`,
-          suggest(a.name, candidates),
-        );
-      }
-    }
-  }
+  for (const p of cx.probes) checkReads(cx, p.args);
+  for (const x of cx.expectations) checkReads(cx, x.reads);
 }
 
 /** Each param swept once, with values of its dimension; the grid times the mismatch runs within maxPoints. */

@@ -132,8 +132,8 @@ export class Compiler {
         sink.error(
           c.fnFrom,
           c.fnTo,
-          `${c.fn}() can only be used in a probe`,
-          "probe NAME = EXPR reads voltages and currents of the solved network",
+          `${c.fn}() can only be used in a probe or an expect`,
+          "probe NAME = EXPR and expect NAME = CONDITION read voltages, currents and power of the solved network",
         );
         return null;
       },

@@ -4,7 +4,9 @@
  */
 import type { EvalFunction } from "mathjs/number";
 import { DiagnosticSink, LineIndex } from "./diagnostics";
+import type { PendingExpectation } from "./expectations";
 import { ShapeTable } from "./names";
+import type { PendingRead } from "./reads";
 import type { Mismatch, Span } from "./network";
 import { DeviceColumns, InjectColumns, Namespace, NodeColumns } from "./tables";
 import type { Dim } from "./units";
@@ -30,7 +32,8 @@ export interface PendingProbe {
   fn: EvalFunction;
   loopNames: string[];
   loopValues: number[];
-  args: { kind: "voltage" | "current"; name: string; from: number; to: number }[];
+  args: PendingRead[];
+  dim: Dim;
 }
 
 /** A sweep statement's values, its param not yet checked against the params. */
@@ -61,6 +64,7 @@ export class Elaboration {
   /** Offset of the statement that made each probe. */
   readonly probeAt = new Map<string, number>();
   readonly sweeps: PendingSweep[] = [];
+  readonly expectations: PendingExpectation[] = [];
   mismatch: Mismatch | null = null;
   /** The `network NAME` statement's name. */
   name: string | null = null;

@@ -5,7 +5,8 @@
  * 2. read ahead what the top level declares (statements.ts `prescan`): a name's first declaration decides what it is;
  * 3. elaborate the statements in order: `network`, `set`, `param`, `sweep`, `mismatch` where they stand
  *    (statements.ts); element statements and `for` blocks compiled once into templates (templates.ts, compile.ts)
- *    and run (instantiate.ts), storing names compactly (names.ts) in the element tables (tables.ts);
+ *    and run (instantiate.ts), storing names compactly (names.ts) in the element tables (tables.ts); `expect`
+ *    statements once every other statement has run (expectations.ts);
  * 4. check the whole network (checks.ts) and assemble it (assemble.ts).
  *
  * A statement with a syntax error is skipped, and the names it mentions silence follow-up errors. Bounds on the
@@ -17,6 +18,7 @@ import { checkElaboration, checkSweepPoints } from "./checks";
 import { Compiler } from "./compile";
 import { Elaboration } from "./context";
 import { DiagnosticSink } from "./diagnostics";
+import { Expectations } from "./expectations";
 import { Aborted, Instantiator } from "./instantiate";
 import type { ElaborationResult, Network } from "./network";
 import { parser } from "./parser";
@@ -38,6 +40,7 @@ class Elaborator {
   private readonly statements: Statements;
   private readonly templates: Templates;
   private readonly instantiator: Instantiator;
+  private readonly expectations: Expectations;
 
   constructor(text: string, limits: Limits) {
     this.cx = new Elaboration(text, limits);
@@ -45,6 +48,7 @@ class Elaborator {
     this.statements = new Statements(this.cx, this.compiler);
     this.templates = new Templates(this.cx, this.compiler);
     this.instantiator = new Instantiator(this.cx);
+    this.expectations = new Expectations(this.cx, this.compiler, this.instantiator);
   }
 
   run(): ElaborationResult {
@@ -63,6 +67,7 @@ class Elaborator {
     let aborted = false;
     try {
       statements.forEach((s, i) => this.topStatement(s, i));
+      this.expectations.finish();
       checkElaboration(cx, syntaxErrors);
     } catch (e) {
       if (!(e instanceof Aborted)) throw e;
@@ -92,6 +97,8 @@ class Elaborator {
         return statements.sweep(s);
       case T.MismatchStatement:
         return statements.mismatch(s);
+      case T.ExpectStatement:
+        return this.expectations.statement(s);
       default: {
         const t = templates.statement(s, []);
         if (!t) return templates.noteBroken(s);

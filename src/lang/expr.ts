@@ -73,7 +73,31 @@ export interface CallExpr extends Base {
 export interface BadExpr extends Base {
   k: "bad";
 }
-export type Expr = NumExpr | NameExpr | InterpExpr | UnaryExpr | BinaryExpr | CallExpr | BadExpr;
+export type CompareOp = "<" | "<=" | ">" | ">=" | "==" | "!=";
+/** A comparison, possibly chained: `args[0] ops[0] args[1] ops[1] … args[n]` holds when every adjacent pair does. */
+export interface CompareExpr extends Base {
+  k: "compare";
+  args: Expr[];
+  ops: { op: CompareOp; from: number; to: number }[];
+}
+/** A run of `and` (or of `or`) over two or more conditions. */
+export interface LogicExpr extends Base {
+  k: "logic";
+  op: "and" | "or";
+  args: Expr[];
+}
+export interface NotExpr extends Base {
+  k: "not";
+  arg: Expr;
+}
+/** The condition kinds: only an expect statement takes them (conditions.ts). */
+export type ConditionExpr = CompareExpr | LogicExpr | NotExpr;
+export type Expr = NumExpr | NameExpr | InterpExpr | UnaryExpr | BinaryExpr | CallExpr | BadExpr | ConditionExpr;
+
+/** True for a comparison, and, or, not. */
+export function isCondition(e: Expr): e is ConditionExpr {
+  return e.k === "compare" || e.k === "logic" || e.k === "not";
+}
 
 const PREFIX: Record<string, number> = { f: -15, p: -12, n: -9, u: -6, µ: -6, m: -3, k: 3, M: 6, G: 9 };
 const NUMBER = /^((?:\d+(?:\.\d+)?|\.\d+))(?:[eE]([+-]?\d+))?([fpnuµmkMG])?([VAK])?$/;
@@ -161,6 +185,18 @@ export function buildExpr(node: SyntaxNode, ctx: BuildContext, depth = 0): Expr 
     }
     case T.InterpolatedName:
       return buildInterp(node, ctx, depth);
+    case T.CompareExpression:
+      return buildCompare(node, ctx, depth);
+    case T.AndExpression:
+    case T.OrExpression: {
+      const args = expressionChildren(node).map((a) => buildExpr(a, ctx, depth + 1));
+      if (args.length < 2) return { k: "bad", from, to };
+      return { k: "logic", from, to, op: node.type.id === T.AndExpression ? "and" : "or", args };
+    }
+    case T.NotExpression: {
+      const [arg] = expressionChildren(node);
+      return arg ? { k: "not", from, to, arg: buildExpr(arg, ctx, depth + 1) } : { k: "bad", from, to };
+    }
     default:
       // The grammar makes one BinaryExpression node type per precedence level.
       return node.name === "BinaryExpression" ? buildBinary(node, ctx, depth) : { k: "bad", from, to };
@@ -183,6 +219,24 @@ function buildBinary(node: SyntaxNode, ctx: BuildContext, depth: number): Expr {
   }
   if (args.length < 2 || args.length !== ops.length + 1) return { k: "bad", from, to };
   return { k: "binary", from, to, args, ops };
+}
+
+/** A chained comparison, its operands and operators alternating (anything else: bad). */
+function buildCompare(node: SyntaxNode, ctx: BuildContext, depth: number): Expr {
+  const { from, to } = node;
+  const args: Expr[] = [];
+  const ops: CompareExpr["ops"] = [];
+  for (let c = node.firstChild; c; c = c.nextSibling) {
+    if (c.name === "CompareOp") {
+      if (ops.length !== args.length - 1) return { k: "bad", from, to };
+      ops.push({ op: ctx.text.slice(c.from, c.to) as CompareOp, from: c.from, to: c.to });
+    } else if (c.type.is("Expression") || c.type.isError) {
+      if (args.length !== ops.length) return { k: "bad", from, to };
+      args.push(buildExpr(c, ctx, depth + 1));
+    }
+  }
+  if (args.length < 2 || args.length !== ops.length + 1) return { k: "bad", from, to };
+  return { k: "compare", from, to, args, ops };
 }
 
 function buildInterp(node: SyntaxNode, ctx: BuildContext, depth: number): Expr {
@@ -212,7 +266,12 @@ export function* walk(e: Expr): Generator<Expr> {
       yield* walk(e.arg);
       break;
     case "binary":
+    case "compare":
+    case "logic":
       for (const a of e.args) yield* walk(a);
+      break;
+    case "not":
+      yield* walk(e.arg);
       break;
     case "call":
       for (const a of e.args) yield* walk(a);
@@ -355,13 +414,13 @@ export const BUILTINS: Record<string, Dim> = {
   e: LOOSE,
 };
 
-/** Names that exist only inside probes. */
-export const PROBE_FUNCTIONS = new Set(["voltage", "current"]);
+/** Functions that read a solved point: only probes and expectations may call them. */
+export const PROBE_FUNCTIONS = new Set(["voltage", "current", "power"]);
 
 export interface DimContext {
   /** Dimension of a plain name, or null after reporting it. */
   name(e: NameExpr): Dim | null;
-  /** A probe call voltage(...)/current(...): its dimension, or null after reporting it. */
+  /** A probe call voltage(...)/current(...)/power(...): its dimension, or null after reporting it. */
   probeCall(e: CallExpr): Dim | null;
   /** An interpolated name used as a value (only valid as a probe argument). */
   interp(e: InterpExpr): void;
@@ -383,6 +442,16 @@ export function inferDim(e: Expr, ctx: DimContext): Dim | null {
       return ctx.name(e);
     case "interp":
       ctx.interp(e);
+      return null;
+    case "compare":
+    case "logic":
+    case "not":
+      ctx.report(
+        e.from,
+        e.to,
+        `${e.k === "compare" ? "a comparison" : `'${e.k === "not" ? "not" : e.op}'`} makes a condition, not a value`,
+        "conditions (comparisons, and, or, not) are written in expect NAME = CONDITION",
+      );
       return null;
     case "unary":
       return inferDim(e.arg, ctx);
@@ -440,7 +509,7 @@ export function inferDim(e: Expr, ctx: DimContext): Dim | null {
           e.fnFrom,
           e.fnTo,
           `unknown function '${e.fn}'`,
-          `functions: ${Object.keys(FUNCTIONS).join(", ")}; in a probe also voltage() and current()`,
+          `functions: ${Object.keys(FUNCTIONS).join(", ")}; in a probe or expect also voltage(), current() and power()`,
         );
         return null;
       }

@@ -9,10 +9,11 @@
  * million-device loop makes no name string and no Map look-up per device.
  */
 import type { NameTpl, NamePiece } from "./compile";
-import type { Elaboration, PendingProbe } from "./context";
+import type { Elaboration } from "./context";
 import { fmt } from "./diagnostics";
 import { type PieceIndex, PIECE_BOUND, shapeName } from "./names";
 import { SUBSTRATE } from "./network";
+import type { NamedAt, PendingRead, ReadTpl } from "./reads";
 import type { Kind } from "./tables";
 import type { DeviceTpl, ForTpl, InjectTpl, ProbeTpl, RailTpl, Tpl } from "./templates";
 import type { ValueTpl } from "./values";
@@ -530,12 +531,8 @@ export class Instantiator {
     if (other) return namespace.clash("probe", name, t.name, other);
     if (probes.length >= limits.maxElements)
       this.overflow(t, `more than ${limits.maxElements.toLocaleString("en-US")} probes (the limit)`);
-    const args: PendingProbe["args"] = [];
-    for (const a of t.args) {
-      const n = this.nameOf(a.name);
-      if (n === null) return;
-      args.push({ kind: a.kind, name: n, from: a.name.from, to: a.name.to });
-    }
+    const args = this.reads(t.args);
+    if (!args) return;
     probeAt.set(name, t.at);
     namespace.declare(name, "a probe", t.name.from);
     probes.push({
@@ -545,6 +542,29 @@ export class Instantiator {
       loopNames: t.loopNames,
       loopValues: this.loopValues.slice(0, t.loopNames.length),
       args,
+      dim: t.dim,
     });
+  }
+
+  /** The reads of an expression with their names made in this iteration; null after reporting a bad name piece. */
+  reads(tpls: readonly ReadTpl[]): PendingRead[] | null {
+    const out: PendingRead[] = [];
+    for (const a of tpls) {
+      if (a.kind === "power") {
+        const rails: NamedAt[] = [];
+        for (const r of a.rails) {
+          const n = this.nameOf(r);
+          if (n === null) return null;
+          rails.push({ name: n, from: r.from, to: r.to });
+        }
+        const from = a.rails[0]?.from ?? -1;
+        out.push({ kind: "power", rails, from, to: a.rails.at(-1)?.to ?? from });
+        continue;
+      }
+      const n = this.nameOf(a.name);
+      if (n === null) return null;
+      out.push({ kind: a.kind, name: n, from: a.name.from, to: a.name.to });
+    }
+    return out;
   }
 }

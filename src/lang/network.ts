@@ -150,6 +150,56 @@ export interface Mismatch {
   span: Span;
 }
 
+export type CompareOp = "<" | "<=" | ">" | ">=" | "==" | "!=";
+
+/**
+ * The logic of an expectation's condition. A comparison (chained: `a <= b < c`) compares the operand values
+ * `first`, `first + 1`, … `first + ops.length` of its expectation, adjacent pairs with `ops`.
+ */
+export type ConditionTree =
+  | { k: "compare"; first: number; ops: CompareOp[] }
+  | { k: "and" | "or"; args: ConditionTree[] }
+  | { k: "not"; arg: ConditionTree };
+
+/** The device-set checks: saturated, unsaturated (by design), weak inversion, no forward-biased junction. */
+export type CheckKind = "saturated" | "unsaturated" | "weak" | "reverse";
+
+export interface DeviceCheck {
+  kind: CheckKind;
+  /** The name pattern as written (`*` matches any run of characters). */
+  pattern: string;
+  /** The devices it covers, ascending; null for every device. */
+  devices: Int32Array | null;
+  /** weak: the inversion coefficient every device must stay below. */
+  below: number;
+}
+
+/**
+ * An `expect` statement: a condition, or a device-set check, that must hold at every point and every mismatch
+ * sample. Its margin at a point is how far the point is from the bound, in the bound's unit (positive: holds).
+ */
+export interface Expectation {
+  name: string;
+  /** The whole statement. */
+  span: Span;
+  /** The margin's unit symbol ("V", "A", "W", "" for a ratio); null when it is a plain number of no known unit. */
+  unit: string | null;
+  /** The condition's comparisons mix units: no single margin. */
+  mixedUnits: boolean;
+  condition: ConditionTree | null;
+  check: DeviceCheck | null;
+  /** How many operand values the condition's comparisons have. */
+  operandCount: number;
+  /** The operand values at a solved point into out[0, operandCount); NaN where not a number. */
+  operands(
+    ctx: ProbeContext,
+    params: Readonly<Record<string, number>>,
+    settings: Settings,
+    probes: Readonly<Record<string, number>>,
+    out: Float64Array,
+  ): void;
+}
+
 export type BindingTarget =
   | { kind: "rail"; node: number }
   | { kind: "inject"; index: number }
@@ -180,6 +230,7 @@ export interface Network {
   sweeps: Sweep[];
   mismatch: Mismatch | null;
   bindings: Binding[];
+  expectations: Expectation[];
 }
 
 export interface ElaborationResult {

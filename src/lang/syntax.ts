@@ -15,10 +15,11 @@ export const STATEMENT_WORDS = [
   "for",
   "sweep",
   "mismatch",
+  "expect",
 ] as const;
 
 const STATEMENT_HINT = `a statement starts with one of: ${STATEMENT_WORDS.join(", ")}`;
-const NAMED_KEYWORDS = new Set(["network", "param", "rail", "nfet", "pfet", "inject", "probe"]);
+const NAMED_KEYWORDS = new Set(["network", "param", "rail", "nfet", "pfet", "inject", "probe", "expect"]);
 const EXPRESSIONS = new Set([
   "Number",
   "Identifier",
@@ -27,7 +28,13 @@ const EXPRESSIONS = new Set([
   "ParenthesizedExpression",
   "UnaryExpression",
   "BinaryExpression",
+  "CompareExpression",
+  "AndExpression",
+  "OrExpression",
+  "NotExpression",
 ]);
+const COMPARISONS = "comparisons: <, <=, >, >=, == (equal), != (not equal)";
+const CHECK_EXAMPLE = "for example saturated devices=out*, or weak devices=* below=0.05";
 
 interface Token {
   from: number;
@@ -69,6 +76,11 @@ function startsLine(text: string, pos: number): boolean {
     if (c !== " " && c !== "\t" && c !== "\r" && c !== "\uFEFF") return false;
   }
   return true;
+}
+
+function ancestorNamed(node: SyntaxNode, name: string): boolean {
+  for (let n: SyntaxNode | null = node; n; n = n.parent) if (n.name === name) return true;
+  return false;
 }
 
 function describeStatement(name: string | undefined): string {
@@ -144,8 +156,53 @@ function explain(err: SyntaxNode, text: string): Explained {
 
   if (tok.found === "','" && (pname === "DeviceStatement" || pname === "InjectStatement" || pname === "Pin"))
     return at("unexpected ','", "pins are separated by spaces, not commas");
+  if (tok.found === "'&'" || tok.found === "'|'" || tok.found === "'!'")
+    return at(`unexpected ${tok.found}`, "conditions are joined with the words and, or, not");
+  const inExpect = parent !== null && ancestorNamed(parent, "ExpectStatement");
+  if (inExpect && tok.found === "'='" && pname !== "CheckOption") {
+    const next = text[tok.to];
+    return at(
+      "'=' is not a comparison",
+      next === ">" || next === "<"
+        ? `write ${next}= instead; ${COMPARISONS}`
+        : `write == to compare for equality; ${COMPARISONS}`,
+    );
+  }
 
   switch (pname) {
+    case "ExpectStatement":
+      if (prevName === "expect") return expected("a name after 'expect'");
+      if (prevName === "Definition") return expected(`'=' after '${prevText}'`);
+      if (prevName === "=")
+        return expected(
+          "a condition or a device-set check after '='",
+          "for example expect ok = current(m1) > 1n, or expect sat = saturated devices=out*",
+        );
+      if (afterValue)
+        return at(`unexpected ${tok.found} after the condition`, `${COMPARISONS}; join conditions with and, or`);
+      break;
+    case "DeviceCheck":
+      if (tok.found === "'{'")
+        return at("a name pattern has no {…} pieces", "* matches any run of characters: devices=m* covers m0, m1, …");
+      return expected("devices=PATTERN or below=IC", CHECK_EXAMPLE);
+    case "CheckOption": {
+      const key = parent?.firstChild ? text.slice(parent.firstChild.from, parent.firstChild.to) : "";
+      if (prevName === "devices" || prevName === "below") return expected(`'=' after '${prevName}'`);
+      if (prevName === "=" && key === "devices")
+        return expected(
+          "a name pattern after 'devices='",
+          "* matches any run of characters: devices=out* or devices=*",
+        );
+      if (prevName === "=") return expected(`a value after '${key}='`);
+      return expected("devices=PATTERN or below=IC", CHECK_EXAMPLE);
+    }
+    case "CompareExpression":
+      if (prevName === "CompareOp") return expected(`a value after '${prevText}'`);
+      return at(`unexpected ${tok.found} in the comparison`, COMPARISONS);
+    case "AndExpression":
+    case "OrExpression":
+    case "NotExpression":
+      return expected(`a condition after '${prevText}'`, "for example voltage(x) > 0.1");
     case "NetworkStatement":
     case "ParamStatement":
     case "RailStatement":

@@ -148,7 +148,7 @@ export class InjectColumns {
 }
 
 /** What a name may be besides a node, as messages say it. */
-export type Kind = "a rail" | "a device" | "an inject" | "a probe" | "a param";
+export type Kind = "a rail" | "a device" | "an inject" | "a probe" | "a param" | "an expectation";
 
 /**
  * One namespace: a name means one thing. Rails, injects, probes and params are recorded here by name; devices are

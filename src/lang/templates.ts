@@ -11,7 +11,8 @@ import { type CallExpr, containsError, inferDim, isBad } from "./expr";
 import { NFET, PFET } from "./network";
 import * as T from "./parser.terms";
 import { suggest } from "./suggest";
-import { AMPERE, DIMENSIONLESS, VOLT } from "./units";
+import { readCall, type ReadTpl } from "./reads";
+import { AMPERE, type Dim, DIMENSIONLESS, VOLT } from "./units";
 import type { ValueTpl } from "./values";
 import { ELEMENT_PINS, type ElementKind, pinsOf } from "./vocabulary";
 
@@ -42,10 +43,6 @@ export interface RailTpl {
   name: NameTpl;
   value: ValueTpl | null;
 }
-export interface ProbeArgTpl {
-  kind: "voltage" | "current";
-  name: NameTpl;
-}
 export interface ProbeTpl {
   k: "probe";
   at: number;
@@ -53,7 +50,9 @@ export interface ProbeTpl {
   name: NameTpl;
   fn: EvalFunction | null;
   loopNames: string[];
-  args: ProbeArgTpl[];
+  args: ReadTpl[];
+  /** The probe's dimension (what an expectation comparing it needs). */
+  dim: Dim;
 }
 export interface ForTpl {
   k: "for";
@@ -346,51 +345,18 @@ export class Templates {
     const name = compiler.name(s.getChild("Definition")!, loopVars);
     const node = exprChild(s);
     if (!name || !node) return null;
-    const args: ProbeArgTpl[] = [];
+    const args: ReadTpl[] = [];
     const calls = new Map<CallExpr, string>();
     const e = compiler.build(node);
-    let ok = !isBad(e);
-    const dim = ok
-      ? inferDim(e, {
-          name: (n) => compiler.nameDim(n, loopVars),
-          probeCall: (c) => {
-            const kind = c.fn as "voltage" | "current";
-            if (c.args.length !== 1) {
-              sink.error(
-                c.fnFrom,
-                c.fnTo,
-                `${kind}() takes one ${kind === "voltage" ? "node" : "device, inject or rail"} name`,
-              );
-              return null;
-            }
-            const a = c.args[0];
-            if (a.k !== "name" && a.k !== "interp") {
-              sink.error(
-                a.from,
-                a.to,
-                `${kind}() takes a name, not an expression`,
-                kind === "voltage" ? "for example voltage(x3)" : "for example current(m1)",
-              );
-              return null;
-            }
-            const t = compiler.nameOf(a, loopVars);
-            if (!t) return null;
-            calls.set(c, probeArgName(args.length));
-            args.push({ kind, name: t });
-            return kind === "voltage" ? VOLT : AMPERE;
-          },
-          interp: (i) => compiler.interpAsValue(i),
-          report: (f, t, m, h) => sink.error(f, t, m, h),
-        })
-      : null;
-    if (!dim) ok = false;
-    if (!ok) return null;
+    if (isBad(e)) return null;
+    const dim = inferDim(e, {
+      name: (n) => compiler.nameDim(n, loopVars),
+      probeCall: (c) => readCall(compiler, this.cx, c, loopVars, args, calls),
+      interp: (i) => compiler.interpAsValue(i),
+      report: (f, t, m, h) => sink.error(f, t, m, h),
+    });
+    if (!dim) return null;
     const fn = compiler.compile(e, (c) => calls.get(c)!);
-    return { k: "probe", at: s.from, end: s.to, name, fn, loopNames: loopVars, args };
+    return { k: "probe", at: s.from, end: s.to, name, fn, loopNames: loopVars, args, dim };
   }
-}
-
-/** The variable that stands for a probe's i-th voltage() or current() call in its compiled expression. */
-export function probeArgName(i: number): string {
-  return `__runnel_arg${i}`;
 }

@@ -101,6 +101,18 @@ export function formatDim(d: Dim): string {
   return den.length ? `${top}/${den.join("·")}` : top;
 }
 
+/**
+ * The unit symbol a result of dimension `d` is shown with: "V", "A", "K", "W" (V·A), "" for a dimensionless
+ * ratio, the symbolic form ("V/A", "A²") for other known dimensions, and null when the dimension is not known
+ * (a bare number, whose unit is whatever its use needs).
+ */
+export function unitSymbol(d: Dim): string | null {
+  if (d.kind !== "known") return null;
+  if (isDimensionless(d)) return "";
+  if (sameDim(d, known(1, 1, 0))) return "W";
+  return formatDim(d);
+}
+
 /** Words for messages: "volts (V)", "amperes (A)", "kelvin (K)", or the symbolic form. */
 export function describeDim(d: Dim): string {
   if (sameDim(d, VOLT)) return "volts (V)";

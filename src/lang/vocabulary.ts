@@ -4,7 +4,7 @@
  * inversion-coefficient bound of weak inversion. The language (elaboration and its syntax messages), the editor
  * (completion) and the solver read them from here; docs/language.md states them for people.
  */
-import type { Model, Settings } from "./network";
+import type { CheckKind, Model, Settings } from "./network";
 import { thermalVoltage } from "./point";
 import { AMPERE, DIMENSIONLESS, type Dim, KELVIN, VOLT } from "./units";
 
@@ -119,6 +119,25 @@ export const DEFAULT_SEED = 1;
 export const WEAK_INVERSION_IC = 0.1;
 /** The inversion coefficient above which a device is in strong inversion (same source). */
 export const STRONG_INVERSION_IC = 10;
+
+// ---------------------------------------------------------------- expectations
+
+/** The device-set checks of `expect NAME = CHECK devices=PATTERN`, in the order they are listed to users. */
+export const CHECKS = ["saturated", "unsaturated", "weak", "reverse"] as const satisfies readonly CheckKind[];
+
+/** What each check requires of every device it covers, for completion lists and docs. */
+export const CHECK_DETAIL: Readonly<Record<CheckKind, string>> = {
+  saturated: "every device saturated: V_DS > 4 U_T",
+  unsaturated: "every device unsaturated by design: V_DS ≤ 4 U_T",
+  weak: "every device in weak inversion: IC below `below` (default 0.1; needs ispec and vt0)",
+  reverse: "no source or drain junction forward-biased",
+};
+
+/** The options of a device-set check; `devices` is required, `below` belongs to `weak`. */
+export const CHECK_OPTIONS = ["devices", "below"] as const;
+
+/** A junction counts as forward-biased beyond this, volts (the solver's validity check uses the same). */
+export const JUNCTION_TOLERANCE = 1e-6;
 
 // ---------------------------------------------------------------- limits
 

@@ -8,6 +8,7 @@
  */
 
 import { type Network, NFET } from "../lang/network";
+import { JUNCTION_TOLERANCE as JUNCTION_LIMIT } from "../lang/vocabulary";
 import { type DeviceParams, deviceCurrent } from "./device";
 import type { Evaluation, PointStorage, SolverWarning } from "./results";
 
@@ -23,8 +24,8 @@ const N_TYPE: number = NFET;
  * of KCL error, outputs 0.7% off), so this keeps reported currents to about 1e-5.
  */
 export const KCL_LIMIT = 1e-6;
-/** Tolerance below which a junction counts as forward-biased, volts. */
-export const JUNCTION_TOLERANCE = 1e-6;
+/** Tolerance beyond which a junction counts as forward-biased, volts (module-local, as N_TYPE). */
+export const JUNCTION_TOLERANCE: number = JUNCTION_LIMIT;
 /** Inversion coefficient above which the weak-inversion model no longer holds (common practice: IC < 0.1 is weak inversion). */
 export const WEAK_LIMIT = 0.1;
 

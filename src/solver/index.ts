@@ -10,6 +10,16 @@ export { classify, type Classification } from "./classify";
 export { solveNetwork, sweepGrid, pointCount, type SolveOptions } from "./sweep";
 export { evaluate } from "./evaluate";
 export type { PointResult, RunResult, RunTimings, SolverInfo, SolverWarning, ProbeSummary, Method } from "./results";
-export { toSolveJson, pointJson, type SolveJson, type JsonPoint } from "./json";
+export { toSolveJson, pointJson, summarizeExpectations, type SolveJson, type JsonPoint } from "./json";
+export { evaluateExpectations, type PointExpectations } from "./expectations";
+export {
+  ExpectationTally,
+  expectationJson,
+  wilsonInterval,
+  type ExpectationJson,
+  type ExpectationSummary,
+  type FirstFailure,
+  type YieldEstimate,
+} from "./expectation-summary";
 export { DEFAULT_ORDERING, type OrderingChoice } from "./linear";
 export { summarize } from "./mismatch";

@@ -103,8 +103,10 @@ export class PointFormatter {
   private readonly nl: string[];
   private readonly colon: string;
   private readonly reasons = new Map<string, string>();
+  private readonly expectations: readonly string[];
 
   constructor(net: Network, pretty: boolean, select: Selection = EVERYTHING) {
+    this.expectations = net.expectations.map((x) => x.name);
     // Pretty: the point's braces at 4 spaces (inside the document's points array), its keys at 6.
     this.nl = [0, 1, 2, 3].map((d) => (pretty ? `\n${" ".repeat(4 + 2 * d)}` : ""));
     this.colon = pretty ? ": " : ":";
@@ -134,11 +136,24 @@ export class PointFormatter {
     );
     w.text(this.reason(reason));
     w.ascii(`${nl[1]}},${nl[1]}"sample"${colon}${p.sample ?? 0}`);
+    if (this.expectations.length > 0) this.verdicts(p, w);
     if (error !== undefined) {
       w.ascii(`,${nl[1]}"error"${colon}`);
       w.text(JSON.stringify(error));
     }
     w.ascii(`${nl[0]}}`);
+  }
+
+  /** "expectations": { "name": true | false | null, … } (null: the point was not solved). */
+  private verdicts(p: PointResult, w: ByteWriter): void {
+    const { nl, colon } = this;
+    w.ascii(`,${nl[1]}"expectations"${colon}`);
+    this.expectations.forEach((name, i) => {
+      w.ascii(`${i ? "," : "{"}${nl[2]}"`);
+      w.name(name);
+      w.ascii(`"${colon}${p.expectations ? (p.expectations.passed[i] === 1 ? "true" : "false") : "null"}`);
+    });
+    w.ascii(`${nl[1]}}`);
   }
 
   /** A small record of numbers (params, probes) as JSON.stringify prints it. */

@@ -7,6 +7,12 @@
 import { type JsonDiagnostic, LineIndex } from "../lang/diagnostics";
 import type { Diagnostic, Network } from "../lang/network";
 import { firstDeviceAt } from "./evaluate";
+import {
+  type ExpectationJson,
+  expectationJson,
+  type ExpectationSummary,
+  ExpectationTally,
+} from "./expectation-summary";
 import type { Method, PointResult, RunResult, SolverWarning } from "./results";
 
 /**
@@ -22,6 +28,8 @@ export interface JsonPoint {
   probes: Record<string, number | null>;
   solver: { method: Method; iterations: number; residual: number; reason?: string };
   sample: number;
+  /** Whether each expectation holds at the point (null: the point was not solved); only when the network has any. */
+  expectations?: Record<string, boolean | null>;
   error?: string;
 }
 
@@ -30,6 +38,8 @@ export interface SolveJson {
   ok: boolean;
   diagnostics: JsonDiagnostic[];
   points: JsonPoint[];
+  /** Only when the network has expect statements (empty when the run is not ok). */
+  expectations?: ExpectationJson[];
 }
 
 const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -48,7 +58,7 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
   const probes: Record<string, number | null> = {};
   for (const [k, v] of Object.entries(p.probes)) probes[k] = finiteOrNull(v);
   const { method, iterations, residual, reason } = p.solver;
-  return {
+  const out: JsonPoint = {
     params: p.params,
     nodes,
     rails,
@@ -57,22 +67,58 @@ export function pointJson(net: Network, p: PointResult): JsonPoint {
     solver: { method, iterations, residual, reason },
     sample: p.sample ?? 0,
   };
+  if (net.expectations.length > 0) out.expectations = pointVerdicts(net, p);
+  return out;
+}
+
+/** Whether each expectation holds at a point, by name (null: the point was not solved). */
+export function pointVerdicts(net: Network, p: PointResult): Record<string, boolean | null> {
+  const verdicts: Record<string, boolean | null> = {};
+  net.expectations.forEach((x, i) => (verdicts[x.name] = p.expectations ? p.expectations.passed[i] === 1 : null));
+  return verdicts;
+}
+
+/** A tally of the network's expectations over its run (`text` places each at its statement's line). */
+export function expectationTally(net: Network, text?: string): ExpectationTally {
+  const lines = text !== undefined ? new LineIndex(text) : null;
+  const defs = net.expectations.map((x) => ({
+    name: x.name,
+    line: lines ? lines.position(x.span.from).line : 1,
+    unit: x.unit,
+  }));
+  const samples = net.mismatch ? net.mismatch.runs : null;
+  let grid = 1;
+  for (const s of net.sweeps) grid *= s.values.length;
+  return new ExpectationTally(defs, samples, grid);
+}
+
+/** Every expectation of `net` over the run's kept points. */
+export function summarizeExpectations(net: Network, run: RunResult, text?: string): ExpectationSummary[] {
+  const tally = expectationTally(net, text);
+  for (const p of run.points) tally.add(p.index, p.ok ? p.expectations : null, () => p.params);
+  return tally.finish();
 }
 
 /**
- * What the document's diagnostics need from a run's points, gathered point
- * by point (so a run that streams its points keeps none): each validity
- * warning's first point, and each probe's first solved point where it is not
- * a finite number.
+ * What the document needs from a run's points, gathered point by point (so a
+ * run that streams its points keeps none): each validity warning's first
+ * point, each probe's first solved point where it is not a finite number, and
+ * the tally of the network's expectations (when `net` is given and has any).
  */
 export class RunNotes {
   points = 0;
   readonly warnings: { warning: SolverWarning; index: number; sample: number | null }[] = [];
   readonly notFinite = new Map<string, { index: number; sample: number | null }>();
+  readonly expectations: ExpectationTally | null;
   private readonly seen = new Set<string>();
+
+  constructor(net?: Network | null, text?: string) {
+    this.expectations = net && net.expectations.length > 0 ? expectationTally(net, text) : null;
+  }
 
   note(p: PointResult): void {
     this.points++;
+    this.expectations?.add(p.index, p.ok ? p.expectations : null, () => ({ ...p.params }));
     for (const w of p.warnings) {
       const key = `${w.kind}:${w.device}`;
       if (this.seen.has(key)) continue;
@@ -85,8 +131,8 @@ export class RunNotes {
         this.notFinite.set(name, { index: p.index, sample: p.sample });
   }
 
-  static of(points: readonly PointResult[]): RunNotes {
-    const n = new RunNotes();
+  static of(points: readonly PointResult[], net?: Network | null, text?: string): RunNotes {
+    const n = new RunNotes(net, text);
     for (const p of points) n.note(p);
     return n;
   }
@@ -97,7 +143,8 @@ export class RunNotes {
  * solver failures become errors and validity warnings become warnings, placed
  * at the device's statement when `text` is given. `ok` is false, with no
  * points, when any diagnostic is an error or any point failed. `notes` are
- * the run's points' (made from run.points when not given).
+ * the run's points' (made from run.points when not given). A network with
+ * expect statements adds `expectations`, after the points.
  */
 export function toSolveJson(
   net: Network | null,
@@ -119,8 +166,10 @@ export function toSolveJson(
   const at = (offset: number): { line: number; column: number } =>
     lines && offset >= 0 ? lines.position(offset) : { line: 1, column: 1 };
   let ok = !diagnostics.some((d) => d.severity === "error") && net !== null && run !== null;
+  let summaries: ExpectationSummary[] | null = null;
   if (net && run) {
-    const n = notes ?? RunNotes.of(run.points);
+    const n = notes ?? RunNotes.of(run.points, net, text);
+    summaries = n.expectations?.finish() ?? null;
     const where = (index: number, sample: number | null) =>
       n.points > 1 ? ` (first at point ${index}${sample !== null ? `, sample ${sample}` : ""})` : "";
     for (const f of run.failures) {
@@ -141,11 +190,13 @@ export function toSolveJson(
     }
     if (!run.ok) ok = false;
   }
-  return {
+  const doc: SolveJson = {
     network: net ? net.name : (name ?? null),
     ok,
     diagnostics: out,
     // (Without points, a caller prints them one by one: a big run's text would not fit one string.)
     points: ok && net && run && withPoints ? run.points.map((p) => pointJson(net, p)) : [],
   };
+  if (net && net.expectations.length > 0) doc.expectations = ok && summaries ? summaries.map(expectationJson) : [];
+  return doc;
 }

@@ -11,6 +11,7 @@
  */
 
 import type { Classification } from "./classify";
+import type { PointExpectations } from "./expectations";
 
 export type Method = "linear" | "newton";
 
@@ -77,6 +78,8 @@ export interface PointResult {
   /** Per node: current a rail delivers into the network; NaN for internal nodes. */
   railCurrents: Float64Array;
   probes: Record<string, number>;
+  /** Each expectation's verdict and margin at the point; null for a failed point or a network without any. */
+  expectations: PointExpectations | null;
   solver: SolverInfo;
   warnings: SolverWarning[];
 }

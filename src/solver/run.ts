@@ -16,6 +16,7 @@ import { applyPoint } from "../lang/point";
 import type { Classification } from "./classify";
 import { type DeviceParams, deviceParams } from "./device";
 import { evaluateProbes } from "./evaluate";
+import { evaluateExpectations } from "./expectations";
 import { MismatchSampler, summarize } from "./mismatch";
 import { type Alloc, Arena, heap } from "./pool";
 import type { Evaluation, Method, PointResult, PointStorage, RunResult, RunTimings, SolverInfo } from "./results";
@@ -266,6 +267,19 @@ export class Run {
   record(at: PointAt, V: Float64Array, ev: Evaluation, outcome: Outcome, solver: SolverInfo, since: number): void {
     const { ok } = outcome;
     const probes = ok ? evaluateProbes(at.net, V, ev.currents, ev.railCurrents, at.params) : {};
+    const { currents, ic, saturated, railCurrents } = ev;
+    const expectations = ok
+      ? evaluateExpectations({
+          net: at.net,
+          voltages: V,
+          currents,
+          ic,
+          saturated,
+          railCurrents,
+          params: at.params,
+          probes,
+        })
+      : null;
     for (const name in probes) this.probeValues[name].push(probes[name]);
     const point: PointResult = {
       index: at.index,
@@ -280,6 +294,7 @@ export class Run {
       saturated: ev.saturated,
       railCurrents: ev.railCurrents,
       probes,
+      expectations,
       solver,
       warnings: ok ? ev.warnings : [],
     };

@@ -219,3 +219,42 @@ describe("names collected from the tree", () => {
     expect(names.params.map((p) => p.name)).toEqual(expect.arrayContaining(["p0", "p100", "p1500"]));
   });
 });
+
+describe("expectations", () => {
+  const ROW = `${NET}for k in 0..3 {
+  nfet out{k} gate=vbias source=x{k} drain=vdd
+}
+probe ratio = current(m1)/current(out0)
+`;
+
+  it("offers expect as a statement word", () => {
+    expect(labels(`${ROW}exp|`)).toContain("expect");
+  });
+
+  it("offers the device-set checks, probes, params and the read functions after expect NAME =", () => {
+    const got = labels(`${ROW}expect ok = |`, true);
+    expect(got).toEqual(expect.arrayContaining(["saturated", "unsaturated", "weak", "reverse", "ratio", "vb"]));
+    expect(got).toEqual(expect.arrayContaining(["voltage", "current", "power", "not"]));
+    expect(completeAt(`${ROW}expect ok = sat|`)?.options.find((o) => o.label === "saturated")?.apply).toBe(
+      "saturated devices=",
+    );
+  });
+
+  it("offers the check's options, below only for weak", () => {
+    expect(labels(`${ROW}expect s = saturated |`, true)).toEqual(["devices"]);
+    expect(labels(`${ROW}expect s = weak devices=* |`, true)).toEqual(["below"]);
+  });
+
+  it("offers name patterns of loop-made devices and device names after devices=", () => {
+    const got = labels(`${ROW}expect s = saturated devices=|`, true);
+    expect(got).toEqual(expect.arrayContaining(["*", "out*", "m1"]));
+  });
+
+  it("offers and/or after a comparison, values after and, rails in power()", () => {
+    expect(labels(`${ROW}expect s = ratio > 1 |`, true)).toEqual(["and", "or"]);
+    expect(labels(`${ROW}expect s = ratio > 1 and |`, true)).toEqual(expect.arrayContaining(["ratio", "current"]));
+    expect(labels(`${ROW}expect s = ratio > 1 and |`, true)).not.toContain("saturated");
+    expect(labels(`${ROW}expect s = power(|`, true)).toEqual(["vdd", "gnd", "vbias"]);
+    expect(labels(`${ROW}expect s = ratio <= |`, true)).toContain("ratio");
+  });
+});

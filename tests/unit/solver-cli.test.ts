@@ -179,7 +179,8 @@ describe("runnel solve output options", () => {
 
   it("--probes-only and --nodes/--devices/--rails print only what they name; a name that matches nothing is a usage error", () => {
     const only = JSON.parse(run(grid, "--json", "--probes-only").out) as SolveJson;
-    expect(Object.keys(only.points[0])).toEqual(["params", "probes", "solver", "sample"]);
+    // (grid32 states expectations: their verdicts are kept with the probes.)
+    expect(Object.keys(only.points[0])).toEqual(["params", "probes", "solver", "sample", "expectations"]);
     const full = JSON.parse(run(grid, "--json").out) as SolveJson;
     expect(only.points[0].probes).toEqual(full.points[0].probes);
     const some = JSON.parse(run(grid, "--json", "--nodes", "n0_0,n31_*", "--devices", "o16_16").out) as SolveJson;
