@@ -25,7 +25,7 @@ import { secretHash } from "./secrets";
 import { originAllowed, safeNext } from "./request-edge";
 import { actorFromToken } from "./tokens";
 
-export { clientAddress, originAllowed, safeNext } from "./request-edge";
+export { clientAddress, originAllowed, publicBaseUrl, safeNext } from "./request-edge";
 
 export const SESSION_COOKIE = "runnel_session";
 export const SESSION_LIFETIME = new TimeSpan(30, "d");
@@ -176,13 +176,4 @@ export async function checkActionOrigin(): Promise<void> {
   if (!originAllowed("POST", await headers())) {
     throw new PolicyError(403, "this form was not sent from Runnel's own pages (Origin does not match Host)");
   }
-}
-
-/** The site's base URL for links in e-mail: $RUNNEL_PUBLIC_URL, else the request's own scheme and host. */
-export function publicBaseUrl(h: Headers): string {
-  const configured = process.env.RUNNEL_PUBLIC_URL;
-  if (configured) return configured.replace(/\/+$/, "");
-  const host = h.get("x-forwarded-host")?.split(",")[0]?.trim() || h.get("host") || "127.0.0.1:3000";
-  const proto = h.get("x-forwarded-proto")?.split(",")[0]?.trim() || "http";
-  return `${proto}://${host}`;
 }

@@ -4,7 +4,7 @@
  * form, and errors per field. Actions that succeed by navigating throw
  * Next's redirect instead.
  */
-import type { z } from "zod";
+import { z } from "zod";
 import { PolicyError } from "./policy";
 import { isBusy } from "./db-busy";
 import { RequestError } from "./http";
@@ -28,14 +28,18 @@ export function formValues(form: FormData, omit: string[] = []): Record<string, 
   return out;
 }
 
-/** 400 with zod's errors per field. */
+/** 400 with zod's errors per field (errors about the whole form under `form`). */
 export function invalid(error: z.ZodError, values?: Record<string, string>): FormState {
-  const fieldErrors: Record<string, string[]> = {};
-  for (const issue of error.issues) {
-    const key = issue.path.length ? String(issue.path[0]) : "form";
-    (fieldErrors[key] ??= []).push(issue.message);
-  }
-  return { status: 400, error: "Please correct the fields marked below.", fieldErrors, values };
+  const { formErrors, fieldErrors } = z.flattenError(error) as {
+    formErrors: string[];
+    fieldErrors: Record<string, string[]>;
+  };
+  return {
+    status: 400,
+    error: "Please correct the fields marked below.",
+    fieldErrors: formErrors.length ? { ...fieldErrors, form: formErrors } : fieldErrors,
+    values,
+  };
 }
 
 /**

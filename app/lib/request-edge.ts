@@ -3,6 +3,7 @@
  * (the proxy, route handlers and server actions all use it):
  * - `originAllowed`: may a request with these headers mutate (CSRF)?
  * - `safeNext`: the local path a `next` parameter may redirect to.
+ * - `publicBaseUrl`: the base of links in e-mail.
  * - `clientAddress`: the client's network address, trusting X-Forwarded-For
  *   only as far as $RUNNEL_TRUSTED_PROXIES hops.
  */
@@ -136,3 +137,12 @@ export function contentSecurityPolicy(nonce: string, development = false): strin
 
 /** The policy for everything that is not a page (API answers, downloads): nothing may run or frame it. */
 export const NON_PAGE_POLICY = "default-src 'none'; frame-ancestors 'none'; sandbox";
+
+/** The site's base URL for links in e-mail: $RUNNEL_PUBLIC_URL, else the request's own scheme and host. */
+export function publicBaseUrl(h: Headers): string {
+  const configured = process.env.RUNNEL_PUBLIC_URL;
+  if (configured) return configured.replace(/\/+$/, "");
+  const host = h.get("x-forwarded-host")?.split(",")[0]?.trim() || h.get("host") || "127.0.0.1:3000";
+  const proto = h.get("x-forwarded-proto")?.split(",")[0]?.trim() || "http";
+  return `${proto}://${host}`;
+}

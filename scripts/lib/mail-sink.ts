@@ -1,7 +1,7 @@
 /**
  * The local SMTP sink used by `npm run demo` and the tests: an smtp-server on
  * 127.0.0.1 that accepts every message (no TLS, no authentication), reads it
- * with ./mime and hands it to `onMessage`. `storeInMailbox(db)` is the
+ * with ./mime (mailparser) and hands it to `onMessage`. `storeInMailbox(db)` is the
  * onMessage that writes into the `dev_mail` table, which /dev/mailbox lists.
  * Nothing here is used in production (RUNNEL_SMTP_URL set).
  */
@@ -43,15 +43,16 @@ export function startMailSink(options: {
           callback(Object.assign(new Error("message too large"), { responseCode: 552 }));
           return;
         }
-        const mail: ReceivedMail = {
-          ...parseMail(Buffer.concat(chunks)),
-          recipients: session.envelope.rcptTo.map((r) => r.address),
-        };
-        Promise.resolve(options.onMessage(mail)).then(
-          () => callback(),
-          (e: Error) =>
-            callback(Object.assign(new Error(`sink could not store the message: ${e.message}`), { responseCode: 451 })),
-        );
+        const recipients = session.envelope.rcptTo.map((r) => r.address);
+        parseMail(Buffer.concat(chunks))
+          .then((parsed) => options.onMessage({ ...parsed, recipients }))
+          .then(
+            () => callback(),
+            (e: Error) =>
+              callback(
+                Object.assign(new Error(`sink could not store the message: ${e.message}`), { responseCode: 451 }),
+              ),
+          );
       });
     },
   });

@@ -83,6 +83,26 @@ describe("review routes", () => {
     expect(inbox[0].text).toContain("/threads/t_r#");
   });
 
+  it("the link in a mention e-mail is the thread's permalink under the configured public URL", async () => {
+    setup();
+    inbox.length = 0;
+    process.env.RUNNEL_PUBLIC_URL = "https://runnel.larkspur.example/";
+    try {
+      const { POST } = await import("@/app/api/threads/[id]/comments/route");
+      const res = await POST(
+        request("designer", "POST", "/api/threads/t_r/comments", { body: "@reviewer the ratio moved" }),
+        ctx("t_r"),
+      );
+      expect(res.status).toBe(201);
+      await waitFor(1);
+      expect(inbox).toHaveLength(1);
+      const links = inbox[0].text.match(/https?:\/\/\S+/g);
+      expect(links).toEqual([`https://runnel.larkspur.example/threads/t_r#${(await res.json()).commentId}`]);
+    } finally {
+      delete process.env.RUNNEL_PUBLIC_URL;
+    }
+  });
+
   it("a viewer and a designer cannot sign off; a reviewer can", async () => {
     setup();
     const { POST } = await import("@/app/api/threads/[id]/comments/route");

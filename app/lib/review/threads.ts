@@ -17,6 +17,7 @@ import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
 import { comments, commits, memberships, networks, reviews, runs, threads, users, type Verdict } from "@/db/schema";
 import { RequestError } from "../http";
+import { publicBaseUrl } from "../request-edge";
 import type { Q } from "@/db";
 import { newId } from "@/db/ids";
 import { commitBadges, type ReviewState } from "./diffs";
@@ -33,11 +34,6 @@ export type Notify = (mail: { to: string; subject: string; text: string; html?: 
 /** The handle of a member: the local part of their address, lower case. */
 export function handleOf(email: string): string {
   return email.split("@")[0].toLowerCase();
-}
-
-/** The base of links in e-mails when the caller gives none: $RUNNEL_PUBLIC_URL (README, Configuration), else this host. */
-function defaultBaseUrl(): string {
-  return (process.env.RUNNEL_PUBLIC_URL ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/+$/, "");
 }
 
 function checkBody(body: string, verdict: Verdict | null): string {
@@ -192,7 +188,7 @@ export async function addComment(
   });
 
   const author = d.select({ name: users.name }).from(users).where(eq(users.id, input.authorId)).get();
-  const link = `${(input.baseUrl ?? defaultBaseUrl()).replace(/\/+$/, "")}/threads/${thread.id}#${commentId}`;
+  const link = `${(input.baseUrl ?? publicBaseUrl(new Headers())).replace(/\/+$/, "")}/threads/${thread.id}#${commentId}`;
   const mailErrors: string[] = [];
   for (const t of targets) {
     const excerpt = body.length > 600 ? `${body.slice(0, 600)}…` : body;
