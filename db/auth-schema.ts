@@ -15,7 +15,7 @@
  * - An API token is valid while `revoked_at` is null.
  */
 import { index, integer, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
-import { createdAt, nowMs, timestamp, users, workspaces, type Role } from "./base-schema";
+import { createdAt, nowMs, timestamp, users, type Role, workspaceRef } from "./base-schema";
 
 export const sessions = sqliteTable(
   "sessions",
@@ -34,9 +34,7 @@ export const invitations = sqliteTable(
   "invitations",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     /** Normalised (trimmed, lower-case) address the invitation was sent to. */
     email: text("email").notNull(),
     role: text("role").$type<Role>().notNull(),

@@ -45,12 +45,16 @@ export const workspaces = sqliteTable(
   (t) => [uniqueIndex("workspaces_slug_idx").on(t.slug)],
 );
 
+/** The workspace a row belongs to (every permalink's policy check reads it without a join); its rows go with it. */
+export const workspaceRef = () =>
+  text("workspace_id")
+    .notNull()
+    .references(() => workspaces.id, { onDelete: "cascade" });
+
 export const memberships = sqliteTable(
   "memberships",
   {
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     userId: text("user_id")
       .notNull()
       .references(() => users.id, { onDelete: "cascade" }),

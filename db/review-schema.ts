@@ -20,7 +20,7 @@
  */
 import { sql } from "drizzle-orm";
 import { blob, index, integer, sqliteTable, text } from "drizzle-orm/sqlite-core";
-import { createdAt, nowMs, timestamp, users, workspaces } from "./base-schema";
+import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
 import { commits, networks, runs } from "./work-schema";
 
 export const VERDICTS = ["signed_off", "changes_asked"] as const;
@@ -30,9 +30,7 @@ export const threads = sqliteTable(
   "threads",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     networkId: text("network_id")
       .notNull()
       .references(() => networks.id, { onDelete: "cascade" }),
@@ -64,9 +62,7 @@ export const comments = sqliteTable(
     threadId: text("thread_id")
       .notNull()
       .references(() => threads.id, { onDelete: "cascade" }),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     authorId: text("author_id")
       .notNull()
       .references(() => users.id),
@@ -92,9 +88,7 @@ export const reviews = sqliteTable(
     commitId: text("commit_id")
       .notNull()
       .references(() => commits.id, { onDelete: "cascade" }),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     reviewerId: text("reviewer_id")
       .notNull()
       .references(() => users.id),
@@ -120,9 +114,7 @@ export const commitDiffs = sqliteTable(
     commitId: text("commit_id")
       .notNull()
       .references(() => commits.id, { onDelete: "cascade" }),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     /** The parent commit's newest finished run of the same analysis; null when there is none. */
     baseRunId: text("base_run_id").references(() => runs.id, { onDelete: "set null" }),
     baseCommitId: text("base_commit_id"),
@@ -160,9 +152,7 @@ export const measurements = sqliteTable(
   "measurements",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     networkId: text("network_id")
       .notNull()
       .references(() => networks.id, { onDelete: "cascade" }),

@@ -16,7 +16,7 @@
  *   device, rail, probe and param names, fixed when the run starts).
  */
 import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
-import { createdAt, nowMs, timestamp, users, workspaces } from "./base-schema";
+import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
 
 export const RUN_STATES = ["queued", "running", "done", "failed", "canceled", "interrupted"] as const;
 export type RunState = (typeof RUN_STATES)[number];
@@ -43,9 +43,7 @@ export const networks = sqliteTable(
   "networks",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     /** URL name, unique in the workspace: /w/[ws]/n/[slug]. */
     slug: text("slug").notNull(),
     name: text("name").notNull(),
@@ -108,9 +106,7 @@ export const runs = sqliteTable(
     networkId: text("network_id")
       .notNull()
       .references(() => networks.id, { onDelete: "cascade" }),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     createdBy: text("created_by")
       .notNull()
       .references(() => users.id),
@@ -235,9 +231,7 @@ export const workerTokens = sqliteTable(
   "worker_tokens",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
     name: text("name").notNull(),
     /** The first characters of the token, shown in lists. */
     prefix: text("prefix").notNull(),

@@ -150,13 +150,18 @@ export function insertPoints(runId: string, points: readonly StoredPoint[], d: Q
   return added;
 }
 
-/** One whole point, or null when it is not stored. */
-export function readPoint(runId: string, point: number, d: Q = db()): StoredPoint | null {
-  const r = d
+/** A point's stored row, or undefined when it is not stored. */
+function pointRow(runId: string, point: number, d: Q) {
+  return d
     .select()
     .from(runPoints)
     .where(and(eq(runPoints.runId, runId), eq(runPoints.point, point)))
     .get();
+}
+
+/** One whole point, or null when it is not stored. */
+export function readPoint(runId: string, point: number, d: Q = db()): StoredPoint | null {
+  const r = pointRow(runId, point, d);
   if (!r) return null;
   return {
     point: r.point,
@@ -378,11 +383,7 @@ export function pointBinary(
   point: number,
   d: Q = db(),
 ): Uint8Array<ArrayBuffer> | null {
-  const r = d
-    .select()
-    .from(runPoints)
-    .where(and(eq(runPoints.runId, runId), eq(runPoints.point, point)))
-    .get();
+  const r = pointRow(runId, point, d);
   if (!r) return null;
   const header: PointHeader = {
     point: r.point,
