@@ -198,33 +198,38 @@ class IntList {
   }
 }
 
-/** The update schedule of S's supernodes for C's pattern (see Schedule). */
-function buildSchedule(C: Csc, S: Symbolic, w: CholeskyWork): Schedule {
+/** Which descendants update each supernode, in the left-looking order, with their rows' places (see Schedule). */
+export interface UpdateSchedule {
+  updStart: Int32Array;
+  upd: Int32Array;
+  relMaps: Int32Array;
+}
+
+/**
+ * The updates of S's supernodes (pattern only: the same for a Cholesky and
+ * for an LU of a matrix with S's symmetric pattern). Scratch: rel (length
+ * n), ptr, link and head (length: supernodes).
+ */
+export function updateSchedule(
+  S: Symbolic,
+  alloc: Alloc,
+  rel: Int32Array,
+  ptr: Int32Array,
+  link: Int32Array,
+  head: Int32Array,
+): UpdateSchedule {
   const sn = S.supernodes as Supernodes;
-  const { count: ns, start, of, rowPtr, rows, valPtr } = sn;
-  const rel = w.mark;
-  const ptr = w.next;
-  const link = w.link;
-  const head = w.head;
-  const cp = C.p;
-  const ci = C.i;
-  const cmap = w.alloc.i32(cp[S.n]);
-  const updStart = w.alloc.i32(ns + 1);
+  const { count: ns, start, of, rowPtr, rows } = sn;
+  const updStart = alloc.i32(ns + 1);
   const upd = new IntList(5 * ns);
   const relMaps = new IntList(4 * ns);
   head.fill(-1);
   for (let s = 0; s < ns; s++) {
-    const f = start[s];
     const l = start[s + 1];
-    const k = l - f;
+    const k = l - start[s];
     const r0 = rowPtr[s];
     const nr = rowPtr[s + 1] - r0;
-    const v0 = valPtr[s];
     for (let t = 0; t < nr; t++) rel[rows[r0 + t]] = t;
-    for (let j = f; j < l; j++) {
-      const col = v0 + (j - f) * nr;
-      for (let p = cp[j]; p < cp[j + 1]; p++) cmap[p] = col + rel[ci[p]];
-    }
     updStart[s] = upd.length / 5;
     let d = head[s];
     head[s] = -1;
@@ -262,7 +267,29 @@ function buildSchedule(C: Csc, S: Symbolic, w: CholeskyWork): Schedule {
     }
   }
   updStart[ns] = upd.length / 5;
-  return { updStart, upd: upd.finish(w.alloc), relMaps: relMaps.finish(w.alloc), cmap, ci };
+  return { updStart, upd: upd.finish(alloc), relMaps: relMaps.finish(alloc) };
+}
+
+/** The update schedule of S's supernodes and where C's entries go (see Schedule). */
+function buildSchedule(C: Csc, S: Symbolic, w: CholeskyWork): Schedule {
+  const sn = S.supernodes as Supernodes;
+  const { count: ns, start, rowPtr, rows, valPtr } = sn;
+  const rel = w.mark;
+  const cp = C.p;
+  const ci = C.i;
+  const cmap = w.alloc.i32(cp[S.n]);
+  for (let s = 0; s < ns; s++) {
+    const f = start[s];
+    const r0 = rowPtr[s];
+    const nr = rowPtr[s + 1] - r0;
+    const v0 = valPtr[s];
+    for (let t = 0; t < nr; t++) rel[rows[r0 + t]] = t;
+    for (let j = f; j < start[s + 1]; j++) {
+      const col = v0 + (j - f) * nr;
+      for (let p = cp[j]; p < cp[j + 1]; p++) cmap[p] = col + rel[ci[p]];
+    }
+  }
+  return { ...updateSchedule(S, w.alloc, rel, w.next, w.link, w.head), cmap, ci };
 }
 
 function supernodal(C: Csc, S: Symbolic, w: CholeskyWork, out: Factor): FactorResult {

@@ -4,10 +4,12 @@
  * n- and p-channel devices) and for the all-region EKV model.
  *
  * F_k(V) = Σ currents entering internal node k (device equations of
- * device.ts, injects); J = ∂F/∂V is assembled into a fixed sparse pattern and
- * factorised by the sparse LU with partial pivoting of lu.ts, columns in
- * approximate-minimum-degree order of J + Jᵀ (nested dissection from
- * NESTED_FROM rows).
+ * device.ts, injects); J = ∂F/∂V is assembled into a fixed sparse pattern,
+ * ordered once per run (approximate minimum degree of J + Jᵀ, nested
+ * dissection from NESTED_FROM rows) and analysed once for the supernodal LU
+ * of lu-supernodal.ts, which every iteration refactors numerically; when its
+ * pivots inside the diagonal blocks are not acceptable, that iteration's J is
+ * factored with partial pivoting over whole columns (lu.ts).
  *
  * Damping: each step δ = −J⁻¹F is scaled so that no node moves more than
  * MAX_STEP_UT thermal voltages (common practice for exponential devices).
@@ -28,6 +30,7 @@
 import type { Network } from "../lang/network";
 import { type DeviceParams, deviceCurrent, polarity } from "./device";
 import { lu, luSolve } from "./lu";
+import { analyseLu, factorLu, solveLu, type SupernodalLu } from "./lu-supernodal";
 import { amd, nestedDissection, type OrderingName } from "./order";
 import { compressPattern, type Csc, symmetricAdjacency } from "./sparse";
 
@@ -57,6 +60,10 @@ export interface NewtonPlan {
   /** Column order for the LU, and which ordering made it. */
   q: Int32Array;
   ordering: OrderingName;
+  /** The supernodal LU's analysis of J's pattern in that order (built once; every iteration refactors numerically). */
+  lu: SupernodalLu;
+  /** Iterations whose Jacobian the supernodal LU could not pivot inside its blocks: factored by lu.ts instead. */
+  fallbacks: number;
   F: Float64Array;
   delta: Float64Array;
   work: Float64Array;
@@ -120,6 +127,8 @@ export function planNewton(net: Network): NewtonPlan {
   const ordering: OrderingName = rows >= NESTED_FROM ? "nd" : "amd";
   const q = ordering === "nd" ? nestedDissection(rows, adj.p, adj.i) : amd(rows, adj.p, adj.i);
   return {
+    lu: analyseLu(J, adj.p, adj.i, q),
+    fallbacks: 0,
     rows,
     rowOf,
     nodeOfRow,
@@ -212,6 +221,12 @@ function assemble(
   return [fmax, imax];
 }
 
+/** J at node voltages V (rails at their values), into plan.J's values; plan.F holds the currents entering each row. */
+export function jacobianAt(plan: NewtonPlan, net: Network, P: DeviceParams, V: Float64Array): Csc {
+  assemble(plan, net, P, V, 1, true, new Float64Array(4));
+  return plan.J;
+}
+
 /** Damped Newton from V (internal entries are the start; rails must hold alpha·railValue). Updates V in place. */
 function newtonLoop(
   plan: NewtonPlan,
@@ -237,11 +252,8 @@ function newtonLoop(
     )
       return { converged: true, iterations: it, residual: fmax, worstRow: -1 };
     if (it === maxIter) break;
-    const res = lu(plan.J, plan.q);
-    if (!res.ok) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
-    const { F, delta, work } = plan;
-    for (let r = 0; r < plan.rows; r++) F[r] = -F[r];
-    luSolve(res.factor, F, delta, work);
+    if (!newtonStep(plan)) return { converged: false, iterations: it, residual: fmax, worstRow: worstRow(plan) };
+    const { delta } = plan;
     let dmax = 0;
     for (let r = 0; r < plan.rows; r++) {
       const a = Math.abs(delta[r]);
@@ -254,6 +266,26 @@ function newtonLoop(
   }
   assemble(plan, net, P, V, alpha, false, out4);
   return { converged: false, iterations: maxIter, residual, worstRow: worstRow(plan) };
+}
+
+/**
+ * δ = −J⁻¹·F (plan.delta): the supernodal LU refactored numerically in the
+ * plan's analysis, or, when its pivots inside the diagonal blocks are not
+ * acceptable, a factorisation with partial pivoting over whole columns
+ * (lu.ts). False when J is singular. Leaves F negated.
+ */
+function newtonStep(plan: NewtonPlan): boolean {
+  const { F, delta, work } = plan;
+  for (let r = 0; r < plan.rows; r++) F[r] = -F[r];
+  if (factorLu(plan.lu, plan.J).ok) {
+    solveLu(plan.lu, F, delta);
+    return true;
+  }
+  plan.fallbacks++;
+  const res = lu(plan.J, plan.q);
+  if (!res.ok) return false;
+  luSolve(res.factor, F, delta, work);
+  return true;
 }
 
 /**

@@ -8,6 +8,7 @@ import { lusolve } from "mathjs";
 import { describe, expect, it } from "vitest";
 import { cholesky, matrixTriangle } from "../../src/solver/cholesky";
 import { lu, luSolve } from "../../src/solver/lu";
+import { analyseLu, factorLu, solveLu } from "../../src/solver/lu-supernodal";
 import { amd, nestedDissection, natural } from "../../src/solver/order";
 import { compressPattern, type Csc, symmetricAdjacency } from "../../src/solver/sparse";
 import { analyse, etreeOfGraph, type Kernel } from "../../src/solver/symbolic";
@@ -308,5 +309,104 @@ describe("sparse LU against math.js lusolve", () => {
     T.push(2, 2, 1);
     const A = compress(T);
     expect(lu(A, natural(3)).ok).toBe(false);
+  });
+});
+
+describe("supernodal LU (symmetric pattern) against math.js lusolve", () => {
+  /**
+   * A structurally symmetric matrix: `side` × `side` grid links plus `extra`
+   * random ones, and cliques of 3–6 nodes chained by single links, with
+   * independent values either way. With `tiny`, the first node of each clique
+   * has a diagonal 1e-9 of the rest: its pivot must come from another row of
+   * its clique's diagonal block.
+   */
+  function randomSymmetricPattern(side: number, extra: number, cliques: number, tiny: boolean, rnd: () => number): Csc {
+    const sizes = Array.from({ length: cliques }, () => 3 + Math.floor(rnd() * 4));
+    const n = side * side + sizes.reduce((a, b) => a + b, 0);
+    const T = new Triplet(n, n);
+    const link = (a: number, b: number) => {
+      T.push(a, b, rnd() - 0.5);
+      T.push(b, a, rnd() - 0.5);
+    };
+    for (let i = 0; i < side; i++)
+      for (let j = 0; j < side; j++) {
+        if (j + 1 < side) link(i * side + j, i * side + j + 1);
+        if (i + 1 < side) link(i * side + j, (i + 1) * side + j);
+      }
+    for (let e = 0; e < extra; e++) {
+      const a = Math.floor(rnd() * side * side);
+      const b = Math.floor(rnd() * side * side);
+      if (a !== b) link(a, b);
+    }
+    const firsts = new Set<number>();
+    let at = side * side;
+    for (const size of sizes) {
+      for (let a = 0; a < size; a++) for (let b = a + 1; b < size; b++) link(at + a, at + b);
+      if (at > side * side) T.push(at, at - 1, 0.01);
+      firsts.add(at);
+      at += size;
+    }
+    for (let k = 0; k < n; k++) T.push(k, k, tiny && firsts.has(k) ? 1e-9 * rnd() : 2 + rnd());
+    return compress(T);
+  }
+
+  it("solves structurally symmetric systems like the dense reference, swapping rows inside diagonal blocks", () => {
+    const rnd = lcg(11);
+    let swapped = 0;
+    for (const [side, extra, cliques, tiny, order] of [
+      [6, 10, 0, false, "amd"],
+      [9, 40, 3, true, "nd"],
+      [12, 80, 5, true, "amd"],
+      [14, 30, 8, true, "nd"],
+      // Cliques alone in their own order: each tiny diagonal is the first pivot of its block.
+      [0, 0, 6, true, "natural"],
+    ] as const) {
+      const A = randomSymmetricPattern(side, extra, cliques, tiny, rnd);
+      const n = A.n;
+      const adj = symmetricAdjacency(A);
+      const q =
+        order === "nd" ? nestedDissection(n, adj.p, adj.i) : order === "amd" ? amd(n, adj.p, adj.i) : natural(n);
+      const F = analyseLu(A, adj.p, adj.i, q);
+      expect(factorLu(F, A).ok).toBe(true);
+      for (let j = 0; j < n; j++) if (F.piv[j] !== j) swapped++;
+      const b = Float64Array.from({ length: n }, () => rnd() - 0.5);
+      const x = new Float64Array(n);
+      solveLu(F, b, x);
+      const ref = (lusolve(dense(A), Array.from(b)) as number[][]).map((r) => r[0]);
+      expect(scaledResidual(A, x, b)).toBeLessThan(1e-13);
+      for (let i = 0; i < n; i++) expect(Math.abs(x[i] - ref[i])).toBeLessThan(1e-8 * Math.max(1, Math.abs(ref[i])));
+      // Refactoring with new values in the same analysis gives the new solution.
+      const B = { ...A, x: Float64Array.from(A.x as Float64Array, (v) => v * (1.5 + rnd())) };
+      expect(factorLu(F, B).ok).toBe(true);
+      solveLu(F, b, x);
+      expect(scaledResidual(B, x, b)).toBeLessThan(1e-13);
+    }
+    expect(swapped).toBeGreaterThan(0);
+  });
+
+  it("reports a column whose block has no acceptable pivot (the caller falls back to partial pivoting)", () => {
+    // A star: leaves 0..4 around centre 5, eliminated leaves first; leaf 0 (a block of its own) has a zero diagonal.
+    const T = new Triplet(6, 6);
+    for (let l = 0; l < 5; l++) {
+      T.push(l, l, l === 0 ? 0 : 2);
+      T.push(l, 5, 1);
+      T.push(5, l, 1);
+    }
+    T.push(5, 5, 3);
+    const A = compress(T);
+    const adj = symmetricAdjacency(A);
+    const F = analyseLu(A, adj.p, adj.i, natural(6));
+    const res = factorLu(F, A);
+    expect(res.ok).toBe(false);
+    if (!res.ok) expect(res.column).toBe(0);
+    // The general LU pivots across blocks and solves it like the dense reference.
+    const g = lu(A, natural(6));
+    expect(g.ok).toBe(true);
+    if (!g.ok) return;
+    const b = Float64Array.from([1, 2, 3, 4, 5, 6]);
+    const x = new Float64Array(6);
+    luSolve(g.factor, b, x, new Float64Array(6));
+    const ref = (lusolve(dense(A), Array.from(b)) as number[][]).map((r) => r[0]);
+    for (let i = 0; i < 6; i++) expect(x[i]).toBeCloseTo(ref[i], 12);
   });
 });
