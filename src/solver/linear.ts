@@ -621,15 +621,48 @@ export function factorLinear(plan: LinearPlan, net: Network, P: DeviceParams): {
   }
   if (failed >= 0) {
     const node = plan.nodeAt[failed];
-    return {
-      ok: false,
-      node,
-      message: `the linear system is singular at node ${net.nodes.names[node]}; it has no conductance to a rail`,
-    };
+    return { ok: false, node, message: lostPivot(plan, net, failed) };
   }
   plan.factored = true;
   plan.sup.fresh = true;
   return { ok: true };
+}
+
+/** Decades of conductance double precision resolves in one sum (about 15.95: 1/ε = 4.5e15). */
+const RESOLVED_DECADES = -Math.log10(Number.EPSILON);
+
+/**
+ * Why the factorisation met a pivot that is not positive at `row`. Every
+ * node of a network that passed classification reaches a rail through
+ * channels, so the matrix is positive definite: a lost pivot means the
+ * conductances meeting there (or anywhere in the network) span more decades
+ * than double precision resolves — a conductance to a rail, added to one
+ * 1e17 times larger, leaves no trace in their sum. Says so, naming the two
+ * devices.
+ */
+function lostPivot(plan: LinearPlan, net: Network, row: number): string {
+  const { pack, c } = plan;
+  const span = (touching: boolean): { lo: number; hi: number } => {
+    let lo = -1;
+    let hi = -1;
+    for (let d = 0, q = 0; d < c.length; d++, q += 3) {
+      if (touching && pack[q] !== row && pack[q + 1] !== row) continue;
+      if (pack[q] === pack[q + 1] || !(c[d] > 0)) continue;
+      if (lo < 0 || c[d] < c[lo]) lo = d;
+      if (hi < 0 || c[d] > c[hi]) hi = d;
+    }
+    return { lo, hi };
+  };
+  const name = net.nodes.names[plan.nodeAt[row]];
+  for (const touching of [true, false]) {
+    const { lo, hi } = span(touching);
+    if (lo < 0) continue;
+    const decades = Math.log10(c[hi] / c[lo]);
+    if (decades < RESOLVED_DECADES - 1) continue;
+    const names = net.devices.names;
+    return `results not reliable: the elimination lost its pivot at node ${name}, which does reach a rail: ${touching ? "its" : "the network's"} channel conductances span ${decades.toFixed(1)} decades (${names[hi]} against ${names[lo]}), more than double precision resolves (about ${RESOLVED_DECADES.toFixed(0)}): a gate far above the others makes a conductance beside which the rest vanish`;
+  }
+  return `the linear system is singular at node ${name}; it has no conductance to a rail`;
 }
 
 /**
@@ -674,15 +707,22 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   // V = U_T·(ln i0 + Λ_c − ln I) (n; p mirrored), which can be far beyond every
   // rail (a drain rail 20 V up, a sink below it): the reference goes there then,
   // so that such nodes' û stay near 1 and far rails' û vanish, not the reverse.
+  // (A node's net inject: injects that cancel there hold it nowhere.)
   const { injects } = net;
   const { prow, isNAt } = plan;
   let injN = 0;
   let injP = 0;
-  for (let j = 0; j < injects.count; j++) {
-    const v = Math.abs(injects.value[j]);
-    for (let end = 0; end < 2; end++) {
-      const r = prow[end === 0 ? injects.from[j] : injects.to[j]];
-      if (r < 0) continue;
+  if (injects.count > 0) {
+    const net = new Float64Array(rows);
+    for (let j = 0; j < injects.count; j++) {
+      const v = injects.value[j];
+      const rf = prow[injects.from[j]];
+      const rt = prow[injects.to[j]];
+      if (rf >= 0) net[rf] -= v;
+      if (rt >= 0) net[rt] += v;
+    }
+    for (let r = 0; r < rows; r++) {
+      const v = Math.abs(net[r]);
       if (isNAt[r]) injN = Math.max(injN, v);
       else injP = Math.max(injP, v);
     }
@@ -795,7 +835,15 @@ function assembleGeneral(
   }
 }
 
-/** out = P·b (scaled, by row): the rails' part (when withRails) + the injects with value(j). */
+/**
+ * out = P·b (scaled, by row): the injects with value(j), then (when
+ * withRails) the rails' part added to their sum. Injects first: injects that
+ * cancel at a node sum to exactly zero there, and the rail's term — which can
+ * be 1e-26 of one inject when the rail is far above the reference — survives
+ * (added to one inject first, it would be lost in the rounding of the sum).
+ * Injects that cancel to within rounding of their magnitudes count as
+ * cancelling: their sum is below what the values themselves resolve.
+ */
 function buildRhs(
   plan: LinearPlan,
   net: Network,
@@ -803,25 +851,43 @@ function buildRhs(
   value: (j: number) => number,
   out: Float64Array,
 ): Float64Array {
-  if (withRails) out.set(plan.rhsRails);
-  else out.fill(0);
+  const rows = plan.rows;
+  out.fill(0, 0, rows);
   const { prow, isNAt } = plan;
   const { injects } = net;
   // Injects: drawn out of an n-channel node, pushed into a p-channel node.
   const invN = Math.exp(-plan.lnScale[1]);
   const invP = Math.exp(-plan.lnScale[0]);
+  let magnitudes: Float64Array | null = null;
   for (let j = 0; j < injects.count; j++) {
     const v = value(j);
     if (v === 0) continue;
     const rf = prow[injects.from[j]];
     const rt = prow[injects.to[j]];
-    if (rf >= 0) out[rf] += isNAt[rf] ? v * invN : -v * invP;
-    if (rt >= 0) out[rt] += isNAt[rt] ? -v * invN : v * invP;
+    for (let end = 0; end < 2; end++) {
+      const r = end === 0 ? rf : rt;
+      if (r < 0) continue;
+      const t = (end === 0) === (isNAt[r] === 1) ? v * (isNAt[r] ? invN : invP) : -v * (isNAt[r] ? invN : invP);
+      if (out[r] !== 0 || magnitudes) {
+        // A second inject at this row: keep the sum of magnitudes to tell cancellation from a small sum.
+        magnitudes ??= new Float64Array(rows);
+        if (magnitudes[r] === 0) magnitudes[r] = Math.abs(out[r]);
+      }
+      out[r] += t;
+      if (magnitudes) magnitudes[r] += Math.abs(t);
+    }
+  }
+  if (magnitudes) {
+    const ulps = 8 * Number.EPSILON;
+    for (let r = 0; r < rows; r++) if (Math.abs(out[r]) <= ulps * magnitudes[r]) out[r] = 0;
+  }
+  if (withRails) {
+    const rails = plan.rhsRails;
+    for (let r = 0; r < rows; r++) out[r] += rails[r];
   }
   return out;
 }
 
-/** y = C⁻¹·y by row (y holds P·b on entry), then `refine` steps of iterative refinement (r = P·b − C·y). */
 function solveRows(plan: LinearPlan, y: Float64Array): void {
   const rows = plan.rows;
   const refine = plan.refine;
@@ -935,13 +1001,16 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
           sup.z.push(z);
         }
       }
-      y.set(sup.rest);
+      // The changed injects' part first, then rest (as buildRhs adds the rails last: injects that cancel leave it whole).
+      y.fill(0, 0, rows);
       for (let t = 0; t < sup.changed.length; t++) {
         const v = values[sup.changed[t]];
         if (v === 0) continue;
         const z = sup.z[t];
         for (let k = 0; k < rows; k++) y[k] += v * z[k];
       }
+      const rest = sup.rest;
+      for (let k = 0; k < rows; k++) y[k] += rest[k];
       sup.used = true;
     }
   }

@@ -388,3 +388,21 @@ export function solveLu(F: SupernodalLu, b: Float64Array, x: Float64Array): void
   }
   for (let k = 0; k < n; k++) x[perm[k]] = y[k];
 }
+
+/** Sign of det A from the last successful factorLu: the signs of U's diagonal, times −1 for each row swap (P·A·Pᵀ keeps it). */
+export function determinantSign(F: SupernodalLu): number {
+  const { lx, sn, piv } = F;
+  const { count: ns, start, rowPtr, valPtr } = sn;
+  let sign = 1;
+  for (let s = 0; s < ns; s++) {
+    const f = start[s];
+    const nr = rowPtr[s + 1] - rowPtr[s];
+    for (let c = 0; c < start[s + 1] - f; c++) {
+      const u = lx[valPtr[s] + c * nr + c];
+      if (!(u !== 0)) return 0;
+      if (u < 0) sign = -sign;
+      if (piv[f + c] !== f + c) sign = -sign;
+    }
+  }
+  return sign;
+}

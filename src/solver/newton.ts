@@ -29,8 +29,8 @@
 
 import type { Network } from "../lang/network";
 import { type DeviceParams, deviceCurrent, polarity } from "./device";
-import { lu, luSolve } from "./lu";
-import { analyseLu, factorLu, solveLu, type SupernodalLu } from "./lu-supernodal";
+import { lu, type LuFactor, luSolve } from "./lu";
+import { analyseLu, determinantSign, factorLu, solveLu, type SupernodalLu } from "./lu-supernodal";
 import { amd, nestedDissection, type OrderingName } from "./order";
 import { compressPattern, type Csc, symmetricAdjacency } from "./sparse";
 
@@ -64,6 +64,8 @@ export interface NewtonPlan {
   lu: SupernodalLu;
   /** Iterations whose Jacobian the supernodal LU could not pivot inside its blocks: factored by lu.ts instead. */
   fallbacks: number;
+  /** Sign of det J of the last factorisation (0: none since the current loop began). */
+  detSign: number;
   F: Float64Array;
   delta: Float64Array;
   work: Float64Array;
@@ -75,6 +77,11 @@ export interface NewtonOk {
   iterations: number;
   residual: number;
   continuation: boolean;
+  /**
+   * The solution is unstable: sign(det J) ≠ (−1)^rows, so J has an odd number
+   * of eigenvalues with a positive real part (see `stability`).
+   */
+  unstable: boolean;
 }
 
 export interface NewtonFail {
@@ -129,6 +136,7 @@ export function planNewton(net: Network): NewtonPlan {
   return {
     lu: analyseLu(J, adj.p, adj.i, q),
     fallbacks: 0,
+    detSign: 0,
     rows,
     rowOf,
     nodeOfRow,
@@ -238,6 +246,7 @@ function newtonLoop(
 ): { converged: boolean; iterations: number; residual: number; worstRow: number } {
   const out4 = new Float64Array(4);
   const maxStep = MAX_STEP_UT * P.ut;
+  plan.detSign = 0;
   let lastStep = Infinity;
   let residual = Infinity;
   for (let it = 0; it <= maxIter; it++) {
@@ -277,15 +286,39 @@ function newtonLoop(
 function newtonStep(plan: NewtonPlan): boolean {
   const { F, delta, work } = plan;
   for (let r = 0; r < plan.rows; r++) F[r] = -F[r];
+  const factor = factorJacobian(plan);
+  if (factor === null) return false;
+  if (factor === plan.lu) solveLu(plan.lu, F, delta);
+  else luSolve(factor as LuFactor, F, delta, work);
+  return true;
+}
+
+/** Factors plan.J (supernodal, else partial pivoting) and records the sign of its determinant; null when singular. */
+function factorJacobian(plan: NewtonPlan): SupernodalLu | LuFactor | null {
   if (factorLu(plan.lu, plan.J).ok) {
-    solveLu(plan.lu, F, delta);
-    return true;
+    plan.detSign = determinantSign(plan.lu);
+    return plan.lu;
   }
   plan.fallbacks++;
   const res = lu(plan.J, plan.q);
-  if (!res.ok) return false;
-  luSolve(res.factor, F, delta, work);
-  return true;
+  if (!res.ok) return null;
+  plan.detSign = generalSign(res.factor);
+  return res.factor;
+}
+
+/**
+ * Whether a converged solution is unstable (plan.J assembled at it): with a
+ * small capacitance at every node the network moves as C·dV/dt = F(V), so a
+ * solution is stable when every eigenvalue of J = ∂F/∂V has a negative real
+ * part, and then sign(det J) = (−1)^rows. The opposite sign means an odd
+ * number of eigenvalues with a positive real part: a disturbance grows (a
+ * latch at its balance point). The determinant's sign comes from the last
+ * factorisation, one step of at most STEP_TOL before the solution (made now
+ * when the loop converged without factoring).
+ */
+function unstable(plan: NewtonPlan): boolean {
+  if (plan.detSign === 0 && factorJacobian(plan) === null) return false;
+  return plan.detSign !== (plan.rows % 2 === 0 ? 1 : -1);
 }
 
 /**
@@ -382,7 +415,8 @@ export function solveNewton(
   if (!opts.forceContinuation) {
     const r = newtonLoop(plan, net, P, V, 1, MAX_ITER);
     total += r.iterations;
-    if (r.converged) return { ok: true, iterations: total, residual: r.residual, continuation: false };
+    if (r.converged)
+      return { ok: true, iterations: total, residual: r.residual, continuation: false, unstable: unstable(plan) };
     let finite = true;
     for (let k = 0; k < nn; k++) if (!Number.isFinite(V[k])) finite = false;
     if (finite) report.set(V);
@@ -408,7 +442,8 @@ export function solveNewton(
       if (step < 1e-6) break;
     }
   }
-  if (alpha >= 1 && last.converged) return { ok: true, iterations: total, residual: last.residual, continuation: true };
+  if (alpha >= 1 && last.converged)
+    return { ok: true, iterations: total, residual: last.residual, continuation: true, unstable: unstable(plan) };
   V.set(report);
   const out4 = new Float64Array(4);
   const [fmax] = assemble(plan, net, P, V, 1, false, out4);
@@ -457,4 +492,31 @@ export function initialGuess(net: Network, V: Float64Array): void {
     }
   }
   for (let k = 0; k < nn; k++) V[k] = Number.isFinite(rv[k]) ? rv[k] : cnt[k] > 0 ? sum[k] / cnt[k] : mean;
+}
+
+/** Sign of det A for P·A·Q = L·U (lu.ts): the signs of U's pivots and of the two permutations. */
+function generalSign(F: LuFactor): number {
+  let sign = 1;
+  for (let k = 0; k < F.n; k++) {
+    const u = F.ux[F.up[k + 1] - 1];
+    if (!(u !== 0)) return 0;
+    if (u < 0) sign = -sign;
+  }
+  return sign * parity(F.pinv) * parity(F.q);
+}
+
+/** +1 for an even permutation, −1 for an odd one (n minus its number of cycles, mod 2). */
+export function parity(p: Int32Array): number {
+  const seen = new Uint8Array(p.length);
+  let swaps = 0;
+  for (let i = 0; i < p.length; i++) {
+    if (seen[i]) continue;
+    let len = 0;
+    for (let j = i; !seen[j]; j = p[j]) {
+      seen[j] = 1;
+      len++;
+    }
+    swaps += len - 1;
+  }
+  return swaps % 2 === 0 ? 1 : -1;
 }

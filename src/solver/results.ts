@@ -30,7 +30,7 @@ export interface SolverInfo {
   reusedFactor?: boolean;
 }
 
-export type WarningKind = "junction" | "inversion" | "accuracy";
+export type WarningKind = "junction" | "inversion" | "accuracy" | "unstable";
 
 /** A validity warning, aggregated over devices of one point. */
 export interface SolverWarning {
@@ -39,7 +39,7 @@ export interface SolverWarning {
   device: number;
   /** How many devices. */
   count: number;
-  /** Largest forward bias (junction, volts), inversion coefficient (inversion) or KCL error relative to the largest current (accuracy). */
+  /** Largest forward bias (junction, volts), inversion coefficient (inversion), KCL error relative to the largest current (accuracy); 0 (unstable). */
   worst: number;
   message: string;
 }

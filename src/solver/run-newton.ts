@@ -17,14 +17,17 @@
  * agrees with the unsplit run within Newton's tolerance (STEP_TOL, newton.ts).
  */
 
-import type { Network } from "../lang/network";
+import { type Network, NFET } from "../lang/network";
 import { type Classification, classify } from "./classify";
-import { deviceParams } from "./device";
-import { currentScale, evaluate, firstDeviceAt, KCL_LIMIT } from "./evaluate";
+import { type DeviceParams, deviceCurrent, deviceParams, polarity } from "./device";
+import { currentScale, evaluate, firstDeviceAt, JUNCTION_TOLERANCE, KCL_LIMIT } from "./evaluate";
 import { factorLinear, planLinear, releaseLinear, solveLinear } from "./linear";
 import { initialGuess, solveNewton, planNewton } from "./newton";
 import type { Evaluation, RunResult, SolverWarning } from "./results";
 import { type Outcome, type Run, SOLVED } from "./run";
+
+/** NFET as a module-local constant (see linear.ts). */
+const N_TYPE: number = NFET;
 
 export function newtonRun(run: Run): RunResult {
   const plan = run.analyse(() => planNewton(run.net));
@@ -55,10 +58,13 @@ export function newtonRun(run: Run): RunResult {
     const t2 = performance.now();
     t.solveMs += t2 - t1;
     const ev = evaluate(at.net, V, P, kcl, store); //                I, ic, saturation, rail currents, KCL
-    const outcome: Outcome = r.ok ? SOLVED : { ok: false, node: r.node, message: r.message };
+    let outcome: Outcome = r.ok ? SOLVED : { ok: false, node: r.node, message: r.message };
     if (r.ok) {
       const w = accuracyWarning(at.net, ev); //                      KCL error ≤ KCL_LIMIT·I_max, or a warning
-      if (w) ev.warnings.push(w);
+      const junction = w ? forwardJunction(at.net, V, P, ev) : null; //   … or refused beside a forward-biased junction
+      if (junction) outcome = junction;
+      else if (w) ev.warnings.push(w);
+      if (r.unstable) ev.warnings.push(instability(at.net)); //       stable: sign(det J) = (−1)^rows, or a warning
     }
     run.record(
       at,
@@ -97,6 +103,76 @@ function accuracyWarning(net: Network, ev: Evaluation): SolverWarning | null {
     count: 1,
     worst: ev.residual / scale,
     message: `${names[device]}: the KCL error at node ${node} is ${ev.residual.toExponential(2)} A (${(ev.residual / scale).toExponential(1)} of the largest current); a channel there has its source and drain within rounding of each other (a node within picovolts of a rail), so the currents at ${node} are resolved only to about that`,
+  };
+}
+
+/**
+ * The warning for an unstable solution (newton.ts `unstable`): placed at the
+ * first device whose gate is on an internal node (where feedback can make a
+ * disturbance grow). By the index of a solution (the sign of det(−J)), whose
+ * sum over all operating points of such a network is +1, one of index −1
+ * means at least two others (common practice in the DC analysis of circuits
+ * with feedback).
+ */
+function instability(net: Network): SolverWarning {
+  const { gate, count, names } = net.devices;
+  const rv = net.nodes.railValue;
+  let device = 0;
+  for (let d = 0; d < count; d++)
+    if (!Number.isFinite(rv[gate[d]])) {
+      device = d;
+      break;
+    }
+  return {
+    kind: "unstable",
+    device,
+    count: 1,
+    worst: 0,
+    message: `${names[device]}: this operating point is unstable (the Jacobian has an odd number of eigenvalues with a positive real part: a small disturbance grows, as in a latch at its balance point); the network has other operating points, which Newton reaches from other starts`,
+  };
+}
+
+/**
+ * A point whose KCL error is beyond KCL_LIMIT at a node where a device's
+ * junction is forward-biased (a source or drain beyond its bulk or well): not
+ * an operating point to report. There the channel's forward and reverse
+ * currents, each growing as e^{bias/U_T}, cancel to the net current beyond
+ * what the node voltages resolve (a pfet whose well is 0.8 V below its source:
+ * amperes cancelling to nanoamperes, currents off by percents), and a real
+ * device conducts a junction current the model does not have. Null when no
+ * device at the worst node has a forward-biased junction (the accuracy
+ * warning stands then).
+ */
+function forwardJunction(net: Network, V: Float64Array, P: DeviceParams, ev: Evaluation): Outcome | null {
+  const node = ev.worstNode;
+  const { type, gate, source, drain, bulk, count } = net.devices;
+  const four = new Float64Array(4);
+  let worst = -1;
+  let bias = JUNCTION_TOLERANCE;
+  for (let d = 0; d < count; d++) {
+    if (source[d] !== node && drain[d] !== node) continue;
+    const sg = polarity(type[d]);
+    const vb = bulk[d] >= 0 ? V[bulk[d]] : 0;
+    const fwd = -Math.min(sg * (V[source[d]] - vb), sg * (V[drain[d]] - vb));
+    if (fwd > bias) {
+      bias = fwd;
+      worst = d;
+    }
+  }
+  if (worst < 0) return null;
+  const d = worst;
+  const sg = polarity(type[d]);
+  const vb = bulk[d] >= 0 ? V[bulk[d]] : 0;
+  const xs = sg * (V[source[d]] - vb);
+  const xd = sg * (V[drain[d]] - vb);
+  const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, four);
+  const where = type[d] === N_TYPE ? "bulk" : "well";
+  const end = xs <= xd ? "source" : "drain";
+  const scale = currentScale(net, ev);
+  return {
+    ok: false,
+    node,
+    message: `no reliable operating point: ${net.devices.names[d]}'s ${end} is beyond its ${where} by ${bias.toFixed(3)} V (a forward-biased junction, whose current the model does not have), and its channel's forward and reverse currents of ${iF.toExponential(2)} A cancel to ${Math.abs(four[0]).toExponential(2)} A, beyond what double precision resolves: the KCL error at node ${net.nodes.names[node]} is ${ev.residual.toExponential(2)} A (${(ev.residual / scale).toExponential(1)} of the largest current)`,
   };
 }
 

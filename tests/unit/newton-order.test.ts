@@ -51,7 +51,7 @@ describe("Newton's column order on meshes (closed form: a diode at 1 nA, by symm
   it.each([
     [40, "amd"],
     [70, "nd"],
-  ])("%i × %i mesh: ordered by %s, every node at the diode's voltage", (n, ordering) => {
+  ])("a mesh of side %i: ordered by %s, every node at the diode's voltage", (n, ordering) => {
     const net = mesh(n);
     const run = solveNetwork(net);
     expect(run.failures).toEqual([]);
