@@ -1,7 +1,13 @@
 /**
- * `npm run bench`: the solver and language workloads (bench/run.ts), then the
- * run API under load (bench/api-runs.ts, which needs the production build; it
- * is built first when missing). With --json or --only, only bench/run.ts runs,
+ * `npm run bench`: the solver and language workloads (bench/run.ts, with the
+ * CHOLMOD reference side by side when it can be built), the command line end
+ * to end (bench/cli.ts), then the run API under load (bench/api-runs.ts, which
+ * needs the production build; it is built first when missing).
+ *
+ * The CHOLMOD reference is ../shared/anchors/cholmod-ref.c beside the
+ * repository (or $RUNNEL_ANCHORS/cholmod-ref.c), built with `cc` against
+ * Debian's libsuitesparse-dev into .build/cholmod-ref; without the source,
+ * the headers or a compiler the comparison is skipped with a message. With --json or --only, only bench/run.ts runs,
  * so `npm run --silent bench -- --json [--only NAME]` prints exactly its one
  * JSON array; `npm run bench:api -- --json` gives the API figures as JSON.
  *
@@ -12,6 +18,7 @@
  */
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
+import path from "node:path";
 import { build } from "esbuild";
 
 const args = process.argv.slice(2);
@@ -41,9 +48,33 @@ build({
   },
 );
 
+/** The CHOLMOD reference program, built when its source, Debian's headers and a C compiler are here. */
+function cholmodReference(): { bin?: string; skip?: string } {
+  const src = path.resolve(process.env.RUNNEL_ANCHORS ?? "../shared/anchors", "cholmod-ref.c");
+  if (!fs.existsSync(src))
+    return { skip: `no reference source at ${src} (../shared/anchors beside the repository, or $RUNNEL_ANCHORS)` };
+  if (!fs.existsSync("/usr/include/suitesparse/cholmod.h"))
+    return { skip: "CHOLMOD's headers are missing (apt-get install libsuitesparse-dev)" };
+  const bin = path.resolve(".build/cholmod-ref");
+  if (fs.existsSync(bin) && fs.statSync(bin).mtimeMs >= fs.statSync(src).mtimeMs) return { bin };
+  const cc = spawnSync("cc", ["-O2", "-o", bin, src, "-I/usr/include/suitesparse", "-lcholmod", "-lm"], {
+    encoding: "utf8",
+  });
+  if (cc.error || cc.status !== 0) return { skip: `building it failed: ${cc.error?.message ?? cc.stderr}` };
+  return { bin };
+}
+
 function main(): number {
+  const quickOrJson = args.includes("--json") || args.includes("--only");
+  const ref = quickOrJson ? {} : cholmodReference();
+  if (ref.bin) process.env.RUNNEL_CHOLMOD_REF = ref.bin;
+  else if (ref.skip) process.env.RUNNEL_CHOLMOD_SKIP = ref.skip;
   let code = run(process.execPath, [BUNDLE, ...args]);
-  if (code === 0 && !args.includes("--json") && !args.includes("--only")) {
+  if (code === 0 && !quickOrJson) {
+    console.log("");
+    code = run(process.execPath, [tsx, "bench/cli.ts"]);
+  }
+  if (code === 0 && !quickOrJson) {
     if (!fs.existsSync(".next/BUILD_ID") || !fs.existsSync(".build/run-worker.mjs")) {
       console.log("\nbench: building the app for the API workload…");
       code = run("npm", ["run", "--silent", "build"]);

@@ -29,13 +29,14 @@
  */
 
 import { spawnSync } from "node:child_process";
+import { existsSync } from "node:fs";
 import { cpus, loadavg } from "node:os";
 import { elaborate } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
 import { applyPoint } from "../src/lang/point";
 import { solveNetwork, type SolveOptions } from "../src/solver/index";
 import type { OrderingName } from "../src/solver/order";
-import { chainText, gridText, mirrorText } from "./workloads";
+import { chainText, gridText, meshText, mirrorText } from "./workloads";
 
 /** Collects garbage when the script runs with --expose-gc (it re-runs itself so); never inside a timed region. */
 function collect(): void {
@@ -61,10 +62,19 @@ interface Entry {
   cpu_ms: number;
   method: string;
   ordering: string;
-  /** The workload solved once in a fresh process (same phases; absent with --quick). */
-  cold?: { phases: Phases; total_ms: number };
+  /** Newton iterations of the first point (1 for the linear method). */
+  iterations: number;
+  /** The workload solved once in a fresh process (same phases, and its peak resident memory; absent with --quick). */
+  cold?: Cold;
   /** sweep_vh_grid64 only: its points solved one by one as 1,000 networks of their own, right after its timed runs (ms). */
   independent_ms?: number;
+}
+
+interface Cold {
+  phases: Phases;
+  total_ms: number;
+  /** Peak resident set of that process (elaborate + solve), MB. */
+  peak_rss_mb: number;
 }
 
 interface Workload {
@@ -85,6 +95,7 @@ const WORKLOADS: Workload[] = [
   },
   { name: "mismatch200_grid64", text: () => gridText("mismatch200", 64, "mismatch runs 200 seed 1 avt 3m\n"), reps: 5 },
   { name: "newton_mirror1000", text: () => mirrorText(1000), reps: 5 },
+  { name: "newton_mesh200", text: () => meshText(200), reps: 3 },
 ];
 
 function median(xs: number[]): number {
@@ -111,10 +122,12 @@ interface Sample {
   method: string;
   ordering: string;
   points: number;
+  iterations: number;
 }
 
 function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}): Sample {
   let ordering = "";
+  let iterations = 0;
   const c0 = process.cpuUsage();
   const t0 = performance.now();
   const run = solveNetwork(net, {
@@ -123,6 +136,7 @@ function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}):
     reuseArrays: true,
     onPoint: (p) => {
       if (!ordering) ordering = p.solver.ordering ?? "";
+      if (!iterations) iterations = p.solver.iterations;
     },
   });
   const wall = performance.now() - t0;
@@ -142,6 +156,7 @@ function solveTimed(net: Network, elaborateMs: number, opts: SolveOptions = {}):
     method: run.method,
     ordering,
     points: run.solved,
+    iterations,
   };
 }
 
@@ -189,6 +204,7 @@ function runWorkload(w: Workload, reps: number): { entry: Entry; net: Network } 
       cpu_ms: round(m.cpu),
       method: m.method,
       ordering: m.ordering,
+      iterations: m.iterations,
     },
   };
 }
@@ -276,7 +292,7 @@ function injectOutputFloor(nodes: number, devices: number): number {
 }
 
 /** The workload solved once in a fresh process (this script with --cold NAME). */
-function coldRun(name: string): { phases: Phases; total_ms: number } | undefined {
+function coldRun(name: string): Cold | undefined {
   const r = spawnSync(process.execPath, [...process.execArgv, process.argv[1], "--cold", name], {
     encoding: "utf8",
     maxBuffer: 1 << 20,
@@ -285,7 +301,67 @@ function coldRun(name: string): { phases: Phases; total_ms: number } | undefined
     process.stderr.write(`bench: the cold run of ${name} failed: ${r.stderr}\n`);
     return undefined;
   }
-  return JSON.parse(r.stdout) as { phases: Phases; total_ms: number };
+  return JSON.parse(r.stdout) as Cold;
+}
+
+/**
+ * Runnel's analyse + factor + solve against the CHOLMOD reference program
+ * (built by bench/all.ts from ../shared/anchors/cholmod-ref.c; `bin`) on the
+ * same matrices, back to back in this run: wall-clock medians of `reps`
+ * solves each (both single-threaded), and the peak RSS of a CHOLMOD process
+ * factoring grid 512 beside Runnel's cold process (measured with
+ * /usr/bin/time when it exists).
+ */
+function cholmodComparison(bin: string, reps: number, entries: Entry[]): string[] {
+  const out: string[] = [];
+  const rows: string[] = [];
+  const cases: [string, string, string][] = [64, 128, 256, 512].map((n) => [
+    `grid ${n}`,
+    `grid ${n}`,
+    gridText(`grid${n}`, n),
+  ]);
+  cases.push(["chain 10^6", "chain 1000000", chainText(1_000_000)]);
+  for (const [label, command, text] of cases) {
+    const { net } = elaborateOrThrow(text, label);
+    for (let k = 0; k < 2; k++) solveTimed(net, 0);
+    const ours: number[] = [];
+    for (let r = 0; r < reps; r++) {
+      const p = solveTimed(net, 0).phases;
+      ours.push(p.analyse_ms + p.factor_ms + p.solve_ms);
+    }
+    const ref = spawnSync(bin, { input: `${command}\n${"full\n".repeat(reps)}quit\n`, encoding: "utf8" });
+    const lines = (ref.stdout ?? "").trim().split("\n").slice(1);
+    const theirs = lines.map((l) => (JSON.parse(l) as { total: number }).total);
+    if (ref.status !== 0 || theirs.length !== reps) {
+      out.push(`(the CHOLMOD reference failed on ${label}: ${ref.stderr})`);
+      continue;
+    }
+    const a = median(ours);
+    const b = median(theirs);
+    rows.push(
+      `| ${label} | ${net.nodes.names.length.toLocaleString("en-US")} | ${fmt(a)} | ${fmt(b)} | ${(a / b).toFixed(2)}× |`,
+    );
+  }
+  out.push(
+    `Against CHOLMOD (${bin}, supernodal Cholesky, default ordering), analyse + factor + solve, wall-clock medians of ${reps}:`,
+  );
+  out.push("");
+  out.push("| matrix | rows | Runnel (ms) | CHOLMOD (ms) | ratio |");
+  out.push("|---|---:|---:|---:|---:|");
+  out.push(...rows);
+  out.push("");
+  const time = "/usr/bin/time";
+  const g512 = entries.find((e) => e.workload === "grid512");
+  if (existsSync(time) && g512?.cold) {
+    const r = spawnSync(time, ["-f", "%M", bin], { input: "grid 512\nfull\nquit\n", encoding: "utf8" });
+    const kb = Number((r.stderr ?? "").trim().split("\n").at(-1));
+    if (kb > 0)
+      out.push(
+        `Peak RSS, grid 512: Runnel ${fmt(g512.cold.peak_rss_mb)} MB (elaborate + solve, cold process) against CHOLMOD ${fmt(kb / 1024)} MB (its matrix, analysis and factor) = ${(g512.cold.peak_rss_mb / (kb / 1024)).toFixed(2)}×`,
+        "",
+      );
+  }
+  return out;
 }
 
 function round(x: number): number {
@@ -301,7 +377,8 @@ function main(argv: string[]): number {
     const s = solveTimed(el.net, el.ms);
     const phases = {} as Phases;
     for (const k of Object.keys(s.phases) as (keyof Phases)[]) phases[k] = round(s.phases[k]);
-    process.stdout.write(JSON.stringify({ phases, total_ms: round(s.total) }));
+    const cold: Cold = { phases, total_ms: round(s.total), peak_rss_mb: round(process.resourceUsage().maxRSS / 1024) };
+    process.stdout.write(JSON.stringify(cold));
     return 0;
   }
   const json = argv.includes("--json");
@@ -356,26 +433,28 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
   );
   out.push("");
   out.push(
-    "| workload | nodes | devices | points | method | ordering | elaborate | analyse | factor | solve | evaluate | total | solve CPU |",
+    "| workload | nodes | devices | points | method | iterations | ordering | elaborate | analyse | factor | solve | evaluate | total | solve CPU |",
   );
-  out.push("|---|---:|---:|---:|---|---|---:|---:|---:|---:|---:|---:|---:|");
+  out.push("|---|---:|---:|---:|---|---:|---|---:|---:|---:|---:|---:|---:|---:|");
   for (const e of entries) {
     const p = e.phases;
     out.push(
-      `| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} | ${fmt(e.cpu_ms)} |`,
+      `| ${e.workload} | ${e.nodes.toLocaleString("en-US")} | ${e.devices.toLocaleString("en-US")} | ${e.points} | ${e.method} | ${e.iterations} | ${e.ordering} | ${fmt(p.elaborate_ms)} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(e.total_ms)} | ${fmt(e.cpu_ms)} |`,
     );
   }
   out.push("");
   if (entries.some((e) => e.cold)) {
-    out.push("Cold: each workload solved once in a fresh process (no compiled code, no pooled work arrays):");
+    out.push(
+      "Cold: each workload elaborated and solved once in a fresh process (no compiled code, no pooled work arrays); peak RSS of that process:",
+    );
     out.push("");
-    out.push("| workload | analyse | factor | solve | evaluate | analyse + factor + solve | total |");
-    out.push("|---|---:|---:|---:|---:|---:|---:|");
+    out.push("| workload | analyse | factor | solve | evaluate | analyse + factor + solve | total | peak RSS (MB) |");
+    out.push("|---|---:|---:|---:|---:|---:|---:|---:|");
     for (const e of entries) {
       if (!e.cold) continue;
       const p = e.cold.phases;
       out.push(
-        `| ${e.workload} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(p.analyse_ms + p.factor_ms + p.solve_ms)} | ${fmt(e.cold.total_ms)} |`,
+        `| ${e.workload} | ${fmt(p.analyse_ms)} | ${fmt(p.factor_ms)} | ${fmt(p.solve_ms)} | ${fmt(p.evaluate_ms)} | ${fmt(p.analyse_ms + p.factor_ms + p.solve_ms)} | ${fmt(e.cold.total_ms)} | ${fmt(e.cold.peak_rss_mb)} |`,
       );
     }
     out.push("");
@@ -419,11 +498,20 @@ function printTable(entries: Entry[], nets: Map<string, Network>, quick: boolean
       );
     }
   }
+  const mesh = by.get("newton_mesh200");
+  if (mesh)
+    goals.push(
+      `newton_mesh200 (40,000 rows): ${mesh.iterations} Newton iterations in ${fmt(mesh.phases.solve_ms)} ms = ${fmt(mesh.phases.solve_ms / mesh.iterations)} ms per iteration (assembly, supernodal LU refactorisation, solve, convergence test); analysis once ${fmt(mesh.phases.analyse_ms)} ms`,
+    );
   if (goals.length) {
     out.push("Goals:");
     for (const g of goals) out.push(`- ${g}`);
     out.push("");
   }
+  const bin = process.env.RUNNEL_CHOLMOD_REF;
+  if (bin && !quick) out.push(...cholmodComparison(bin, 5, entries));
+  else if (process.env.RUNNEL_CHOLMOD_SKIP)
+    out.push(`CHOLMOD comparison skipped: ${process.env.RUNNEL_CHOLMOD_SKIP}`, "");
   // Ordering comparison on the big linear workloads (forced orderings).
   const cmp: string[] = [];
   for (const name of ["grid256", "grid512", "chain1e6"]) {

@@ -56,3 +56,27 @@ for k in 0..${branches - 1} {
 }
 `;
 }
+
+/**
+ * An n × n mesh of lateral nfets (gate on a rail) with a diode-connected nfet at every node and 1 nA pushed into
+ * each: a gate on an internal node at every node, so Newton solves it (a Jacobian with the mesh's pattern).
+ */
+export function meshText(n: number): string {
+  return `network diode_mesh
+rail vdd = 1.8
+rail gnd = 0
+rail gh = 0.75
+for i in 0..${n - 1} {
+  for j in 0..${n - 2} {
+    nfet h{i}_{j} gate=gh source=n{i}_{j} drain=n{i}_{j+1}
+    nfet v{j}_{i} gate=gh source=n{j}_{i} drain=n{j+1}_{i}
+  }
+}
+for i in 0..${n - 1} {
+  for j in 0..${n - 1} {
+    nfet d{i}_{j} gate=n{i}_{j} source=gnd drain=n{i}_{j}
+    inject p{i}_{j} from=vdd to=n{i}_{j} value=1n
+  }
+}
+`;
+}

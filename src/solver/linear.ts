@@ -1001,20 +1001,28 @@ export function solvePseudo(plan: LinearPlan, net: Network): void {
           sup.z.push(z);
         }
       }
-      // The changed injects' part first, then rest (as buildRhs adds the rails last: injects that cancel leave it whole).
-      y.fill(0, 0, rows);
-      for (let t = 0; t < sup.changed.length; t++) {
-        const v = values[sup.changed[t]];
-        if (v === 0) continue;
-        const z = sup.z[t];
-        for (let k = 0; k < rows; k++) y[k] += v * z[k];
-      }
-      const rest = sup.rest;
-      for (let k = 0; k < rows; k++) y[k] += rest[k];
+      // (No inject changed since the fresh solve: y still holds its solution.)
+      if (sup.changed.length > 0) superpose(sup, values, y, rows);
       sup.used = true;
     }
   }
   plan.pseudo = true;
+}
+
+/**
+ * û = Σ_j v_j·z_j + rest: the changed injects' part first, then rest (as
+ * buildRhs adds the rails last: injects that cancel leave its part whole).
+ */
+function superpose(sup: Superposition, values: Float64Array, y: Float64Array, rows: number): void {
+  y.fill(0, 0, rows);
+  for (let t = 0; t < sup.changed.length; t++) {
+    const v = values[sup.changed[t]];
+    if (v === 0) continue;
+    const z = sup.z[t];
+    for (let k = 0; k < rows; k++) y[k] += v * z[k];
+  }
+  const rest = sup.rest;
+  for (let k = 0; k < rows; k++) y[k] += rest[k];
 }
 
 /**
