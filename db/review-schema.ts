@@ -9,9 +9,12 @@
  * - A comment's `body` is the Markdown as written; it is rendered (and
  *   sanitised) when read, never stored as HTML.
  * - `reviews` is append-only: a commit's state per reviewer is that
- *   reviewer's newest row; the commit's state is "changes_asked" when any
- *   reviewer's newest verdict asks for changes, else "signed_off" when at
- *   least one signed off, else open (no row).
+ *   reviewer's newest row ("withdrawn" counts as no verdict); the commit's
+ *   state is "rework" when any reviewer's newest verdict sends it back, else
+ *   "signed_off" when at least one signed off, else open.
+ * - `notifications` are one person's inbox: each row names its recipient and
+ *   workspace, what happened (`kind`) and the place it links to (`href`, a
+ *   path of this site); `read_at` is null until the recipient marks it read.
  * - `commit_diffs` has at most one row per run (computed once when the run
  *   finishes); `base_run_id` is null when the parent commit had no finished
  *   run of the same analysis (then `compared` = 0 and the row says so).
@@ -23,8 +26,12 @@ import { blob, index, integer, sqliteTable, text } from "drizzle-orm/sqlite-core
 import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
 import { commits, networks, runs } from "./work-schema";
 
-export const VERDICTS = ["signed_off", "changes_asked"] as const;
+/** A reviewer's verdict on a commit: signed off, or sent back for rework. */
+export const VERDICTS = ["signed_off", "rework"] as const;
 export type Verdict = (typeof VERDICTS)[number];
+/** What a `reviews` row records: a verdict, or that the reviewer withdrew their earlier one. */
+export const REVIEW_ENTRIES = [...VERDICTS, "withdrawn"] as const;
+export type ReviewEntry = (typeof REVIEW_ENTRIES)[number];
 
 export const threads = sqliteTable(
   "threads",
@@ -92,7 +99,7 @@ export const reviews = sqliteTable(
     reviewerId: text("reviewer_id")
       .notNull()
       .references(() => users.id),
-    verdict: text("verdict", { enum: VERDICTS }).notNull(),
+    verdict: text("verdict", { enum: REVIEW_ENTRIES }).notNull(),
     /** The thread (and its comment) where the verdict was given, if any. */
     threadId: text("thread_id").references(() => threads.id, { onDelete: "set null" }),
     commentId: text("comment_id").references(() => comments.id, { onDelete: "set null" }),
@@ -178,5 +185,35 @@ export const measurements = sqliteTable(
   (t) => [
     // the measurements of a network (network page, run overlay)
     index("measurements_network_idx").on(t.networkId),
+  ],
+);
+
+export const NOTIFICATION_KINDS = ["mention", "verdict", "reply", "run_done", "run_failed"] as const;
+export type NotificationKind = (typeof NOTIFICATION_KINDS)[number];
+
+export const notifications = sqliteTable(
+  "notifications",
+  {
+    id: text("id").primaryKey(),
+    /** Whose inbox. */
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    workspaceId: workspaceRef(),
+    kind: text("kind", { enum: NOTIFICATION_KINDS }).notNull(),
+    /** Who caused it (null for a run that ended). */
+    actorId: text("actor_id").references(() => users.id, { onDelete: "set null" }),
+    /** One line saying what happened. */
+    title: text("title").notNull(),
+    /** Where it happened: a path of this site (a thread's comment, a run). */
+    href: text("href").notNull(),
+    threadId: text("thread_id").references(() => threads.id, { onDelete: "cascade" }),
+    runId: text("run_id").references(() => runs.id, { onDelete: "cascade" }),
+    createdAt: createdAt(),
+    readAt: timestamp("read_at"),
+  },
+  (t) => [
+    // a person's inbox, newest first, and the unread count of the header badge
+    index("notifications_user_read_created_idx").on(t.userId, t.readAt, t.createdAt),
   ],
 );

@@ -18,6 +18,7 @@
  *   chunks (and the stop request that ended it early) and is a no-op for a run
  *   that has already ended, so any number of callers may race to it.
  */
+import { notifyRunEnded } from "./inbox";
 import { and, asc, count, eq, inArray, sql } from "drizzle-orm";
 import { commits, runChunks, runPoints, runs, type RunState } from "@/db/schema";
 import { elaborate, type Network } from "@/src/lang/index";
@@ -339,6 +340,11 @@ export function finalizeRun(
   if (ended.changes === 0) {
     const again = d.select().from(runs).where(eq(runs.id, runId)).get()!;
     return { state: again.state, reason: again.reason, pointsDone: again.pointsDone };
+  }
+  try {
+    notifyRunEnded(runId, d); // the inbox of whoever started it (app/lib/inbox.ts)
+  } catch (e) {
+    console.error(`run ${runId}: its inbox item could not be written: ${(e as Error).message}`);
   }
   if (end.state === "done") {
     // Review: the results diff against the parent commit's run, computed once (app/lib/review/diffs.ts); it never fails the run.

@@ -8,6 +8,7 @@ import { db, type Q } from "@/db";
 import { newId } from "@/db/ids";
 import { networks, runChunks, runs, users, type RunFailure, type RunState, type RunWarning } from "@/db/schema";
 import { RequestError } from "./http";
+import { notifyRunEnded } from "./inbox";
 
 const OPEN_STATES: RunState[] = ["queued", "running"];
 
@@ -18,6 +19,7 @@ export function finishRun(runId: string, state: RunState, reason: string | null,
     .set({ state, reason, finishedAt: new Date() })
     .where(and(eq(runs.id, runId), inArray(runs.state, OPEN_STATES)))
     .run();
+  if (r.changes > 0 && state === "failed") notifyRunEnded(runId, d);
   return r.changes > 0;
 }
 

@@ -1,6 +1,7 @@
 import Link from "next/link";
 import { signOut } from "@/app/(account)/actions";
 import { getActor } from "@/app/lib/auth";
+import { unreadCount } from "@/app/lib/inbox";
 
 /** The header's account corner: the signed-in person with settings and sign-out, or a sign-in link. */
 export async function AccountSlot() {
@@ -12,8 +13,22 @@ export async function AccountSlot() {
       </Link>
     );
   }
+  const unread = unreadCount(actor.userId);
   return (
     <div className="flex items-center gap-3">
+      <Link
+        href="/inbox"
+        data-testid="inbox-badge"
+        aria-label={unread ? `Inbox, ${unread} unread` : "Inbox"}
+        className="flex items-center gap-1 text-stone-700 hover:text-moss-700"
+      >
+        Inbox
+        {unread ? (
+          <span className="min-w-5 rounded-sm bg-ochre-500 px-1 text-center text-xs font-semibold text-white tabular">
+            {unread > 99 ? "99+" : unread}
+          </span>
+        ) : null}
+      </Link>
       <Link href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
         <span data-testid="signed-in-as">{actor.name}</span>
       </Link>

@@ -146,7 +146,7 @@ export function seedReview(db: DB, workspaceId = "ws_lm64"): { thread: boolean; 
         commitId: asked.id,
         workspaceId,
         reviewerId: "u_reviewer",
-        verdict: "changes_asked",
+        verdict: "rework",
         threadId: DEMO_THREAD_ID,
         commentId: ask,
         createdAt: at(180),

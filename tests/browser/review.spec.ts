@@ -29,7 +29,7 @@ test("a reviewer opens a thread from its link, follows the run card, compares tw
   await expect(page.getByRole("heading", { name: "Split ratio at dv = 20 mV is short of 2:1" })).toBeVisible();
   const comments = page.getByRole("list", { name: "Comments" }).getByRole("listitem");
   await expect(comments).toHaveCount(3);
-  await expect(comments.nth(0).locator("[data-review=changes_asked]")).toBeVisible();
+  await expect(comments.nth(0).locator("[data-review=rework]")).toBeVisible();
   await expect(comments.nth(2).locator("[data-review=signed_off]")).toBeVisible();
   // the run reference in the designer's reply became a card with the run's state and probes
   const card = comments.nth(1).locator("[data-run-card]");
@@ -62,13 +62,32 @@ test("a reviewer opens a thread from its link, follows the run card, compares tw
   );
   await shot(page, "compare");
 
-  // back to the thread, sign off the fix with a comment
+  // back to the thread: the reviewer was mentioned in the seeded comparison threads, so the header's inbox shows it
   await page.goto(THREAD);
-  await page.getByLabel("Reply").fill("Checked the compare page once more: only the divider moved.");
-  await page.getByRole("button", { name: "Sign off" }).click();
+  await expect(page.getByTestId("inbox-badge")).toHaveAttribute("aria-label", /Inbox, \d+ unread/);
+  // sign off the fix: the confirmation lists the commit and its newest runs before anything is recorded
+  await page
+    .getByRole("button", { name: /^Sign off/ })
+    .first()
+    .click();
+  const confirm = page.getByRole("dialog", { name: "Sign off this commit?" });
+  await expect(
+    confirm.getByRole("list", { name: "Runs being signed off" }).getByRole("listitem").first(),
+  ).toContainText("done");
+  await confirm
+    .getByLabel(/Note with the sign-off/)
+    .fill("Checked the compare page once more: only the divider moved.");
+  await confirm.getByRole("button", { name: /^Sign off \w+/ }).click();
   await expect(comments).toHaveCount(4);
   await expect(comments.nth(3)).toContainText("Checked the compare page once more");
   await expect(comments.nth(3).locator("[data-review=signed_off]")).toBeVisible();
+  // the buttons now show the state; the verdict can be withdrawn
+  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "signed_off");
+  await expect(page.getByRole("button", { name: "✓ Signed off" })).toBeDisabled();
+  await page.getByRole("button", { name: "Withdraw my verdict" }).click();
+  await expect(comments).toHaveCount(5);
+  await expect(comments.nth(4).locator("[data-review=withdrawn]")).toBeVisible();
+  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "none");
   await shot(page, "signed-off");
   expect(errors).toEqual([]);
 });
@@ -77,7 +96,7 @@ test("a viewer reads the thread without sign-off buttons; an unknown thread is a
   await signIn(page, "viewer@larkspur.example");
   await page.goto(THREAD);
   await expect(page.getByRole("heading", { name: "Split ratio at dv = 20 mV is short of 2:1" })).toBeVisible();
-  await expect(page.getByRole("button", { name: "Sign off" })).toHaveCount(0);
+  await expect(page.getByRole("button", { name: /Sign off/ })).toHaveCount(0);
   await expect(page.getByText("you can read this thread but not reply")).toBeVisible();
   const res = await page.goto("/threads/t_no_such_thread");
   expect(res?.status()).toBe(404);

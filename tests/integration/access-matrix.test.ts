@@ -169,6 +169,8 @@ const ROUTES: RouteRow[] = [
   { file: "app/api/health/route.ts",                    method: "GET",    url: "/api/health",                                                 expect: [200, 200, 200, 200, 200, 200] },
   { file: "app/favicon.ico/route.ts",                   method: "GET",    url: "/favicon.ico",                                                expect: [200, 200, 200, 200, 200, 200] },
   { file: "app/api/me/route.ts",                        method: "GET",    url: "/api/me",                                                     expect: [401, 200, 200, 200, 200, 200] },
+  { file: "app/api/inbox/route.ts",                     method: "GET",    url: "/api/inbox",                                                  expect: [401, 200, 200, 200, 200, 200] },
+  { file: "app/api/inbox/read/route.ts",                method: "POST",   url: "/api/inbox/read", body: { all: true },                        expect: [401, 200, 200, 200, 200, 200] },
   { file: "app/api/workspaces/route.ts",                method: "GET",    url: "/api/workspaces",                                             expect: [401, 200, 200, 200, 200, 200] },
   { file: "app/api/workspaces/route.ts",                method: "POST",   url: "/api/workspaces", body: { name: "Mirror bank B" },            expect: [401, 201, 201, 201, 201, 201] },
   { file: "app/api/w/[slug]/route.ts",                  method: "GET",    url: `/api/w/${S}`, params: { slug: S },                            expect: [401, 404, 200, 200, 200, 200] },

@@ -102,11 +102,11 @@ describe("threads", () => {
       db,
     );
     await addComment(
-      { threadId: thread.id, body: "Make m2 twice as wide.", authorId: "u_reviewer", verdict: "changes_asked" },
+      { threadId: thread.id, body: "Make m2 twice as wide.", authorId: "u_reviewer", verdict: "rework" },
       notify,
       db,
     );
-    expect(commitBadges([first.id], db).get(first.id)!.review).toBe("changes_asked");
+    expect(commitBadges([first.id], db).get(first.id)!.review).toBe("rework");
     const t2 = await createThread(
       { commitId: second.id, runId: run2, title: "fix", body: `Fixed, see [[run ${run2}]]`, authorId: "u_designer1" },
       notify,
@@ -131,7 +131,7 @@ describe("threads", () => {
     );
     const view = getThread(thread.id, db)!;
     expect(view.commitStates.map((c) => [c.commitId, c.review])).toEqual([
-      [first.id, "changes_asked"],
+      [first.id, "rework"],
       [second.id, "signed_off"],
     ]);
     await expect(
@@ -225,11 +225,11 @@ describe("demo review seed", () => {
     const { DEMO_THREAD_ID } = await import("@/scripts/seed/review");
     const view = getThread(DEMO_THREAD_ID, db)!;
     expect(view.comments.map((c) => [c.authorName, c.verdict])).toEqual([
-      ["Ruth Calder", "changes_asked"],
+      ["Ruth Calder", "rework"],
       ["Teo Brandt", null],
       ["Ruth Calder", "signed_off"],
     ]);
-    expect(view.commitStates.map((c) => c.review)).toEqual(["changes_asked", "signed_off"]);
+    expect(view.commitStates.map((c) => c.review)).toEqual(["rework", "signed_off"]);
     const fixCard = view.runCards.find((c) => c.commitId === view.commitStates[1].commitId)!;
     expect(fixCard).toMatchObject({ found: true, state: "done" });
     const badge = commitBadges([view.commitStates[1].commitId], db).get(view.commitStates[1].commitId)!;

@@ -89,7 +89,7 @@ export type ReviewState = "open" | Verdict;
 export interface CommitBadge {
   commitId: string;
   review: ReviewState;
-  /** Each reviewer's newest verdict. */
+  /** Each reviewer's newest verdict (none for a reviewer whose newest entry withdrew it). */
   verdicts: { reviewerId: string; reviewerName: string; verdict: Verdict; at: number; threadId: string | null }[];
   /** Newest stored diff per analysis. */
   diffs: { runId: string; analysis: string; compared: number; beyond: number; names: string[]; note?: string }[];
@@ -97,7 +97,7 @@ export interface CommitBadge {
 
 /** The review state of commits (invariant in db/review-schema.ts). */
 export function reviewStateOf(verdicts: { verdict: Verdict }[]): ReviewState {
-  if (verdicts.some((v) => v.verdict === "changes_asked")) return "changes_asked";
+  if (verdicts.some((v) => v.verdict === "rework")) return "rework";
   if (verdicts.some((v) => v.verdict === "signed_off")) return "signed_off";
   return "open";
 }
@@ -122,9 +122,13 @@ export function commitBadges(commitIds: string[], d: Q = db()): Map<string, Comm
     .where(inArray(reviews.commitId, commitIds))
     .orderBy(desc(reviews.createdAt), desc(reviews.id))
     .all();
+  const seen = new Set<string>();
   for (const r of rows) {
-    const b = out.get(r.commitId)!;
-    if (!b.verdicts.some((v) => v.reviewerId === r.reviewerId)) b.verdicts.push({ ...r, at: r.at.getTime() });
+    // Each reviewer's newest row decides; a withdrawn verdict leaves that reviewer with none.
+    if (seen.has(`${r.commitId} ${r.reviewerId}`)) continue;
+    seen.add(`${r.commitId} ${r.reviewerId}`);
+    if (r.verdict === "withdrawn") continue;
+    out.get(r.commitId)!.verdicts.push({ ...r, verdict: r.verdict, at: r.at.getTime() });
   }
   for (const b of out.values()) b.review = reviewStateOf(b.verdicts);
   const diffs = d

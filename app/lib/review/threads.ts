@@ -15,7 +15,19 @@
  */
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
-import { comments, commits, memberships, networks, reviews, runs, threads, users, type Verdict } from "@/db/schema";
+import {
+  comments,
+  commits,
+  memberships,
+  networks,
+  reviews,
+  runs,
+  threads,
+  users,
+  type ReviewEntry,
+  type Verdict,
+} from "@/db/schema";
+import { clip, notify as notifyInbox, type NewNotification } from "../inbox";
 import { RequestError } from "../http";
 import { publicBaseUrl } from "../request-edge";
 import type { Q } from "@/db";
@@ -36,7 +48,7 @@ export function handleOf(email: string): string {
   return email.split("@")[0].toLowerCase();
 }
 
-function checkBody(body: string, verdict: Verdict | null): string {
+function checkBody(body: string, verdict: ReviewEntry | null): string {
   const b = body.replace(/\r\n/g, "\n").trim();
   if (b.length > MAX_COMMENT_LENGTH)
     throw new RequestError(400, `body: at most ${MAX_COMMENT_LENGTH} characters (this one has ${b.length})`);
@@ -121,7 +133,8 @@ export async function addComment(
     threadId: string;
     body: string;
     authorId: string;
-    verdict?: Verdict | null;
+    /** A verdict, or "withdrawn" to take back the author's newest verdict on the commit. */
+    verdict?: ReviewEntry | null;
     verdictCommitId?: string | null;
     /** Base of the link in the e-mails (app/lib/auth.ts publicBaseUrl); default $RUNNEL_PUBLIC_URL. */
     baseUrl?: string;
@@ -140,6 +153,17 @@ export async function addComment(
     const c = d.select({ networkId: commits.networkId }).from(commits).where(eq(commits.id, verdictCommit)).get();
     if (!c || c.networkId !== thread.networkId)
       throw new RequestError(422, `commitId: ${verdictCommit} is not a commit of this thread's network`);
+  }
+
+  if (verdict === "withdrawn") {
+    const current = d
+      .select({ verdict: reviews.verdict })
+      .from(reviews)
+      .where(and(eq(reviews.commitId, verdictCommit), eq(reviews.reviewerId, input.authorId)))
+      .orderBy(desc(reviews.createdAt), desc(reviews.id))
+      .get();
+    if (!current || current.verdict === "withdrawn")
+      throw new RequestError(409, "verdict: you have no verdict on this commit to withdraw");
   }
 
   const handles = extractMentions(body);
@@ -161,6 +185,7 @@ export async function addComment(
     ).values(),
   ];
 
+  const inbox = inboxItems(thread, input.authorId, commentId, targets, verdict, verdictCommit, d);
   immediate(d, (tx) => {
     tx.insert(comments)
       .values({
@@ -185,6 +210,7 @@ export async function addComment(
         })
         .run();
     tx.update(threads).set({ updatedAt: new Date() }).where(eq(threads.id, thread.id)).run();
+    notifyInbox(inbox, tx);
   });
 
   const author = d.select({ name: users.name }).from(users).where(eq(users.id, input.authorId)).get();
@@ -203,6 +229,66 @@ export async function addComment(
     }
   }
   return { commentId, notified: targets.map((t) => handleOf(t.email)), mailErrors };
+}
+
+const VERDICT_NEWS: Record<ReviewEntry, string> = {
+  signed_off: "signed off your commit",
+  rework: "sent your commit back for rework",
+  withdrawn: "withdrew their verdict on your commit",
+};
+
+/**
+ * The inbox items a comment makes: a mention for each mentioned member, the
+ * verdict for the commit's author, and a reply for everyone else already in
+ * the thread (its opener and earlier commenters) — one item per person, the
+ * most specific kind first; never for the author.
+ */
+function inboxItems(
+  thread: ThreadRef,
+  authorId: string,
+  commentId: string,
+  mentioned: { userId: string }[],
+  verdict: ReviewEntry | null,
+  verdictCommit: string,
+  d: Q,
+): NewNotification[] {
+  const author = d.select({ name: users.name }).from(users).where(eq(users.id, authorId)).get()?.name ?? "Someone";
+  const href = `/threads/${thread.id}#${commentId}`;
+  const base = { workspaceId: thread.workspaceId, actorId: authorId, href, threadId: thread.id };
+  const out = new Map<string, NewNotification>();
+  for (const m of mentioned)
+    out.set(m.userId, {
+      ...base,
+      userId: m.userId,
+      kind: "mention",
+      title: `${author} mentioned you in “${clip(thread.title)}”`,
+    });
+  if (verdict) {
+    const c = d
+      .select({ authorId: commits.authorId, message: commits.message })
+      .from(commits)
+      .where(eq(commits.id, verdictCommit))
+      .get();
+    if (c && !out.has(c.authorId))
+      out.set(c.authorId, {
+        ...base,
+        userId: c.authorId,
+        kind: "verdict",
+        title: `${author} ${VERDICT_NEWS[verdict]} “${clip(c.message)}”`,
+      });
+  }
+  const earlier = d
+    .select({ authorId: comments.authorId })
+    .from(comments)
+    .where(eq(comments.threadId, thread.id))
+    .all()
+    .map((r) => r.authorId);
+  const opener = d.select({ by: threads.createdBy }).from(threads).where(eq(threads.id, thread.id)).get()?.by;
+  for (const userId of new Set([...(opener ? [opener] : []), ...earlier]))
+    if (!out.has(userId))
+      out.set(userId, { ...base, userId, kind: "reply", title: `${author} replied in “${clip(thread.title)}”` });
+  out.delete(authorId);
+  return [...out.values()];
 }
 
 export interface RunCard {
@@ -329,7 +415,7 @@ export interface ThreadView {
     html: string;
     body: string;
     createdAt: number;
-    verdict: Verdict | null;
+    verdict: ReviewEntry | null;
     verdictCommitId: string | null;
   }[];
   /** Review state of each commit a verdict in this thread is about (the thread's commit first). */

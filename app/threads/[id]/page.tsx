@@ -9,20 +9,26 @@ import { runsOfCommit } from "@/app/lib/review/run-tables";
 import { ReviewStateBadge } from "@/app/ui/review/badges";
 import { CommentBody, RunCard } from "@/app/ui/review/comment-body";
 import { CommentForm } from "@/app/ui/review/comment-form";
+import { VerdictPanel } from "@/app/ui/review/verdict-panel";
+import { myVerdicts, signOffSummaries } from "@/app/lib/review/sign-off";
 
 export const dynamic = "force-dynamic";
 type Props = { params: Promise<{ id: string }> };
 
 export const metadata: Metadata = { title: "Thread" };
 
-const VERDICT_TEXT = { signed_off: "signed the commit off", changes_asked: "asked for changes" } as const;
+const VERDICT_TEXT = {
+  signed_off: "signed the commit off",
+  rework: "sent the commit back for rework",
+  withdrawn: "withdrew their verdict",
+} as const;
 
 /** /threads/[id]: a review thread's permalink. A non-member (or an unknown id) gets 404. */
 export default async function ThreadPage({ params }: Props) {
   const { id } = await params;
-  const { role, t } = await pageAccess(`/threads/${id}`, (actor) => {
-    const { role, thread } = threadAccess(actor, "workspace.read", id);
-    return { role, t: found(getThread(thread.id)) };
+  const { role, t, userId } = await pageAccess(`/threads/${id}`, (actor) => {
+    const { role, thread, actor: a } = threadAccess(actor, "workspace.read", id);
+    return { role, t: found(getThread(thread.id)), userId: a.userId };
   });
   const netPath = `/w/${t.workspace.slug}/n/${t.network.slug}`;
   const runs = runsOfCommit(t.commit.id).map((r) => ({
@@ -109,7 +115,13 @@ export default async function ThreadPage({ params }: Props) {
               <a href={`#${c.id}`} className="hover:underline">
                 {new Date(c.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC
               </a>
-              {c.verdict ? <ReviewStateBadge state={c.verdict} /> : null}
+              {c.verdict === "withdrawn" ? (
+                <span data-review="withdrawn" className="text-[11px] uppercase tracking-wider text-stone-500">
+                  verdict withdrawn
+                </span>
+              ) : c.verdict ? (
+                <ReviewStateBadge state={c.verdict} />
+              ) : null}
               {c.verdict && c.verdictCommitId && c.verdictCommitId !== t.commit.id ? (
                 <span>
                   on commit <span className="font-mono">{c.verdictCommitId.slice(0, 10)}</span>
@@ -124,13 +136,22 @@ export default async function ThreadPage({ params }: Props) {
           </li>
         ))}
       </ol>
+      {roleAllows(role, "commit.signoff") ? (
+        <VerdictPanel
+          threadId={t.thread.id}
+          commits={eligible}
+          defaultCommitId={defaultCommitId}
+          summaries={signOffSummaries(eligible.map((c) => c.id))}
+          mine={myVerdicts(
+            userId,
+            eligible.map((c) => c.id),
+          )}
+        />
+      ) : null}
       {roleAllows(role, "thread.comment") ? (
         <CommentForm
           threadId={t.thread.id}
-          canSignOff={roleAllows(role, "commit.signoff")}
           runs={runs}
-          commits={eligible}
-          defaultCommitId={defaultCommitId}
           members={memberHandles(t.workspace.id).map(({ handle, name }) => ({ handle, name }))}
         />
       ) : (

@@ -1,16 +1,25 @@
 import type { CommitBadge, ReviewState } from "@/app/lib/review/diffs";
 
-const REVIEW: Record<ReviewState, { label: string; style: string }> = {
-  open: { label: "awaiting review", style: "border-stone-300 bg-white text-stone-600" },
-  changes_asked: { label: "changes asked", style: "border-ember-500 bg-ember-50 text-ember-500" },
-  signed_off: { label: "signed off", style: "border-moss-600 bg-moss-600 text-white" },
+/**
+ * Review states as small stamps: a glyph, the words in small capitals, and a
+ * rule on the left whose weight says how settled the commit is (dotted while
+ * it awaits sign-off, solid once a reviewer has spoken).
+ */
+export const REVIEW_WORDS: Record<ReviewState, { glyph: string; label: string; style: string }> = {
+  open: { glyph: "○", label: "awaiting sign-off", style: "border-dotted border-stone-400 text-stone-600" },
+  rework: { glyph: "↺", label: "back for rework", style: "border-solid border-ochre-500 bg-ochre-50 text-ochre-700" },
+  signed_off: { glyph: "✓", label: "signed off", style: "border-solid border-moss-600 bg-moss-50 text-moss-700" },
 };
 
-/** A commit's review state as a small label. */
+/** A commit's review state as a small stamp. */
 export function ReviewStateBadge({ state }: { state: ReviewState }) {
-  const r = REVIEW[state];
+  const r = REVIEW_WORDS[state];
   return (
-    <span data-review={state} className={`inline-block rounded border px-1.5 py-0.5 text-xs font-medium ${r.style}`}>
+    <span
+      data-review={state}
+      className={`inline-flex items-baseline gap-1 border-l-[3px] px-1.5 py-px text-[11px] font-medium uppercase tracking-wider ${r.style}`}
+    >
+      <span aria-hidden>{r.glyph}</span>
       {r.label}
     </span>
   );

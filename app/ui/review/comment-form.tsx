@@ -1,37 +1,27 @@
 "use client";
 
-/** The reply box of a thread: comment, and for those who may, ask for changes or sign off. */
+/** The reply box of a thread; the verdict has its own panel (verdict-panel.tsx). */
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { sendJson } from "@/app/ui/fetch";
 import { CommentComposer, type MemberHandle } from "./comment-composer";
 
-type Verdict = "signed_off" | "changes_asked" | null;
-
 export function CommentForm({
   threadId,
-  canSignOff,
   runs,
-  commits = [],
-  defaultCommitId,
   members = [],
 }: {
   threadId: string;
-  members?: MemberHandle[];
-  canSignOff: boolean;
   runs: { id: string; label: string }[];
-  /** Commits a verdict may be about (the thread's and later ones of the network). */
-  commits?: { id: string; label: string }[];
-  defaultCommitId?: string;
+  members?: MemberHandle[];
 }) {
-  const [commitId, setCommitId] = useState(defaultCommitId ?? commits[0]?.id ?? "");
   const router = useRouter();
   const [body, setBody] = useState("");
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const [note, setNote] = useState<string | null>(null);
 
-  async function send(verdict: Verdict) {
+  async function send() {
     setBusy(true);
     setError(null);
     setNote(null);
@@ -39,14 +29,10 @@ export function CommentForm({
       const r = await sendJson<{ notified: string[]; mailErrors: string[] }>(
         "POST",
         `/api/threads/${threadId}/comments`,
-        {
-          body,
-          verdict,
-          commitId: verdict && commitId ? commitId : null,
-        },
+        { body },
       );
       setBody("");
-      if (r.notified.length) setNote(`Notified ${r.notified.map((h) => "@" + h).join(", ")} by e-mail.`);
+      if (r.notified.length) setNote(`Notified ${r.notified.map((h) => "@" + h).join(", ")}.`);
       if (r.mailErrors.length) setError(`Comment saved, but e-mail failed: ${r.mailErrors.join("; ")}`);
       router.refresh();
     } catch (e) {
@@ -61,7 +47,7 @@ export function CommentForm({
       className="space-y-2 rounded border border-stone-300 bg-white p-3"
       onSubmit={(e) => {
         e.preventDefault();
-        void send(null);
+        void send();
       }}
     >
       <CommentComposer
@@ -98,40 +84,6 @@ export function CommentForm({
         >
           Comment
         </button>
-        {canSignOff ? (
-          <>
-            {commits.length > 1 ? (
-              <select
-                aria-label="Verdict about commit"
-                value={commitId}
-                onChange={(e) => setCommitId(e.target.value)}
-                className="rounded border border-stone-300 px-2 py-1 font-mono text-sm"
-              >
-                {commits.map((c) => (
-                  <option key={c.id} value={c.id}>
-                    {c.label}
-                  </option>
-                ))}
-              </select>
-            ) : null}
-            <button
-              type="button"
-              disabled={busy}
-              onClick={() => void send("changes_asked")}
-              className="rounded border border-ember-500 px-3 py-1 text-sm text-ember-500 hover:bg-ember-50 disabled:opacity-50"
-            >
-              Ask for changes
-            </button>
-            <button
-              type="button"
-              disabled={busy}
-              onClick={() => void send("signed_off")}
-              className="rounded bg-moss-600 px-3 py-1 text-sm text-white hover:bg-moss-700 disabled:opacity-50"
-            >
-              Sign off
-            </button>
-          </>
-        ) : null}
       </div>
       {error ? (
         <p role="alert" className="text-sm text-ember-500">

@@ -5,21 +5,22 @@ import { handle, readJson } from "@/app/lib/http";
 import { sendMail } from "@/app/lib/mail";
 import { authenticated, authorize } from "@/app/lib/policy";
 import { addComment, MAX_COMMENT_LENGTH } from "@/app/lib/review/threads";
-import { VERDICTS } from "@/db/schema";
+import { REVIEW_ENTRIES } from "@/db/schema";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
 
 const Body = z.object({
   body: z.string().max(MAX_COMMENT_LENGTH),
-  verdict: z.enum(VERDICTS).nullish(),
+  verdict: z.enum(REVIEW_ENTRIES).nullish(),
   commitId: z.string().min(1).nullish(),
 });
 
 /**
  * POST /api/threads/[id]/comments {body, verdict?} (thread.comment; with a
- * verdict — "signed_off" or "changes_asked" — also commit.signoff): adds a
- * comment and sends the mention e-mails. `commitId` names the commit the
+ * verdict — "signed_off", "rework", or "withdrawn" to take one's own back — also
+ * commit.signoff): adds a comment, writes the inbox items and sends the mention
+ * e-mails; 409 when there is no verdict to withdraw. `commitId` names the commit the
  * verdict is about (default the thread's; a later fix of the same network). 201.
  */
 export function POST(request: Request, ctx: Ctx) {
