@@ -12,6 +12,7 @@ import { and, eq } from "drizzle-orm";
 import { commitText, getCommit, networkBySlug, slugify } from "@/app/lib/networks";
 import { saveMeasurement } from "@/app/lib/review/measurement-store";
 import { doneRunOf } from "@/app/lib/runs";
+import { clip, notify } from "@/app/lib/inbox";
 import type { DB } from "@/db";
 import { newId } from "@/db/ids";
 import { comments, measurements, reviews, threads } from "@/db/schema";
@@ -88,9 +89,10 @@ function seedComparisons(db: DB, workspaceId: string): void {
         updatedAt: at(20),
       })
       .run();
+    const commentId = newId("c");
     db.insert(comments)
       .values({
-        id: newId("c"),
+        id: commentId,
         threadId: c.thread,
         workspaceId,
         authorId: c.author,
@@ -98,6 +100,21 @@ function seedComparisons(db: DB, workspaceId: string): void {
         body: c.body(made.runId),
       })
       .run();
+    // The reviewer's inbox item for the mention, as posting the comment would write it.
+    notify(
+      [
+        {
+          userId: "u_reviewer",
+          workspaceId,
+          kind: "mention",
+          actorId: c.author,
+          title: `${c.author === "u_designer1" ? "Teo Brandt" : "Mina Osei"} mentioned you in “${clip(c.title)}”`,
+          href: `/threads/${c.thread}#${commentId}`,
+          threadId: c.thread,
+        },
+      ],
+      db,
+    );
   }
 }
 
