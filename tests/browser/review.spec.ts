@@ -65,11 +65,15 @@ test("a reviewer opens a thread from its link, follows the run card, compares tw
   // back to the thread: the reviewer was mentioned in the seeded comparison threads, so the header's inbox shows it
   await page.goto(THREAD);
   await expect(page.getByTestId("inbox-badge")).toHaveAttribute("aria-label", /Inbox, \d+ unread/);
-  // sign off the fix: the confirmation lists the commit and its newest runs before anything is recorded
-  await page
-    .getByRole("button", { name: /^Sign off/ })
-    .first()
-    .click();
+  // the reviewer signed the fix off in the seed: the buttons show it, and the verdict can be withdrawn
+  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "signed_off");
+  await expect(page.getByRole("button", { name: "✓ Signed off" })).toBeDisabled();
+  await page.getByRole("button", { name: "Withdraw my verdict" }).click();
+  await expect(comments).toHaveCount(4);
+  await expect(comments.nth(3).locator("[data-review=withdrawn]")).toBeVisible();
+  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "none");
+  // sign off again: the confirmation lists the commit and its newest runs before anything is recorded
+  await page.getByRole("button", { name: "Sign off…" }).click();
   const confirm = page.getByRole("dialog", { name: "Sign off this commit?" });
   await expect(
     confirm.getByRole("list", { name: "Runs being signed off" }).getByRole("listitem").first(),
@@ -78,16 +82,10 @@ test("a reviewer opens a thread from its link, follows the run card, compares tw
     .getByLabel(/Note with the sign-off/)
     .fill("Checked the compare page once more: only the divider moved.");
   await confirm.getByRole("button", { name: /^Sign off \w+/ }).click();
-  await expect(comments).toHaveCount(4);
-  await expect(comments.nth(3)).toContainText("Checked the compare page once more");
-  await expect(comments.nth(3).locator("[data-review=signed_off]")).toBeVisible();
-  // the buttons now show the state; the verdict can be withdrawn
-  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "signed_off");
-  await expect(page.getByRole("button", { name: "✓ Signed off" })).toBeDisabled();
-  await page.getByRole("button", { name: "Withdraw my verdict" }).click();
   await expect(comments).toHaveCount(5);
-  await expect(comments.nth(4).locator("[data-review=withdrawn]")).toBeVisible();
-  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "none");
+  await expect(comments.nth(4)).toContainText("Checked the compare page once more");
+  await expect(comments.nth(4).locator("[data-review=signed_off]")).toBeVisible();
+  await expect(page.getByTestId("my-verdict")).toHaveAttribute("data-state", "signed_off");
   await shot(page, "signed-off");
   expect(errors).toEqual([]);
 });

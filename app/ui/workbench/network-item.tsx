@@ -5,6 +5,7 @@ import { useState } from "react";
 import type { NetworkSummary } from "@/app/lib/networks";
 import { sendJson } from "@/app/ui/fetch";
 import { RunStateBadge } from "@/app/ui/run/run-state-badge";
+import { HeadReview } from "./head-review";
 
 /** One network in the workspace list: rename, head commit, diagnostics and newest run. */
 
@@ -70,6 +71,7 @@ export function NetworkItem({
             <Link href={`/w/${slug}/n/${n.slug}`} className="font-medium text-moss-700 hover:underline">
               {n.name}
             </Link>
+            {n.headCommitId ? <HeadReview commitId={n.headCommitId} /> : null}
             {canWrite ? (
               <button
                 type="button"
