@@ -16,9 +16,9 @@ import { dividerHistory } from "../helpers/review-fixtures";
 const cleanups: (() => void)[] = [];
 afterEach(() => cleanups.splice(0).forEach((f) => f()));
 const silent: Notify = async () => undefined;
-/** A person's review items (the seeded demo runs put "run finished" items in the inboxes too). */
+/** A person's items about the divider's threads (the seeded demo puts runs and its own threads in the inboxes too). */
 const talk = (userId: string, db: Parameters<typeof listInbox>[2]) =>
-  listInbox(userId, {}, db).items.filter((n) => !n.kind.startsWith("run_"));
+  listInbox(userId, {}, db).items.filter((n) => n.title.includes("width of m2") || n.title.includes("m2 twice"));
 function fresh() {
   const t = freshDatabase();
   cleanups.push(t.dispose);
