@@ -17,11 +17,9 @@
  */
 import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
 import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
+import { RUN_STATES } from "./run-states";
 
-export const RUN_STATES = ["queued", "running", "done", "failed", "canceled", "interrupted"] as const;
-export type RunState = (typeof RUN_STATES)[number];
-/** States a run never leaves. */
-export const FINAL_RUN_STATES: readonly RunState[] = ["done", "failed", "canceled", "interrupted"];
+export { FINAL_RUN_STATES, LIVE_RUN_STATES, RUN_STATES, type RunState } from "./run-states";
 
 /** A validity warning of a run, aggregated over its points. */
 export interface RunWarning {
@@ -79,7 +77,7 @@ export const commits = sqliteTable(
     ok: integer("ok", { mode: "boolean" }).notNull(),
     errorCount: integer("error_count").notNull(),
     warningCount: integer("warning_count").notNull(),
-    /** The diagnostics at commit time, JSON (LANGUAGE.md's diagnostic objects). */
+    /** The diagnostics at commit time, JSON (the diagnostic objects of docs/language.md, The runnel command). */
     diagnostics: text("diagnostics", { mode: "json" }).notNull().$type<CommitDiagnostic[]>(),
     createdAt: createdAt(),
   },
@@ -171,7 +169,7 @@ export const runPoints = sqliteTable(
     rails: blob("rails", { mode: "buffer" }).notNull(),
     /** Float64, one per layout.nodes (absolute voltage). */
     nodes: blob("nodes", { mode: "buffer" }).notNull(),
-    /** Float64, one per layout.devices (current, LANGUAGE.md sign convention). */
+    /** Float64, one per layout.devices (current, the sign conventions of docs/language.md). */
     current: blob("current", { mode: "buffer" }).notNull(),
     /** Float32, one per layout.devices; NaN where the inversion coefficient is unknown. */
     ic: blob("ic", { mode: "buffer" }).notNull(),

@@ -5,7 +5,7 @@
  *   params, probes, solver figures); `nodes`, `devices`, `rails` have one row
  *   per point and name. Numbers are written in full precision (shortest
  *   round-trip form), in SI base units named in the header.
- * - JSON: the document of `runnel solve --json` (LANGUAGE.md) with a `run` member.
+ * - JSON: the document of `runnel solve --json` (docs/language.md, The runnel command) with a `run` member.
  */
 import type { CommitDiagnostic } from "@/db/schema";
 import type { CommitRow } from "./networks";

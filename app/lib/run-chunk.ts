@@ -176,7 +176,8 @@ function notFinite(p: PointResult, rails: Float64Array): string | null {
 
 /**
  * Channel voltages the exponential device law represents in double precision: exp(x) overflows past
- * x ≈ 709, and the solver's pseudo-voltages are exp(∓(V − Vref)/U_T) (docs/physics.md), so about 700·U_T.
+ * x ≈ 709, and the solver's pseudo-voltages are exp(∓(V − Vref)/U_T) (docs/physics.md §3 Pseudo-voltages), so
+ * about 700·U_T.
  */
 const RANGE_UT = 700;
 

@@ -20,7 +20,7 @@
  */
 import { notifyRunEnded } from "./inbox";
 import { and, asc, count, eq, inArray, sql } from "drizzle-orm";
-import { commits, runChunks, runPoints, runs, type RunState } from "@/db/schema";
+import { commits, LIVE_RUN_STATES, runChunks, runPoints, runs, type RunState } from "@/db/schema";
 import { elaborate, type Network } from "@/src/lang/index";
 import { db, type Q } from "@/db";
 import type { StoredPoint } from "./point-codec";
@@ -334,7 +334,7 @@ export function finalizeRun(
         warnings: fig.warnings,
         failures: fig.failures,
       })
-      .where(and(eq(runs.id, runId), inArray(runs.state, ["queued", "running"])))
+      .where(and(eq(runs.id, runId), inArray(runs.state, LIVE_RUN_STATES)))
       .run(),
   );
   if (ended.changes === 0) {

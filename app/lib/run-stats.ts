@@ -11,11 +11,10 @@
  *   the keys it met first.
  * - Pure: used by the local pool's threads, queue workers and the app.
  */
+import { WEAK_INVERSION_IC } from "@/src/lang/vocabulary";
 import type { PointResult } from "@/src/solver/results";
 import type { RunWarning } from "@/db/schema";
 
-/** Inversion coefficient above which a device is outside weak inversion (common practice: IC < 0.1 is weak inversion). */
-export const WEAK_INVERSION_LIMIT = 0.1;
 /** Warnings and failures a run keeps (the run page lists them). */
 export const RUN_WARNINGS_KEPT = 50;
 export const RUN_FAILURES_KEPT = 50;
@@ -109,7 +108,7 @@ export function flagBytes(devices: number): number {
 
 function markFlags(flags: Uint8Array, half: number, m: number, ic: ArrayLike<number>, saturated: ArrayLike<number>) {
   for (let k = 0; k < m; k++) {
-    if (ic[k] > WEAK_INVERSION_LIMIT) flags[k >> 3] |= 1 << (k & 7);
+    if (ic[k] > WEAK_INVERSION_IC) flags[k >> 3] |= 1 << (k & 7);
     if (!saturated[k]) flags[half + (k >> 3)] |= 1 << (k & 7);
   }
 }

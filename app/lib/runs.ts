@@ -6,18 +6,25 @@
 import { and, asc, count, desc, eq, inArray } from "drizzle-orm";
 import { db, type Q } from "@/db";
 import { newId } from "@/db/ids";
-import { networks, runChunks, runs, users, type RunFailure, type RunState, type RunWarning } from "@/db/schema";
+import {
+  LIVE_RUN_STATES,
+  networks,
+  runChunks,
+  runs,
+  users,
+  type RunFailure,
+  type RunState,
+  type RunWarning,
+} from "@/db/schema";
 import { RequestError } from "./http";
 import { notifyRunEnded } from "./inbox";
-
-const OPEN_STATES: RunState[] = ["queued", "running"];
 
 /** Ends a run that is still queued or running; no-op (false) for a run that already ended. */
 export function finishRun(runId: string, state: RunState, reason: string | null, d: Q = db()): boolean {
   const r = d
     .update(runs)
     .set({ state, reason, finishedAt: new Date() })
-    .where(and(eq(runs.id, runId), inArray(runs.state, OPEN_STATES)))
+    .where(and(eq(runs.id, runId), inArray(runs.state, LIVE_RUN_STATES)))
     .run();
   if (r.changes > 0 && state === "failed") notifyRunEnded(runId, d);
   return r.changes > 0;

@@ -117,7 +117,7 @@ export class DiagnosticSink {
   }
 }
 
-/** One diagnostic as the command line's JSON prints it (LANGUAGE.md). */
+/** One diagnostic as the command line's JSON prints it (docs/language.md, The runnel command). */
 export interface JsonDiagnostic {
   severity: Severity;
   line: number;
@@ -126,7 +126,7 @@ export interface JsonDiagnostic {
   hint?: string;
 }
 
-/** The diagnostics part of LANGUAGE.md's JSON document. */
+/** The diagnostics part of the command line's JSON document (docs/language.md, The runnel command). */
 export interface DiagnosticsDocument {
   network: string | null;
   ok: boolean;

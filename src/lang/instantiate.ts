@@ -61,23 +61,11 @@ export class Instantiator {
     for (const t of tpls) {
       if (++this.work > limits.maxWork)
         this.overflow(t, `more than ${limits.maxWork.toLocaleString("en-US")} statements to run (the limit)`);
-      switch (t.k) {
-        case "device":
-          this.device(t);
-          break;
-        case "inject":
-          this.inject(t);
-          break;
-        case "rail":
-          this.rail(t);
-          break;
-        case "probe":
-          this.probe(t);
-          break;
-        case "for":
-          this.forBlock(t);
-          break;
-      }
+      if (t.k === "device") this.device(t);
+      else if (t.k === "inject") this.inject(t);
+      else if (t.k === "rail") this.rail(t);
+      else if (t.k === "probe") this.probe(t);
+      else this.forBlock(t);
     }
   }
 

@@ -120,7 +120,7 @@ export interface RailDef {
 export interface ProbeContext {
   /** Absolute node voltage, volts. */
   voltage(node: number): number;
-  /** current(device) with the sign conventions of LANGUAGE.md. */
+  /** current(device) with the sign conventions of docs/language.md (Sign conventions). */
   deviceCurrent(device: number): number;
   injectCurrent(inject: number): number;
   /** Current a rail delivers into the network. */

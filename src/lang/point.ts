@@ -58,41 +58,29 @@ export function applyPoint(net: Network, overrides: Readonly<Record<string, numb
   const settings: Settings = { ...net.settings, temp: scope.temp, ut: scope.ut, kappa: scope.kappa };
   const affected = net.bindings.filter((b) => b.dependsOn.some((d) => changed.has(d)));
 
-  let railValue = net.nodes.railValue;
-  let injectValue = net.injects.value;
-  let w = net.devices.w;
-  let l = net.devices.l;
+  // The value arrays a binding may change, copied on first change (the network's own are never written).
+  const arrays = { rail: net.nodes.railValue, inject: net.injects.value, w: net.devices.w, l: net.devices.l };
+  const copied = new Set<keyof typeof arrays>();
   for (const b of affected) {
     const t = b.target;
-    switch (t.kind) {
-      case "rail":
-        if (railValue === net.nodes.railValue) railValue = Float64Array.from(railValue);
-        railValue[t.node] = b.evaluate(scope);
-        break;
-      case "inject":
-        if (injectValue === net.injects.value) injectValue = Float64Array.from(injectValue);
-        injectValue[t.index] = b.evaluate(scope);
-        break;
-      case "w":
-        if (w === net.devices.w) w = Float64Array.from(w);
-        w[t.index] = b.evaluate(scope);
-        break;
-      case "l":
-        if (l === net.devices.l) l = Float64Array.from(l);
-        l[t.index] = b.evaluate(scope);
-        break;
-      case "setting":
-        // kappa is already in `scope` (pointScope evaluated it in statement order).
-        if (t.name !== "kappa") settings[t.name] = b.evaluate(scope);
-        break;
+    if (t.kind === "setting") {
+      // kappa is already in `scope` (pointScope evaluated it in statement order).
+      if (t.name !== "kappa") settings[t.name] = b.evaluate(scope);
+      continue;
     }
+    if (!copied.has(t.kind)) {
+      arrays[t.kind] = Float64Array.from(arrays[t.kind]);
+      copied.add(t.kind);
+    }
+    arrays[t.kind][t.kind === "rail" ? t.node : t.index] = b.evaluate(scope);
   }
+  const { rail: railValue, inject: injectValue, w, l } = arrays;
   return {
     ...net,
     settings,
     params: net.params.map((p) => (scope[p.name] !== p.value ? { ...p, value: scope[p.name] } : p)),
-    nodes: railValue === net.nodes.railValue ? net.nodes : { ...net.nodes, railValue },
-    injects: injectValue === net.injects.value ? net.injects : { ...net.injects, value: injectValue },
-    devices: w === net.devices.w && l === net.devices.l ? net.devices : { ...net.devices, w, l },
+    nodes: copied.has("rail") ? { ...net.nodes, railValue } : net.nodes,
+    injects: copied.has("inject") ? { ...net.injects, value: injectValue } : net.injects,
+    devices: copied.has("w") || copied.has("l") ? { ...net.devices, w, l } : net.devices,
   };
 }

@@ -266,28 +266,16 @@ export class Templates {
     const kind = s.firstChild!.name === "pfet" ? "pfet" : "nfet";
     const def = s.getChild("Definition")!;
     const name = this.compiler.name(def, loopVars);
-    const pins = this.pins(s, kind);
-    let broken = this.missingPins(def, kind, pins) || !name;
-    const node = (key: string): NameTpl | null => {
-      const v = pins.get(key);
-      if (!v) return null;
-      const t = this.compiler.nodeRef(v, key, loopVars);
-      if (!t) broken = true;
-      return t;
-    };
-    const nodes = [node("gate"), node("source"), node("drain"), node(kind === "pfet" ? "well" : "bulk")];
-    const length = (key: "w" | "l"): ValueTpl | null => {
-      const v = pins.get(key);
-      if (!v) return null;
-      const t = this.compiler.value(
-        v,
-        loopVars,
-        "length",
-        `${key} is a length in metres and takes no unit symbol (write 2u for 2 µm)`,
-      );
-      if (!t) broken = true;
-      return t;
-    };
+    const pins = new PinValues(this.compiler, this.pins(s, kind), loopVars);
+    const missing = this.missingPins(def, kind, pins.written);
+    const nodes = [
+      pins.node("gate"),
+      pins.node("source"),
+      pins.node("drain"),
+      pins.node(kind === "pfet" ? "well" : "bulk"),
+    ];
+    const length = (key: "w" | "l") =>
+      pins.value(key, "length", `${key} is a length in metres and takes no unit symbol (write 2u for 2 µm)`);
     const w = length("w");
     const l = length("l");
     return {
@@ -298,27 +286,18 @@ export class Templates {
       nodes,
       w,
       l,
-      broken,
+      broken: missing || !name || pins.broken,
     };
   }
 
   private inject(s: SyntaxNode, loopVars: string[]): InjectTpl {
     const def = s.getChild("Definition")!;
     const name = this.compiler.name(def, loopVars);
-    const pins = this.pins(s, "inject");
-    let broken = this.missingPins(def, "inject", pins) || !name;
-    const ref = (key: string): NameTpl | null => {
-      const v = pins.get(key);
-      if (!v) return null;
-      const t = this.compiler.nodeRef(v, key, loopVars);
-      if (!t) broken = true;
-      return t;
-    };
-    const from = ref("from");
-    const to = ref("to");
-    const v = pins.get("value");
-    const value = v ? this.compiler.value(v, loopVars, AMPERE, "an inject value is a current in amperes") : null;
-    if (v && !value) broken = true;
+    const pins = new PinValues(this.compiler, this.pins(s, "inject"), loopVars);
+    const missing = this.missingPins(def, "inject", pins.written);
+    const from = pins.node("from");
+    const to = pins.node("to");
+    const value = pins.value("value", AMPERE, "an inject value is a current in amperes");
     return {
       k: "inject",
       at: s.from,
@@ -326,7 +305,7 @@ export class Templates {
       from,
       to,
       value,
-      broken,
+      broken: missing || !name || pins.broken,
     };
   }
 
@@ -360,3 +339,33 @@ export class Templates {
     return { k: "probe", at: s.from, end: s.to, name, fn, loopNames: loopVars, args, dim };
   }
 }
+
+/** An element's written pins compiled one by one; `broken` once a written pin does not compile. */
+class PinValues {
+  broken = false;
+
+  constructor(
+    private readonly compiler: Compiler,
+    readonly written: Map<string, SyntaxNode>,
+    private readonly loopVars: string[],
+  ) {}
+
+  /** The node a pin names, or null when the pin is not written (or does not compile). */
+  node(key: string): NameTpl | null {
+    const v = this.written.get(key);
+    if (!v) return null;
+    const t = this.compiler.nodeRef(v, key, this.loopVars);
+    if (!t) this.broken = true;
+    return t;
+  }
+
+  /** The value of a pin, or null when the pin is not written (or does not compile). */
+  value(key: string, expect: Dim | "length", what: string): ValueTpl | null {
+    const v = this.written.get(key);
+    if (!v) return null;
+    const t = this.compiler.value(v, this.loopVars, expect, what);
+    if (!t) this.broken = true;
+    return t;
+  }
+}
+

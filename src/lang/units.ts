@@ -5,7 +5,7 @@
  * - `known`: a literal with a unit symbol (`450mV`), `ut`, `kappa`, `temp`,
  *   voltage(), current(), and whatever is derived from them.
  * - `loose`: a bare number (`0.45`), a loop variable or a function result
- *   (`exp(...)`). The unit symbol of a number is optional (LANGUAGE.md), so a
+ *   (`exp(...)`). The unit symbol of a number is optional (docs/language.md, Lexical rules), so a
  *   bare number may stand for any unit its use needs: in `+`/`-` it takes the
  *   other side's dimension, and a product or quotient with a loose factor is
  *   loose too (`dv/ut` with `param dv = 0.02` may be dimensionless, and

@@ -1,7 +1,7 @@
 /**
  * Which solver a network needs, and why.
  *
- * Linear class (Vittoz & Arreguit 1993; PHYSICS.md §3): model `weak`; every
+ * Linear class (Vittoz & Arreguit 1993; docs/physics.md §3 Pseudo-voltages): model `weak`; every
  * gate and every bulk/well on a rail; every internal node touches channels of
  * one polarity only (plus ideal current sources). Then KCL is a weighted
  * Laplacian in pseudo-voltages. Anything else goes to Newton, with the first
@@ -34,9 +34,6 @@ export interface Classification {
 
 const MAX_REASONS = 20;
 
-/** NFET as a module-local constant (an imported binding can compile to a getter call per read; see linear.ts). */
-const N_TYPE: number = NFET;
-
 export function classify(net: Network): Classification {
   const { nodes, devices } = net;
   const nn = nodes.names.length;
@@ -56,7 +53,7 @@ export function classify(net: Network): Classification {
     if (!isRail(gate[d])) add(() => `gate of ${devices.names[d]} is on internal node ${nodes.names[gate[d]]}`);
     const b = bulk[d];
     if (b >= 0 && !isRail(b))
-      add(() => `${type[d] === N_TYPE ? "bulk" : "well"} of ${devices.names[d]} is on internal node ${nodes.names[b]}`);
+      add(() => `${type[d] === NFET ? "bulk" : "well"} of ${devices.names[d]} is on internal node ${nodes.names[b]}`);
   }
   let mixed = false;
   for (let k = 0; k < nn && !mixed; k++) if (nodeClass[k] === CLASS_MIXED && !isRail(k)) mixed = true;
@@ -65,7 +62,7 @@ export function classify(net: Network): Classification {
     const firstN = new Int32Array(nn).fill(-1);
     const firstP = new Int32Array(nn).fill(-1);
     for (let d = 0; d < devices.count; d++) {
-      const first = type[d] === N_TYPE ? firstN : firstP;
+      const first = type[d] === NFET ? firstN : firstP;
       if (first[source[d]] < 0) first[source[d]] = d;
       if (first[drain[d]] < 0) first[drain[d]] = d;
     }
@@ -102,7 +99,7 @@ function channelClasses(
 ): number {
   let firstOff = -1;
   for (let d = 0; d < m; d++) {
-    const bit = type[d] === N_TYPE ? CLASS_N : CLASS_P;
+    const bit = type[d] === NFET ? CLASS_N : CLASS_P;
     nodeClass[source[d]] |= bit;
     nodeClass[drain[d]] |= bit;
     if (firstOff < 0) {

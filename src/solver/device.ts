@@ -5,11 +5,11 @@
  * Each device is reduced to the n-channel form: with σ = +1 (nfet) or −1
  * (pfet) and Vb its bulk (0 for the substrate) or well, terminal voltages are
  * x = σ·(V − Vb), and the device current (nfet drain→source, pfet
- * source→drain, as LANGUAGE.md reports it) is
+ * source→drain, as docs/language.md, Sign conventions, reports it) is
  *   weak: I = exp(a + (κ·xg − xs)/U_T) − exp(a + (κ·xg − xd)/U_T),
- *         a = ln(i0·W/L) − κ·dVT/U_T                        (PHYSICS.md §2, LANGUAGE.md)
+ *         a = ln(i0·W/L) − κ·dVT/U_T                        (docs/physics.md §2 Weak-inversion drain current)
  *   ekv:  I = b·[F((κ(xg − VT0 − dVT) − xs)/U_T) − F((κ(xg − VT0 − dVT) − xd)/U_T)],
- *         b = ispec·W/L                                       (PHYSICS.md §4)
+ *         b = ispec·W/L                                       (docs/physics.md §4 EKV all-region model)
  * The current entering the source node is σ·I, entering the drain −σ·I.
  */
 
@@ -90,12 +90,9 @@ function fillLn(P: DeviceParams): void {
   P.lnReady = true;
 }
 
-/** NFET as a module-local constant (an imported binding can compile to a getter call; see linear.ts). */
-const N_TYPE: number = NFET;
-
 /** σ for a device type. */
 export function polarity(type: number): number {
-  return type === N_TYPE ? 1 : -1;
+  return type === NFET ? 1 : -1;
 }
 
 /**

@@ -2,7 +2,7 @@
  * The all-region EKV interpolation (Enz, Krummenacher, Vittoz, "An analytical
  * MOS transistor model valid in all regions of operation and dedicated to
  * low-voltage and low-current applications", Analog Integrated Circuits and
- * Signal Processing 8(1), 83–114, 1995; PHYSICS.md §4):
+ * Signal Processing 8(1), 83–114, 1995; docs/physics.md §4 EKV all-region model):
  *   I = Ispec·(W/L)·[F((Vp − Vs)/U_T) − F((Vp − Vd)/U_T)],  F(x) = ln²(1 + e^{x/2}),
  *   Vp = κ·(Vg − VT0), voltages referenced to the bulk (downward from the well
  *   for a p-channel device). Deep in weak inversion F(x) → e^x.

@@ -8,12 +8,9 @@
  */
 
 import { type Network, NFET } from "../lang/network";
-import { JUNCTION_TOLERANCE as JUNCTION_LIMIT } from "../lang/vocabulary";
+import { JUNCTION_TOLERANCE, WEAK_INVERSION_IC } from "../lang/vocabulary";
 import { type DeviceParams, deviceCurrent } from "./device";
 import type { Evaluation, PointStorage, SolverWarning } from "./results";
-
-/** NFET as a module-local constant (an imported binding can compile to a getter call per read; see linear.ts). */
-const N_TYPE: number = NFET;
 
 /**
  * A point's KCL error, relative to its largest device or inject current
@@ -24,10 +21,6 @@ const N_TYPE: number = NFET;
  * of KCL error, outputs 0.7% off), so this keeps reported currents to about 1e-5.
  */
 export const KCL_LIMIT = 1e-6;
-/** Tolerance beyond which a junction counts as forward-biased, volts (module-local, as N_TYPE). */
-export const JUNCTION_TOLERANCE: number = JUNCTION_LIMIT;
-/** Inversion coefficient above which the weak-inversion model no longer holds (common practice: IC < 0.1 is weak inversion). */
-export const WEAK_LIMIT = 0.1;
 
 /** What the evaluation loops find besides the arrays: the largest current and the devices the validity checks flag. */
 export class EvalStats {
@@ -119,7 +112,7 @@ function deviceLoop(
   const satLimit = 4 * net.settings.ut;
   const four = new Float64Array(4);
   for (let d = 0; d < m; d++) {
-    const sg = type[d] === N_TYPE ? 1 : -1;
+    const sg = type[d] === NFET ? 1 : -1;
     const b = bulk[d];
     const s = source[d];
     const t = drain[d];
@@ -137,7 +130,7 @@ function deviceLoop(
     if (hasIc) {
       const icd = iF / ((icScale * w[d]) / l[d]);
       ic[d] = icd;
-      if (checkWeak && icd > WEAK_LIMIT) {
+      if (checkWeak && icd > WEAK_INVERSION_IC) {
         if (st.inversionFirst < 0) st.inversionFirst = d;
         st.inversionCount++;
         if (icd > st.inversionWorst) st.inversionWorst = icd;
@@ -202,7 +195,7 @@ export function validityWarnings(net: Network, st: EvalStats): SolverWarning[] {
         st.inversionFirst,
         st.inversionCount,
         worst,
-        `inversion coefficient up to ${worst.toPrecision(3)} (> ${WEAK_LIMIT}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`,
+        `inversion coefficient up to ${worst.toPrecision(3)} (> ${WEAK_INVERSION_IC}), outside weak inversion; the exponential model overestimates the current there (set model = ekv)`,
       ),
     );
   }

@@ -3,7 +3,7 @@
  *
  *   classify(net)                       which method a network needs, and why
  *   solveNetwork(net, opts) → RunResult every point (or a range): sweep grid (outer first) × mismatch samples
- *   toSolveJson(net, diagnostics, run)  the docs/language.md `solve --json` document
+ *   toSolveJson(net, diagnostics, run)  the `solve --json` document of docs/language.md
  */
 
 export { classify, type Classification } from "./classify";

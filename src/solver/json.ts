@@ -1,5 +1,5 @@
 /**
- * The `runnel solve --json` document (docs/language.md, command line): the
+ * The `runnel solve --json` document (docs/language.md, The runnel command): the
  * diagnostics of elaboration and solve, and one entry per point with its
  * values by name.
  */
@@ -44,7 +44,7 @@ export interface SolveJson {
 
 const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
-/** One point as docs/language.md specifies (names as keys, null for missing numbers). */
+/** One point as docs/language.md (The runnel command) specifies (names as keys, null for missing numbers). */
 export function pointJson(net: Network, p: PointResult): JsonPoint {
   const nodes: Record<string, number> = {};
   const names = net.nodes.names;

@@ -2,7 +2,7 @@
  * The evaluation of a linear-class point from its solved pseudo-voltages:
  * every device's current, saturation, inversion coefficient and junction
  * check, every rail's current and the KCL residual — the same quantities as
- * evaluate.ts `evaluate`, from the same device equation (LANGUAGE.md):
+ * evaluate.ts `evaluate`, from the same device equation (docs/language.md, Device equations):
  *
  *   I = i0·(W/L)·e^{−κ·dVT/U_T}·exp(κ·Vg/U_T)·(exp(−Vs/U_T) − exp(−Vd/U_T))
  *     = gs_c·ĝ·(û_s − û_d)                              (linear.ts scaling)
@@ -17,9 +17,10 @@
  */
 
 import type { Network } from "../lang/network";
+import { WEAK_INVERSION_IC } from "../lang/vocabulary";
 import type { LinearPlan, SuperposedParts } from "./linear";
 import { pool } from "./pool";
-import { currentScale, EvalStats, KCL_LIMIT, noIc, validityWarnings, WEAK_LIMIT } from "./evaluate";
+import { currentScale, EvalStats, KCL_LIMIT, noIc, validityWarnings } from "./evaluate";
 import type { Evaluation, PointStorage } from "./results";
 
 /** e^{−4}: V_DS > 4·U_T in pseudo-voltages. */
@@ -292,7 +293,7 @@ function icLoop(
     const iF = c[d] * ((pack[q + 2] & 1) === 0 ? gsN : gsP) * ua;
     const v = iF / ((ispec * w[d]) / l[d]);
     ic[d] = v;
-    if (v > WEAK_LIMIT) {
+    if (v > WEAK_INVERSION_IC) {
       if (first < 0) first = d;
       count++;
       if (v > worst) worst = v;

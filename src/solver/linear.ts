@@ -1,6 +1,6 @@
 /**
  * The exact DC solve of a linear-class network in pseudo-voltages
- * (Vittoz & Arreguit 1993; PHYSICS.md §3).
+ * (Vittoz & Arreguit 1993; docs/physics.md §3 Pseudo-voltages).
  *
  * With u = exp(−V/U_T) at n-channel nodes and u = exp(V/U_T) at p-channel
  * nodes, a device whose gate and bulk/well sit on rails carries
@@ -51,18 +51,11 @@ import { cholesky, type CholeskyWork, choleskyWork, emptyFactor, type Factor, ma
 import type { DeviceParams } from "./device";
 import { natural, order, type OrderingName } from "./order";
 import { Arena, pool } from "./pool";
-import { JUNCTION_TOLERANCE } from "./evaluate";
 import { cumsum, dedupeAdjacency, type Csc } from "./sparse";
 import { analyse, type Kernel, naturalHasNoFill, type Symbolic } from "./symbolic";
 import { lsolve, ltsolve } from "./triangular";
 import { leafFirstOrder, treeFactor, treeSolve } from "./tree";
-
-/**
- * NFET as a module-local constant: a loader that compiles ES modules to
- * CommonJS (tsx, the bench's runner) turns each read of an imported binding
- * into a getter call, measured at ~60 ms per 10^6-device pass.
- */
-const N_TYPE: number = NFET;
+import { JUNCTION_TOLERANCE } from "../lang/vocabulary";
 
 /** The fill-reducing ordering used when the natural order has fill (measured on grid256/grid512: see bench/). */
 export const DEFAULT_ORDERING: OrderingName = "nd";
@@ -176,7 +169,7 @@ export type LinearFailure = { ok: false; node: number; message: string };
 const MAX_SUPERPOSED = 16;
 
 /**
- * Superposition (the solution is linear in the inject values, PHYSICS.md §3):
+ * Superposition (the solution is linear in the inject values, docs/physics.md §3 Pseudo-voltages):
  * after the first solve of a factorisation, a point whose injects differ from
  * the reference values only in `changed` is û = rest + Σ_j v_j·z_j, with
  * `rest` the solution for the rails and the unchanged injects and z_j the
@@ -443,7 +436,7 @@ function packDevices(
       lastGate = gn;
       lastType = ty;
       lastBulk = bk;
-      p = ty === N_TYPE ? 0 : 1;
+      p = ty === NFET ? 0 : 1;
       const id = (gn * nodeCount + bk + 1) * 2 + p;
       const known = keyOf.get(id);
       if (known === undefined) {
@@ -683,7 +676,7 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
     const b = keyBulk[k];
     const vb = b >= 0 ? V[b] : 0;
     const vg = V[keyGate[k]];
-    if (keyType[k] === N_TYPE) {
+    if (keyType[k] === NFET) {
       const e = (kappa * (vg - vb) + vb) / ut;
       keyFactor[k] = e;
       if (e > lamN) lamN = e;
@@ -700,8 +693,7 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
   }
   if (!Number.isFinite(lamN)) lamN = 0;
   if (!Number.isFinite(lamP)) lamP = 0;
-  for (let k = 0; k < keyType.length; k++)
-    keyFactor[k] = Math.exp(keyFactor[k] - (keyType[k] === N_TYPE ? lamN : lamP));
+  for (let k = 0; k < keyType.length; k++) keyFactor[k] = Math.exp(keyFactor[k] - (keyType[k] === NFET ? lamN : lamP));
   const lnI0 = Math.log(P.i0);
   // A node an inject of I amperes holds through the strongest gate sits near
   // V = U_T·(ln i0 + Λ_c − ln I) (n; p mirrored), which can be far beyond every
@@ -742,7 +734,7 @@ function scaleAndGates(plan: LinearPlan, net: Network, P: DeviceParams): void {
     const b = keyBulk[k];
     const vb = b >= 0 ? V[b] : 0;
     keyJunction[k] =
-      keyType[k] === N_TYPE
+      keyType[k] === NFET
         ? Math.exp(-(vb - JUNCTION_TOLERANCE - vrefN) / ut)
         : Math.exp((vb + JUNCTION_TOLERANCE - vrefP) / ut);
   }

@@ -1,8 +1,8 @@
 /**
  * Threshold mismatch Monte Carlo (Pelgrom, Duinmaijer, Welbers, "Matching
  * properties of MOS transistors", IEEE JSSC 24(5), 1433–1439, 1989;
- * PHYSICS.md §7): each device gets dVT ~ Normal(0, avt / sqrt(W·L)) with W, L
- * in µm and avt in V·µm, applied per device (LANGUAGE.md `mismatch`).
+ * docs/physics.md §7 Mismatch): each device gets dVT ~ Normal(0, avt / sqrt(W·L)) with W, L
+ * in µm and avt in V·µm, applied per device (docs/language.md, Mismatch).
  *
  * Reproducibility: sample s draws from its own stream, the xoroshiro128+
  * generator of the pure-rand package seeded with `seed` and jumped s times

@@ -5,7 +5,7 @@
  * evaluate.ts (voltage form) and linear-eval.ts (pseudo-voltage form), the
  * `solve --json` document in json.ts.
  *
- * Sign conventions (docs/language.md): device current nfet drain→source, pfet
+ * Sign conventions (docs/language.md, Sign conventions): device current nfet drain→source, pfet
  * source→drain; a rail's current is what it delivers into the network; the
  * residual is the largest KCL error over internal nodes, in amperes.
  */

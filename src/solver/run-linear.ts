@@ -1,6 +1,6 @@
 /**
  * The linear driver: a linear-class run solved in pseudo-voltages
- * (linear.ts; docs/physics.md §3), one step per phase:
+ * (linear.ts; docs/physics.md §3 Pseudo-voltages), one step per phase:
  *
  *   plan     = planLinear(net)          ordering, symbolic analysis         once per run
  *   L·Lᵀ     = A(point)                 conductances, numeric Cholesky      when rails, sizes, settings or the sample change

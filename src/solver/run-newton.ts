@@ -20,14 +20,12 @@
 import { type Network, NFET } from "../lang/network";
 import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceCurrent, deviceParams, polarity } from "./device";
-import { currentScale, evaluate, firstDeviceAt, JUNCTION_TOLERANCE, KCL_LIMIT } from "./evaluate";
+import { currentScale, evaluate, firstDeviceAt, KCL_LIMIT } from "./evaluate";
+import { JUNCTION_TOLERANCE } from "../lang/vocabulary";
 import { factorLinear, planLinear, releaseLinear, solveLinear } from "./linear";
 import { initialGuess, solveNewton, planNewton } from "./newton";
 import type { Evaluation, RunResult, SolverWarning } from "./results";
 import { type Outcome, type Run, SOLVED } from "./run";
-
-/** NFET as a module-local constant (see linear.ts). */
-const N_TYPE: number = NFET;
 
 export function newtonRun(run: Run): RunResult {
   const plan = run.analyse(() => planNewton(run.net));
@@ -166,7 +164,7 @@ function forwardJunction(net: Network, V: Float64Array, P: DeviceParams, ev: Eva
   const xs = sg * (V[source[d]] - vb);
   const xd = sg * (V[drain[d]] - vb);
   const iF = deviceCurrent(P, d, sg * (V[gate[d]] - vb), xs, xd, four);
-  const where = type[d] === N_TYPE ? "bulk" : "well";
+  const where = type[d] === NFET ? "bulk" : "well";
   const end = xs <= xd ? "source" : "drain";
   const scale = currentScale(net, ev);
   return {
@@ -183,7 +181,8 @@ function forwardJunction(net: Network, V: Float64Array, P: DeviceParams, ev: Eva
 function startNewton(pnet: Network, cls: Classification, V: Float64Array): void {
   initialGuess(pnet, V);
   if (cls.reasons.length !== 1 || pnet.settings.model !== "ekv") return;
-  // Only the model breaks linearity: the weak-inversion limit of EKV, I0 = ispec·exp(−κ·VT0/U_T) (docs/physics.md §4).
+  // Only the model breaks linearity: the weak-inversion limit of EKV, I0 = ispec·exp(−κ·VT0/U_T)
+  // (docs/physics.md §4 EKV all-region model).
   const s = pnet.settings;
   const weak: Network = {
     ...pnet,

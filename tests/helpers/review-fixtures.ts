@@ -8,7 +8,7 @@
  * vg, `iin` pulled out of x; m3 alone on node y carries 5 nA. With
  * u = exp(−V/U_T) and G = I0·(W/L)·exp(κVg/U_T), I_k = G_k·(u_x − u_d) and
  * u_x = u_d + iin/ΣG (E. Vittoz, "Analog VLSI signal processing: why, where
- * and how?", J. VLSI Signal Processing 8, 1994 [confirmed]; PHYSICS.md §3) [derived].
+ * and how?", J. VLSI Signal Processing 8, 1994 [confirmed]; docs/physics.md §3 Pseudo-voltages) [derived].
  */
 import { runPoints, runs } from "@/db/schema";
 import type { DB } from "@/db";

@@ -3,7 +3,7 @@
  * networks differ by the width of one device, each run by `executeRun` (the
  * run worker's code, in-process). Expected from the weak-inversion current
  * divider (E. Vittoz, "Analog VLSI signal processing: why, where and how?",
- * J. VLSI Signal Processing 8, 1994 [confirmed]; PHYSICS.md §3): with equal
+ * J. VLSI Signal Processing 8, 1994 [confirmed]; docs/physics.md §3 Pseudo-voltages): with equal
  * gates, doubling W of m2 moves the shared source node and the currents of m1
  * and m2 and their ratio (1 → 1/2) [derived]; the independent branch (node y,
  * device m3), the rails and their currents stay put.

@@ -8,7 +8,7 @@
  *
  * Physics check: the divider's probe `ratio` = I1/I2 = exp(κ·Δv/U_T) for a
  * differential pair in weak inversion with saturated drains (Vittoz &
- * Arreguit 1993, PHYSICS.md [confirmed]); here it checks that stored values
+ * Arreguit 1993, docs/physics.md §3 Pseudo-voltages [confirmed]); here it checks that stored values
  * come back from the API unchanged, not the solver, which has its own tests.
  */
 import { eq } from "drizzle-orm";

@@ -1,3 +1,4 @@
+import os from "node:os";
 import path from "node:path";
 import { afterEach, describe, expect, it } from "vitest";
 import { databasePath, migrationsFolder } from "@/db";
@@ -15,8 +16,9 @@ describe("database location", () => {
   });
 
   it("is overridden by RUNNEL_DB", () => {
-    process.env.RUNNEL_DB = "/tmp/elsewhere/x.db";
-    expect(databasePath()).toBe("/tmp/elsewhere/x.db");
+    const elsewhere = path.join(os.tmpdir(), "elsewhere", "x.db");
+    process.env.RUNNEL_DB = elsewhere;
+    expect(databasePath()).toBe(elsewhere);
   });
 
   it("reads migrations from migrations/", () => {

@@ -180,7 +180,7 @@ describe("params, settings and the thermal voltage", () => {
   });
 
   // U_T = kT/q, k and q exact since the 2019 SI revision (BIPM SI Brochure, 9th ed., 2019; CODATA 2018) [confirmed]:
-  // 25.852000 mV at 300 K, 30.160666 mV at 350 K, 21.543333 mV at 250 K (PHYSICS.md §1).
+  // 25.852000 mV at 300 K, 30.160666 mV at 350 K, 21.543333 mV at 250 K (docs/physics.md §1 Thermal voltage).
   it("ut follows set temp", () => {
     expect(net("param u = ut\n").params[0].value).toBeCloseTo(25.852e-3, 9);
     expect(net("set temp = 350K\nparam u = ut\n").params[0].value).toBeCloseTo(30.160666e-3, 9);
@@ -302,8 +302,9 @@ sweep dv values [0, 10m, 20m]
   });
 
   // Differential pair, both devices saturated: I1/I2 = exp(κΔV/U_T) = 1.3107989 at ΔV 10 mV, κ 0.7, 300.15 K
-  // (C. Mead, Analog VLSI and Neural Systems, Addison-Wesley, 1989 [confirmed record; formula derived], PHYSICS.md §5);
-  // 1.3839 at 250 K and 1.2612 at 350 K (PHYSICS.md §9).
+  // (C. Mead, Analog VLSI and Neural Systems, Addison-Wesley, 1989 [confirmed record; formula derived],
+  // docs/physics.md §5 Differential pair);
+  // 1.3839 at 250 K and 1.2612 at 350 K (docs/physics.md §9 Temperature).
   it("probes read the solved point through the context", () => {
     const n = net(DIVIDER.replace("w=wl", "w=1u"));
     const byName = Object.fromEntries(n.probes.map((p) => [p.name, p]));

@@ -5,7 +5,7 @@
  * a diode-connected nfet (gate = drain) at every node and the same 1 nA pushed
  * into every node. By symmetry no lateral current flows, so every node sits where
  * its diode carries 1 nA: I0·e^{κV/U_T}·(1 − e^{−V/U_T}) = 1 nA (the weak-inversion
- * equation of PHYSICS.md §2; C. Mead, Analog VLSI and Neural Systems, 1989), solved
+ * equation of docs/physics.md §2 Weak-inversion drain current; C. Mead, Analog VLSI and Neural Systems, 1989), solved
  * here by bisection.
  */
 import { describe, expect, it } from "vitest";

@@ -6,11 +6,11 @@
  * voltage moves its KCL sum by ~1e-14 A: the convergence test must accept a
  * KCL error at the resolution of double precision (newton.ts), and the answer
  * must still be right. References: the weak-inversion drain current of
- * PHYSICS.md §2 (C. Mead, Analog VLSI and Neural Systems, Addison-Wesley,
+ * docs/physics.md §2 Weak-inversion drain current (C. Mead, Analog VLSI and Neural Systems, Addison-Wesley,
  * 1989 [confirmed record]; E. Vittoz, "Analog VLSI signal processing: why,
  * where and how?", J. VLSI Signal Processing 8, 27–44, 1994 [confirmed]),
  * written out again below, the output found by bisection on nfet current =
- * pfet current; U_T = kT/q with the exact SI constants (PHYSICS.md §1: BIPM,
+ * pfet current; U_T = kT/q with the exact SI constants (docs/physics.md §1 Thermal voltage: BIPM,
  * The International System of Units, 9th ed., 2019 [confirmed]).
  */
 import { describe, expect, it } from "vitest";

@@ -15,7 +15,8 @@ import {
  * independent branch (m3 alone on node y with its own 5 nA), solved in closed
  * form from the weak-inversion law in pseudo-voltages (E. Vittoz, "Analog VLSI
  * signal processing: why, where and how?", J. VLSI Signal Processing 8, 1994
- * [confirmed]; PHYSICS.md §2–3): device k carries I_k = G_k·(u_x − u_d) with
+ * [confirmed]; docs/physics.md §2 Weak-inversion drain current, §3 Pseudo-voltages): device k carries
+ * I_k = G_k·(u_x − u_d) with
  * G_k = I0·(W/L)_k·exp(κ·Vg/U_T) and u = exp(−V/U_T), so KCL at x gives
  * u_x = u_d + iin/(G1 + G2) and I1/I2 = (W/L)1/(W/L)2 [derived].
  */

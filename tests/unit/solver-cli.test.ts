@@ -1,5 +1,5 @@
 /**
- * `runnel solve FILE --json` on every example (LANGUAGE.md, Command line): one
+ * `runnel solve FILE --json` on every example (docs/language.md, The runnel command): one
  * JSON document, ok, every point with its method, and KCL residuals that are
  * negligible against the network's currents. The mirror bank is solved by
  * Newton and says why; the exact published check values are in
@@ -50,7 +50,8 @@ describe("runnel solve --json on the examples", () => {
     const { doc } = solveJson(join(root, "examples", "mirror.runnel"));
     expect(doc.points[0].solver.method).toBe("newton");
     expect(doc.points[0].solver.reason).toBe("gate of diode is on internal node x");
-    // W/L ratios 1, 2, 4, 8: gain = ratio·(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}) (PHYSICS.md §8; Mead 1989 [confirmed record; formula derived]).
+    // W/L ratios 1, 2, 4, 8: gain = ratio·(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}) (docs/physics.md §8 Current mirror;
+    // Mead 1989 [confirmed record; formula derived]).
     const p = doc.points[0];
     const ut = (1.380649e-23 * 300) / 1.602176634e-19;
     const factor = (1 - Math.exp(-p.nodes.vout / ut)) / (1 - Math.exp(-p.nodes.x / ut));

@@ -4,9 +4,9 @@
  * reuses its factorisation and superposes inject responses, checked against
  * the weak-inversion law itself:
  *   p-channel I(s→d) = I0·(W/L)·exp(κ(Vw − Vg)/U_T)·[exp(−(Vw − Vs)/U_T) − exp(−(Vw − Vd)/U_T)]
- * (PHYSICS.md §2: C. Mead, Analog VLSI and Neural Systems, 1989 [confirmed record];
+ * (docs/physics.md §2 Weak-inversion drain current: C. Mead, Analog VLSI and Neural Systems, 1989 [confirmed record];
  * E. Vittoz, "Analog VLSI signal processing: why, where and how?", 1994 [confirmed]),
- * the inversion coefficient IC = I_F/(Ispec·W/L) (PHYSICS.md §4 [memory]) and
+ * the inversion coefficient IC = I_F/(Ispec·W/L) (docs/physics.md §4 EKV all-region model [memory]) and
  * KCL at the internal node (common practice).
  */
 import { describe, expect, it } from "vitest";

@@ -1,8 +1,8 @@
 /**
  * The pseudo-voltage linear solve (Vittoz & Arreguit, Electronics Letters
- * 29(3), 1993 [memory]; PHYSICS.md §3) against independent references:
+ * 29(3), 1993 [memory]; docs/physics.md §3 Pseudo-voltages) against independent references:
  * - math.js `lusolve` on the same KCL system assembled here from the device
- *   equations of LANGUAGE.md (a general-purpose dense solver);
+ *   equations of docs/language.md (Device equations; a general-purpose dense solver);
  * - the Newton path on node voltages (a different formulation);
  * - properties (fast-check): KCL holds to a relative 1e-12 at every node, and
  *   currents do not depend on names or statement order.
@@ -174,7 +174,7 @@ function kcl(net: Network, p: PointResult): { err: Float64Array; scale: Float64A
   return { err, scale };
 }
 
-/** I_F + I_R of every device at the reported voltages (LANGUAGE.md device equations, model weak). */
+/** I_F + I_R of every device at the reported voltages (docs/language.md, Device equations, model weak). */
 function grossCurrents(net: Network, p: PointResult): Float64Array {
   const { type, gate, source, drain, bulk, w, l } = net.devices;
   const { kappa, ut, i0 } = net.settings;
@@ -262,13 +262,13 @@ describe("the linear path's evaluation from pseudo-voltages", () => {
   // The linear path reports currents, saturation, inversion coefficients,
   // junction checks and rail currents from the solved pseudo-voltages
   // (linear-eval.ts); here the same quantities come from the device equations
-  // in voltage form (LANGUAGE.md, model weak) at the voltages it reported.
+  // in voltage form (docs/language.md, Device equations, model weak) at the voltages it reported.
   it("equals the device equations at the reported voltages on random networks", () => {
     let junctions = 0;
     let inversions = 0;
     for (let seed = 1; seed <= 60; seed++) {
       const net = build(randomLinear(seed));
-      // A small specific current so that some devices leave weak inversion (PHYSICS.md §4).
+      // A small specific current so that some devices leave weak inversion (docs/physics.md §4 EKV all-region model).
       net.settings.ispec = 1e-10;
       const p = solveOne(net);
       expect(p.solver.method).toBe("linear");

@@ -1,7 +1,7 @@
 /**
  * Mismatch Monte Carlo against Pelgrom's law (M. J. M. Pelgrom, A. C. J.
  * Duinmaijer, A. P. G. Welbers, "Matching properties of MOS transistors",
- * IEEE JSSC 24(5), 1433–1439, 1989 [confirmed]; PHYSICS.md §7): with
+ * IEEE JSSC 24(5), 1433–1439, 1989 [confirmed]; docs/physics.md §7 Mismatch): with
  * σ(dVT) = avt/√(WL) per device, a saturated weak-inversion device has
  * ln I shifted by −κ·dVT/U_T, so σ(ln I) = κ·σ(VT)/U_T (lognormal current).
  * Statistical tolerances: the sample standard deviation of N normal values
@@ -29,7 +29,7 @@ function single(runs: number, seed: number, avt: number, w = 2e-6, l = 2e-6) {
 }
 
 describe("Pelgrom mismatch", () => {
-  it("σ(ln I) of a saturated device is κ·σ(VT)/U_T: avt 5 mV·µm, W = L = 2 µm → σ(VT) 2.5 mV, σ(ln I) = 0.0677 (PHYSICS.md §7)", () => {
+  it("σ(ln I) of a saturated device is κ·σ(VT)/U_T: avt 5 mV·µm, W = L = 2 µm → σ(VT) 2.5 mV, σ(ln I) = 0.0677 (docs/physics.md §7 Mismatch)", () => {
     const N = 4000;
     const net = single(N, 12345, 5e-3);
     const run = solveNetwork(net);

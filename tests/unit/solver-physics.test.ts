@@ -1,7 +1,7 @@
 /**
  * The solver against published closed forms and the check values of
- * /work/shared/PHYSICS.md (section numbers and source marks given per test).
- * Unless stated: T = 300.15 K, κ = 0.7, I0 = 1e-15 A, W/L = 1 (PHYSICS.md).
+ * docs/physics.md (section numbers and source marks given per test).
+ * Unless stated: T = 300.15 K, κ = 0.7, I0 = 1e-15 A, W/L = 1 (docs/physics.md, Conventions).
  */
 import { describe, expect, it } from "vitest";
 import { thermalVoltage } from "../../src/lang/point";
@@ -44,7 +44,7 @@ function solve(b: NetworkText, opts: Parameters<typeof solveNetwork>[1] = {}): R
   return run;
 }
 
-describe("thermal voltage (PHYSICS.md §1; BIPM SI Brochure 9th ed. 2019, CODATA 2018 exact k and q [confirmed])", () => {
+describe("thermal voltage (docs/physics.md §1 Thermal voltage; BIPM SI Brochure 9th ed. 2019, CODATA 2018 exact k and q [confirmed])", () => {
   it.each([
     [250, 21.543333e-3],
     [300, 25.852e-3],
@@ -70,7 +70,7 @@ function pair(dv: number, ib: number, temp = T): NetworkText {
     .inject("ib", { from: "tail", to: "gnd", value: ib });
 }
 
-describe("differential pair (PHYSICS.md §5; C. Mead, Analog VLSI and Neural Systems, 1989 [confirmed record; formula derived])", () => {
+describe("differential pair (docs/physics.md §5 Differential pair; C. Mead, Analog VLSI and Neural Systems, 1989 [confirmed record; formula derived])", () => {
   it("ΔV 10 mV, Ib 100 nA: I1 − I2 = Ib·tanh(κΔV/2U_T) = 13.449845 nA, I1/I2 = exp(κΔV/U_T) = 1.3107989, I1 = 56.724922 nA", () => {
     const run = solve(pair(0.01, 100e-9));
     const p = only(run);
@@ -98,7 +98,7 @@ describe("differential pair (PHYSICS.md §5; C. Mead, Analog VLSI and Neural Sys
 });
 
 /**
- * 1-D diffuser chain (PHYSICS.md §6 [derived, checked numerically]).
+ * 1-D diffuser chain (docs/physics.md §6 1-D diffuser chain [derived, checked numerically]).
  * Lateral nfets (gate Vh) between neighbours, an output nfet at every node
  * (gate Vv, drain on a high rail, so saturated: I_k = Gv·u_k with
  * u = exp(−V/U_T)), a sink drawing Iin out of node j.
@@ -129,7 +129,7 @@ function chainClosedForm(N: number, j: number, g: number): number[] {
   return w.map((x) => x / sum);
 }
 
-describe("1-D diffuser chain against its closed form (PHYSICS.md §6 [derived])", () => {
+describe("1-D diffuser chain against its closed form (docs/physics.md §6 1-D diffuser chain [derived])", () => {
   it.each([
     [0.1, "0.066778927", "0.772825108", "3.880443", "0.128142867", "9.738827e-3", "5.759987e-7"],
     [0.25, "1.15238764e-3", "0.966624469", "29.459241", "0.018108846", "1.3290117e-2", "6.318849e-3"],
@@ -159,7 +159,7 @@ describe("1-D diffuser chain against its closed form (PHYSICS.md §6 [derived])"
   });
 });
 
-describe("two-node diffuser (Vittoz & Arreguit, Electronics Letters 29(3), 1993 [memory]; PHYSICS.md §3 pseudo-conductances)", () => {
+describe("two-node diffuser (Vittoz & Arreguit, Electronics Letters 29(3), 1993 [memory]; docs/physics.md §3 Pseudo-voltages)", () => {
   it("the lateral current is (lateral weight / output weight) × the difference of the output currents", () => {
     // Weights G = (W/L)·exp(κVg/U_T): output devices W/L = 3, lateral W/L = 1/2.
     const b = new NetworkText("two")
@@ -195,7 +195,7 @@ function mirror(vout: number, ratio = 4): NetworkText {
     .nfet("m2", { gate: "x", source: "gnd", drain: "vout", w: ratio * 1e-6 });
 }
 
-describe("weak-inversion mirror (PHYSICS.md §8; Mead 1989, current mirror [confirmed record; formula derived])", () => {
+describe("weak-inversion mirror (docs/physics.md §8 Current mirror; Mead 1989, current mirror [confirmed record; formula derived])", () => {
   it("Iin 10 nA, W/L 1:4: Vx = 0.5955619 V, Iout/Iin = 4.0000000 at Vout 1 V, solved by Newton with the reason", () => {
     const run = solve(mirror(1.0));
     const p = only(run);
@@ -228,7 +228,7 @@ describe("weak-inversion mirror (PHYSICS.md §8; Mead 1989, current mirror [conf
   });
 });
 
-describe("EKV all-region model (PHYSICS.md §4; Enz, Krummenacher, Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 1995 [confirmed])", () => {
+describe("EKV all-region model (docs/physics.md §4; Enz, Krummenacher, Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 1995 [confirmed])", () => {
   it("F(0) = ln²2 = 0.480453 and F(20) = 100.0009", () => {
     expect(ekvF(0)).toBeCloseTo(0.480453, 6);
     expect(ekvF(20)).toBeCloseTo(100.0009, 4);
@@ -289,7 +289,7 @@ describe("EKV all-region model (PHYSICS.md §4; Enz, Krummenacher, Vittoz, Analo
   });
 });
 
-describe("temperature (PHYSICS.md §9: U_T ∝ T, a fact; values [derived])", () => {
+describe("temperature (docs/physics.md §9 Temperature: U_T ∝ T, a fact; values [derived])", () => {
   it("the pair ratio at 10 mV is 1.3839 / 1.3108 / 1.2612 at 250 / 300.15 / 350 K (one temp sweep)", () => {
     const run = solve(pair(0.01, 100e-9).sweep("temp", [250, 300.15, 350]));
     expect(run.ok).toBe(true);

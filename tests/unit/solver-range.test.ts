@@ -2,7 +2,7 @@
  * The linear solve where exp(±V/U_T) spans more than double precision holds,
  * and where it cannot resolve the answer: a result is either right or a
  * failure that says why — never ok with missing or wrong numbers.
- * Unless stated: T = 300.15 K, κ = 0.7, I0 = 1e-15 A, W/L = 1 (PHYSICS.md).
+ * Unless stated: T = 300.15 K, κ = 0.7, I0 = 1e-15 A, W/L = 1 (docs/physics.md, Conventions).
  */
 import { describe, expect, it } from "vitest";
 import { NetworkText } from "../helpers/network-text";
@@ -17,7 +17,7 @@ function rel(a: number, b: number): number {
 
 /**
  * Differential pair, both drains on `vdd`, the common source drawn by a sink of ib
- * (PHYSICS.md §5; C. Mead, Analog VLSI and Neural Systems, 1989 [formula derived]):
+ * (docs/physics.md §5 Differential pair; C. Mead, Analog VLSI and Neural Systems, 1989 [formula derived]):
  * with the drains many U_T above the tail, I_k = I0·exp(κV_k/U_T)·exp(−V_tail/U_T), so
  * I1/I2 = exp(κ(V1 − V2)/U_T) and, from I1 + I2 = ib,
  * V_tail = U_T·ln(I0·(exp(κV1/U_T) + exp(κV2/U_T))/ib).

@@ -1,8 +1,8 @@
 /**
- * Runs: the sweep grid (LANGUAGE.md: first sweep outermost), reuse of the
+ * Runs: the sweep grid (docs/language.md, Sweeps: first sweep outermost), reuse of the
  * numeric factorisation when only injects change, Newton continuation along a
- * sweep, run controls, and the `solve --json` document of LANGUAGE.md.
- * Physics values here are checked against closed forms of PHYSICS.md §5/§8.
+ * sweep, run controls, and the `solve --json` document of docs/language.md (The runnel command).
+ * Physics values here are checked against closed forms of docs/physics.md §5 Differential pair and §8 Current mirror.
  */
 import { describe, expect, it } from "vitest";
 import { elaborate } from "../../src/lang/index";
@@ -61,7 +61,7 @@ describe("work reuse across points", () => {
     const run = solveNetwork(chain("iin"));
     expect(run.ok).toBe(true);
     expect(run.points.map((p) => p.solver.reusedFactor)).toEqual([false, true, true, true, true]);
-    // The network is linear in the input current: every output scales with it (PHYSICS.md §3).
+    // The network is linear in the input current: every output scales with it (docs/physics.md §3 Pseudo-voltages).
     const first = run.points[0];
     for (const p of run.points) {
       const scale = p.params.iin / first.params.iin;
@@ -97,7 +97,7 @@ describe("work reuse across points", () => {
       for (let d = 0; d < net.devices.count; d++) most = Math.max(most, Math.abs(alone.currents[d]));
       for (let d = 0; d < net.devices.count; d++) {
         expect(Math.abs(p.currents[d] - alone.currents[d])).toBeLessThan(1e-11 * most);
-        // Saturation (V_DS > 4·U_T, LANGUAGE.md) may differ only at the boundary itself.
+        // Saturation (V_DS > 4·U_T, docs/language.md, Device equations) may differ only at the boundary itself.
         const vds = Math.abs(alone.voltages[net.devices.drain[d]] - alone.voltages[net.devices.source[d]]);
         if (p.saturated[d] !== alone.saturated[d]) expect(Math.abs(vds - 4 * ut)).toBeLessThan(1e-9);
         if (alone.saturated[d]) saturatedSeen++;
@@ -137,7 +137,8 @@ describe("work reuse across points", () => {
     const run = solveNetwork(net);
     expect(run.ok).toBe(true);
     expect(run.points[5].solver.iterations).toBeLessThan(run.points[0].solver.iterations);
-    // Mead 1989 mirror formula (PHYSICS.md §8): Iout/Iin = 4(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}).
+    // Mead 1989 mirror formula (docs/physics.md §8 Current mirror):
+    // Iout/Iin = 4(1 − e^{−Vout/U_T})/(1 − e^{−Vx/U_T}).
     const ut = thermalVoltage(300.15);
     const x = net.nodes.index.get("x") as number;
     for (const p of run.points) {
@@ -169,7 +170,7 @@ describe("run controls", () => {
   });
 });
 
-describe("solve --json document (LANGUAGE.md)", () => {
+describe("solve --json document (docs/language.md, The runnel command)", () => {
   const text = `network pair
 set temp = 300.15K
 param dv = 10m
@@ -184,7 +185,7 @@ probe ratio = current(m1)/current(m2)
 sweep dv values [0, 10m]
 `;
 
-  it("has exactly the documented shape and the pair's check values (PHYSICS.md §5)", () => {
+  it("has exactly the documented shape and the pair's check values (docs/physics.md §5 Differential pair)", () => {
     const el = elaborate(text);
     expect(el.ok).toBe(true);
     const run = solveNetwork(el.network!);

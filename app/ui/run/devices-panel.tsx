@@ -6,7 +6,8 @@ import { useMemo, useState } from "react";
 import { formatEng, formatNumber } from "@/app/lib/format";
 import type { PointData } from "@/app/lib/point-codec";
 import { DataTable } from "@/app/ui/workbench/data-table";
-import { region, WEAK_IC } from "./regions";
+import { WEAK_INVERSION_IC } from "@/src/lang/vocabulary";
+import { region } from "./regions";
 
 export function DevicesPanel({ point }: { point: PointData }) {
   const rows = useMemo(
@@ -22,7 +23,7 @@ export function DevicesPanel({ point }: { point: PointData }) {
   );
   const [onlyFlagged, setOnlyFlagged] = useState(false);
   const shown = useMemo(
-    () => (onlyFlagged ? rows.filter((r) => !r.saturated || r.ic > WEAK_IC) : rows),
+    () => (onlyFlagged ? rows.filter((r) => !r.saturated || r.ic > WEAK_INVERSION_IC) : rows),
     [rows, onlyFlagged],
   );
   const cols = useMemo<ColumnDef<(typeof rows)[number]>[]>(
@@ -57,7 +58,7 @@ export function DevicesPanel({ point }: { point: PointData }) {
         rows={shown}
         columns={cols}
         filterPlaceholder="Filter devices"
-        rowClass={(r) => (!r.saturated || r.ic > WEAK_IC ? "bg-amber-50" : "")}
+        rowClass={(r) => (!r.saturated || r.ic > WEAK_INVERSION_IC ? "bg-amber-50" : "")}
       />
     </div>
   );

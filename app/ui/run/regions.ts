@@ -1,12 +1,10 @@
 /** Operating regions by inversion coefficient. */
 
-/** Inversion coefficient limits of the regions (common practice: weak below 0.1, strong above 10). */
-export const WEAK_IC = 0.1;
-export const STRONG_IC = 10;
+import { STRONG_INVERSION_IC, WEAK_INVERSION_IC } from "@/src/lang/vocabulary";
 
 export function region(ic: number): string {
   if (Number.isNaN(ic)) return "—";
-  if (ic < WEAK_IC) return "weak";
-  if (ic <= STRONG_IC) return "moderate";
+  if (ic < WEAK_INVERSION_IC) return "weak";
+  if (ic <= STRONG_INVERSION_IC) return "moderate";
   return "strong";
 }

@@ -18,8 +18,7 @@ import { ModelPanel } from "./model-panel";
 import { ProgressBar } from "./progress-bar";
 import { Results } from "./results";
 import { RunStateBadge } from "./run-state-badge";
-
-const LIVE = new Set(["queued", "running"]);
+import { isLive } from "@/db/run-states";
 
 export interface RunViewProps {
   runId: string;
@@ -28,17 +27,17 @@ export interface RunViewProps {
 
 export function RunView({ runId, canRun }: RunViewProps) {
   const { data, error, mutate } = useSWR<{ run: RunRow }>(`/api/runs/${runId}`, getJson, {
-    refreshInterval: (d) => (d && !LIVE.has(d.run.state) ? 0 : 1000),
+    refreshInterval: (d) => (d && !isLive(d.run.state) ? 0 : 1000),
   });
   const run = data?.run;
   const hasResults = !!run && run.pointsDone > 0;
   const series = useSWR<{ series: SeriesView }>(hasResults ? `/api/runs/${runId}/results?view=series` : null, getJson, {
-    refreshInterval: run && LIVE.has(run.state) ? 2000 : 0,
+    refreshInterval: run && isLive(run.state) ? 2000 : 0,
   });
   const [cancelError, setCancelError] = useState<string | null>(null);
   if (error) return <p className="text-ember-500">Could not load the run: {(error as Error).message}</p>;
   if (!run) return <p className="text-stone-500">Loading the run…</p>;
-  const live = LIVE.has(run.state);
+  const live = isLive(run.state);
 
   const cancel = async () => {
     setCancelError(null);

@@ -1,6 +1,6 @@
 /** The run's validity: devices outside weak inversion or saturation, solver notes, warnings and failed points. */
 import type { RunRow } from "@/app/lib/runs";
-import { WEAK_IC } from "./regions";
+import { WEAK_INVERSION_IC } from "@/src/lang/vocabulary";
 
 export function Validity({ run }: { run: RunRow }) {
   if (run.devicesNotWeak === null) return null;
@@ -9,7 +9,7 @@ export function Validity({ run }: { run: RunRow }) {
   if (ispec == null) items.push("Inversion coefficients are unknown (set ispec and vt0 to check weak inversion).");
   else if (run.devicesNotWeak > 0)
     items.push(
-      `${run.devicesNotWeak.toLocaleString("en-US")} device(s) leave weak inversion (IC > ${WEAK_IC}) at some point: the exponential model does not hold there.`,
+      `${run.devicesNotWeak.toLocaleString("en-US")} device(s) leave weak inversion (IC > ${WEAK_INVERSION_IC}) at some point: the exponential model does not hold there.`,
     );
   if (run.devicesNotSaturated! > 0)
     items.push(

@@ -16,6 +16,7 @@ import { getJson, sendJson } from "@/app/ui/fetch";
 import type { Diagnostic } from "@/src/lang/network";
 import { HistoryPanel } from "./history-panel";
 import { RunsPanel } from "./runs-panel";
+import { isLive } from "@/db/run-states";
 
 export interface NetworkWorkbenchProps {
   workspaceSlug: string;
@@ -26,8 +27,6 @@ export interface NetworkWorkbenchProps {
   canWrite: boolean;
   canRun: boolean;
 }
-
-const LIVE = new Set(["queued", "running"]);
 
 function starterText(name: string): string {
   return `network ${name.replace(/[^A-Za-z0-9_]/g, "_").replace(/^[^A-Za-z_]/, "n_$&")}\n\nrail vdd = 1.8\nrail gnd = 0\n`;
@@ -152,7 +151,7 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
           : null;
 
   const runs = useSWR<{ runs: RunRow[] }>(selectedId ? `/api/runs?commit=${selectedId}` : null, getJson, {
-    refreshInterval: (d) => (d?.runs.some((r) => LIVE.has(r.state)) ? 1000 : 0),
+    refreshInterval: (d) => (d?.runs.some((r) => isLive(r.state)) ? 1000 : 0),
   });
 
   const run = useCallback(async () => {

@@ -6,8 +6,7 @@ import type { RunRow } from "@/app/lib/runs";
 import { sendJson } from "@/app/ui/fetch";
 import { ProgressBar } from "@/app/ui/run/progress-bar";
 import { RunStateBadge } from "@/app/ui/run/run-state-badge";
-
-const LIVE = new Set(["queued", "running"]);
+import { isLive } from "@/db/run-states";
 
 /** The runs of the selected commit with their state and progress. */
 
@@ -40,7 +39,7 @@ export function RunsPanel({
                 </Link>
                 <RunStateBadge state={r.state} />
               </div>
-              {LIVE.has(r.state) ? (
+              {isLive(r.state) ? (
                 <div className="flex items-center gap-2">
                   <div className="flex-1">
                     <ProgressBar done={r.pointsDone} total={r.pointsTotal} label={`Progress of run ${r.id}`} />

@@ -17,7 +17,7 @@ const Query = z.object({
 /**
  * GET /api/runs/[id]/export?format=csv|json[&table=probes|nodes|devices|rails][&point=K] (workspace.read):
  * the stored results as a download, streamed point by point. JSON has the shape of `runnel solve --json`
- * (LANGUAGE.md), plus a `run` member naming the run and commit.
+ * (docs/language.md, The runnel command), plus a `run` member naming the run and commit.
  */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
