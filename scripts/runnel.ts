@@ -1,6 +1,6 @@
 /**
  * The `runnel` command line: `runnel check FILE [--json]`, `runnel solve FILE [output options]`
- * (docs/language.md, command line; `npm run runnel` runs it from its bundle, scripts/runnel-bundle.mjs).
+ * (docs/language.md, The runnel command; `npm run runnel` runs it from its bundle, scripts/runnel-bundle.mjs).
  * Exit status: 0 ok, 1 the network has errors, 2 usage error (including an unreadable file), 3 (with --strict)
  * the network is valid but an expectation fails.
  * File reading lives here only; src/lang has no I/O.

@@ -6,7 +6,7 @@
  * (never a database constraint error).
  *
  * Physics note: the exponential device law holds exp(κ·V/U_T)-type terms
- * (Vittoz & Arreguit 1993; docs/physics.md), and double precision overflows
+ * (Vittoz & Arreguit 1993; docs/physics.md §3 Pseudo-voltages), and double precision overflows
  * past exp(709) (IEEE 754 binary64, common practice): about 18 V at U_T =
  * 25.9 mV, which is why 100 kV on a rail has no finite operating point.
  */
