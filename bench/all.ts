@@ -4,8 +4,8 @@
  * to end (bench/cli.ts), then the run API under load (bench/api-runs.ts, which
  * needs the production build; it is built first when missing).
  *
- * The CHOLMOD reference is ../shared/anchors/cholmod-ref.c beside the
- * repository (or $RUNNEL_ANCHORS/cholmod-ref.c), built with `cc` against
+ * The CHOLMOD reference is a C program kept outside the repository:
+ * $RUNNEL_ANCHORS/cholmod-ref.c when that variable names its folder, built with `cc` against
  * Debian's libsuitesparse-dev into .build/cholmod-ref; without the source,
  * the headers or a compiler the comparison is skipped with a message. With --json or --only, only bench/run.ts runs,
  * so `npm run --silent bench -- --json [--only NAME]` prints exactly its one
@@ -50,9 +50,10 @@ build({
 
 /** The CHOLMOD reference program, built when its source, Debian's headers and a C compiler are here. */
 function cholmodReference(): { bin?: string; skip?: string } {
-  const src = path.resolve(process.env.RUNNEL_ANCHORS ?? "../shared/anchors", "cholmod-ref.c");
-  if (!fs.existsSync(src))
-    return { skip: `no reference source at ${src} (../shared/anchors beside the repository, or $RUNNEL_ANCHORS)` };
+  const dir = process.env.RUNNEL_ANCHORS;
+  if (!dir) return { skip: "no reference source (set RUNNEL_ANCHORS to the folder holding cholmod-ref.c)" };
+  const src = path.resolve(dir, "cholmod-ref.c");
+  if (!fs.existsSync(src)) return { skip: `no reference source at ${src} ($RUNNEL_ANCHORS/cholmod-ref.c)` };
   if (!fs.existsSync("/usr/include/suitesparse/cholmod.h"))
     return { skip: "CHOLMOD's headers are missing (apt-get install libsuitesparse-dev)" };
   const bin = path.resolve(".build/cholmod-ref");

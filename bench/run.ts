@@ -306,7 +306,7 @@ function coldRun(name: string): Cold | undefined {
 
 /**
  * Runnel's analyse + factor + solve against the CHOLMOD reference program
- * (built by bench/all.ts from ../shared/anchors/cholmod-ref.c; `bin`) on the
+ * (built by bench/all.ts from $RUNNEL_ANCHORS/cholmod-ref.c; `bin`) on the
  * same matrices, back to back in this run: wall-clock medians of `reps`
  * solves each (both single-threaded), and the peak RSS of a CHOLMOD process
  * factoring grid 512 beside Runnel's cold process (measured with

@@ -8,7 +8,7 @@ import type { Role } from "@/db/schema";
 export const DEMO_PASSWORD = "larkspur-demo";
 
 /**
- * The invented demo scenario of PRODUCT.md: a fictitious team, "Larkspur
+ * The invented demo scenario (README.md, Quick start): a fictitious team, "Larkspur
  * Microsystems", designing the LM-64 edge row. Every name and number here is
  * made up for the demo.
  */

@@ -21,7 +21,7 @@ export const ACTIONS = [
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
-/** What each role may do (PRODUCT.md's table). */
+/** What each role may do (README.md, Accounts and access, says it in words; the access matrix test checks it). */
 export const ROLE_ACTIONS: Record<Role, readonly Action[]> = {
   owner: [
     "workspace.read",

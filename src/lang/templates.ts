@@ -368,4 +368,3 @@ class PinValues {
     return t;
   }
 }
-

@@ -2,7 +2,7 @@
  * Sweep-aware comparison of two commits' runs (app/lib/review/compare-data.ts)
  * on the divider fixture, whose values are the weak-inversion closed form
  * (E. Vittoz, "Analog VLSI signal processing: why, where and how?", J. VLSI
- * Signal Processing 8, 1994 [confirmed]; PHYSICS.md §3): m1 and m2 share the
+ * Signal Processing 8, 1994 [confirmed]; docs/physics.md §3 Pseudo-voltages): m1 and m2 share the
  * pulled current iin in proportion to their widths, so widening m2 from 1 to
  * 2 µm moves i(m1) from iin/2 to iin/3 and i(m2) from iin/2 to 2·iin/3 (each
  * |Δ| = iin/6, largest at iin = 100 nA), the ratio from 1 to 1/2 at every

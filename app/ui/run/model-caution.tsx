@@ -1,4 +1,4 @@
-/** The model caution every result page shows (PRODUCT.md's safety note). */
+/** The model caution every result page shows: model estimates; foundry models, design rules and measurement take precedence. */
 export function ModelCaution() {
   return (
     <p role="note" className="rounded border border-amber-300 bg-amber-50 px-3 py-2 text-sm text-amber-900">
