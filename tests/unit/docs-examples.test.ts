@@ -10,6 +10,8 @@ import { solveNetwork, toSolveJson } from "../../src/solver/index";
  *   (none)                       checks clean (no diagnostic at all) and every point solves;
  *   expect NAME=V[,V…] … [rel=R] also: probe NAME at point k equals the k-th value, within relative error R
  *                                (default 1e-6) — the check values of docs/physics.md;
+ *   holds                        also: every `expect` statement holds at every point;
+ *   breaks NAME[,NAME…]          also: each named expectation fails at some point, every other one holds at every point;
  *   fails                        has errors: the ```diagnostics block after it is exactly what
  *                                `runnel check net.runnel` prints;
  *   fragment                     a piece of a network shown for its syntax: it parses without a syntax error.
@@ -76,7 +78,7 @@ function matches(shown: unknown, actual: unknown, path: string): void {
 describe("docs/language.md examples", () => {
   it("has examples of every kind", () => {
     const kinds = new Set(examples.map((b) => b.info[1] ?? "plain"));
-    for (const k of ["plain", "expect", "fails", "fragment"]) expect(kinds).toContain(k);
+    for (const k of ["expect", "holds", "breaks", "fails", "fragment"]) expect(kinds).toContain(k);
   });
 
   for (const b of examples) {
@@ -97,6 +99,17 @@ describe("docs/language.md examples", () => {
         return;
       }
       const { net, run } = solved(b.text);
+      if (kind === "holds" || kind === "breaks") {
+        const broken = new Set(kind === "breaks" ? b.info[2].split(",") : []);
+        expect(net.expectations.length).toBeGreaterThan(0);
+        net.expectations.forEach((x, i) => {
+          const failing = run.points.filter((p) => p.expectations!.passed[i] !== 1).length;
+          if (broken.has(x.name)) expect(failing, `${x.name} fails somewhere`).toBeGreaterThan(0);
+          else expect(failing, `${x.name} holds everywhere`).toBe(0);
+        });
+        for (const name of broken) expect(net.expectations.map((x) => x.name)).toContain(name);
+        return;
+      }
       if (kind !== "expect") return;
       const rel = Number(b.info.find((w) => w.startsWith("rel="))?.slice(4) ?? 1e-6);
       for (const w of b.info.slice(2).filter((x) => !x.startsWith("rel="))) {
