@@ -15,72 +15,18 @@
  * Needs `npm run build` first. Options: --points N (default 1000), --clients N
  * (default 20), --port N (default 3311), --json.
  */
-import { spawn } from "node:child_process";
-import fs from "node:fs";
 import os from "node:os";
-import path from "node:path";
 import { gridText } from "./workloads";
+import { numberOption, startBenchServer } from "./api-server";
 
 const argv = process.argv.slice(2);
-const opt = (name: string, dflt: number) => (argv.includes(name) ? Number(argv[argv.indexOf(name) + 1]) : dflt);
-const POINTS = opt("--points", 1000);
-const CLIENTS = opt("--clients", 20);
-const PORT = opt("--port", 3311);
+const POINTS = numberOption(argv, "--points", 1000);
+const CLIENTS = numberOption(argv, "--clients", 20);
+const PORT = numberOption(argv, "--port", 3311);
 const JSON_OUT = argv.includes("--json");
 const N = 64;
 
-for (const need of [".next/BUILD_ID", ".build/run-worker.mjs"]) {
-  if (!fs.existsSync(need)) {
-    console.error(`bench:api: ${need} is missing: run \`npm run build\` first`);
-    process.exit(1);
-  }
-}
-
-const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-bench-api-"));
-process.env.RUNNEL_DB = path.join(dir, "runnel.db");
-const { openDatabase, closeDb } = await import("../db/index");
-const { seedDemo } = await import("../scripts/seed/index");
-const { createApiToken } = await import("../app/lib/tokens");
-const seeded = openDatabase(process.env.RUNNEL_DB);
-seedDemo(seeded);
-seeded.$client.close();
-const { token } = createApiToken("u_designer1", "bench");
-closeDb();
-
-const base = `http://127.0.0.1:${PORT}`;
-const server = spawn(
-  process.execPath,
-  ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)],
-  {
-    env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
-    stdio: ["ignore", "ignore", "inherit"],
-  },
-);
-const stop = () => {
-  server.kill("SIGTERM");
-  fs.rmSync(dir, { recursive: true, force: true });
-};
-process.on("exit", stop);
-
-const auth = { authorization: `Bearer ${token}`, "content-type": "application/json" };
-async function api<T>(method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  const res = await fetch(base + url, {
-    method,
-    headers: auth,
-    body: body === undefined ? undefined : JSON.stringify(body),
-  });
-  return { status: res.status, json: (await res.json()) as T };
-}
-
-for (let i = 0; ; i++) {
-  try {
-    if ((await fetch(`${base}/api/health`)).ok) break;
-  } catch {
-    // not listening yet
-  }
-  if (i > 200) throw new Error("the server did not start");
-  await new Promise((f) => setTimeout(f, 100));
-}
+const { base, auth, api } = await startBenchServer("bench:api", PORT);
 
 /** The 64 × 64 diffuser grid of bench/workloads.ts with two probes and a sweep of the lateral gate. */
 function sweepText(points: number): string {

@@ -18,88 +18,17 @@
  *
  * Needs `npm run build` first. Options: --port N (default 3312), --json, --only NAME.
  */
-import { spawn } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
-import path from "node:path";
 import { chainText } from "./workloads";
+import { machineLine, pause, startBenchServer } from "./api-server";
 
 const argv = process.argv.slice(2);
 const PORT = argv.includes("--port") ? Number(argv[argv.indexOf("--port") + 1]) : 3312;
 const JSON_OUT = argv.includes("--json");
 const ONLY = argv.includes("--only") ? argv[argv.indexOf("--only") + 1] : null;
 
-for (const need of [".next/BUILD_ID", ".build/run-worker.mjs", ".build/interactive-worker.mjs"]) {
-  if (!fs.existsSync(need)) {
-    console.error(`bench:api stall: ${need} is missing: run \`npm run build\` first`);
-    process.exit(1);
-  }
-}
-
-const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-bench-stall-"));
-process.env.RUNNEL_DB = path.join(dir, "runnel.db");
-const { openDatabase, closeDb } = await import("../db/index");
-const { seedDemo } = await import("../scripts/seed/index");
-const { createApiToken } = await import("../app/lib/tokens");
-const { secretHash, newSecret } = await import("../app/lib/secrets");
-const { sessions } = await import("../db/schema");
-const seeded = openDatabase(process.env.RUNNEL_DB);
-seedDemo(seeded);
-const sessionId = newSecret();
-seeded
-  .insert(sessions)
-  .values({ id: secretHash(sessionId), userId: "u_viewer", expiresAt: Math.floor(Date.now() / 1000) + 86400 })
-  .run();
-seeded.$client.close();
-const { token } = createApiToken("u_designer1", "bench");
-closeDb();
-
-const base = `http://127.0.0.1:${PORT}`;
-const server = spawn(process.execPath, ["--import", "tsx", "scripts/lib/next-server.ts", "127.0.0.1", String(PORT)], {
-  env: { ...process.env, NODE_ENV: "production", NEXT_TELEMETRY_DISABLED: "1", RUNNEL_LISTEN_HOST: "127.0.0.1" },
-  stdio: ["ignore", "ignore", "inherit"],
-});
-const stop = () => {
-  server.kill("SIGTERM");
-  fs.rmSync(dir, { recursive: true, force: true });
-};
-process.on("exit", stop);
-
-/** The server's resident memory in MB (its process: Next and its worker threads). */
-function rssMb(): number {
-  const status = fs.readFileSync(`/proc/${server.pid}/status`, "utf8");
-  return Number(/VmRSS:\s+(\d+)/.exec(status)![1]) / 1024;
-}
-
-const auth = { authorization: `Bearer ${token}`, "content-type": "application/json" };
-const pause = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-for (let i = 0; ; i++) {
-  try {
-    if ((await fetch(`${base}/api/health`)).ok) break;
-  } catch {
-    // not listening yet
-  }
-  if (i > 300) throw new Error("the server did not start");
-  await pause(100);
-}
-
-async function api<T>(method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  const res = await fetch(base + url, {
-    method,
-    headers: auth,
-    body: body === undefined ? undefined : JSON.stringify(body),
-  });
-  return { status: res.status, json: (await res.json()) as T };
-}
-
-async function waitRun(id: string): Promise<string> {
-  for (;;) {
-    const r = await api<{ run: { state: string } }>("GET", `/api/runs/${id}`);
-    if (!["queued", "running"].includes(r.json.run.state)) return r.json.run.state;
-    await pause(200);
-  }
-}
+const server = await startBenchServer("bench:api stall", PORT, { viewerSession: true });
+const { base, auth, api, waitRun, rssMb, cookie } = server;
 
 // A small run whose page the probe reads.
 const small = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-row/networks", {
@@ -110,10 +39,10 @@ const small = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-ro
 const smallRun = await api<{ run: { id: string } }>("POST", "/api/runs", { commit: small.json.commit.id });
 await waitRun(smallRun.json.run.id);
 const pageUrl = `/runs/${smallRun.json.run.id}`;
-const cookie = `runnel_session=${sessionId}`;
 
+const machineAtStart = machineLine();
 const failures: string[] = [];
-server.on("exit", (code, signal) => console.error(`stall: the server exited (${code ?? signal})`));
+server.process.on("exit", (code, signal) => console.error(`stall: the server exited (${code ?? signal})`));
 
 /** Probes every 50 ms until `stop()` is true; latencies in ms (a failed probe counts with its time, and is listed). */
 async function probe(done: () => boolean): Promise<number[]> {
@@ -152,6 +81,9 @@ interface Row {
   rssBefore: number;
   rssAfter: number;
   detail: string;
+  /** When it ran, in µs of the monotonic clock (process.hrtime, as the server's CPU profiles count). */
+  fromUs: number;
+  toUs: number;
 }
 const rows: Row[] = [];
 
@@ -159,6 +91,7 @@ const rows: Row[] = [];
 async function measure(workload: string, heavy: () => Promise<{ status: number | string; detail?: string }>) {
   if (ONLY && !workload.includes(ONLY)) return;
   const rssBefore = rssMb();
+  const fromUs = Number(process.hrtime.bigint() / 1000n);
   let finished = false;
   const probing = probe(() => finished);
   const t0 = performance.now();
@@ -181,6 +114,8 @@ async function measure(workload: string, heavy: () => Promise<{ status: number |
     rssBefore,
     rssAfter: rssMb(),
     detail: r.detail ?? "",
+    fromUs,
+    toUs: Number(process.hrtime.bigint() / 1000n),
   });
   if (!JSON_OUT)
     console.error(`stall: ${workload}: ${seconds.toFixed(1)} s, probes p95 ${quantile(lat, 0.95).toFixed(1)} ms`);
@@ -197,8 +132,15 @@ async function drain(res: Response): Promise<number> {
   }
 }
 
+// Each probed route answers a few times first: a route's first request loads its code, once per server.
+for (let k = 0; k < 6; k++) await fetch(base + (k % 2 === 0 ? "/api/health" : pageUrl), { headers: { cookie } });
 await pause(2000);
 const idle = rssMb();
+// The floor: the same probes against the idle server (what the machine's load alone costs them).
+await measure("nothing (idle server, 10 s)", async () => {
+  await pause(10_000);
+  return { status: "-" };
+});
 let chainCommit = "";
 let chainRun = "";
 
@@ -259,16 +201,26 @@ await pause(55_000);
 const after70 = rssMb();
 
 if (JSON_OUT) {
-  console.log(JSON.stringify({ idleRssMb: idle, after15RssMb: after15, after70RssMb: after70, rows }, null, 2));
+  console.log(
+    JSON.stringify(
+      {
+        machineAtStart,
+        machineAtEnd: machineLine(),
+        idleRssMb: idle,
+        after15RssMb: after15,
+        after70RssMb: after70,
+        rows,
+        failures,
+      },
+      null,
+      2,
+    ),
+  );
 } else {
   const f = (x: number, d = 1) => x.toFixed(d);
   console.log(`\nStalls: probes (/api/health and a run page, every 50 ms) while each heavy request runs`);
-  console.log(
-    `Machine: ${os.cpus()[0]?.model ?? "?"}, ${os.availableParallelism()} cores, node ${process.version}; load average ${os
-      .loadavg()
-      .map((x) => x.toFixed(1))
-      .join(" ")}`,
-  );
+  console.log(`Machine at the start: ${machineAtStart}`);
+  console.log(`Machine at the end: ${machineLine()}`);
   console.log(
     "| heavy request | answer | its time (s) | probes | p50 (ms) | p95 (ms) | max (ms) | RSS before → after (MB) |",
   );
@@ -280,5 +232,6 @@ if (JSON_OUT) {
   console.log(
     `\nRSS: idle ${f(idle, 0)} MB; 15 s after the last request ${f(after15, 0)} MB; 70 s after ${f(after70, 0)} MB (goal: within 20 % of idle, ${f(idle * 1.2, 0)} MB)`,
   );
+  if (failures.length > 0) console.log(`\n${failures.length} probes failed: ${failures.slice(0, 10).join("; ")}`);
 }
 process.exit(0);

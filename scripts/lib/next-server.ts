@@ -1,7 +1,11 @@
 /**
  * Runnel's HTTP server: Next's request handler behind a thin node:http layer
  * that does what Next cannot be told to do. `startNext` (./server.ts) runs it
- * as `node --import tsx scripts/lib/next-server.ts HOST PORT`.
+ * as `node --import tsx scripts/lib/next-server.ts HOST PORT [--dev]`: the
+ * production build (`npm start`, the demo), or with `--dev` Next's development
+ * server (`npm run dev`) behind the same layer, so the headers below are the
+ * same in both (the development policy adds only what Next's dev client needs:
+ * `eval` for its error overlay and a WebSocket for hot reload).
  * - Every request carries the connection's peer address in
  *   `x-runnel-socket-address` (a client's own header of that name is dropped),
  *   so rate limits never depend on a header the client wrote
@@ -22,7 +26,9 @@ import {
   SOCKET_ADDRESS_HEADER,
 } from "../../app/lib/request-edge";
 
-const [host = "127.0.0.1", portText = "3000"] = process.argv.slice(2);
+const args = process.argv.slice(2);
+const dev = args.includes("--dev");
+const [host = "127.0.0.1", portText = "3000"] = args.filter((a) => a !== "--dev");
 const port = Number(portText);
 
 /** Static build output, images and API answers are not pages. */
@@ -39,7 +45,7 @@ function headersOf(req: http.IncomingMessage): Headers {
   return h;
 }
 
-const app = next({ dev: false, hostname: host, port, dir: process.cwd() });
+const app = next({ dev, hostname: host, port, dir: process.cwd() });
 await app.prepare();
 const handle = app.getRequestHandler();
 
@@ -55,7 +61,7 @@ const server = http.createServer((req, res) => {
       req.resume();
       return;
     }
-    const policy = contentSecurityPolicy(randomBytes(16).toString("base64"));
+    const policy = contentSecurityPolicy(randomBytes(16).toString("base64"), dev);
     req.headers["content-security-policy"] = policy;
     res.setHeader("Content-Security-Policy", policy);
   } else if (pathname.startsWith("/api/")) {
@@ -63,7 +69,7 @@ const server = http.createServer((req, res) => {
   }
   void handle(req, res);
 });
-server.listen(port, host, () => console.log(`runnel: serving http://${host}:${port}/`));
+server.listen(port, host, () => console.log(`runnel: serving http://${host}:${port}/${dev ? " (development)" : ""}`));
 const stop = () => {
   server.close(() => process.exit(0));
   server.closeIdleConnections();

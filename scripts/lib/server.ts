@@ -7,6 +7,8 @@ export interface ServeOptions {
   host: string;
   port: number;
   env?: Record<string, string>;
+  /** Next's development server (compiles on request, hot reload) instead of the production build. */
+  dev?: boolean;
 }
 
 /** Parses `--port N` / `--host H` (defaults: $PORT or 3000, 127.0.0.1). */
@@ -29,17 +31,25 @@ export function serveOptions(argv: string[]): ServeOptions {
  * address and the pages' Content-Security-Policy) in a child process that ends with this one.
  */
 export async function startNext(options: ServeOptions): Promise<ChildProcess> {
-  if (!fs.existsSync(".next/BUILD_ID")) fail("no build found in .next/: run `npm run build` first");
+  if (!options.dev && !fs.existsSync(".next/BUILD_ID")) fail("no build found in .next/: run `npm run build` first");
   const file = databasePath();
   openDatabase(file).$client.close();
   await assertPortFree(options.host, options.port).catch((e: Error) => fail(e.message));
   const child = spawn(
     process.execPath,
-    ["--import", "tsx", "scripts/lib/next-server.ts", options.host, String(options.port)],
+    [
+      "--import",
+      "tsx",
+      "scripts/lib/next-server.ts",
+      options.host,
+      String(options.port),
+      ...(options.dev ? ["--dev"] : []),
+    ],
     {
       stdio: "inherit",
       env: {
         ...process.env,
+        ...(options.dev ? { NODE_ENV: "development" } : {}),
         ...options.env,
         RUNNEL_DB: file,
         RUNNEL_LISTEN_HOST: options.host,
