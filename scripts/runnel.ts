@@ -29,7 +29,7 @@ import {
 } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
 import { type ExpectationSummary, pointCount, type PointResult, solveNetwork } from "../src/solver/index";
-import { CsvRows } from "../src/solver/csv";
+import { CSV_TABLES, CsvRows, type CsvTable } from "../src/solver/csv";
 import {
   ByteWriter,
   EVERYTHING,
@@ -134,9 +134,6 @@ interface Output {
   table: CsvTable;
   select: Selection;
 }
-
-const CSV_TABLES = ["probes", "nodes", "devices", "rails"] as const;
-type CsvTable = (typeof CSV_TABLES)[number];
 
 /** Values a point prints with this selection: its nodes, rails, three per device, probes, params and the solver's. */
 function printedValues(net: Network, select: Selection): number {

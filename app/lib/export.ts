@@ -11,42 +11,10 @@ import type { CommitDiagnostic } from "@/db/schema";
 import type { CommitRow } from "./networks";
 import { db, type Q } from "@/db";
 import type { JsonPoint } from "@/src/solver/index";
+import { csvHeader, csvLine, type CsvTable } from "@/src/solver/csv";
 import type { StoredPoint } from "./point-codec";
 import { eachPoint, readPoint, type RunLayout } from "./results";
 import type { RunRow } from "./runs";
-
-export type CsvTable = "probes" | "nodes" | "devices" | "rails";
-
-/** One CSV field: quoted when it holds a comma, quote or line break. */
-export function csvField(v: string | number | null): string {
-  if (v === null) return "";
-  if (typeof v === "number") return Number.isFinite(v) ? String(v) : "";
-  return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
-}
-
-const line = (fields: (string | number | null)[]): string => fields.map(csvField).join(",") + "\r\n";
-
-export function csvHeader(layout: RunLayout, table: CsvTable): string {
-  switch (table) {
-    case "probes":
-      return line([
-        "point",
-        "sample",
-        ...layout.params,
-        ...layout.probes,
-        "method",
-        "iterations",
-        "residual_A",
-        "error",
-      ]);
-    case "nodes":
-      return line(["point", "sample", "node", "rail", "voltage_V"]);
-    case "devices":
-      return line(["point", "sample", "device", "type", "current_A", "ic", "saturated"]);
-    case "rails":
-      return line(["point", "sample", "rail", "current_A"]);
-  }
-}
 
 /** How many names (nodes, devices, rails) one chunk of an export holds: a chunk is a few hundred kB at most. */
 export const NAMES_PER_CHUNK = 2048;
@@ -62,16 +30,16 @@ export function* csvRows(layout: RunLayout, table: CsvTable, p: StoredPoint): Ge
   };
   switch (table) {
     case "probes":
-      yield line([p.point, p.sample, ...p.params, ...p.probes, p.method, p.iterations, p.residual, p.error]);
+      yield csvLine([p.point, p.sample, ...p.params, ...p.probes, p.method, p.iterations, p.residual, p.error]);
       return;
     case "nodes":
       yield* sliced(layout.nodes.length, (k) =>
-        line([p.point, p.sample, layout.nodes[k], layout.nodeIsRail[k] ? 1 : 0, p.nodes[k]]),
+        csvLine([p.point, p.sample, layout.nodes[k], layout.nodeIsRail[k] ? 1 : 0, p.nodes[k]]),
       );
       return;
     case "devices":
       yield* sliced(layout.devices.length, (k) =>
-        line([
+        csvLine([
           p.point,
           p.sample,
           layout.devices[k],
@@ -83,7 +51,7 @@ export function* csvRows(layout: RunLayout, table: CsvTable, p: StoredPoint): Ge
       );
       return;
     case "rails":
-      yield* sliced(layout.rails.length, (k) => line([p.point, p.sample, layout.rails[k], p.rails[k]]));
+      yield* sliced(layout.rails.length, (k) => csvLine([p.point, p.sample, layout.rails[k], p.rails[k]]));
       return;
   }
 }
@@ -138,7 +106,7 @@ export function csvStream(
   function* gen(): Generator<string> {
     const note = partialNote(run);
     if (note) yield `# ${note}\r\n`;
-    yield csvHeader(layout, table);
+    yield csvHeader(table, layout.params, layout.probes);
     if (point !== undefined) {
       const p = readPoint(run.id, point, d);
       if (p) yield* csvRows(layout, table, p);

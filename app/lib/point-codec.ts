@@ -124,11 +124,14 @@ export function decodePoint(buf: ArrayBuffer): DecodedPoint {
 /** Names the decoded arrays are in the order of (the run's layout; see app/lib/results.ts RunLayout). */
 export interface PointNames {
   nodes: string[];
+  /** True where the node is a rail (fixed voltage). */
   nodeIsRail: boolean[];
   devices: string[];
+  /** "n" or "p" per device. */
   deviceTypes: string;
   rails: string[];
   probes: string[];
+  /** Every param (the point's values, swept or derived), then "temp". */
   params: string[];
 }
 

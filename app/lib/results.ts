@@ -19,24 +19,15 @@ import {
   POINT_SECTIONS,
   type PointCounts,
   type PointHeader,
+  type PointNames,
   sectionsFrom,
   type StoredPoint,
   valuesOf,
 } from "./point-codec";
 
 /** Names of everything a point stores, in the order of the blob columns. */
-export interface RunLayout {
+export interface RunLayout extends PointNames {
   network: string | null;
-  nodes: string[];
-  /** True where the node is a rail (fixed voltage). */
-  nodeIsRail: boolean[];
-  devices: string[];
-  /** "n" or "p" per device. */
-  deviceTypes: string;
-  rails: string[];
-  probes: string[];
-  /** Every param (the point's values, swept or derived), then "temp". */
-  params: string[];
   sweeps: { param: string; values: number[]; log: boolean }[];
   mismatch: { runs: number; seed: number; avt: number } | null;
 }

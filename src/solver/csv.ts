@@ -11,7 +11,9 @@ import { type Network, NFET } from "../lang/network";
 import type { Selection } from "./json-format";
 import type { PointResult } from "./results";
 
-export type CsvTable = "probes" | "nodes" | "devices" | "rails";
+/** The tables a run's points can be printed as (the workbench's export and `runnel solve --csv`). */
+export const CSV_TABLES = ["probes", "nodes", "devices", "rails"] as const;
+export type CsvTable = (typeof CSV_TABLES)[number];
 
 /** One CSV field: quoted when it holds a comma, quote or line break. */
 export function csvField(v: string | number | null): string {
@@ -20,7 +22,25 @@ export function csvField(v: string | number | null): string {
   return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
 }
 
-const line = (fields: (string | number | null)[]): string => fields.map(csvField).join(",") + "\r\n";
+/** One CSV row with its line break. */
+export const csvLine = (fields: (string | number | null)[]): string => fields.map(csvField).join(",") + "\r\n";
+
+/**
+ * A table's header row: `params` are every param then temp, as the probes table prints them (a run's layout
+ * holds them in that order).
+ */
+export function csvHeader(table: CsvTable, params: readonly string[], probes: readonly string[]): string {
+  switch (table) {
+    case "probes":
+      return csvLine(["point", "sample", ...params, ...probes, "method", "iterations", "residual_A", "error"]);
+    case "nodes":
+      return csvLine(["point", "sample", "node", "rail", "voltage_V"]);
+    case "devices":
+      return csvLine(["point", "sample", "device", "type", "current_A", "ic", "saturated"]);
+    case "rails":
+      return csvLine(["point", "sample", "rail", "current_A"]);
+  }
+}
 
 export class CsvRows {
   private readonly at: Int32Array;
@@ -57,26 +77,11 @@ export class CsvRows {
 
   header(): string {
     const net = this.net;
-    switch (this.table) {
-      case "probes":
-        return line([
-          "point",
-          "sample",
-          ...net.params.map((p) => p.name),
-          "temp",
-          ...net.probes.map((p) => p.name),
-          "method",
-          "iterations",
-          "residual_A",
-          "error",
-        ]);
-      case "nodes":
-        return line(["point", "sample", "node", "rail", "voltage_V"]);
-      case "devices":
-        return line(["point", "sample", "device", "type", "current_A", "ic", "saturated"]);
-      case "rails":
-        return line(["point", "sample", "rail", "current_A"]);
-    }
+    return csvHeader(
+      this.table,
+      [...net.params.map((p) => p.name), "temp"],
+      net.probes.map((p) => p.name),
+    );
   }
 
   /** The point's rows, handed to `sink` (one piece per table row for probes, per point otherwise). */
@@ -92,7 +97,7 @@ export class CsvRows {
         const probes = net.probes.map((q) => p.probes[q.name] ?? NaN);
         const { method, iterations, residual } = p.solver;
         sink(
-          line([
+          csvLine([
             p.index,
             p.sample ?? 0,
             ...params,

@@ -17,6 +17,7 @@ import { uniformFloat64 } from "pure-rand/distribution/uniformFloat64";
 import { xoroshiro128plus } from "pure-rand/generator/xoroshiro128plus";
 import type { JumpableRandomGenerator } from "pure-rand/types/JumpableRandomGenerator";
 import type { Mismatch, Network } from "../lang/network";
+import type { Distribution } from "./results";
 
 export class MismatchSampler {
   private streams: JumpableRandomGenerator[] = [];
@@ -67,18 +68,7 @@ export class MismatchSampler {
 }
 
 /** Mean, sample standard deviation, extremes and percentiles of `values` (NaN entries ignored). */
-export function summarize(values: ArrayLike<number>): {
-  n: number;
-  mean: number;
-  std: number;
-  min: number;
-  max: number;
-  p1: number;
-  p5: number;
-  p50: number;
-  p95: number;
-  p99: number;
-} {
+export function summarize(values: ArrayLike<number>): { n: number } & Distribution {
   const v = Float64Array.from(
     Array.prototype.filter.call(values, (x: number) => Number.isFinite(x)) as number[],
   ).sort();

@@ -84,12 +84,16 @@ export interface PointResult {
   warnings: SolverWarning[];
 }
 
-export interface ProbeSummary {
+export interface ProbeSummary extends Distribution {
   probe: string;
   /** Index of the grid point (outer sweep slowest), and its params. */
   gridPoint: number;
   params: Record<string, number>;
   samples: number;
+}
+
+/** Mean, sample standard deviation, extremes and percentiles of a set of values. */
+export interface Distribution {
   mean: number;
   std: number;
   min: number;

@@ -3,6 +3,7 @@ import { commitAccess, requestActor, runAccess } from "@/app/lib/access";
 import { csvStream, jsonStream } from "@/app/lib/export";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
 import { runLayout } from "@/app/lib/results";
+import { CSV_TABLES } from "@/src/solver/csv";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -10,7 +11,7 @@ type Ctx = { params: Promise<{ id: string }> };
 const Query = z.object({
   format: z.enum(["csv", "json"]).default("csv"),
   /** CSV only: which table (probes: one row per point; nodes, devices, rails: one row per point and name). */
-  table: z.enum(["probes", "nodes", "devices", "rails"]).default("probes"),
+  table: z.enum(CSV_TABLES).default("probes"),
   point: z.coerce.number().int().min(0).optional(),
 });
 
