@@ -12,8 +12,8 @@
  * - Run states: queued → running → done | failed | canceled | interrupted
  *   (interrupted: the server stopped while the run was running).
  * - `run_points` holds one row per solved point, typed-array columns as
- *   little-endian blobs whose element order is the run's `layout` (node,
- *   device, rail, probe and param names, fixed when the run starts).
+ *   little-endian blobs whose element order is the run's layout (`run_layouts`:
+ *   node, device, rail, probe and param names, fixed when the run starts).
  */
 import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
 import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
@@ -117,9 +117,7 @@ export const runs = sqliteTable(
     timeLimitMs: integer("time_limit_ms").notNull(),
     /** Set by the supervisor to ask the worker to stop; the worker then ends the run canceled. */
     cancelRequested: integer("cancel_requested", { mode: "boolean" }).notNull().default(false),
-    /** Names of nodes, devices, rails, probes and params (JSON RunLayout), written when the run is queued (or by its first chunk). */
-    layout: text("layout"),
-    /** Model settings of the commit (JSON), written with the layout. */
+    /** Model settings of the commit (JSON), written with the layout (run_layouts). */
     model: text("model", { mode: "json" }).$type<Record<string, unknown>>(),
     /** Counts over all points, written when the run ends. */
     newtonPoints: integer("newton_points"),
@@ -143,6 +141,22 @@ export const runs = sqliteTable(
     index("runs_state_idx").on(t.state),
   ],
 );
+
+/**
+ * A run's layout (app/lib/run-layouts.ts), written when the run is queued or by its first chunk, never changed. It
+ * has a table of its own: a large network's names are tens of megabytes, and in the runs row every update of a run
+ * (points done, state) would rewrite them and every read of a column stored after them would walk their overflow
+ * pages (a status poll of a 2,000,000-device run read 40 MB).
+ */
+export const runLayouts = sqliteTable("run_layouts", {
+  runId: text("run_id")
+    .primaryKey()
+    .references(() => runs.id, { onDelete: "cascade" }),
+  /** JSON: the layout without its four name lists, plus `nodeCount` and `deviceCount` (small: what most reads need). */
+  head: text("head").notNull(),
+  /** JSON: `{ nodes, nodeIsRail, devices, deviceTypes }` (read only where names are shown or exported). */
+  names: text("names").notNull(),
+});
 
 export const runPoints = sqliteTable(
   "run_points",

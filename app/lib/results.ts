@@ -11,7 +11,7 @@
 import { and, asc, eq, gte, lt } from "drizzle-orm";
 import type { Network } from "@/src/lang/index";
 import { NFET } from "@/src/lang/index";
-import { runPoints, runs } from "@/db/schema";
+import { runPoints } from "@/db/schema";
 import { db, type Q } from "@/db";
 import {
   encodePoint,
@@ -24,6 +24,14 @@ import {
   type StoredPoint,
   valuesOf,
 } from "./point-codec";
+import {
+  type FullLayout,
+  joinedLayoutJson,
+  type LayoutHead,
+  layoutHead,
+  layoutTexts,
+  parseStoredLayout,
+} from "./run-layouts";
 
 /** Names of everything a point stores, in the order of the blob columns. */
 export interface RunLayout extends PointNames {
@@ -55,14 +63,14 @@ export function layoutOf(net: Network): RunLayout {
   };
 }
 
-/** Element counts of the sections a point of this layout stores. */
-export function countsOf(layout: Pick<RunLayout, "nodes" | "rails" | "probes" | "params" | "devices">): PointCounts {
+/** Element counts of the sections a point of this layout (or layout head) stores. */
+export function countsOf(layout: LayoutHead | RunLayout): PointCounts {
   return {
-    nodes: layout.nodes.length,
+    nodes: "nodeCount" in layout ? layout.nodeCount : layout.nodes.length,
     rails: layout.rails.length,
     probes: layout.probes.length,
     params: layout.params.length,
-    devices: layout.devices.length,
+    devices: "deviceCount" in layout ? layout.deviceCount : layout.devices.length,
   };
 }
 
@@ -236,19 +244,79 @@ export function jsonNumbers(a: ArrayLike<number>): (number | null)[] {
   return out;
 }
 
-const layoutCache = new Map<string, RunLayout>();
-const LAYOUT_CACHE_SIZE = 32;
+/**
+ * Parsed layouts and layout texts kept per process, weighed by the length of their names text: at most
+ * LAYOUT_CACHE_BYTES in all, the least recently used going first. A layout larger than that (a network of
+ * millions of devices: its parsed names are hundreds of megabytes) is kept alone and only until
+ * LARGE_LAYOUT_KEEP_MS after its last use, so paging through its point view does not parse it again each time
+ * but the memory goes back when the reader has gone.
+ */
+const LAYOUT_CACHE_BYTES = 16 * 1024 * 1024;
+const LARGE_LAYOUT_KEEP_MS = 20_000;
 
-/** A run's layout (immutable once written), parsed once per process; null before the run started. */
-export function runLayout(runId: string, d: Q = db()): RunLayout | null {
+class LayoutCache<T> {
+  private entries = new Map<string, { value: T; weight: number }>();
+  private total = 0;
+  private large: { key: string; value: T; timer: ReturnType<typeof setTimeout> } | null = null;
+
+  get(key: string): T | undefined {
+    if (this.large?.key === key) {
+      this.keepLarge(key, this.large.value);
+      return this.large.value;
+    }
+    const e = this.entries.get(key);
+    if (!e) return undefined;
+    this.entries.delete(key);
+    this.entries.set(key, e);
+    return e.value;
+  }
+
+  set(key: string, value: T, weight: number): void {
+    if (weight > LAYOUT_CACHE_BYTES) {
+      this.keepLarge(key, value);
+      return;
+    }
+    this.entries.set(key, { value, weight });
+    this.total += weight;
+    for (const [k, e] of this.entries) {
+      if (this.total <= LAYOUT_CACHE_BYTES) break;
+      this.entries.delete(k);
+      this.total -= e.weight;
+    }
+  }
+
+  private keepLarge(key: string, value: T): void {
+    if (this.large) clearTimeout(this.large.timer);
+    const timer = setTimeout(() => (this.large = null), LARGE_LAYOUT_KEEP_MS);
+    timer.unref?.();
+    this.large = { key, value, timer };
+  }
+}
+
+const layoutCache = new LayoutCache<FullLayout>();
+const headCache = new LayoutCache<LayoutHead>();
+
+/**
+ * A run's whole layout (immutable once written), with its names; null before the run started. Parsing a large
+ * network's names takes seconds: where the names are not needed, use `runLayoutHead`.
+ */
+export function runLayout(runId: string, d: Q = db()): FullLayout | null {
   const hit = layoutCache.get(runId);
   if (hit) return hit;
-  const text = d.select({ layout: runs.layout }).from(runs).where(eq(runs.id, runId)).get()?.layout;
-  if (!text) return null;
-  const layout = JSON.parse(text) as RunLayout;
-  if (layoutCache.size >= LAYOUT_CACHE_SIZE) layoutCache.delete(layoutCache.keys().next().value!);
-  layoutCache.set(runId, layout);
+  const texts = layoutTexts(runId, d);
+  const layout = texts ? parseStoredLayout(texts) : null;
+  if (!texts || !layout) return null;
+  layoutCache.set(runId, layout, texts.names.length);
   return layout;
+}
+
+/** A run's layout without its names (params, probes, rails, sweeps, mismatch, counts); null before the run started. */
+export function runLayoutHead(runId: string, d: Q = db()): LayoutHead | null {
+  const hit = headCache.get(runId);
+  if (hit) return hit;
+  const head = layoutHead(runId, d);
+  if (head) headCache.set(runId, head, 1024);
+  return head;
 }
 
 /** What the run page's tables show for one point (GET /api/runs/[id]/results?view=point): lists, null for NaN. */
@@ -331,7 +399,7 @@ export interface SeriesView {
 
 export function seriesView(
   runId: string,
-  layout: RunLayout,
+  layout: LayoutHead | RunLayout,
   from = 0,
   to = Number.MAX_SAFE_INTEGER,
   d: Q = db(),
@@ -370,7 +438,7 @@ export function* eachPoint(runId: string, d: Q = db()): Generator<StoredPoint> {
 /** One point's stored blobs in the binary form of app/lib/point-codec.ts, or null when it is not stored. */
 export function pointBinary(
   runId: string,
-  layout: RunLayout,
+  layout: LayoutHead | RunLayout,
   point: number,
   d: Q = db(),
 ): Uint8Array<ArrayBuffer> | null {
@@ -401,7 +469,12 @@ export function pointBinary(
 const seriesCache = new Map<string, { columns: SeriesColumns; /** The SeriesView as JSON. */ json: string }>();
 const SERIES_CACHE_SIZE = 16;
 
-export function seriesJson(runId: string, layout: RunLayout, head: Record<string, unknown>, d: Q = db()): string {
+export function seriesJson(
+  runId: string,
+  layout: LayoutHead | RunLayout,
+  head: Record<string, unknown>,
+  d: Q = db(),
+): string {
   let entry = seriesCache.get(runId);
   const next = readSeries(runId, layout, entry ? entry.columns.point.length : 0, Number.MAX_SAFE_INTEGER, d);
   const wrap = (series: string) => `${JSON.stringify(head).slice(0, -1)},"series":${series}}`;
@@ -440,15 +513,15 @@ export function seriesJson(runId: string, layout: RunLayout, head: Record<string
   return wrap(entry.json);
 }
 
-const layoutJsonCache = new Map<string, string>();
+const layoutJsonCache = new LayoutCache<string>();
 
-/** `{ "layout": … }` as JSON text, serialised once per run and process. */
-export function layoutJson(runId: string, layout: RunLayout): string {
-  let s = layoutJsonCache.get(runId);
-  if (!s) {
-    if (layoutJsonCache.size >= LAYOUT_CACHE_SIZE) layoutJsonCache.delete(layoutJsonCache.keys().next().value!);
-    s = JSON.stringify({ layout });
-    layoutJsonCache.set(runId, s);
-  }
+/** `{ "layout": … }` as JSON text, joined from the stored texts without parsing them; null before the run started. */
+export function layoutJson(runId: string, d: Q = db()): string | null {
+  const hit = layoutJsonCache.get(runId);
+  if (hit) return hit;
+  const texts = layoutTexts(runId, d);
+  if (!texts) return null;
+  const s = `{"layout":${joinedLayoutJson(texts)}}`;
+  layoutJsonCache.set(runId, s, s.length);
   return s;
 }

@@ -25,6 +25,7 @@ import { elaborate, type Network } from "@/src/lang/index";
 import { db, type Q } from "@/db";
 import type { StoredPoint } from "./point-codec";
 import { insertPoints, layoutOf, type RunLayout } from "./results";
+import { hasLayout, layoutHead, storedLayout, writeLayout } from "./run-layouts";
 import {
   solveChunk,
   STOP_CANCEL,
@@ -149,7 +150,6 @@ export function executeChunk(runId: string, chunk: number, control: ExecControl 
       commitId: runs.commitId,
       startedAt: runs.startedAt,
       timeLimitMs: runs.timeLimitMs,
-      layout: runs.layout,
     })
     .from(runs)
     .where(eq(runs.id, runId))
@@ -175,12 +175,16 @@ export function executeChunk(runId: string, chunk: number, control: ExecControl 
     });
     if ("error" in found) return failChunk(runId, chunk, found.error, d);
     const { net, layout } = found;
-    if (row.layout === null) {
+    // A large network's layout is left to its first chunk (app/lib/run-supervisor.ts): written here, off the
+    // request thread.
+    if (!hasLayout(runId, d)) {
+      const stored = storedLayout(layout);
+      writeBusy(() => writeLayout(runId, stored, d));
       writeBusy(() =>
         d
           .update(runs)
-          .set({ layout: JSON.stringify(layout), model: modelOf(net) })
-          .where(and(eq(runs.id, runId), sql`${runs.layout} is null`))
+          .set({ model: modelOf(net) })
+          .where(and(eq(runs.id, runId), sql`${runs.model} is null`))
           .run(),
       );
     }
@@ -304,7 +308,7 @@ export function finalizeRun(
   else if (!allDone) return null;
 
   const withStats = chunks.filter((c) => c.stats !== null);
-  const devices = row.layout ? (JSON.parse(row.layout) as RunLayout).devices.length : 0;
+  const devices = layoutHead(runId, d)?.deviceCount ?? 0;
   const fig = mergeChunks(
     withStats.map((c) => ({ stats: JSON.parse(c.stats as string) as ChunkStats, flags: c.flags ?? null })),
     devices,

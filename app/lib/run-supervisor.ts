@@ -171,7 +171,7 @@ export async function startRun(input: StartRunInput, d: Q = db()): Promise<RunRo
         createdBy: input.actorId,
         pointsTotal: points,
         timeLimitMs,
-        layout: plan.layoutJson,
+        layout: plan.layout ?? undefined,
         model: plan.model,
         chunks: plan.chunks,
       },

@@ -18,6 +18,7 @@ import {
 } from "@/db/schema";
 import { RequestError } from "./http";
 import { notifyRunEnded } from "./inbox";
+import { type StoredLayout, writeLayout } from "./run-layouts";
 
 /** Ends a run that is still queued or running; no-op (false) for a run that already ended. */
 export function finishRun(runId: string, state: RunState, reason: string | null, d: Q = db()): boolean {
@@ -36,8 +37,8 @@ export interface NewRun {
   createdBy: string;
   pointsTotal: number;
   timeLimitMs: number;
-  /** The run's layout (JSON) and model figures, when known at queue time. */
-  layout?: string;
+  /** The run's layout (app/lib/run-layouts.ts) and model figures, when known at queue time. */
+  layout?: StoredLayout;
   model?: Record<string, unknown>;
   /** The chunk plan; none: one chunk over every point, made when the run is dispatched. */
   chunks?: readonly { start: number; end: number }[];
@@ -46,12 +47,13 @@ export interface NewRun {
 /** Inserts a `queued` run of a commit and its chunk plan, in one transaction; returns its id. */
 export function insertRun(run: NewRun, d: Q = db()): string {
   const id = newId("r");
-  const { chunks, ...fields } = run;
+  const { chunks, layout, ...fields } = run;
   d.transaction(
     (tx) => {
       tx.insert(runs)
         .values({ id, ...fields, workspaceId: workspaceOfNetwork(tx, run.networkId) })
         .run();
+      if (layout) writeLayout(id, layout, tx);
       if (chunks && chunks.length > 0)
         tx.insert(runChunks)
           .values(chunks.map((c, chunk) => ({ runId: id, chunk, start: c.start, end: c.end })))

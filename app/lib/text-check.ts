@@ -10,6 +10,10 @@ import { pointCount } from "@/src/solver/index";
 import { valuesPerPoint } from "./results";
 import { planRun } from "./run-plan";
 import type { ChunkRange } from "./run-chunk";
+import { type StoredLayout, storedLayout } from "./run-layouts";
+
+/** The largest names text a run plan carries to the request thread (1 MB: about 40,000 devices). */
+export const PLAN_LAYOUT_BYTES = 1024 * 1024;
 
 export interface TextCheck {
   /** No diagnostic is an error. */
@@ -33,11 +37,15 @@ export function checkNetworkText(text: string): TextCheck {
   };
 }
 
-/** A run's plan (app/lib/run-plan.ts) with its layout already as JSON text, as the runs table stores it. */
+/**
+ * A run's plan (app/lib/run-plan.ts) with its layout already as the texts run_layouts stores; without them when the
+ * names are larger than PLAN_LAYOUT_BYTES (the run's first chunk writes them then, in the run worker: writing tens of
+ * megabytes would hold the request thread for a second).
+ */
 export interface PlanText {
   points: number;
   valuesPerPoint: number;
-  layoutJson: string;
+  layout: StoredLayout | null;
   model: Record<string, unknown>;
   chunks: ChunkRange[];
 }
@@ -47,10 +55,11 @@ export function planNetworkText(text: string, workers: number): PlanText | null 
   const result = elaborate(text);
   if (!result.network) return null;
   const plan = planRun(result.network, workers);
+  const stored = storedLayout(plan.layout);
   return {
     points: plan.points,
     valuesPerPoint: plan.valuesPerPoint,
-    layoutJson: JSON.stringify(plan.layout),
+    layout: stored.names.length <= PLAN_LAYOUT_BYTES ? stored : null,
     model: plan.model,
     chunks: plan.chunks,
   };

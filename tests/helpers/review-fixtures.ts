@@ -14,6 +14,7 @@ import { runPoints, runs } from "@/db/schema";
 import type { DB } from "@/db";
 import { commitText, createNetwork } from "@/app/lib/networks";
 import { newId } from "@/db/ids";
+import { storedLayout, writeLayout } from "@/app/lib/run-layouts";
 
 const UT = (1.380649e-23 * 300.15) / 1.602176634e-19;
 const I0 = 1e-15;
@@ -70,10 +71,10 @@ export function insertDividerRun(
       pointsTotal: SWEEP.length,
       pointsDone: SWEEP.length,
       timeLimitMs: 60_000,
-      layout: JSON.stringify(LAYOUT),
       createdAt: input.createdAt ?? new Date(),
     })
     .run();
+  writeLayout(id, storedLayout(LAYOUT), db);
   SWEEP.forEach((iin, k) => {
     const ux = ud + iin / (g(1e-6) + g(input.w2));
     const uy = ud + 5e-9 / g(1e-6);

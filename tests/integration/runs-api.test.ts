@@ -295,6 +295,46 @@ describe("runs through the API", () => {
     expect((list.json as { runs: RunJson[] }).runs.map((r) => r.id)).toContain(run.id);
   });
 
+  it("a network whose names are larger than a plan carries gets its layout from the run's first chunk", async () => {
+    // 60,000 outputs and 59,999 links: over a megabyte of names, more than PLAN_LAYOUT_BYTES (app/lib/text-check.ts).
+    const n = 60_000;
+    const text = `network wide_chain
+rail gh = 0.7
+rail gv = 0.6
+rail vd = 1
+rail gnd = 0
+for k in 0..${n - 1} {
+  nfet o{k} gate=gv source=n{k} drain=vd
+}
+for k in 0..${n - 2} {
+  nfet h{k} gate=gh source=n{k} drain=n{k+1}
+}
+inject spot from=n${n / 2} to=gnd value=1n
+`;
+    const { planNetworkText } = await import("@/app/lib/text-check");
+    expect(planNetworkText(text, 1)!.layout).toBeNull();
+    const { commitId } = await newNetwork("Wide chain", text);
+    const started = await startRun("designer", { commit: commitId });
+    expect(started.status).toBe(201);
+    const id = (started.json as { run: { id: string } }).run.id;
+    const r = await until(id, ended, 60_000);
+    expect(r.state).toBe("done");
+    const layout = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${id}/results?view=layout`, {
+      id,
+    });
+    const l = (layout.json as { layout: { devices: string[]; nodes: string[]; deviceCount: number } }).layout;
+    expect(l.devices).toHaveLength(2 * n - 1);
+    expect(l.deviceCount).toBe(2 * n - 1);
+    expect(l.devices[0]).toBe("o0");
+    expect(l.nodes).toContain(`n${n - 1}`);
+    const point = await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${id}/results?view=point&limit=3`, {
+      id,
+    });
+    const p = point.json as { point: { devices: { names: string[] }; page: { devices: number } } };
+    expect(p.point.devices.names).toEqual(["o0", "o1", "o2"]);
+    expect(p.point.page.devices).toBe(2 * n - 1);
+  }, 90_000);
+
   it("refuses up front, with the numbers: a commit with errors, too many points, too many values", async () => {
     const broken = await newNetwork("Broken split", `${SWEEP}nfet m3 gate=nowhere\n`);
     const r1 = await startRun("designer", { commit: broken.commitId });

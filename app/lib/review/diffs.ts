@@ -11,7 +11,8 @@ import { getCommit } from "../networks";
 import type { Q } from "@/db";
 import { DEFAULT_TOLERANCE, diffResults, summarize, type ResultsDiff, type Tolerance } from "./results-diff";
 import { diffText, type TextDiff } from "./text-diff";
-import { latestDoneRuns, runTable, parseLayout, analysisName } from "./run-tables";
+import { latestDoneRuns, runTable, analysisName } from "./run-tables";
+import { layoutHead } from "../run-layouts";
 
 /** Beyond-tolerance rows kept in a stored diff. */
 export const STORED_ROWS = 200;
@@ -28,7 +29,7 @@ export function storeCommitDiff(runId: string, d: Q = db()): typeof commitDiffs.
   if (stored) return stored;
   const run = d.select().from(runs).where(eq(runs.id, runId)).get();
   if (!run || run.state !== "done") return null;
-  const layout = parseLayout(run.layout);
+  const layout = layoutHead(runId, d);
   if (!layout) return null;
   const analysis = analysisName(layout);
   const commit = d.select({ parentId: commits.parentId }).from(commits).where(eq(commits.id, run.commitId)).get();

@@ -16,7 +16,7 @@ import {
   type Agreement,
   type ParseResult,
 } from "./measurements";
-import { parseLayout } from "./run-tables";
+import { runLayout, type LayoutNames } from "./run-tables";
 
 export interface MeasurementView {
   id: string;
@@ -170,7 +170,7 @@ export function overlay(
   const m = getMeasurement(measurementId, d);
   const run = d.select().from(runs).where(eq(runs.id, runId)).get();
   if (!m || !run || m.workspaceId !== run.workspaceId) throw new RequestError(404, "measurement or run not found");
-  const layout = parseLayout(run.layout);
+  const layout = runLayout(runId, d);
   if (!layout) throw new RequestError(422, "the run has no results yet");
   if (layout.sweeps.length === 0) return profileOverlay(m, runId, layout, opts, d);
   if (layout.sweeps.length !== 1)
@@ -251,7 +251,7 @@ export function overlay(
 function profileOverlay(
   m: MeasurementView,
   runId: string,
-  layout: NonNullable<ReturnType<typeof parseLayout>>,
+  layout: LayoutNames,
   opts: { against?: Record<string, string> },
   d: Q,
 ): Overlay {

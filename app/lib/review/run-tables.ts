@@ -1,5 +1,5 @@
 /**
- * A stored run as results-diff tables: reads `runs.layout` and the typed-array
+ * A stored run as results-diff tables: reads the run's layout (app/lib/run-layouts.ts) and the typed-array
  * blobs of `run_points` (db/work-schema.ts) into column tables.
  *
  * Analysis name (the matching key between two commits' runs): "operating
@@ -13,6 +13,7 @@ import { runPoints, runs } from "@/db/schema";
 import type { Q } from "@/db";
 import { pointKey, type AnalysisTable, type ResultColumn } from "./results-diff";
 import type { RunSource } from "./sweep-compare";
+import { layoutHeads, layoutTexts, parseStoredLayout } from "../run-layouts";
 
 /** The parts of a run's layout (app/lib/results.ts RunLayout) this module reads. */
 export interface LayoutNames {
@@ -26,16 +27,6 @@ export interface LayoutNames {
   /** Unit symbols from the unit checker (absent in older runs): app/lib/results.ts RunLayout. */
   probeUnits?: (string | null)[];
   paramUnits?: (string | null)[];
-}
-
-export function parseLayout(json: string | null): LayoutNames | null {
-  if (!json) return null;
-  try {
-    const l = JSON.parse(json) as LayoutNames;
-    return Array.isArray(l.nodes) && Array.isArray(l.devices) && Array.isArray(l.probes) ? l : null;
-  } catch {
-    return null;
-  }
 }
 
 export function analysisName(layout: Pick<LayoutNames, "sweeps" | "mismatch">): string {
@@ -65,10 +56,10 @@ function floats(b: Buffer, Kind: Float64ArrayConstructor | Float32ArrayConstruct
   return new Kind(copy.buffer, 0, b.byteLength / Kind.BYTES_PER_ELEMENT);
 }
 
-/** Stored layout of a run, or null before the run started. */
+/** Stored layout of a run with its names, or null before the run started. */
 export function runLayout(runId: string, d: Q = db()): LayoutNames | null {
-  const r = d.select({ layout: runs.layout }).from(runs).where(eq(runs.id, runId)).get();
-  return r ? parseLayout(r.layout) : null;
+  const texts = layoutTexts(runId, d);
+  return texts ? parseStoredLayout(texts) : null;
 }
 
 /**
@@ -133,26 +124,30 @@ export interface RunBrief {
 
 /** The runs of a commit, newest first, with their analysis names. */
 export function runsOfCommit(commitId: string, d: Q = db()): RunBrief[] {
-  return d
+  const rows = d
     .select()
     .from(runs)
     .where(eq(runs.commitId, commitId))
     .orderBy(desc(runs.createdAt), desc(runs.id))
-    .all()
-    .map((r) => {
-      const l = parseLayout(r.layout);
-      return {
-        id: r.id,
-        commitId: r.commitId,
-        workspaceId: r.workspaceId,
-        networkId: r.networkId,
-        state: r.state,
-        analysis: l ? analysisName(l) : null,
-        pointsDone: r.pointsDone,
-        pointsTotal: r.pointsTotal,
-        createdAt: r.createdAt.getTime(),
-      };
-    });
+    .all();
+  const heads = layoutHeads(
+    rows.map((r) => r.id),
+    d,
+  );
+  return rows.map((r) => {
+    const l = heads.get(r.id);
+    return {
+      id: r.id,
+      commitId: r.commitId,
+      workspaceId: r.workspaceId,
+      networkId: r.networkId,
+      state: r.state,
+      analysis: l ? analysisName(l) : null,
+      pointsDone: r.pointsDone,
+      pointsTotal: r.pointsTotal,
+      createdAt: r.createdAt.getTime(),
+    };
+  });
 }
 
 /** The newest finished ("done") run of each analysis of a commit. */

@@ -10,7 +10,8 @@
 import { and, desc, eq, inArray } from "drizzle-orm";
 import { db, type Q } from "@/db";
 import { commits, reviews, runs, users, type ReviewEntry, type RunWarning } from "@/db/schema";
-import { analysisName, parseLayout } from "./run-tables";
+import { analysisName } from "./run-tables";
+import { layoutHeads } from "../run-layouts";
 
 export interface SignOffCheck {
   name: string;
@@ -59,12 +60,16 @@ export function signOffSummaries(commitIds: string[], d: Q = db()): Record<strin
     .where(inArray(runs.commitId, commitIds))
     .orderBy(desc(runs.createdAt), desc(runs.id))
     .all();
+  const heads = layoutHeads(
+    all.map((r) => r.id),
+    d,
+  );
   const out: Record<string, SignOffSummary> = {};
   for (const c of cs) {
     const newest = new Map<string, SignOffRun>();
     for (const r of all) {
       if (r.commitId !== c.id) continue;
-      const layout = parseLayout(r.layout);
+      const layout = heads.get(r.id);
       const analysis = layout ? analysisName(layout) : "not started";
       if (newest.has(analysis)) continue;
       newest.set(analysis, {

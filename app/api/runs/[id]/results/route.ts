@@ -7,6 +7,7 @@ import {
   pointView,
   POINT_VIEW_LIMIT,
   runLayout,
+  runLayoutHead,
   seriesJson,
   seriesView,
 } from "@/app/lib/results";
@@ -44,7 +45,8 @@ export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
     const { run } = runAccess(await requestActor(request), "workspace.read", (await ctx.params).id);
     const q = parseInput(Query, { view: "series", ...queryOf(request) });
-    const layout = runLayout(run.id);
+    // The head (params, probes, sweeps, counts) is enough for all but the point view's names.
+    const layout = runLayoutHead(run.id);
     if (!layout) throw new RequestError(409, `the run has no results yet (${run.state})`, { state: run.state });
     if (q.view === "series") {
       if (q.from !== undefined && q.to !== undefined && q.from > q.to)
@@ -60,7 +62,7 @@ export function GET(request: Request, ctx: Ctx) {
     // The layout and a stored point never change: the browser may keep them.
     const keep = { "cache-control": "private, max-age=86400" };
     if (q.view === "layout")
-      return new Response(layoutJson(run.id, layout), { headers: { ...keep, "content-type": "application/json" } });
+      return new Response(layoutJson(run.id), { headers: { ...keep, "content-type": "application/json" } });
     if (q.format === "binary") {
       const bin = pointBinary(run.id, layout, q.point);
       if (!bin)
@@ -70,7 +72,7 @@ export function GET(request: Request, ctx: Ctx) {
         );
       return new Response(bin, { headers: { ...keep, "content-type": "application/octet-stream" } });
     }
-    const point = pointView(run.id, layout, q.point, undefined, q.offset, q.limit);
+    const point = pointView(run.id, runLayout(run.id)!, q.point, undefined, q.offset, q.limit);
     if (!point)
       throw new RequestError(
         404,
