@@ -23,3 +23,15 @@ export {
 } from "./expectation-summary";
 export { DEFAULT_ORDERING, type OrderingChoice } from "./linear";
 export { summarize } from "./mismatch";
+export {
+  adjointPoint,
+  probeSensitivities,
+  paramSensitivities,
+  mismatchBudget,
+  pelgromSigma,
+  namePattern,
+  type AdjointPoint,
+  type ProbeSensitivity,
+  type MismatchBudget,
+  type BudgetEntry,
+} from "./sensitivity";

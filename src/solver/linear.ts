@@ -880,6 +880,16 @@ function buildRhs(
   return out;
 }
 
+/**
+ * x = A⁻¹·y in place for any right-hand side y (by row, scaled as the plan's
+ * system) with the last factorisation: the adjoint solves of sensitivity.ts
+ * (A is symmetric, so Aᵀ's solve is A's).
+ */
+export function solveWithFactor(plan: LinearPlan, y: Float64Array): void {
+  if (!plan.factored) throw new Error("solveWithFactor: no factorisation");
+  solveRows(plan, y);
+}
+
 function solveRows(plan: LinearPlan, y: Float64Array): void {
   const rows = plan.rows;
   const refine = plan.refine;
