@@ -362,6 +362,11 @@ function sameDims(name: string): FnDim {
 
 const passFirst: FnDim = (args) => args[0];
 
+/** Arguments of one dimension (a row of outputs' currents), a result in taps (dimensionless). */
+function logSlopeDim(name: string): FnDim {
+  return (args, call, report) => (sameDims(name)(args, call, report).kind === "unknown" ? UNKNOWN : DIMENSIONLESS);
+}
+
 /** The math.js functions an expression may call, with their arity and dimension rule. */
 export const FUNCTIONS: Record<string, { min: number; max: number; dim: FnDim }> = {
   exp: { min: 1, max: 1, dim: dimensionlessArg("exp") },
@@ -392,6 +397,8 @@ export const FUNCTIONS: Record<string, { min: number; max: number; dim: FnDim }>
   max: { min: 1, max: 64, dim: sameDims("max") },
   hypot: { min: 1, max: 64, dim: sameDims("hypot") },
   mod: { min: 2, max: 2, dim: sameDims("mod") },
+  space_constant: { min: 2, max: 100000, dim: logSlopeDim("space_constant") },
+  space_constant_error: { min: 3, max: 100000, dim: logSlopeDim("space_constant_error") },
   pow: {
     min: 2,
     max: 2,
@@ -571,6 +578,12 @@ const FOLD_CHUNK = 1024;
 // run gives exactly what the nested operators give, without nesting math.js's compiled
 // closures once per operand (a 100,000-term sum would overflow the stack).
 math.import({
+  space_constant(...xs: number[]): number {
+    return logSlopeFit(xs).length;
+  },
+  space_constant_error(...xs: number[]): number {
+    return logSlopeFit(xs).error;
+  },
   __runnelFoldLeft(ops: string, ...xs: number[]): number {
     let a = xs[0];
     for (let i = 1; i < xs.length; i++) {
@@ -711,4 +724,43 @@ export function evaluateNumber(fn: EvalFunction, scope: unknown): number {
   } catch {
     return NaN;
   }
+}
+
+/**
+ * The decay length of values taken at equally spaced taps 0, 1, … n−1 (a row
+ * of outputs' currents): a least-squares line through ln|x_k| against k has
+ * slope s, and the length is 1/|s| taps (docs/physics.md §6 1-D diffuser chain:
+ * e^(−θ) per tap is a length 1/θ). Its error is the slope's standard error
+ * (residuals over n − 2 degrees of freedom) carried to 1/|s|: σ_s/s², 0 for
+ * two values, which fit exactly (common practice for a straight-line fit).
+ * A value that is zero or not finite makes both NaN.
+ */
+export function logSlopeFit(xs: readonly number[]): { length: number; error: number } {
+  const n = xs.length;
+  if (n < 2) return { length: NaN, error: NaN };
+  const mk = (n - 1) / 2;
+  let my = 0;
+  const y = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const a = Math.abs(xs[k]);
+    if (!(a > 0) || !Number.isFinite(a)) return { length: NaN, error: NaN };
+    y[k] = Math.log(a);
+    my += y[k];
+  }
+  my /= n;
+  let sxy = 0;
+  let sxx = 0;
+  for (let k = 0; k < n; k++) {
+    sxy += (k - mk) * (y[k] - my);
+    sxx += (k - mk) * (k - mk);
+  }
+  const slope = sxy / sxx;
+  if (slope === 0) return { length: Infinity, error: NaN };
+  let ssr = 0;
+  for (let k = 0; k < n; k++) {
+    const r = y[k] - my - slope * (k - mk);
+    ssr += r * r;
+  }
+  const seSlope = n > 2 ? Math.sqrt(ssr / (n - 2) / sxx) : 0;
+  return { length: 1 / Math.abs(slope), error: seSlope / (slope * slope) };
 }

@@ -35,7 +35,7 @@
 
 import { applyPoint, pointScope } from "../lang/point";
 import { type Network, NFET } from "../lang/network";
-import { classify } from "./classify";
+import { type Classification, classify } from "./classify";
 import { type DeviceParams, deviceCurrent, deviceParams } from "./device";
 import { evaluate } from "./evaluate";
 import {
@@ -74,61 +74,113 @@ export function adjointPoint(
   net: Network,
   dvt: Float64Array | null = null,
 ): { ok: true; point: AdjointPoint } | SolveFailure {
-  const cls = classify(net);
-  if (cls.problems.length > 0) return { ok: false, message: cls.problems[0].message };
-  const P = deviceParams(net, dvt);
-  const nn = net.nodes.names.length;
-  const V = new Float64Array(nn);
-  const params = pointScope(net);
-  if (cls.linear) {
-    const plan = planLinear(net, cls);
-    const f = factorLinear(plan, net, P);
-    if (!f.ok) {
-      releaseLinear(plan);
-      return { ok: false, message: f.message };
+  const solver = new PointSolver();
+  const r = solver.solve(net, dvt);
+  if (!r.ok) solver.release();
+  else r.point.release = () => solver.release();
+  return r;
+}
+
+/**
+ * Solves points of one network structure (the points of a sweep, the steps
+ * of a goal-seek: applyPoint's networks share the structure), analysing it
+ * once: the linear plan (ordering, symbolic analysis) or the Newton plan is
+ * kept, and a Newton solve starts from the last solution. `release` gives the
+ * plan's arrays back; a point's adjoint is valid until the next solve.
+ */
+export class PointSolver {
+  private structure: unknown = null;
+  private cls: Classification | null = null;
+  private linear: LinearPlan | null = null;
+  private newton: NewtonPlan | null = null;
+  private lastV: Float64Array | null = null;
+
+  private prepare(net: Network): Classification {
+    if (this.structure !== net.devices.source || this.cls === null) {
+      this.release();
+      this.structure = net.devices.source;
+      this.cls = classify(net);
     }
-    solvePseudo(plan, net);
-    const v = voltagesLinear(plan, net, V);
-    if (!v.ok) {
-      releaseLinear(plan);
-      return { ok: false, message: v.message };
+    return this.cls;
+  }
+
+  solve(net: Network, dvt: Float64Array | null = null): { ok: true; point: AdjointPoint } | SolveFailure {
+    const cls = this.prepare(net);
+    if (cls.problems.length > 0) return { ok: false, message: cls.problems[0].message };
+    const P = deviceParams(net, dvt);
+    const nn = net.nodes.names.length;
+    const V = new Float64Array(nn);
+    const params = pointScope(net);
+    if (cls.linear) {
+      const plan = (this.linear ??= planLinear(net, cls));
+      const f = factorLinear(plan, net, P);
+      if (!f.ok) return { ok: false, message: f.message };
+      solvePseudo(plan, net);
+      const v = voltagesLinear(plan, net, V);
+      if (!v.ok) return { ok: false, message: v.message };
+      const ev = evaluate(net, V, P);
+      return {
+        ok: true,
+        point: {
+          net,
+          method: "linear",
+          V,
+          currents: ev.currents,
+          railCurrents: ev.railCurrents,
+          P,
+          params,
+          adjoint: (c) => linearAdjoint(plan, net, c),
+          release: () => {},
+        },
+      };
     }
+    const plan = (this.newton ??= planNewton(net));
+    if (this.lastV) V.set(this.lastV);
+    else initialGuess(net, V);
+    let r = solveNewton(plan, net, P, V);
+    if (!r.ok && this.lastV) {
+      // The last solution was a poor start: begin again from the network's own guess.
+      V.fill(0);
+      initialGuess(net, V);
+      r = solveNewton(plan, net, P, V);
+    }
+    if (!r.ok) return { ok: false, message: r.message };
+    this.lastV = Float64Array.from(V);
     const ev = evaluate(net, V, P);
+    let solveT: ((c: Float64Array) => Float64Array) | null = null;
     return {
       ok: true,
       point: {
         net,
-        method: "linear",
+        method: "newton",
         V,
         currents: ev.currents,
         railCurrents: ev.railCurrents,
         P,
         params,
-        adjoint: (c) => linearAdjoint(plan, net, c),
-        release: () => releaseLinear(plan),
+        adjoint: (c) => (solveT ??= newtonAdjoint(plan, net, P, V))(c),
+        release: () => {},
       },
     };
   }
-  const plan = planNewton(net);
-  initialGuess(net, V);
-  const r = solveNewton(plan, net, P, V);
-  if (!r.ok) return { ok: false, message: r.message };
-  const ev = evaluate(net, V, P);
-  let solveT: ((c: Float64Array) => Float64Array) | null = null;
-  return {
-    ok: true,
-    point: {
-      net,
-      method: "newton",
-      V,
-      currents: ev.currents,
-      railCurrents: ev.railCurrents,
-      P,
-      params,
-      adjoint: (c) => (solveT ??= newtonAdjoint(plan, net, P, V))(c),
-      release: () => {},
-    },
-  };
+
+  /** Every probe's value at the point (NaN for a probe that is not a number there). */
+  probes(net: Network, dvt: Float64Array | null = null): { ok: true; probes: Record<string, number> } | SolveFailure {
+    const r = this.solve(net, dvt);
+    if (!r.ok) return r;
+    const out: Record<string, number> = {};
+    for (let i = 0; i < net.probes.length; i++) out[net.probes[i].name] = probeValue(r.point, i);
+    return { ok: true, probes: out };
+  }
+
+  release(): void {
+    if (this.linear) releaseLinear(this.linear);
+    this.linear = null;
+    this.newton = null;
+    this.lastV = null;
+    this.cls = null;
+    this.structure = null;
+  }
 }
 
 /** Â·μ = D⁻¹·c with the plan's factor, then λ = S⁻¹·μ (see the module comment). */
@@ -336,21 +388,17 @@ export function paramSensitivities(
 
 /** Every probe's value at `net`'s point (NaN when the point fails). */
 export function probeValues(net: Network, dvt: Float64Array | null = null): Record<string, number> {
-  const r = adjointPoint(net, dvt);
-  const out: Record<string, number> = {};
-  if (!r.ok) {
-    for (const q of net.probes) out[q.name] = NaN;
-    return out;
-  }
+  const solver = new PointSolver();
   try {
-    for (let i = 0; i < net.probes.length; i++) out[net.probes[i].name] = probePartialsValue(r.point, i);
+    const r = solver.probes(net, dvt);
+    if (r.ok) return r.probes;
+    return Object.fromEntries(net.probes.map((q) => [q.name, NaN]));
   } finally {
-    r.point.release();
+    solver.release();
   }
-  return out;
 }
 
-function probePartialsValue(at: AdjointPoint, i: number): number {
+function probeValue(at: AdjointPoint, i: number): number {
   const { net, V, currents, railCurrents, params } = at;
   try {
     const v = net.probes[i].evaluate(
