@@ -5,6 +5,7 @@
  */
 import { parseMeasurementCsv, type ParseResult } from "./review/measurements";
 import { checkNetworkText, planNetworkText, type PlanText, type TextCheck } from "./text-check";
+import { releaseWhenIdle } from "./worker-memory";
 
 export type InteractiveTask =
   | { kind: "check"; text: string }
@@ -17,12 +18,17 @@ export type InteractiveResult<T extends InteractiveTask> = T extends { kind: "ch
     : ParseResult;
 
 export default function interactiveTask(task: InteractiveTask): TextCheck | PlanText | ParseResult | null {
-  switch (task.kind) {
-    case "check":
-      return checkNetworkText(task.text);
-    case "plan":
-      return planNetworkText(task.text, task.workers);
-    case "csv":
-      return parseMeasurementCsv(task.bytes);
+  try {
+    switch (task.kind) {
+      case "check":
+        return checkNetworkText(task.text);
+      case "plan":
+        return planNetworkText(task.text, task.workers);
+      case "csv":
+        return parseMeasurementCsv(task.bytes);
+    }
+  } finally {
+    // The kept thread gives back what the task left (a large network's elaboration) once it is idle.
+    releaseWhenIdle();
   }
 }

@@ -111,6 +111,11 @@ export function ensureChunks(runId: string, ranges?: readonly ChunkRange[], d: Q
 const networkCache = new Map<string, { net: Network; layout: RunLayout } | { error: string }>();
 const CACHED_NETWORKS = 2;
 
+/** Forgets the cached networks (a thread that has been idle gives their memory back: app/lib/worker-memory.ts). */
+export function dropNetworkCache(): void {
+  networkCache.clear();
+}
+
 export function networkOf(
   commitId: string,
   text: () => string | null,

@@ -6,7 +6,15 @@
  * read meanwhile).
  */
 import { openDatabase, type DB } from "@/db";
-import { executeChunk, finalizeRun, type ChunkResult, type RunTask, type RunTaskResult } from "./run-exec";
+import {
+  dropNetworkCache,
+  executeChunk,
+  finalizeRun,
+  type ChunkResult,
+  type RunTask,
+  type RunTaskResult,
+} from "./run-exec";
+import { releaseWhenIdle } from "./worker-memory";
 
 const connections = new Map<string, DB>();
 
@@ -20,8 +28,14 @@ function connection(file: string): DB {
 }
 
 export default function runTask(task: RunTask): ChunkResult | RunTaskResult | null {
-  const d = connection(task.dbFile);
-  if (task.kind === "finalize") return finalizeRun(task.runId, task.forced, Date.now(), d);
-  const fault = process.env.RUNNEL_TEST_FAULTS === "1" ? task.fault : undefined;
-  return executeChunk(task.runId, task.chunk, { stop: new Int32Array(task.stop), fault }, d);
+  try {
+    const d = connection(task.dbFile);
+    if (task.kind === "finalize") return finalizeRun(task.runId, task.forced, Date.now(), d);
+    const fault = process.env.RUNNEL_TEST_FAULTS === "1" ? task.fault : undefined;
+    return executeChunk(task.runId, task.chunk, { stop: new Int32Array(task.stop), fault }, d);
+  } finally {
+    // The elaborated network stays for the run's next chunk; a thread left idle gives it back
+    // (app/lib/worker-memory.ts).
+    releaseWhenIdle(dropNetworkCache);
+  }
 }

@@ -42,10 +42,10 @@ beforeAll(async () => {
     } catch {
       // not listening yet
     }
-    if (i > 900) throw new Error("the development server did not start");
+    if (i > 2000) throw new Error("the development server did not start");
     await new Promise((r) => setTimeout(r, 100));
   }
-}, 120_000);
+}, 240_000);
 
 afterAll(async () => {
   if (child.exitCode === null) {
@@ -75,7 +75,7 @@ describe("npm run dev", () => {
     // A second page load gets a nonce of its own.
     const again = (await fetch(`${base}/signin`)).headers.get("content-security-policy") ?? "";
     expect(/'nonce-([^']+)'/.exec(again)?.[1]).not.toBe(nonce);
-  }, 120_000);
+  }, 240_000);
 
   it("answers API requests with the policy that allows nothing", async () => {
     const res = await fetch(`${base}/api/health`);

@@ -1,0 +1,40 @@
+/**
+ * Gives a worker thread's memory back after its work. The pools keep a thread
+ * between tasks (the interactive pool always keeps one, the run pool its warm
+ * one) so the next task does not wait for a thread to load its bundle; but V8
+ * collects only when a thread allocates, so a thread that elaborated a
+ * 2,000,000-device network and then sits idle would keep that heap for as long
+ * as the server runs. After each task a thread calls `releaseWhenIdle`: once
+ * it has had no task for RELEASE_AFTER_MS it drops its caches and runs a full
+ * collection, and the freed pages go back to the system.
+ *
+ * The collection function comes from V8's `--expose-gc` set at run time and a
+ * fresh context (the way test runners reach it without a command-line flag);
+ * it only ever runs in a worker thread, never on the request thread.
+ */
+import v8 from "node:v8";
+import vm from "node:vm";
+
+export const RELEASE_AFTER_MS = 2_000;
+
+let collect: (() => void) | null = null;
+let timer: ReturnType<typeof setTimeout> | null = null;
+
+function fullCollection(): void {
+  if (!collect) {
+    v8.setFlagsFromString("--expose-gc");
+    collect = vm.runInNewContext("gc") as () => void;
+  }
+  collect();
+}
+
+/** After RELEASE_AFTER_MS without another call: `drop()` (the thread's caches), then a full collection. */
+export function releaseWhenIdle(drop: () => void = () => {}, afterMs = RELEASE_AFTER_MS): void {
+  if (timer) clearTimeout(timer);
+  timer = setTimeout(() => {
+    timer = null;
+    drop();
+    fullCollection();
+  }, afterMs);
+  timer.unref?.();
+}
