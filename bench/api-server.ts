@@ -44,7 +44,12 @@ export async function startBenchServer(
   port: number,
   options: { env?: Record<string, string>; viewerSession?: boolean } = {},
 ): Promise<BenchServer> {
-  for (const need of [".next/BUILD_ID", ".build/run-worker.mjs", ".build/interactive-worker.mjs"]) {
+  for (const need of [
+    ".next/BUILD_ID",
+    ".build/run-worker.mjs",
+    ".build/interactive-worker.mjs",
+    ".build/export-worker.mjs",
+  ]) {
     if (!fs.existsSync(need)) {
       console.error(`${what}: ${need} is missing: run \`npm run build\` first`);
       process.exit(1);

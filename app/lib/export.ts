@@ -1,20 +1,21 @@
 /**
- * Run exports, streamed one point per chunk so a large run never sits in
- * memory whole and the request thread yields between points.
+ * Run exports, streamed in chunks of a few thousand names so a large run never
+ * sits in memory whole, written by a worker thread of their own
+ * (`exportInWorker`, app/lib/export-worker.ts) so the request thread only passes bytes on.
  * - CSV (RFC 4180 quoting): `probes` has one row per point (point, sample,
  *   params, probes, solver figures); `nodes`, `devices`, `rails` have one row
  *   per point and name. Numbers are written in full precision (shortest
  *   round-trip form), in SI base units named in the header.
  * - JSON: the document of `runnel solve --json` (docs/language.md, The runnel command) with a `run` member.
  */
+import path from "node:path";
+import { Worker } from "node:worker_threads";
 import type { CommitDiagnostic } from "@/db/schema";
-import type { CommitRow } from "./networks";
-import { db, type Q } from "@/db";
+import { databasePath, db, type Q } from "@/db";
 import type { JsonPoint } from "@/src/solver/index";
 import { csvHeader, csvLine, type CsvTable } from "@/src/solver/csv";
 import type { StoredPoint } from "./point-codec";
 import { eachPoint, readPoint, type RunLayout } from "./results";
-import type { RunRow } from "./runs";
 
 /** How many names (nodes, devices, rails) one chunk of an export holds: a chunk is a few hundred kB at most. */
 export const NAMES_PER_CHUNK = 2048;
@@ -72,23 +73,91 @@ export function partialNote(run: RunStatus): string | null {
   return `run ${run.id} is ${run.state}${why}: this file holds the ${run.pointsDone} of ${run.pointsTotal} points stored so far, not a complete result`;
 }
 
+/** What an export says about its run (a run row has more; a worker gets only these). */
+export interface ExportRun extends RunStatus {
+  model: unknown;
+  solverReason: string | null;
+}
+
+/** What the JSON export says about the commit. */
+export interface ExportCommit {
+  id: string;
+  ok: boolean;
+  diagnostics: CommitDiagnostic[];
+}
+
+/** One export, as the export worker (app/lib/export-worker.ts) gets it. */
+export interface ExportTask {
+  dbFile: string;
+  format: "csv" | "json";
+  table: CsvTable;
+  point?: number;
+  run: ExportRun;
+  commit: ExportCommit;
+}
+
+export const EXPORT_WORKER_FILE = () =>
+  path.join(/*turbopackIgnore: true*/ process.cwd(), ".build", "export-worker.mjs");
+
+/** Exports running at once; the next waits for one to end (each holds a run's layout in its thread). */
+export const EXPORT_THREADS = Number(process.env.RUNNEL_EXPORT_THREADS ?? 2);
+let exporting = 0;
+const waiting: (() => void)[] = [];
+
+async function exportSlot(): Promise<() => void> {
+  if (exporting >= EXPORT_THREADS) await new Promise<void>((r) => waiting.push(r));
+  exporting++;
+  let freed = false;
+  return () => {
+    if (freed) return;
+    freed = true;
+    exporting--;
+    waiting.shift()?.();
+  };
+}
+
 /**
- * A byte stream of chunks from a generator of strings, one chunk per pull.
- * Between chunks the request thread gets back to its other requests
- * (setImmediate), so a large export never holds it for more than one chunk.
+ * An export as a byte stream written by a worker thread of its own (app/lib/export-worker.ts): the request thread
+ * only passes its batches on, one per pull, so a 2,000,000-device run's names are parsed and its points decoded and
+ * written in that thread. The thread ends with the stream, and is terminated when the client goes away.
  */
-function streamOf(chunks: Generator<string>): ReadableStream<Uint8Array> {
-  const enc = new TextEncoder();
+export function exportInWorker(task: Omit<ExportTask, "dbFile">): ReadableStream<Uint8Array> {
+  let worker: Worker | null = null;
+  let release: () => void = () => {};
+  let answer: ((m: { bytes?: Uint8Array; done?: boolean; error?: string }) => void) | null = null;
+  let failure: Error | null = null;
+  const end = () => {
+    const w = worker;
+    worker = null;
+    release();
+    if (w) void w.terminate();
+  };
   return new ReadableStream<Uint8Array>(
     {
+      async start() {
+        release = await exportSlot();
+        worker = new Worker(EXPORT_WORKER_FILE(), { workerData: { ...task, dbFile: databasePath() } });
+        worker.on("message", (m) => answer?.(m));
+        worker.on("error", (e) => {
+          failure = e;
+          answer?.({ error: e.message });
+        });
+        worker.on("exit", () => answer?.({ error: failure?.message ?? "the export thread ended early" }));
+      },
       async pull(controller) {
-        await new Promise<void>((r) => setImmediate(r));
-        const next = chunks.next();
-        if (next.done) controller.close();
-        else controller.enqueue(enc.encode(next.value));
+        if (!worker) return controller.close();
+        const m = await new Promise<{ bytes?: Uint8Array; done?: boolean; error?: string }>((r) => {
+          answer = r;
+          worker!.postMessage({ next: true });
+        });
+        answer = null;
+        if (m.bytes) return controller.enqueue(m.bytes);
+        end();
+        if (m.done) controller.close();
+        else controller.error(new Error(`export of run ${task.run.id} failed: ${m.error}`));
       },
       cancel() {
-        chunks.return(undefined);
+        end();
       },
     },
     { highWaterMark: 1 },
@@ -96,25 +165,22 @@ function streamOf(chunks: Generator<string>): ReadableStream<Uint8Array> {
 }
 
 /** The CSV export of a run: a `#` note first when the run is partial (not `done`), then the header and rows. */
-export function csvStream(
+export function* csvChunks(
   run: RunStatus,
   layout: RunLayout,
   table: CsvTable,
   point?: number,
   d: Q = db(),
-): ReadableStream<Uint8Array> {
-  function* gen(): Generator<string> {
-    const note = partialNote(run);
-    if (note) yield `# ${note}\r\n`;
-    yield csvHeader(table, layout.params, layout.probes);
-    if (point !== undefined) {
-      const p = readPoint(run.id, point, d);
-      if (p) yield* csvRows(layout, table, p);
-      return;
-    }
-    for (const p of eachPoint(run.id, d)) yield* csvRows(layout, table, p);
+): Generator<string> {
+  const note = partialNote(run);
+  if (note) yield `# ${note}\r\n`;
+  yield csvHeader(table, layout.params, layout.probes);
+  if (point !== undefined) {
+    const p = readPoint(run.id, point, d);
+    if (p) yield* csvRows(layout, table, p);
+    return;
   }
-  return streamOf(gen());
+  for (const p of eachPoint(run.id, d)) yield* csvRows(layout, table, p);
 }
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -190,39 +256,37 @@ export function* pointJsonChunks(layout: RunLayout, p: StoredPoint): Generator<s
   yield "}," + JSON.stringify(tail).slice(1);
 }
 
-export function jsonStream(run: RunRow, commit: CommitRow, layout: RunLayout, d: Q = db()): ReadableStream<Uint8Array> {
-  function* gen(): Generator<string> {
-    const diagnostics = commit.diagnostics.map((x: CommitDiagnostic) => ({
-      severity: x.severity,
-      line: x.line,
-      column: x.column,
-      message: x.message,
-    }));
-    const head = {
-      network: layout.network,
-      ok: commit.ok,
-      run: {
-        id: run.id,
-        commit: commit.id,
-        state: run.state,
-        reason: run.reason,
-        pointsDone: run.pointsDone,
-        pointsTotal: run.pointsTotal,
-        model: run.model,
-        solverReason: run.solverReason,
-      },
-      diagnostics,
-      // A run that did not end `done` holds only some of its points: say so in the file.
-      ...(partialNote(run) ? { partial: partialNote(run) } : {}),
-    };
-    yield JSON.stringify(head).slice(0, -1) + ',"points":[';
-    let first = true;
-    for (const p of eachPoint(run.id, d)) {
-      if (!first) yield ",";
-      yield* pointJsonChunks(layout, p);
-      first = false;
-    }
-    yield "]}";
+/** The JSON export of a run: the `runnel solve --json` document with a `run` member (and `partial` when not done). */
+export function* jsonChunks(run: ExportRun, commit: ExportCommit, layout: RunLayout, d: Q = db()): Generator<string> {
+  const diagnostics = commit.diagnostics.map((x: CommitDiagnostic) => ({
+    severity: x.severity,
+    line: x.line,
+    column: x.column,
+    message: x.message,
+  }));
+  const head = {
+    network: layout.network,
+    ok: commit.ok,
+    run: {
+      id: run.id,
+      commit: commit.id,
+      state: run.state,
+      reason: run.reason,
+      pointsDone: run.pointsDone,
+      pointsTotal: run.pointsTotal,
+      model: run.model,
+      solverReason: run.solverReason,
+    },
+    diagnostics,
+    // A run that did not end `done` holds only some of its points: say so in the file.
+    ...(partialNote(run) ? { partial: partialNote(run) } : {}),
+  };
+  yield JSON.stringify(head).slice(0, -1) + ',"points":[';
+  let first = true;
+  for (const p of eachPoint(run.id, d)) {
+    if (!first) yield ",";
+    yield* pointJsonChunks(layout, p);
+    first = false;
   }
-  return streamOf(gen());
+  yield "]}";
 }

@@ -1,8 +1,8 @@
 import { z } from "zod";
 import { commitAccess, requestActor, runAccess } from "@/app/lib/access";
-import { csvStream, jsonStream } from "@/app/lib/export";
+import { exportInWorker } from "@/app/lib/export";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { runLayout } from "@/app/lib/results";
+import { hasLayout } from "@/app/lib/run-layouts";
 import { CSV_TABLES } from "@/src/solver/csv";
 
 export const dynamic = "force-dynamic";
@@ -25,12 +25,25 @@ export function GET(request: Request, ctx: Ctx) {
     const actor = await requestActor(request);
     const { run } = runAccess(actor, "workspace.read", (await ctx.params).id);
     const q = parseInput(Query, queryOf(request));
-    const layout = runLayout(run.id);
-    if (!layout) throw new RequestError(409, `the run has no results yet (${run.state})`, { state: run.state });
+    // The layout itself (seconds to parse for a large network) is read by the export's own thread.
+    if (!hasLayout(run.id))
+      throw new RequestError(409, `the run has no results yet (${run.state})`, { state: run.state });
     const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
     const base = `${network.slug}-${run.id}`;
+    const task = {
+      run: {
+        id: run.id,
+        state: run.state,
+        reason: run.reason,
+        pointsDone: run.pointsDone,
+        pointsTotal: run.pointsTotal,
+        model: run.model,
+        solverReason: run.solverReason,
+      },
+      commit: { id: commit.id, ok: commit.ok, diagnostics: commit.diagnostics },
+    };
     if (q.format === "json") {
-      return new Response(jsonStream(run, commit, layout), {
+      return new Response(exportInWorker({ ...task, format: "json", table: q.table }), {
         headers: {
           "content-type": "application/json; charset=utf-8",
           "content-disposition": `attachment; filename="${base}.json"`,
@@ -38,7 +51,7 @@ export function GET(request: Request, ctx: Ctx) {
         },
       });
     }
-    return new Response(csvStream(run, layout, q.table, q.point), {
+    return new Response(exportInWorker({ ...task, format: "csv", table: q.table, point: q.point }), {
       headers: {
         "content-type": "text/csv; charset=utf-8",
         "content-disposition": `attachment; filename="${base}-${q.table}.csv"`,
