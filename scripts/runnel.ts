@@ -25,6 +25,7 @@ import {
   elaborate,
   type ElaborationResult,
   formatDiagnostics,
+  parseNumber,
   tooLargeResult,
 } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
@@ -39,6 +40,7 @@ import {
   type Selection,
 } from "../src/solver/json-format";
 import { RunNotes, type SolveJson, toSolveJson } from "../src/solver/json";
+import { seekJson, sensitivityJson } from "../src/solver/design-json";
 
 const EXIT_OK = 0;
 const EXIT_ERRORS = 1;
@@ -480,8 +482,129 @@ function writeAll(fd: number, b: Uint8Array): void {
 }
 const PAUSE = new Int32Array(new SharedArrayBuffer(4));
 
+/** Options `--name value` or `--name=value` in `valued`, flags in `flags`, and one FILE. */
+function fileAndOptions(
+  args: string[],
+  flags: string[],
+  valued: string[],
+): { file: string; opts: Map<string, string> } {
+  const opts = new Map<string, string>();
+  const files: string[] = [];
+  for (let k = 0; k < args.length; k++) {
+    const a = args[k];
+    const eq = a.indexOf("=");
+    const name = a.startsWith("--") && eq > 0 ? a.slice(0, eq) : a;
+    if (flags.includes(name)) opts.set(name, "");
+    else if (valued.includes(name)) {
+      const v = eq > 0 ? a.slice(eq + 1) : args[++k];
+      if (v === undefined || v.startsWith("--")) throw new UsageError(`${name} needs a value`);
+      opts.set(name, v);
+    } else if (a.startsWith("--")) throw new UsageError(`unknown option ${a}`);
+    else files.push(a);
+  }
+  if (files.length !== 1) throw new UsageError(files.length === 0 ? "missing FILE" : "give exactly one FILE");
+  return { file: files[0], opts };
+}
+
+/** A number option: the language's number form (units and prefixes allowed), or a usage error naming it. */
+function numberOption(opts: Map<string, string>, name: string): number | undefined {
+  const t = opts.get(name);
+  if (t === undefined) return undefined;
+  const neg = t.startsWith("-");
+  const v = parseNumber(neg ? t.slice(1) : t);
+  if (v === null || !Number.isFinite(v.value)) throw new UsageError(`${name}: '${t}' is not a number`);
+  return neg ? -v.value : v.value;
+}
+
+/** The network of FILE, or its diagnostics printed and null. */
+function networkOrDiagnostics(file: string, json: boolean, io: Io): Network | null {
+  const result = elaborateFile(file);
+  if (result.network && result.ok) return result.network;
+  if (json) io.out(JSON.stringify(diagnosticsDocument(result), null, 2));
+  else io.out(formatDiagnostics(file, result.diagnostics));
+  return null;
+}
+
+const sensitivity: Subcommand = {
+  usage: "runnel sensitivity FILE [--json] [--probes LIST] [--avt A] [--groups PATTERNS] [--top N]",
+  summary:
+    "derivatives of each probe w.r.t. every device's W/L and threshold (adjoint) and params, at the file's own point; with avt (or the file's mismatch) the first-order mismatch budget",
+  run(args, io) {
+    const { file, opts } = fileAndOptions(args, ["--json"], ["--probes", "--avt", "--groups", "--top"]);
+    const json = opts.has("--json");
+    const net = networkOrDiagnostics(file, json, io);
+    if (!net) return EXIT_ERRORS;
+    const list = (name: string) =>
+      opts.has(name)
+        ? (opts.get(name) as string)
+            .split(",")
+            .map((s) => s.trim())
+            .filter(Boolean)
+        : undefined;
+    const probes = list("--probes");
+    for (const p of probes ?? [])
+      if (!net.probes.some((q) => q.name === p)) throw new UsageError(`--probes: no probe named ${p}`);
+    const top = numberOption(opts, "--top");
+    if (top !== undefined && !(Number.isInteger(top) && top > 0)) throw new UsageError("--top: a whole number above 0");
+    const doc = sensitivityJson(net, { avt: numberOption(opts, "--avt"), groups: list("--groups"), top, probes });
+    if (json) io.out(JSON.stringify(doc, null, 2));
+    else if (!doc.ok) io.out(`${file}: ${doc.error}`);
+    else
+      for (const p of doc.probes) {
+        io.out(`probe ${p.probe} = ${p.value}`);
+        for (const d of p.devices.slice(0, 10))
+          io.out(
+            `  ${d.device.padEnd(12)} dQ/dVT ${d.vt_per_mv.toExponential(3)} per mV, dlnQ/dln(W/L) ${d.size?.toFixed(4) ?? "-"}`,
+          );
+        for (const [k, v] of Object.entries(p.params))
+          io.out(`  param ${k}: dQ/d${k} ${v === null ? "-" : v.toExponential(3)}`);
+        if (p.budget) {
+          io.out(`  mismatch (first order, avt ${p.budget.avt} V·µm): sigma ${p.budget.sigma.toExponential(3)}`);
+          for (const d of p.budget.devices.slice(0, 10))
+            io.out(`    ${d.name.padEnd(12)} ${(d.share * 100).toFixed(1)} %`);
+          for (const g of p.budget.groups)
+            io.out(`    ${g.pattern.padEnd(12)} ${(g.share * 100).toFixed(1)} % (${g.devices} devices)`);
+        }
+      }
+    return doc.ok ? EXIT_OK : EXIT_ERRORS;
+  },
+};
+
+const seek: Subcommand = {
+  usage: "runnel seek FILE --param P --low A --high B --probe Q --target T [--json]",
+  summary:
+    "the value of param P in [A, B] giving probe Q = T (Brent's method), one search per point of the file's other sweeps",
+  run(args, io) {
+    const { file, opts } = fileAndOptions(args, ["--json"], ["--param", "--low", "--high", "--probe", "--target"]);
+    for (const o of ["--param", "--low", "--high", "--probe", "--target"])
+      if (!opts.has(o)) throw new UsageError(`missing ${o}`);
+    const json = opts.has("--json");
+    const net = networkOrDiagnostics(file, json, io);
+    if (!net) return EXIT_ERRORS;
+    const doc = seekJson(net, {
+      param: opts.get("--param") as string,
+      probe: opts.get("--probe") as string,
+      low: numberOption(opts, "--low") as number,
+      high: numberOption(opts, "--high") as number,
+      target: numberOption(opts, "--target") as number,
+    });
+    if (json) io.out(JSON.stringify(doc, null, 2));
+    else
+      for (const p of doc.points) {
+        const at = Object.entries(p.at).map(([k, v]) => `${k} = ${v}`);
+        const where = at.length ? ` at ${at.join(", ")}` : "";
+        io.out(
+          p.ok
+            ? `${doc.param} = ${p.value}${where}: ${doc.probe} = ${p.achieved} (${p.iterations} solves)`
+            : `no ${doc.param}${where}: ${p.message}`,
+        );
+      }
+    return doc.ok ? EXIT_OK : EXIT_ERRORS;
+  },
+};
+
 /** The subcommands; adding one is one entry here. */
-const SUBCOMMANDS: Record<string, Subcommand> = { check, solve };
+const SUBCOMMANDS: Record<string, Subcommand> = { check, solve, sensitivity, seek };
 
 function usage(): string {
   const lines = Object.values(SUBCOMMANDS).map((c) => `  ${c.usage.padEnd(28)} ${c.summary}`);
