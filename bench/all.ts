@@ -1,7 +1,7 @@
 /**
  * `npm run bench`: the solver and language workloads (bench/run.ts, with the
  * CHOLMOD reference side by side when it can be built), the command line end
- * to end (bench/cli.ts), then the run API under load (bench/api-runs.ts, which
+ * to end (bench/cli.ts), the design tools (bench/design.ts: sensitivities, goal-seek), then the run API under load (bench/api-runs.ts, which
  * needs the production build; it is built first when missing).
  *
  * The CHOLMOD reference is a C program kept outside the repository:
@@ -74,6 +74,10 @@ function main(): number {
   if (code === 0 && !quickOrJson) {
     console.log("");
     code = run(process.execPath, [tsx, "bench/cli.ts"]);
+  }
+  if (code === 0 && !quickOrJson) {
+    console.log("");
+    code = run(process.execPath, [tsx, "bench/design.ts"]);
   }
   if (code === 0 && !quickOrJson) {
     if (!fs.existsSync(".next/BUILD_ID") || !fs.existsSync(".build/run-worker.mjs")) {
