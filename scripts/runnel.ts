@@ -571,35 +571,47 @@ const sensitivity: Subcommand = {
 };
 
 const seek: Subcommand = {
-  usage: "runnel seek FILE --param P --low A --high B --probe Q --target T [--json]",
+  usage: "runnel seek FILE [--param P --low A --high B --probe Q --target T] [--json]",
   summary:
-    "the value of param P in [A, B] giving probe Q = T (Brent's method), one search per point of the file's other sweeps",
+    "the file's seek statements (or the one given by options): the value of param P in [A, B] giving probe Q = T (Brent's method), one search per point of the file's other sweeps",
   run(args, io) {
-    const { file, opts } = fileAndOptions(args, ["--json"], ["--param", "--low", "--high", "--probe", "--target"]);
-    for (const o of ["--param", "--low", "--high", "--probe", "--target"])
-      if (!opts.has(o)) throw new UsageError(`missing ${o}`);
+    const named = ["--param", "--low", "--high", "--probe", "--target"];
+    const { file, opts } = fileAndOptions(args, ["--json"], named);
+    const given = named.filter((o) => opts.has(o));
+    if (given.length > 0 && given.length < named.length)
+      throw new UsageError(`missing ${named.filter((o) => !opts.has(o)).join(", ")}`);
     const json = opts.has("--json");
     const net = networkOrDiagnostics(file, json, io);
     if (!net) return EXIT_ERRORS;
-    const doc = seekJson(net, {
-      param: opts.get("--param") as string,
-      probe: opts.get("--probe") as string,
-      low: numberOption(opts, "--low") as number,
-      high: numberOption(opts, "--high") as number,
-      target: numberOption(opts, "--target") as number,
-    });
-    if (json) io.out(JSON.stringify(doc, null, 2));
+    const specs =
+      given.length > 0
+        ? [
+            {
+              param: opts.get("--param") as string,
+              probe: opts.get("--probe") as string,
+              low: numberOption(opts, "--low") as number,
+              high: numberOption(opts, "--high") as number,
+              target: numberOption(opts, "--target") as number,
+            },
+          ]
+        : net.seeks.map((s) => ({ param: s.param, probe: s.probe, low: s.from, high: s.to, target: s.target }));
+    if (specs.length === 0)
+      throw new UsageError("the file has no seek statement: give --param, --low, --high, --probe and --target");
+    const docs = specs.map((spec) => seekJson(net, spec));
+    const ok = docs.every((d) => d.ok);
+    if (json) io.out(JSON.stringify(given.length > 0 ? docs[0] : { network: net.name, ok, seeks: docs }, null, 2));
     else
-      for (const p of doc.points) {
-        const at = Object.entries(p.at).map(([k, v]) => `${k} = ${v}`);
-        const where = at.length ? ` at ${at.join(", ")}` : "";
-        io.out(
-          p.ok
-            ? `${doc.param} = ${p.value}${where}: ${doc.probe} = ${p.achieved} (${p.iterations} solves)`
-            : `no ${doc.param}${where}: ${p.message}`,
-        );
-      }
-    return doc.ok ? EXIT_OK : EXIT_ERRORS;
+      for (const doc of docs)
+        for (const p of doc.points) {
+          const at = Object.entries(p.at).map(([k, v]) => `${k} = ${v}`);
+          const where = at.length ? ` at ${at.join(", ")}` : "";
+          io.out(
+            p.ok
+              ? `${doc.param} = ${p.value}${where}: ${doc.probe} = ${p.achieved} (${p.iterations} solves)`
+              : `no ${doc.param}${where}: ${p.message}`,
+          );
+        }
+    return ok ? EXIT_OK : EXIT_ERRORS;
   },
 };
 

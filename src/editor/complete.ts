@@ -18,6 +18,7 @@ import {
   CHECK_OPTIONS,
   CHECKS,
   MISMATCH_OPTIONS,
+  SEEK_OPTIONS,
   MODEL_DETAIL,
   MODELS,
   NODE_PINS,
@@ -269,7 +270,16 @@ type Slot =
   | { kind: "devicePattern" }
   | { kind: "checkOption"; check: SyntaxNode }
   | { kind: "sweepParam" }
-  | { kind: "keywords"; words: readonly string[] };
+  | { kind: "keywords"; words: readonly string[] }
+  | { kind: "seekParam" }
+  | { kind: "seekOption" };
+
+const SEEK_DETAIL: Record<(typeof SEEK_OPTIONS)[number], string> = {
+  from: "lower bound of the param",
+  to: "upper bound of the param",
+  measure: "the probe to bring to the target",
+  target: "the value the probe should reach",
+};
 
 function ancestor(node: SyntaxNode | null, name: string): SyntaxNode | null {
   for (let n = node; n; n = n.parent) if (n.name === name) return n;
@@ -361,6 +371,8 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
   if (name === "set") return { kind: "setting" };
   if (name === "sweep") return { kind: "sweepParam" };
   if (name === "mismatch") return { kind: "keywords", words: MISMATCH_OPTIONS };
+  if (name === "seek") return { kind: "seekParam" };
+  if (name === "Identifier" && parent?.name === "SeekStatement") return { kind: "seekOption" };
   if (name === "VariableName" && parent?.name === "ForStatement") return { kind: "keywords", words: ["in"] };
   if (name === "Identifier" && parent?.name === "SweepStatement")
     return { kind: "keywords", words: ["from", "values"] };
@@ -388,6 +400,7 @@ function slotAt(state: EditorState, tree: Tree, anchor: number): Slot | null {
     }
   }
   if (statement.name === "MismatchStatement") return { kind: "keywords", words: MISMATCH_OPTIONS };
+  if (statement.name === "SeekStatement") return { kind: "seekOption" };
   if (statement.name === "ExpectStatement") {
     const check = ancestor(prev, "DeviceCheck");
     if (check) return { kind: "checkOption", check };
@@ -456,6 +469,10 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
       ];
     case "keywords":
       return slot.words.map((w) => ({ label: w, type: "keyword", apply: `${w} ` }));
+    case "seekParam":
+      return names.params.map((p) => ({ label: p.name, type: "variable", detail: "param" }));
+    case "seekOption":
+      return SEEK_OPTIONS.map((w) => ({ label: w, type: "keyword", detail: SEEK_DETAIL[w], apply: `${w}=` }));
     case "node": {
       const seen = new Set<string>();
       const out: Completion[] = [];

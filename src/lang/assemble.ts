@@ -23,6 +23,7 @@ export function assembleNetwork(cx: Elaboration): Network {
     mismatch: cx.mismatch,
     bindings: cx.values.bindings,
     expectations: [],
+    seeks: cx.seeks.map(({ probeFrom: _f, probeTo: _t, ...s }) => s),
   };
   net.probes = cx.probes.map((p) => resolveProbe(p, net));
   net.expectations = cx.expectations.map((x) => resolveExpectation(x, net));

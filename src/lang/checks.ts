@@ -16,10 +16,27 @@ import { compatible, describeDim, KELVIN } from "./units";
 /** Every check that needs the finished tables (before the network is assembled). */
 export function checkElaboration(cx: Elaboration, syntaxErrors: number): void {
   resolveProbes(cx);
+  checkSeeks(cx);
   checkSweeps(cx);
   checkModel(cx);
   checkNodeNames(cx);
   checkConnections(cx, syntaxErrors);
+}
+
+/** Each seek names a probe of the network and a param that is not swept. */
+function checkSeeks(cx: Elaboration): void {
+  const probes = new Set(cx.probes.map((p) => p.name));
+  for (const s of cx.seeks) {
+    if (!probes.has(s.probe))
+      cx.sink.error(
+        s.probeFrom,
+        s.probeTo,
+        `seek measures '${s.probe}', which is not a probe`,
+        suggest(s.probe, probes.values()) ?? "measure=NAME names a probe NAME = EXPR of this network",
+      );
+    if (cx.sweeps.some((w) => w.param === s.param))
+      cx.sink.error(s.span.from, s.span.to, `'${s.param}' is swept and sought: the search sets it, drop one of them`);
+  }
 }
 
 /** Checks what every probe and expectation reads against the finished tables. */

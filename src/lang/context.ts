@@ -7,7 +7,7 @@ import { DiagnosticSink, LineIndex } from "./diagnostics";
 import type { PendingExpectation } from "./expectations";
 import { ShapeTable } from "./names";
 import type { PendingRead } from "./reads";
-import type { Mismatch, Span } from "./network";
+import type { Mismatch, Seek, Span } from "./network";
 import { DeviceColumns, InjectColumns, Namespace, NodeColumns } from "./tables";
 import type { Dim } from "./units";
 import { Values } from "./values";
@@ -66,6 +66,8 @@ export class Elaboration {
   readonly sweeps: PendingSweep[] = [];
   readonly expectations: PendingExpectation[] = [];
   mismatch: Mismatch | null = null;
+  /** `seek` statements; the probe's name is checked once every probe is known (checks.ts). */
+  readonly seeks: (Seek & { probeFrom: number; probeTo: number })[] = [];
   /** The `network NAME` statement's name. */
   name: string | null = null;
 

@@ -97,6 +97,8 @@ class Elaborator {
         return statements.sweep(s);
       case T.MismatchStatement:
         return statements.mismatch(s);
+      case T.SeekStatement:
+        return statements.seek(s);
       case T.ExpectStatement:
         return this.expectations.statement(s);
       default: {

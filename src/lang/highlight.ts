@@ -2,7 +2,7 @@ import { styleTags, tags as t } from "@lezer/highlight";
 
 /** Highlighting of the Runnel syntax tree: one table, read by the generated parser. */
 export const runnelHighlighting = styleTags({
-  "network set param rail nfet pfet inject probe sweep mismatch expect": t.definitionKeyword,
+  "network set param rail nfet pfet inject probe sweep mismatch expect seek": t.definitionKeyword,
   "for in": t.controlKeyword,
   "from to step points log values runs seed avt devices below": t.keyword,
   "and or not": t.logicOperator,

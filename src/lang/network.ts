@@ -231,6 +231,18 @@ export interface Network {
   mismatch: Mismatch | null;
   bindings: Binding[];
   expectations: Expectation[];
+  /** `seek` statements: goal-seeks of a param (src/solver/goal-seek.ts). */
+  seeks: Seek[];
+}
+
+/** `seek PARAM from=A to=B measure=PROBE target=T`: the value of PARAM in [A, B] at which PROBE equals T. */
+export interface Seek {
+  param: string;
+  from: number;
+  to: number;
+  probe: string;
+  target: number;
+  span: Span;
 }
 
 export interface ElaborationResult {

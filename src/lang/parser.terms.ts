@@ -69,4 +69,9 @@ export const
   CheckOption = 93,
   devices = 94,
   NamePattern = 95,
-  below = 96
+  below = 96,
+  SeekStatement = 97,
+  seek = 98,
+  SeekOption = 99,
+  measure = 100,
+  target = 101

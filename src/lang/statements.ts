@@ -16,6 +16,8 @@ import { compatible, describeDim, DIMENSIONLESS, type Dim, LOOSE, VOLT } from ".
 import type { ValueTpl } from "./values";
 import { DEFAULT_SEED, isSetting, MODELS, SETTING_NAMES, SETTINGS } from "./vocabulary";
 
+const SEEK_EXAMPLE = "seek vh from=600m to=900m measure=lambda target=8";
+
 /** Reads ahead what the top level declares: params, plain rail names, settings, swept names. */
 export function prescan(statements: SyntaxNode[], src: (n: SyntaxNode) => string, out: Declarations): void {
   for (const s of statements) {
@@ -341,6 +343,94 @@ export class Statements {
         );
     }
     this.cx.sweeps.push({ param, nameFrom: n.from, nameTo: n.to, values, log, span, dim, dimFrom, dimTo });
+  }
+
+  /** `seek PARAM from=A to=B measure=PROBE target=T`: the probe's name is checked with the other reads (checks.ts). */
+  seek(s: SyntaxNode): void {
+    const { sink, values } = this.cx;
+    const kw = s.firstChild!;
+    const id = s.getChild("Identifier");
+    if (!id) return;
+    const param = this.cx.src(id);
+    const p = values.params.get(param);
+    if (!p) {
+      sink.error(
+        id.from,
+        id.to,
+        `seek of unknown param '${param}'`,
+        suggest(param, values.params.keys()) ?? "declare it with param NAME = VALUE",
+      );
+      return;
+    }
+    const seen = new Map<string, number>();
+    let probe: { name: string; from: number; to: number } | null = null;
+    let ok = true;
+    for (let o = s.getChild("SeekOption"); o; o = o.nextSibling) {
+      if (o.type.id !== T.SeekOption) continue;
+      const key = o.firstChild!;
+      const k = this.cx.src(key);
+      if (seen.has(k) || (k === "measure" && probe)) {
+        sink.error(key.from, key.to, `'${k}' is given twice`);
+        ok = false;
+        continue;
+      }
+      const node = exprChild(o);
+      if (!node) {
+        ok = false;
+        continue;
+      }
+      if (k === "measure") {
+        if (node.type.id !== T.Identifier) {
+          sink.error(node.from, node.to, "measure= takes the name of a probe", SEEK_EXAMPLE);
+          ok = false;
+        } else probe = { name: this.cx.src(node), from: node.from, to: node.to };
+        continue;
+      }
+      const dim = k === "target" ? null : p.dim;
+      const what = k === "target" ? "the probe's target value" : `a bound of ${param}`;
+      const t = this.compiler.value(node, [], dim, what);
+      if (!t) {
+        ok = false;
+        continue;
+      }
+      const sw = values.sweptDep(t);
+      if (sw) {
+        sink.error(t.from, t.to, `${k} cannot depend on '${sw}', which is swept`);
+        ok = false;
+        continue;
+      }
+      seen.set(k, values.valueOf(t));
+    }
+    for (const k of ["from", "to"] as const)
+      if (ok && !seen.has(k)) {
+        sink.error(kw.from, kw.to, `seek needs '${k}=', a bound of ${param}`, SEEK_EXAMPLE);
+        ok = false;
+      }
+    if (ok && !probe) {
+      sink.error(kw.from, kw.to, "seek needs 'measure=PROBE', the probe to bring to the target", SEEK_EXAMPLE);
+      ok = false;
+    }
+    if (ok && !seen.has("target")) {
+      sink.error(kw.from, kw.to, "seek needs 'target=T', the value the probe should reach", SEEK_EXAMPLE);
+      ok = false;
+    }
+    if (!ok || !probe) return;
+    const from = seen.get("from")!;
+    const to = seen.get("to")!;
+    if (!(from < to)) {
+      sink.error(s.from, s.to, `seek's bracket is empty: from=${fmt(from)} must be below to=${fmt(to)}`);
+      return;
+    }
+    this.cx.seeks.push({
+      param,
+      from,
+      to,
+      probe: probe.name,
+      target: seen.get("target")!,
+      span: { from: s.from, to: s.to },
+      probeFrom: probe.from,
+      probeTo: probe.to,
+    });
   }
 
   /** `mismatch runs N [seed S] avt A`: at most once. */

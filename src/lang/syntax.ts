@@ -16,6 +16,7 @@ export const STATEMENT_WORDS = [
   "sweep",
   "mismatch",
   "expect",
+  "seek",
 ] as const;
 
 const STATEMENT_HINT = `a statement starts with one of: ${STATEMENT_WORDS.join(", ")}`;
@@ -34,6 +35,7 @@ const EXPRESSIONS = new Set([
   "NotExpression",
 ]);
 const COMPARISONS = "comparisons: <, <=, >, >=, == (equal), != (not equal)";
+const SEEK_EXAMPLE = "seek vh from=600m to=900m measure=lambda target=8";
 const CHECK_EXAMPLE = "for example saturated devices=out*, or weak devices=* below=0.05";
 
 interface Token {
@@ -271,6 +273,13 @@ function explain(err: SyntaxNode, text: string): Explained {
       return expected("a value, ',' or ']'");
     case "MismatchStatement":
       return expected("'runs N', 'seed S' or 'avt A'", "mismatch runs N seed S avt A");
+    case "SeekStatement":
+      if (prevName === "seek") return expected("the param to search after 'seek'", SEEK_EXAMPLE);
+      return expected("'from=A', 'to=B', 'measure=PROBE' or 'target=T'", SEEK_EXAMPLE);
+    case "SeekOption":
+      if (afterValue) return expected("'from=A', 'to=B', 'measure=PROBE' or 'target=T'", SEEK_EXAMPLE);
+      if (prevText !== "=") return expected(`'=' after '${prevText}'`, SEEK_EXAMPLE);
+      return expected("a value after '='");
     case "MismatchOption":
       if (afterValue) return expected("'runs N', 'seed S' or 'avt A'", "mismatch runs N seed S avt A");
       return expected(`a value after '${prevText}'`);

@@ -107,6 +107,8 @@ export const PIN_DETAIL: Readonly<Record<string, string>> = {
 
 /** The options of `mismatch`, in the order they are usually written. */
 export const MISMATCH_OPTIONS = ["runs", "seed", "avt"] as const;
+/** The options of `seek`, in the order they are usually written. */
+export const SEEK_OPTIONS = ["from", "to", "measure", "target"] as const;
 /** The seed of a `mismatch` statement without one. */
 export const DEFAULT_SEED = 1;
 

@@ -9,6 +9,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { main } from "../../scripts/runnel";
+import { elaborate } from "../../src/lang/index";
 import { thermalVoltage } from "../../src/lang/point";
 import type { SeekJson, SensitivityJson } from "../../src/solver/design-json";
 
@@ -122,5 +123,40 @@ describe("runnel seek", () => {
       /no dv: share does not cross 0\.9 for dv in \[0, 0\.01\]: over the 9 points tried it stays within \[0\.5000\d*, 0\.5672/,
     );
     expect(run(["seek", file(PAIR), "--param", "dv"]).err).toMatch(/missing --low/);
+  });
+});
+
+describe("the seek statement (docs/language.md, Goal-seek and sensitivities)", () => {
+  it("elaborates into the network and runnel seek FILE runs it", () => {
+    const text = `${PAIR}seek dv from=0 to=200m measure=share target=0.9\n`;
+    const net = elaborate(text).network!;
+    expect(net.seeks).toEqual([
+      { param: "dv", from: 0, to: 0.2, probe: "share", target: 0.9, span: expect.any(Object) as unknown },
+    ]);
+    const r = run(["seek", file(text), "--json"]);
+    expect(r.code).toBe(0);
+    const doc = JSON.parse(r.out) as { ok: boolean; seeks: SeekJson[] };
+    const p = doc.seeks[0].points[0];
+    expect(p.ok && Math.abs(p.value - (thermalVoltage(300.15) * Math.log(9)) / 0.7)).toBeLessThan(1e-9);
+    expect(run(["seek", file(PAIR)]).err).toMatch(/the file has no seek statement/);
+  });
+
+  it.each([
+    ["seek nope from=0 to=1 measure=share target=1", "seek of unknown param 'nope'"],
+    ["seek dv from=0 to=1 measure=shar target=1", "seek measures 'shar', which is not a probe"],
+    ["seek dv from=1 to=0 measure=share target=1", "seek's bracket is empty: from=1 must be below to=0"],
+    ["seek dv from=0 to=1 target=1", "seek needs 'measure=PROBE', the probe to bring to the target"],
+    ["seek dv from=0 measure=share target=1", "seek needs 'to=', a bound of dv"],
+    ["seek dv from=0 to=1V measure=share target=1 from=2", "'from' is given twice"],
+  ])("%s: %s", (line, message) => {
+    const r = elaborate(`${PAIR}${line}\n`);
+    expect(r.diagnostics.filter((d) => d.severity === "error").map((d) => d.message)).toContain(message);
+  });
+
+  it("a broken seek line gets a syntax message with an example", () => {
+    const r = elaborate(`${PAIR}seek dv from 0\n`);
+    expect(
+      r.diagnostics.some((d) => /seek vh from=600m to=900m measure=lambda target=8/.test(d.hint ?? d.message)),
+    ).toBe(true);
   });
 });
