@@ -19,6 +19,7 @@ import { decodePoint } from "@/app/lib/point-codec";
 import { buildAccountsFixture, type AccountsFixture, type Who } from "../helpers/accounts";
 import { apiCaller } from "../helpers/api";
 import { SITE } from "../helpers/request-context";
+import { chainText } from "@/bench/workloads";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
@@ -298,19 +299,7 @@ describe("runs through the API", () => {
   it("a network whose names are larger than a plan carries gets its layout from the run's first chunk", async () => {
     // 60,000 outputs and 59,999 links: over a megabyte of names, more than PLAN_LAYOUT_BYTES (app/lib/text-check.ts).
     const n = 60_000;
-    const text = `network wide_chain
-rail gh = 0.7
-rail gv = 0.6
-rail vd = 1
-rail gnd = 0
-for k in 0..${n - 1} {
-  nfet o{k} gate=gv source=n{k} drain=vd
-}
-for k in 0..${n - 2} {
-  nfet h{k} gate=gh source=n{k} drain=n{k+1}
-}
-inject spot from=n${n / 2} to=gnd value=1n
-`;
+    const text = chainText(n);
     const { planNetworkText } = await import("@/app/lib/text-check");
     expect(planNetworkText(text, 1)!.layout).toBeNull();
     const { commitId } = await newNetwork("Wide chain", text);
