@@ -176,6 +176,10 @@ describe("sweeps and loops", () => {
     expect(labels("sweep vb from 1 t|")).toEqual(["to"]);
     expect(labels("sweep vb from 1 to 2 s|")).toEqual(["step", "points"]);
     expect(labels("mismatch runs 10 s|")).toEqual(["runs", "seed", "avt"]);
+    // seek: a param after the word, then its options (written key=).
+    expect(labels(`${NET}seek |`, true)).toEqual(["vb", "sc"]);
+    expect(labels(`${NET}seek vb |`, true)).toEqual(["from", "to", "measure", "target"]);
+    expect(completeAt(`${NET}seek vb from=1 t|`)?.options.find((o) => o.label === "to")?.apply).toBe("to=");
     expect(labels("for k i|")).toEqual(["in"]);
   });
 
