@@ -186,29 +186,17 @@ function selection(net: Network, opts: Map<string, string>): Selection {
 
 /** Parses `runnel solve`'s arguments: one FILE, flags, and options that take a value. */
 function solveArgs(args: string[]): { file: string; opts: Map<string, string> } {
-  const flags = ["--json", "--ndjson", "--probes-only", "--strict"];
-  const valued = ["--csv", "--nodes", "--rails", "--devices"];
-  const opts = new Map<string, string>();
-  const files: string[] = [];
-  for (let k = 0; k < args.length; k++) {
-    const a = args[k];
-    const eq = a.indexOf("=");
-    const name = a.startsWith("--") && eq > 0 ? a.slice(0, eq) : a;
-    if (flags.includes(name)) opts.set(name, "");
-    else if (valued.includes(name)) {
-      const v = eq > 0 ? a.slice(eq + 1) : args[++k];
-      if (v === undefined || v.startsWith("--")) throw new UsageError(`${name} needs a value`);
-      opts.set(name, v);
-    } else if (a.startsWith("--")) throw new UsageError(`unknown option ${a}`);
-    else files.push(a);
-  }
-  if (files.length !== 1) throw new UsageError(files.length === 0 ? "missing FILE" : "give exactly one FILE");
+  const { file, opts } = fileAndOptions(
+    args,
+    ["--json", "--ndjson", "--probes-only", "--strict"],
+    ["--csv", "--nodes", "--rails", "--devices"],
+  );
   const formats = ["--json", "--ndjson", "--csv"].filter((f) => opts.has(f));
   if (formats.length > 1) throw new UsageError(`give one of ${formats.join(", ")}`);
   const table = opts.get("--csv");
   if (table !== undefined && !(CSV_TABLES as readonly string[]).includes(table))
     throw new UsageError(`--csv: a table is one of ${CSV_TABLES.join(", ")}, not '${table}'`);
-  return { file: files[0], opts };
+  return { file, opts };
 }
 
 /** After the first 2 s of a run, a line on stderr every 2 s: how far it is and how long the rest will take at this pace. */
