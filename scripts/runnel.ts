@@ -547,7 +547,13 @@ const sensitivity: Subcommand = {
         for (const [k, v] of Object.entries(p.params))
           io.out(`  param ${k}: dQ/d${k} ${v === null ? "-" : v.toExponential(3)}`);
         if (p.budget) {
-          io.out(`  mismatch (first order, avt ${p.budget.avt} V·µm): sigma ${p.budget.sigma.toExponential(3)}`);
+          const mc = p.budget.monte_carlo;
+          const beside = mc
+            ? `; Monte Carlo ${mc.sigma.toExponential(3)} ± ${mc.standard_error.toExponential(1)} over ${mc.samples} samples`
+            : "";
+          io.out(
+            `  mismatch (first order, avt ${p.budget.avt} V·µm): sigma ${p.budget.sigma.toExponential(3)}${beside}`,
+          );
           for (const d of p.budget.devices.slice(0, 10))
             io.out(`    ${d.name.padEnd(12)} ${(d.share * 100).toFixed(1)} %`);
           for (const g of p.budget.groups)

@@ -6,6 +6,7 @@
 
 import type { Network } from "../lang/network";
 import { type GoalSeekResult, goalSeekSweep } from "./goal-seek";
+import { solveNetwork } from "./sweep";
 import { adjointPoint, mismatchBudget, paramSensitivities, probeSensitivities } from "./sensitivity";
 
 export interface DeviceSensitivityJson {
@@ -21,6 +22,11 @@ export interface BudgetJson {
   sigma: number;
   devices: { name: string; share: number; sigma: number }[];
   groups: { pattern: string; devices: number; share: number; sigma: number }[];
+  /**
+   * When the file's own `mismatch` has this avt: the Monte Carlo σ of the probe over its samples at the file's
+   * own point (sample standard deviation) and that σ's standard error, σ/√(2(n−1)) (normal samples; common practice).
+   */
+  monte_carlo: { samples: number; sigma: number; standard_error: number } | null;
 }
 
 export interface ProbeSensitivityJson {
@@ -54,6 +60,7 @@ export function sensitivityJson(
   const names = net.devices.names;
   try {
     const sens = probeSensitivities(r.point, opts.probes);
+    const mc = avt !== null && net.mismatch && net.mismatch.avt === avt ? monteCarlo(net) : null;
     const params = paramSensitivities(net);
     return {
       ok: true,
@@ -84,6 +91,7 @@ export function sensitivityJson(
               share: g.share,
               sigma: Math.sqrt(g.variance),
             })),
+            monte_carlo: mc?.get(s.probe) ?? null,
           },
         };
       }),
@@ -140,4 +148,29 @@ function pointJson(at: Record<string, number>, r: GoalSeekResult): SeekJson["poi
     ...(r.range ? { range: r.range } : {}),
     ...(r.at !== undefined ? { value: r.at } : {}),
   };
+}
+
+/** Monte Carlo σ of every probe over the file's mismatch samples at its own point (other sweeps left out). */
+function monteCarlo(net: Network): Map<string, { samples: number; sigma: number; standard_error: number }> {
+  const values = new Map<string, number[]>(net.probes.map((p) => [p.name, []]));
+  solveNetwork(
+    { ...net, sweeps: [] },
+    {
+      keepPoints: false,
+      reuseArrays: true,
+      onPoint: (p) => {
+        if (!p.ok) return;
+        for (const [k, v] of Object.entries(p.probes)) if (Number.isFinite(v)) values.get(k)?.push(v);
+      },
+    },
+  );
+  const out = new Map<string, { samples: number; sigma: number; standard_error: number }>();
+  for (const [k, v] of values) {
+    const n = v.length;
+    if (n < 2) continue;
+    const mean = v.reduce((a, b) => a + b, 0) / n;
+    const sigma = Math.sqrt(v.reduce((a, b) => a + (b - mean) ** 2, 0) / (n - 1));
+    out.set(k, { samples: n, sigma, standard_error: sigma / Math.sqrt(2 * (n - 1)) });
+  }
+  return out;
 }

@@ -66,6 +66,18 @@ describe("runnel sensitivity", () => {
     expect(ln.budget!.groups[0].share + ln.budget!.groups[1].share).toBeCloseTo(1, 12);
   });
 
+  it("with the file's mismatch: the Monte Carlo σ and its standard error beside the first-order σ, within 3 of them", () => {
+    const r = run(["sensitivity", file(`${PAIR}mismatch runs 2000 seed 5 avt 5m\n`), "--json", "--probes", "lnratio"]);
+    expect(r.code).toBe(0);
+    const b = (JSON.parse(r.out) as SensitivityJson).probes[0].budget!;
+    expect(b.avt).toBe(0.005);
+    expect(b.monte_carlo!.samples).toBe(2000);
+    expect(Math.abs(b.monte_carlo!.sigma - b.sigma)).toBeLessThan(3 * b.monte_carlo!.standard_error);
+    // Another avt than the file's: no Monte Carlo to compare with.
+    const other = run(["sensitivity", file(`${PAIR}mismatch runs 20 seed 5 avt 5m\n`), "--json", "--avt", "3m"]);
+    expect((JSON.parse(other.out) as SensitivityJson).probes[0].budget!.monte_carlo).toBeNull();
+  });
+
   it("a network with errors prints its diagnostics; unknown probes and bad numbers are usage errors", () => {
     expect(run(["sensitivity", file("network x\nrail a = \n"), "--json"]).code).toBe(1);
     expect(run(["sensitivity", file(PAIR), "--probes", "nope"]).code).toBe(2);
