@@ -84,5 +84,15 @@ describe("sweep-aware comparison", () => {
     s.to.probes[0].values.forEach((v) => expect(v).toBeCloseTo(0.5, 9));
     s.relative[0].forEach((r) => expect(r).toBeCloseTo(-0.5, 9));
     expect(s.distributions).toBeUndefined();
+    // only the probes asked for are sent (the page plots a few at a time), with every name beside them
+    expect(s.names).toEqual(s.to.probes.map((p) => p.name));
+    const one = comparisonSeries(h.first.id, h.second.id, "sweep iin", 0, h.db, [s.names[0]])!;
+    expect(one.names).toEqual(s.names);
+    expect(one.to.probes.map((p) => p.name)).toEqual([s.names[0]]);
+    expect(one.from.probes.map((p) => p.name)).toEqual([s.names[0]]);
+    expect(one.relative).toEqual([s.relative[0]]);
+    const none = comparisonSeries(h.first.id, h.second.id, "sweep iin", 0, h.db, ["no_such_probe"])!;
+    expect(none.to.probes).toEqual([]);
+    expect(none.relative).toEqual([]);
   });
 });

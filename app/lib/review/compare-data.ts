@@ -182,6 +182,8 @@ export interface ProbeDistribution {
 export interface SeriesAnswer {
   analysis: string;
   shape: AnalysisShape;
+  /** Every probe of the newer run, in the network's order (the series below hold only the probes asked for). */
+  names: string[];
   from: SideSeries;
   to: SideSeries;
   /** Per probe, the relative change (to − from)/|from| at each of the newer run's points (null where unmatched). */
@@ -193,15 +195,22 @@ export interface SeriesAnswer {
 
 const finiteOrNull = (v: number) => (Number.isFinite(v) ? v : null);
 
-function side(runId: string, c: AnalysisComparison, which: "from" | "to", d: Q): SideSeries {
+function side(
+  runId: string,
+  c: AnalysisComparison,
+  which: "from" | "to",
+  wanted: ((name: string) => boolean) | null,
+  d: Q,
+): SideSeries {
   const layout = c[which].layout;
   const cols = probeColumns(runId, layout.probes.length, d);
+  const shown = layout.probes.map((name, j) => ({ name, j })).filter(({ name }) => !wanted || wanted(name));
   return {
     runId,
     sweeps: layout.sweeps.map((s) => ({ param: s.param, unit: paramUnit(layout, s.param), values: s.values })),
     samples: layout.mismatch?.runs ?? 1,
     points: Array.from(cols.stored),
-    probes: layout.probes.map((name, j) => ({
+    probes: shown.map(({ name, j }) => ({
       name,
       unit: layout.probeUnits?.[j] ?? null,
       values: Array.from(cols.values[j], finiteOrNull),
@@ -212,7 +221,9 @@ function side(runId: string, c: AnalysisComparison, which: "from" | "to", d: Q):
 /**
  * Both runs' probe series of one analysis, the relative change per matched
  * point, and for Monte Carlo the distributions at grid point `grid` (default 0,
- * the first combination of the swept values). Null when not compared.
+ * the first combination of the swept values). `probes` names the probes to
+ * send (all when absent): a page plots a few at a time, and every probe of a
+ * 1,000-point sweep of a 64-tap row is megabytes. Null when not compared.
  */
 export function comparisonSeries(
   fromCommitId: string,
@@ -220,13 +231,16 @@ export function comparisonSeries(
   analysis: string,
   grid = 0,
   d: Q = db(),
+  probes?: string[],
 ): SeriesAnswer | null {
   const p = pairedRuns(fromCommitId, toCommitId, d).find((x) => x.analysis === analysis);
   if (!p?.fromRunId || !p.toRunId) return null;
   const c = runComparison(p.fromRunId, p.toRunId, {}, d);
   if (!c) return null;
-  const from = side(p.fromRunId, c, "from", d);
-  const to = side(p.toRunId, c, "to", d);
+  const asked = probes ? new Set(probes) : null;
+  const wanted = asked ? (name: string) => asked.has(name) : null;
+  const from = side(p.fromRunId, c, "from", wanted, d);
+  const to = side(p.toRunId, c, "to", wanted, d);
   const fromAt = new Map(from.points.map((pt, i) => [storedPointKey(c.from.layout, pt), i]));
   const toKeys = to.points.map((pt) => storedPointKey(c.to.layout, pt));
   const relative = to.probes.map((probe) => {
@@ -238,7 +252,14 @@ export function comparisonSeries(
       return x === 0 ? (v === 0 ? 0 : null) : (v - x) / Math.abs(x);
     });
   });
-  const answer: SeriesAnswer = { analysis, shape: shapeOf(c.to.layout), from, to, relative };
+  const answer: SeriesAnswer = {
+    analysis,
+    shape: shapeOf(c.to.layout),
+    names: c.to.layout.probes,
+    from,
+    to,
+    relative,
+  };
   if (answer.shape === "mismatch") {
     answer.grid = grid;
     answer.distributions = to.probes.map((probe) => {

@@ -160,6 +160,23 @@ export function commitBadge(commitId: string, d: Q = db()): CommitBadge {
   return badge;
 }
 
+/** Results diffs of finished runs (they never change, so an entry never goes stale), newest use last. */
+const RESULTS_CACHE_SIZE = 8;
+const resultsCache = new Map<string, ResultsDiff>();
+
+function cachedResults(key: string, compute: () => ResultsDiff): ResultsDiff {
+  const hit = resultsCache.get(key);
+  if (hit) {
+    resultsCache.delete(key);
+    resultsCache.set(key, hit);
+    return hit;
+  }
+  const made = compute();
+  if (resultsCache.size >= RESULTS_CACHE_SIZE) resultsCache.delete(resultsCache.keys().next().value!);
+  resultsCache.set(key, made);
+  return made;
+}
+
 export interface Comparison {
   from: { id: string; message: string; authorName: string; createdAt: number };
   to: { id: string; message: string; authorName: string; createdAt: number };
@@ -197,6 +214,16 @@ export function compareCommits(
     networkId: a.networkId,
     text: diffText(a.text, b.text),
     runs: analyses.map((an) => ({ analysis: an, fromRunId: ra.get(an)?.id ?? null, toRunId: rb.get(an)?.id ?? null })),
-    results: diffResults(tables(ra), tables(rb), options),
+    // the page and GET /api/compare ask again for the same pair: the runs' tables are decoded and diffed once
+    results: cachedResults(
+      JSON.stringify([
+        [...ra.values()].map((r) => r.id),
+        [...rb.values()].map((r) => r.id),
+        { ...DEFAULT_TOLERANCE, ...options.tolerance },
+        options.includeWithin ?? false,
+        options.limit ?? null,
+      ]),
+      () => diffResults(tables(ra), tables(rb), options),
+    ),
   };
 }

@@ -131,7 +131,7 @@ export function EntityTable({ query, analysis, kind, quantity, label, total }: E
         </thead>
         <tbody className="tabular font-mono">
           {data?.rows.map((r) => (
-            <tr key={r.name} data-entity={r.name} className="border-b border-stone-100">
+            <tr key={r.name} data-entity={r.name} data-abs={r.maxAbs ?? ""} className="border-b border-stone-100">
               <td className="px-2 py-0.5">{r.name}</td>
               <td className="px-2 py-0.5 text-right text-stone-600">
                 {formatWithUnit(r.fromAtAbs, r.unit)} → {formatWithUnit(r.toAtAbs, r.unit)}

@@ -53,9 +53,10 @@ function wantsLog(values: (number | null)[], unit: string | null): boolean {
 
 export function ProbeOverlays({ from, to, analysis, order, labels }: ProbeOverlaysProps) {
   const [grid, setGrid] = useState(0);
-  const key = `/api/compare/series?${new URLSearchParams({ from, to, analysis, grid: String(grid) })}`;
-  const { data, error } = useSWR<SeriesAnswer>(key, getJson, { keepPreviousData: true });
   const [picked, setPicked] = useState<string[]>(() => order.slice(0, SHOWN));
+  // only the curves drawn are fetched: every probe of a 1,000-point sweep of a 64-tap row is megabytes
+  const key = `/api/compare/series?${new URLSearchParams({ from, to, analysis, grid: String(grid), probes: [...picked].sort().join(",") })}`;
+  const { data, error } = useSWR<SeriesAnswer>(key, getJson, { keepPreviousData: true });
   const [inner, setInner] = useState<number[]>([]);
   if (error)
     return (
@@ -64,7 +65,7 @@ export function ProbeOverlays({ from, to, analysis, order, labels }: ProbeOverla
       </p>
     );
   if (!data) return <p className="text-xs text-stone-500">Loading the curves…</p>;
-  const names = data.to.probes.map((p) => p.name);
+  const names = data.names;
   if (names.length === 0) return <p className="text-xs text-stone-500">This network has no probes to plot.</p>;
   return (
     <div className="space-y-3" data-testid="overlays">

@@ -10,19 +10,29 @@ const Query = z.object({
   to: z.string().min(1, "name the newer commit"),
   analysis: z.string().min(1, "name the analysis"),
   grid: z.coerce.number().int().min(0).max(20_000).optional(),
+  probes: z.string().max(20_000, "name at most 20,000 characters of probes").optional(),
 });
 
 /**
- * GET /api/compare/series?from=C1&to=C2&analysis=A[&grid=G] (workspace.read):
+ * GET /api/compare/series?from=C1&to=C2&analysis=A[&grid=G][&probes=a,b] (workspace.read):
  * both runs' probe values at every point (the overlay plots), the relative
  * change per matched point, and for Monte Carlo runs the distributions of the
- * samples at grid point G with the two-sample Kolmogorov–Smirnov test.
+ * samples at grid point G with the two-sample Kolmogorov–Smirnov test; only
+ * for the probes named in `probes` (comma-separated) when given, every probe
+ * otherwise. `names` lists every probe either way.
  */
 export function GET(request: Request) {
   return handle(async () => {
     const q = parseInput(Query, queryOf(request));
     const { from, to } = commitPairAccess(await requestActor(request), "workspace.read", q.from, q.to);
-    const s = comparisonSeries(from.id, to.id, q.analysis, q.grid ?? 0);
+    const s = comparisonSeries(
+      from.id,
+      to.id,
+      q.analysis,
+      q.grid ?? 0,
+      undefined,
+      q.probes === undefined ? undefined : q.probes.split(",").filter(Boolean),
+    );
     if (!s) throw new RequestError(404, `"${q.analysis}" has no finished run in both commits`);
     return Response.json(s);
   });
