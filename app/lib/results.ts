@@ -38,6 +38,10 @@ export interface RunLayout extends PointNames {
   network: string | null;
   sweeps: { param: string; values: number[]; log: boolean }[];
   mismatch: { runs: number; seed: number; avt: number } | null;
+  /** Unit symbol of each probe's values, null where not known (absent in runs stored before units were kept). */
+  probeUnits?: (string | null)[];
+  /** Unit symbol of each of `params` ("K" for temp), null where not known (absent in older runs). */
+  paramUnits?: (string | null)[];
 }
 
 /** Limits checked before a run is queued (POST /api/runs answers 422 with the numbers). */
@@ -60,6 +64,8 @@ export function layoutOf(net: Network): RunLayout {
     params: [...net.params.map((p) => p.name), "temp"],
     sweeps: net.sweeps.map((s) => ({ param: s.param, values: s.values, log: s.log })),
     mismatch: net.mismatch ? { runs: net.mismatch.runs, seed: net.mismatch.seed, avt: net.mismatch.avt } : null,
+    probeUnits: net.probes.map((p) => p.unit ?? null),
+    paramUnits: [...net.params.map((p) => p.unit ?? null), "K"],
   };
 }
 

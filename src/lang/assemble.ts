@@ -8,6 +8,7 @@ import { evaluateNumber, LayeredScope } from "./expr";
 import type { Expectation, Network, Probe, ProbeContext, Settings, Sweep } from "./network";
 import { pointScope } from "./point";
 import { readName, resolveReads } from "./reads";
+import { unitSymbol } from "./units";
 
 export function assembleNetwork(cx: Elaboration): Network {
   const net: Network = {
@@ -25,6 +26,11 @@ export function assembleNetwork(cx: Elaboration): Network {
     expectations: [],
     seeks: cx.seeks.map(({ probeFrom: _f, probeTo: _t, ...s }) => s),
   };
+  // a param declared as a bare number takes the unit its sweep's values carry (`sweep vh from 650mV to 850mV …`)
+  for (const s of cx.sweeps) {
+    const def = net.params.find((p) => p.name === s.param);
+    if (def && def.unit == null) def.unit = unitSymbol(s.dim);
+  }
   net.probes = cx.probes.map((p) => resolveProbe(p, net));
   net.expectations = cx.expectations.map((x) => resolveExpectation(x, net));
   return net;
@@ -71,6 +77,7 @@ function resolveProbe(p: PendingProbe, net: Network): Probe {
   return {
     name: p.name,
     span: p.span,
+    unit: unitSymbol(p.dim),
     evaluate(ctx: ProbeContext, params: Readonly<Record<string, number>>, settings: Settings): number {
       if (params !== lastParams || settings !== lastSettings) {
         lastScope = pointScope(net, { ...params, temp: settings.temp });

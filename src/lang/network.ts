@@ -56,6 +56,8 @@ export interface ParamDef {
   name: string;
   /** Value at the default point. */
   value: number;
+  /** Unit symbol of its value (units.ts `unitSymbol`: "V", "A", "" for a ratio); null or absent when not known. */
+  unit?: string | null;
   span: Span;
   /**
    * Names this param's expression depends on, transitively (params, "temp",
@@ -130,6 +132,8 @@ export interface ProbeContext {
 export interface Probe {
   name: string;
   span: Span;
+  /** Unit symbol of its values (units.ts `unitSymbol`); null or absent when not known. */
+  unit?: string | null;
   /** Evaluates the probe for one solved point; `params` holds that point's param values. */
   evaluate(ctx: ProbeContext, params: Readonly<Record<string, number>>, settings: Settings): number;
 }

@@ -12,7 +12,7 @@ import type { Model, ParamDef } from "./network";
 import * as T from "./parser.terms";
 import { thermalVoltage } from "./point";
 import { suggest } from "./suggest";
-import { compatible, describeDim, DIMENSIONLESS, type Dim, LOOSE, VOLT } from "./units";
+import { compatible, describeDim, DIMENSIONLESS, type Dim, LOOSE, unitSymbol, VOLT } from "./units";
 import type { ValueTpl } from "./values";
 import { DEFAULT_SEED, isSetting, MODELS, SETTING_NAMES, SETTINGS } from "./vocabulary";
 
@@ -202,7 +202,7 @@ export class Statements {
       return;
     }
     const fn = t.fn;
-    const def: ParamDef = { name, value: v, span: { from: d.from, to: d.to } };
+    const def: ParamDef = { name, value: v, span: { from: d.from, to: d.to }, unit: unitSymbol(t.dim) };
     if (t.pointDeps && fn) {
       def.dependsOn = t.pointDeps;
       def.evaluate = (scope) => evaluateNumber(fn, scope);
