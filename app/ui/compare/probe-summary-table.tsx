@@ -6,10 +6,13 @@ import type { EntityRow } from "@/app/lib/review/sweep-compare";
 import { formatChange, formatPointRef, formatRelative, formatWithUnit } from "./value-format";
 
 type Key = "abs" | "rel" | "beyond" | "name";
+/** Rows shown before "show all": a 64-tap row has 66 probes, and the overlays must not sink under a wall of rows. */
+const FIRST = 12;
 const mag = (v: number | null) => (v === null || Number.isNaN(v) ? -1 : Math.abs(v));
 
 export function ProbeSummaryTable({ rows, caption }: { rows: EntityRow[]; caption: string }) {
   const [sort, setSort] = useState<Key>("abs");
+  const [all, setAll] = useState(false);
   const sorted = [...rows].sort((a, b) =>
     sort === "name"
       ? a.name.localeCompare(b.name, "en", { numeric: true })
@@ -45,7 +48,7 @@ export function ProbeSummaryTable({ rows, caption }: { rows: EntityRow[]; captio
           </tr>
         </thead>
         <tbody className="tabular font-mono">
-          {sorted.map((r) => (
+          {(all ? sorted : sorted.slice(0, FIRST)).map((r) => (
             <tr
               key={r.name}
               data-probe={r.name}
@@ -73,6 +76,13 @@ export function ProbeSummaryTable({ rows, caption }: { rows: EntityRow[]; captio
           ))}
         </tbody>
       </table>
+      {rows.length > FIRST ? (
+        <button type="button" onClick={() => setAll((a) => !a)} className="mt-1 text-xs text-moss-700 hover:underline">
+          {all
+            ? `show the first ${FIRST} only`
+            : `show all ${rows.length.toLocaleString("en-US")} probes (${(rows.length - FIRST).toLocaleString("en-US")} more)`}
+        </button>
+      ) : null}
     </div>
   );
 }
