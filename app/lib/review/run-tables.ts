@@ -163,7 +163,7 @@ export function keyProbes(
   runId: string,
   limit = 4,
   d: Q = db(),
-): { name: string; first: number; min: number; max: number }[] {
+): { name: string; unit: string | null; first: number; min: number; max: number }[] {
   const layout = runLayout(runId, d);
   if (!layout || layout.probes.length === 0) return [];
   const rows = d
@@ -183,7 +183,13 @@ export function keyProbes(
       if (v < min) min = v;
       if (v > max) max = v;
     });
-    return { name, first, min: rows.length ? min : NaN, max: rows.length ? max : NaN };
+    return {
+      name,
+      unit: layout.probeUnits?.[j] ?? null,
+      first,
+      min: rows.length ? min : NaN,
+      max: rows.length ? max : NaN,
+    };
   });
 }
 

@@ -299,7 +299,7 @@ export interface RunCard {
   pointsTotal?: number;
   commitId?: string;
   commitMessage?: string;
-  probes?: { name: string; first: number; min: number; max: number }[];
+  probes?: { name: string; unit?: string | null; first: number; min: number; max: number }[];
 }
 
 /** Member handles of a workspace, with names (mention completion and resolution). */

@@ -9,7 +9,10 @@ import Link from "next/link";
 import { useEffect, useRef, useState } from "react";
 import { createPortal } from "react-dom";
 import type { RunCard as RunCardData } from "@/app/lib/review/threads";
-import { formatNumber } from "@/app/lib/format";
+import { formatEng, formatNumber } from "@/app/lib/format";
+
+/** A probe's value on a run card: with its unit when the run knows it ("596 pA"), four figures otherwise. */
+const value = (v: number, unit: string | null | undefined) => (unit ? formatEng(v, unit, 4) : formatNumber(v));
 
 export function RunCard({ card }: { card: RunCardData | undefined }) {
   if (!card || !card.found) {
@@ -35,7 +38,7 @@ export function RunCard({ card }: { card: RunCardData | undefined }) {
       </span>
       {card.probes?.map((p) => (
         <span key={p.name} className="tabular font-mono">
-          {p.name} = {p.min === p.max ? formatNumber(p.first) : `${formatNumber(p.min)} … ${formatNumber(p.max)}`}
+          {p.name} = {p.min === p.max ? value(p.first, p.unit) : `${value(p.min, p.unit)} … ${value(p.max, p.unit)}`}
         </span>
       ))}
       {card.commitMessage ? <span className="truncate text-stone-500">on “{card.commitMessage}”</span> : null}
