@@ -15,8 +15,11 @@ import { fileURLToPath } from "node:url";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
 
-/** Builds `entry` into `out` (both relative to the repository); writes `out`.inputs.json beside it. */
-export async function bundle(entry, out) {
+/**
+ * Builds `entry` into `out` (both relative to the repository); writes `out`.inputs.json beside it. `options` adds
+ * esbuild options (the workers add a source map).
+ */
+export async function bundle(entry, out, options = {}) {
   const { build } = await import("esbuild");
   const outfile = path.join(root, out);
   const result = await build({
@@ -36,6 +39,7 @@ export async function bundle(entry, out) {
     },
     metafile: true,
     logLevel: "warning",
+    ...options,
   });
   fs.writeFileSync(`${outfile}.inputs.json`, JSON.stringify(Object.keys(result.metafile.inputs)));
   return outfile;

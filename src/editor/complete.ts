@@ -26,6 +26,7 @@ import {
   pinsOf,
   SETTING_NAMES,
   SETTINGS,
+  WEAK_INVERSION_IC,
 } from "../lang/vocabulary";
 
 /** Pins to offer when the element kind is not known (a statement being typed). */
@@ -523,7 +524,10 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
         label: o,
         type: "property",
         apply: `${o}=`,
-        detail: o === "devices" ? "name pattern: out*, lat*, *" : "inversion coefficient bound (default 0.1)",
+        detail:
+          o === "devices"
+            ? "name pattern: out*, lat*, *"
+            : `inversion coefficient bound (default ${WEAK_INVERSION_IC})`,
       }));
     }
     case "condition":

@@ -157,7 +157,7 @@ export class Expectations {
           t.from,
           t.to,
           `below must be a positive inversion coefficient, not ${fmt(x)}`,
-          "weak inversion is IC below 0.1",
+          `weak inversion is IC below ${WEAK_INVERSION_IC}`,
         );
         ok = false;
       } else below = x;

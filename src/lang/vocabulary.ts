@@ -131,7 +131,7 @@ export const CHECKS = ["saturated", "unsaturated", "weak", "reverse"] as const s
 export const CHECK_DETAIL: Readonly<Record<CheckKind, string>> = {
   saturated: "every device saturated: V_DS > 4 U_T",
   unsaturated: "every device unsaturated by design: V_DS ≤ 4 U_T",
-  weak: "every device in weak inversion: IC below `below` (default 0.1; needs ispec and vt0)",
+  weak: `every device in weak inversion: IC below \`below\` (default ${WEAK_INVERSION_IC}; needs ispec and vt0)`,
   reverse: "no source or drain junction forward-biased",
 };
 
