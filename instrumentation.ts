@@ -11,8 +11,10 @@ export async function register(): Promise<void> {
   try {
     await Promise.all([warmPool(), warmInteractivePool()]);
     const r = recoverRuns();
-    if (r.interrupted || r.requeued)
-      console.log(`runnel: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again`);
+    if (r.interrupted || r.requeued || r.resumed)
+      console.log(
+        `runnel: ${r.interrupted} run(s) marked interrupted, ${r.requeued} queued again, ${r.resumed} resumed on the queue`,
+      );
   } catch (e) {
     // A database that cannot be opened is reported by the start script and /api/health; do not crash start-up here.
     console.error(`runnel: could not recover runs: ${(e as Error).message}`);

@@ -3,8 +3,9 @@
  * native and worker-pool packages) into plain-JS files piscina loads (Node 20
  * cannot load a .ts worker): the run worker (app/lib/run-worker.ts →
  * .build/run-worker.mjs), the interactive worker (app/lib/interactive-worker.ts
- * → .build/interactive-worker.mjs) and the export worker (app/lib/export-worker.ts → .build/export-worker.mjs),
- * with the options of scripts/lib/bundle.mjs and a source map.
+ * → .build/interactive-worker.mjs), the export worker (app/lib/export-worker.ts → .build/export-worker.mjs)
+ * and a queue worker's chunk processor and solver thread (worker/processor.ts → .build/chunk-processor.mjs,
+ * BullMQ's sandboxed processor; worker/solver.ts → .build/chunk-solver.mjs), with the options of scripts/lib/bundle.mjs and a source map.
  * `node scripts/build-worker.mjs` builds them all; importing `buildWorker()` does the same.
  */
 import path from "node:path";
@@ -23,6 +24,8 @@ export async function buildWorker() {
     bundle("app/lib/run-worker.ts", path.relative(root, WORKER_OUT), LINKED),
     bundle("app/lib/interactive-worker.ts", path.relative(root, INTERACTIVE_WORKER_OUT), LINKED),
     bundle("app/lib/export-worker.ts", path.relative(root, EXPORT_WORKER_OUT), LINKED),
+    bundle("worker/processor.ts", ".build/chunk-processor.mjs", LINKED),
+    bundle("worker/solver.ts", ".build/chunk-solver.mjs", LINKED),
   ]);
   return WORKER_OUT;
 }

@@ -42,7 +42,14 @@ export class FairQueue {
   private readonly heap: TaggedChunk[] = [];
   private clock = 0;
 
-  constructor(private readonly perWorkspace: () => number) {}
+  /**
+   * `hold`: keep admitted chunks for `next()` (the local pool); false when the caller takes every admitted chunk
+   * at once (a Redis queue, which orders them by their tags as priorities).
+   */
+  constructor(
+    private readonly perWorkspace: () => number,
+    private readonly hold = true,
+  ) {}
 
   /** Adds a queued run; returns the chunks of the runs this admits (none when its workspace is at its cap). */
   add(run: QueuedRun): TaggedChunk[] {
@@ -130,7 +137,7 @@ export class FairQueue {
       for (const chunk of run.chunks) {
         tag += 2;
         const c = { runId: run.id, chunk, tag };
-        this.push(c);
+        if (this.hold) this.push(c);
         out.push(c);
       }
       this.lastTag.set(ws, tag);

@@ -74,3 +74,30 @@ export function fresh(body: unknown, init: ResponseInit = {}): Response {
   headers.set("cache-control", "no-store");
   return Response.json(body, { ...init, headers });
 }
+
+/** The request's body as bytes, read as a stream and refused (413) as soon as it passes `max` bytes. */
+export async function readBytes(request: Request, max: number): Promise<Uint8Array> {
+  const length = Number(request.headers.get("content-length") ?? "0");
+  if (length > max) throw new RequestError(413, `the body is too large: ${length} bytes, the limit is ${max}`);
+  if (!request.body) return new Uint8Array(0);
+  const parts: Uint8Array[] = [];
+  let size = 0;
+  const reader = request.body.getReader();
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > max) {
+      await reader.cancel().catch(() => undefined);
+      throw new RequestError(413, `the body is too large: the limit is ${max} bytes`);
+    }
+    parts.push(value);
+  }
+  const out = new Uint8Array(size);
+  let at = 0;
+  for (const p of parts) {
+    out.set(p, at);
+    at += p.byteLength;
+  }
+  return out;
+}

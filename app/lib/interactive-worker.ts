@@ -9,7 +9,7 @@ import { releaseWhenIdle } from "./worker-memory";
 
 export type InteractiveTask =
   | { kind: "check"; text: string }
-  | { kind: "plan"; text: string; workers: number }
+  | { kind: "plan"; text: string; workers: number; extraPointMs?: number }
   | { kind: "csv"; bytes: Uint8Array };
 export type InteractiveResult<T extends InteractiveTask> = T extends { kind: "check" }
   ? TextCheck
@@ -23,7 +23,7 @@ export default function interactiveTask(task: InteractiveTask): TextCheck | Plan
       case "check":
         return checkNetworkText(task.text);
       case "plan":
-        return planNetworkText(task.text, task.workers);
+        return planNetworkText(task.text, task.workers, task.extraPointMs);
       case "csv":
         return parseMeasurementCsv(task.bytes);
     }

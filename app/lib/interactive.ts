@@ -99,8 +99,13 @@ export function checkTextInWorker(text: string, signal?: AbortSignal): Promise<T
 }
 
 /** The plan of a run of `text` (null when it does not elaborate), made in the interactive pool. */
-export function planTextInWorker(text: string, workers: number, signal?: AbortSignal): Promise<PlanText | null> {
-  return runInteractive({ kind: "plan", text, workers }, signal);
+export function planTextInWorker(
+  text: string,
+  workers: number,
+  signal?: AbortSignal,
+  extraPointMs = 0,
+): Promise<PlanText | null> {
+  return runInteractive({ kind: "plan", text, workers, extraPointMs }, signal);
 }
 
 /** A measurement CSV parsed in the interactive pool. */

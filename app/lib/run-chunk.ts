@@ -32,6 +32,8 @@ export type StopKind = typeof STOP_NONE | typeof STOP_CANCEL | typeof STOP_TIME 
 
 /** Test hooks, honoured only when RUNNEL_TEST_FAULTS=1 (see DEVELOPERS.md). */
 export type TestFault = "throw" | "slow" | "stuck";
+/** What the "slow" hook adds to every point. */
+export const SLOW_FAULT_MS = 25;
 
 export interface ChunkRange {
   start: number;
@@ -88,7 +90,7 @@ export function solveChunk(net: Network, layout: RunLayout, range: ChunkRange, o
     reuseArrays: true,
     shouldStop: () => {
       if (lastIndex >= range.end - 1) return true;
-      if (opts.fault === "slow") sleep(25);
+      if (opts.fault === "slow") sleep(SLOW_FAULT_MS);
       stopped = opts.stop();
       return stopped !== STOP_NONE;
     },

@@ -30,9 +30,10 @@ export interface RunPlan {
   chunks: ChunkRange[];
 }
 
-export function planRun(net: Network, workers: number): RunPlan {
+/** `extraPointMs`: time a test hook adds to every point ("slow": 25 ms), so that such runs split too. */
+export function planRun(net: Network, workers: number, extraPointMs = 0): RunPlan {
   const points = pointCount(net);
-  const pointMs = pointCostMs(net);
+  const pointMs = pointCostMs(net) + extraPointMs;
   return {
     points,
     valuesPerPoint: valuesPerPoint(net),

@@ -247,9 +247,7 @@ function settle(run: LiveRun): void {
   s.executing++;
   void (async () => {
     try {
-      const task: RunTask = { kind: "finalize", runId: run.id, dbFile: databasePath() };
-      if (run.terminated) task.forced = run.terminated;
-      const r = (await (await piscina()).run(task)) as RunTaskResult | null;
+      const r = await finalizeInPool(run.id, run.terminated ?? undefined);
       // Every chunk was handed out and ended, yet the run is not complete: never leave it open.
       if (r === null) finishRun(run.id, "failed", "the run ended with points missing (a chunk did not finish)");
     } catch (e) {
@@ -267,6 +265,16 @@ function settle(run: LiveRun): void {
       void dispatch();
     }
   })();
+}
+
+/** Ends a run from its chunks in a pool thread (finalizeRun: merged figures, state, commit diff); null when incomplete. */
+export async function finalizeInPool(
+  runId: string,
+  forced?: { state: RunState; reason: string },
+): Promise<RunTaskResult | null> {
+  const task: RunTask = { kind: "finalize", runId, dbFile: databasePath() };
+  if (forced) task.forced = forced;
+  return (await (await piscina()).run(task)) as RunTaskResult | null;
 }
 
 export function workerMessage(e: unknown): string {

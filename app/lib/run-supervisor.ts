@@ -19,7 +19,7 @@ import { planTextInWorker } from "./interactive";
 import type { Q } from "@/db";
 import { getCommit } from "./networks";
 import { RUN_LIMITS } from "./results";
-import type { TestFault } from "./run-chunk";
+import { SLOW_FAULT_MS, type TestFault } from "./run-chunk";
 import { ensureChunks } from "./run-exec";
 import {
   cancelLocal,
@@ -37,6 +37,7 @@ import {
   interruptRunningRuns,
   openChunksOf,
   queuedRunIds,
+  runsIn,
   queuedRunsOf,
   requestCancel,
   runDispatchInfo,
@@ -68,19 +69,35 @@ function sup(): Supervisor {
  * `queued` ones again, oldest first. Runs once per process (instrumentation's
  * register() and the first use of the supervisor both call it).
  */
-export function recoverRuns(d: Q = db()): { interrupted: number; requeued: number } {
+export function recoverRuns(d: Q = db()): { interrupted: number; requeued: number; resumed: number } {
   const s = sup();
-  if (s.recovered) return { interrupted: 0, requeued: 0 };
+  if (s.recovered) return { interrupted: 0, requeued: 0, resumed: 0 };
   s.recovered = true;
+  if (queueMode() === "redis") {
+    // Queue workers keep solving while the app restarts: running runs resume from their open chunks.
+    const running = runsIn("running", d);
+    const queued = runsIn("queued", d);
+    for (const r of [...running, ...queued]) ensureChunks(r.id, undefined, d);
+    void import("./run-queue-redis")
+      .then((q) => q.recoverRedis(running, queued))
+      .catch((e: unknown) => console.error(`runnel: could not recover runs on the queue: ${(e as Error).message}`));
+    return { interrupted: 0, requeued: queued.length, resumed: running.length };
+  }
   const interrupted = interruptRunningRuns("the server stopped while this run was running; start it again", d);
   const queued = queuedRunIds(d);
-  for (const id of queued) enqueue(id, d);
-  return { interrupted, requeued: queued.length };
+  for (const id of queued) void enqueue(id, d);
+  return { interrupted, requeued: queued.length, resumed: 0 };
+}
+
+/** Where runs execute: "local" (the in-process pool, the default) or "redis" (RUNNEL_QUEUE=redis, REDIS_URL). */
+export function queueMode(): "local" | "redis" {
+  return process.env.RUNNEL_QUEUE === "redis" ? "redis" : "local";
 }
 
 /** Starts the pool's first thread ahead of the first run (the server calls this at start-up). */
 export async function warmPool(): Promise<void> {
   await warmLocalPool();
+  if (queueMode() === "redis") await (await import("./run-queue-redis")).redisReady(2_000);
 }
 
 /** Forgets the process's recovery and queue (tests simulate a server restart with it). */
@@ -90,12 +107,14 @@ export function resetSupervisorForTests(): void {
 }
 
 /** Resolves when no run is queued or executing in this process (tests, shutdown). */
-export function whenIdle(): Promise<void> {
-  return whenLocalIdle();
+export async function whenIdle(): Promise<void> {
+  if (queueMode() === "redis") await (await import("./run-queue-redis")).whenRedisIdle();
+  await whenLocalIdle();
 }
 
-/** Closes the pool (tests and scripts). */
+/** Closes the pool and the queue's connections (tests and scripts). */
 export async function closePool(): Promise<void> {
+  if (queueMode() === "redis") await (await import("./run-queue-redis")).closeRedisQueue();
   await closeLocalPool();
 }
 
@@ -112,9 +131,11 @@ export interface StartRunInput {
 /**
  * Queues a run of every analysis (sweep grid × mismatch samples) of a commit.
  * 422 when the commit has errors or the run would exceed RUN_LIMITS (with the numbers);
- * 429 when the user already has `queuedRunsPerUser()` runs queued.
+ * 429 when the user already has `queuedRunsPerUser()` runs queued; 503 when the Redis queue is not reachable.
  */
 export async function startRun(input: StartRunInput, d: Q = db()): Promise<RunRow> {
+  const redis = queueMode() === "redis" ? await import("./run-queue-redis") : null;
+  if (redis) await redis.assertQueueUp();
   const commit = getCommit(input.commitId, d);
   if (!commit) throw new RequestError(404, "not found");
   if (!commit.ok) {
@@ -127,7 +148,12 @@ export async function startRun(input: StartRunInput, d: Q = db()): Promise<RunRo
     );
   }
   // Elaboration and planning (up to millions of devices) run in the interactive pool, off the request thread.
-  const plan = await planTextInWorker(commit.text, concurrency(), input.signal);
+  const plan = await planTextInWorker(
+    commit.text,
+    concurrency(),
+    input.signal,
+    input.fault === "slow" ? SLOW_FAULT_MS : 0,
+  );
   if (!plan) throw new RequestError(422, "the commit does not elaborate to a network");
   const points = plan.points;
   const values = points * plan.valuesPerPoint;
@@ -178,17 +204,19 @@ export async function startRun(input: StartRunInput, d: Q = db()): Promise<RunRo
       d,
     ),
   );
-  enqueue(id, d, input.fault);
+  await enqueue(id, d, input.fault);
   return getRun(id, d)!;
 }
 
 /** Hands a queued run (with its chunk plan, made now when it has none) to the run queue. */
-function enqueue(runId: string, d: Q, fault?: TestFault): void {
+async function enqueue(runId: string, d: Q, fault?: TestFault): Promise<void> {
   if (!sup().recovered) recoverRuns(d);
   const info = runDispatchInfo(runId, d);
   if (!info || info.state !== "queued") return;
   ensureChunks(runId, undefined, d);
-  enqueueLocal({ id: runId, workspaceId: info.workspaceId, chunks: openChunksOf(runId, d) }, fault);
+  const run = { id: runId, workspaceId: info.workspaceId, chunks: openChunksOf(runId, d) };
+  if (queueMode() === "redis") await (await import("./run-queue-redis")).enqueueRedis(run, fault);
+  else enqueueLocal(run, fault);
 }
 
 /**
@@ -197,13 +225,14 @@ function enqueue(runId: string, d: Q, fault?: TestFault): void {
  * kept), and is terminated if it has not stopped after STOP_GRACE_MS.
  * 409 for a run that has already ended.
  */
-export function cancelRun(runId: string, d: Q = db()): RunRow {
+export async function cancelRun(runId: string, d: Q = db()): Promise<RunRow> {
   const run = getRun(runId, d);
   if (!run) throw new RequestError(404, "not found");
   if ((FINAL_RUN_STATES as readonly string[]).includes(run.state))
     throw new RequestError(409, `the run has already ended (${run.state})`, { state: run.state });
   requestCancel(runId, d);
-  const where = cancelLocal(runId);
+  const where =
+    queueMode() === "redis" ? await (await import("./run-queue-redis")).cancelRedis(runId) : cancelLocal(runId);
   if (where !== "live" && run.state === "queued") finishRun(runId, "canceled", "canceled before it started", d);
   return getRun(runId, d)!;
 }

@@ -136,6 +136,16 @@ export function interruptRunningRuns(reason: string, d: Q = db()): number {
     .run().changes;
 }
 
+/** Runs in a state, oldest first, with their workspace. */
+export function runsIn(state: RunState, d: Q = db()): { id: string; workspaceId: string }[] {
+  return d
+    .select({ id: runs.id, workspaceId: runs.workspaceId })
+    .from(runs)
+    .where(eq(runs.state, state))
+    .orderBy(asc(runs.createdAt))
+    .all();
+}
+
 /** Ids of `queued` runs, oldest first. */
 export function queuedRunIds(d: Q = db()): string[] {
   return d

@@ -50,11 +50,14 @@ export interface PlanText {
   chunks: ChunkRange[];
 }
 
-/** The plan of a run of `text` for `workers` workers; null when the text does not elaborate to a network. */
-export function planNetworkText(text: string, workers: number): PlanText | null {
+/**
+ * The plan of a run of `text` for `workers` workers; null when the text does not elaborate to a network.
+ * `extraPointMs`: see planRun.
+ */
+export function planNetworkText(text: string, workers: number, extraPointMs = 0): PlanText | null {
   const result = elaborate(text);
   if (!result.network) return null;
-  const plan = planRun(result.network, workers);
+  const plan = planRun(result.network, workers, extraPointMs);
   const stored = storedLayout(plan.layout);
   return {
     points: plan.points,

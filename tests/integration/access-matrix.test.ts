@@ -22,7 +22,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import { comments, invitations, runs, threads } from "@/db/schema";
+import { comments, invitations, runs, threads, workerTokens } from "@/db/schema";
 import { saveMeasurement } from "@/app/lib/review/measurement-store";
 import { dividerHistory } from "../helpers/review-fixtures";
 import { createNetwork } from "@/app/lib/networks";
@@ -60,6 +60,21 @@ interface ActionRow {
 
 const S = WORKSPACE.slug;
 const PW = "a-long-enough-password";
+
+/** A workspace worker token in the case's database, for the row that revokes one. */
+const withWorkerToken: Setup = (db) => {
+  db.insert(workerTokens)
+    .values({
+      id: "wtok_case",
+      workspaceId: WORKSPACE.id,
+      name: "lab machine",
+      prefix: "runnel_worker_abcdef",
+      tokenHash: secretHash("runnel_worker_case"),
+      createdBy: "u_owner",
+    })
+    .run();
+  return { workerTokenId: "wtok_case" };
+};
 
 /** A pending invitation in the case's database, for rows that withdraw or accept one. */
 const withInvitation: Setup = (db) => {
@@ -184,6 +199,21 @@ const ROUTES: RouteRow[] = [
                                                                                                                                                 expect: [401, 404, 403, 403, 403, 201] },
   { file: "app/api/w/[slug]/invitations/[id]/route.ts", method: "DELETE", url: `/api/w/${S}/invitations/{invitationId}`, params: { slug: S, id: "{invitationId}" }, setup: withInvitation,
                                                                                                                                                 expect: [401, 404, 403, 403, 403, 204] },
+  { file: "app/api/w/[slug]/worker-tokens/route.ts",    method: "GET",    url: `/api/w/${S}/worker-tokens`, params: { slug: S },              expect: [401, 404, 403, 403, 403, 200] },
+  { file: "app/api/w/[slug]/worker-tokens/route.ts",    method: "POST",   url: `/api/w/${S}/worker-tokens`, params: { slug: S }, body: { name: "lab machine" },
+                                                                                                                                                expect: [401, 404, 403, 403, 403, 201] },
+  { file: "app/api/w/[slug]/worker-tokens/[id]/route.ts", method: "DELETE", url: `/api/w/${S}/worker-tokens/{workerTokenId}`, params: { slug: S, id: "{workerTokenId}" }, setup: withWorkerToken,
+                                                                                                                                                expect: [401, 404, 403, 403, 403, 204] },
+  // the worker API takes worker tokens only: a session or a personal API token is 401 for everyone
+  { file: "app/api/worker/hello/route.ts",              method: "GET",    url: "/api/worker/hello",                                           expect: [401, 401, 401, 401, 401, 401] },
+  { file: "app/api/worker/claims/route.ts",             method: "POST",   url: "/api/worker/claims", body: { runId: "{runId}", chunk: 0 }, setup: withRun,
+                                                                                                                                                expect: [401, 401, 401, 401, 401, 401] },
+  { file: "app/api/worker/commits/[id]/route.ts",       method: "GET",    url: "/api/worker/commits/{commitId}", params: { id: "{commitId}" }, setup: withRun,
+                                                                                                                                                expect: [401, 401, 401, 401, 401, 401] },
+  { file: "app/api/worker/chunks/[run]/[chunk]/points/route.ts", method: "POST", url: "/api/worker/chunks/{runId}/0/points?attempt=1", params: { run: "{runId}", chunk: "0" }, setup: withRun,
+                                                                                                                                                expect: [401, 401, 401, 401, 401, 401] },
+  { file: "app/api/worker/chunks/[run]/[chunk]/end/route.ts", method: "POST", url: "/api/worker/chunks/{runId}/0/end", params: { run: "{runId}", chunk: "0" }, setup: withRun, body: { outcome: "stopped", attempt: 1 },
+                                                                                                                                                expect: [401, 401, 401, 401, 401, 401] },
   // workbench: networks, commits, runs, results
   { file: "app/api/w/[slug]/networks/route.ts",         method: "GET",    url: `/api/w/${S}/networks`, params: { slug: S },                   expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/w/[slug]/networks/route.ts",         method: "POST",   url: `/api/w/${S}/networks`, params: { slug: S }, body: { name: "Mirror bank C", text: DIVIDER },

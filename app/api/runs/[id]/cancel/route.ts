@@ -9,6 +9,6 @@ type Ctx = { params: Promise<{ id: string }> };
 export function POST(request: Request, ctx: Ctx) {
   return handle(async () => {
     const { run } = runAccess(await requestActor(request), "run.start", (await ctx.params).id);
-    return fresh({ run: cancelRun(run.id) });
+    return fresh({ run: await cancelRun(run.id) });
   });
 }
