@@ -163,4 +163,25 @@ describe("review routes", () => {
     ).json();
     expect(list.measurements).toEqual([]);
   });
+
+  it("a stored upload is answered with its summary as listed, not its values", async () => {
+    const h = setup();
+    const { POST, GET } = await import("@/app/api/networks/[id]/measurements/route");
+    const rows = ["iin [nA], ratio [1]", ...Array.from({ length: 5000 }, (_, k) => `${k + 1}, 0.5`)].join("\n");
+    const fd = new FormData();
+    fd.set("file", new File([rows], "sweep.csv"));
+    const headers = new Headers({ origin: SITE, host: new URL(SITE).host, cookie: fixture.actors.designer!.cookie });
+    const res = await POST(
+      new Request(`${SITE}/api/networks/${h.network.id}/measurements`, { method: "POST", headers, body: fd }),
+      ctx(h.network.id),
+    );
+    expect(res.status).toBe(201);
+    const body = (await res.json()) as { measurement: Record<string, unknown> };
+    expect(body.measurement).toMatchObject({ name: "sweep.csv", xName: "iin", rows: 5000 });
+    expect(JSON.stringify(body)).not.toContain("values");
+    const list = await (
+      await GET(request("designer", "GET", `/api/networks/${h.network.id}/measurements`), ctx(h.network.id))
+    ).json();
+    expect(list.measurements).toEqual([body.measurement]);
+  });
 });

@@ -3,7 +3,7 @@
  * parses (app/lib/review/measurements.ts), and compared with a run's curve.
  * Functions take already-authorised arguments.
  */
-import { and, asc, desc, eq } from "drizzle-orm";
+import { and, asc, desc, eq, type SQL } from "drizzle-orm";
 import { db } from "@/db";
 import { measurements, networks, runPoints, runs, users } from "@/db/schema";
 import { RequestError } from "../http";
@@ -37,7 +37,12 @@ export interface MeasurementView {
  * Parses and stores an uploaded CSV. Refused (422, nothing stored) when any
  * row or column is bad; the error names the first problem, `errors` lists up to 20.
  */
-export function saveMeasurement(
+export function saveMeasurement(input: Parameters<typeof storeMeasurement>[0], d: Q = db()): MeasurementView {
+  return getMeasurement(storeMeasurement(input, d), d)!;
+}
+
+/** Stores a measurement as `saveMeasurement` does; returns its id (nothing is read back). */
+export function storeMeasurement(
   input: {
     networkId: string;
     name: string;
@@ -49,7 +54,7 @@ export function saveMeasurement(
     parsed?: ParseResult;
   },
   d: Q = db(),
-): MeasurementView {
+): string {
   const net = d
     .select({ id: networks.id, workspaceId: networks.workspaceId })
     .from(networks)
@@ -86,7 +91,7 @@ export function saveMeasurement(
       createdBy: input.createdBy,
     })
     .run();
-  return getMeasurement(id, d)!;
+  return id;
 }
 
 export function getMeasurement(id: string, d: Q = db()): MeasurementView | null {
@@ -117,8 +122,17 @@ export function deleteMeasurement(id: string, d: Q = db()): void {
   d.delete(measurements).where(eq(measurements.id, id)).run();
 }
 
+/** One measurement as `listMeasurements` lists it (without its values); null when it does not exist. */
+export function measurementSummary(id: string, d: Q = db()) {
+  return measurementRows(eq(measurements.id, id), d)[0] ?? null;
+}
+
 /** The measurements of a network, newest first (without their values). */
 export function listMeasurements(networkId: string, d: Q = db()) {
+  return measurementRows(eq(measurements.networkId, networkId), d);
+}
+
+function measurementRows(where: SQL, d: Q) {
   return d
     .select({
       id: measurements.id,
@@ -133,7 +147,7 @@ export function listMeasurements(networkId: string, d: Q = db()) {
     })
     .from(measurements)
     .innerJoin(users, eq(users.id, measurements.createdBy))
-    .where(eq(measurements.networkId, networkId))
+    .where(where)
     .orderBy(desc(measurements.createdAt))
     .all()
     .map((m) => ({ ...m, createdAt: m.createdAt.getTime() }));

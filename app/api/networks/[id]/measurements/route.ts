@@ -6,7 +6,7 @@ import { handle, readJson, RequestError } from "@/app/lib/http";
 import { parseCsvInWorker } from "@/app/lib/interactive";
 import { getCommit } from "@/app/lib/networks";
 import { MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
-import { listMeasurements, saveMeasurement } from "@/app/lib/review/measurement-store";
+import { listMeasurements, measurementSummary, storeMeasurement } from "@/app/lib/review/measurement-store";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -23,7 +23,7 @@ export function GET(request: Request, ctx: Ctx) {
  * POST /api/networks/[id]/measurements (measurement.write), multipart form:
  * `file` (CSV, at most 10 MB), optional `name`, `note`, `commitId` (the
  * measured revision); or JSON {csv, name?, note?, commitId?} for scripts
- * (the JSON body limit applies). 201 with the stored measurement; 422 naming row and
+ * (the JSON body limit applies). 201 with the stored measurement as listed (no values); 422 naming row and
  * column of the first problem (and `errors`), nothing stored; 413 when too large.
  */
 export function POST(request: Request, ctx: Ctx) {
@@ -36,10 +36,11 @@ export function POST(request: Request, ctx: Ctx) {
       throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
     // Parsing (up to 10 MB, a million rows) runs in the interactive pool, off the request thread.
     const parsed = await parseCsvInWorker(upload.bytes, request.signal);
-    const m = await retryBusy(() =>
-      saveMeasurement({ networkId: network.id, ...upload, createdBy: actor.userId, parsed }),
+    const id = await retryBusy(() =>
+      storeMeasurement({ networkId: network.id, ...upload, createdBy: actor.userId, parsed }),
     );
-    return Response.json({ measurement: m }, { status: 201 });
+    // Its summary, as listed (a million-row upload is not read back and sent as JSON on the request thread).
+    return Response.json({ measurement: measurementSummary(id) }, { status: 201 });
   });
 }
 
