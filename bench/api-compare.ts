@@ -23,73 +23,23 @@
  * Needs `npm run build` first. Options: --points N (default 1000), --samples N
  * (default 200), --repeat N, --port N (default 3312), --json.
  */
-import { spawn } from "node:child_process";
 import fs from "node:fs";
 import http from "node:http";
-import os from "node:os";
-import path from "node:path";
 import { chromium, type Browser, type Page } from "@playwright/test";
+import { machineLine, numberOption, startBenchServer } from "./api-server";
 
 const argv = process.argv.slice(2);
-const opt = (name: string, dflt: number) => (argv.includes(name) ? Number(argv[argv.indexOf(name) + 1]) : dflt);
-const POINTS = opt("--points", 1000);
-const SAMPLES = opt("--samples", 200);
-const REPEAT = opt("--repeat", 7);
-const PORT = opt("--port", 3312);
+const POINTS = numberOption(argv, "--points", 1000);
+const SAMPLES = numberOption(argv, "--samples", 200);
+const REPEAT = numberOption(argv, "--repeat", 7);
+const PORT = numberOption(argv, "--port", 3312);
 const JSON_OUT = argv.includes("--json");
 const CHROMIUM = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 const GOAL_MS = 1000;
 const GOAL_BYTES = 300_000;
 
-for (const need of [".next/BUILD_ID", ".build/run-worker.mjs"]) {
-  if (!fs.existsSync(need)) {
-    console.error(`bench:api: ${need} is missing: run \`npm run build\` first`);
-    process.exit(1);
-  }
-}
-
-const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-bench-compare-"));
-process.env.RUNNEL_DB = path.join(dir, "runnel.db");
-const { openDatabase, closeDb } = await import("../db/index");
-const { seedDemo } = await import("../scripts/seed/index");
-const { createApiToken } = await import("../app/lib/tokens");
-const seeded = openDatabase(process.env.RUNNEL_DB);
-seedDemo(seeded);
-seeded.$client.close();
-const { token } = createApiToken("u_designer1", "bench");
-closeDb();
-
-const base = `http://127.0.0.1:${PORT}`;
-const server = spawn(process.execPath, ["--import", "tsx", "scripts/lib/next-server.ts", "127.0.0.1", String(PORT)], {
-  env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
-  stdio: ["ignore", "ignore", "inherit"],
-});
+const { base, api, auth, waitRun } = await startBenchServer("bench:api (compare)", PORT);
 let browser: Browser | null = null;
-const stop = () => {
-  server.kill("SIGTERM");
-  fs.rmSync(dir, { recursive: true, force: true });
-};
-process.on("exit", stop);
-
-const auth = { authorization: `Bearer ${token}`, "content-type": "application/json" };
-async function api<T>(method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  const res = await fetch(base + url, {
-    method,
-    headers: auth,
-    body: body === undefined ? undefined : JSON.stringify(body),
-  });
-  return { status: res.status, json: (await res.json()) as T };
-}
-
-for (let i = 0; ; i++) {
-  try {
-    if ((await fetch(`${base}/api/health`)).ok) break;
-  } catch {
-    // not listening yet
-  }
-  if (i > 300) throw new Error("the server did not start");
-  await new Promise((f) => setTimeout(f, 100));
-}
 
 /** The LM-64 edge row (examples/row64.runnel) with `analysis` appended and the outputs' size set to `out`. */
 function rowText(analysis: string, out: string): string {
@@ -103,13 +53,9 @@ function rowText(analysis: string, out: string): string {
 async function runToEnd(commit: string): Promise<string> {
   const started = await api<{ run: { id: string } }>("POST", "/api/runs", { commit, timeLimitSeconds: 3600 });
   if (started.status !== 201) throw new Error(`starting a run: ${started.status} ${JSON.stringify(started.json)}`);
-  for (;;) {
-    const s = await api<{ run: { state: string; reason: string | null } }>("GET", `/api/runs/${started.json.run.id}`);
-    if (s.json.run.state === "done") return started.json.run.id;
-    if (s.json.run.state !== "queued" && s.json.run.state !== "running")
-      throw new Error(`the run ended ${s.json.run.state}: ${s.json.run.reason}`);
-    await new Promise((f) => setTimeout(f, 250));
-  }
+  const state = await waitRun(started.json.run.id, 250);
+  if (state !== "done") throw new Error(`the run ${started.json.run.id} ended ${state}`);
+  return started.json.run.id;
 }
 
 /** Commits `before` as a new network and `after` on top of it, runs both; returns the network slug and commit ids. */
@@ -160,7 +106,7 @@ async function apiFigures(q: { from: string; to: string }, analysis: string) {
     const ms: number[] = [];
     let bytes = 0;
     for (let i = 0; i < REPEAT; i++) {
-      const r = await wireGet(url, { authorization: `Bearer ${token}` });
+      const r = await wireGet(url, { authorization: auth.authorization });
       if (r.status !== 200) throw new Error(`${url}: ${r.status}`);
       ms.push(r.ms);
       bytes = r.bytes;
@@ -270,7 +216,7 @@ for (const c of cases) {
 }
 await browser?.close();
 
-const machine = `${os.cpus()[0]?.model ?? "cpu"} × ${os.availableParallelism()}, node ${process.version}`;
+const machine = machineLine();
 const goal = results.every(
   (r) => !r.page || (r.page.summaryInHtml && r.page.warm.fcp < GOAL_MS && r.page.warm.bytes < GOAL_BYTES),
 );
