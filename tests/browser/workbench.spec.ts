@@ -102,6 +102,8 @@ test("edit, commit, run a sweep, read the plot and the table, export CSV", async
   await page.locator(".cm-content").click();
   await page.keyboard.press("ControlOrMeta+Enter");
   const runs = page.getByRole("list", { name: "Runs" });
+  // starting a run elaborates the commit on the server: on a loaded machine that takes more than the default 5 s
+  await expect(page.getByRole("status")).toHaveText(/^Run of [0-9a-f]{8} queued\.$/, { timeout: 30_000 });
   await expect(runs.locator("[data-state]").first()).toBeVisible();
   await shot(page, "running");
   await expect(runs.locator('[data-state="done"]')).toBeVisible({ timeout: 60_000 });

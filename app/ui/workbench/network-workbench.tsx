@@ -139,11 +139,14 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
     }
   }, [canWrite, viewingHead, dirty, draft, message, network.id, headId, history]);
 
-  const selectedCommit = selected.data?.commit ?? null;
+  /** The selected commit once its own text has arrived (never the previous selection's, just after a commit). */
+  const selectedCommit = selected.data?.commit.id === selectedId ? selected.data.commit : null;
   const runBlocked: string | null = !canRun
     ? "your role cannot start runs"
     : !selectedCommit
-      ? "commit the network first"
+      ? selectedId
+        ? "the commit is still loading"
+        : "commit the network first"
       : viewingHead && dirty
         ? "commit your edits first (Ctrl+S): runs are of commits"
         : !selectedCommit.ok
