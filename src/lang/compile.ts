@@ -119,6 +119,21 @@ export class Compiler {
   }
 
   /**
+   * A statement option's value that must be the same at every point: compiled as `value` does, then refused
+   * (naming `key`) when it depends on a swept param. Returns the value, or null after reporting an error.
+   */
+  fixedValue(node: SyntaxNode, key: string, expect: Dim | null, what: string): { t: ValueTpl; v: number } | null {
+    const t = this.value(node, [], expect, what);
+    if (!t) return null;
+    const sw = this.cx.values.sweptDep(t);
+    if (sw) {
+      this.cx.sink.error(t.from, t.to, `${key} cannot depend on '${sw}', which is swept`);
+      return null;
+    }
+    return { t, v: this.cx.values.valueOf(t) };
+  }
+
+  /**
    * Compiles a value expression. `expect`: the dimension the context needs ("length": no unit symbol at all;
    * null: anything); `what` says what the value is. Returns null after reporting an error.
    */

@@ -142,17 +142,18 @@ export class Expectations {
       }
       const v = exprChild(o);
       if (!v) continue;
-      const t = this.compiler.value(v, [], DIMENSIONLESS, "below is an inversion coefficient, a plain number");
-      if (!t) {
+      const fixed = this.compiler.fixedValue(
+        v,
+        "below",
+        DIMENSIONLESS,
+        "below is an inversion coefficient, a plain number",
+      );
+      if (!fixed) {
         ok = false;
         continue;
       }
-      const sw = values.sweptDep(t);
-      const x = values.valueOf(t);
-      if (sw) {
-        sink.error(t.from, t.to, `below cannot depend on '${sw}', which is swept`);
-        ok = false;
-      } else if (!(x > 0 && Number.isFinite(x))) {
+      const { t, v: x } = fixed;
+      if (!(x > 0 && Number.isFinite(x))) {
         sink.error(
           t.from,
           t.to,

@@ -388,18 +388,12 @@ export class Statements {
       }
       const dim = k === "target" ? null : p.dim;
       const what = k === "target" ? "the probe's target value" : `a bound of ${param}`;
-      const t = this.compiler.value(node, [], dim, what);
-      if (!t) {
+      const fixed = this.compiler.fixedValue(node, k, dim, what);
+      if (!fixed) {
         ok = false;
         continue;
       }
-      const sw = values.sweptDep(t);
-      if (sw) {
-        sink.error(t.from, t.to, `${k} cannot depend on '${sw}', which is swept`);
-        ok = false;
-        continue;
-      }
-      seen.set(k, values.valueOf(t));
+      seen.set(k, fixed.v);
     }
     for (const k of ["from", "to"] as const)
       if (ok && !seen.has(k)) {
@@ -435,7 +429,7 @@ export class Statements {
 
   /** `mismatch runs N [seed S] avt A`: at most once. */
   mismatch(s: SyntaxNode): void {
-    const { sink, limits, values } = this.cx;
+    const { sink, limits } = this.cx;
     const kw = s.firstChild!;
     if (this.cx.mismatch) {
       sink.error(kw.from, kw.to, `mismatch is given twice (first on line ${this.cx.line(this.cx.mismatch.span.from)})`);
@@ -457,18 +451,12 @@ export class Statements {
       const dim = k === "avt" ? VOLT : DIMENSIONLESS;
       const what =
         k === "avt" ? "avt is the Pelgrom coefficient in V·µm (write 3.5m for 3.5 mV·µm)" : `${k} is a plain number`;
-      const t = this.compiler.value(node, [], dim, what);
-      if (!t) {
+      const fixed = this.compiler.fixedValue(node, k, dim, what);
+      if (!fixed) {
         ok = false;
         continue;
       }
-      const sw = values.sweptDep(t);
-      if (sw) {
-        sink.error(t.from, t.to, `${k} cannot depend on '${sw}', which is swept`);
-        ok = false;
-        continue;
-      }
-      const v = values.valueOf(t);
+      const { t, v } = fixed;
       if (k === "runs" && !(Number.isInteger(v) && v >= 1 && v <= limits.maxPoints)) {
         sink.error(t.from, t.to, `runs must be a whole number from 1 to ${limits.maxPoints}, not ${fmt(v)}`);
         ok = false;
