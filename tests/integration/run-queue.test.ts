@@ -16,22 +16,12 @@ import type { DB } from "@/db";
 import { memberships, runs, workspaces } from "@/db/schema";
 import { buildAccountsFixture, type AccountsFixture, type Who } from "../helpers/accounts";
 import { apiCaller } from "../helpers/api";
+import { pairSweep } from "../helpers/pair-sweep";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-const SWEEP = `network split
-param dv = 0
-rail vdd = 1.8
-rail gnd = 0
-rail g1 = 0.7 + dv/2
-rail g2 = 0.7 - dv/2
-nfet m1 gate=g1 source=tail drain=vdd
-nfet m2 gate=g2 source=tail drain=vdd
-inject tail_sink from=tail to=gnd value=20n
-probe ratio = current(m1) / current(m2)
-sweep dv from -40m to 40m points 40
-`;
+const SWEEP = pairSweep(40);
 
 const MIRROR = `network mirror
 set i0 = 0.5p

@@ -23,22 +23,12 @@ import { redisServerPath, startRedis, type PrivateRedis } from "@/scripts/lib/re
 import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
 import { apiCaller } from "../helpers/api";
 import { startRouteServer, WORKER_ROUTES } from "../helpers/route-server";
+import { pairSweep } from "../helpers/pair-sweep";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-const SWEEP = (points: number) => `network split
-param dv = 0
-rail vdd = 1.8
-rail gnd = 0
-rail g1 = 0.7 + dv/2
-rail g2 = 0.7 - dv/2
-nfet m1 gate=g1 source=tail drain=vdd
-nfet m2 gate=g2 source=tail drain=vdd
-inject tail_sink from=tail to=gnd value=20n
-probe ratio = current(m1) / current(m2)
-sweep dv from -40m to 40m points ${points}
-`;
+const SWEEP = pairSweep;
 
 const TOKENS = { a: "runnel_worker_test-a-" + "a".repeat(30), b: "runnel_worker_test-b-" + "b".repeat(30) };
 const hasRedis = redisServerPath() !== null;

@@ -20,22 +20,12 @@ import { buildAccountsFixture, type AccountsFixture, type Who } from "../helpers
 import { apiCaller } from "../helpers/api";
 import { SITE } from "../helpers/request-context";
 import { chainText } from "@/bench/workloads";
+import { pairSweep } from "../helpers/pair-sweep";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-const SWEEP = `network split
-param dv = 0
-rail vdd = 1.8
-rail gnd = 0
-rail g1 = 0.7 + dv/2
-rail g2 = 0.7 - dv/2
-nfet m1 gate=g1 source=tail drain=vdd
-nfet m2 gate=g2 source=tail drain=vdd
-inject tail_sink from=tail to=gnd value=20n
-probe ratio = current(m1) / current(m2)
-sweep dv from -40m to 40m points 9
-`;
+const SWEEP = pairSweep(9);
 /** 200 points, for runs that must still be running when the test acts (with the "slow" hook: about 5 s). */
 const LONG = SWEEP.replace("points 9", "points 200");
 
