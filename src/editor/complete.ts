@@ -11,7 +11,8 @@ import type { Completion, CompletionContext, CompletionResult, CompletionSource 
 import { syntaxTree } from "@codemirror/language";
 import { type EditorState, StateEffect, StateField } from "@codemirror/state";
 import { NodeType, type SyntaxNode, Tree, type TreeBuffer } from "@lezer/common";
-import { BUILTINS, FUNCTIONS, PROBE_FUNCTIONS } from "../lang/expr";
+import { PROBE_FUNCTIONS } from "../lang/expr";
+import { BUILTINS, FUNCTIONS } from "../lang/dims";
 import { STATEMENT_WORDS } from "../lang/syntax";
 import {
   CHECK_DETAIL,

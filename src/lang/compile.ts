@@ -8,18 +8,16 @@ import type { SyntaxNode } from "@lezer/common";
 import type { EvalFunction } from "mathjs/number";
 import type { Elaboration } from "./context";
 import {
-  BUILTINS,
   buildExpr,
   type CallExpr,
   type Expr,
   ExprCompiler,
-  FUNCTIONS,
-  inferDim,
   type InterpExpr,
   isBad,
   type NameExpr,
   PROBE_FUNCTIONS,
 } from "./expr";
+import { BUILTINS, FUNCTIONS, inferDim } from "./dims";
 import type { Shape } from "./names";
 import * as T from "./parser.terms";
 import { suggest } from "./suggest";
