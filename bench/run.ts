@@ -29,7 +29,7 @@
  */
 
 import { spawnSync } from "node:child_process";
-import { existsSync } from "node:fs";
+import { existsSync, readFileSync } from "node:fs";
 import { cpus, loadavg } from "node:os";
 import { elaborate } from "../src/lang/index";
 import type { Network } from "../src/lang/network";
@@ -364,6 +364,20 @@ function cholmodComparison(bin: string, reps: number, entries: Entry[]): string[
   return out;
 }
 
+/**
+ * This process's peak resident set, MB: VmHWM from /proc/self/status (getrusage's maxrss would also count the
+ * parent's memory at the fork that started this process, which survives exec on Linux), else maxrss.
+ */
+export function peakRssMb(): number {
+  try {
+    const m = /VmHWM:\s+(\d+) kB/.exec(readFileSync("/proc/self/status", "utf8"));
+    if (m) return Number(m[1]) / 1024;
+  } catch {
+    // not Linux
+  }
+  return process.resourceUsage().maxRSS / 1024;
+}
+
 function round(x: number): number {
   return Math.round(x * 100) / 100;
 }
@@ -377,7 +391,7 @@ function main(argv: string[]): number {
     const s = solveTimed(el.net, el.ms);
     const phases = {} as Phases;
     for (const k of Object.keys(s.phases) as (keyof Phases)[]) phases[k] = round(s.phases[k]);
-    const cold: Cold = { phases, total_ms: round(s.total), peak_rss_mb: round(process.resourceUsage().maxRSS / 1024) };
+    const cold: Cold = { phases, total_ms: round(s.total), peak_rss_mb: round(peakRssMb()) };
     process.stdout.write(JSON.stringify(cold));
     return 0;
   }

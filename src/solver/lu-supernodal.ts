@@ -153,27 +153,31 @@ export function factorLu(F: SupernodalLu, A: Csc, tol = 1e-3): LuFactorResult {
       const nbd = nrd - kd;
       const a0 = valPtr[d];
       const ud = uPtr[d];
-      // L side: W (mu × m1) = L_d(p0.., :) · U_d(:, p0..p0+m1), into s's columns.
-      product(lx, a0 + p0, nrd, ux, ud + p0 - kd, nbd, kd, m1, mu, work);
-      for (let c = 0; c < m1; c++) {
-        const dst = v0 + (at < 0 ? -1 - at + c : relMaps[at + c]) * nr;
-        const w = c * mu;
-        if (at < 0) {
-          const r0 = dst - 1 - at;
-          for (let r = 0; r < mu; r++) lx[r0 + r] -= work[w + r];
-        } else for (let r = 0; r < mu; r++) lx[dst + relMaps[at + r]] -= work[w + r];
-      }
-      // U side: W (mu−m1 × m1) = U_d(:, p0+m1..)ᵀ · L_d(p0..p0+m1, :)ᵀ, into s's rows of U (its Uᵀ block).
+      // L side: L_s −= L_d(p0.., :) · U_d(:, p0..p0+m1) (mu × m1), into s's columns; U side: Uᵀ_s −=
+      // U_d(:, p0+m1..)ᵀ · L_d(p0..p0+m1, :)ᵀ (mu−m1 × m1), into s's rows of U. Rows of d that are consecutive rows
+      // of s take the product in place; others through `work` and the row map.
       const mb = mu - m1;
-      if (mb === 0) continue;
-      product(ux, ud + p0 - kd + m1, nbd, lx, a0 + p0, nrd, kd, m1, mb, work);
+      if (at < 0) {
+        const first = -1 - at;
+        product(lx, a0 + p0, nrd, ux, ud + p0 - kd, nbd, kd, m1, mu, lx, v0 + first * nr + first, nr);
+        if (mb > 0)
+          product(ux, ud + p0 - kd + m1, nbd, lx, a0 + p0, nrd, kd, m1, mb, ux, u0 + first * nb + first + m1 - k, nb);
+        continue;
+      }
+      work.fill(0, 0, mu * m1);
+      product(lx, a0 + p0, nrd, ux, ud + p0 - kd, nbd, kd, m1, mu, work, 0, mu);
       for (let c = 0; c < m1; c++) {
-        const dst = u0 + (at < 0 ? -1 - at + c : relMaps[at + c]) * nb - k;
+        const dst = v0 + relMaps[at + c] * nr;
+        const w = c * mu;
+        for (let r = 0; r < mu; r++) lx[dst + relMaps[at + r]] += work[w + r];
+      }
+      if (mb === 0) continue;
+      work.fill(0, 0, mb * m1);
+      product(ux, ud + p0 - kd + m1, nbd, lx, a0 + p0, nrd, kd, m1, mb, work, 0, mb);
+      for (let c = 0; c < m1; c++) {
+        const dst = u0 + relMaps[at + c] * nb - k;
         const w = c * mb;
-        if (at < 0) {
-          const r0 = dst - 1 - at + m1;
-          for (let r = 0; r < mb; r++) ux[r0 + r] -= work[w + r];
-        } else for (let r = 0; r < mb; r++) ux[dst + relMaps[at + m1 + r]] -= work[w + r];
+        for (let r = 0; r < mb; r++) ux[dst + relMaps[at + m1 + r]] += work[w + r];
       }
     }
     const bad = panelLu(lx, v0, nr, k, ux, u0, nb, piv, f, tol);
@@ -183,10 +187,11 @@ export function factorLu(F: SupernodalLu, A: Csc, tol = 1e-3): LuFactorResult {
 }
 
 /**
- * T (rows × m, column-major, leading dimension rows) = A · Bᵀ with A
- * (rows × kd at a0, leading dimension lda) and B (m × kd at b0, leading
- * dimension ldb), both column-major. Four columns of T at a time against four
- * of A: four loads feed sixteen multiply-adds.
+ * T(r, c) −= Σ_t A(r, t)·B(c, t) for r < rows, c < m: A (rows × kd at a0,
+ * leading dimension lda) and B (m × kd at b0, leading dimension ldb), both
+ * column-major; T at t0 with leading dimension ldt (in place in a factor's
+ * block, or a zeroed work array: its negated product). Four columns of T at a
+ * time against four of A: four loads feed sixteen multiply-adds.
  */
 function product(
   A: Float64Array,
@@ -199,8 +204,9 @@ function product(
   m: number,
   rows: number,
   T: Float64Array,
+  t0: number,
+  ldt: number,
 ): void {
-  T.fill(0, 0, rows * m);
   let t = 0;
   for (; t + 4 <= kd; t += 4) {
     const x0 = a0 + t * lda;
@@ -229,19 +235,19 @@ function product(
       const p31 = B[y1 + c + 3];
       const p32 = B[y2 + c + 3];
       const p33 = B[y3 + c + 3];
-      const u0 = c * rows;
-      const u1 = u0 + rows;
-      const u2 = u1 + rows;
-      const u3 = u2 + rows;
+      const u0 = t0 + c * ldt;
+      const u1 = u0 + ldt;
+      const u2 = u1 + ldt;
+      const u3 = u2 + ldt;
       for (let r = 0; r < rows; r++) {
         const a = A[x0 + r];
         const b = A[x1 + r];
         const e = A[x2 + r];
         const g = A[x3 + r];
-        T[u0 + r] += a * p00 + b * p01 + e * p02 + g * p03;
-        T[u1 + r] += a * p10 + b * p11 + e * p12 + g * p13;
-        T[u2 + r] += a * p20 + b * p21 + e * p22 + g * p23;
-        T[u3 + r] += a * p30 + b * p31 + e * p32 + g * p33;
+        T[u0 + r] -= a * p00 + b * p01 + e * p02 + g * p03;
+        T[u1 + r] -= a * p10 + b * p11 + e * p12 + g * p13;
+        T[u2 + r] -= a * p20 + b * p21 + e * p22 + g * p23;
+        T[u3 + r] -= a * p30 + b * p31 + e * p32 + g * p33;
       }
     }
     for (; c < m; c++) {
@@ -249,8 +255,8 @@ function product(
       const p1 = B[y1 + c];
       const p2 = B[y2 + c];
       const p3 = B[y3 + c];
-      const u0 = c * rows;
-      for (let r = 0; r < rows; r++) T[u0 + r] += A[x0 + r] * p0 + A[x1 + r] * p1 + A[x2 + r] * p2 + A[x3 + r] * p3;
+      const u0 = t0 + c * ldt;
+      for (let r = 0; r < rows; r++) T[u0 + r] -= A[x0 + r] * p0 + A[x1 + r] * p1 + A[x2 + r] * p2 + A[x3 + r] * p3;
     }
   }
   for (; t < kd; t++) {
@@ -259,8 +265,8 @@ function product(
     for (let c = 0; c < m; c++) {
       const p = B[y0 + c];
       if (p === 0) continue;
-      const u0 = c * rows;
-      for (let r = 0; r < rows; r++) T[u0 + r] += A[x0 + r] * p;
+      const u0 = t0 + c * ldt;
+      for (let r = 0; r < rows; r++) T[u0 + r] -= A[x0 + r] * p;
     }
   }
 }
