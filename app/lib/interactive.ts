@@ -20,7 +20,8 @@ import os from "node:os";
 import path from "node:path";
 import type Piscina from "piscina";
 import { RequestError } from "./http";
-import type { InteractiveResult, InteractiveTask } from "./interactive-worker";
+import { databasePath } from "@/db";
+import type { InteractiveResult, InteractiveTask, MeasurementFields, StoreCsvResult } from "./interactive-worker";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
 
@@ -39,7 +40,7 @@ export function interactiveTimeLimitMs(): number {
 }
 
 const KEY = Symbol.for("runnel.interactive.pool");
-type Pool = Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | null>;
+type Pool = Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | null>;
 
 async function pool(): Promise<Pool> {
   return poolWith(0);
@@ -56,7 +57,7 @@ async function poolWith(minThreads: number): Promise<Pool> {
   const g = globalThis as unknown as Record<symbol, Pool | undefined>;
   if (!g[KEY]) {
     const { Piscina } = await import("piscina");
-    g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | null>({
+    g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | null>({
       filename: INTERACTIVE_WORKER_FILE(),
       maxThreads: interactiveThreads(),
       minThreads,
@@ -70,6 +71,7 @@ const WHAT: Record<InteractiveTask["kind"], string> = {
   check: "checking the network text",
   plan: "planning the run",
   csv: "reading the measurement CSV",
+  "store-csv": "reading and storing the measurement CSV",
 };
 
 /** Runs `task` in the interactive pool, under its time limit, cancelled when `signal` aborts. */
@@ -111,6 +113,18 @@ export function planTextInWorker(
 /** A measurement CSV parsed in the interactive pool. */
 export function parseCsvInWorker(bytes: Uint8Array, signal?: AbortSignal): Promise<ParseResult> {
   return runInteractive({ kind: "csv", bytes }, signal);
+}
+
+/**
+ * A measurement CSV parsed and, when every row reads, stored by a pool thread through its own connection (the
+ * request thread neither packs nor writes its values). The fields are already authorised.
+ */
+export function storeCsvInWorker(
+  bytes: Uint8Array,
+  measurement: MeasurementFields,
+  signal?: AbortSignal,
+): Promise<StoreCsvResult> {
+  return runInteractive({ kind: "store-csv", bytes, dbFile: databasePath(), measurement }, signal);
 }
 
 /** Ends the pool's threads (tests and scripts that must exit). */

@@ -184,4 +184,29 @@ describe("review routes", () => {
     ).json();
     expect(list.measurements).toEqual([body.measurement]);
   });
+
+  it("a million-row upload is stored whole by the pool thread (the request thread neither packs nor writes it)", async () => {
+    const h = setup();
+    const { POST } = await import("@/app/api/networks/[id]/measurements/route");
+    const { getMeasurement } = await import("@/app/lib/review/measurement-store");
+    const lines = ["tap [1], i [A]"];
+    for (let k = 0; k < 1_000_000; k++) lines.push(`${k},${k % 10}`);
+    const csv = lines.join("\n") + "\n";
+    expect(csv.length).toBeLessThan(10 * 1024 * 1024);
+    const fd = new FormData();
+    fd.set("file", new File([csv], "million.csv"));
+    fd.set("commitId", h.first.id);
+    const headers = new Headers({ origin: SITE, host: new URL(SITE).host, cookie: fixture.actors.designer!.cookie });
+    const res = await POST(
+      new Request(`${SITE}/api/networks/${h.network.id}/measurements`, { method: "POST", headers, body: fd }),
+      ctx(h.network.id),
+    );
+    expect(res.status).toBe(201);
+    const { measurement } = (await res.json()) as { measurement: { id: string; rows: number; commitId: string } };
+    expect(measurement).toMatchObject({ rows: 1_000_000, commitId: h.first.id });
+    const stored = getMeasurement(measurement.id)!;
+    expect(stored.x.values[999_999]).toBe(999_999);
+    expect(stored.series[0]).toMatchObject({ name: "i", unit: "A" });
+    expect(stored.series[0].values[12_347]).toBe(7);
+  });
 });

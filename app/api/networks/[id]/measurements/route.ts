@@ -1,12 +1,12 @@
 import { z } from "zod";
 import { networkAccess, requestActor } from "@/app/lib/access";
 import { readBodyBytes } from "@/app/lib/body";
-import { retryBusy } from "@/app/lib/db-busy";
+import { DatabaseBusy } from "@/app/lib/db-busy";
 import { handle, readJson, RequestError } from "@/app/lib/http";
-import { parseCsvInWorker } from "@/app/lib/interactive";
+import { storeCsvInWorker } from "@/app/lib/interactive";
 import { getCommit } from "@/app/lib/networks";
-import { MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
-import { listMeasurements, measurementSummary, storeMeasurement } from "@/app/lib/review/measurement-store";
+import { formatCsvError, MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
+import { listMeasurements, measurementSummary } from "@/app/lib/review/measurement-store";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -34,11 +34,21 @@ export function POST(request: Request, ctx: Ctx) {
       : await fromForm(request);
     if (upload.commitId && getCommit(upload.commitId)?.networkId !== network.id)
       throw new RequestError(422, `commitId: ${upload.commitId} is not a commit of this network`);
-    // Parsing (up to 10 MB, a million rows) runs in the interactive pool, off the request thread.
-    const parsed = await parseCsvInWorker(upload.bytes, request.signal);
-    const id = await retryBusy(() =>
-      storeMeasurement({ networkId: network.id, ...upload, createdBy: actor.userId, parsed }),
+    // Parsing (up to 10 MB, a million rows), packing and inserting the values run in the interactive pool, which
+    // writes through its own connection: the request thread only waits.
+    const { bytes, ...fields } = upload;
+    const stored = await storeCsvInWorker(
+      bytes,
+      { ...fields, networkId: network.id, createdBy: actor.userId },
+      request.signal,
     );
+    if (!stored.ok) {
+      if ("busy" in stored) throw new DatabaseBusy();
+      throw new RequestError(422, formatCsvError(stored.errors[0]), {
+        errors: stored.errors.map((e) => ({ ...e, text: formatCsvError(e) })),
+      });
+    }
+    const id = stored.id;
     // Its summary, as listed (a million-row upload is not read back and sent as JSON on the request thread).
     return Response.json({ measurement: measurementSummary(id) }, { status: 201 });
   });
