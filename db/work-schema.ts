@@ -16,6 +16,7 @@
  *   node, device, rail, probe and param names, fixed when the run starts).
  */
 import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import type { ExpectationSummary } from "../src/solver/expectation-summary";
 import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
 import { RUN_STATES } from "./run-states";
 
@@ -130,6 +131,13 @@ export const runs = sqliteTable(
     warnings: text("warnings", { mode: "json" }).$type<RunWarning[]>(),
     /** Points that could not be solved (JSON, at most 50), written when the run ends. */
     failures: text("failures", { mode: "json" }).$type<RunFailure[]>(),
+    /**
+     * The network's expectations over the run (src/solver/expectation-summary.ts), written when it ends from
+     * run_point_expectations; null when the network states none.
+     */
+    expectations: text("expectations", { mode: "json" }).$type<ExpectationSummary[]>(),
+    /** How many of them fail (null as above): what history and lists show without reading the summaries. */
+    expectationsFailing: integer("expectations_failing"),
     createdAt: createdAt(),
     startedAt: timestamp("started_at"),
     finishedAt: timestamp("finished_at"),
@@ -189,6 +197,26 @@ export const runPoints = sqliteTable(
     ic: blob("ic", { mode: "buffer" }).notNull(),
     /** Uint8, one per layout.devices: 1 saturated, 0 not. */
     saturated: blob("saturated", { mode: "buffer" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.point] })],
+);
+
+/**
+ * Each expectation's verdict and margin at a solved point of a run whose network states any: one row per solved
+ * point (none for a point that could not be solved), written with the point. Apart from run_points so that
+ * reading every point's verdicts (the run's summary, the margin plots) never walks the big blobs' overflow pages.
+ */
+export const runPointExpectations = sqliteTable(
+  "run_point_expectations",
+  {
+    runId: text("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    point: integer("point").notNull(),
+    /** Uint8, one per layout.expectations: 1 holds, 0 fails. */
+    passed: blob("passed", { mode: "buffer" }).notNull(),
+    /** Float64, one per layout.expectations: the margin in the expectation's unit (NaN: none). */
+    margins: blob("margins", { mode: "buffer" }).notNull(),
   },
   (t) => [primaryKey({ columns: [t.runId, t.point] })],
 );

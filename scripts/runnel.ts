@@ -295,7 +295,7 @@ const solve: Subcommand = {
       else printDiagnostics(file, doc, format === "csv" ? io.err : io.out);
       return EXIT_ERRORS;
     }
-    const notes = new RunNotes(net, text);
+    const notes = new RunNotes(net);
     const sink = format === "summary" ? null : pointSink(net, out, io);
     const run = solveNetwork(net, {
       keepPoints: false,

@@ -15,6 +15,8 @@ import { databasePath, db, type Q } from "@/db";
 import type { JsonPoint } from "@/src/solver/index";
 import { csvHeader, csvLine, type CsvTable } from "@/src/solver/csv";
 import type { StoredPoint } from "./point-codec";
+import { expectationJson } from "@/src/solver/expectation-summary";
+import { storedExpectations } from "./run-expectations";
 import { eachPoint, readPoint, type RunLayout } from "./results";
 
 /** How many names (nodes, devices, rails) one chunk of an export holds: a chunk is a few hundred kB at most. */
@@ -203,9 +205,17 @@ function pointHead(layout: RunLayout, p: StoredPoint) {
       probes,
       solver: { method: p.method, iterations: p.iterations, residual: num(p.residual) },
       sample: layout.mismatch ? p.sample : 0,
+      ...(layout.expectations?.length ? { expectations: verdicts(layout, p) } : {}),
       ...(p.error ? { error: p.error } : {}),
     },
   };
+}
+
+/** Whether each expectation holds at the point, by name (null: not solved), as `runnel solve --json` prints it. */
+function verdicts(layout: RunLayout, p: StoredPoint): Record<string, boolean | null> {
+  const out: Record<string, boolean | null> = {};
+  (layout.expectations ?? []).forEach((x, j) => (out[x.name] = p.expectations ? p.expectations.passed[j] === 1 : null));
+  return out;
 }
 
 /** One point in the `runnel solve --json` shape. */
@@ -288,5 +298,9 @@ export function* jsonChunks(run: ExportRun, commit: ExportCommit, layout: RunLay
     yield* pointJsonChunks(layout, p);
     first = false;
   }
-  yield "]}";
+  yield "]";
+  // The run's expectations (docs/language.md, Expectations), after the points as the command line prints them.
+  const expectations = storedExpectations(run.id, d);
+  if (expectations) yield `,"expectations":${JSON.stringify(expectations.map(expectationJson))}`;
+  yield "}";
 }

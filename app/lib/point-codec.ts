@@ -53,10 +53,34 @@ export interface StoredPoint extends PointSections {
   residual: number;
   /** Why the point could not be solved; null when solved. */
   error: string | null;
+  /**
+   * Each expectation's verdict (1 holds, 0 fails) and margin, in layout.expectations order: stored apart from the
+   * sections (run_point_expectations); absent or null for a failed point or a network without expectations.
+   */
+  expectations?: PointVerdicts | null;
 }
 
-/** The binary form's JSON header: the point without its sections, its grid indices and the sections' counts. */
-export type PointHeader = Omit<StoredPoint, SectionName> & { grid: number[]; counts: PointCounts };
+/** A point's verdicts and margins, one per expectation of the run's layout. */
+export interface PointVerdicts {
+  passed: Uint8Array;
+  margins: Float64Array;
+}
+
+/** A point's verdicts as its JSON header carries them over the wire (app/lib/run-wire.ts): a margin of NaN as null. */
+export interface HeaderVerdicts {
+  passed: number[];
+  margins: (number | null)[];
+}
+
+/**
+ * The binary form's JSON header: the point without its sections, its grid indices and the sections' counts, and
+ * (in a queue worker's batch) its verdicts.
+ */
+export type PointHeader = Omit<StoredPoint, SectionName | "expectations"> & {
+  grid: number[];
+  counts: PointCounts;
+  verdicts?: HeaderVerdicts | null;
+};
 
 /** A decoded point: its header and its sections (views into the received buffer). */
 export type DecodedPoint = PointSections & { header: PointHeader };

@@ -11,7 +11,8 @@
 import { and, asc, eq, gte, lt } from "drizzle-orm";
 import type { Network } from "@/src/lang/index";
 import { NFET } from "@/src/lang/index";
-import { runPoints } from "@/db/schema";
+import { runPointExpectations, runPoints } from "@/db/schema";
+import type { CheckKind } from "@/src/lang/network";
 import { db, type Q } from "@/db";
 import {
   encodePoint,
@@ -42,6 +43,18 @@ export interface RunLayout extends PointNames {
   probeUnits?: (string | null)[];
   /** Unit symbol of each of `params` ("K" for temp), null where not known (absent in older runs). */
   paramUnits?: (string | null)[];
+  /** The network's expect statements, in order (absent in runs stored before expectations existed). */
+  expectations?: LayoutExpectation[];
+}
+
+/** An expect statement as a run's layout names it. */
+export interface LayoutExpectation {
+  name: string;
+  line: number;
+  /** The margin's unit symbol ("V", "A", "W", "" for a ratio), null when unknown or mixed. */
+  unit: string | null;
+  /** A device-set check and its name pattern, or null for a condition. */
+  check: { kind: CheckKind; pattern: string } | null;
 }
 
 /** Limits checked before a run is queued (POST /api/runs answers 422 with the numbers). */
@@ -66,6 +79,12 @@ export function layoutOf(net: Network): RunLayout {
     mismatch: net.mismatch ? { runs: net.mismatch.runs, seed: net.mismatch.seed, avt: net.mismatch.avt } : null,
     probeUnits: net.probes.map((p) => p.unit ?? null),
     paramUnits: [...net.params.map((p) => p.unit ?? null), "K"],
+    expectations: net.expectations.map((x) => ({
+      name: x.name,
+      line: x.line,
+      unit: x.unit,
+      check: x.check ? { kind: x.check.kind, pattern: x.check.pattern } : null,
+    })),
   };
 }
 
@@ -151,6 +170,11 @@ export function insertPoints(runId: string, points: readonly StoredPoint[], d: Q
       })
       .onConflictDoNothing()
       .run().changes;
+    if (p.expectations)
+      d.insert(runPointExpectations)
+        .values({ runId, point: p.point, passed: bytes(p.expectations.passed), margins: bytes(p.expectations.margins) })
+        .onConflictDoNothing()
+        .run();
   }
   return added;
 }
@@ -168,6 +192,11 @@ function pointRow(runId: string, point: number, d: Q) {
 export function readPoint(runId: string, point: number, d: Q = db()): StoredPoint | null {
   const r = pointRow(runId, point, d);
   if (!r) return null;
+  const x = d
+    .select({ passed: runPointExpectations.passed, margins: runPointExpectations.margins })
+    .from(runPointExpectations)
+    .where(and(eq(runPointExpectations.runId, runId), eq(runPointExpectations.point, point)))
+    .get();
   return {
     point: r.point,
     sample: r.sample,
@@ -176,6 +205,7 @@ export function readPoint(runId: string, point: number, d: Q = db()): StoredPoin
     residual: r.residual,
     error: r.error,
     ...sectionsFrom((s) => r[s.name]),
+    expectations: x ? { passed: view(x.passed, Uint8Array), margins: view(x.margins, Float64Array) } : null,
   };
 }
 
@@ -190,15 +220,19 @@ export interface SeriesColumns {
   iterations: number[];
   residual: number[];
   error: (string | null)[];
+  /** passed[j][k]: expectation j at the k-th returned point: 1 holds, 0 fails, -1 not evaluated (not solved). */
+  passed: number[][];
+  /** margins[j][k]: its margin (NaN where there is none). */
+  margins: number[][];
 }
 
 /**
- * Params, probes and solver figures of points [from, to), column by column.
- * Reads only the small leading columns of each row, never the big blobs.
+ * Params, probes and solver figures of points [from, to), column by column, and the verdicts and margins of the
+ * run's expectations. Reads only the small leading columns of each row, never the big blobs.
  */
 export function readSeries(
   runId: string,
-  layout: Pick<RunLayout, "params" | "probes">,
+  layout: Pick<RunLayout, "params" | "probes" | "expectations">,
   from = 0,
   to = Number.MAX_SAFE_INTEGER,
   d: Q = db(),
@@ -227,8 +261,22 @@ export function readSeries(
     iterations: [],
     residual: [],
     error: [],
+    passed: (layout.expectations ?? []).map(() => []),
+    margins: (layout.expectations ?? []).map(() => []),
   };
+  const verdicts = out.passed.length ? expectationRows(runId, from, to, d) : null;
+  let v = 0;
   for (const r of rows) {
+    if (verdicts) {
+      while (v < verdicts.length && verdicts[v].point < r.point) v++;
+      const x = verdicts[v]?.point === r.point ? verdicts[v] : null;
+      const passed = x ? view(x.passed, Uint8Array) : null;
+      const margins = x ? view(x.margins, Float64Array) : null;
+      for (let j = 0; j < out.passed.length; j++) {
+        out.passed[j].push(passed ? passed[j] : -1);
+        out.margins[j].push(margins ? margins[j] : NaN);
+      }
+    }
     out.point.push(r.point);
     out.sample.push(r.sample);
     const pa = view(r.params, Float64Array);
@@ -241,6 +289,31 @@ export function readSeries(
     out.error.push(r.error);
   }
   return out;
+}
+
+/** The stored verdicts and margins of points [from, to), in point order. */
+export function expectationRows(
+  runId: string,
+  from = 0,
+  to = Number.MAX_SAFE_INTEGER,
+  d: Q = db(),
+): { point: number; passed: Buffer; margins: Buffer }[] {
+  return d
+    .select({
+      point: runPointExpectations.point,
+      passed: runPointExpectations.passed,
+      margins: runPointExpectations.margins,
+    })
+    .from(runPointExpectations)
+    .where(
+      and(
+        eq(runPointExpectations.runId, runId),
+        gte(runPointExpectations.point, from),
+        lt(runPointExpectations.point, to),
+      ),
+    )
+    .orderBy(asc(runPointExpectations.point))
+    .all();
 }
 
 /** JSON cannot carry NaN or ±Infinity: they become null. */
@@ -401,6 +474,10 @@ export interface SeriesView {
   iterations: number[];
   residual: (number | null)[];
   error: (string | null)[];
+  /** The run's expectations, and per expectation each point's verdict (1, 0, -1 not solved) and margin. */
+  expectations: LayoutExpectation[];
+  passed: number[][];
+  margins: (number | null)[][];
 }
 
 export function seriesView(
@@ -424,6 +501,9 @@ export function seriesView(
     iterations: s.iterations,
     residual: jsonNumbers(s.residual),
     error: s.error,
+    expectations: layout.expectations ?? [],
+    passed: s.passed,
+    margins: s.margins.map(jsonNumbers),
   };
 }
 
@@ -499,6 +579,12 @@ export function seriesJson(
     c.iterations.push(...next.iterations);
     c.residual.push(...next.residual);
     c.error.push(...next.error);
+    c.passed.forEach((col, j) => {
+      for (const x of next.passed[j]) col.push(x);
+    });
+    c.margins.forEach((col, j) => {
+      for (const x of next.margins[j]) col.push(x);
+    });
   }
   const c = entry.columns;
   const view: SeriesView = {
@@ -514,6 +600,9 @@ export function seriesJson(
     iterations: c.iterations,
     residual: jsonNumbers(c.residual),
     error: c.error,
+    expectations: layout.expectations ?? [],
+    passed: c.passed,
+    margins: c.margins.map(jsonNumbers),
   };
   entry.json = JSON.stringify(view);
   return wrap(entry.json);

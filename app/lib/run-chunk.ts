@@ -159,6 +159,10 @@ export function toRecord(net: Network, layout: RunLayout, p: PointResult): Store
     current: p.currents.slice(),
     ic: Float32Array.from(p.ic),
     saturated: p.saturated.slice(),
+    expectations:
+      error === null && p.expectations
+        ? { passed: p.expectations.passed.slice(), margins: p.expectations.margins.slice() }
+        : null,
   };
 }
 

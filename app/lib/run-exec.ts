@@ -37,6 +37,7 @@ import {
 } from "./run-chunk";
 import { modelOf } from "./run-plan";
 import { mergeChunks, type ChunkStats } from "./run-stats";
+import { runExpectations, saturationCovered } from "./run-expectations";
 import { storeCommitDiff } from "./review/diffs";
 
 export { STOP_CANCEL, STOP_FAILED, STOP_NONE, STOP_TIME } from "./run-chunk";
@@ -313,11 +314,14 @@ export function finalizeRun(
   else if (!allDone) return null;
 
   const withStats = chunks.filter((c) => c.stats !== null);
-  const devices = layoutHead(runId, d)?.deviceCount ?? 0;
+  const layout = layoutHead(runId, d);
   const fig = mergeChunks(
     withStats.map((c) => ({ stats: JSON.parse(c.stats as string) as ChunkStats, flags: c.flags ?? null })),
-    devices,
+    layout?.deviceCount ?? 0,
+    layout ? saturationCovered(runId, layout, d) : null,
   );
+  // The expectations over every stored point (a run that stopped early: over the points it reached).
+  const expectations = layout ? runExpectations(runId, layout, row.pointsTotal, d) : null;
   if (!end) {
     if (fig.structural) end = { state: "failed", reason: `the network cannot be solved: ${fig.structural}` };
     else if (fig.points > 0 && fig.failureCount === fig.points)
@@ -342,6 +346,8 @@ export function finalizeRun(
         maxResidual: fig.maxResidual,
         warnings: fig.warnings,
         failures: fig.failures,
+        expectations,
+        expectationsFailing: expectations ? expectations.filter((x) => !x.passed).length : null,
       })
       .where(and(eq(runs.id, runId), inArray(runs.state, LIVE_RUN_STATES)))
       .run(),

@@ -156,7 +156,7 @@ export function ingestBatch(
   const layout = runLayoutHead(runId, d)!;
   let points;
   try {
-    points = decodeBatch(body, countsOf(layout), c, layout.mismatch?.runs ?? 1);
+    points = decodeBatch(body, countsOf(layout), c, layout.mismatch?.runs ?? 1, layout.expectations?.length ?? 0);
   } catch (e) {
     if (e instanceof BatchError) refuse(worker, runId, chunk, 422, e.message);
     throw e;

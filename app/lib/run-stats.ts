@@ -127,8 +127,15 @@ export interface RunFigures {
   structural: string | null;
 }
 
-/** Merges chunk figures given in chunk order (see the module comment). */
-export function mergeChunks(chunks: readonly { stats: ChunkStats; flags: Uint8Array | null }[], devices: number) {
+/**
+ * Merges chunk figures given in chunk order (see the module comment). `saturationCovered` (one bit per device):
+ * devices whose saturation an expectation governs, left out of `devicesNotSaturated` (the expectation reports them).
+ */
+export function mergeChunks(
+  chunks: readonly { stats: ChunkStats; flags: Uint8Array | null }[],
+  devices: number,
+  saturationCovered: Uint8Array | null = null,
+) {
   const half = flagBytes(devices);
   const flags = new Uint8Array(2 * half);
   const warnings = new Map<string, RunWarning>();
@@ -162,7 +169,9 @@ export function mergeChunks(chunks: readonly { stats: ChunkStats; flags: Uint8Ar
   }
   out.warnings = [...warnings.values()];
   out.devicesNotWeak = countBits(flags.subarray(0, half));
-  out.devicesNotSaturated = countBits(flags.subarray(half));
+  const notSaturated = flags.subarray(half);
+  if (saturationCovered) for (let i = 0; i < half; i++) notSaturated[i] &= ~saturationCovered[i];
+  out.devicesNotSaturated = countBits(notSaturated);
   return out;
 }
 

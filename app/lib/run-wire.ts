@@ -7,7 +7,10 @@
  * Batch layout: repeated frames of u32 (little-endian) byte length, then one
  * point in the binary form of app/lib/point-codec.ts (its header names the
  * point, and the counts of its sections). A non-finite residual travels as
- * null in the header's JSON and comes back as +∞.
+ * null in the header's JSON and comes back as +∞. A solved point of a network
+ * with expectations carries its verdicts and margins in the header
+ * (`verdicts`, a NaN margin as null), stored as the in-process pool stores
+ * them (run_point_expectations).
  * Pure: used by workers (encode) and the app (decode).
  */
 import { z } from "zod";
@@ -18,6 +21,7 @@ import {
   sectionBytes,
   type PointCounts,
   type PointHeader,
+  type PointVerdicts,
   type StoredPoint,
 } from "./point-codec";
 
@@ -35,6 +39,12 @@ export function encodeBatch(points: readonly StoredPoint[], counts: PointCounts)
       error: p.error,
       grid: [],
       counts,
+      verdicts: p.expectations
+        ? {
+            passed: Array.from(p.expectations.passed),
+            margins: Array.from(p.expectations.margins, (m) => (Number.isFinite(m) ? m : null)),
+          }
+        : null,
     };
     return encodePoint(header, sectionBytes(p));
   });
@@ -57,13 +67,16 @@ export class BatchError extends Error {}
 /**
  * The points of a batch, each checked: a frame that fits the body, the section counts of the run's layout, a
  * point inside [start, end), no point twice, a known method, a count of iterations, a residual that is a number
- * (or +∞), and an error that is text or null. Throws BatchError for the first problem; nothing is returned partly.
+ * (or +∞), an error that is text or null, and verdicts exactly when the point is solved and the network states
+ * `expectations` expectations (one 0/1 verdict and one margin each). Throws BatchError for the first problem;
+ * nothing is returned partly.
  */
 export function decodeBatch(
   body: Uint8Array,
   counts: PointCounts,
   range: { start: number; end: number },
   samples: number,
+  expectations = 0,
 ): StoredPoint[] {
   const out: StoredPoint[] = [];
   const seen = new Set<number>();
@@ -101,6 +114,7 @@ export function decodeBatch(
           `${where}: ${s.name} has ${String(h.counts?.[s.count])} values; the run's layout has ${counts[s.count]}`,
         );
     }
+    const verdicts = checkVerdicts(h.verdicts, h.error === null ? expectations : 0, where);
     const { header: _header, ...sections } = p;
     void _header;
     out.push({
@@ -111,10 +125,30 @@ export function decodeBatch(
       residual: h.residual === null ? Infinity : h.residual,
       error: h.error,
       ...sections,
+      expectations: verdicts,
     });
     at += 4 + len;
   }
   return out;
+}
+
+/** A point's verdicts as stored: `expected` of them (0: none may be sent), each 0 or 1 with a number or null. */
+function checkVerdicts(v: unknown, expected: number, where: string): PointVerdicts | null {
+  if (v === undefined || v === null) {
+    if (expected === 0) return null;
+    throw new BatchError(`${where}: solved without the verdicts of the network's ${expected} expectations`);
+  }
+  if (expected === 0) throw new BatchError(`${where}: verdicts sent for a point that has none`);
+  const { passed, margins } = v as { passed?: unknown; margins?: unknown };
+  if (!Array.isArray(passed) || !Array.isArray(margins) || passed.length !== expected || margins.length !== expected)
+    throw new BatchError(`${where}: verdicts are not ${expected} verdicts and ${expected} margins`);
+  if (!passed.every((x) => x === 0 || x === 1)) throw new BatchError(`${where}: a verdict is not 0 or 1`);
+  if (!margins.every((x) => x === null || typeof x === "number"))
+    throw new BatchError(`${where}: a margin is not a number`);
+  return {
+    passed: Uint8Array.from(passed as number[]),
+    margins: Float64Array.from(margins as (number | null)[], (x) => (x === null ? NaN : x)),
+  };
 }
 
 const Stats = z.object({

@@ -178,6 +178,8 @@ export interface RunRow {
   model: Record<string, unknown> | null;
   warnings: RunWarning[] | null;
   failures: RunFailure[] | null;
+  /** How many of the network's expectations fail over the run; null when it states none or the run is not over. */
+  expectationsFailing: number | null;
   createdAt: number;
   startedAt: number | null;
   finishedAt: number | null;
@@ -204,6 +206,7 @@ const runColumns = {
   model: runs.model,
   warnings: runs.warnings,
   failures: runs.failures,
+  expectationsFailing: runs.expectationsFailing,
   createdAt: runs.createdAt,
   startedAt: runs.startedAt,
   finishedAt: runs.finishedAt,

@@ -41,10 +41,11 @@ function resolveExpectation(x: PendingExpectation, net: Network): Expectation {
   const reads = resolveReads(net, x.reads);
   const names = x.reads.map((_, i) => readName(i));
   const fns = x.operands;
-  const { name, span, unit, mixedUnits, condition, check } = x;
+  const { name, span, line, unit, mixedUnits, condition, check } = x;
   return {
     name,
     span,
+    line,
     unit,
     mixedUnits,
     condition,

@@ -29,6 +29,7 @@ import { CHECK_DETAIL, CHECKS, isSetting, WEAK_INVERSION_IC } from "./vocabulary
 export interface PendingExpectation {
   name: string;
   span: Span;
+  line: number;
   unit: string | null;
   mixedUnits: boolean;
   condition: ConditionTree | null;
@@ -46,7 +47,7 @@ const EXAMPLE_CHECK = "for example expect outputs_saturated = saturated devices=
 const CHECK_HINT = `checks: ${CHECKS.join(", ")}`;
 
 /** A name pattern as a regular expression (`*`: any run of characters; names hold no other special character). */
-function patternRegex(pattern: string): RegExp {
+export function patternRegex(pattern: string): RegExp {
   return new RegExp(`^${pattern.replace(/\*/g, ".*")}$`);
 }
 
@@ -188,6 +189,7 @@ export class Expectations {
     return {
       name,
       span,
+      line: this.cx.line(span.from),
       unit: kind === "weak" ? "" : "V",
       mixedUnits: false,
       condition: null,
@@ -263,6 +265,7 @@ export class Expectations {
     return {
       name,
       span,
+      line: this.cx.line(span.from),
       unit: dim === "mixed" ? null : unitSymbol(dim),
       mixedUnits: dim === "mixed",
       condition: tree.tree,

@@ -22,6 +22,7 @@ export {
 } from "./diagnostics";
 export { parser } from "./parser";
 export { parseNumber } from "./expr";
+export { patternRegex } from "./expectations";
 
 /** The Lezer syntax tree of a Runnel text (never throws; errors are ⚠ nodes). */
 export function parse(text: string): Tree {

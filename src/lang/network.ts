@@ -186,6 +186,8 @@ export interface Expectation {
   name: string;
   /** The whole statement. */
   span: Span;
+  /** 1-based line of the statement. */
+  line: number;
   /** The margin's unit symbol ("V", "A", "W", "" for a ratio); null when it is a plain number of no known unit. */
   unit: string | null;
   /** The condition's comparisons mix units: no single margin. */

@@ -78,14 +78,9 @@ export function pointVerdicts(net: Network, p: PointResult): Record<string, bool
   return verdicts;
 }
 
-/** A tally of the network's expectations over its run (`text` places each at its statement's line). */
-export function expectationTally(net: Network, text?: string): ExpectationTally {
-  const lines = text !== undefined ? new LineIndex(text) : null;
-  const defs = net.expectations.map((x) => ({
-    name: x.name,
-    line: lines ? lines.position(x.span.from).line : 1,
-    unit: x.unit,
-  }));
+/** A tally of the network's expectations over its run. */
+export function expectationTally(net: Network): ExpectationTally {
+  const defs = net.expectations.map((x) => ({ name: x.name, line: x.line, unit: x.unit }));
   const samples = net.mismatch ? net.mismatch.runs : null;
   let grid = 1;
   for (const s of net.sweeps) grid *= s.values.length;
@@ -93,8 +88,8 @@ export function expectationTally(net: Network, text?: string): ExpectationTally 
 }
 
 /** Every expectation of `net` over the run's kept points. */
-export function summarizeExpectations(net: Network, run: RunResult, text?: string): ExpectationSummary[] {
-  const tally = expectationTally(net, text);
+export function summarizeExpectations(net: Network, run: RunResult): ExpectationSummary[] {
+  const tally = expectationTally(net);
   for (const p of run.points) tally.add(p.index, p.ok ? p.expectations : null, () => p.params);
   return tally.finish();
 }
@@ -112,8 +107,8 @@ export class RunNotes {
   readonly expectations: ExpectationTally | null;
   private readonly seen = new Set<string>();
 
-  constructor(net?: Network | null, text?: string) {
-    this.expectations = net && net.expectations.length > 0 ? expectationTally(net, text) : null;
+  constructor(net?: Network | null) {
+    this.expectations = net && net.expectations.length > 0 ? expectationTally(net) : null;
   }
 
   note(p: PointResult): void {
@@ -131,8 +126,8 @@ export class RunNotes {
         this.notFinite.set(name, { index: p.index, sample: p.sample });
   }
 
-  static of(points: readonly PointResult[], net?: Network | null, text?: string): RunNotes {
-    const n = new RunNotes(net, text);
+  static of(points: readonly PointResult[], net?: Network | null): RunNotes {
+    const n = new RunNotes(net);
     for (const p of points) n.note(p);
     return n;
   }
@@ -168,7 +163,7 @@ export function toSolveJson(
   let ok = !diagnostics.some((d) => d.severity === "error") && net !== null && run !== null;
   let summaries: ExpectationSummary[] | null = null;
   if (net && run) {
-    const n = notes ?? RunNotes.of(run.points, net, text);
+    const n = notes ?? RunNotes.of(run.points, net);
     summaries = n.expectations?.finish() ?? null;
     const where = (index: number, sample: number | null) =>
       n.points > 1 ? ` (first at point ${index}${sample !== null ? `, sample ${sample}` : ""})` : "";

@@ -17,7 +17,7 @@ import { spawn, type ChildProcess } from "node:child_process";
 import { asc, count, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { DB } from "@/db";
-import { runChunks, runPoints, runs } from "@/db/schema";
+import { runChunks, runPointExpectations, runPoints, runs } from "@/db/schema";
 import { secretHash } from "@/app/lib/secrets";
 import { redisServerPath, startRedis, type PrivateRedis } from "@/scripts/lib/redis";
 import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
@@ -166,6 +166,58 @@ describe.skipIf(!hasRedis)("runs on the Redis queue with two worker processes", 
     expect(probe).toHaveLength(200);
     expect(probe[0]).toBeLessThan(1);
     expect(probe[199]).toBeGreaterThan(1);
+  });
+
+  it("carries each solved point's verdicts in the workers' posts, stored as the in-process pool stores them", async () => {
+    // The pair's ratio passes only for |dv| below about 10 mV (ratio = exp(κ·dv/U_T), κ ≈ 0.7, U_T ≈ 25.9 mV).
+    const text =
+      SWEEP(60) + "expect ratio_band = 0.75 <= ratio <= 1.33\nexpect pair_saturated = saturated devices=m*\n";
+    const commit = await newCommit("Queue expectations", text);
+    const r = await startRun({ commit, fault: "slow" });
+    expect(r.status).toBe(201);
+    const id = (r.json as { run: RunJson }).run.id;
+    expect(await until("run", () => runRow(id), ended)).toMatchObject({ state: "done", pointsDone: 60 });
+    // The same network in-process, point by point (app/lib/run-chunk.ts, as the piscina pool runs it).
+    const { elaborate } = await import("@/src/lang/index");
+    const { layoutOf } = await import("@/app/lib/results");
+    const { solveChunk, STOP_NONE } = await import("@/app/lib/run-chunk");
+    const { runExpectations } = await import("@/app/lib/run-expectations");
+    const net = elaborate(text).network!;
+    const layout = layoutOf(net);
+    const local: { point: number; passed: number[]; margins: number[] }[] = [];
+    solveChunk(
+      net,
+      layout,
+      { start: 0, end: 60 },
+      {
+        stop: () => STOP_NONE,
+        onBatch: (ps) => {
+          for (const p of ps)
+            local.push({ point: p.point, passed: [...p.expectations!.passed], margins: [...p.expectations!.margins] });
+        },
+      },
+    );
+    const stored = db
+      .select()
+      .from(runPointExpectations)
+      .where(eq(runPointExpectations.runId, id))
+      .orderBy(asc(runPointExpectations.point))
+      .all()
+      .map((x) => ({
+        point: x.point,
+        passed: [...new Uint8Array(x.passed)],
+        margins: [...new Float64Array(x.margins.buffer.slice(x.margins.byteOffset, x.margins.byteOffset + 16))],
+      }));
+    expect(stored).toEqual(local);
+    const summary = runRow(id).expectations!;
+    expect(summary).toEqual(runExpectations(id, layout, 60, db));
+    expect(summary.map((x) => [x.name, x.passed])).toEqual([
+      ["ratio_band", false],
+      ["pair_saturated", true],
+    ]);
+    expect(summary[0].pointsPassed).toBeGreaterThan(0);
+    expect(summary[0].pointsPassed).toBeLessThan(60);
+    expect(runRow(id).expectationsFailing).toBe(1);
   });
 
   it("hands a chunk of a worker killed mid-chunk to the other worker; every point is stored once", async () => {
@@ -364,6 +416,11 @@ describe.skipIf(!hasRedis)("the worker API refuses", () => {
     expect(((await wrong.json()) as { error: string }).error).toMatch(
       /^point 2: nodes has 6 values; the run's layout has 5/,
     );
+    // Verdicts for a network that states no expectations.
+    const verdicts = { passed: new Uint8Array([1]), margins: new Float64Array([0.5]) };
+    const extra = await post(TOKENS.a, 1, encodeBatch([{ ...point(2), expectations: verdicts }], counts));
+    expect(extra.status).toBe(422);
+    expect(((await extra.json()) as { error: string }).error).toBe("point 2: verdicts sent for a point that has none");
     // Garbage.
     expect((await post(TOKENS.a, 1, new Uint8Array([1, 2, 3, 4, 5, 6, 7]))).status).toBe(422);
     // The other worker's token, a wrong attempt, a chunk not handed out.

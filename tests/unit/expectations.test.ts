@@ -21,7 +21,7 @@ function summaries(text: string) {
   const n = net(text);
   const run = solveNetwork(n);
   expect(run.ok).toBe(true);
-  return { run, byName: Object.fromEntries(summarizeExpectations(n, run, text).map((s) => [s.name, s])) };
+  return { run, byName: Object.fromEntries(summarizeExpectations(n, run).map((s) => [s.name, s])) };
 }
 
 const UT = thermalVoltage(300);

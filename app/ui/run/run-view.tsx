@@ -2,7 +2,7 @@
 
 /**
  * The run page's live part: state and progress (polled while the run is live),
- * model and solver, validity, and the results — probe curves, tables of nodes,
+ * the network's expectations first, model and solver, validity, and the results — probe curves, tables of nodes,
  * devices and probes, spatial profiles, maps and mismatch spreads — with
  * exports. Every value comes from /api/runs/[id]… through SWR.
  */
@@ -12,6 +12,8 @@ import { formatDuration } from "@/app/lib/format";
 import type { SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
 import { getJson, sendJson } from "@/app/ui/fetch";
+import type { ExpectationSummary } from "@/src/solver/expectation-summary";
+import { ExpectationsPanel } from "./expectations-panel";
 import { ExportLinks } from "./export-links";
 import { ModelCaution } from "./model-caution";
 import { ModelPanel } from "./model-panel";
@@ -26,9 +28,13 @@ export interface RunViewProps {
 }
 
 export function RunView({ runId, canRun }: RunViewProps) {
-  const { data, error, mutate } = useSWR<{ run: RunRow }>(`/api/runs/${runId}`, getJson, {
-    refreshInterval: (d) => (d && !isLive(d.run.state) ? 0 : 1000),
-  });
+  const { data, error, mutate } = useSWR<{ run: RunRow; expectations: ExpectationSummary[] | null }>(
+    `/api/runs/${runId}`,
+    getJson,
+    {
+      refreshInterval: (d) => (d && !isLive(d.run.state) ? 0 : 1000),
+    },
+  );
   const run = data?.run;
   const hasResults = !!run && run.pointsDone > 0;
   const series = useSWR<{ series: SeriesView }>(hasResults ? `/api/runs/${runId}/results?view=series` : null, getJson, {
@@ -84,6 +90,7 @@ export function RunView({ runId, canRun }: RunViewProps) {
         ) : null}
         {cancelError ? <p className="text-sm text-ember-500">{cancelError}</p> : null}
       </section>
+      {series.data ? <ExpectationsPanel run={run} series={series.data.series} summaries={data.expectations} /> : null}
       <ModelPanel run={run} swept={series.data?.series.sweeps.map((x) => x.param) ?? []} />
       {hasResults ? (
         <>

@@ -11,9 +11,11 @@ export function Validity({ run }: { run: RunRow }) {
     items.push(
       `${run.devicesNotWeak.toLocaleString("en-US")} device(s) leave weak inversion (IC > ${WEAK_INVERSION_IC}) at some point: the exponential model does not hold there.`,
     );
+  // Devices a saturated or unsaturated expectation covers are left to it (the Expectations panel reports them).
+  const expected = run.expectationsFailing !== null;
   if (run.devicesNotSaturated! > 0)
     items.push(
-      `${run.devicesNotSaturated!.toLocaleString("en-US")} device(s) are not saturated (V_DS ≤ 4 U_T) at some point.`,
+      `${run.devicesNotSaturated!.toLocaleString("en-US")} device(s)${expected ? " that no expectation covers" : ""} are not saturated (V_DS ≤ 4 U_T) at some point.`,
     );
   if (run.newtonPoints)
     items.push("The network is outside the linear class: solved by damped Newton iteration, not exactly.");
@@ -21,7 +23,13 @@ export function Validity({ run }: { run: RunRow }) {
     items.push(`${w.message} (${w.points} point${w.points === 1 ? "" : "s"}, first at point ${w.firstPoint})`);
   for (const f of (run.failures ?? []).slice(0, 5)) items.push(`Not solved: ${f.message}`);
   if (items.length === 0)
-    return <p className="text-moss-700">Every device stays in weak inversion and saturation at every point.</p>;
+    return (
+      <p className="text-moss-700">
+        {expected
+          ? "Every device stays in weak inversion, and in saturation where no expectation says otherwise, at every point."
+          : "Every device stays in weak inversion and saturation at every point."}
+      </p>
+    );
   return (
     <ul aria-label="Validity warnings" className="list-disc space-y-0.5 pl-5 text-amber-900">
       {items.map((t, i) => (
