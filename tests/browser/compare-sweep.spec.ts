@@ -198,8 +198,19 @@ test("a 1,000-point sweep compared, then reviewed through a thread, the inbox an
   await reviewer.getByRole("button", { name: "Sign off…" }).click();
   const confirm = reviewer.getByRole("dialog", { name: "Sign off this commit?" });
   await expect(confirm.getByRole("list", { name: "Runs being signed off" })).toContainText(toRun.slice(0, 10));
-  await confirm.getByRole("button", { name: /^Sign off \w+/ }).click();
+  // The sweep takes the row out of weak inversion and below its contrast target: a reason is required.
+  await expect(confirm.getByTestId("signoff-expectations")).toHaveText(
+    "Expectations: 2 of 6 failing: weak_inversion, edge_contrast",
+  );
+  await expect(confirm.locator('[data-check="failed"]').first()).toContainText("weak_inversion");
+  const signOff = confirm.getByRole("button", { name: /^Sign off \w+/ });
+  await expect(signOff).toBeDisabled();
+  await confirm.getByRole("textbox").fill("The sweep's top end is outside the bias range we tape out with.");
+  await signOff.click();
   await expect(reviewer.getByTestId("my-verdict")).toHaveAttribute("data-state", "signed_off");
+  await expect(reviewer.getByTestId("signed-off-failing").last()).toContainText(
+    "Signed off although the newest run failed weak_inversion, edge_contrast",
+  );
   await reviewer.getByRole("button", { name: "Withdraw my verdict" }).click();
   await expect(reviewer.getByTestId("my-verdict")).toHaveAttribute("data-state", "none");
   await expect(reviewer.getByRole("button", { name: "Sign off…" })).toBeEnabled();

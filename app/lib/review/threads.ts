@@ -35,6 +35,7 @@ import { newId } from "@/db/ids";
 import { commitBadges, type ReviewState } from "./diffs";
 import { extractMentions, extractRunRefs, renderComment, type RenderContext } from "./markdown";
 import { keyProbes } from "./run-tables";
+import { signOffReasonError, signOffSummaries } from "./sign-off";
 import { immediate } from "../db-busy";
 
 export const MAX_COMMENT_LENGTH = 20_000;
@@ -155,6 +156,11 @@ export async function addComment(
       throw new RequestError(422, `commitId: ${verdictCommit} is not a commit of this thread's network`);
   }
 
+  if (verdict === "signed_off") {
+    // A commit whose newest run fails an expectation is signed off only with a written reason (sign-off.ts).
+    const refused = signOffReasonError(verdictCommit, body, d);
+    if (refused) throw new RequestError(422, refused);
+  }
   if (verdict === "withdrawn") {
     const current = d
       .select({ verdict: reviews.verdict })
@@ -417,6 +423,8 @@ export interface ThreadView {
     createdAt: number;
     verdict: ReviewEntry | null;
     verdictCommitId: string | null;
+    /** A sign-off given while the commit's newest runs failed expectations: their names (its body says why). */
+    signedOffFailing: string[] | null;
   }[];
   /** Review state of each commit a verdict in this thread is about (the thread's commit first). */
   commitStates: { commitId: string; message: string; review: ReviewState }[];
@@ -497,6 +505,7 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
       createdAt: r.c.createdAt.getTime(),
       verdict: verdictOf.get(r.c.id)?.verdict ?? null,
       verdictCommitId: verdictOf.get(r.c.id)?.commitId ?? null,
+      signedOffFailing: failingAtSignOff(verdictOf.get(r.c.id), r.c.createdAt, d),
     })),
     runCards: cards.filter((c) => c.found),
     commitStates: verdictCommits.map((id) => ({
@@ -505,6 +514,13 @@ export function getThread(id: string, d: Q = db()): ThreadView | null {
       review: badgeMap.get(id)!.review,
     })),
   };
+}
+
+/** The expectations a sign-off was given over (failing in the commit's newest runs then), or null. */
+function failingAtSignOff(v: { verdict: ReviewEntry; commitId: string } | undefined, at: Date, d: Q): string[] | null {
+  if (v?.verdict !== "signed_off") return null;
+  const failing = signOffSummaries([v.commitId], d, at)[v.commitId]?.failing ?? [];
+  return failing.length ? failing : null;
 }
 
 /** Threads of a network (or of one commit), newest activity first. */

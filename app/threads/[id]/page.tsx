@@ -128,6 +128,11 @@ export default async function ThreadPage({ params }: Props) {
                 </span>
               ) : null}
             </p>
+            {c.signedOffFailing ? (
+              <p data-testid="signed-off-failing" className="mb-2 text-xs font-medium text-ember-500">
+                Signed off although the newest run failed {c.signedOffFailing.join(", ")}. The reason given:
+              </p>
+            ) : null}
             {c.body ? (
               <CommentBody html={c.html} cards={t.runCards} />
             ) : (

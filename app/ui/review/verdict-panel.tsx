@@ -58,7 +58,8 @@ export function VerdictPanel({ threadId, commits, defaultCommitId, summaries, mi
   }
 
   const runsWithWarnings = summary?.runs.filter((r) => r.warnings.length > 0).length ?? 0;
-  const reasonMissing = !!summary?.reasonRequired && reason.trim() === "";
+  const reasonMissing =
+    !!summary?.reasonRequired && reason.replace(/\s+/g, " ").trim().length < summary.reasonMinLength;
   return (
     <section aria-label="Your verdict" className="space-y-2 rounded border border-stone-300 bg-white p-3 text-sm">
       <div className="flex flex-wrap items-center gap-2">
@@ -176,6 +177,14 @@ export function VerdictPanel({ threadId, commits, defaultCommitId, summaries, mi
                   </ul>
                 )}
               </div>
+              {summary.expectations ? (
+                <p
+                  data-testid="signoff-expectations"
+                  className={summary.failing.length ? "font-medium text-ember-500" : "text-moss-700"}
+                >
+                  Expectations: {summary.expectations}
+                </p>
+              ) : null}
               {runsWithWarnings ? (
                 <p className="text-ochre-700">
                   {runsWithWarnings} of these runs carry validity warnings: the model may not hold there.
