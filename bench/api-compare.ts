@@ -206,13 +206,31 @@ if (canBrowse)
     args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking"],
   });
 for (const c of cases) {
-  // the first request of a pair decodes both runs and computes the summaries; later ones find them in the cache
+  // the first request of a pair decodes both runs and computes the summaries (in the interactive pool); later ones
+  // find them in the cache. Meanwhile another client asks /api/health every 50 ms: does everyone else still get answers?
   const t = performance.now();
-  const analysis = await analysisOf(c);
+  let done = false;
+  const healthMs: number[] = [];
+  const prober = (async () => {
+    while (!done) {
+      const h0 = performance.now();
+      await (await fetch(`${base}/api/health`)).arrayBuffer();
+      healthMs.push(performance.now() - h0);
+      await new Promise((r) => setTimeout(r, 50));
+    }
+  })();
+  const analysis = await analysisOf(c).finally(() => (done = true));
   const firstMs = performance.now() - t;
+  await prober;
+  const sorted = healthMs.sort((a, b) => a - b);
+  const health = {
+    probes: sorted.length,
+    p95: sorted[Math.min(sorted.length - 1, Math.floor(sorted.length * 0.95))] ?? Number.NaN,
+    max: sorted.at(-1) ?? Number.NaN,
+  };
   const apiF = await apiFigures(c, analysis);
   const pageF = canBrowse ? await pageFigures(c.slug, c) : null;
-  results.push({ case: c.name, analysis, firstMs, api: apiF, page: pageF });
+  results.push({ case: c.name, analysis, firstMs, health, api: apiF, page: pageF });
 }
 await browser?.close();
 
@@ -227,6 +245,9 @@ else {
   for (const r of results) {
     console.log(`  ${r.case} (analysis ${r.analysis})`);
     console.log(`    API compare, the pair's first request (nothing cached): ${r.firstMs.toFixed(0)} ms`);
+    console.log(
+      `    meanwhile /api/health: ${r.health.probes} probes, p95 ${r.health.p95.toFixed(0)} ms, max ${r.health.max.toFixed(0)} ms`,
+    );
     for (const [k, v] of Object.entries(r.api))
       console.log(`    API ${k.padEnd(8)} ${v.ms.toFixed(0).padStart(6)} ms ${kB(v.bytes).padStart(10)} on the wire`);
     if (!r.page) console.log(`    page: SKIPPED (no Chromium at ${CHROMIUM})`);

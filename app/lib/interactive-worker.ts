@@ -10,6 +10,9 @@
 import { openDatabase, type DB } from "@/db";
 import { isBusy } from "./db-busy";
 import { storeMeasurement } from "./review/measurement-store";
+import type { Tolerance } from "./review/results-diff";
+import { runSource } from "./review/run-tables";
+import { compareRuns, type AnalysisComparison } from "./review/sweep-compare";
 import { parseMeasurementCsv, type CsvError, type ParseResult } from "./review/measurements";
 import { checkNetworkText, planNetworkText, type PlanText, type TextCheck } from "./text-check";
 import { releaseWhenIdle } from "./worker-memory";
@@ -18,7 +21,11 @@ export type InteractiveTask =
   | { kind: "check"; text: string }
   | { kind: "plan"; text: string; workers: number; extraPointMs?: number }
   | { kind: "csv"; bytes: Uint8Array }
-  | { kind: "store-csv"; bytes: Uint8Array; dbFile: string; measurement: MeasurementFields };
+  | { kind: "store-csv"; bytes: Uint8Array; dbFile: string; measurement: MeasurementFields }
+  | { kind: "compare"; dbFile: string; fromRunId: string; toRunId: string; tolerance: Tolerance };
+
+/** A comparison of two runs as a pool thread sends it back: everything but the two run sources (their readers). */
+export type ComparisonCore = Omit<AnalysisComparison, "from" | "to">;
 
 /** What is stored with a measurement besides its values (already authorised by the route). */
 export interface MeasurementFields {
@@ -37,7 +44,9 @@ export type InteractiveResult<T extends InteractiveTask> = T extends { kind: "ch
     ? PlanText | null
     : T extends { kind: "csv" }
       ? ParseResult
-      : StoreCsvResult;
+      : T extends { kind: "store-csv" }
+        ? StoreCsvResult
+        : ComparisonCore | null;
 
 let connection: { file: string; db: DB } | null = null;
 /** The thread's connection to `file` (opened once; it waits up to 5 s for a lock, off the request thread). */
@@ -63,9 +72,20 @@ function storeCsv(task: Extract<InteractiveTask, { kind: "store-csv" }>): StoreC
   }
 }
 
+/** Reads both done runs through the thread's connection and compares them (seconds for a 1,000-point sweep). */
+function compare(task: Extract<InteractiveTask, { kind: "compare" }>): ComparisonCore | null {
+  const d = database(task.dbFile);
+  const a = runSource(task.fromRunId, d);
+  const b = runSource(task.toRunId, d);
+  if (!a || !b) return null;
+  // eslint-disable-next-line @typescript-eslint/no-unused-vars
+  const { from, to, ...core } = compareRuns(a, b, task.tolerance);
+  return core;
+}
+
 export default function interactiveTask(
   task: InteractiveTask,
-): TextCheck | PlanText | ParseResult | StoreCsvResult | null {
+): TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null {
   try {
     switch (task.kind) {
       case "check":
@@ -76,6 +96,8 @@ export default function interactiveTask(
         return parseMeasurementCsv(task.bytes);
       case "store-csv":
         return storeCsv(task);
+      case "compare":
+        return compare(task);
     }
   } finally {
     // The kept thread gives back what the task left (a large network's elaboration) once it is idle.

@@ -21,7 +21,14 @@ import path from "node:path";
 import type Piscina from "piscina";
 import { RequestError } from "./http";
 import { databasePath } from "@/db";
-import type { InteractiveResult, InteractiveTask, MeasurementFields, StoreCsvResult } from "./interactive-worker";
+import type {
+  ComparisonCore,
+  InteractiveResult,
+  InteractiveTask,
+  MeasurementFields,
+  StoreCsvResult,
+} from "./interactive-worker";
+import type { Tolerance } from "./review/results-diff";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
 
@@ -40,7 +47,7 @@ export function interactiveTimeLimitMs(): number {
 }
 
 const KEY = Symbol.for("runnel.interactive.pool");
-type Pool = Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | null>;
+type Pool = Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null>;
 
 async function pool(): Promise<Pool> {
   return poolWith(0);
@@ -57,7 +64,7 @@ async function poolWith(minThreads: number): Promise<Pool> {
   const g = globalThis as unknown as Record<symbol, Pool | undefined>;
   if (!g[KEY]) {
     const { Piscina } = await import("piscina");
-    g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | null>({
+    g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null>({
       filename: INTERACTIVE_WORKER_FILE(),
       maxThreads: interactiveThreads(),
       minThreads,
@@ -72,6 +79,7 @@ const WHAT: Record<InteractiveTask["kind"], string> = {
   plan: "planning the run",
   csv: "reading the measurement CSV",
   "store-csv": "reading and storing the measurement CSV",
+  compare: "comparing the two runs",
 };
 
 /** Runs `task` in the interactive pool, under its time limit, cancelled when `signal` aborts. */
@@ -125,6 +133,16 @@ export function storeCsvInWorker(
   signal?: AbortSignal,
 ): Promise<StoreCsvResult> {
   return runInteractive({ kind: "store-csv", bytes, dbFile: databasePath(), measurement }, signal);
+}
+
+/** Two done runs compared by a pool thread (it reads them through its own connection); null when one has no results. */
+export function compareInWorker(
+  fromRunId: string,
+  toRunId: string,
+  tolerance: Tolerance,
+  signal?: AbortSignal,
+): Promise<ComparisonCore | null> {
+  return runInteractive({ kind: "compare", dbFile: databasePath(), fromRunId, toRunId, tolerance }, signal);
 }
 
 /** Ends the pool's threads (tests and scripts that must exit). */

@@ -2,7 +2,7 @@ import { z } from "zod";
 import { commitPairAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf } from "@/app/lib/http";
 import { compareCommits } from "@/app/lib/review/diffs";
-import { analysisSummaries } from "@/app/lib/review/compare-data";
+import { analysisSummaries, prepareComparisons } from "@/app/lib/review/compare-data";
 import { toleranceOf, ToleranceQuery } from "@/app/lib/review/compare-query";
 
 export const dynamic = "force-dynamic";
@@ -27,6 +27,7 @@ export function GET(request: Request) {
     const q = parseInput(Query, queryOf(request));
     const { from, to, network } = commitPairAccess(await requestActor(request), "workspace.read", q.from, q.to);
     const tolerance = toleranceOf(q);
+    await prepareComparisons(from.id, to.id, tolerance);
     const c = compareCommits(from.id, to.id, { tolerance, includeWithin: q.all === "1", limit: q.limit ?? 0 });
     return Response.json({
       ...c,

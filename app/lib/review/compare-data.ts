@@ -7,10 +7,15 @@
  *
  * Functions take already-authorised commit ids. A comparison of two runs is
  * computed once per tolerance and kept in a small in-process cache (runs that
- * are done never change, so an entry never goes stale).
+ * are done never change, so an entry never goes stale). Routes and pages call
+ * `prepareComparisons` first: it computes what the cache lacks in the
+ * interactive pool (app/lib/interactive.ts), so a first visit of a 1,000-point
+ * sweep pair (seconds of work) does not hold the request thread; the
+ * synchronous functions below then find their comparison in the cache.
  */
 import { db } from "@/db";
 import type { Q } from "@/db";
+import { compareInWorker } from "../interactive";
 import { DEFAULT_TOLERANCE, type Quantity, type Tolerance, type ValueKind } from "./results-diff";
 import { latestDoneRuns, probeColumns, runSource, storedPointKey } from "./run-tables";
 import {
@@ -37,7 +42,57 @@ import {
 const CACHE_SIZE = 8;
 const cache = new Map<string, AnalysisComparison>();
 
-/** The comparison of two done runs under a tolerance, from the cache or computed (null when a run has no layout). */
+function cacheKey(fromRunId: string, toRunId: string, tol: Tolerance): string {
+  return `${fromRunId}>${toRunId}|${tol.rel},${tol.absCurrent},${tol.absVoltage},${tol.absProbe},${tol.absIc}`;
+}
+
+function remember(key: string, c: AnalysisComparison): void {
+  if (cache.size >= CACHE_SIZE) cache.delete(cache.keys().next().value!);
+  cache.set(key, c);
+}
+
+/** Comparisons being computed in the pool, by cache key (two visitors of a new pair share one computation). */
+const pending = new Map<string, Promise<void>>();
+
+/**
+ * Computes, off the request thread, the comparison of every analysis of two commits that the cache lacks under
+ * `tolerance` (the compare page, GET /api/compare, /entities and /series call it before the functions below).
+ */
+export async function prepareComparisons(
+  fromCommitId: string,
+  toCommitId: string,
+  tolerance: Partial<Tolerance> = {},
+  d: Q = db(),
+): Promise<void> {
+  const tol = { ...DEFAULT_TOLERANCE, ...tolerance };
+  const work: Promise<void>[] = [];
+  for (const p of pairedRuns(fromCommitId, toCommitId, d)) {
+    if (!p.fromRunId || !p.toRunId) continue;
+    const { fromRunId, toRunId } = p;
+    const key = cacheKey(fromRunId, toRunId, tol);
+    if (cache.has(key)) continue;
+    let job = pending.get(key);
+    if (!job) {
+      job = compareInWorker(fromRunId, toRunId, tol)
+        .then((core) => {
+          if (!core) return;
+          // The readers of both runs are made here (cheap: the layout and the stored point numbers).
+          const from = runSource(fromRunId, d);
+          const to = runSource(toRunId, d);
+          if (from && to) remember(key, { ...core, from, to });
+        })
+        .finally(() => pending.delete(key));
+      pending.set(key, job);
+    }
+    work.push(job);
+  }
+  await Promise.all(work);
+}
+
+/**
+ * The comparison of two done runs under a tolerance, from the cache or computed here (null when a run has no
+ * layout). Request handlers call `prepareComparisons` first, so the computation here serves tests and scripts.
+ */
 export function runComparison(
   fromRunId: string,
   toRunId: string,
@@ -45,7 +100,7 @@ export function runComparison(
   d: Q = db(),
 ): AnalysisComparison | null {
   const tol = { ...DEFAULT_TOLERANCE, ...tolerance };
-  const key = `${fromRunId}>${toRunId}|${tol.rel},${tol.absCurrent},${tol.absVoltage},${tol.absProbe},${tol.absIc}`;
+  const key = cacheKey(fromRunId, toRunId, tol);
   const hit = cache.get(key);
   if (hit) {
     cache.delete(key);
@@ -56,8 +111,7 @@ export function runComparison(
   const b = runSource(toRunId, d);
   if (!a || !b) return null;
   const c = compareRuns(a, b, tol);
-  if (cache.size >= CACHE_SIZE) cache.delete(cache.keys().next().value!);
-  cache.set(key, c);
+  remember(key, c);
   return c;
 }
 

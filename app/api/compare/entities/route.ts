@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { commitPairAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { comparisonPage } from "@/app/lib/review/compare-data";
+import { comparisonPage, prepareComparisons } from "@/app/lib/review/compare-data";
 import { toleranceOf, ToleranceQuery } from "@/app/lib/review/compare-query";
 
 export const dynamic = "force-dynamic";
@@ -28,6 +28,7 @@ export function GET(request: Request) {
   return handle(async () => {
     const q = parseInput(Query, queryOf(request));
     const { from, to } = commitPairAccess(await requestActor(request), "workspace.read", q.from, q.to);
+    await prepareComparisons(from.id, to.id, toleranceOf(q));
     const page = comparisonPage(from.id, to.id, q.analysis, q.kind, q.quantity, {
       page: q.page,
       size: q.size,

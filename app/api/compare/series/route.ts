@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { commitPairAccess, requestActor } from "@/app/lib/access";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
-import { comparisonSeries } from "@/app/lib/review/compare-data";
+import { comparisonSeries, prepareComparisons } from "@/app/lib/review/compare-data";
 
 export const dynamic = "force-dynamic";
 
@@ -25,6 +25,7 @@ export function GET(request: Request) {
   return handle(async () => {
     const q = parseInput(Query, queryOf(request));
     const { from, to } = commitPairAccess(await requestActor(request), "workspace.read", q.from, q.to);
+    await prepareComparisons(from.id, to.id);
     const s = comparisonSeries(
       from.id,
       to.id,

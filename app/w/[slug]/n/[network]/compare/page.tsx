@@ -4,7 +4,7 @@ import { notFound } from "next/navigation";
 import { RequestError } from "@/app/lib/http";
 import { getCommit, listCommits, networkBySlug } from "@/app/lib/networks";
 import { workspacePage } from "@/app/lib/pages";
-import { analysisSummaries, type AnalysisSummary } from "@/app/lib/review/compare-data";
+import { analysisSummaries, prepareComparisons, type AnalysisSummary } from "@/app/lib/review/compare-data";
 import { commitBadges, compareCommits, type Comparison } from "@/app/lib/review/diffs";
 import { runsOfCommit } from "@/app/lib/review/run-tables";
 import { handleOf, listThreads } from "@/app/lib/review/threads";
@@ -53,6 +53,7 @@ export default async function ComparePage({ params, searchParams }: Props) {
   let problem: string | null = null;
   if (from && to) {
     try {
+      await prepareComparisons(from.id, to.id, tol);
       cmp = compareCommits(from.id, to.id, { tolerance: tol, limit: 0 });
       analyses = analysisSummaries(from.id, to.id, tol);
     } catch (e) {
