@@ -18,6 +18,7 @@ import type { StoredPoint } from "./point-codec";
 import { expectationJson } from "@/src/solver/expectation-summary";
 import { storedExpectations } from "./run-expectations";
 import { eachPoint, readPoint, type RunLayout } from "./results";
+import { workerExecArgv } from "./worker-memory";
 
 /** How many names (nodes, devices, rails) one chunk of an export holds: a chunk is a few hundred kB at most. */
 export const NAMES_PER_CHUNK = 2048;
@@ -138,7 +139,10 @@ export function exportInWorker(task: Omit<ExportTask, "dbFile">): ReadableStream
     {
       async start() {
         release = await exportSlot();
-        worker = new Worker(EXPORT_WORKER_FILE(), { workerData: { ...task, dbFile: databasePath() } });
+        worker = new Worker(EXPORT_WORKER_FILE(), {
+          execArgv: workerExecArgv(),
+          workerData: { ...task, dbFile: databasePath() },
+        });
         worker.on("message", (m) => answer?.(m));
         worker.on("error", (e) => {
           failure = e;

@@ -31,6 +31,7 @@ import type {
 import type { Tolerance } from "./review/results-diff";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
+import { workerExecArgv } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
   path.join(/*turbopackIgnore: true*/ process.cwd(), ".build", "interactive-worker.mjs");
@@ -66,6 +67,7 @@ async function poolWith(minThreads: number): Promise<Pool> {
     const { Piscina } = await import("piscina");
     g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null>({
       filename: INTERACTIVE_WORKER_FILE(),
+      execArgv: workerExecArgv(),
       maxThreads: interactiveThreads(),
       minThreads,
       idleTimeout: IDLE_MS,

@@ -34,6 +34,7 @@ import {
 } from "./run-exec";
 import type { StopKind, TestFault } from "./run-chunk";
 import { finishRun, runDispatchInfo } from "./runs";
+import { workerExecArgv } from "./worker-memory";
 
 /** How long a chunk may take to honour a stop request before it is terminated. */
 export const STOP_GRACE_MS = 5_000;
@@ -95,6 +96,7 @@ async function piscina(minThreads = 0): Promise<Piscina<RunTask, ChunkResult | R
     const { Piscina } = await import("piscina");
     s.piscina = new Piscina<RunTask, ChunkResult | RunTaskResult | null>({
       filename: WORKER_FILE(),
+      execArgv: workerExecArgv(),
       maxThreads: concurrency(),
       minThreads,
       idleTimeout: 60_000,

@@ -38,3 +38,28 @@ export function releaseWhenIdle(drop: () => void = () => {}, afterMs = RELEASE_A
   }, afterMs);
   timer.unref?.();
 }
+
+const LOADER_FLAGS = new Set(["--import", "--require", "-r", "--loader", "--experimental-loader"]);
+const TSX = /(^|[/\\])tsx([/\\]|$)/;
+
+/**
+ * The Node options for the pools' worker threads: this process's, without the TypeScript loader that
+ * `npm start` and the demo run the server under (`--import tsx`). The workers run esbuild bundles
+ * (.build/*.mjs, plain JavaScript); a thread that inherits the loader passes its 1.2 MB bundle through it at
+ * start-up, about 0.5–1 s of CPU on the development VM against 0.2–0.3 s without (a run's first chunk on a
+ * thread that had idled out paid it).
+ */
+export function workerExecArgv(argv: readonly string[] = process.execArgv): string[] {
+  const out: string[] = [];
+  for (let k = 0; k < argv.length; k++) {
+    const a = argv[k];
+    if (LOADER_FLAGS.has(a) && k + 1 < argv.length && TSX.test(argv[k + 1])) {
+      k++;
+      continue;
+    }
+    const eq = a.indexOf("=");
+    if (eq > 0 && LOADER_FLAGS.has(a.slice(0, eq)) && TSX.test(a.slice(eq + 1))) continue;
+    out.push(a);
+  }
+  return out;
+}

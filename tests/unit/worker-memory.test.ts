@@ -1,9 +1,9 @@
 /**
  * app/lib/worker-memory.ts: a thread's caches are dropped and the heap collected once it has been idle, and a
- * new task before then postpones it.
+ * new task before then postpones it; the workers start without the server's TypeScript loader.
  */
 import { describe, expect, it } from "vitest";
-import { releaseWhenIdle } from "@/app/lib/worker-memory";
+import { releaseWhenIdle, workerExecArgv } from "@/app/lib/worker-memory";
 
 const pause = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
@@ -36,5 +36,25 @@ describe("releaseWhenIdle", () => {
     expect(drops).toBe(0);
     await pause(80);
     expect(drops).toBe(1);
+  });
+});
+
+describe("workerExecArgv", () => {
+  it("drops the TypeScript loader and keeps every other option", () => {
+    expect(workerExecArgv(["--import", "tsx", "--max-old-space-size=4096"])).toEqual(["--max-old-space-size=4096"]);
+    expect(workerExecArgv(["--import=tsx", "--cpu-prof", "--cpu-prof-dir=/tmp/p"])).toEqual([
+      "--cpu-prof",
+      "--cpu-prof-dir=/tmp/p",
+    ]);
+    expect(workerExecArgv(["--require", "/app/node_modules/tsx/dist/cjs/index.cjs", "--inspect"])).toEqual([
+      "--inspect",
+    ]);
+    // another loader, and an option that only mentions tsx in a value, stay
+    expect(workerExecArgv(["--import", "./trace.mjs", "--title=tsx-server"])).toEqual([
+      "--import",
+      "./trace.mjs",
+      "--title=tsx-server",
+    ]);
+    expect(workerExecArgv([])).toEqual([]);
   });
 });
