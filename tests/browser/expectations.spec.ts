@@ -3,7 +3,8 @@ import { expect, test, type Page } from "@playwright/test";
 /**
  * Expectations in the browser, on the seeded demo (scripts/seed): the run page opens with its Expectations panel
  * first — each expectation's status, points passing, margin and where it fails, the margin along the sweep and,
- * for the Monte Carlo study, the yield with its interval. Screenshots go to test-results/browser/expectations-*.png.
+ * for the Monte Carlo study, the yield with its interval; the workspace list and a network's history show each
+ * commit's expectation status. Screenshots go to test-results/browser/expectations-*.png.
  */
 const shot = (page: Page, name: string) =>
   page.screenshot({ path: `test-results/browser/expectations-${name}.png`, fullPage: true });
@@ -22,6 +23,15 @@ test("the run page shows the expectations first: status, margin, where it fails,
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
   await signIn(page, "designer@larkspur.example");
+  await page.goto("/w/lm64-edge-row");
+  // The workspace list: each network's newest commit with its expectations' status from its newest run.
+  const divider = page.locator("li", { has: page.getByRole("link", { name: "Bias divider", exact: true }) });
+  await expect(divider.locator("[data-head-expectations]")).toHaveAttribute("data-head-expectations", "pass");
+  await expect(divider.locator("[data-slot=expectation-status]")).toHaveText("all 3 pass");
+  // Its history shows the same on the commit's row.
+  await divider.getByRole("link", { name: "Bias divider", exact: true }).click();
+  const history = page.getByRole("list", { name: "Commits" });
+  await expect(history.locator("[data-slot=expectation-status]").first()).toHaveText("all 3 pass");
   await page.goto("/w/lm64-edge-row");
   await page.getByRole("link", { name: /^Newest run of Divider mismatch study/ }).click();
   const panel = page.getByRole("region", { name: "Expectations" });

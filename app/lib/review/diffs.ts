@@ -13,6 +13,7 @@ import { DEFAULT_TOLERANCE, diffResults, summarize, type ResultsDiff, type Toler
 import { diffText, type TextDiff } from "./text-diff";
 import { latestDoneRuns, runTable, analysisName } from "./run-tables";
 import { layoutHead } from "../run-layouts";
+import { expectationBadges, NOT_RUN, type ExpectationBadge } from "./expectation-status";
 
 /** Beyond-tolerance rows kept in a stored diff. */
 export const STORED_ROWS = 200;
@@ -94,6 +95,8 @@ export interface CommitBadge {
   verdicts: { reviewerId: string; reviewerName: string; verdict: Verdict; at: number; threadId: string | null }[];
   /** Newest stored diff per analysis. */
   diffs: { runId: string; analysis: string; compared: number; beyond: number; names: string[]; note?: string }[];
+  /** Its expectations from its newest ended run (expectation-status.ts). */
+  expectations: ExpectationBadge;
 }
 
 /** The review state of commits (invariant in db/review-schema.ts). */
@@ -103,12 +106,13 @@ export function reviewStateOf(verdicts: { verdict: Verdict }[]): ReviewState {
   return "open";
 }
 
-/** Sign-off state and "N values moved" for each commit (history badges). */
+/** Sign-off state, "N values moved" and the expectations' status of each commit (history badges). */
 export function commitBadges(commitIds: string[], d: Q = db()): Map<string, CommitBadge> {
   const out = new Map<string, CommitBadge>(
-    commitIds.map((id) => [id, { commitId: id, review: "open", verdicts: [], diffs: [] }]),
+    commitIds.map((id) => [id, { commitId: id, review: "open", verdicts: [], diffs: [], expectations: NOT_RUN }]),
   );
   if (commitIds.length === 0) return out;
+  for (const [id, x] of expectationBadges(commitIds, d)) out.get(id)!.expectations = x;
   const rows = d
     .select({
       commitId: reviews.commitId,

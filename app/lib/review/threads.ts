@@ -36,6 +36,9 @@ import { commitBadges, type ReviewState } from "./diffs";
 import { extractMentions, extractRunRefs, renderComment, type RenderContext } from "./markdown";
 import { keyProbes } from "./run-tables";
 import { signOffReasonError, signOffSummaries } from "./sign-off";
+import { runExpectationBadge, type ExpectationBadge } from "./expectation-status";
+import { layoutHeads } from "../run-layouts";
+import { isLive } from "@/db/run-states";
 import { immediate } from "../db-busy";
 
 export const MAX_COMMENT_LENGTH = 20_000;
@@ -306,6 +309,8 @@ export interface RunCard {
   commitId?: string;
   commitMessage?: string;
   probes?: { name: string; unit?: string | null; first: number; min: number; max: number }[];
+  /** Its expectations from the summary stored when it ended (expectation-status.ts). */
+  expectations?: ExpectationBadge;
 }
 
 /** Member handles of a workspace, with names (mention completion and resolution). */
@@ -383,6 +388,7 @@ export function runCards(ids: string[], workspaceId: string, d: Q = db()): RunCa
         pointsTotal: runs.pointsTotal,
         commitId: runs.commitId,
         commitMessage: commits.message,
+        expectationsFailing: runs.expectationsFailing,
       })
       .from(runs)
       .innerJoin(commits, eq(commits.id, runs.commitId))
@@ -391,6 +397,7 @@ export function runCards(ids: string[], workspaceId: string, d: Q = db()): RunCa
       .filter((r) => r.workspaceId === workspaceId)
       .map((r) => [r.id, r]),
   );
+  const heads = layoutHeads([...found.keys()], d);
   return ids.map((id) => {
     const r = found.get(id);
     if (!r) return { id, found: false };
@@ -403,6 +410,11 @@ export function runCards(ids: string[], workspaceId: string, d: Q = db()): RunCa
       commitId: r.commitId,
       commitMessage: r.commitMessage,
       probes: keyProbes(id, 4, d),
+      expectations: runExpectationBadge(
+        id,
+        isLive(r.state) ? null : r.expectationsFailing,
+        heads.get(id)?.expectations?.length ?? 0,
+      ),
     };
   });
 }

@@ -1,4 +1,6 @@
 import type { CommitBadge, ReviewState } from "@/app/lib/review/diffs";
+import type { ExpectationBadge } from "@/app/lib/review/expectation-status";
+import { ExpectationStatus } from "@/app/ui/expectation-status";
 
 /**
  * Review states as small stamps: a glyph, the words in small capitals, and a
@@ -65,12 +67,30 @@ export function MovedBadge({ diffs }: { diffs: CommitBadge["diffs"] }) {
   );
 }
 
-/** Both badges of a commit, for history rows. */
+/** A commit's (or network's, or run's) expectations: all pass, n failing, not run, or no checks. */
+export function ExpectationBadgeView({ badge }: { badge: ExpectationBadge | undefined }) {
+  if (!badge) return null;
+  if (badge.status === "none")
+    return (
+      <span
+        data-slot="expectation-status"
+        data-status="none"
+        className="inline-block px-1.5 py-0.5 text-xs text-stone-500"
+        title="The network states no expectations"
+      >
+        no checks
+      </span>
+    );
+  return <ExpectationStatus failing={badge.status === "not-run" ? null : badge.failing} count={badge.count || null} />;
+}
+
+/** The badges of a commit, for history rows. */
 export function CommitReviewBadges({ badge }: { badge: CommitBadge | undefined }) {
   if (!badge) return null;
   return (
     <span className="inline-flex flex-wrap items-center gap-1">
       <ReviewStateBadge state={badge.review} />
+      <ExpectationBadgeView badge={badge.expectations} />
       <MovedBadge diffs={badge.diffs} />
     </span>
   );

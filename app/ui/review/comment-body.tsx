@@ -10,6 +10,7 @@ import { useEffect, useRef, useState } from "react";
 import { createPortal } from "react-dom";
 import type { RunCard as RunCardData } from "@/app/lib/review/threads";
 import { formatEng, formatNumber } from "@/app/lib/format";
+import { ExpectationBadgeView } from "./badges";
 
 /** A probe's value on a run card: with its unit when the run knows it ("596 pA"), four figures otherwise. */
 const value = (v: number, unit: string | null | undefined) => (unit ? formatEng(v, unit, 4) : formatNumber(v));
@@ -36,6 +37,7 @@ export function RunCard({ card }: { card: RunCardData | undefined }) {
       <span className="tabular text-stone-600">
         {card.pointsDone}/{card.pointsTotal} points
       </span>
+      <ExpectationBadgeView badge={card.expectations} />
       {card.probes?.map((p) => (
         <span key={p.name} className="tabular font-mono">
           {p.name} = {p.min === p.max ? value(p.first, p.unit) : `${value(p.min, p.unit)} … ${value(p.max, p.unit)}`}
