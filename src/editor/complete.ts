@@ -7,7 +7,15 @@
  * produced (loop-expanded nodes such as x1..x64) are added when a linter run
  * has published them through `elaboratedNames`.
  */
-import type { Completion, CompletionContext, CompletionResult, CompletionSource } from "@codemirror/autocomplete";
+import {
+  type Completion,
+  type CompletionContext,
+  type CompletionResult,
+  type CompletionSource,
+  insertCompletionText,
+  pickedCompletion,
+  startCompletion,
+} from "@codemirror/autocomplete";
 import { syntaxTree } from "@codemirror/language";
 import { type EditorState, StateEffect, StateField } from "@codemirror/state";
 import { NodeType, type SyntaxNode, Tree, type TreeBuffer } from "@lezer/common";
@@ -555,7 +563,7 @@ function optionsFor(state: EditorState, slot: Slot, pos: number, typed: SyntaxNo
         out.push({ label: b, type: "constant", detail: BUILTIN_INFO[b], boost: 1 });
       if (inProbe) {
         for (const f of PROBE_FUNCTIONS)
-          out.push({ label: f, type: "function", apply: `${f}(`, detail: PROBE_INFO[f], boost: 1 });
+          out.push({ label: f, type: "function", apply: probeCall(f), detail: PROBE_INFO[f], boost: 1 });
       }
       for (const f of Object.keys(FUNCTIONS)) out.push({ label: f, type: "function", apply: `${f}(` });
       return out;
@@ -576,6 +584,22 @@ const PROBE_INFO: Record<string, string> = {
   current: "current(device, inject or rail), amperes",
   power: "power() or power(rail, …): power drawn from the rails, watts",
 };
+
+/**
+ * Applies voltage/current as `voltage()` with the cursor between the brackets
+ * and opens the list of the node (or device) names that may go there.
+ */
+function probeCall(fn: string): Completion["apply"] {
+  return (view, completion, from, to) => {
+    view.dispatch({
+      ...insertCompletionText(view.state, `${fn}()`, from, to),
+      annotations: pickedCompletion.of(completion),
+    });
+    const head = view.state.selection.main.head;
+    view.dispatch({ selection: { anchor: head - 1 } });
+    startCompletion(view);
+  };
+}
 
 /**
  * The completion source. Without a typed word it answers only when asked

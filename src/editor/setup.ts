@@ -22,6 +22,7 @@ import {
 } from "@codemirror/view";
 import { palette as c } from "./theme";
 import { runnel } from "./index";
+import { runnelKeys } from "./keys";
 import { type RunnelLintOptions, runnelLinter } from "./lint";
 
 /** A wavy underline in `colour` (a CSS colour or variable) under a diagnostic's range. */
@@ -138,7 +139,8 @@ export function runnelEditorExtensions(options: RunnelEditorOptions = {}): Exten
     indentOnInput(),
     bracketMatching(),
     closeBrackets(),
-    autocompletion({ icons: false }),
+    autocompletion({ icons: false, selectOnOpen: false }),
+    Prec.high(runnelKeys()),
     highlightActiveLine(),
     highlightSelectionMatches(),
     lintGutter(),
