@@ -19,7 +19,7 @@
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
-import { build } from "esbuild";
+import { bundleScript } from "./bundle";
 
 const args = process.argv.slice(2);
 const tsx = "node_modules/tsx/dist/cli.mjs";
@@ -27,20 +27,7 @@ const run = (cmd: string, argv: string[]) =>
   spawnSync(cmd, argv, { stdio: "inherit", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } }).status ?? 1;
 const BUNDLE = ".build/bench-run.mjs";
 
-build({
-  entryPoints: ["bench/run.ts"],
-  outfile: BUNDLE,
-  bundle: true,
-  platform: "node",
-  format: "esm",
-  target: "node20",
-  tsconfig: "tsconfig.json",
-  // ESM output still meets CommonJS dependencies that call require().
-  banner: {
-    js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);",
-  },
-  logLevel: "warning",
-}).then(
+bundleScript("bench/run.ts", BUNDLE).then(
   () => process.exit(main()),
   (e: Error) => {
     process.stderr.write(`bench: bundling bench/run.ts failed: ${e.message}\n`);

@@ -28,7 +28,7 @@ import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { build } from "esbuild";
+import { bundleScript } from "./bundle";
 import { gridText } from "./workloads";
 import { machineLine, numberOption, pause, startBenchServer } from "./api-server";
 
@@ -49,19 +49,7 @@ const text = (rep: number) =>
     `${(1 + rep / 1000).toFixed(3)}n`,
   );
 
-await build({
-  entryPoints: ["bench/sweep-direct.ts"],
-  outfile: DIRECT,
-  bundle: true,
-  platform: "node",
-  format: "esm",
-  target: "node20",
-  tsconfig: "tsconfig.json",
-  banner: {
-    js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);",
-  },
-  logLevel: "warning",
-});
+await bundleScript("bench/sweep-direct.ts", DIRECT);
 
 const { api, base, auth, process: server } = await startBenchServer("bench:api (sweep)", PORT);
 
