@@ -9,7 +9,7 @@ import type uPlotType from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatEng } from "@/app/lib/format";
 import { alignMarks } from "./align-marks";
-import { axisValues } from "./axis";
+import { axisValues, logAxis, logScale } from "./axis";
 import { curveColour, themeColour } from "@/app/ui/theme";
 import type { Curve, Marks } from "./plot-types";
 
@@ -59,10 +59,13 @@ export function LinePlot({
         title,
         width: Math.max(320, el.clientWidth),
         height,
-        scales: { x: { time: false, distr: logX ? 3 : 1 }, y: { distr: logY ? 3 : 1 } },
+        scales: {
+          x: logX ? { time: false, ...logScale() } : { time: false, distr: 1 },
+          y: logY ? logScale() : { distr: 1 },
+        },
         axes: [
-          { label: xLabel, values: axisValues(xUnit), size: 40 },
-          { label: yUnit ? `(${yUnit})` : "", values: axisValues(yUnit), size: 70 },
+          { label: xLabel, size: 40, ...(logX ? logAxis(xUnit) : { values: axisValues(xUnit) }) },
+          { label: yUnit ? `(${yUnit})` : "", size: 70, ...(logY ? logAxis(yUnit) : { values: axisValues(yUnit) }) },
         ],
         series: [
           { label: xLabel, value: (_u, v) => (v == null ? "—" : formatEng(v, xUnit ?? "", 4)) },
