@@ -106,6 +106,14 @@ test("a 1,000-point sweep compared, then reviewed through a thread, the inbox an
   await expect(now).toContainText("1.2u");
   await expect(now).toBeInViewport();
 
+  // the expectations of both newest runs, before → after: the top of the sweep leaves weak inversion in both
+  const checks = page.getByRole("region", { name: "Expectations" });
+  await expect(checks.locator("tr[data-expectation-change]")).toHaveCount(6);
+  await expect(checks.locator('tr[data-expectation="weak_inversion"]')).toHaveAttribute(
+    "data-expectation-change",
+    "still failing",
+  );
+
   // one analysis: 1,000 values of vh matched point by point
   const analysis = page.getByRole("article", { name: /^Analysis / });
   await expect(analysis).toContainText("vh (1,000 values)");

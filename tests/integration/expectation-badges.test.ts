@@ -14,7 +14,8 @@ import { runs } from "@/db/schema";
 import { createNetwork } from "@/app/lib/networks";
 import { executeRun } from "@/app/lib/run-exec";
 import { insertRun } from "@/app/lib/runs";
-import { commitBadge } from "@/app/lib/review/diffs";
+import { commitBadge, compareCommits } from "@/app/lib/review/diffs";
+import { commitText } from "@/app/lib/networks";
 import { expectationBadges } from "@/app/lib/review/expectation-status";
 import { runCards } from "@/app/lib/review/threads";
 import { buildAccountsFixture, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
@@ -89,5 +90,37 @@ describe("a commit's expectation status", () => {
     const [a, b] = runCards([fail.runId!, none.runId!], WORKSPACE.id, db);
     expect(a.expectations).toMatchObject({ status: "fail", failing: 1, count: 2 });
     expect(b.expectations).toMatchObject({ status: "none" });
+  });
+
+  it("changes between two commits on the compare page, newly failing first", () => {
+    const first = commit("Compare band", pairSweep(9) + BAND(0.2, 5));
+    const networkId = db.select().from(runs).where(eq(runs.id, first.runId!)).get()!.networkId;
+    const second = commitText(
+      {
+        networkId,
+        parentId: first.commitId,
+        text: pairSweep(9) + BAND(0.9, 1.1),
+        message: "narrower band",
+        authorId: "u_designer1",
+      },
+      db,
+    );
+    const runId = insertRun(
+      {
+        commitId: second.id,
+        networkId,
+        createdBy: "u_designer1",
+        pointsTotal: 9,
+        timeLimitMs: 60_000,
+        chunks: [{ start: 0, end: 9 }],
+      },
+      db,
+    );
+    expect(executeRun(runId, {}, db).state).toBe("done");
+    const cmp = compareCommits(first.commitId, second.id, {}, db);
+    expect(cmp.expectations.map((c) => [c.name, c.change, c.from?.passed, c.to?.passed])).toEqual([
+      ["ratio_band", "newly failing", true, false],
+      ["pair_saturated", "still passing", true, true],
+    ]);
   });
 });

@@ -14,6 +14,7 @@ import { diffText, type TextDiff } from "./text-diff";
 import { latestDoneRuns, runTable, analysisName } from "./run-tables";
 import { layoutHead } from "../run-layouts";
 import { expectationBadges, NOT_RUN, type ExpectationBadge } from "./expectation-status";
+import { compareExpectations, type ExpectationChange } from "./expectation-compare";
 
 /** Beyond-tolerance rows kept in a stored diff. */
 export const STORED_ROWS = 200;
@@ -189,6 +190,8 @@ export interface Comparison {
   /** Runs compared per analysis (the newest finished run of each commit). */
   runs: { analysis: string; fromRunId: string | null; toRunId: string | null }[];
   results: ResultsDiff;
+  /** Each expectation's status before → after in those runs, newly failing first (expectation-compare.ts). */
+  expectations: ExpectationChange[];
 }
 
 /**
@@ -211,13 +214,19 @@ export function compareCommits(
   const rb = latestDoneRuns(b.id, d);
   const analyses = [...new Set([...rb.keys(), ...ra.keys()])];
   const tables = (m: typeof ra) => [...m.values()].map((r) => runTable(r.id, d)).filter((t) => t !== null);
+  const pairs = analyses.map((an) => ({
+    analysis: an,
+    fromRunId: ra.get(an)?.id ?? null,
+    toRunId: rb.get(an)?.id ?? null,
+  }));
   const brief = (c: typeof a) => ({ id: c.id, message: c.message, authorName: c.authorName, createdAt: c.createdAt });
   return {
     from: brief(a),
     to: brief(b),
     networkId: a.networkId,
     text: diffText(a.text, b.text),
-    runs: analyses.map((an) => ({ analysis: an, fromRunId: ra.get(an)?.id ?? null, toRunId: rb.get(an)?.id ?? null })),
+    runs: pairs,
+    expectations: compareExpectations(pairs, d),
     // the page and GET /api/compare ask again for the same pair: the runs' tables are decoded and diffed once
     results: cachedResults(
       JSON.stringify([

@@ -12,6 +12,7 @@ import { listMembers } from "@/app/lib/members";
 import { CommitHistory } from "@/app/ui/compare/commit-history";
 import { CommitThreads } from "@/app/ui/compare/commit-threads";
 import { ComparisonForm } from "@/app/ui/compare/comparison-form";
+import { ExpectationsSection } from "@/app/ui/compare/expectations-section";
 import { ResultsDiffSection } from "@/app/ui/compare/results-diff-section";
 import { TextDiffSection } from "@/app/ui/compare/text-diff-section";
 
@@ -128,6 +129,10 @@ export default async function ComparePage({ params, searchParams }: Props) {
             text={cmp.text}
             view={view}
             otherViewHref={otherViewHref}
+            labels={[`before · ${short(cmp.from.id)}`, `after · ${short(cmp.to.id)}`]}
+          />
+          <ExpectationsSection
+            changes={cmp.expectations}
             labels={[`before · ${short(cmp.from.id)}`, `after · ${short(cmp.to.id)}`]}
           />
           <ResultsDiffSection
