@@ -21,6 +21,7 @@ import { solveNow } from "./work";
 export const DEMO_THREAD_ID = "t_demo_divider_ratio";
 export const DEMO_SWEEP_THREAD_ID = "t_demo_sweep_output_gate";
 export const DEMO_SPREAD_THREAD_ID = "t_demo_mismatch_area";
+export const DEMO_CONTRAST_THREAD_ID = "t_demo_edge_contrast";
 const BENCH_FILE = "lm64-row-bench.csv";
 
 /** Commits `edit` of a network's head and runs it to the end in-process; returns the commit and run ids. */
@@ -41,10 +42,13 @@ function commitAndRun(
 }
 
 /**
- * Two review threads that open on a comparison (invented): the bias sweep with
- * its output gate raised (overlays of two 2-D sweeps), and the mismatch study
+ * Three review threads that open on a comparison (invented): the bias sweep with
+ * its output gate raised (overlays of two 2-D sweeps), the mismatch study
  * with devices four times the area (two Monte Carlo runs compared as
- * distributions; Pelgrom's law halves σ). Idempotent by thread id.
+ * distributions; Pelgrom's law halves σ), and the edge row with its lateral
+ * gate raised to 760 mV, a commit that fails its `edge_contrast` expectation
+ * (contrast about 2.49 against ≥ 2.5), so the history, the thread's run card
+ * and a sign-off show a failing check. Idempotent by thread id.
  */
 function seedComparisons(db: DB, workspaceId: string): void {
   const at = (minutesAgo: number) => new Date(Date.now() - minutesAgo * 60_000);
@@ -68,6 +72,16 @@ function seedComparisons(db: DB, workspaceId: string): void {
       title: "Spread of the split after quadrupling the area",
       body: (run: string) =>
         `@reviewer Pelgrom's law says σ(ΔVt) ∝ 1/√(WL), so four times the area should halve the spread of \`lnratio\`. The compare page has both distributions with a two-sample Kolmogorov–Smirnov test. Run: [[run ${run}]]`,
+    },
+    {
+      thread: DEMO_CONTRAST_THREAD_ID,
+      network: "LM-64 edge row",
+      edit: (t: string) => t.replace(/param vh = [^\n#]+/, "param vh = 760mV          "),
+      message: "Lateral gate 760 mV: a longer space constant, smoother edges",
+      author: "u_designer2",
+      title: "Edge contrast just under 2.5 at 760 mV",
+      body: (run: string) =>
+        `@reviewer With the lateral gate at 760 mV the row smooths more, but the run fails \`edge_contrast\`: the contrast is about 2.49 against the 2.5 we set. Every other check holds. Do we lower the target or go back to 750 mV? Run: [[run ${run}]]`,
     },
   ];
   for (const c of cases) {

@@ -26,7 +26,7 @@ export const DEMO_NETWORKS: {
     file: "row64.runnel",
     name: "LM-64 edge row",
     author: "u_designer1",
-    message: "Lateral gate at 0.74 V for a space constant of about 4 taps",
+    message: "Lateral gate at 750 mV for a space constant of about 4 taps",
     earlier: {
       edit: (t) => t.replace(/param vh = [^\n#]+/, "param vh = 0.70"),
       message: "First cut of the 64-tap row",
