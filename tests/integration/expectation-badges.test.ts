@@ -11,13 +11,11 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { runs } from "@/db/schema";
-import { createNetwork } from "@/app/lib/networks";
-import { executeRun } from "@/app/lib/run-exec";
-import { insertRun } from "@/app/lib/runs";
 import { commitBadge, compareCommits } from "@/app/lib/review/diffs";
 import { commitText } from "@/app/lib/networks";
 import { expectationBadges } from "@/app/lib/review/expectation-status";
 import { runCards } from "@/app/lib/review/threads";
+import { commitNetwork, executeStoredRun, storeRun } from "../helpers/runs";
 import { buildAccountsFixture, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
 import { pairSweep } from "../helpers/pair-sweep";
 
@@ -33,21 +31,8 @@ const BAND = (low: number, high: number) =>
   `expect ratio_band = ${low} <= ratio <= ${high}\nexpect pair_saturated = saturated devices=m*\n`;
 
 function commit(name: string, text: string, run = true): { commitId: string; runId: string | null } {
-  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name, text, authorId: "u_designer1" }, db);
-  if (!run) return { commitId: commit!.id, runId: null };
-  const runId = insertRun(
-    {
-      commitId: commit!.id,
-      networkId: network.id,
-      createdBy: "u_designer1",
-      pointsTotal: 9,
-      timeLimitMs: 60_000,
-      chunks: [{ start: 0, end: 9 }],
-    },
-    db,
-  );
-  expect(executeRun(runId, {}, db).state).toBe("done");
-  return { commitId: commit!.id, runId };
+  const ids = commitNetwork(db, name, text);
+  return { commitId: ids.commitId, runId: run ? executeStoredRun(db, ids, 9) : null };
 }
 
 describe("a commit's expectation status", () => {
@@ -70,17 +55,7 @@ describe("a commit's expectation status", () => {
     db.update(runs).set({ expectationsFailing: 2 }).where(eq(runs.id, c.runId!)).run();
     expect(expectationBadges([c.commitId], db).get(c.commitId)).toMatchObject({ status: "fail", failing: 2 });
     const networkId = db.select().from(runs).where(eq(runs.id, c.runId!)).get()!.networkId;
-    insertRun(
-      {
-        commitId: c.commitId,
-        networkId,
-        createdBy: "u_designer1",
-        pointsTotal: 9,
-        timeLimitMs: 60_000,
-        chunks: [{ start: 0, end: 9 }],
-      },
-      db,
-    );
+    storeRun(db, { commitId: c.commitId, networkId }, 9);
     expect(expectationBadges([c.commitId], db).get(c.commitId)).toMatchObject({ runId: c.runId, failing: 2 });
   });
 
@@ -105,18 +80,7 @@ describe("a commit's expectation status", () => {
       },
       db,
     );
-    const runId = insertRun(
-      {
-        commitId: second.id,
-        networkId,
-        createdBy: "u_designer1",
-        pointsTotal: 9,
-        timeLimitMs: 60_000,
-        chunks: [{ start: 0, end: 9 }],
-      },
-      db,
-    );
-    expect(executeRun(runId, {}, db).state).toBe("done");
+    executeStoredRun(db, { commitId: second.id, networkId }, 9);
     const cmp = compareCommits(first.commitId, second.id, {}, db);
     expect(cmp.expectations.map((c) => [c.name, c.change, c.from?.passed, c.to?.passed])).toEqual([
       ["ratio_band", "newly failing", true, false],

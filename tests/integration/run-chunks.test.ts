@@ -17,9 +17,7 @@ import { and, asc, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { runPoints, runs } from "@/db/schema";
-import { createNetwork } from "@/app/lib/networks";
-import { executeRun } from "@/app/lib/run-exec";
-import { insertRun } from "@/app/lib/runs";
+import { commitAndRun } from "../helpers/runs";
 import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
 
 let fixture: AccountsFixture;
@@ -67,20 +65,7 @@ function splits(points: number): { start: number; end: number }[] {
 }
 
 function execute(text: string, name: string, chunked: boolean, total: number): string {
-  const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name, text, authorId: "u_designer1" }, db);
-  const id = insertRun(
-    {
-      commitId: commit!.id,
-      networkId: network.id,
-      createdBy: "u_designer1",
-      pointsTotal: total,
-      timeLimitMs: 120_000,
-      chunks: chunked ? splits(total) : [{ start: 0, end: total }],
-    },
-    db,
-  );
-  expect(executeRun(id, {}, db).state).toBe("done");
-  return id;
+  return commitAndRun(db, name, text, total, chunked ? splits(total) : undefined, 120_000).runId;
 }
 
 function stored(runId: string) {

@@ -9,12 +9,10 @@ import { asc, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { runPointExpectations, runs } from "@/db/schema";
-import { createNetwork } from "@/app/lib/networks";
-import { executeRun } from "@/app/lib/run-exec";
-import { insertRun } from "@/app/lib/runs";
 import { readSeries, runLayout } from "@/app/lib/results";
 import { elaborate } from "@/src/lang/index";
 import { solveNetwork, summarizeExpectations } from "@/src/solver/index";
+import { commitAndRun, type Chunk } from "../helpers/runs";
 import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
 
 let fixture: AccountsFixture;
@@ -26,21 +24,8 @@ beforeAll(() => {
 });
 afterAll(() => fixture.dispose());
 
-function execute(text: string, name: string, chunks: { start: number; end: number }[], total: number): string {
-  const { network, commit } = createNetwork({ workspaceId: "ws_lm64", name, text, authorId: "u_designer1" }, db);
-  const id = insertRun(
-    {
-      commitId: commit!.id,
-      networkId: network.id,
-      createdBy: "u_designer1",
-      pointsTotal: total,
-      timeLimitMs: 120_000,
-      chunks,
-    },
-    db,
-  );
-  expect(executeRun(id, {}, db).state).toBe("done");
-  return id;
+function execute(text: string, name: string, chunks: Chunk[], total: number): string {
+  return commitAndRun(db, name, text, total, chunks, 120_000).runId;
 }
 
 const run = (id: string) => db.select().from(runs).where(eq(runs.id, id)).get()!;

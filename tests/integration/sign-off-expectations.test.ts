@@ -11,11 +11,9 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { DB } from "@/db";
 import { comments, reviews, runs, threads } from "@/db/schema";
-import { createNetwork } from "@/app/lib/networks";
-import { executeRun } from "@/app/lib/run-exec";
-import { insertRun } from "@/app/lib/runs";
 import { getThread } from "@/app/lib/review/threads";
 import { signOffSummaries } from "@/app/lib/review/sign-off";
+import { commitAndRun } from "../helpers/runs";
 import { buildAccountsFixture, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
 import { SITE } from "../helpers/request-context";
 import { pairSweep } from "../helpers/pair-sweep";
@@ -33,32 +31,20 @@ afterAll(() => fixture.dispose());
 const EXPECT = "expect ratio_band = 0.9 <= ratio <= 1.1\nexpect pair_saturated = saturated devices=m*\n";
 
 function committedRun(name: string, text: string): { commitId: string; threadId: string } {
-  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name, text, authorId: "u_designer1" }, db);
-  const id = insertRun(
-    {
-      commitId: commit!.id,
-      networkId: network.id,
-      createdBy: "u_designer1",
-      pointsTotal: 9,
-      timeLimitMs: 60_000,
-      chunks: [{ start: 0, end: 9 }],
-    },
-    db,
-  );
-  expect(executeRun(id, {}, db).state).toBe("done");
+  const { networkId, commitId, runId: id } = commitAndRun(db, name, text, 9);
   const threadId = `t_${name.replace(/\W/g, "").toLowerCase()}`;
   db.insert(threads)
     .values({
       id: threadId,
       workspaceId: WORKSPACE.id,
-      networkId: network.id,
-      commitId: commit!.id,
+      networkId,
+      commitId,
       runId: id,
       title: name,
       createdBy: "u_designer1",
     })
     .run();
-  return { commitId: commit!.id, threadId };
+  return { commitId, threadId };
 }
 
 function post(threadId: string, body: unknown): Promise<Response> {
