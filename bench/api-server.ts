@@ -11,6 +11,7 @@ import { spawn, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
+import { allocatorEnv } from "../scripts/lib/allocator-env";
 
 export interface BenchServer {
   base: string;
@@ -26,6 +27,8 @@ export interface BenchServer {
   waitRun(id: string, everyMs?: number): Promise<string>;
   /** The server's resident memory in MB (Next and its worker threads). */
   rssMb(): number;
+  /** The server's resident memory split: anonymous (heaps, native allocations) and file-backed, in MB, and its threads. */
+  memory(): { rss: number; anon: number; file: number; threads: number };
 }
 
 export const pause = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -83,6 +86,7 @@ export async function startBenchServer(
     [...nodeArgs, "--import", "tsx", "scripts/lib/next-server.ts", "127.0.0.1", String(port)],
     {
       env: {
+        ...allocatorEnv(),
         ...process.env,
         ...options.env,
         NODE_ENV: "production",
@@ -133,6 +137,16 @@ export async function startBenchServer(
     rssMb() {
       const status = fs.readFileSync(`/proc/${server.pid}/status`, "utf8");
       return Number(/VmRSS:\s+(\d+)/.exec(status)![1]) / 1024;
+    },
+    memory() {
+      const status = fs.readFileSync(`/proc/${server.pid}/status`, "utf8");
+      const field = (name: string) => Number(new RegExp(`${name}:\\s+(\\d+)`).exec(status)?.[1] ?? NaN);
+      return {
+        rss: field("VmRSS") / 1024,
+        anon: field("RssAnon") / 1024,
+        file: field("RssFile") / 1024,
+        threads: field("Threads"),
+      };
     },
   };
 }

@@ -28,7 +28,7 @@ const JSON_OUT = argv.includes("--json");
 const ONLY = argv.includes("--only") ? argv[argv.indexOf("--only") + 1] : null;
 
 const server = await startBenchServer("bench:api stall", PORT, { viewerSession: true });
-const { base, auth, api, waitRun, rssMb, cookie } = server;
+const { base, auth, api, waitRun, rssMb, memory, cookie } = server;
 
 // A small run whose page the probe reads.
 const small = await api<{ commit: { id: string } }>("POST", "/api/w/lm64-edge-row/networks", {
@@ -136,6 +136,11 @@ async function drain(res: Response): Promise<number> {
 for (let k = 0; k < 6; k++) await fetch(base + (k % 2 === 0 ? "/api/health" : pageUrl), { headers: { cookie } });
 await pause(2000);
 const idle = rssMb();
+const memLine = (when: string) => {
+  const m = memory();
+  return `${when}: RSS ${m.rss.toFixed(0)} MB (anonymous ${m.anon.toFixed(0)}, file-backed ${m.file.toFixed(0)}), ${m.threads} threads`;
+};
+const memoryLines = [memLine("idle")];
 // The floor: the same probes against the idle server (what the machine's load alone costs them).
 await measure("nothing (idle server, 10 s)", async () => {
   await pause(10_000);
@@ -198,8 +203,10 @@ await measure("300,000-level nesting", async () => {
 
 await pause(15_000);
 const after15 = rssMb();
+memoryLines.push(memLine("15 s after"));
 await pause(55_000);
 const after70 = rssMb();
+memoryLines.push(memLine("70 s after"));
 
 if (JSON_OUT) {
   console.log(
@@ -233,6 +240,7 @@ if (JSON_OUT) {
   console.log(
     `\nRSS: idle ${f(idle, 0)} MB; 15 s after the last request ${f(after15, 0)} MB; 70 s after ${f(after70, 0)} MB (goal: within 20 % of idle, ${f(idle * 1.2, 0)} MB)`,
   );
+  console.log(memoryLines.join("\n"));
   if (failures.length > 0) console.log(`\n${failures.length} probes failed: ${failures.slice(0, 10).join("; ")}`);
 }
 process.exit(0);

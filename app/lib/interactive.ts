@@ -31,7 +31,7 @@ import type {
 import type { Tolerance } from "./review/results-diff";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
-import { workerExecArgv } from "./worker-memory";
+import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
   path.join(/*turbopackIgnore: true*/ process.cwd(), ".build", "interactive-worker.mjs");
@@ -70,6 +70,7 @@ async function poolWith(minThreads: number): Promise<Pool> {
       execArgv: workerExecArgv(),
       maxThreads: interactiveThreads(),
       minThreads,
+      atomics: POOL_ATOMICS,
       idleTimeout: IDLE_MS,
     });
   }

@@ -34,7 +34,7 @@ import {
 } from "./run-exec";
 import type { StopKind, TestFault } from "./run-chunk";
 import { finishRun, runDispatchInfo } from "./runs";
-import { workerExecArgv } from "./worker-memory";
+import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
 
 /** How long a chunk may take to honour a stop request before it is terminated. */
 export const STOP_GRACE_MS = 5_000;
@@ -99,6 +99,7 @@ async function piscina(minThreads = 0): Promise<Piscina<RunTask, ChunkResult | R
       execArgv: workerExecArgv(),
       maxThreads: concurrency(),
       minThreads,
+      atomics: POOL_ATOMICS,
       idleTimeout: 60_000,
       // The request thread comes first: a solve must never slow the pages down.
       niceIncrement: 10,

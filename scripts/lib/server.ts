@@ -1,6 +1,7 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
 import { databasePath, openDatabase } from "../../db";
+import { allocatorEnv } from "./allocator-env";
 import { assertPortFree, fail } from "./fail";
 
 export interface ServeOptions {
@@ -48,6 +49,7 @@ export async function startNext(options: ServeOptions): Promise<ChildProcess> {
     {
       stdio: "inherit",
       env: {
+        ...allocatorEnv(),
         ...process.env,
         ...(options.dev ? { NODE_ENV: "development" } : {}),
         ...options.env,

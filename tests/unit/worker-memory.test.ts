@@ -2,8 +2,10 @@
  * app/lib/worker-memory.ts: a thread's caches are dropped and the heap collected once it has been idle, and a
  * new task before then postpones it; the workers start without the server's TypeScript loader.
  */
+import path from "node:path";
+import { Piscina } from "piscina";
 import { describe, expect, it } from "vitest";
-import { releaseWhenIdle, workerExecArgv } from "@/app/lib/worker-memory";
+import { POOL_ATOMICS, releaseWhenIdle, workerExecArgv } from "@/app/lib/worker-memory";
 
 const pause = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
@@ -25,6 +27,25 @@ describe("releaseWhenIdle", () => {
     expect(drops).toBe(1);
     // 100 × 100,000 doubles: 80 MB that the collection frees at once (no allocation needed to trigger it).
     expect(held - process.memoryUsage().heapUsed).toBeGreaterThan(50 * 1024 * 1024);
+  });
+
+  it("fires in an idle thread of a pool made as the server makes its pools", async () => {
+    // Piscina's default parks an idle thread in Atomics.wait, where no timer runs: the release never came.
+    const pool = new Piscina({
+      filename: path.resolve("tests/helpers/idle-timer-worker.mjs"),
+      minThreads: 1,
+      maxThreads: 1,
+      atomics: POOL_ATOMICS,
+    });
+    try {
+      const flag = new SharedArrayBuffer(4);
+      expect(await pool.run({ flag, afterMs: 50 })).toBe("queued");
+      const view = new Int32Array(flag);
+      for (let k = 0; k < 40 && Atomics.load(view, 0) === 0; k++) await pause(25);
+      expect(Atomics.load(view, 0)).toBe(1);
+    } finally {
+      await pool.destroy();
+    }
   });
 
   it("a later call postpones the release", async () => {
