@@ -19,7 +19,7 @@ import { QueueEvents, Worker, type Job } from "bullmq";
 import { Redis } from "ioredis";
 import { STOP_EVENT, WORKER_TOKEN_PREFIX } from "@/app/lib/queue-protocol";
 import { newSecret, secretHash } from "@/app/lib/secrets";
-import { AppClient } from "./app-client";
+import { AppClient, AppRefusal } from "./app-client";
 import type { ChunkJob } from "./processor";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
@@ -84,9 +84,11 @@ const worker = new Worker<ChunkJob>(hello.queue, PROCESSOR, {
   maxStalledCount: 3,
 });
 worker.on("error", (e) => console.error(`runnel worker: ${e.message}`));
-worker.on("failed", (job: Job | undefined, e: Error) =>
-  console.error(`runnel worker: chunk ${job?.data.runId}#${job?.data.chunk} failed: ${e.message}`),
-);
+worker.on("failed", (job: Job | undefined, e: Error) => {
+  console.error(`runnel worker: chunk ${job?.data.runId}#${job?.data.chunk} failed: ${e.message}`);
+  // The app refused the token (revoked, or never valid): taking more chunks would only fail them too.
+  if (/valid worker token/.test(e.message)) refused();
+});
 
 // The app's stop event (cancel, time limit, a failed chunk) aborts this worker's chunks of that run at once.
 const active = new Map<string, ChunkJob>();
@@ -105,7 +107,13 @@ events.on(
 );
 
 // Workspace workers say they are present; the app routes their workspace's runs to them while they are.
-const heartbeat = setInterval(() => void app.hello().catch(() => undefined), 30_000);
+const heartbeat = setInterval(
+  () =>
+    void app.hello().catch((e) => {
+      if (e instanceof AppRefusal && e.status === 401) refused();
+    }),
+  30_000,
+);
 heartbeat.unref();
 
 console.log(
@@ -125,7 +133,14 @@ async function shutdown(): Promise<void> {
   await events.close();
   connection.disconnect();
   eventsConnection.disconnect();
-  process.exit(0);
+  process.exit(process.exitCode ?? 0);
+}
+/** The app refused this worker's token: stop taking chunks and exit with status 1. */
+function refused(): void {
+  if (stopping) return;
+  console.error("runnel worker: the app refused this worker's token (revoked or wrong): stopping");
+  process.exitCode = 1;
+  void shutdown();
 }
 process.on("SIGINT", () => void shutdown());
 process.on("SIGTERM", () => void shutdown());

@@ -318,6 +318,10 @@ async function finalize(s: State, live: LiveRun, forced?: { state: "failed" | "c
         `the run failed: ${open.length} chunk(s) could not be completed after ${live.gen} tries on the queue`,
       );
     } else {
+      // Route the new generation afresh: the workspace's own worker may be gone (its token revoked, the machine
+      // stopped), and its chunks must then go to the shared queue rather than back to it.
+      const info = runDispatchInfo(live.id);
+      if (info) live.queue = workspaceHasLiveWorker(info.workspaceId) ? workspaceQueue(info.workspaceId) : CHUNKS_QUEUE;
       await addFlow(
         s,
         live,
@@ -418,7 +422,11 @@ async function reconcile(s: State, all: boolean): Promise<void> {
 
 async function reconcileRuns(s: State, all: boolean): Promise<void> {
   for (const live of [...s.live.values()]) {
-    if (live.finalizing || live.adding || (!all && live.queued)) continue;
+    if (live.finalizing || live.adding) continue;
+    if (!all && live.queued) {
+      if (live.queue !== CHUNKS_QUEUE) await rerouteIfOrphaned(s, live);
+      continue;
+    }
     if (live.gen === 0) {
       // Recovered at start-up: find the newest generation of its flow still in Redis.
       for (let gen = MAX_GENERATIONS; gen >= 1 && live.gen === 0; gen--) {
@@ -427,7 +435,10 @@ async function reconcileRuns(s: State, all: boolean): Promise<void> {
       }
     }
     const parent = live.queued ? await s.runsQueue.getJob(`${live.id}.g${live.gen}`) : null;
-    if (parent) continue;
+    if (parent) {
+      if (live.queue !== CHUNKS_QUEUE) await rerouteIfOrphaned(s, live);
+      continue;
+    }
     const open = openChunksOf(live.id);
     if (open.length === 0) await finalize(s, live);
     else {
@@ -441,6 +452,31 @@ async function reconcileRuns(s: State, all: boolean): Promise<void> {
       );
     }
   }
+}
+
+/**
+ * A run on its workspace's own queue whose workspace has no live worker any more (its token revoked, or not seen for
+ * two minutes): its waiting chunks would wait for ever. Its generation is dropped and its open chunks are queued
+ * again on the shared queue, served by the operator's workers; a chunk still held by the gone worker is refused at
+ * its next post (401) and solved again here, its points stored once.
+ */
+async function rerouteIfOrphaned(s: State, live: LiveRun): Promise<void> {
+  const info = runDispatchInfo(live.id);
+  if (!info || workspaceHasLiveWorker(info.workspaceId)) return;
+  debug(`reroute ${live.id} g${live.gen}: ${live.queue} has no live worker`);
+  await s.runsQueue.remove(`${live.id}.g${live.gen}`, { removeChildren: true }).catch(() => 0);
+  const q = queueOf(s, live.queue);
+  const rows = db().select({ chunk: runChunks.chunk }).from(runChunks).where(eq(runChunks.runId, live.id)).all();
+  await Promise.all(rows.map((r) => q.remove(chunkJobId(live.id, live.gen, r.chunk)).catch(() => 0)));
+  live.queue = CHUNKS_QUEUE;
+  const open = openChunksOf(live.id);
+  if (open.length === 0) await finalize(s, live);
+  else
+    await addFlow(
+      s,
+      live,
+      open.map((chunk) => ({ runId: live.id, chunk, tag: 1 })),
+    );
 }
 
 /**

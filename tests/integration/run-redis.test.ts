@@ -44,7 +44,7 @@ const workers = new Map<string, ChildProcess>();
 
 type RunJson = { id: string; state: string; reason: string | null; pointsDone: number; pointsTotal: number };
 
-function startWorker(name: "a" | "b"): Promise<ChildProcess> {
+function startWorker(name: string, token = TOKENS[name as keyof typeof TOKENS]): Promise<ChildProcess> {
   const child = spawn(
     process.execPath,
     [
@@ -54,7 +54,7 @@ function startWorker(name: "a" | "b"): Promise<ChildProcess> {
       "--app",
       server.url,
       "--token",
-      TOKENS[name],
+      token,
       "--redis",
       redis.url,
       "--threads",
@@ -274,6 +274,57 @@ describe.skipIf(!hasRedis)("runs on the Redis queue with two worker processes", 
     expect(counts.waiting + counts.prioritized + counts.delayed).toBe(0);
     expect(chunksOf(id).some((x) => x.state === "stopped" || x.state === "queued")).toBe(true);
   });
+
+  it("revoking a workspace worker's token mid-run: the worker is refused and stops, and the run ends on the operator's workers within 30 s, every point once", async () => {
+    const made = await call(
+      "owner",
+      "w/[slug]/worker-tokens/route",
+      "POST",
+      "/api/w/lm64-edge-row/worker-tokens",
+      { slug: "lm64-edge-row" },
+      { name: "bench machine" },
+    );
+    expect(made.status).toBe(201);
+    const { id: tokenId, token } = (made.json as { token: { id: string; token: string } }).token;
+    const lab = await startWorker("c", token);
+    try {
+      // The workspace has a live worker of its own (its hello), so its runs go to its own queue.
+      const commit = await newCommit("Revoke a worker", SWEEP(400));
+      const r = await startRun({ commit, fault: "slow" });
+      const id = (r.json as { run: RunJson }).run.id;
+      await until(
+        "points from the workspace's worker",
+        () => chunksOf(id).filter((c) => c.workerTokenId === tokenId).length > 0 && storedPoints(id),
+        (n) => typeof n === "number" && n > 10,
+      );
+      const gone = await call(
+        "owner",
+        "w/[slug]/worker-tokens/[id]/route",
+        "DELETE",
+        `/api/w/lm64-edge-row/worker-tokens/${tokenId}`,
+        { slug: "lm64-edge-row", id: tokenId },
+      );
+      expect(gone.status).toBe(204);
+      const revokedAt = Date.now();
+      const hello = await fetch(server.url + "/api/worker/hello", { headers: { authorization: `Bearer ${token}` } });
+      expect(hello.status).toBe(401);
+      const run = await until("run", () => runRow(id), ended, 90_000);
+      expect(run).toMatchObject({ state: "done", pointsDone: 400 });
+      expect(storedPoints(id)).toBe(400);
+      console.log(`run-redis: the run ended ${Date.now() - revokedAt} ms after its worker's token was revoked`);
+      expect(Date.now() - revokedAt).toBeLessThan(30_000);
+      // The refused worker stops taking chunks and exits with status 1.
+      await until(
+        "the refused worker's exit",
+        () => lab.exitCode,
+        (code) => code !== null,
+        30_000,
+      );
+      expect(lab.exitCode).toBe(1);
+    } finally {
+      lab.kill("SIGKILL");
+    }
+  }, 120_000);
 
   it("with Redis stopped: a new run answers 503 at once, finished runs read, and the running run resumes when it is back", async () => {
     const done = db.select({ id: runs.id }).from(runs).where(eq(runs.state, "done")).get()!;
