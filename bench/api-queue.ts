@@ -65,13 +65,18 @@ interface SetupResult {
 async function runOne(setup: string): Promise<SetupResult> {
   const env: Record<string, string> = { ...LIMITS };
   let redis: { url: string; stop(): Promise<void> } | null = null;
-  const TOKEN = "runnel_worker_bench-" + "b".repeat(40);
+  // One operator token per worker process, so each chunk row says which worker solved it.
+  const TOKENS = ["runnel_worker_bench-" + "a".repeat(40), "runnel_worker_bench-" + "b".repeat(40)];
   if (setup === "local-1") env.RUNNEL_RUN_THREADS = "1";
   if (setup === "queue-2" || setup === "ingest") {
     const { startRedis } = await import("../scripts/lib/redis");
     const { secretHash } = await import("../app/lib/secrets");
     redis = await startRedis();
-    Object.assign(env, { RUNNEL_QUEUE: "redis", REDIS_URL: redis.url, RUNNEL_WORKER_TOKEN_HASHES: secretHash(TOKEN) });
+    Object.assign(env, {
+      RUNNEL_QUEUE: "redis",
+      REDIS_URL: redis.url,
+      RUNNEL_WORKER_TOKEN_HASHES: TOKENS.map(secretHash).join(","),
+    });
   }
   const server = await startBenchServer(`bench:queue ${setup}`, PORT, { env });
   const workers: ChildProcess[] = [];
@@ -87,7 +92,7 @@ async function runOne(setup: string): Promise<SetupResult> {
           "--app",
           server.base,
           "--token",
-          TOKEN,
+          TOKENS[i],
           "--redis",
           redis!.url,
           "--threads",
@@ -152,7 +157,7 @@ async function runOne(setup: string): Promise<SetupResult> {
     return figures;
   }
 
-  if (setup === "ingest") return { setup, ...(await ingest(server, TOKEN)), sweep: null!, mismatch: null! };
+  if (setup === "ingest") return { setup, ...(await ingest(server, TOKENS[0])), sweep: null!, mismatch: null! };
   const sweep = await timedRun("Bench sweep", sweepText(POINTS));
   const mismatch = await timedRun("Bench mismatch", mismatchText(SAMPLES));
   for (const w of workers) w.kill("SIGTERM");

@@ -7,7 +7,8 @@
  * enough that a chunk's setup — elaboration cached per thread, the solver's
  * analysis — and the queue's hand-over stay small beside it, short enough that
  * the work spreads and a fair queue can interleave runs), and at least one per
- * worker once every chunk would still get CHUNK_MIN_MS. The estimate only
+ * worker once every chunk would still get CHUNK_MIN_MS; a run of fewer than
+ * eight chunks per worker gets a multiple of the workers. The estimate only
  * shapes the split: results do not depend on it.
  */
 import type { Network } from "@/src/lang/index";
@@ -62,6 +63,9 @@ export function chunkRanges(points: number, pointMs: number, workers: number): C
   const total = points * pointMs;
   let n = Math.ceil(total / CHUNK_TARGET_MS);
   n = Math.max(n, Math.min(workers, Math.floor(total / CHUNK_MIN_MS)));
+  // A few chunks: a whole number per worker, so no thread idles through the last round (5 chunks on 2 threads
+  // took 3 rounds: a 2,000-sample Monte Carlo ran 1.42× faster on 2 threads than on 1; 6 take 3 rounds of 2).
+  if (n > 1 && n < 8 * workers) n = Math.ceil(n / workers) * workers;
   n = Math.max(1, Math.min(n, points, MAX_CHUNKS));
   const out: ChunkRange[] = [];
   for (let i = 0; i < n; i++)
