@@ -11,8 +11,7 @@ import { openDatabase, type DB } from "@/db";
 import { isBusy } from "./db-busy";
 import { storeMeasurement } from "./review/measurement-store";
 import type { Tolerance } from "./review/results-diff";
-import { runSource } from "./review/run-tables";
-import { compareRuns, type AnalysisComparison } from "./review/sweep-compare";
+import { comparisonCore, type ComparisonCore } from "./review/comparison-core";
 import { parseMeasurementCsv, type CsvError, type ParseResult } from "./review/measurements";
 import { checkNetworkText, planNetworkText, type PlanText, type TextCheck } from "./text-check";
 import { releaseWhenIdle } from "./worker-memory";
@@ -24,8 +23,7 @@ export type InteractiveTask =
   | { kind: "store-csv"; bytes: Uint8Array; dbFile: string; measurement: MeasurementFields }
   | { kind: "compare"; dbFile: string; fromRunId: string; toRunId: string; tolerance: Tolerance };
 
-/** A comparison of two runs as a pool thread sends it back: everything but the two run sources (their readers). */
-export type ComparisonCore = Omit<AnalysisComparison, "from" | "to">;
+export type { ComparisonCore };
 
 /** What is stored with a measurement besides its values (already authorised by the route). */
 export interface MeasurementFields {
@@ -74,13 +72,7 @@ function storeCsv(task: Extract<InteractiveTask, { kind: "store-csv" }>): StoreC
 
 /** Reads both done runs through the thread's connection and compares them (seconds for a 1,000-point sweep). */
 function compare(task: Extract<InteractiveTask, { kind: "compare" }>): ComparisonCore | null {
-  const d = database(task.dbFile);
-  const a = runSource(task.fromRunId, d);
-  const b = runSource(task.toRunId, d);
-  if (!a || !b) return null;
-  // eslint-disable-next-line @typescript-eslint/no-unused-vars
-  const { from, to, ...core } = compareRuns(a, b, task.tolerance);
-  return core;
+  return comparisonCore(task.fromRunId, task.toRunId, task.tolerance, database(task.dbFile));
 }
 
 export default function interactiveTask(

@@ -39,6 +39,7 @@ import { modelOf } from "./run-plan";
 import { mergeChunks, type ChunkStats } from "./run-stats";
 import { runExpectations, saturationCovered } from "./run-expectations";
 import { storeCommitDiff } from "./review/diffs";
+import type { Tolerance } from "./review/results-diff";
 
 export { STOP_CANCEL, STOP_FAILED, STOP_NONE, STOP_TIME } from "./run-chunk";
 export type { RunWarning } from "./run-stats";
@@ -55,7 +56,9 @@ export type RunTask =
       stop: SharedArrayBuffer;
       fault?: TestFault;
     }
-  | { kind: "finalize"; runId: string; dbFile: string; forced?: { state: RunState; reason: string } };
+  | { kind: "finalize"; runId: string; dbFile: string; forced?: { state: RunState; reason: string } }
+  /** The comparison of two done runs, computed ahead of a visit (app/lib/review/compare-data.ts precomputeForRun). */
+  | { kind: "compare"; fromRunId: string; toRunId: string; tolerance: Tolerance; dbFile: string };
 
 export interface RunTaskResult {
   state: RunState;

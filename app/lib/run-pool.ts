@@ -33,6 +33,8 @@ import {
   type RunTaskResult,
 } from "./run-exec";
 import type { StopKind, TestFault } from "./run-chunk";
+import type { ComparisonCore } from "./review/comparison-core";
+import type { Tolerance } from "./review/results-diff";
 import { finishRun, runDispatchInfo } from "./runs";
 import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
 
@@ -69,7 +71,7 @@ interface LiveRun {
 }
 
 interface Pool {
-  piscina: Piscina<RunTask, ChunkResult | RunTaskResult | null> | null;
+  piscina: Piscina<RunTask, ChunkResult | RunTaskResult | ComparisonCore | null> | null;
   queue: FairQueue;
   live: Map<string, LiveRun>;
   executing: number;
@@ -90,11 +92,11 @@ function state(): Pool {
   });
 }
 
-async function piscina(minThreads = 0): Promise<Piscina<RunTask, ChunkResult | RunTaskResult | null>> {
+async function piscina(minThreads = 0): Promise<Piscina<RunTask, ChunkResult | RunTaskResult | ComparisonCore | null>> {
   const s = state();
   if (!s.piscina) {
     const { Piscina } = await import("piscina");
-    s.piscina = new Piscina<RunTask, ChunkResult | RunTaskResult | null>({
+    s.piscina = new Piscina<RunTask, ChunkResult | RunTaskResult | ComparisonCore | null>({
       filename: WORKER_FILE(),
       execArgv: workerExecArgv(),
       maxThreads: concurrency(),
@@ -270,14 +272,33 @@ function settle(run: LiveRun): void {
   })();
 }
 
-/** Ends a run from its chunks in a pool thread (finalizeRun: merged figures, state, commit diff); null when incomplete. */
+/**
+ * Ends a run from its chunks in a pool thread (finalizeRun: merged figures, state, commit diff); null when
+ * incomplete. A run that ends done has its comparison with the parent commit's run computed next, at the pool's
+ * low priority, so the compare page's first visit finds it ready (app/lib/review/compare-data.ts).
+ */
 export async function finalizeInPool(
   runId: string,
   forced?: { state: RunState; reason: string },
 ): Promise<RunTaskResult | null> {
   const task: RunTask = { kind: "finalize", runId, dbFile: databasePath() };
   if (forced) task.forced = forced;
-  return (await (await piscina()).run(task)) as RunTaskResult | null;
+  const r = (await (await piscina()).run(task)) as RunTaskResult | null;
+  if (r?.state === "done" && process.env.RUNNEL_PRECOMPUTE_COMPARISONS !== "0")
+    void import("./review/compare-data")
+      .then((m) => m.precomputeForRun(runId))
+      .catch((e: Error) => console.error(`run ${runId}: its comparison could not be computed ahead: ${e.message}`));
+  return r;
+}
+
+/** The comparison of two done runs in a run pool thread (niced: pages and runs' chunks keep their pace). */
+export async function compareInRunPool(
+  fromRunId: string,
+  toRunId: string,
+  tolerance: Tolerance,
+): Promise<ComparisonCore | null> {
+  const task: RunTask = { kind: "compare", fromRunId, toRunId, tolerance, dbFile: databasePath() };
+  return (await (await piscina()).run(task)) as ComparisonCore | null;
 }
 
 export function workerMessage(e: unknown): string {

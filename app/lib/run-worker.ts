@@ -14,6 +14,7 @@ import {
   type RunTask,
   type RunTaskResult,
 } from "./run-exec";
+import { comparisonCore, type ComparisonCore } from "./review/comparison-core";
 import { releaseWhenIdle } from "./worker-memory";
 
 const connections = new Map<string, DB>();
@@ -27,10 +28,11 @@ function connection(file: string): DB {
   return d;
 }
 
-export default function runTask(task: RunTask): ChunkResult | RunTaskResult | null {
+export default function runTask(task: RunTask): ChunkResult | RunTaskResult | ComparisonCore | null {
   try {
     const d = connection(task.dbFile);
     if (task.kind === "finalize") return finalizeRun(task.runId, task.forced, Date.now(), d);
+    if (task.kind === "compare") return comparisonCore(task.fromRunId, task.toRunId, task.tolerance, d);
     const fault = process.env.RUNNEL_TEST_FAULTS === "1" ? task.fault : undefined;
     return executeChunk(task.runId, task.chunk, { stop: new Int32Array(task.stop), fault }, d);
   } finally {

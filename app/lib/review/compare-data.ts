@@ -15,7 +15,10 @@
  */
 import { db } from "@/db";
 import type { Q } from "@/db";
+import { eq } from "drizzle-orm";
+import { commits, runs } from "@/db/schema";
 import { compareInWorker } from "../interactive";
+import { compareInRunPool } from "../run-pool";
 import { DEFAULT_TOLERANCE, type Quantity, type Tolerance, type ValueKind } from "./results-diff";
 import { latestDoneRuns, probeColumns, runSource, storedPointKey } from "./run-tables";
 import {
@@ -63,6 +66,7 @@ export async function prepareComparisons(
   toCommitId: string,
   tolerance: Partial<Tolerance> = {},
   d: Q = db(),
+  compute: typeof compareInWorker = compareInWorker,
 ): Promise<void> {
   const tol = { ...DEFAULT_TOLERANCE, ...tolerance };
   const work: Promise<void>[] = [];
@@ -73,7 +77,7 @@ export async function prepareComparisons(
     if (cache.has(key)) continue;
     let job = pending.get(key);
     if (!job) {
-      job = compareInWorker(fromRunId, toRunId, tol)
+      job = compute(fromRunId, toRunId, tol)
         .then((core) => {
           if (!core) return;
           // The readers of both runs are made here (cheap: the layout and the stored point numbers).
@@ -87,6 +91,27 @@ export async function prepareComparisons(
     work.push(job);
   }
   await Promise.all(work);
+}
+
+/**
+ * After a run of a commit ends done: the comparison of the parent commit's runs with this commit's, under the
+ * default tolerance (what the compare page opens with), computed now in the run pool (low priority) rather than
+ * when the first visitor asks. A visit meanwhile shares the computation.
+ */
+export async function precomputeForRun(runId: string, d: Q = db()): Promise<void> {
+  const row = d
+    .select({ commitId: runs.commitId, parentId: commits.parentId })
+    .from(runs)
+    .innerJoin(commits, eq(commits.id, runs.commitId))
+    .where(eq(runs.id, runId))
+    .get();
+  if (!row?.parentId) return;
+  await prepareComparisons(row.parentId, row.commitId, DEFAULT_TOLERANCE, d, compareInRunPool);
+}
+
+/** Whether the comparison of two runs under a tolerance is computed and kept (tests). */
+export function comparisonReady(fromRunId: string, toRunId: string, tolerance: Partial<Tolerance> = {}): boolean {
+  return cache.has(cacheKey(fromRunId, toRunId, { ...DEFAULT_TOLERANCE, ...tolerance }));
 }
 
 /**
