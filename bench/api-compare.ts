@@ -206,8 +206,8 @@ if (canBrowse)
     args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking"],
   });
 for (const c of cases) {
-  // the first request of a pair decodes both runs and computes the summaries (in the interactive pool); later ones
-  // find them in the cache. Meanwhile another client asks /api/health every 50 ms: does everyone else still get answers?
+  // the first request of a pair: its comparison was computed in the run pool when the second run ended (or is being
+  // computed, and the request shares it); later ones find it in the cache. Meanwhile another client asks /api/health every 50 ms: does everyone else still get answers?
   const t = performance.now();
   let done = false;
   const healthMs: number[] = [];
@@ -244,7 +244,9 @@ else {
   console.log(`compare page and API, LM-64 edge row, 66 probes (${machine}; medians of ${REPEAT})`);
   for (const r of results) {
     console.log(`  ${r.case} (analysis ${r.analysis})`);
-    console.log(`    API compare, the pair's first request (nothing cached): ${r.firstMs.toFixed(0)} ms`);
+    console.log(
+      `    API compare, the pair's first request (its comparison computed when the second run ended, or in progress): ${r.firstMs.toFixed(0)} ms`,
+    );
     console.log(
       `    meanwhile /api/health: ${r.health.probes} probes, p95 ${r.health.p95.toFixed(0)} ms, max ${r.health.max.toFixed(0)} ms`,
     );
