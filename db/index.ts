@@ -32,6 +32,9 @@ export function migrationsFolder(): string {
   return path.resolve(/*turbopackIgnore: true*/ process.env.RUNNEL_MIGRATIONS ?? "migrations");
 }
 
+/** The page size of a database file this module creates (bytes). */
+export const PAGE_SIZE = 16_384;
+
 /**
  * Opens (creating if needed) the database at `file`, sets the pragmas every
  * connection needs and applies pending migrations. Throws DatabaseSetupError
@@ -56,6 +59,11 @@ export function openDatabase(
   let client: Database.Database;
   try {
     client = new Database(file);
+    // A new database file gets 16 kB pages (a page size is fixed once the first table exists, and cannot change in
+    // WAL mode): a point of a 64 × 64 grid is a 190 kB blob, stored as a chain of overflow pages, and with SQLite's
+    // default 4 kB pages writing 1,000 of them took 0.6–0.7 s of CPU and reading them back 0.4–0.5 s, against
+    // 0.28 s and 0.07 s with 16 kB pages (development VM, two runs). Existing files keep theirs.
+    client.pragma(`page_size = ${PAGE_SIZE}`);
     client.pragma("journal_mode = WAL");
     client.pragma("foreign_keys = ON");
     client.pragma(`busy_timeout = ${Math.max(0, Math.round(options.busyTimeoutMs ?? 5000))}`);

@@ -3,7 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import { sql } from "drizzle-orm";
 import { afterEach, describe, expect, it } from "vitest";
-import { DatabaseSetupError, openDatabase } from "@/db";
+import { DatabaseSetupError, openDatabase, PAGE_SIZE } from "@/db";
 import { seedDemo, DEMO_USERS } from "@/scripts/seed/index";
 import { memberships } from "@/db/schema";
 import { freshDatabase } from "../helpers/db";
@@ -27,6 +27,23 @@ describe("database", () => {
       .all<{ name: string }>(sql`select name from sqlite_master where type = 'table'`)
       .map((r) => r.name);
     expect(tables).toEqual(expect.arrayContaining(["users", "workspaces", "memberships", "__drizzle_migrations"]));
+  });
+
+  it("creates a new file with 16 kB pages and leaves an existing file's page size alone", () => {
+    const { db } = fresh();
+    expect(db.$client.pragma("page_size", { simple: true })).toBe(PAGE_SIZE);
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "runnel-pages-"));
+    cleanups.push(() => fs.rmSync(dir, { recursive: true, force: true }));
+    const file = path.join(dir, "old.db");
+    const Database = db.$client.constructor as new (f: string) => import("better-sqlite3").Database;
+    const old = new Database(file);
+    old.pragma("page_size = 4096");
+    old.exec("create table t (x)");
+    old.close();
+    const reopened = openDatabase(file);
+    expect(reopened.$client.pragma("page_size", { simple: true })).toBe(4096);
+    expect(reopened.$client.pragma("journal_mode", { simple: true })).toBe("wal");
+    reopened.$client.close();
   });
 
   it("seeds the demo scenario idempotently", () => {
