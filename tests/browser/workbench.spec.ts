@@ -28,9 +28,9 @@ sweep vh from 0.6 to 0.8 points 400
 const shot = (page: Page, name: string) =>
   page.screenshot({ path: `test-results/browser/workbench-${name}.png`, fullPage: true });
 
-async function signIn(page: Page) {
+async function signIn(page: Page, email = "designer@larkspur.example") {
   await page.goto("/signin");
-  await page.getByLabel("E-mail").fill("designer@larkspur.example");
+  await page.getByLabel("E-mail").fill(email);
   await page.getByLabel("Password").fill("larkspur-demo");
   await page.getByRole("button", { name: "Sign in" }).click();
   await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
@@ -147,4 +147,16 @@ test("edit, commit, run a sweep, read the plot and the table, export CSV", async
   expect(csv[0]).toBe("point,sample,vh,temp,far,method,iterations,residual_A,error");
   expect(csv).toHaveLength(401);
   expect(errors).toEqual([]);
+});
+
+test("a viewer sees the network read only: no commit box, no Run button, no key hints", async ({ page }) => {
+  await signIn(page, "viewer@larkspur.example");
+  await page.goto("/w/lm64-edge-row");
+  await page.getByRole("list", { name: "Networks" }).getByRole("link", { name: "LM-64 edge row", exact: true }).click();
+  await expect(page.locator(".cm-content")).toContainText("network");
+  await expect(page.getByText("Read only: your role can read, download and compare.")).toBeVisible();
+  await expect(page.getByRole("button", { name: "Run", exact: true })).toHaveCount(0);
+  await expect(page.getByLabel("Commit message")).toHaveCount(0);
+  await expect(page.getByText("Ctrl+Enter run")).toHaveCount(0);
+  await expect(page.getByText("Ctrl+S commit")).toHaveCount(0);
 });

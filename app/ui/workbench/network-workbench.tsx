@@ -192,6 +192,14 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
   /** Until the head's text has arrived there is nothing to edit. */
   const loading = headId !== null && headText === undefined;
   const readOnly = !canWrite || !viewingHead || loading;
+  // Only the keys this member can use: a viewer has none.
+  const keyHints = [
+    canWrite ? "Ctrl+S commit" : null,
+    canRun ? "Ctrl+Enter run" : null,
+    canWrite ? "Ctrl+Space complete" : null,
+  ]
+    .filter(Boolean)
+    .join(" · ");
   const onChange = useCallback(
     (text: string) => {
       if (!readOnly) setDraft(text);
@@ -230,17 +238,23 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
               </button>
             </form>
           ) : (
-            <span className="flex-1 text-sm text-stone-500">Read only: your role cannot commit.</span>
+            <span className="flex-1 text-sm text-stone-500">
+              Read only: your role can read, download and compare{canRun ? " and start runs" : ""}.
+            </span>
           )}
-          <button
-            type="button"
-            onClick={() => void run()}
-            disabled={busy || runBlocked !== null}
-            title={runBlocked ? `Cannot run: ${runBlocked}` : "Run every analysis of this commit (Ctrl+Enter / ⌘Enter)"}
-            className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:cursor-not-allowed disabled:opacity-50"
-          >
-            Run
-          </button>
+          {canRun ? (
+            <button
+              type="button"
+              onClick={() => void run()}
+              disabled={busy || runBlocked !== null}
+              title={
+                runBlocked ? `Cannot run: ${runBlocked}` : "Run every analysis of this commit (Ctrl+Enter / ⌘Enter)"
+              }
+              className="rounded border border-moss-600 px-3 py-1 text-sm text-moss-700 hover:bg-moss-50 disabled:cursor-not-allowed disabled:opacity-50"
+            >
+              Run
+            </button>
+          ) : null}
           {selectedId ? (
             <a
               href={`/api/commits/${selectedId}?download`}
@@ -251,7 +265,7 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
             </a>
           ) : null}
         </div>
-        {runBlocked && selectedCommit ? (
+        {canRun && runBlocked && selectedCommit ? (
           <p className="text-xs text-stone-500" data-slot="run-blocked">
             Run: {runBlocked}.
           </p>
@@ -302,7 +316,7 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
               uncommitted edits
             </span>
           ) : null}
-          <span className="text-stone-500">Ctrl+S commit · Ctrl+Enter run · Ctrl+Space complete</span>
+          {keyHints ? <span className="text-stone-500">{keyHints}</span> : null}
         </div>
         {diagnostics.length ? (
           <ul aria-label="Diagnostics" className="max-h-40 space-y-0.5 overflow-auto text-xs">
