@@ -14,6 +14,7 @@ import type { Tolerance } from "./review/results-diff";
 import { comparisonCore, type ComparisonCore } from "./review/comparison-core";
 import { parseMeasurementCsv, type CsvError, type ParseResult } from "./review/measurements";
 import { checkNetworkText, planNetworkText, type PlanText, type TextCheck } from "./text-check";
+import { sensitivityView, type SensitivityView } from "./sensitivity-view";
 import { releaseWhenIdle } from "./worker-memory";
 
 export type InteractiveTask =
@@ -21,7 +22,8 @@ export type InteractiveTask =
   | { kind: "plan"; text: string; workers: number; extraPointMs?: number }
   | { kind: "csv"; bytes: Uint8Array }
   | { kind: "store-csv"; bytes: Uint8Array; dbFile: string; measurement: MeasurementFields }
-  | { kind: "compare"; dbFile: string; fromRunId: string; toRunId: string; tolerance: Tolerance };
+  | { kind: "compare"; dbFile: string; fromRunId: string; toRunId: string; tolerance: Tolerance }
+  | { kind: "sensitivity"; text: string };
 
 export type { ComparisonCore };
 
@@ -44,7 +46,9 @@ export type InteractiveResult<T extends InteractiveTask> = T extends { kind: "ch
       ? ParseResult
       : T extends { kind: "store-csv" }
         ? StoreCsvResult
-        : ComparisonCore | null;
+        : T extends { kind: "sensitivity" }
+          ? SensitivityView
+          : ComparisonCore | null;
 
 let connection: { file: string; db: DB } | null = null;
 /** The thread's connection to `file` (opened once; it waits up to 5 s for a lock, off the request thread). */
@@ -77,7 +81,7 @@ function compare(task: Extract<InteractiveTask, { kind: "compare" }>): Compariso
 
 export default function interactiveTask(
   task: InteractiveTask,
-): TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null {
+): TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | null {
   try {
     switch (task.kind) {
       case "check":
@@ -90,6 +94,8 @@ export default function interactiveTask(
         return storeCsv(task);
       case "compare":
         return compare(task);
+      case "sensitivity":
+        return sensitivityView(task.text);
     }
   } finally {
     // The kept thread gives back what the task left (a large network's elaboration) once it is idle.

@@ -31,6 +31,7 @@ import type {
 import type { Tolerance } from "./review/results-diff";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
+import type { SensitivityView } from "./sensitivity-view";
 import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
@@ -48,7 +49,10 @@ export function interactiveTimeLimitMs(): number {
 }
 
 const KEY = Symbol.for("runnel.interactive.pool");
-type Pool = Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null>;
+type Pool = Piscina<
+  InteractiveTask,
+  TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | null
+>;
 
 async function pool(): Promise<Pool> {
   return poolWith(0);
@@ -65,7 +69,10 @@ async function poolWith(minThreads: number): Promise<Pool> {
   const g = globalThis as unknown as Record<symbol, Pool | undefined>;
   if (!g[KEY]) {
     const { Piscina } = await import("piscina");
-    g[KEY] = new Piscina<InteractiveTask, TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | null>({
+    g[KEY] = new Piscina<
+      InteractiveTask,
+      TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | null
+    >({
       filename: INTERACTIVE_WORKER_FILE(),
       execArgv: workerExecArgv(),
       maxThreads: interactiveThreads(),
@@ -83,6 +90,7 @@ const WHAT: Record<InteractiveTask["kind"], string> = {
   csv: "reading the measurement CSV",
   "store-csv": "reading and storing the measurement CSV",
   compare: "comparing the two runs",
+  sensitivity: "computing the sensitivities",
 };
 
 /** Runs `task` in the interactive pool, under its time limit, cancelled when `signal` aborts. */
@@ -146,6 +154,11 @@ export function compareInWorker(
   signal?: AbortSignal,
 ): Promise<ComparisonCore | null> {
   return runInteractive({ kind: "compare", dbFile: databasePath(), fromRunId, toRunId, tolerance }, signal);
+}
+
+/** The Sensitivity view of a network text (app/lib/sensitivity-view.ts), computed in the interactive pool. */
+export function sensitivityInWorker(text: string, signal?: AbortSignal): Promise<SensitivityView> {
+  return runInteractive({ kind: "sensitivity", text }, signal);
 }
 
 /** Ends the pool's threads (tests and scripts that must exit). */

@@ -160,3 +160,22 @@ test("a viewer sees the network read only: no commit box, no Run button, no key 
   await expect(page.getByText("Ctrl+Enter run")).toHaveCount(0);
   await expect(page.getByText("Ctrl+S commit")).toHaveCount(0);
 });
+
+test("the Sensitivity view of the demo's mismatch study: devices by threshold sensitivity, and the budget", async ({
+  page,
+}) => {
+  await signIn(page, "viewer@larkspur.example");
+  await page.goto("/w/lm64-edge-row");
+  await page
+    .getByRole("list", { name: "Networks" })
+    .getByRole("link", { name: "Divider mismatch study", exact: true })
+    .click();
+  await expect(page).toHaveURL(/\/n\/divider-mismatch-study$/);
+  await page.getByRole("list", { name: "Runs" }).getByRole("link").first().click();
+  await expect(page).toHaveURL(/\/runs\/r_/);
+  await page.getByRole("tab", { name: "Sensitivity" }).click();
+  const table = page.getByRole("table", { name: "Devices by threshold sensitivity" });
+  await expect(table.locator("tbody tr").first()).toBeVisible({ timeout: 30_000 });
+  await expect(page.locator('[data-slot="budget"]')).toContainText("Monte Carlo σ");
+  await shot(page, "sensitivity");
+});

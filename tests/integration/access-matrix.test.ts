@@ -269,6 +269,8 @@ const ROUTES: RouteRow[] = [
                                                                                                                                                 expect: [401, 404, 403, 200, 200, 200] },
   { file: "app/api/runs/[id]/results/route.ts",         method: "GET",    url: "/api/runs/{runId}/results?view=point&point=0", params: { id: "{runId}" }, setup: withRun,
                                                                                                                                                 expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/runs/[id]/sensitivity/route.ts",     method: "GET",    url: "/api/runs/{runId}/sensitivity", params: { id: "{runId}" }, setup: withRun,
+                                                                                                                                                expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/runs/[id]/export/route.ts",          method: "GET",    url: "/api/runs/{runId}/export?format=csv", params: { id: "{runId}" }, setup: withRun,
                                                                                                                                                 expect: [401, 404, 200, 200, 200, 200] },
   // review: comparisons, threads, verdicts, measurements

@@ -20,10 +20,11 @@ import { MapPanel } from "./map-panel";
 import { OperatingPanel } from "./operating-panel";
 import { ProbesPanel } from "./probes-panel";
 import { ProfilePanel } from "./profile-panel";
+import { SensitivityPanel } from "./sensitivity-panel";
 import { SpreadPanel } from "./spread-panel";
 import { paramUnit } from "./sweep-values";
 
-export type Tab = "probes" | "operating" | "devices" | "profile" | "map" | "spread";
+export type Tab = "probes" | "operating" | "devices" | "profile" | "map" | "spread" | "sensitivity";
 
 export function Results({ runId, run, series }: { runId: string; run: RunRow; series: SeriesView }) {
   const samples = series.mismatch?.runs ?? 1;
@@ -52,6 +53,7 @@ export function Results({ runId, run, series }: { runId: string; run: RunRow; se
     ["map", "Map"],
   ];
   if (series.mismatch) tabs.push(["spread", "Spread"]);
+  tabs.push(["sensitivity", "Sensitivity"]);
   return (
     <section aria-label="Results" className="space-y-4">
       {run.pointsTotal > 1 ? (
@@ -117,6 +119,7 @@ export function Results({ runId, run, series }: { runId: string; run: RunRow; se
         {tab === "profile" ? current ? <ProfilePanel point={current} bench={bench} /> : <LoadingNote /> : null}
         {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <LoadingNote /> : null}
         {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
+        {tab === "sensitivity" ? <SensitivityPanel runId={runId} /> : null}
       </div>
       {current?.error ? <p className="text-sm text-ember-500">This point was not solved: {current.error}</p> : null}
       <p className="text-xs text-stone-500">
