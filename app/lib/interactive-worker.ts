@@ -14,7 +14,7 @@ import type { Tolerance } from "./review/results-diff";
 import { comparisonCore, type ComparisonCore } from "./review/comparison-core";
 import { parseMeasurementCsv, type CsvError, type ParseResult } from "./review/measurements";
 import { checkNetworkText, planNetworkText, type PlanText, type TextCheck } from "./text-check";
-import { sensitivityView, type SensitivityView } from "./sensitivity-view";
+import { seekView, sensitivityView, type SeekSpec, type SeekView, type SensitivityView } from "./sensitivity-view";
 import { releaseWhenIdle } from "./worker-memory";
 
 export type InteractiveTask =
@@ -23,7 +23,8 @@ export type InteractiveTask =
   | { kind: "csv"; bytes: Uint8Array }
   | { kind: "store-csv"; bytes: Uint8Array; dbFile: string; measurement: MeasurementFields }
   | { kind: "compare"; dbFile: string; fromRunId: string; toRunId: string; tolerance: Tolerance }
-  | { kind: "sensitivity"; text: string };
+  | { kind: "sensitivity"; text: string }
+  | { kind: "seek"; text: string; spec?: SeekSpec };
 
 export type { ComparisonCore };
 
@@ -48,7 +49,9 @@ export type InteractiveResult<T extends InteractiveTask> = T extends { kind: "ch
         ? StoreCsvResult
         : T extends { kind: "sensitivity" }
           ? SensitivityView
-          : ComparisonCore | null;
+          : T extends { kind: "seek" }
+            ? SeekView
+            : ComparisonCore | null;
 
 let connection: { file: string; db: DB } | null = null;
 /** The thread's connection to `file` (opened once; it waits up to 5 s for a lock, off the request thread). */
@@ -81,7 +84,7 @@ function compare(task: Extract<InteractiveTask, { kind: "compare" }>): Compariso
 
 export default function interactiveTask(
   task: InteractiveTask,
-): TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | null {
+): TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | SeekView | null {
   try {
     switch (task.kind) {
       case "check":
@@ -96,6 +99,8 @@ export default function interactiveTask(
         return compare(task);
       case "sensitivity":
         return sensitivityView(task.text);
+      case "seek":
+        return seekView(task.text, task.spec);
     }
   } finally {
     // The kept thread gives back what the task left (a large network's elaboration) once it is idle.

@@ -31,7 +31,7 @@ import type {
 import type { Tolerance } from "./review/results-diff";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
-import type { SensitivityView } from "./sensitivity-view";
+import type { SeekSpec, SeekView, SensitivityView } from "./sensitivity-view";
 import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
@@ -51,7 +51,7 @@ export function interactiveTimeLimitMs(): number {
 const KEY = Symbol.for("runnel.interactive.pool");
 type Pool = Piscina<
   InteractiveTask,
-  TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | null
+  TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | SeekView | null
 >;
 
 async function pool(): Promise<Pool> {
@@ -71,7 +71,7 @@ async function poolWith(minThreads: number): Promise<Pool> {
     const { Piscina } = await import("piscina");
     g[KEY] = new Piscina<
       InteractiveTask,
-      TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | null
+      TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | SeekView | null
     >({
       filename: INTERACTIVE_WORKER_FILE(),
       execArgv: workerExecArgv(),
@@ -91,6 +91,7 @@ const WHAT: Record<InteractiveTask["kind"], string> = {
   "store-csv": "reading and storing the measurement CSV",
   compare: "comparing the two runs",
   sensitivity: "computing the sensitivities",
+  seek: "seeking the param's value",
 };
 
 /** Runs `task` in the interactive pool, under its time limit, cancelled when `signal` aborts. */
@@ -159,6 +160,11 @@ export function compareInWorker(
 /** The Sensitivity view of a network text (app/lib/sensitivity-view.ts), computed in the interactive pool. */
 export function sensitivityInWorker(text: string, signal?: AbortSignal): Promise<SensitivityView> {
   return runInteractive({ kind: "sensitivity", text }, signal);
+}
+
+/** Goal-seeks of a network text (the file's `seek` statements, or `spec`), computed in the interactive pool. */
+export function seekInWorker(text: string, spec?: SeekSpec, signal?: AbortSignal): Promise<SeekView> {
+  return runInteractive({ kind: "seek", text, ...(spec ? { spec } : {}) }, signal);
 }
 
 /** Ends the pool's threads (tests and scripts that must exit). */

@@ -5,7 +5,8 @@
  * Computed in the interactive pool (a pool thread elaborates and solves; the request thread never does).
  */
 import { elaborate } from "@/src/lang/index";
-import { sensitivityJson, type SensitivityJson } from "@/src/solver/design-json";
+import { seekJson, sensitivityJson, type SeekJson, type SensitivityJson } from "@/src/solver/design-json";
+import { pointCount } from "@/src/solver/index";
 
 /** Most devices listed per probe, and most probes answered (the rest are named as left out). */
 export const SENSITIVITY_TOP = 20;
@@ -55,4 +56,47 @@ export function sensitivityCsv(v: SensitivityView): string {
       rows.push([q(p.probe), "budget-group", q(g.pattern), "", "", n(g.share), n(g.sigma)].join(","));
   }
   return rows.join("\n") + "\n";
+}
+
+/** Most searches one goal-seek of the view runs (one per point of the network's other sweeps). */
+export const SEEK_MAX_SEARCHES = 200;
+
+export interface SeekSpec {
+  param: string;
+  low: number;
+  high: number;
+  probe: string;
+  target: number;
+}
+
+export type SeekView = { ok: true; seeks: SeekJson[] } | { ok: false; error: string; seeks: [] };
+
+/**
+ * The goal-seeks of the run page: the file's `seek` statements, or the one `spec` a member asked for, by the
+ * core's Brent search (`seekJson`, as `runnel seek --json` gives it), one search per point of the other sweeps.
+ */
+export function seekView(text: string, spec?: SeekSpec): SeekView {
+  const fail = (error: string): SeekView => ({ ok: false, error, seeks: [] });
+  const net = elaborate(text).network;
+  if (!net) return fail("the network does not elaborate: see its diagnostics");
+  if (net.devices.count > SENSITIVITY_MAX_DEVICES)
+    return fail(
+      `the network has ${net.devices.count.toLocaleString("en-US")} devices; this view seeks on networks of up to ` +
+        `${SENSITIVITY_MAX_DEVICES.toLocaleString("en-US")}: use \`runnel seek FILE --json\``,
+    );
+  const specs = spec
+    ? [spec]
+    : net.seeks.map((s) => ({ param: s.param, low: s.from, high: s.to, probe: s.probe, target: s.target }));
+  for (const s of specs) {
+    const searches = pointCount({
+      sweeps: net.sweeps.filter((w) => w.param !== s.param),
+      mismatch: null,
+    });
+    if (searches > SEEK_MAX_SEARCHES)
+      return fail(
+        `seeking ${s.param} takes one search per point of the other sweeps: ${searches.toLocaleString("en-US")}; ` +
+          `this view runs up to ${SEEK_MAX_SEARCHES}: use \`runnel seek FILE --json\``,
+      );
+  }
+  return { ok: true, seeks: specs.map((s) => seekJson(net, s)) };
 }

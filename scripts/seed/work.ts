@@ -62,6 +62,12 @@ export const DEMO_NETWORKS: {
     author: "u_designer2",
     message: "Pelgrom mismatch, 200 samples per gate difference",
   },
+  {
+    file: "spread.runnel",
+    name: "LM-64 spreading row",
+    author: "u_designer1",
+    message: "One bright tap; seek the lateral gate for a 6-tap space constant, with threshold mismatch",
+  },
 ];
 
 export function examplesFolder(): string {

@@ -179,3 +179,30 @@ test("the Sensitivity view of the demo's mismatch study: devices by threshold se
   await expect(page.locator('[data-slot="budget"]')).toContainText("Monte Carlo σ");
   await shot(page, "sensitivity");
 });
+
+test("the Goal-seek view of the demo's spreading row: the file's seek found, and a designer's own seek", async ({
+  page,
+}) => {
+  await signIn(page);
+  await page.goto("/w/lm64-edge-row");
+  await page
+    .getByRole("list", { name: "Networks" })
+    .getByRole("link", { name: "LM-64 spreading row", exact: true })
+    .click();
+  await expect(page).toHaveURL(/\/n\/lm-64-spreading-row$/);
+  await page.getByRole("list", { name: "Runs" }).getByRole("link").first().click();
+  await page.getByRole("tab", { name: "Goal-seek" }).click();
+  const stated = page.getByRole("table", { name: "Goal-seek of vh" }).first();
+  await expect(stated.locator("tbody tr").first()).toContainText(/the file's point\s*8\d\d(\.\d)?m/, {
+    timeout: 30_000,
+  });
+  await expect(page.getByTestId("goal-seek")).toContainText("vh giving lambda = 6: found");
+  await page.getByLabel("Seek param").fill("vh");
+  await page.getByLabel("Seek from").fill("0.65");
+  await page.getByLabel("Seek to").fill("0.95");
+  await page.getByLabel("Seek probe").fill("lambda");
+  await page.getByLabel("Seek target").fill("5");
+  await page.getByRole("button", { name: "Seek", exact: true }).click();
+  await expect(page.getByTestId("goal-seek")).toContainText("vh giving lambda = 5: found", { timeout: 30_000 });
+  await shot(page, "goal-seek");
+});

@@ -10,9 +10,15 @@ import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { DB } from "@/db";
 import { commits, networks, runs } from "@/db/schema";
 import { elaborate } from "@/src/lang/index";
-import { sensitivityJson } from "@/src/solver/design-json";
+import { seekJson, sensitivityJson } from "@/src/solver/design-json";
 import { closeInteractivePool } from "@/app/lib/interactive";
-import { SENSITIVITY_MAX_DEVICES, SENSITIVITY_TOP, sensitivityView } from "@/app/lib/sensitivity-view";
+import {
+  SEEK_MAX_SEARCHES,
+  SENSITIVITY_MAX_DEVICES,
+  SENSITIVITY_TOP,
+  seekView,
+  sensitivityView,
+} from "@/app/lib/sensitivity-view";
 import { chainText } from "@/bench/workloads";
 import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
 import { apiCaller } from "../helpers/api";
@@ -85,5 +91,69 @@ describe("the Sensitivity view's route", () => {
     expect(v.error).toMatch(
       /devices; this view computes networks of up to 500,000: use `runnel sensitivity FILE --json`/,
     );
+  });
+});
+
+describe("the Goal-seek view's route", () => {
+  it("gives the file's seek statements as the core finds them: the demo spreading row's lateral gate for 6 taps", async () => {
+    const { runId, text } = demoRun("LM-64 spreading row");
+    const r = await call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
+    expect(r.status).toBe(200);
+    const net = elaborate(text).network!;
+    const s = net.seeks[0];
+    const direct = seekJson(net, { param: s.param, low: s.from, high: s.to, probe: s.probe, target: s.target });
+    expect(r.json).toEqual(JSON.parse(JSON.stringify({ ok: true, seeks: [direct] })));
+    expect(direct.points[0]).toMatchObject({ ok: true });
+  });
+
+  it("runs a seek a member asks for; a viewer may not, and a bracket without a crossing says the probe's range", async () => {
+    const { runId } = demoRun("LM-64 spreading row");
+    const spec = { param: "vh", low: 0.65, high: 0.7, probe: "lambda", target: 6 };
+    const asViewer = await call(
+      "viewer",
+      "runs/[id]/seek/route",
+      "POST",
+      `/api/runs/${runId}/seek`,
+      { id: runId },
+      spec,
+    );
+    expect(asViewer.status).toBe(403);
+    const r = await call("designer", "runs/[id]/seek/route", "POST", `/api/runs/${runId}/seek`, { id: runId }, spec);
+    expect(r.status).toBe(200);
+    const seek = (r.json as { seeks: { points: { ok: boolean; reason?: string; range?: unknown }[] }[] }).seeks[0];
+    expect(seek.points[0]).toMatchObject({ ok: false, reason: "no-sign-change" });
+    expect(seek.points[0].range).toBeDefined();
+    const bad = await call(
+      "designer",
+      "runs/[id]/seek/route",
+      "POST",
+      `/api/runs/${runId}/seek`,
+      { id: runId },
+      {
+        ...spec,
+        low: "a lot",
+      },
+    );
+    expect(bad.status).toBe(400);
+  });
+
+  it("refuses a seek that would run more searches than the view allows, naming the command line", () => {
+    const text = `network many
+param vh = 0.7
+param vv = 0.6
+rail vdd = 1.8
+rail gnd = 0
+rail gh = vh
+rail gv = vv
+nfet m1 gate=gh source=x drain=vdd
+nfet m2 gate=gv source=x drain=vdd
+inject i from=x to=gnd value=1n
+probe share = current(m1) / current(m2)
+sweep vv from 0.5 to 0.7 points ${SEEK_MAX_SEARCHES + 1}
+seek vh from=0.6 to=0.8 measure=share target=1
+`;
+    const v = seekView(text);
+    expect(v.ok).toBe(false);
+    expect(!v.ok && v.error).toMatch(/one search per point of the other sweeps: 201; this view runs up to 200/);
   });
 });

@@ -20,13 +20,24 @@ import { MapPanel } from "./map-panel";
 import { OperatingPanel } from "./operating-panel";
 import { ProbesPanel } from "./probes-panel";
 import { ProfilePanel } from "./profile-panel";
+import { SeekPanel } from "./seek-panel";
 import { SensitivityPanel } from "./sensitivity-panel";
 import { SpreadPanel } from "./spread-panel";
 import { paramUnit } from "./sweep-values";
 
-export type Tab = "probes" | "operating" | "devices" | "profile" | "map" | "spread" | "sensitivity";
+export type Tab = "probes" | "operating" | "devices" | "profile" | "map" | "spread" | "sensitivity" | "seek";
 
-export function Results({ runId, run, series }: { runId: string; run: RunRow; series: SeriesView }) {
+export function Results({
+  runId,
+  run,
+  series,
+  canRun,
+}: {
+  runId: string;
+  run: RunRow;
+  series: SeriesView;
+  canRun: boolean;
+}) {
   const samples = series.mismatch?.runs ?? 1;
   const gridPoints = Math.max(1, Math.ceil(run.pointsTotal / samples));
   const [gridPoint, setGridPoint] = useState(0);
@@ -53,7 +64,7 @@ export function Results({ runId, run, series }: { runId: string; run: RunRow; se
     ["map", "Map"],
   ];
   if (series.mismatch) tabs.push(["spread", "Spread"]);
-  tabs.push(["sensitivity", "Sensitivity"]);
+  tabs.push(["sensitivity", "Sensitivity"], ["seek", "Goal-seek"]);
   return (
     <section aria-label="Results" className="space-y-4">
       {run.pointsTotal > 1 ? (
@@ -120,6 +131,7 @@ export function Results({ runId, run, series }: { runId: string; run: RunRow; se
         {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <LoadingNote /> : null}
         {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
         {tab === "sensitivity" ? <SensitivityPanel runId={runId} /> : null}
+        {tab === "seek" ? <SeekPanel runId={runId} canRun={canRun} /> : null}
       </div>
       {current?.error ? <p className="text-sm text-ember-500">This point was not solved: {current.error}</p> : null}
       <p className="text-xs text-stone-500">

@@ -96,7 +96,7 @@ export function RunView({ runId, canRun }: RunViewProps) {
         <>
           <ExportLinks runId={runId} />
           {series.data ? (
-            <Results runId={runId} run={run} series={series.data.series} />
+            <Results runId={runId} run={run} series={series.data.series} canRun={canRun} />
           ) : (
             <p className="text-stone-500">Loading results…</p>
           )}

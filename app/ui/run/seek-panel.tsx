@@ -1,0 +1,144 @@
+"use client";
+
+/**
+ * The Goal-seek view of a run: the results of the file's `seek` statements (the param's value giving the probe its
+ * target, by Brent's method, one search per point of the other sweeps, or why a search failed), and for members
+ * who may start runs a form to seek another param/probe/target on the same commit. From /api/runs/[id]/seek.
+ */
+import { useState } from "react";
+import useSWR from "swr";
+import { formatEng } from "@/app/lib/format";
+import type { SeekView } from "@/app/lib/sensitivity-view";
+import type { SeekJson } from "@/src/solver/design-json";
+import { getJson, sendJson } from "@/app/ui/fetch";
+import { LoadingNote } from "./loading-note";
+import { paramUnit } from "./sweep-values";
+
+const eng = (x: number, unit = "") => formatEng(x, unit, 4);
+
+function SeekTable({ seek }: { seek: SeekJson }) {
+  const unit = paramUnit(seek.param);
+  return (
+    <div className="space-y-1">
+      <p className="font-medium text-stone-800">
+        {seek.param} giving {seek.probe} = {eng(seek.target)}: {seek.ok ? "found" : "not found everywhere"}
+      </p>
+      <table className="text-left" aria-label={`Goal-seek of ${seek.param}`}>
+        <thead className="text-xs text-stone-500">
+          <tr>
+            <th className="py-1 pr-3 font-normal">at</th>
+            <th className="py-1 pr-3 font-normal">{seek.param}</th>
+            <th className="py-1 pr-3 font-normal">{seek.probe} reached</th>
+            <th className="py-1 pr-3 font-normal">iterations</th>
+          </tr>
+        </thead>
+        <tbody className="tabular">
+          {seek.points.map((p, k) => (
+            <tr key={k} className="border-t border-stone-100">
+              <td className="py-0.5 pr-3">
+                {Object.entries(p.at)
+                  .map(([n, x]) => `${n} = ${eng(x, paramUnit(n))}`)
+                  .join(", ") || "the file's point"}
+              </td>
+              {p.ok ? (
+                <>
+                  <td className="py-0.5 pr-3">{eng(p.value, unit)}</td>
+                  <td className="py-0.5 pr-3">{eng(p.achieved)}</td>
+                </>
+              ) : (
+                <td colSpan={2} className="py-0.5 pr-3 text-ember-500">
+                  {p.message}
+                </td>
+              )}
+              <td className="py-0.5 pr-3">{p.iterations}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+function SeekResult({ view }: { view: SeekView }) {
+  if (!view.ok) return <p className="text-ember-500">{view.error}</p>;
+  return (
+    <>
+      {view.seeks.map((s, k) => (
+        <SeekTable key={k} seek={s} />
+      ))}
+    </>
+  );
+}
+
+export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean }) {
+  const stated = useSWR<SeekView>(`/api/runs/${runId}/seek`, getJson, { revalidateOnFocus: false });
+  const [form, setForm] = useState({ param: "", low: "", high: "", probe: "", target: "" });
+  const [asked, setAsked] = useState<SeekView | null>(null);
+  const [problem, setProblem] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+  async function seek() {
+    setBusy(true);
+    setProblem(null);
+    try {
+      const num = (s: string) => Number(s.trim());
+      const spec = { ...form, low: num(form.low), high: num(form.high), target: num(form.target) };
+      if (![spec.low, spec.high, spec.target].every(Number.isFinite))
+        throw new Error("low, high and target must be numbers in SI units (e.g. 0.65, 2e-9)");
+      setAsked(await sendJson<SeekView>("POST", `/api/runs/${runId}/seek`, spec));
+    } catch (e) {
+      setProblem((e as Error).message);
+    } finally {
+      setBusy(false);
+    }
+  }
+  const field = (key: keyof typeof form, label: string, width = "w-24") => (
+    <label className="flex items-center gap-1">
+      <span className="text-stone-600">{label}</span>
+      <input
+        value={form[key]}
+        onChange={(e) => setForm({ ...form, [key]: e.target.value })}
+        aria-label={`Seek ${label}`}
+        className={`${width} rounded border border-stone-300 px-1`}
+      />
+    </label>
+  );
+  return (
+    <div className="space-y-4 text-sm" data-testid="goal-seek">
+      <p className="text-stone-600">
+        Brent&apos;s method on the run&apos;s network, one search per point of its other sweeps. Model estimates: a
+        value found here is where the model crosses the target, not a trimmed silicon value.
+      </p>
+      {stated.error ? <p className="text-ember-500">{(stated.error as Error).message}</p> : null}
+      {!stated.data && !stated.error ? <LoadingNote /> : null}
+      {stated.data?.ok && stated.data.seeks.length === 0 ? (
+        <p className="text-stone-500">The file states no `seek`.</p>
+      ) : null}
+      {stated.data ? <SeekResult view={stated.data} /> : null}
+      {canRun ? (
+        <form
+          className="flex flex-wrap items-center gap-2 rounded border border-stone-200 bg-white p-3"
+          onSubmit={(e) => {
+            e.preventDefault();
+            void seek();
+          }}
+        >
+          <span className="font-medium text-stone-800">Seek</span>
+          {field("param", "param")}
+          {field("low", "from")}
+          {field("high", "to")}
+          {field("probe", "probe")}
+          {field("target", "target")}
+          <button
+            type="submit"
+            disabled={busy}
+            className="rounded bg-moss-600 px-3 py-1 text-white hover:bg-moss-700 disabled:opacity-50"
+          >
+            {busy ? "Seeking…" : "Seek"}
+          </button>
+        </form>
+      ) : null}
+      {problem ? <p className="text-ember-500">{problem}</p> : null}
+      {asked ? <SeekResult view={asked} /> : null}
+    </div>
+  );
+}
