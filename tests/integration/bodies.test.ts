@@ -5,6 +5,8 @@
  * are 64 MiB streams made on demand; the test counts how much of each the
  * handler pulled.
  */
+import fs from "node:fs";
+import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { MAX_BODY_BYTES } from "@/app/lib/http";
 import { MAX_MEASUREMENT_BYTES } from "@/app/lib/review/measurements";
@@ -43,31 +45,68 @@ function hugeBody(total: number) {
 
 type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
 
-async function post(who: Who, file: string, url: string, params: Record<string, string>, headers: HeadersInit = {}) {
+async function post(
+  who: Who,
+  file: string,
+  url: string,
+  params: Record<string, string>,
+  headers: HeadersInit = {},
+  method = "POST",
+) {
   const { stream, counter } = hugeBody(64 * MiB);
   const mod = (await import(/* @vite-ignore */ `@/app/api/${file}`)) as Record<string, Handler>;
   const h = new Headers({ origin: SITE, host: new URL(SITE).host, "content-type": "application/json", ...headers });
   const actor = fixture.actors[who];
   if (actor) h.set("cookie", actor.cookie);
-  const init = { method: "POST", headers: h, body: stream, duplex: "half" } as RequestInit;
-  const res = await mod.POST(new Request(SITE + url, init), { params: Promise.resolve(params) });
+  const init = { method, headers: h, body: stream, duplex: "half" } as RequestInit;
+  const res = await mod[method](new Request(SITE + url, init), { params: Promise.resolve(params) });
   return { status: res.status, body: (await res.json()) as { error: string }, pulled: counter.pulled };
 }
 
-const ROUTES: [string, string, Record<string, string>][] = [
-  ["runs/route", "/api/runs", {}],
-  ["threads/route", "/api/threads", {}],
-  ["threads/[id]/comments/route", "/api/threads/t_x/comments", { id: "t_x" }],
-  ["networks/[id]/commits/route", "/api/networks/n_x/commits", { id: "n_x" }],
-  ["w/[slug]/networks/route", "/api/w/lm64-edge-row/networks", { slug: "lm64-edge-row" }],
-  ["networks/[id]/measurements/route", "/api/networks/n_x/measurements", { id: "n_x" }],
-];
+/** Every route handler that takes a body (POST, PUT, PATCH), found on disk: [file, url, params, method]. */
+function bodyRoutes(): [string, string, Record<string, string>, string][] {
+  const out: [string, string, Record<string, string>, string][] = [];
+  const walk = (dir: string) => {
+    for (const e of fs.readdirSync(dir, { withFileTypes: true })) {
+      const p = path.join(dir, e.name);
+      if (e.isDirectory()) walk(p);
+      else if (e.name === "route.ts") {
+        const src = fs.readFileSync(p, "utf8");
+        const rel = path.relative("app/api", p).replace(/\.ts$/, "");
+        const params: Record<string, string> = {};
+        const url =
+          "/api/" +
+          path
+            .dirname(rel)
+            .split(path.sep)
+            .map((seg) => {
+              const m = /^\[(\w+)\]$/.exec(seg);
+              if (!m) return seg;
+              params[m[1]] = m[1] === "slug" ? WORKSPACE.slug : `${m[1]}_x`;
+              return params[m[1]];
+            })
+            .join("/");
+        for (const method of ["POST", "PUT", "PATCH"])
+          if (new RegExp(`export (async )?function ${method}\\b`).test(src)) out.push([rel, url, params, method]);
+      }
+    }
+  };
+  walk("app/api");
+  return out.sort();
+}
+const ROUTES = bodyRoutes();
 
 describe("request bodies", () => {
+  it("finds the routes that take a body", () => {
+    expect(ROUTES.map((r) => r[0])).toEqual(
+      expect.arrayContaining(["runs/route", "comments/preview/route", "runs/[id]/seek/route", "networks/[id]/route"]),
+    );
+  });
+
   it.each(ROUTES)(
-    "an anonymous chunked 64 MiB POST to %s is refused without reading its body",
-    async (file, url, p) => {
-      const r = await post("anonymous", file, url, p);
+    "an anonymous chunked 64 MiB request to %s is refused without reading its body",
+    async (file, url, p, method) => {
+      const r = await post("anonymous", file, url, p, {}, method);
       expect(r.status).toBe(401);
       expect(r.pulled).toBe(0);
     },

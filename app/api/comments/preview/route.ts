@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { commitAccess, requestActor, threadAccess } from "@/app/lib/access";
 import { handle, readJson, RequestError } from "@/app/lib/http";
+import { authenticated } from "@/app/lib/policy";
 import { previewComment } from "@/app/lib/review/threads";
 
 export const dynamic = "force-dynamic";
@@ -20,16 +21,19 @@ const Body = z.object({
  */
 export function POST(request: Request) {
   return handle(async () => {
+    // Signed in before the body is read (an anonymous request never makes the server hold its body).
+    const actor = authenticated(await requestActor(request));
     const input = await readJson(request, Body);
-    if (!input.threadId && !input.commitId) throw new RequestError(400, "threadId: name the thread (or commitId)");
-    const actor = await requestActor(request);
-    const { actor: a, workspaceId } = input.threadId
-      ? (({ actor, thread }) => ({ actor, workspaceId: thread.workspaceId }))(
-          threadAccess(actor, "thread.comment", input.threadId),
-        )
-      : (({ actor, network }) => ({ actor, workspaceId: network.workspaceId }))(
-          commitAccess(actor, "thread.comment", input.commitId!),
-        );
+    const { threadId, commitId } = input;
+    let a: typeof actor;
+    let workspaceId: string;
+    if (threadId) {
+      const { actor: who, thread } = threadAccess(actor, "thread.comment", threadId);
+      [a, workspaceId] = [who, thread.workspaceId];
+    } else if (commitId) {
+      const { actor: who, network } = commitAccess(actor, "thread.comment", commitId);
+      [a, workspaceId] = [who, network.workspaceId];
+    } else throw new RequestError(400, "threadId: name the thread (or commitId)");
     return Response.json(previewComment(workspaceId, input.body, a.userId));
   });
 }
