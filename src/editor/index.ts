@@ -4,7 +4,8 @@
  * diagnostics of the language's own elaboration.
  */
 import { LanguageSupport } from "@codemirror/language";
-import { elaboratedNames, runnelCompletionSource } from "./complete";
+import { runnelCompletionSource } from "./complete";
+import { elaboratedNames } from "./names";
 import { runnelSyntaxHighlighting } from "./theme";
 import { runnelLanguage } from "./language";
 
@@ -15,11 +16,11 @@ export {
   collectNames,
   documentNames,
   elaboratedNames,
-  runnelCompletionSource,
   setElaboratedNames,
   type DocumentNames,
   type ElaboratedNames,
-} from "./complete";
+} from "./names";
+export { runnelCompletionSource } from "./complete";
 export {
   LintClient,
   runnelLinter,

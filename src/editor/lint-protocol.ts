@@ -5,7 +5,7 @@
  */
 import { elaborate } from "../lang/index";
 import type { Diagnostic, ElaborationResult } from "../lang/network";
-import type { ElaboratedNames } from "./complete";
+import type { ElaboratedNames } from "./names";
 
 /** At most this many elaborated names are sent back for completion. */
 export const MAX_PUBLISHED_NAMES = 5000;

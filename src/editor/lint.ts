@@ -12,7 +12,7 @@ import { type Diagnostic as EditorDiagnostic, linter, type LintSource } from "@c
 import type { Extension, Text } from "@codemirror/state";
 import { type EditorView, ViewPlugin } from "@codemirror/view";
 import type { Diagnostic } from "../lang/network";
-import { setElaboratedNames } from "./complete";
+import { setElaboratedNames } from "./names";
 import { answerLintRequest, type LintReply, type LintRequest } from "./lint-protocol";
 
 /** What the linter needs of a worker (a browser Worker satisfies it; tests pass a MessagePort). */
