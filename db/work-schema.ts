@@ -53,6 +53,8 @@ export const networks = sqliteTable(
       .references(() => users.id),
     createdAt: createdAt(),
     updatedAt: timestamp("updated_at").notNull().default(nowMs),
+    /** When an owner or designer archived it: hidden from the workspace's list, its history kept; null while in use. */
+    archivedAt: timestamp("archived_at"),
   },
   (t) => [
     // "the network /w/[ws]/n/[slug]" and the workspace's network list

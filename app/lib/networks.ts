@@ -8,7 +8,7 @@
  * A commit must name the network's current head as its parent, so two people
  * committing from the same head cannot silently overwrite each other (409).
  */
-import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNotNull, isNull, sql } from "drizzle-orm";
 import { db, type Q } from "@/db";
 import { newId, sha256Hex } from "@/db/ids";
 import { commits, networks, runs, users, type CommitDiagnostic, type RunState } from "@/db/schema";
@@ -54,11 +54,17 @@ export interface NetworkSummary {
 }
 
 /** The networks of a workspace, most recently changed first, with their head commit and newest run. */
-export function listNetworks(workspaceId: string, d: Q = db()): NetworkSummary[] {
+/** `archived: true` lists the archived networks instead (hidden from the ordinary list, history kept). */
+export function listNetworks(workspaceId: string, options: { archived?: boolean } = {}, d: Q = db()): NetworkSummary[] {
   const rows = d
     .select()
     .from(networks)
-    .where(eq(networks.workspaceId, workspaceId))
+    .where(
+      and(
+        eq(networks.workspaceId, workspaceId),
+        options.archived ? isNotNull(networks.archivedAt) : isNull(networks.archivedAt),
+      ),
+    )
     .orderBy(desc(networks.updatedAt), asc(networks.name))
     .all();
   if (rows.length === 0) return [];
@@ -125,10 +131,17 @@ export interface NetworkRow {
   headCommitId: string | null;
   createdAt: number;
   updatedAt: number;
+  /** When it was archived (hidden from the list, history kept), null while in use. */
+  archivedAt: number | null;
 }
 
 function toNetworkRow(n: typeof networks.$inferSelect): NetworkRow {
-  return { ...n, createdAt: n.createdAt.getTime(), updatedAt: n.updatedAt.getTime() };
+  return {
+    ...n,
+    createdAt: n.createdAt.getTime(),
+    updatedAt: n.updatedAt.getTime(),
+    archivedAt: n.archivedAt ? n.archivedAt.getTime() : null,
+  };
 }
 
 export function getNetwork(id: string, d: Q = db()): NetworkRow | null {
@@ -206,6 +219,20 @@ export function createNetwork(
 export function renameNetwork(id: string, name: string, d: Q = db()): NetworkRow {
   const clean = cleanName(name);
   d.update(networks).set({ name: clean, updatedAt: new Date() }).where(eq(networks.id, id)).run();
+  const n = getNetwork(id, d);
+  if (!n) throw new RequestError(404, "not found");
+  return n;
+}
+
+/**
+ * Archives a network (`archived` true: hidden from the workspace's list; its commits, runs and threads stay and
+ * its pages still open) or brings it back (false). Who may do which is the route's business (policy).
+ */
+export function setNetworkArchived(id: string, archived: boolean, d: Q = db()): NetworkRow {
+  d.update(networks)
+    .set({ archivedAt: archived ? new Date() : null })
+    .where(eq(networks.id, id))
+    .run();
   const n = getNetwork(id, d);
   if (!n) throw new RequestError(404, "not found");
   return n;

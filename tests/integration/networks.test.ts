@@ -120,7 +120,7 @@ describe("networks and commits", () => {
     expect(c3.id).not.toBe(commit!.id);
     expect(listCommits(network.id, db).map((c) => c.id)).toEqual([c3.id, c2.id, commit!.id]);
     expect(getCommit(c3.id, db)!.text).toBe(DIVIDER);
-    const summary = listNetworks("ws_lm64", db).find((n) => n.id === network.id);
+    const summary = listNetworks("ws_lm64", {}, db).find((n) => n.id === network.id);
     expect(summary).toMatchObject({ id: network.id, commitCount: 3, head: { id: c3.id, message: "drop m2" } });
   });
 
@@ -137,7 +137,7 @@ describe("the demo seed", () => {
     const db = fresh();
     const { listRuns } = await import("@/app/lib/runs");
     const { DEMO_NETWORKS, seedWork } = await import("@/scripts/seed/work");
-    const demo = listNetworks("ws_lm64", db).filter((n) => DEMO_NETWORKS.some((d) => slugify(d.name) === n.slug));
+    const demo = listNetworks("ws_lm64", {}, db).filter((n) => DEMO_NETWORKS.some((d) => slugify(d.name) === n.slug));
     expect(demo).toHaveLength(DEMO_NETWORKS.length);
     for (const n of demo) {
       const runs = listRuns({ commitId: n.headCommitId! }, undefined, db);

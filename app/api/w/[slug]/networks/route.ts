@@ -8,11 +8,19 @@ import { checkTextInWorker } from "@/app/lib/interactive";
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ slug: string }> };
 
-/** GET /api/w/[slug]/networks (workspace.read): the workspace's networks with their head commit and newest run. */
+/**
+ * GET /api/w/[slug]/networks (workspace.read): the workspace's networks with their head commit and newest run;
+ * `?archived=1` (workspace.manage: owners) the archived ones instead.
+ */
 export function GET(request: Request, ctx: Ctx) {
   return handle(async () => {
-    const { workspace: w } = workspaceAccess(await requestActor(request), "workspace.read", (await ctx.params).slug);
-    return fresh({ workspace: { id: w.id, slug: w.slug, name: w.name }, networks: listNetworks(w.id) });
+    const archived = new URL(request.url).searchParams.get("archived") === "1";
+    const { workspace: w } = workspaceAccess(
+      await requestActor(request),
+      archived ? "workspace.manage" : "workspace.read",
+      (await ctx.params).slug,
+    );
+    return fresh({ workspace: { id: w.id, slug: w.slug, name: w.name }, networks: listNetworks(w.id, { archived }) });
   });
 }
 
