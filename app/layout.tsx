@@ -12,6 +12,21 @@ export const metadata: Metadata = {
   description: "Workbench for weak-inversion transistor networks: write, check, solve, sweep, compare and sign off.",
 };
 
+function NavLinks() {
+  return (
+    <>
+      <Link href="/" className="hover:text-moss-700">
+        Workspaces
+      </Link>
+      {mailboxEnabled() ? (
+        <Link href="/dev/mailbox" className="hover:text-moss-700 sm:ml-4">
+          Mailbox (dev)
+        </Link>
+      ) : null}
+    </>
+  );
+}
+
 export default async function RootLayout({ children }: { children: ReactNode }) {
   // Every page renders per request: its scripts carry that response's CSP nonce (scripts/lib/next-server.ts).
   await connection();
@@ -24,19 +39,24 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
               <span className="font-mono text-xl font-bold tracking-tight text-moss-700">runnel</span>
               <span className="hidden text-xs text-stone-500 sm:inline">weak-inversion network workbench</span>
             </Link>
-            <nav className="flex-1 text-sm text-stone-600">
-              <Link href="/" className="hover:text-moss-700">
-                Workspaces
-              </Link>
-              {mailboxEnabled() ? (
-                <Link href="/dev/mailbox" className="ml-4 hover:text-moss-700">
-                  Mailbox (dev)
-                </Link>
-              ) : null}
+            <nav className="hidden flex-1 text-sm text-stone-600 sm:block">
+              <NavLinks />
             </nav>
-            <div data-slot="account" className="text-sm">
+            <div data-slot="account" className="hidden text-sm sm:block">
               <AccountSlot />
             </div>
+            {/* Phones: the links and the account corner fold into one menu (no script needed). */}
+            <details className="relative ml-auto text-sm sm:hidden" data-slot="header-menu">
+              <summary className="cursor-pointer list-none rounded border border-stone-300 px-3 py-1 text-stone-700">
+                Menu
+              </summary>
+              <div className="absolute right-0 z-20 mt-2 w-64 space-y-3 rounded border border-stone-300 bg-white p-3 shadow-md">
+                <nav className="flex flex-col gap-2 text-stone-600">
+                  <NavLinks />
+                </nav>
+                <AccountSlot inMenu />
+              </div>
+            </details>
           </div>
         </header>
         <main className="mx-auto max-w-6xl px-4 py-8">{children}</main>

@@ -3,8 +3,11 @@ import { signOut } from "@/app/(account)/actions";
 import { getActor } from "@/app/lib/auth";
 import { unreadCount } from "@/app/lib/inbox";
 
-/** The header's account corner: the signed-in person with settings and sign-out, or a sign-in link. */
-export async function AccountSlot() {
+/**
+ * The header's account corner: the signed-in person with settings and sign-out, or a sign-in link. `inMenu`: the
+ * copy in the phone menu, stacked, without the test ids the wide header's copy carries.
+ */
+export async function AccountSlot({ inMenu = false }: { inMenu?: boolean }) {
   const actor = await getActor();
   if (!actor) {
     return (
@@ -15,10 +18,10 @@ export async function AccountSlot() {
   }
   const unread = unreadCount(actor.userId);
   return (
-    <div className="flex items-center gap-3">
+    <div className={inMenu ? "flex flex-col items-start gap-2" : "flex items-center gap-3"}>
       <Link
         href="/inbox"
-        data-testid="inbox-badge"
+        data-testid={inMenu ? undefined : "inbox-badge"}
         aria-label={unread ? `Inbox, ${unread} unread` : "Inbox"}
         className="flex items-center gap-1 text-stone-700 hover:text-moss-700"
       >
@@ -30,7 +33,7 @@ export async function AccountSlot() {
         ) : null}
       </Link>
       <Link href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
-        <span data-testid="signed-in-as">{actor.name}</span>
+        <span data-testid={inMenu ? undefined : "signed-in-as"}>{actor.name}</span>
       </Link>
       <form action={signOut}>
         <button type="submit" className="rounded border border-stone-300 px-3 py-1 text-stone-700 hover:bg-stone-100">

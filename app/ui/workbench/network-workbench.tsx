@@ -208,12 +208,12 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
   );
 
   return (
-    <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(18rem,1fr)]">
-      <div className="space-y-3">
+    <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(18rem,1fr)]">
+      <div className="min-w-0 space-y-3">
         <div className="flex flex-wrap items-center gap-2">
           {canWrite ? (
             <form
-              className="flex flex-1 items-center gap-2"
+              className="flex min-w-0 flex-1 items-center gap-2"
               onSubmit={(e) => {
                 e.preventDefault();
                 void commit();
@@ -226,7 +226,7 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
                 placeholder="Commit message: what changed"
                 aria-label="Commit message"
                 disabled={!viewingHead}
-                className="min-w-40 flex-1 rounded border border-stone-300 bg-white px-2 py-1 text-sm disabled:bg-stone-100"
+                className="w-0 min-w-0 flex-1 rounded border border-stone-300 bg-white px-2 py-1 text-sm disabled:bg-stone-100"
               />
               <button
                 type="submit"
@@ -336,7 +336,7 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
           </p>
         ) : null}
       </div>
-      <aside className="space-y-6">
+      <aside className="min-w-0 space-y-6">
         <HistoryPanel
           commits={commits}
           headId={headId}
