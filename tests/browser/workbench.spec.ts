@@ -206,3 +206,25 @@ test("the Goal-seek view of the demo's spreading row: the file's seek found, and
   await expect(page.getByTestId("goal-seek")).toContainText("vh giving lambda = 5: found", { timeout: 30_000 });
   await shot(page, "goal-seek");
 });
+
+test("an owner archives a network, finds it under Archived networks and restores it", async ({ page }) => {
+  await signIn(page, "owner@larkspur.example");
+  await page.goto("/w/lm64-edge-row");
+  const name = `Archive me ${Date.now()}`;
+  await page.getByLabel("New network name").fill(name);
+  await page.getByRole("button", { name: "Create" }).click();
+  await expect(page.locator(".cm-content")).toBeVisible();
+  await page.goto("/w/lm64-edge-row");
+  const list = page.getByRole("list", { name: "Networks" });
+  await expect(list.getByRole("link", { name, exact: true })).toBeVisible();
+
+  page.once("dialog", (d) => void d.accept());
+  await page.getByRole("button", { name: `Archive ${name}` }).click();
+  await expect(list.getByRole("link", { name, exact: true })).toHaveCount(0);
+  await page.getByRole("button", { name: /Archived networks \(\d+\)/ }).click();
+  const archived = page.getByRole("list", { name: "Archived networks" });
+  await expect(archived.getByRole("link", { name, exact: true })).toBeVisible();
+
+  await archived.getByRole("button", { name: `Restore ${name}` }).click();
+  await expect(list.getByRole("link", { name, exact: true })).toBeVisible();
+});

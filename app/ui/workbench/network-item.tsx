@@ -7,7 +7,7 @@ import { sendJson } from "@/app/ui/fetch";
 import { RunStateBadge } from "@/app/ui/run/run-state-badge";
 import { HeadReview } from "./head-review";
 
-/** One network in the workspace list: rename, head commit, diagnostics and newest run. */
+/** One network in the workspace list: rename, archive, head commit, diagnostics and newest run. */
 
 function ago(ms: number): string {
   const s = Math.max(0, Math.round((Date.now() - ms) / 1000));
@@ -35,6 +35,16 @@ export function NetworkItem({
     try {
       await sendJson("PATCH", `/api/networks/${n.id}`, { name });
       setEditing(false);
+      setProblem(null);
+      onRenamed();
+    } catch (e) {
+      setProblem((e as Error).message);
+    }
+  };
+  const archive = async () => {
+    if (!window.confirm(`Archive ${n.name}? It leaves this list; its commits, runs and threads are kept.`)) return;
+    try {
+      await sendJson("PATCH", `/api/networks/${n.id}`, { archived: true });
       setProblem(null);
       onRenamed();
     } catch (e) {
@@ -80,6 +90,16 @@ export function NetworkItem({
                 aria-label={`Rename ${n.name}`}
               >
                 rename
+              </button>
+            ) : null}
+            {canWrite ? (
+              <button
+                type="button"
+                onClick={() => void archive()}
+                className="text-xs text-stone-500 hover:text-moss-700"
+                aria-label={`Archive ${n.name}`}
+              >
+                archive
               </button>
             ) : null}
           </div>

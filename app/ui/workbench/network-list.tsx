@@ -2,21 +2,33 @@
 
 /**
  * The networks of a workspace: each with its newest commit and run; create a
- * network, upload a `.runnel` file as a new network, rename. Data from
+ * network, upload a `.runnel` file as a new network, rename, archive; an owner
+ * sees the archived ones folded below, with restore. Data from
  * /api/w/[slug]/networks through SWR.
  */
 import { useRouter } from "next/navigation";
 import { useRef, useState } from "react";
-import useSWR from "swr";
+import useSWR, { useSWRConfig } from "swr";
 import type { NetworkSummary } from "@/app/lib/networks";
 import { getJson, sendJson } from "@/app/ui/fetch";
+import { ArchivedNetworks } from "./archived-networks";
 import { NetworkItem } from "./network-item";
 
 /** Largest file accepted for upload (the language's own limit is 2 MiB of text). */
 const MAX_UPLOAD_BYTES = 2 * 1024 * 1024;
 
-export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolean }) {
+export function NetworkList({
+  slug,
+  canWrite,
+  canManage = false,
+}: {
+  slug: string;
+  canWrite: boolean;
+  /** An owner: sees the archived networks and may restore them. */
+  canManage?: boolean;
+}) {
   const router = useRouter();
+  const { mutate: refresh } = useSWRConfig();
   const { data, error, mutate } = useSWR<{ networks: NetworkSummary[] }>(`/api/w/${slug}/networks`, getJson);
   const [name, setName] = useState("");
   const [problem, setProblem] = useState<string | null>(null);
@@ -114,10 +126,20 @@ export function NetworkList({ slug, canWrite }: { slug: string; canWrite: boolea
       ) : (
         <ul aria-label="Networks" className="divide-y divide-stone-200 rounded border border-stone-200 bg-white">
           {data.networks.map((n) => (
-            <NetworkItem key={n.id} slug={slug} network={n} canWrite={canWrite} onRenamed={() => void mutate()} />
+            <NetworkItem
+              key={n.id}
+              slug={slug}
+              network={n}
+              canWrite={canWrite}
+              onRenamed={() => {
+                void mutate();
+                void refresh(`/api/w/${slug}/networks?archived=1`);
+              }}
+            />
           ))}
         </ul>
       )}
+      {canManage ? <ArchivedNetworks slug={slug} onRestored={() => void mutate()} /> : null}
     </section>
   );
 }

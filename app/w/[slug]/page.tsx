@@ -31,7 +31,7 @@ export default async function WorkspacePageView({ params }: Props) {
           </Link>
         </nav>
       </header>
-      <NetworkList slug={workspace.slug} canWrite={can("network.write")} />
+      <NetworkList slug={workspace.slug} canWrite={can("network.write")} canManage={can("workspace.manage")} />
     </div>
   );
 }
