@@ -50,7 +50,19 @@ export interface NetworkSummary {
     authorName: string;
   } | null;
   commitCount: number;
-  lastRun: { id: string; state: RunState; createdAt: number } | null;
+  /**
+   * The newest run, with its validity counts (null until the run ends): devices that left weak inversion or
+   * saturation at some point, and the run's warnings and failed points.
+   */
+  lastRun: {
+    id: string;
+    state: RunState;
+    createdAt: number;
+    devicesNotWeak: number | null;
+    devicesNotSaturated: number | null;
+    warnings: number;
+    failures: number;
+  } | null;
 }
 
 /** The networks of a workspace, most recently changed first, with their head commit and newest run. */
@@ -102,13 +114,31 @@ export function listNetworks(workspaceId: string, options: { archived?: boolean 
   );
   const lastRuns = new Map<string, NetworkSummary["lastRun"]>();
   for (const r of d
-    .select({ id: runs.id, networkId: runs.networkId, state: runs.state, createdAt: runs.createdAt })
+    .select({
+      id: runs.id,
+      networkId: runs.networkId,
+      state: runs.state,
+      createdAt: runs.createdAt,
+      devicesNotWeak: runs.devicesNotWeak,
+      devicesNotSaturated: runs.devicesNotSaturated,
+      // Counts only: the arrays themselves are not read into JavaScript.
+      warnings: sql<number>`coalesce(json_array_length(${runs.warnings}), 0)`,
+      failures: sql<number>`coalesce(json_array_length(${runs.failures}), 0)`,
+    })
     .from(runs)
     .where(inArray(runs.networkId, ids))
     .orderBy(desc(runs.createdAt))
     .all()) {
     if (!lastRuns.has(r.networkId))
-      lastRuns.set(r.networkId, { id: r.id, state: r.state, createdAt: r.createdAt.getTime() });
+      lastRuns.set(r.networkId, {
+        id: r.id,
+        state: r.state,
+        createdAt: r.createdAt.getTime(),
+        devicesNotWeak: r.devicesNotWeak,
+        devicesNotSaturated: r.devicesNotSaturated,
+        warnings: r.warnings,
+        failures: r.failures,
+      });
   }
   return rows.map((n) => ({
     id: n.id,

@@ -416,6 +416,9 @@ export function pointView(
 export interface SeriesView {
   params: string[];
   probes: string[];
+  /** Unit symbol per probe and per param (RunLayout's probeUnits and paramUnits; null where not known). */
+  probeUnits: (string | null)[];
+  paramUnits: (string | null)[];
   sweeps: RunLayout["sweeps"];
   mismatch: RunLayout["mismatch"];
   point: number[];
@@ -443,6 +446,8 @@ export function seriesView(
   return {
     params: layout.params,
     probes: layout.probes,
+    probeUnits: layout.probeUnits ?? layout.probes.map(() => null),
+    paramUnits: layout.paramUnits ?? layout.params.map((p) => (p === "temp" ? "K" : null)),
     sweeps: layout.sweeps,
     mismatch: layout.mismatch,
     point: s.point,
@@ -542,6 +547,8 @@ export function seriesJson(
   const view: SeriesView = {
     params: layout.params,
     probes: layout.probes,
+    probeUnits: layout.probeUnits ?? layout.probes.map(() => null),
+    paramUnits: layout.paramUnits ?? layout.params.map((p) => (p === "temp" ? "K" : null)),
     sweeps: layout.sweeps,
     mismatch: layout.mismatch,
     point: c.point,

@@ -14,24 +14,26 @@ export function DemoAccounts() {
         This is a demo of an invented team, Larkspur Microsystems. Every account below has the password{" "}
         <code className="rounded bg-white px-1 font-mono">{DEMO_PASSWORD}</code>.
       </p>
-      <table className="mt-2 w-full text-left">
-        <thead className="text-xs text-stone-500">
-          <tr>
-            <th className="py-1 font-normal">e-mail</th>
-            <th className="py-1 font-normal">name</th>
-            <th className="py-1 font-normal">role in LM-64 edge row</th>
-          </tr>
-        </thead>
-        <tbody>
-          {DEMO_USERS.map((u) => (
-            <tr key={u.id} className="border-t border-moss-100">
-              <td className="py-1 font-mono">{u.email}</td>
-              <td className="py-1">{u.name}</td>
-              <td className="py-1">{u.role}</td>
+      <div className="overflow-x-auto">
+        <table className="mt-2 w-full text-left">
+          <thead className="text-xs text-stone-500">
+            <tr>
+              <th className="py-1 font-normal">e-mail</th>
+              <th className="py-1 font-normal">name</th>
+              <th className="py-1 font-normal">role in LM-64 edge row</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {DEMO_USERS.map((u) => (
+              <tr key={u.id} className="border-t border-moss-100">
+                <td className="py-1 font-mono">{u.email}</td>
+                <td className="py-1">{u.name}</td>
+                <td className="py-1">{u.role}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
     </section>
   );
 }

@@ -21,7 +21,7 @@ import { BUILTINS, FUNCTIONS, inferDim } from "./dims";
 import type { Shape } from "./names";
 import * as T from "./parser.terms";
 import { suggest } from "./suggest";
-import { compatible, describeDim, DIMENSIONLESS, type Dim, hasUnit, LOOSE, sameDim } from "./units";
+import { compatible, describeDim, DIMENSIONLESS, type Dim, hasUnit, LOOSE, sameDim, unitSymbol } from "./units";
 import type { ValueTpl } from "./values";
 import { isSetting } from "./vocabulary";
 
@@ -163,6 +163,11 @@ export class Compiler {
       const needs = sameDim(expect, DIMENSIONLESS) ? "a plain number" : describeDim(expect);
       sink.error(e.from, e.to, `expected ${needs} here, but this is ${describeDim(dim)}`, what);
       return null;
+    }
+    // A bare param used where a unit is needed (a rail's volts, an inject's amperes) is shown in that unit.
+    if (expect && expect !== "length" && hasUnit(expect) && e.k === "name") {
+      const p = this.cx.values.params.get(e.name);
+      if (p && p.def.unit == null) p.def.unit = unitSymbol(expect);
     }
     return this.cx.values.template(e, this.compile(e), loopVars, dim);
   }

@@ -127,7 +127,7 @@ test("edit, commit, run a sweep, read the plot and the table, export CSV", async
   const farHeader = table.locator("th", { has: page.getByRole("button", { name: "far" }) });
   while ((await farHeader.getAttribute("aria-sort")) !== "descending")
     await table.getByRole("button", { name: "far" }).click();
-  await expect(table.locator("tbody tr").first().locator("td").nth(1)).toHaveText("800m");
+  await expect(table.locator("tbody tr").first().locator("td").nth(1)).toHaveText("800 mV");
 
   // the spatial profile of the output currents
   await page.getByRole("tab", { name: "Profile" }).click();

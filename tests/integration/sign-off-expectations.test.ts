@@ -78,7 +78,7 @@ describe("signing off over a failing expectation", () => {
       ["ratio_band", "failed"],
       ["pair_saturated", "met"],
     ]);
-    expect(summary.runs[0].checks[0].detail).toMatch(/^\d\/9 points pass, margin -/);
+    expect(summary.runs[0].checks[0].detail).toMatch(/^\d\/9 points pass, margin −/);
 
     for (const body of ["", "   ", "ok fine"]) {
       const r = await post(threadId, { body, verdict: "signed_off" });

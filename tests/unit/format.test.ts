@@ -12,7 +12,9 @@ describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th
     [999.96e-6, "A", "1 mA"],
     [0, "A", "0 A"],
     [12345, "", "12.3k"],
-    [1e-30, "A", "1.00e-30 A"],
+    [1.729e-25, "A", "173 rA"],
+    [1e-30, "A", "1 qA"],
+    [1e-33, "A", "1e-33 A"],
   ])("%s %s → %s", (v, unit, text) => {
     expect(formatEng(v, unit)).toBe(text);
   });
@@ -26,7 +28,7 @@ describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th
     expect(formatEng(Infinity, "V")).toBe("∞ V");
   });
   it("formats plain numbers and durations", () => {
-    expect(formatNumber(0.000012)).toBe("1.200e-5");
+    expect(formatNumber(0.000012)).toBe("1.2e-5");
     expect(formatNumber(0.5)).toBe("0.5");
     expect(formatDuration(850)).toBe("850 ms");
     expect(formatDuration(12_400)).toBe("12.4 s");

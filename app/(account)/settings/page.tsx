@@ -46,30 +46,32 @@ export default async function SettingsPage() {
         {tokens.length === 0 ? (
           <p className="text-sm text-stone-500">No tokens.</p>
         ) : (
-          <table className="w-full text-left text-sm" aria-label="API tokens">
-            <thead className="text-xs text-stone-500">
-              <tr>
-                <th className="py-1 font-normal">name</th>
-                <th className="py-1 font-normal">starts with</th>
-                <th className="py-1 font-normal">made</th>
-                <th className="py-1 font-normal">last used</th>
-                <th />
-              </tr>
-            </thead>
-            <tbody>
-              {tokens.map((t) => (
-                <tr key={t.id} className="border-t border-stone-200">
-                  <td className="py-2">{t.name}</td>
-                  <td className="py-2 font-mono">{t.prefix}…</td>
-                  <td className="py-2 tabular">{when(t.createdAt)}</td>
-                  <td className="py-2 tabular">{when(t.lastUsedAt)}</td>
-                  <td className="py-2 text-right">
-                    <RevokeTokenButton tokenId={t.id} name={t.name} />
-                  </td>
+          <div className="overflow-x-auto">
+            <table className="w-full text-left text-sm" aria-label="API tokens">
+              <thead className="text-xs text-stone-500">
+                <tr>
+                  <th className="py-1 font-normal">name</th>
+                  <th className="py-1 font-normal">starts with</th>
+                  <th className="py-1 font-normal">made</th>
+                  <th className="py-1 font-normal">last used</th>
+                  <th />
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {tokens.map((t) => (
+                  <tr key={t.id} className="border-t border-stone-200">
+                    <td className="py-2">{t.name}</td>
+                    <td className="py-2 font-mono">{t.prefix}…</td>
+                    <td className="py-2 tabular">{when(t.createdAt)}</td>
+                    <td className="py-2 tabular">{when(t.lastUsedAt)}</td>
+                    <td className="py-2 text-right">
+                      <RevokeTokenButton tokenId={t.id} name={t.name} />
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
         )}
       </section>
     </div>

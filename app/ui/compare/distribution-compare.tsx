@@ -35,28 +35,30 @@ export function DistributionCompare({ d, labels }: { d: ProbeDistribution; label
   return (
     <div className="grid gap-3 lg:grid-cols-[minmax(0,22rem)_1fr]" data-distribution={d.name}>
       <div className="space-y-2">
-        <table className="w-full text-xs" aria-label={`Distribution of ${d.name}`}>
-          <thead className="border-b border-stone-300 text-left text-stone-600">
-            <tr>
-              <th className="px-2 py-1 font-medium">{d.name}</th>
-              <th className="px-2 py-1 text-right font-medium">{labels[0]}</th>
-              <th className="px-2 py-1 text-right font-medium">{labels[1]}</th>
-              <th className="px-2 py-1 text-right font-medium">change</th>
-            </tr>
-          </thead>
-          <tbody className="tabular font-mono">
-            {rows.map(([label, a, b]) => (
-              <tr key={label} className="border-b border-stone-100">
-                <th scope="row" className="px-2 py-0.5 text-left font-sans font-normal">
-                  {label}
-                </th>
-                <td className="px-2 py-0.5 text-right">{formatWithUnit(a, d.unit)}</td>
-                <td className="px-2 py-0.5 text-right">{formatWithUnit(b, d.unit)}</td>
-                <td className="px-2 py-0.5 text-right">{formatChange(b - a, d.unit)}</td>
+        <div className="overflow-x-auto">
+          <table className="w-full text-xs" aria-label={`Distribution of ${d.name}`}>
+            <thead className="border-b border-stone-300 text-left text-stone-600">
+              <tr>
+                <th className="px-2 py-1 font-medium">{d.name}</th>
+                <th className="px-2 py-1 text-right font-medium">{labels[0]}</th>
+                <th className="px-2 py-1 text-right font-medium">{labels[1]}</th>
+                <th className="px-2 py-1 text-right font-medium">change</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody className="tabular font-mono">
+              {rows.map(([label, a, b]) => (
+                <tr key={label} className="border-b border-stone-100">
+                  <th scope="row" className="px-2 py-0.5 text-left font-sans font-normal">
+                    {label}
+                  </th>
+                  <td className="px-2 py-0.5 text-right">{formatWithUnit(a, d.unit)}</td>
+                  <td className="px-2 py-0.5 text-right">{formatWithUnit(b, d.unit)}</td>
+                  <td className="px-2 py-0.5 text-right">{formatChange(b - a, d.unit)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
         <p className="text-xs text-stone-600" data-testid="ks-test">
           {ksVerdict(d)}
         </p>

@@ -118,39 +118,41 @@ export function EntityTable({ query, analysis, kind, quantity, label, total }: E
           {(error as Error).message}
         </p>
       ) : null}
-      <table className="w-full text-xs" aria-label={label}>
-        <thead className="border-b border-stone-300 text-left text-stone-600">
-          <tr>
-            <th className="px-2 py-1 font-medium">name</th>
-            <th className="px-2 py-1 text-right font-medium">before → after (there)</th>
-            <th className="px-2 py-1 text-right font-medium">largest change</th>
-            <th className="px-2 py-1 font-medium">where</th>
-            <th className="px-2 py-1 text-right font-medium">largest relative</th>
-            <th className="px-2 py-1 text-right font-medium">points beyond</th>
-          </tr>
-        </thead>
-        <tbody className="tabular font-mono">
-          {data?.rows.map((r) => (
-            <tr key={r.name} data-entity={r.name} data-abs={r.maxAbs ?? ""} className="border-b border-stone-100">
-              <td className="px-2 py-0.5">{r.name}</td>
-              <td className="px-2 py-0.5 text-right text-stone-600">
-                {formatWithUnit(r.fromAtAbs, r.unit)} → {formatWithUnit(r.toAtAbs, r.unit)}
-              </td>
-              <td className="px-2 py-0.5 text-right">{formatChange(r.maxAbs, r.unit)}</td>
-              <td className="px-2 py-0.5 font-sans text-stone-600">{formatPointRef(r.absAt)}</td>
-              <td className="px-2 py-0.5 text-right">{formatRelative(r.maxRel)}</td>
-              <td className="px-2 py-0.5 text-right">{r.beyond.toLocaleString("en-US")}</td>
-            </tr>
-          ))}
-          {data && data.rows.length === 0 ? (
+      <div className="overflow-x-auto">
+        <table className="w-full text-xs" aria-label={label}>
+          <thead className="border-b border-stone-300 text-left text-stone-600">
             <tr>
-              <td colSpan={6} className="px-2 py-1 font-sans text-stone-500">
-                {only ? "Nothing moved beyond tolerance." : "No names match."}
-              </td>
+              <th className="px-2 py-1 font-medium">name</th>
+              <th className="px-2 py-1 text-right font-medium">before → after (there)</th>
+              <th className="px-2 py-1 text-right font-medium">largest change</th>
+              <th className="px-2 py-1 font-medium">where</th>
+              <th className="px-2 py-1 text-right font-medium">largest relative</th>
+              <th className="px-2 py-1 text-right font-medium">points beyond</th>
             </tr>
-          ) : null}
-        </tbody>
-      </table>
+          </thead>
+          <tbody className="tabular font-mono">
+            {data?.rows.map((r) => (
+              <tr key={r.name} data-entity={r.name} data-abs={r.maxAbs ?? ""} className="border-b border-stone-100">
+                <td className="px-2 py-0.5">{r.name}</td>
+                <td className="px-2 py-0.5 text-right text-stone-600">
+                  {formatWithUnit(r.fromAtAbs, r.unit)} → {formatWithUnit(r.toAtAbs, r.unit)}
+                </td>
+                <td className="px-2 py-0.5 text-right">{formatChange(r.maxAbs, r.unit)}</td>
+                <td className="px-2 py-0.5 font-sans text-stone-600">{formatPointRef(r.absAt)}</td>
+                <td className="px-2 py-0.5 text-right">{formatRelative(r.maxRel)}</td>
+                <td className="px-2 py-0.5 text-right">{r.beyond.toLocaleString("en-US")}</td>
+              </tr>
+            ))}
+            {data && data.rows.length === 0 ? (
+              <tr>
+                <td colSpan={6} className="px-2 py-1 font-sans text-stone-500">
+                  {only ? "Nothing moved beyond tolerance." : "No names match."}
+                </td>
+              </tr>
+            ) : null}
+          </tbody>
+        </table>
+      </div>
     </div>
   );
 }

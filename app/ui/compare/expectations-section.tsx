@@ -37,33 +37,35 @@ export function ExpectationsSection({ changes, labels }: { changes: ExpectationC
         </span>
       </div>
       {changes.length ? (
-        <table className="w-full text-left text-sm">
-          <thead className="text-xs text-stone-500">
-            <tr>
-              <th className="py-1 pr-3 font-normal">expectation</th>
-              <th className="py-1 pr-3 font-normal">analysis</th>
-              <th className="py-1 pr-3 font-normal">{labels[0]}</th>
-              <th className="py-1 pr-3 font-normal">{labels[1]}</th>
-              <th className="py-1 pr-3 font-normal">change</th>
-            </tr>
-          </thead>
-          <tbody>
-            {changes.map((c) => (
-              <tr
-                key={`${c.analysis} ${c.name}`}
-                data-expectation-change={c.change}
-                data-expectation={c.name}
-                className="border-t border-stone-100"
-              >
-                <td className="py-1 pr-3 font-mono">{c.name}</td>
-                <td className="py-1 pr-3 text-stone-600">{c.analysis}</td>
-                <td className="tabular py-1 pr-3">{status(c.from)}</td>
-                <td className="tabular py-1 pr-3">{status(c.to)}</td>
-                <td className={`py-1 pr-3 ${CHANGE_STYLE[c.change]}`}>{c.change}</td>
+        <div className="overflow-x-auto">
+          <table className="w-full text-left text-sm">
+            <thead className="text-xs text-stone-500">
+              <tr>
+                <th className="py-1 pr-3 font-normal">expectation</th>
+                <th className="py-1 pr-3 font-normal">analysis</th>
+                <th className="py-1 pr-3 font-normal">{labels[0]}</th>
+                <th className="py-1 pr-3 font-normal">{labels[1]}</th>
+                <th className="py-1 pr-3 font-normal">change</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {changes.map((c) => (
+                <tr
+                  key={`${c.analysis} ${c.name}`}
+                  data-expectation-change={c.change}
+                  data-expectation={c.name}
+                  className="border-t border-stone-100"
+                >
+                  <td className="py-1 pr-3 font-mono">{c.name}</td>
+                  <td className="py-1 pr-3 text-stone-600">{c.analysis}</td>
+                  <td className="tabular py-1 pr-3">{status(c.from)}</td>
+                  <td className="tabular py-1 pr-3">{status(c.to)}</td>
+                  <td className={`py-1 pr-3 ${CHANGE_STYLE[c.change]}`}>{c.change}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
       ) : null}
     </section>
   );

@@ -4,7 +4,7 @@
 import { useEffect, useRef } from "react";
 import type uPlotType from "uplot";
 import "uplot/dist/uPlot.min.css";
-import { axisValues } from "@/app/ui/plots/axis";
+import { formatTick } from "@/app/lib/format";
 import { curveColour, withAlpha } from "@/app/ui/theme";
 import { formatWithUnit } from "./value-format";
 
@@ -42,7 +42,7 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
           height: 220,
           scales: { x: { time: false }, y: { range: (_u, _min, max) => [0, Math.max(1, max) * 1.1] } },
           axes: [
-            { values: axisValues(unit ?? undefined), size: 40 },
+            { values: (_u, splits) => splits.map((v) => (v == null ? "" : formatTick(v, unit, "si"))), size: 40 },
             { label: "samples", size: 50 },
           ],
           series: [

@@ -12,6 +12,7 @@ import useSWR from "swr";
 import type { SeriesAnswer, SideSeries } from "@/app/lib/review/compare-data";
 import { getJson } from "@/app/ui/fetch";
 import { LinePlot } from "@/app/ui/plots/line-plot";
+import { quantityLabel } from "@/app/ui/plots/axis";
 import type { Curve, Marks } from "@/app/ui/plots/plot-types";
 import { DistributionCompare } from "./distribution-compare";
 import { formatWithUnit } from "./value-format";
@@ -214,23 +215,18 @@ function SweepView({
             <LinePlot
               title={`${p.name}${p.unit ? ` (${p.unit})` : ""} along ${outer.param}`}
               x={outer.values}
-              xLabel={outer.param}
-              xUnit={outer.unit ?? undefined}
+              xAxis={{ label: outer.param, unit: outer.unit ?? null, log: logX }}
+              yAxis={{ label: quantityLabel(p.name, p.unit ?? null), unit: p.unit ?? null, log: p.logY }}
               curves={p.curves}
               marks={p.marks}
-              yUnit={p.unit ?? undefined}
-              logX={logX}
-              logY={p.logY}
               height={220}
             />
             <LinePlot
               title={`relative change of ${p.name}`}
               x={outer.values}
-              xLabel={outer.param}
-              xUnit={outer.unit ?? undefined}
+              xAxis={{ label: outer.param, unit: outer.unit ?? null, log: logX }}
+              yAxis={{ label: "relative change (%)", unit: null }}
               curves={p.rel}
-              yUnit="%"
-              logX={logX}
               height={120}
             />
           </figure>

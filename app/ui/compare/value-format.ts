@@ -1,20 +1,25 @@
 /** How the compare page writes a diffed value, its relative change and the point where it was found. */
-import { formatEng, formatNumber } from "@/app/lib/format";
+import { formatValue, type Notation } from "@/app/lib/format";
 import type { Quantity } from "@/app/lib/review/results-diff";
 import type { PointRef } from "@/app/lib/review/sweep-compare";
 
 const UNIT: Record<Quantity, string> = { voltage: "V", current: "A", ic: "", value: "" };
 
 /** A value with its unit (SI prefix, 4 significant digits); a ratio or a value of unknown unit as a plain number. */
-export function formatWithUnit(v: number | null | undefined, unit: string | null | undefined, digits = 4): string {
+export function formatWithUnit(
+  v: number | null | undefined,
+  unit: string | null | undefined,
+  digits = 4,
+  notation: Notation = "si",
+): string {
   if (v === null || v === undefined || Number.isNaN(v)) return "—";
   if (!Number.isFinite(v)) return v > 0 ? "∞" : "−∞";
-  return unit ? formatEng(v, unit, digits) : formatNumber(v, digits);
+  return formatValue(v, unit, { notation, digits });
 }
 
 /** A diffed value with the unit of its quantity; a non-finite value as JavaScript writes it. */
-export function formatDiffValue(v: number, quantity: Quantity): string {
-  return Number.isFinite(v) ? formatEng(v, UNIT[quantity] ?? "", 4) : String(v);
+export function formatDiffValue(v: number, quantity: Quantity, notation: Notation): string {
+  return Number.isFinite(v) ? formatValue(v, UNIT[quantity] ?? "", { notation }) : String(v);
 }
 
 /** A signed change with its unit ("+10.48 mV", "−16.67 nA"). */

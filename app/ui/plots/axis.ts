@@ -1,29 +1,55 @@
-import type uPlotType from "uplot";
-import { formatEng } from "@/app/lib/format";
-import { decadeStep, labelledDecade, logRange, logSplits } from "./log-ticks";
+/**
+ * Axis titles and tick labels for the plots: the quantity and its unit
+ * ("current out5 (A)", "vh (V)", "split (ratio)"), ticks through the one
+ * formatting rule (app/lib/format.ts formatTick: SI prefixes or scientific,
+ * integers on a counting axis, only labelled decades on a long log axis).
+ */
+import { formatTick, type Notation } from "@/app/lib/format";
+import { decadeStep, labelledDecade } from "./log-ticks";
+import type { AxisSpec } from "./plot-types";
 
-/** uPlot tick labels in engineering notation with `unit`. */
+/** The quantity a unit measures, as a word for labels ("A" → "current"); "" when there is no single word. */
+export function quantityOf(unit: string | null): string {
+  switch (unit) {
+    case "A":
+      return "current";
+    case "V":
+      return "voltage";
+    case "W":
+      return "power";
+    case "K":
+      return "temperature";
+    case "":
+      return "ratio";
+    default:
+      return "";
+  }
+}
 
-export function axisValues(unit: string | undefined) {
-  return (_u: uPlotType, splits: number[]) => splits.map((v) => (v == null ? "" : formatEng(v, unit ?? "", 3)));
+/** "current out5", "voltage x3", "ratio split", or the bare name when the unit is not known. */
+export function quantityLabel(name: string, unit: string | null): string {
+  const q = quantityOf(unit);
+  return q ? `${q} ${name}` : name;
+}
+
+/** The axis title: label and unit in parentheses ("current out5 (A)"); a ratio or unknown unit adds nothing. */
+export function axisTitle(a: AxisSpec): string {
+  return a.unit ? `${a.label} (${a.unit})` : a.label;
 }
 
 /**
- * The scale and axis options of a log axis of any span (app/ui/plots/log-ticks.ts): whole decades as its range,
- * ticks computed exactly (uPlot's own log splits never end below about 1e-16), labels on decades only, every k-th
- * decade on a long axis so the labels do not overlap.
+ * Tick labels for `splits` on axis `a`: a log axis labels decades only (every
+ * k-th on a long one, so labels never collide), a counting axis integers only.
  */
-export function logScale(): uPlotType.Scale {
-  return { distr: 3, log: 10, range: (_u, min, max) => logRange(min, max) };
+export function tickLabels(a: AxisSpec, splits: number[], notation: Notation): string[] {
+  if (a.log) {
+    const pos = splits.filter((v) => v > 0);
+    const decades = pos.length ? Math.log10(pos[pos.length - 1] / pos[0]) : 0;
+    const step = decadeStep(decades);
+    return splits.map((v) => (labelledDecade(v, step) ? formatTick(v, a.unit, notation) : ""));
+  }
+  return splits.map((v) => (v == null ? "" : formatTick(v, a.unit, notation, a.integer)));
 }
 
-export function logAxis(unit: string | undefined): Pick<uPlotType.Axis, "splits" | "values"> {
-  return {
-    splits: (_u: uPlotType, _i: number, min: number, max: number) => logSplits(min, max),
-    values: (_u: uPlotType, splits: number[]) => {
-      const decades = splits.length ? Math.log10(splits[splits.length - 1] / splits[0]) : 0;
-      const step = decadeStep(decades);
-      return splits.map((v) => (v != null && labelledDecade(v, step) ? formatEng(v, unit ?? "", 3) : ""));
-    },
-  };
-}
+/** Tick increments for an integer axis (uPlot `incrs`): 1, 2, 5, 10, 20, 50, … */
+export const INTEGER_INCREMENTS = Array.from({ length: 10 }, (_, e) => [1, 2, 5].map((m) => m * 10 ** e)).flat();

@@ -1,87 +1,241 @@
 "use client";
 
-/** A grid of values as coloured cells (canvas), with its scale and the value under the pointer. */
-import { useEffect, useRef } from "react";
-import { formatEng } from "@/app/lib/format";
+/**
+ * A grid of values as coloured cells, with labelled axes (node indices or
+ * sweep values), square cells (the aspect ratio follows the grid), a colour
+ * legend in the value's unit and the value under the pointer. Cells are drawn
+ * on a canvas (a 200 × 200 grid is 40,000 cells); axes and legend are HTML.
+ * Downloads as PNG, SVG and the matrix as CSV.
+ */
+import { useEffect, useMemo, useRef, useState } from "react";
+import { formatValue } from "@/app/lib/format";
+import { useNotation } from "@/app/ui/notation";
 import { themeColour } from "@/app/ui/theme";
-import { mapColour } from "./map-colour";
+import { axisTitle } from "./axis";
+import { downloadBlob, downloadText, fileStem, svgToPng } from "./download";
+import { heatMapSvg } from "./heat-map-svg";
+import { labelEvery, mapColour, mapPosition, mapStops } from "./map-colour";
+import { PlotDownloads } from "./plot-downloads";
+import type { AxisSpec } from "./plot-types";
+
+export interface MapAxis {
+  /** What runs along the axis: "row", "column", a sweep's param. */
+  label: string;
+  unit?: string | null;
+  /** One label per row (or column): the index in node names, or the sweep value. */
+  ticks: string[];
+}
 
 export interface HeatMapProps {
   title: string;
   /** values[row][col]; null where nothing is known. */
   values: (number | null)[][];
-  unit?: string;
-  rowLabel: string;
-  colLabel: string;
-  log?: boolean;
+  rows: MapAxis;
+  cols: MapAxis;
+  /** The mapped quantity (legend title, readout): label and unit. */
+  value: AxisSpec;
 }
 
-/** A grid of values as coloured cells, with its scale and the value under the pointer. */
-export function HeatMap({ title, values, unit, rowLabel, colLabel, log = false }: HeatMapProps) {
+const LEFT = 64;
+const LEGEND = 96;
+const MAX_HEIGHT = 520;
+
+export function HeatMap({ title, values, rows, cols, value }: HeatMapProps) {
   const canvas = useRef<HTMLCanvasElement>(null);
-  const readout = useRef<HTMLSpanElement>(null);
-  const rows = values.length;
-  const cols = rows ? Math.max(...values.map((r) => r.length)) : 0;
-  const finite = values.flat().filter((v): v is number => v !== null && Number.isFinite(v) && (!log || v > 0));
-  const lo = finite.length ? Math.min(...finite) : 0;
-  const hi = finite.length ? Math.max(...finite) : 1;
+  const box = useRef<HTMLDivElement>(null);
+  const [avail, setAvail] = useState(640);
+  const [hover, setHover] = useState<{ i: number; j: number } | null>(null);
+  const { notation } = useNotation();
+  const nr = values.length;
+  const nc = nr ? Math.max(...values.map((r) => r.length)) : 0;
+  const log = !!value.log;
+  const { lo, hi, skipped } = useMemo(() => {
+    let lo = Infinity;
+    let hi = -Infinity;
+    let skipped = 0;
+    for (const row of values)
+      for (const v of row) {
+        if (v === null || !Number.isFinite(v)) continue;
+        if (log && !(v > 0)) {
+          skipped++;
+          continue;
+        }
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
+      }
+    return Number.isFinite(lo) ? { lo, hi, skipped } : { lo: 0, hi: 1, skipped };
+  }, [values, log]);
+  // Square cells as large as the width allows, the whole map at most MAX_HEIGHT tall.
+  const cell =
+    nr && nc ? Math.max(2, Math.min(48, Math.floor((avail - LEFT - LEGEND) / nc), Math.floor(MAX_HEIGHT / nr))) : 0;
+  const w = cell * nc;
+  const h = cell * nr;
+
+  useEffect(() => {
+    const el = box.current;
+    if (!el) return;
+    const observer = new ResizeObserver(() => setAvail(el.clientWidth));
+    observer.observe(el);
+    return () => observer.disconnect();
+  }, []);
+
   useEffect(() => {
     const c = canvas.current;
-    if (!c || rows === 0 || cols === 0) return;
-    const cell = Math.max(4, Math.floor(480 / Math.max(rows, cols)));
-    c.width = cols * cell;
-    c.height = rows * cell;
+    if (!c || !cell) return;
+    const dpr = window.devicePixelRatio || 1;
+    c.width = w * dpr;
+    c.height = h * dpr;
     const g = c.getContext("2d")!;
+    g.scale(dpr, dpr);
     const unknown = themeColour("stone-200");
-    const tr = (v: number) => (log ? Math.log10(v) : v);
-    const span = tr(hi) - tr(lo) || 1;
-    for (let i = 0; i < rows; i++) {
-      for (let j = 0; j < cols; j++) {
+    for (let i = 0; i < nr; i++)
+      for (let j = 0; j < nc; j++) {
         const v = values[i][j];
-        g.fillStyle =
-          v === null || !Number.isFinite(v) || (log && v <= 0) ? unknown : mapColour((tr(v) - tr(lo)) / span);
+        const t = v === null || v === undefined ? NaN : mapPosition(v, lo, hi, log);
+        g.fillStyle = Number.isNaN(t) ? unknown : mapColour(t);
         g.fillRect(j * cell, i * cell, cell, cell);
       }
-    }
-    const move = (e: MouseEvent) => {
-      const r = c.getBoundingClientRect();
-      const j = Math.floor(((e.clientX - r.left) / r.width) * cols);
-      const i = Math.floor(((e.clientY - r.top) / r.height) * rows);
-      const v = values[i]?.[j];
-      if (readout.current)
-        readout.current.textContent =
-          v === undefined
-            ? ""
-            : `${rowLabel} ${i}, ${colLabel} ${j}: ${v === null ? "—" : formatEng(v, unit ?? "", 4)}`;
-    };
-    c.addEventListener("mousemove", move);
-    return () => c.removeEventListener("mousemove", move);
-  }, [values, rows, cols, lo, hi, log, unit, rowLabel, colLabel]);
+  }, [values, nr, nc, cell, w, h, lo, hi, log]);
+
+  const readout = (() => {
+    if (!hover) return "";
+    const v = values[hover.i]?.[hover.j];
+    if (v === undefined) return "";
+    return `${rows.label} ${rows.ticks[hover.i] ?? hover.i}, ${cols.label} ${cols.ticks[hover.j] ?? hover.j}: ${formatValue(v, value.unit, { notation })}`;
+  })();
+  const rowEvery = labelEvery(nr, Math.max(2, Math.floor(h / 16)));
+  const colEvery = labelEvery(nc, Math.max(2, Math.floor(w / 56)));
+  const legendTicks = log ? [hi, Math.sqrt(lo * hi), lo] : [hi, (lo + hi) / 2, lo];
+
+  const svgOf = () =>
+    heatMapSvg({
+      title,
+      values,
+      rows,
+      cols,
+      value,
+      lo,
+      hi,
+      notation,
+      ink: themeColour("stone-ink"),
+      unknown: themeColour("stone-200"),
+    });
+  const stem = fileStem(title);
+  const csv = () => {
+    const quote = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+    const head = [`${rows.label} \\ ${cols.label}`, ...cols.ticks].map(quote).join(",");
+    const lines = values.map((r, i) =>
+      [quote(rows.ticks[i] ?? String(i)), ...r.map((v) => (v === null || !Number.isFinite(v) ? "" : String(v)))].join(
+        ",",
+      ),
+    );
+    downloadText(`${stem}.csv`, "text/csv", [`# ${axisTitle(value)}`, head, ...lines].join("\n") + "\n");
+  };
+
   return (
-    <figure className="space-y-2">
-      <figcaption className="text-sm font-medium">{title}</figcaption>
-      <div className="flex items-start gap-4">
-        <canvas
-          ref={canvas}
-          role="img"
-          aria-label={title}
-          data-slot="heat-map"
-          className="max-w-full border border-stone-300"
-          style={{ imageRendering: "pixelated", width: "min(480px, 100%)" }}
-        />
-        <div className="flex flex-col items-center gap-1 text-xs text-stone-600">
-          <span>{formatEng(hi, unit ?? "")}</span>
+    <figure className="space-y-2" data-slot="heat-map-figure">
+      <figcaption className="text-sm font-medium text-stone-800">{title}</figcaption>
+      <div ref={box} className="w-full">
+        <div className="flex items-start gap-3">
+          <div>
+            <div className="flex">
+              {/* Row axis: title turned, then the row ticks beside the cells. */}
+              <div className="relative shrink-0" style={{ width: LEFT, height: h }} data-slot="map-row-axis">
+                <span
+                  className="absolute top-0 left-0 flex h-full w-4 items-center justify-center text-xs whitespace-nowrap text-stone-600"
+                  style={{ writingMode: "vertical-rl", transform: "rotate(180deg)" }}
+                >
+                  {axisTitle({ label: rows.label, unit: rows.unit ?? null })}
+                </span>
+                {rows.ticks.map((t, i) =>
+                  i % rowEvery === 0 || i === nr - 1 ? (
+                    <span
+                      key={i}
+                      className="tabular absolute right-1 text-[11px] leading-none text-stone-600"
+                      style={{ top: i * cell + cell / 2 - 5 }}
+                    >
+                      {t}
+                    </span>
+                  ) : null,
+                )}
+              </div>
+              <canvas
+                ref={canvas}
+                role="img"
+                aria-label={title}
+                data-slot="heat-map"
+                className="block border border-stone-300"
+                style={{ width: w, height: h }}
+                onMouseMove={(e) => {
+                  const r = e.currentTarget.getBoundingClientRect();
+                  const j = Math.floor(((e.clientX - r.left) / r.width) * nc);
+                  const i = Math.floor(((e.clientY - r.top) / r.height) * nr);
+                  setHover(i >= 0 && j >= 0 && i < nr && j < nc ? { i, j } : null);
+                }}
+                onMouseLeave={() => setHover(null)}
+              />
+            </div>
+            {/* Column axis: ticks under the cells, then its title. */}
+            <div className="relative" style={{ marginLeft: LEFT, width: w, height: 18 }} data-slot="map-col-axis">
+              {cols.ticks.map((t, j) =>
+                j % colEvery === 0 || j === nc - 1 ? (
+                  <span
+                    key={j}
+                    className="tabular absolute top-1 -translate-x-1/2 text-[11px] leading-none whitespace-nowrap text-stone-600"
+                    style={{ left: j * cell + cell / 2 }}
+                  >
+                    {t}
+                  </span>
+                ) : null,
+              )}
+            </div>
+            <p className="text-center text-xs text-stone-600" style={{ marginLeft: LEFT, width: w }}>
+              {axisTitle({ label: cols.label, unit: cols.unit ?? null })}
+            </p>
+          </div>
           <div
-            className="h-40 w-4 rounded"
-            style={{ background: `linear-gradient(to top, ${[0, 0.33, 0.66, 1].map(mapColour).join(",")})` }}
-          />
-          <span>{formatEng(lo, unit ?? "")}</span>
-          {log ? <span>log scale</span> : null}
+            className="flex shrink-0 flex-col gap-1 text-[11px] text-stone-600"
+            aria-label="Colour legend"
+            data-slot="map-legend"
+          >
+            <span className="text-xs font-medium">{axisTitle(value)}</span>
+            <div className="flex gap-1.5">
+              <div
+                className="w-3.5 rounded-sm border border-stone-300"
+                style={{
+                  height: Math.max(120, Math.min(h, 240)),
+                  background: `linear-gradient(to top, ${mapStops().join(",")})`,
+                }}
+              />
+              <div
+                className="tabular flex flex-col justify-between"
+                style={{ height: Math.max(120, Math.min(h, 240)) }}
+              >
+                {legendTicks.map((v, k) => (
+                  <span key={k}>{formatValue(v, value.unit, { notation })}</span>
+                ))}
+              </div>
+            </div>
+            {log ? <span>log scale</span> : null}
+            <span className="inline-flex items-center gap-1">
+              <span className="inline-block h-3 w-3 border border-stone-300 bg-stone-200" /> no value
+              {skipped ? ` (${skipped} ≤ 0)` : ""}
+            </span>
+          </div>
         </div>
       </div>
-      <p className="tabular h-4 text-xs text-stone-600">
-        <span ref={readout} />
+      <p className="tabular h-4 text-xs text-stone-700" data-slot="map-readout">
+        {readout}
       </p>
+      <PlotDownloads
+        title={title}
+        svg={() => downloadText(`${stem}.svg`, "image/svg+xml", svgOf().svg)}
+        png={async () => {
+          const s = svgOf();
+          downloadBlob(`${stem}.png`, await svgToPng(s.svg, s.width, s.height));
+        }}
+        csv={csv}
+      />
     </figure>
   );
 }

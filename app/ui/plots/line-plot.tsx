@@ -1,111 +1,225 @@
 "use client";
 
 /**
- * Curves over a shared x axis (uPlot). uPlot touches the DOM, so it is loaded
- * in an effect, never during server rendering.
+ * Curves over a shared x axis (uPlot), the plot every result view and panel
+ * uses. Give it the axes as AxisSpec (label, unit, log, integer) and it writes
+ * the titles ("current out5 (A)"), ticks in the reader's notation, decades on
+ * log axes of any span, integer ticks on counting axes; the legend shows the
+ * values under the pointer, or the last point's when not hovering; the plot
+ * downloads as PNG, SVG and its data as CSV. On a log axis values ≤ 0 are left
+ * out and counted under the plot (app/ui/plots/plot-data.ts has the rule).
+ * uPlot touches the DOM, so it is loaded in an effect, never while rendering on the server.
  */
-import { useEffect, useRef } from "react";
+import { useEffect, useMemo, useRef } from "react";
 import type uPlotType from "uplot";
 import "uplot/dist/uPlot.min.css";
-import { formatEng } from "@/app/lib/format";
+import { formatValue } from "@/app/lib/format";
+import { useNotation } from "@/app/ui/notation";
+import { curveColour, themeColour, withAlpha } from "@/app/ui/theme";
 import { alignMarks } from "./align-marks";
-import { axisValues, logAxis, logScale } from "./axis";
-import { curveColour, themeColour } from "@/app/ui/theme";
-import type { Curve, Marks } from "./plot-types";
+import { axisTitle, INTEGER_INCREMENTS, tickLabels } from "./axis";
+import { downloadBlob, downloadText, fileStem, svgToPng } from "./download";
+import { isDecade, logRange, logSplits } from "./log-ticks";
+import { plotColumns, plotCsv, type Cell } from "./plot-data";
+import { PlotDownloads } from "./plot-downloads";
+import { plotSvg, type SvgSeries } from "./plot-svg";
+import type { AxisSpec, Band, Curve, Marks } from "./plot-types";
 
 export interface LinePlotProps {
   title: string;
   x: number[];
-  xLabel: string;
-  xUnit?: string;
+  xAxis: AxisSpec;
+  yAxis: AxisSpec;
   curves: Curve[];
-  yUnit?: string;
-  logX?: boolean;
-  logY?: boolean;
+  /** Extra points-only series; the x axis becomes the sorted union of `x` and theirs, and the curves' lines span the added x. */
+  marks?: Marks[];
+  /** Shaded regions between pairs of curves (e.g. μ ± σ). */
+  bands?: Band[];
   /** Draw points only (scatter, e.g. samples). */
   points?: boolean;
   height?: number;
-  /** Extra points-only series; the x axis becomes the sorted union of `x` and theirs, and the curves' lines span the added x. */
-  marks?: Marks[];
 }
 
-/** Curves over a shared x axis. Non-positive values are dropped on a log axis. */
+const NO_MARKS: Marks[] = [];
+const NO_BANDS: Band[] = [];
+
+/** The last finite value of a column, for the legend when the pointer is elsewhere. */
+function lastValue(col: ArrayLike<number | null | undefined>): number | null {
+  for (let i = col.length - 1; i >= 0; i--) {
+    const v = col[i];
+    if (typeof v === "number" && Number.isFinite(v)) return v;
+  }
+  return null;
+}
+
 export function LinePlot({
   title,
   x,
-  xLabel,
-  xUnit,
+  xAxis,
+  yAxis,
   curves,
-  yUnit,
-  logX = false,
-  logY = false,
-  points = false,
-  height = 300,
   marks = NO_MARKS,
+  bands = NO_BANDS,
+  points = false,
+  height = 320,
 }: LinePlotProps) {
   const host = useRef<HTMLDivElement>(null);
+  const { notation } = useNotation();
+  const data = useMemo(() => plotColumns(x, curves, marks, xAxis, yAxis), [x, curves, marks, xAxis, yAxis]);
+  const labels = useMemo(
+    () => [
+      ...curves.map((c, i) => (data.magnitude.includes(i) ? `|${c.label}|` : c.label)),
+      ...marks.map((m) => m.label),
+    ],
+    [curves, marks, data.magnitude],
+  );
+
   useEffect(() => {
     const el = host.current;
     if (!el || x.length === 0) return;
     let plot: uPlotType | null = null;
     let gone = false;
-    const clean = (v: number | null | undefined, log: boolean) =>
-      v === undefined ? undefined : v === null || !Number.isFinite(v) || (log && v <= 0) ? null : v;
-    const aligned = alignMarks(x, curves, marks);
-    const xs = logX ? aligned.x.map((v) => (v > 0 ? v : NaN)) : aligned.x;
+    const fmtX = (v: number | null) => formatValue(v, xAxis.unit, { notation });
+    const fmtY = (v: number | null) => formatValue(v, yAxis.unit, { notation });
+    const width = () => Math.max(240, el.clientWidth);
     void import("uplot").then(({ default: uPlot }) => {
       if (gone) return;
-      const opts: uPlotType.Options = {
-        title,
-        width: Math.max(320, el.clientWidth),
-        height,
-        scales: {
-          x: logX ? { time: false, ...logScale() } : { time: false, distr: 1 },
-          y: logY ? logScale() : { distr: 1 },
+      const scale = (a: AxisSpec): uPlotType.Scale =>
+        a.log ? { distr: 3, log: 10, range: (_u, min, max) => logRange(min, max) } : { distr: 1 };
+      // The drawn tick labels are also kept on the host (data-x-ticks, data-y-ticks) for tests and tools.
+      const axis = (a: AxisSpec, size: number, key: "xTicks" | "yTicks"): uPlotType.Axis => ({
+        label: axisTitle(a),
+        size,
+        values: (_u, splits) => {
+          const labels = tickLabels(a, splits, notation);
+          el.dataset[key] = labels.filter(Boolean).join("|");
+          return labels;
         },
-        axes: [
-          { label: xLabel, size: 40, ...(logX ? logAxis(xUnit) : { values: axisValues(xUnit) }) },
-          { label: yUnit ? `(${yUnit})` : "", size: 70, ...(logY ? logAxis(yUnit) : { values: axisValues(yUnit) }) },
-        ],
+        ...(a.log
+          ? {
+              splits: (_u: uPlotType, _i: number, min: number, max: number) => logSplits(min, max),
+              // every split reaches `values`, which labels the decades it keeps (uPlot's own thinning drops more)
+              filter: (_u: uPlotType, splits: number[]) => splits,
+              grid: { filter: (_u: uPlotType, splits: number[]) => splits.map((v) => (isDecade(v) ? v : null)) },
+            }
+          : {}),
+        ...(a.integer ? { incrs: INTEGER_INCREMENTS } : {}),
+      });
+      const legendValue =
+        (fmt: (v: number | null) => string) => (u: uPlotType, v: number | null, s: number, i: number | null) =>
+          i == null ? fmt(lastValue(u.data[s] as ArrayLike<number | null>)) : fmt(v);
+      const opts: uPlotType.Options = {
+        width: width(),
+        height,
+        scales: { x: { time: false, ...scale(xAxis) }, y: scale(yAxis) },
+        axes: [axis(xAxis, 48, "xTicks"), axis(yAxis, 84, "yTicks")],
         series: [
-          { label: xLabel, value: (_u, v) => (v == null ? "—" : formatEng(v, xUnit ?? "", 4)) },
-          ...curves.map((c, i) => ({
-            label: c.label,
-            stroke: curveColour(i),
-            width: points ? 0 : 1.75,
-            points: {
-              show: points || x.length < 40,
-              size: points ? 4 : 5,
-              fill: curveColour(i),
-            },
-            value: (_u: uPlotType, v: number | null) => (v == null ? "—" : formatEng(v, yUnit ?? "", 4)),
-          })),
-          ...marks.map((m) => ({
-            label: m.label,
+          { label: axisTitle(xAxis), value: legendValue(fmtX) },
+          ...curves.map((c, i) => {
+            const colour = curveColour(c.colour ?? i);
+            return {
+              label: labels[i],
+              stroke: colour,
+              width: points ? 0 : 1.75,
+              dash: c.dash ? [5, 3] : undefined,
+              points: { show: points || x.length < 40, size: points ? 4 : 5, fill: colour },
+              value: legendValue(fmtY),
+            };
+          }),
+          ...marks.map((m, k) => ({
+            label: labels[curves.length + k],
             stroke: themeColour(m.colour),
             width: 0,
             points: { show: true, size: 7, width: 1.5, stroke: themeColour(m.colour), fill: "#ffffff" },
-            value: (_u: uPlotType, v: number | null) => (v == null ? "—" : formatEng(v, yUnit ?? "", 4)),
+            value: legendValue(fmtY),
           })),
         ],
+        bands: bands.map((b) => ({
+          series: [b.upper + 1, b.lower + 1] as [number, number],
+          fill: withAlpha(curveColour(curves[b.upper]?.colour ?? b.upper), 0.15),
+        })),
         legend: { live: true },
       };
-      const data = [
-        xs,
-        ...aligned.curves.map((c) => c.map((v) => clean(v, logY))),
-        ...aligned.marks.map((m) => m.map((v) => clean(v, logY))),
-      ] as uPlotType.AlignedData;
-      plot = new uPlot(opts, data, el);
+      plot = new uPlot(opts, [data.x, ...data.columns] as uPlotType.AlignedData, el);
     });
-    const resize = () => plot?.setSize({ width: Math.max(320, el.clientWidth), height });
-    window.addEventListener("resize", resize);
+    const observer = new ResizeObserver(() => plot?.setSize({ width: width(), height }));
+    observer.observe(el);
     return () => {
       gone = true;
-      window.removeEventListener("resize", resize);
+      observer.disconnect();
       plot?.destroy();
     };
-  }, [title, x, xLabel, xUnit, curves, yUnit, logX, logY, points, height, marks]);
-  return <div ref={host} role="img" aria-label={title} data-slot="plot" className="w-full overflow-hidden" />;
-}
+  }, [x, xAxis, yAxis, curves, marks, bands, points, height, data, labels, notation]);
 
-const NO_MARKS: Marks[] = [];
+  const svgOf = () => {
+    const series: SvgSeries[] = [
+      ...curves.map((c, i) => ({
+        label: labels[i],
+        colour: curveColour(c.colour ?? i),
+        style: points ? ("points" as const) : ("line" as const),
+        dash: c.dash,
+      })),
+      ...marks.map((m, k) => ({
+        label: labels[curves.length + k],
+        colour: themeColour(m.colour),
+        style: "points" as const,
+      })),
+    ];
+    return plotSvg({
+      title,
+      x: data.x,
+      columns: data.columns,
+      series,
+      bands,
+      xAxis,
+      yAxis,
+      notation,
+      ink: themeColour("stone-ink"),
+      grid: themeColour("stone-300"),
+    });
+  };
+  const stem = fileStem(title);
+  const csv = () => {
+    const raw = alignMarks(x, curves, marks);
+    const unitOf = (label: string) => (yAxis.unit ? `${label} (${yAxis.unit})` : label);
+    downloadText(
+      `${stem}.csv`,
+      "text/csv",
+      plotCsv(axisTitle(xAxis), [...curves.map((c) => unitOf(c.label)), ...marks.map((m) => unitOf(m.label))], raw.x, [
+        ...raw.curves,
+        ...raw.marks,
+      ] as Cell[][]),
+    );
+  };
+
+  return (
+    <figure className="space-y-1" data-slot="line-plot">
+      <figcaption className="text-sm font-medium text-stone-800">{title}</figcaption>
+      <div
+        ref={host}
+        role="img"
+        aria-label={title}
+        data-slot="plot"
+        data-x-title={axisTitle(xAxis)}
+        data-y-title={axisTitle(yAxis)}
+        className="w-full overflow-hidden"
+      />
+      {data.dropped || data.magnitude.length ? (
+        <p className="text-xs text-stone-500" data-slot="log-note">
+          {data.magnitude.length
+            ? `${data.magnitude.map((i) => curves[i].label).join(", ")}: negative throughout, drawn as magnitude. `
+            : ""}
+          {data.dropped
+            ? `${data.dropped.toLocaleString("en-US")} value${data.dropped === 1 ? "" : "s"} ≤ 0 not drawn on the log axis (shown in the table).`
+            : ""}
+        </p>
+      ) : null}
+      <PlotDownloads
+        title={title}
+        svg={() => downloadText(`${stem}.svg`, "image/svg+xml", svgOf())}
+        png={async () => downloadBlob(`${stem}.png`, await svgToPng(svgOf(), 900, 420))}
+        csv={csv}
+      />
+    </figure>
+  );
+}

@@ -1,14 +1,29 @@
-/** Colour of t in [0, 1] on Runnel's map scale: deep slate → moss → pale straw. */
+/**
+ * The Map's colour scale: viridis from d3-scale-chromatic, a perceptually
+ * uniform sequential map (equal steps in value look like equal steps in
+ * colour, and it stays readable in grey and for the common colour-vision
+ * deficiencies; van der Walt & Smith, matplotlib's viridis, 2015).
+ */
+import { interpolateViridis } from "d3-scale-chromatic";
+
+/** Colour of t in [0, 1] (clamped) as a CSS colour. */
 export function mapColour(t: number): string {
-  const stops = [
-    [31, 38, 64],
-    [47, 103, 72],
-    [160, 170, 80],
-    [246, 238, 200],
-  ];
-  const x = Math.max(0, Math.min(1, t)) * (stops.length - 1);
-  const i = Math.min(stops.length - 2, Math.floor(x));
-  const f = x - i;
-  const c = stops[i].map((a, k) => Math.round(a + f * (stops[i + 1][k] - a)));
-  return `rgb(${c[0]},${c[1]},${c[2]})`;
+  return interpolateViridis(Math.max(0, Math.min(1, Number.isFinite(t) ? t : 0)));
+}
+
+/** `n` evenly spaced colours of the scale, for a CSS gradient or a legend. */
+export function mapStops(n = 11): string[] {
+  return Array.from({ length: n }, (_, i) => mapColour(i / (n - 1)));
+}
+
+/** Where `v` sits in [lo, hi] on a linear or log scale, in [0, 1]; NaN for a value the scale cannot place. */
+export function mapPosition(v: number, lo: number, hi: number, log: boolean): number {
+  if (!Number.isFinite(v) || (log && !(v > 0))) return NaN;
+  const t = log ? (Math.log10(v) - Math.log10(lo)) / (Math.log10(hi) - Math.log10(lo)) : (v - lo) / (hi - lo);
+  return Number.isFinite(t) ? Math.max(0, Math.min(1, t)) : 0.5;
+}
+
+/** Which of `n` axis ticks to label so that at most `max` labels show (every k-th, always the first and last). */
+export function labelEvery(n: number, max: number): number {
+  return Math.max(1, Math.ceil(n / Math.max(1, max)));
 }

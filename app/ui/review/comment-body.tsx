@@ -9,13 +9,11 @@ import Link from "next/link";
 import { useEffect, useRef, useState } from "react";
 import { createPortal } from "react-dom";
 import type { RunCard as RunCardData } from "@/app/lib/review/threads";
-import { formatEng, formatNumber } from "@/app/lib/format";
+import { useFormat } from "@/app/ui/notation";
 import { ExpectationBadgeView } from "./badges";
 
-/** A probe's value on a run card: with its unit when the run knows it ("596 pA"), four figures otherwise. */
-const value = (v: number, unit: string | null | undefined) => (unit ? formatEng(v, unit, 4) : formatNumber(v));
-
 export function RunCard({ card }: { card: RunCardData | undefined }) {
+  const fmt = useFormat();
   if (!card || !card.found) {
     return (
       <span className="rounded border border-dashed border-stone-300 px-1 text-xs text-stone-500">
@@ -40,7 +38,7 @@ export function RunCard({ card }: { card: RunCardData | undefined }) {
       <ExpectationBadgeView badge={card.expectations} />
       {card.probes?.map((p) => (
         <span key={p.name} className="tabular font-mono">
-          {p.name} = {p.min === p.max ? value(p.first, p.unit) : `${value(p.min, p.unit)} … ${value(p.max, p.unit)}`}
+          {p.name} = {p.min === p.max ? fmt(p.first, p.unit) : `${fmt(p.min, p.unit)} … ${fmt(p.max, p.unit)}`}
         </span>
       ))}
       {card.commitMessage ? <span className="truncate text-stone-500">on “{card.commitMessage}”</span> : null}

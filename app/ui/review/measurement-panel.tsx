@@ -7,10 +7,9 @@
  */
 import { useState } from "react";
 import useSWR from "swr";
-import { formatEng, formatNumber } from "@/app/lib/format";
 import type { Overlay } from "@/app/lib/review/measurement-store";
 import { ApiError, getJson, sendForm } from "@/app/ui/fetch";
-import { LinePlot } from "@/app/ui/plots/line-plot";
+import { OverlayView } from "./overlay-view";
 
 interface Listed {
   id: string;
@@ -22,9 +21,6 @@ interface Listed {
   commitId: string | null;
   authorName: string;
 }
-
-const SI: Record<string, string> = { V: "V", A: "A", K: "K", "1": "" };
-const siUnit = (unit: string) => SI[unit.slice(-1)] ?? (unit === "1" ? "" : unit);
 
 export function MeasurementPanel({
   networkId,
@@ -160,55 +156,5 @@ export function MeasurementPanel({
       {overlay.error ? <p className="text-sm text-amber-800">{(overlay.error as Error).message}</p> : null}
       {overlay.data ? <OverlayView data={overlay.data} /> : null}
     </section>
-  );
-}
-
-function OverlayView({ data }: { data: Overlay }) {
-  return (
-    <div className="space-y-3">
-      {data.series.map((s) => {
-        const xs = [...new Set([...s.simulated.x, ...s.measured.x])].sort((a, b) => a - b);
-        const at = (pts: { x: number[]; y: number[] }) => {
-          const m = new Map(pts.x.map((x, i) => [x, pts.y[i]]));
-          return xs.map((x) => m.get(x) ?? null);
-        };
-        const unit = siUnit(s.unit);
-        return (
-          <figure key={s.name} className="space-y-1 rounded border border-stone-300 bg-white p-2">
-            <LinePlot
-              title={`${s.name}: measured and simulated (${s.against})`}
-              x={xs}
-              xLabel={data.x.param}
-              xUnit={siUnit(data.x.unit)}
-              curves={[
-                { label: `simulated ${s.against}`, values: at(s.simulated) },
-                { label: `measured ${s.name}`, values: at(s.measured) },
-              ]}
-              yUnit={unit}
-              points
-              height={240}
-            />
-            <figcaption className="text-sm" data-testid={`agreement-${s.name}`}>
-              RMS of the log ratio{" "}
-              <strong className="tabular">
-                {Number.isFinite(s.agreement.rmsLogRatio) ? formatNumber(s.agreement.rmsLogRatio, 3) : "—"}
-              </strong>
-              {Number.isFinite(s.agreement.rmsLogRatio)
-                ? ` (about ${formatNumber((Math.exp(s.agreement.rmsLogRatio) - 1) * 100, 2)} % typical deviation)`
-                : ""}
-              ; largest absolute error{" "}
-              <strong className="tabular">
-                {Number.isFinite(s.agreement.maxAbsError) ? formatEng(s.agreement.maxAbsError, unit) : "—"}
-              </strong>{" "}
-              at {data.x.param} = {formatEng(s.agreement.maxAbsErrorAt, siUnit(data.x.unit))}; {s.agreement.n} points
-              compared
-              {s.agreement.outside ? `, ${s.agreement.outside} outside the simulated range` : ""}
-              {s.agreement.signMismatch ? `, ${s.agreement.signMismatch} with opposite signs` : ""}. Simulation is a
-              model estimate; the bench decides.
-            </figcaption>
-          </figure>
-        );
-      })}
-    </div>
   );
 }

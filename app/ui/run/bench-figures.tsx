@@ -1,4 +1,4 @@
-import { formatEng, formatNumber } from "@/app/lib/format";
+import { useFormat } from "@/app/ui/notation";
 import { siUnit, type BenchData, type OverlaySeries } from "./bench-data";
 
 /**
@@ -8,6 +8,7 @@ import { siUnit, type BenchData, type OverlaySeries } from "./bench-data";
  * no measurement is chosen; the route's message when it refused.
  */
 export function BenchFigures({ bench, shown }: { bench: BenchData; shown: (s: OverlaySeries) => boolean }) {
+  const fmt = useFormat();
   if (!bench.chosen) return null;
   if (bench.error)
     return (
@@ -31,13 +32,13 @@ export function BenchFigures({ bench, shown }: { bench: BenchData; shown: (s: Ov
           return (
             <li key={s.name} data-testid={`bench-agreement-${s.name}`} className="tabular">
               <span className="font-medium">{s.name}</span> against {s.against}: RMS of the log ratio{" "}
-              <strong>{Number.isFinite(a.rmsLogRatio) ? formatNumber(a.rmsLogRatio, 3) : "—"}</strong>
+              <strong>{fmt(a.rmsLogRatio, "")}</strong>
               {Number.isFinite(a.rmsLogRatio)
-                ? ` (about ${formatNumber((Math.exp(a.rmsLogRatio) - 1) * 100, 2)} % typical deviation)`
+                ? ` (about ${fmt((Math.exp(a.rmsLogRatio) - 1) * 100, "", 2)} % typical deviation)`
                 : ""}
-              ; largest absolute error <strong>{formatEng(a.maxAbsError, unit)}</strong>
-              {Number.isFinite(a.maxAbsErrorAt) ? ` at ${xParam} = ${formatEng(a.maxAbsErrorAt, xUnit)}` : ""}; {a.n}{" "}
-              points compared
+              ; largest absolute error <strong>{fmt(a.maxAbsError, unit)}</strong>
+              {Number.isFinite(a.maxAbsErrorAt) ? ` at ${xParam} = ${fmt(a.maxAbsErrorAt, xUnit)}` : ""}; {a.n} points
+              compared
               {a.outside ? `, ${a.outside} outside the simulated range` : ""}
               {a.signMismatch ? `, ${a.signMismatch} with opposite signs` : ""}
               {shown(s) ? "" : ` (not on this plot: choose ${s.against} to see it)`}.

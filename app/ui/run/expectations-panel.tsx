@@ -7,7 +7,7 @@
  * mismatch its yield per grid point. While the run is live the verdicts so far are counted from the series.
  */
 import { useMemo, useState } from "react";
-import { formatEng, formatNumber } from "@/app/lib/format";
+import { formatEng, formatNumber, formatValue } from "@/app/lib/format";
 import type { LayoutExpectation, SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
 import type { ExpectationSummary } from "@/src/solver/expectation-summary";
@@ -84,7 +84,7 @@ export function ExpectationsPanel({
   const failing = summaries ? summaries.filter((s) => !s.passed).length : null;
   const where = (point: number, sample: number | null) => {
     const at = sweptAt(series.sweeps, samples, point);
-    const swept = series.sweeps.map((s) => `${s.param} = ${formatEng(at[s.param], paramUnit(s.param), 4)}`);
+    const swept = series.sweeps.map((s) => `${s.param} = ${formatValue(at[s.param], paramUnit(series, s.param))}`);
     return [`point ${point}`, ...swept, ...(sample !== null && samples > 1 ? [`sample ${sample}`] : [])].join(", ");
   };
   const def = defs[pick];
@@ -100,78 +100,80 @@ export function ExpectationsPanel({
             : "so far, over the points stored (the run is not over)"}
         </span>
       </div>
-      <table className="w-full text-sm" data-slot="expectations">
-        <thead className="text-left text-stone-500">
-          <tr>
-            <th className="py-1 pr-3 font-normal">expectation</th>
-            <th className="py-1 pr-3 font-normal">status</th>
-            <th className="py-1 pr-3 font-normal">points passing</th>
-            <th className="py-1 pr-3 font-normal">margin</th>
-            <th className="py-1 pr-3 font-normal">where it fails first</th>
-            {samples > 1 ? <th className="py-1 pr-3 font-normal">yield (95 % interval)</th> : null}
-          </tr>
-        </thead>
-        <tbody>
-          {defs.map((d, j) => {
-            const s = summaries?.[j] ?? null;
-            const l = live[j];
-            const passedNow = s ? s.passed : l.pointsPassed === l.points;
-            return (
-              <tr
-                key={d.name}
-                data-expectation={d.name}
-                data-passed={passedNow ? "true" : "false"}
-                className={`border-t border-stone-100 ${j === pick ? "bg-stone-50" : ""}`}
-              >
-                <td className="py-1 pr-3">
-                  <button
-                    type="button"
-                    onClick={() => setChosen(j)}
-                    aria-pressed={j === pick}
-                    className="font-mono text-moss-700 hover:underline"
-                    title={describeExpectation(d)}
-                  >
-                    {d.name}
-                  </button>
-                </td>
-                <td className="py-1 pr-3">
-                  {passedNow ? (
-                    <span className="rounded bg-moss-600 px-1.5 py-0.5 text-xs font-medium text-white">holds</span>
-                  ) : (
-                    <span className="rounded border border-ember-500 bg-ember-50 px-1.5 py-0.5 text-xs font-medium text-ember-500">
-                      fails
-                    </span>
-                  )}
-                </td>
-                <td className="tabular py-1 pr-3">
-                  {(s ? s.pointsPassed : l.pointsPassed).toLocaleString("en-US")} /{" "}
-                  {(s ? s.points : l.points).toLocaleString("en-US")}
-                  {s && s.notSolved ? ` (${s.notSolved} not solved)` : ""}
-                </td>
-                <td className={`tabular py-1 pr-3 ${s && s.margin !== null && s.margin < 0 ? "text-ember-500" : ""}`}>
-                  {s ? (s.margin === null ? "—" : formatMargin(s.margin, s.unit)) : "…"}
-                </td>
-                <td className="py-1 pr-3 text-stone-700">
-                  {s
-                    ? s.firstFailure
-                      ? where(s.firstFailure.point, s.firstFailure.sample)
-                      : "—"
-                    : l.first !== null
-                      ? where(l.first, samples > 1 ? l.first % samples : null)
-                      : "—"}
-                </td>
-                {samples > 1 ? (
-                  <td className="tabular py-1 pr-3">
-                    {s?.yield
-                      ? `${percent(s.yield.passed / s.yield.samples)} (${percent(s.yield.low)}–${percent(s.yield.high)})`
-                      : "…"}
+      <div className="overflow-x-auto">
+        <table className="w-full text-sm" data-slot="expectations">
+          <thead className="text-left text-stone-500">
+            <tr>
+              <th className="py-1 pr-3 font-normal">expectation</th>
+              <th className="py-1 pr-3 font-normal">status</th>
+              <th className="py-1 pr-3 font-normal">points passing</th>
+              <th className="py-1 pr-3 font-normal">margin</th>
+              <th className="py-1 pr-3 font-normal">where it fails first</th>
+              {samples > 1 ? <th className="py-1 pr-3 font-normal">yield (95 % interval)</th> : null}
+            </tr>
+          </thead>
+          <tbody>
+            {defs.map((d, j) => {
+              const s = summaries?.[j] ?? null;
+              const l = live[j];
+              const passedNow = s ? s.passed : l.pointsPassed === l.points;
+              return (
+                <tr
+                  key={d.name}
+                  data-expectation={d.name}
+                  data-passed={passedNow ? "true" : "false"}
+                  className={`border-t border-stone-100 ${j === pick ? "bg-stone-50" : ""}`}
+                >
+                  <td className="py-1 pr-3">
+                    <button
+                      type="button"
+                      onClick={() => setChosen(j)}
+                      aria-pressed={j === pick}
+                      className="font-mono text-moss-700 hover:underline"
+                      title={describeExpectation(d)}
+                    >
+                      {d.name}
+                    </button>
                   </td>
-                ) : null}
-              </tr>
-            );
-          })}
-        </tbody>
-      </table>
+                  <td className="py-1 pr-3">
+                    {passedNow ? (
+                      <span className="rounded bg-moss-600 px-1.5 py-0.5 text-xs font-medium text-white">holds</span>
+                    ) : (
+                      <span className="rounded border border-ember-500 bg-ember-50 px-1.5 py-0.5 text-xs font-medium text-ember-500">
+                        fails
+                      </span>
+                    )}
+                  </td>
+                  <td className="tabular py-1 pr-3">
+                    {(s ? s.pointsPassed : l.pointsPassed).toLocaleString("en-US")} /{" "}
+                    {(s ? s.points : l.points).toLocaleString("en-US")}
+                    {s && s.notSolved ? ` (${s.notSolved} not solved)` : ""}
+                  </td>
+                  <td className={`tabular py-1 pr-3 ${s && s.margin !== null && s.margin < 0 ? "text-ember-500" : ""}`}>
+                    {s ? (s.margin === null ? "—" : formatMargin(s.margin, s.unit)) : "…"}
+                  </td>
+                  <td className="py-1 pr-3 text-stone-700">
+                    {s
+                      ? s.firstFailure
+                        ? where(s.firstFailure.point, s.firstFailure.sample)
+                        : "—"
+                      : l.first !== null
+                        ? where(l.first, samples > 1 ? l.first % samples : null)
+                        : "—"}
+                  </td>
+                  {samples > 1 ? (
+                    <td className="tabular py-1 pr-3">
+                      {s?.yield
+                        ? `${percent(s.yield.passed / s.yield.samples)} (${percent(s.yield.low)}–${percent(s.yield.high)})`
+                        : "…"}
+                    </td>
+                  ) : null}
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </div>
       {def ? (
         <div className="space-y-2" data-slot="expectation-detail">
           <p className="text-sm text-stone-700">
@@ -186,7 +188,7 @@ export function ExpectationsPanel({
             <MarginPlot series={series} expectation={pick} unit={summary?.unit ?? def.unit ?? ""} />
           ) : null}
           {summary?.gridYield && series.sweeps.length > 0 ? (
-            <YieldPlot sweeps={series.sweeps} gridYield={summary.gridYield} name={def.name} />
+            <YieldPlot sweeps={series.sweeps} units={series} gridYield={summary.gridYield} name={def.name} />
           ) : null}
           {summary?.yield && series.sweeps.length === 0 ? (
             <p className="text-sm text-stone-700" data-slot="yield">

@@ -2,10 +2,11 @@
 
 /** An expectation's margin along the sweep (the worst over each grid point's mismatch samples), with its bound at 0. */
 import { useMemo, useState } from "react";
-import { formatEng } from "@/app/lib/format";
+import { formatValue } from "@/app/lib/format";
 import type { SeriesView } from "@/app/lib/results";
 import { LinePlot } from "@/app/ui/plots/line-plot";
 import { curvesAlong, worstPerGrid } from "./expectation-curves";
+import { quantityOf } from "@/app/ui/plots/axis";
 import { paramUnit } from "./sweep-values";
 
 export function MarginPlot({ series, expectation, unit }: { series: SeriesView; expectation: number; unit: string }) {
@@ -16,9 +17,9 @@ export function MarginPlot({ series, expectation, unit }: { series: SeriesView; 
     const xs = sweeps[xSweep];
     const perGrid = worstPerGrid(series.margins[expectation] ?? [], samples);
     const name = samples > 1 ? "worst margin over the samples" : "margin";
-    const curves = curvesAlong(sweeps, xSweep, perGrid, name, (p, v) => `${p} = ${formatEng(v, paramUnit(p), 3)}`);
+    const curves = curvesAlong(sweeps, xSweep, perGrid, name, (p, v) => `${p} = ${formatValue(v, paramUnit(series, p), { digits: 3 })}`);
     curves.push({ label: "bound (margin 0)", values: xs.values.map(() => 0) });
-    return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(xs.param), log: xs.log, curves };
+    return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(series, xs.param), log: xs.log, curves };
   }, [series, expectation, samples, xSweep]);
   const name = series.expectations[expectation]?.name ?? "";
   return (
@@ -43,11 +44,9 @@ export function MarginPlot({ series, expectation, unit }: { series: SeriesView; 
       <LinePlot
         title={`Margin of ${name} along ${plot.xLabel}`}
         x={plot.x}
-        xLabel={plot.xLabel}
-        xUnit={plot.xUnit}
-        logX={plot.log}
+        xAxis={{ label: plot.xLabel, unit: plot.xUnit, log: plot.log }}
+        yAxis={{ label: `${quantityOf(unit) ? `${quantityOf(unit)} ` : ""}margin`, unit }}
         curves={plot.curves}
-        yUnit={unit}
         height={240}
       />
     </div>

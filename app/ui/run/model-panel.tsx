@@ -1,9 +1,10 @@
 /** The run's model (device equations and constants) and how it was solved, with its validity notes. */
-import { formatEng, formatNumber } from "@/app/lib/format";
+import { useFormat } from "@/app/ui/notation";
 import type { RunRow } from "@/app/lib/runs";
 import { Validity } from "./validity";
 
 export function ModelPanel({ run, swept }: { run: RunRow; swept: string[] }) {
+  const fmt = useFormat();
   const m = run.model as {
     model?: string;
     kappa?: number;
@@ -32,20 +33,20 @@ export function ModelPanel({ run, swept }: { run: RunRow; swept: string[] }) {
             <dt className="text-stone-500">device model</dt>
             <dd>{m.model === "ekv" ? "all-region EKV interpolation" : "weak-inversion exponential"}</dd>
             <dt className="text-stone-500">slope factor κ</dt>
-            <dd>{formatNumber(m.kappa ?? NaN)}</dd>
+            <dd>{fmt(m.kappa, "")}</dd>
             <dt className="text-stone-500">temperature</dt>
             <dd>
               {swept.includes("temp") ? "swept (see each point); otherwise " : ""}
-              {formatNumber(m.temp ?? NaN)} K (U<sub>T</sub> = {formatEng(m.ut ?? NaN, "V")})
+              {fmt(m.temp, "K")} (U<sub>T</sub> = {fmt(m.ut, "V")})
             </dd>
             <dt className="text-stone-500">I₀ (W/L = 1)</dt>
-            <dd>{formatEng(m.i0 ?? NaN, "A")}</dd>
+            <dd>{fmt(m.i0, "A")}</dd>
             <dt className="text-stone-500">
               V<sub>T0</sub>, I<sub>spec</sub>
             </dt>
             <dd>
-              {m.vt0 == null ? "not set" : formatEng(m.vt0, "V")},{" "}
-              {m.ispec == null ? "not set (no inversion coefficients)" : formatEng(m.ispec, "A")}
+              {m.vt0 == null ? "not set" : fmt(m.vt0, "V")},{" "}
+              {m.ispec == null ? "not set (no inversion coefficients)" : fmt(m.ispec, "A")}
             </dd>
             <dt className="text-stone-500">size</dt>
             <dd>
@@ -68,7 +69,7 @@ export function ModelPanel({ run, swept }: { run: RunRow; swept: string[] }) {
         ) : null}
         {run.maxResidual !== null ? (
           <p className="tabular">
-            <span className="text-stone-500">largest KCL residual:</span> {formatEng(run.maxResidual, "A")}
+            <span className="text-stone-500">largest KCL residual:</span> {fmt(run.maxResidual, "A")}
           </p>
         ) : null}
         <Validity run={run} />

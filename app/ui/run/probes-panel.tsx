@@ -1,29 +1,51 @@
 "use client";
 
-/** Probes over the sweep: a curve per combination of the other sweeps, bench data on its matched probe, and the table of all points. */
+/**
+ * Probes over the sweep: a curve per combination of the other sweeps (opening
+ * on the probe that varies most, currents on a log axis), bench data on its
+ * matched probe, and the table of all points with units.
+ */
 import type { ColumnDef } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
-import { formatEng } from "@/app/lib/format";
 import type { SeriesView } from "@/app/lib/results";
+import { useFormat } from "@/app/ui/notation";
 import { LinePlot } from "@/app/ui/plots/line-plot";
 import type { Curve } from "@/app/ui/plots/plot-types";
 import { DataTable } from "@/app/ui/workbench/data-table";
-import { measuredMarks, siUnit, type BenchData } from "./bench-data";
+import { measuredMarks, type BenchData } from "./bench-data";
 import { BenchDataSelect } from "./bench-data-select";
 import { BenchFigures } from "./bench-figures";
 import { ProbeSelect } from "./probe-select";
-import { meanOverSamples, paramUnit } from "./sweep-values";
+import {
+  defaultLog,
+  meanOverSamples,
+  mostVaryingProbe,
+  paramUnit,
+  probeAxis,
+  probeUnit,
+  sweepAxis,
+} from "./sweep-values";
+
+/** A column header with its unit: "iout (A)", "split" for a ratio or an unknown unit. */
+const withUnit = (name: string, unit: string | null) => (unit ? `${name} (${unit})` : name);
 
 export function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }) {
-  // null: follow the probe the chosen bench data is matched to (else the first probe).
+  const fmt = useFormat();
+  // null: follow the probe the chosen bench data is matched to (else the probe that varies most).
   const [probeChoice, setProbeChoice] = useState<number | null>(null);
   const matchedProbe = bench.overlay?.series.map((s) => series.probes.indexOf(s.against)).find((j) => j >= 0);
-  const probe = probeChoice ?? matchedProbe ?? 0;
+  const varied = useMemo(() => mostVaryingProbe(series.probeValues), [series.probeValues]);
+  const probe = probeChoice ?? matchedProbe ?? varied;
   const setProbe = setProbeChoice;
-  const [logX, setLogX] = useState(series.sweeps[series.sweeps.length - 1]?.log ?? false);
-  const [logY, setLogY] = useState(false);
+  const [logChoiceX, setLogX] = useState<boolean | null>(null);
+  // Per probe: the reader's choice, else currents and wide positive ranges on a log axis.
+  const [logChoice, setLogChoice] = useState<Record<number, boolean>>({});
+  const logY = logChoice[probe] ?? defaultLog(series.probeValues[probe] ?? [], probeUnit(series, probe));
   const samples = series.mismatch?.runs ?? 1;
-  const [xSweep, setXSweep] = useState(series.sweeps.length - 1);
+  // Along the sweep with the most values (the last on a tie): the richest curve.
+  const [xSweep, setXSweep] = useState(() =>
+    series.sweeps.reduce((best, s, k) => (s.values.length >= series.sweeps[best].values.length ? k : best), 0),
+  );
   const plot = useMemo(() => {
     if (series.sweeps.length === 0 || series.probes.length === 0) return null;
     const sweeps = series.sweeps;
@@ -39,7 +61,7 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
         rest = Math.floor(rest / sweeps[k].values.length);
       }
       const others = sweeps
-        .map((sw, k) => (k === xSweep ? null : `${sw.param} = ${formatEng(sw.values[idx[k]], paramUnit(sw.param), 3)}`))
+        .map((sw, k) => (k === xSweep ? null : `${sw.param} = ${fmt(sw.values[idx[k]], paramUnit(series, sw.param))}`))
         .filter((x): x is string => x !== null);
       const key = others.join(", ") || series.probes[probe];
       let c = curves.get(key);
@@ -50,8 +72,14 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
       }
       c.values[idx[xSweep]] = values[g];
     }
-    return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(xs.param), curves: [...curves.values()] };
-  }, [series, probe, samples, xSweep]);
+    return { x: xs.values, xLabel: xs.param, curves: [...curves.values()] };
+  }, [series, probe, samples, xSweep, fmt]);
+  const logX = logChoiceX ?? series.sweeps[xSweep]?.log ?? false;
+  const xAxis = useMemo(
+    () => (series.sweeps.length ? sweepAxis(series, xSweep, logX) : { label: "point", unit: null, integer: true }),
+    [series, xSweep, logX],
+  );
+  const yAxis = useMemo(() => probeAxis(series, probe, logY), [series, probe, logY]);
   // Bench data is drawn on the probe it is matched to; the overlay route only answers for a run of one sweep.
   const onPlot = useMemo(
     () =>
@@ -84,28 +112,28 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
         (s, j) =>
           ({
             id: `param-${s.param}`,
-            header: s.param,
+            header: withUnit(s.param, paramUnit(series, s.param)),
             accessorFn: (r: Row) => r.params[j] ?? NaN,
-            cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, paramUnit(s.param), 4),
+            cell: (c: { getValue: () => unknown }) => fmt(c.getValue() as number, paramUnit(series, s.param)),
           }) as ColumnDef<Row>,
       ),
       ...series.probes.map(
         (name, j) =>
           ({
             id: `probe-${name}`,
-            header: name,
+            header: withUnit(name, probeUnit(series, j)),
             accessorFn: (r: Row) => r.probes[j] ?? NaN,
-            cell: (c: { getValue: () => unknown }) => formatEng(c.getValue() as number, "", 4),
+            cell: (c: { getValue: () => unknown }) => fmt(c.getValue() as number, probeUnit(series, j)),
           }) as ColumnDef<Row>,
       ),
       {
         id: "residual",
-        header: "residual",
+        header: "KCL residual (A)",
         accessorFn: (r) => r.residual ?? NaN,
-        cell: (c) => formatEng(c.getValue<number>(), "A", 2),
+        cell: (c) => fmt(c.getValue<number>(), "A"),
       },
     ],
-    [series],
+    [series, fmt],
   );
   if (series.probes.length === 0)
     return (
@@ -140,8 +168,12 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
               <input type="checkbox" checked={logX} onChange={(e) => setLogX(e.target.checked)} /> log {plot.xLabel}
             </label>
             <label className="flex items-center gap-1">
-              <input type="checkbox" checked={logY} onChange={(e) => setLogY(e.target.checked)} /> log{" "}
-              {series.probes[probe]}
+              <input
+                type="checkbox"
+                checked={logY}
+                onChange={(e) => setLogChoice({ ...logChoice, [probe]: e.target.checked })}
+              />{" "}
+              log {series.probes[probe]}
             </label>
             {samples > 1 ? <span className="text-stone-500">mean over {samples} mismatch samples</span> : null}
             <BenchDataSelect bench={bench} onChoose={() => setProbeChoice(null)} />
@@ -149,13 +181,10 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
           <LinePlot
             title={`${series.probes[probe]} over ${plot.xLabel}`}
             x={plot.x}
-            xLabel={plot.xLabel}
-            xUnit={plot.xUnit}
+            xAxis={xAxis}
+            yAxis={yAxis}
             curves={plot.curves}
-            logX={logX}
-            logY={logY}
             marks={marks}
-            yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : undefined}
           />
           <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
         </div>

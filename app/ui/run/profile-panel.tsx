@@ -15,7 +15,14 @@ function profileStem(against: string): string | null {
   return against.endsWith("{k}") ? against.slice(0, -3) : null;
 }
 
-export function ProfilePanel({ point, bench }: { point: PointData; bench: BenchData }) {
+export interface ProfilePanelProps {
+  point: PointData;
+  bench: BenchData;
+  /** Unit of each of the point's probes (the series' probeUnits, same order); null where not known. */
+  probeUnits: (string | null)[];
+}
+
+export function ProfilePanel({ point, bench, probeUnits }: ProfilePanelProps) {
   const groups = useMemo(() => {
     const nodes = indexedGroups(point.nodes.names).profiles.map((p) => ({
       key: `node:${p.stem}`,
@@ -31,16 +38,22 @@ export function ProfilePanel({ point, bench }: { point: PointData; bench: BenchD
       index: p.index,
       values: p.at.map((k) => point.devices.current[k]),
     }));
-    // Indexed probes (i0, i1, … as a for loop writes them): what a profile overlay compares bench data with. Their unit is not stored.
+    // Indexed probes (i0, i1, … as a for loop writes them): what a profile overlay compares bench data with.
     const probes = indexedGroups(point.probes.names).profiles.map((p) => ({
       key: `probe:${p.stem}`,
       label: `probe ${p.stem}·`,
-      unit: "",
+      unit: probeUnits[p.at[0]] ?? null,
       index: p.index,
       values: p.at.map((k) => point.probes.value[k]),
     }));
-    return [...nodes, ...devs, ...probes];
-  }, [point]);
+    return [...nodes, ...devs, ...probes] as {
+      key: string;
+      label: string;
+      unit: string | null;
+      index: number[];
+      values: number[];
+    }[];
+  }, [point, probeUnits]);
   // null: follow the probes the chosen bench data is matched to (else the first current profile).
   const [key, setKey] = useState<string | null>(null);
   const [log, setLog] = useState(true);
@@ -58,6 +71,16 @@ export function ProfilePanel({ point, bench }: { point: PointData; bench: BenchD
     [bench.overlay, g?.key],
   );
   const marks = useMemo(() => measuredMarks(bench, onPlot), [bench, onPlot]);
+  const curves = useMemo<Curve[]>(
+    () => (g ? [{ label: g.label, values: g.unit === "A" ? g.values.map((v) => Math.abs(v)) : g.values }] : []),
+    [g],
+  );
+  const unit = g?.unit ?? (onPlot[0] ? siUnit(onPlot[0].unit) : null);
+  const xAxis = useMemo(() => ({ label: "index", unit: null, integer: true }), []);
+  const yAxis = useMemo(
+    () => ({ label: g?.unit === "A" ? `|${g.label}|` : (g?.label ?? ""), unit, log }),
+    [g, unit, log],
+  );
   if (!g)
     return (
       <p className="text-stone-600">
@@ -65,7 +88,7 @@ export function ProfilePanel({ point, bench }: { point: PointData; bench: BenchD
         them).
       </p>
     );
-  const curves: Curve[] = [{ label: g.label, values: g.unit === "A" ? g.values.map((v) => Math.abs(v)) : g.values }];
+
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
@@ -93,10 +116,9 @@ export function ProfilePanel({ point, bench }: { point: PointData; bench: BenchD
       <LinePlot
         title={`${g.label} along the index`}
         x={g.index}
-        xLabel="index"
+        xAxis={xAxis}
+        yAxis={yAxis}
         curves={curves}
-        yUnit={onPlot[0] ? siUnit(onPlot[0].unit) : g.unit}
-        logY={log}
         marks={marks}
       />
       <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />

@@ -8,7 +8,6 @@
 import Link from "next/link";
 import { useMemo, useState } from "react";
 import useSWR from "swr";
-import { formatEng } from "@/app/lib/format";
 import { decodePoint, pointData } from "@/app/lib/point-codec";
 import type { RunLayout, SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
@@ -16,6 +15,7 @@ import { getBytes, getJson } from "@/app/ui/fetch";
 import { useBenchData } from "./bench-data";
 import { DevicesPanel } from "./devices-panel";
 import { LoadingNote } from "./loading-note";
+import { PointWarnings } from "./point-warnings";
 import { MapPanel } from "./map-panel";
 import { OperatingPanel } from "./operating-panel";
 import { ProbesPanel } from "./probes-panel";
@@ -24,6 +24,7 @@ import { SeekPanel } from "./seek-panel";
 import { SensitivityPanel } from "./sensitivity-panel";
 import { SpreadPanel } from "./spread-panel";
 import { paramUnit } from "./sweep-values";
+import { useFormat } from "@/app/ui/notation";
 
 export type Tab = "probes" | "operating" | "devices" | "profile" | "map" | "spread" | "sensitivity" | "seek";
 
@@ -38,12 +39,15 @@ export function Results({
   series: SeriesView;
   canRun: boolean;
 }) {
+  const fmt = useFormat();
   const samples = series.mismatch?.runs ?? 1;
   const gridPoints = Math.max(1, Math.ceil(run.pointsTotal / samples));
   const [gridPoint, setGridPoint] = useState(0);
   const [sample, setSample] = useState(0);
   const point = Math.min(gridPoint * samples + sample, Math.max(0, series.point.length - 1));
   const [tab, setTab] = useState<Tab>(series.sweeps.length ? "probes" : "operating");
+  const [deviceFilter, setDeviceFilter] = useState("");
+  const [onlyFlagged, setOnlyFlagged] = useState(false);
   const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, {
     revalidateOnFocus: false,
   });
@@ -102,12 +106,22 @@ export function Results({
           {current ? (
             <span className="tabular text-stone-700" data-slot="point-params">
               {series.sweeps
-                .map((s) => `${s.param} = ${formatEng(current.params[s.param], paramUnit(s.param), 4)}`)
+                .map((s) => `${s.param} = ${fmt(current.params[s.param], paramUnit(series, s.param))}`)
                 .join(", ")}
               {samples > 1 ? ` · sample ${current.sample}` : ""}
             </span>
           ) : null}
         </div>
+      ) : null}
+      {current ? (
+        <PointWarnings
+          point={current}
+          onShow={(pattern) => {
+            setDeviceFilter(pattern);
+            setOnlyFlagged(true);
+            setTab("devices");
+          }}
+        />
       ) : null}
       <div role="tablist" aria-label="Result views" className="flex flex-wrap gap-1 border-b border-stone-300">
         {tabs.map(([id, label]) => (
@@ -125,9 +139,33 @@ export function Results({
       </div>
       <div role="tabpanel" aria-label={tabs.find((t) => t[0] === tab)?.[1]}>
         {tab === "probes" ? <ProbesPanel series={series} bench={bench} /> : null}
-        {tab === "operating" ? current ? <OperatingPanel point={current} /> : <LoadingNote /> : null}
-        {tab === "devices" ? current ? <DevicesPanel point={current} /> : <LoadingNote /> : null}
-        {tab === "profile" ? current ? <ProfilePanel point={current} bench={bench} /> : <LoadingNote /> : null}
+        {tab === "operating" ? (
+          current ? (
+            <OperatingPanel point={current} probeUnits={series.probeUnits} />
+          ) : (
+            <LoadingNote />
+          )
+        ) : null}
+        {tab === "devices" ? (
+          current ? (
+            <DevicesPanel
+              point={current}
+              filter={deviceFilter}
+              onFilterChange={setDeviceFilter}
+              onlyFlagged={onlyFlagged}
+              onOnlyFlaggedChange={setOnlyFlagged}
+            />
+          ) : (
+            <LoadingNote />
+          )
+        ) : null}
+        {tab === "profile" ? (
+          current ? (
+            <ProfilePanel point={current} bench={bench} probeUnits={series.probeUnits} />
+          ) : (
+            <LoadingNote />
+          )
+        ) : null}
         {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <LoadingNote /> : null}
         {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
         {tab === "sensitivity" ? <SensitivityPanel runId={runId} /> : null}

@@ -15,46 +15,50 @@ import { LoadingNote } from "./loading-note";
 import { paramUnit } from "./sweep-values";
 
 const eng = (x: number, unit = "") => formatEng(x, unit, 4);
+/** A seek names its params without units; temp is known to be in kelvin. */
+const NO_UNITS = { params: [], paramUnits: [] };
 
 function SeekTable({ seek }: { seek: SeekJson }) {
-  const unit = paramUnit(seek.param);
+  const unit = paramUnit(NO_UNITS, seek.param) ?? "";
   return (
     <div className="space-y-1">
       <p className="font-medium text-stone-800">
         {seek.param} giving {seek.probe} = {eng(seek.target)}: {seek.ok ? "found" : "not found everywhere"}
       </p>
-      <table className="text-left" aria-label={`Goal-seek of ${seek.param}`}>
-        <thead className="text-xs text-stone-500">
-          <tr>
-            <th className="py-1 pr-3 font-normal">at</th>
-            <th className="py-1 pr-3 font-normal">{seek.param}</th>
-            <th className="py-1 pr-3 font-normal">{seek.probe} reached</th>
-            <th className="py-1 pr-3 font-normal">iterations</th>
-          </tr>
-        </thead>
-        <tbody className="tabular">
-          {seek.points.map((p, k) => (
-            <tr key={k} className="border-t border-stone-100">
-              <td className="py-0.5 pr-3">
-                {Object.entries(p.at)
-                  .map(([n, x]) => `${n} = ${eng(x, paramUnit(n))}`)
-                  .join(", ") || "the file's point"}
-              </td>
-              {p.ok ? (
-                <>
-                  <td className="py-0.5 pr-3">{eng(p.value, unit)}</td>
-                  <td className="py-0.5 pr-3">{eng(p.achieved)}</td>
-                </>
-              ) : (
-                <td colSpan={2} className="py-0.5 pr-3 text-ember-500">
-                  {p.message}
-                </td>
-              )}
-              <td className="py-0.5 pr-3">{p.iterations}</td>
+      <div className="overflow-x-auto">
+        <table className="text-left" aria-label={`Goal-seek of ${seek.param}`}>
+          <thead className="text-xs text-stone-500">
+            <tr>
+              <th className="py-1 pr-3 font-normal">at</th>
+              <th className="py-1 pr-3 font-normal">{seek.param}</th>
+              <th className="py-1 pr-3 font-normal">{seek.probe} reached</th>
+              <th className="py-1 pr-3 font-normal">iterations</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody className="tabular">
+            {seek.points.map((p, k) => (
+              <tr key={k} className="border-t border-stone-100">
+                <td className="py-0.5 pr-3">
+                  {Object.entries(p.at)
+                    .map(([n, x]) => `${n} = ${eng(x, paramUnit(NO_UNITS, n) ?? "")}`)
+                    .join(", ") || "the file's point"}
+                </td>
+                {p.ok ? (
+                  <>
+                    <td className="py-0.5 pr-3">{eng(p.value, unit)}</td>
+                    <td className="py-0.5 pr-3">{eng(p.achieved)}</td>
+                  </>
+                ) : (
+                  <td colSpan={2} className="py-0.5 pr-3 text-ember-500">
+                    {p.message}
+                  </td>
+                )}
+                <td className="py-0.5 pr-3">{p.iterations}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
     </div>
   );
 }

@@ -57,32 +57,34 @@ export function SensitivityPanel({ runId }: { runId: string }) {
         </a>
         {v.probesLeftOut > 0 ? <span className="text-stone-500">({v.probesLeftOut} more probes left out)</span> : null}
       </div>
-      <table className="w-full max-w-3xl text-left" aria-label="Devices by threshold sensitivity">
-        <thead className="text-xs text-stone-500">
-          <tr>
-            <th className="py-1 pr-3 font-normal">device</th>
-            <th className="py-1 pr-3 font-normal">∂Q/∂VT per mV</th>
-            <th className="w-1/3 py-1 pr-3 font-normal" aria-hidden />
-            <th className="py-1 pr-3 font-normal">∂ln Q/∂ln(W/L)</th>
-          </tr>
-        </thead>
-        <tbody className="tabular">
-          {p.devices.map((d) => (
-            <tr key={d.device} className="border-t border-stone-100">
-              <td className="py-0.5 pr-3 font-mono">{d.device}</td>
-              <td className="py-0.5 pr-3">{eng(d.vt_per_mv)}</td>
-              <td className="py-0.5 pr-3">
-                <div
-                  className={`h-2.5 rounded-sm ${d.vt_per_mv < 0 ? "bg-ember-500/70" : "bg-moss-600/70"}`}
-                  style={{ width: `${(100 * Math.abs(d.vt_per_mv)) / largest}%` }}
-                  title={d.vt_per_mv < 0 ? "raising this threshold lowers the probe" : "raising it raises the probe"}
-                />
-              </td>
-              <td className="py-0.5 pr-3">{eng(d.size)}</td>
+      <div className="overflow-x-auto">
+        <table className="w-full max-w-3xl text-left" aria-label="Devices by threshold sensitivity">
+          <thead className="text-xs text-stone-500">
+            <tr>
+              <th className="py-1 pr-3 font-normal">device</th>
+              <th className="py-1 pr-3 font-normal">∂Q/∂VT per mV</th>
+              <th className="w-1/3 py-1 pr-3 font-normal" aria-hidden />
+              <th className="py-1 pr-3 font-normal">∂ln Q/∂ln(W/L)</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody className="tabular">
+            {p.devices.map((d) => (
+              <tr key={d.device} className="border-t border-stone-100">
+                <td className="py-0.5 pr-3 font-mono">{d.device}</td>
+                <td className="py-0.5 pr-3">{eng(d.vt_per_mv)}</td>
+                <td className="py-0.5 pr-3">
+                  <div
+                    className={`h-2.5 rounded-sm ${d.vt_per_mv < 0 ? "bg-ember-500/70" : "bg-moss-600/70"}`}
+                    style={{ width: `${(100 * Math.abs(d.vt_per_mv)) / largest}%` }}
+                    title={d.vt_per_mv < 0 ? "raising this threshold lowers the probe" : "raising it raises the probe"}
+                  />
+                </td>
+                <td className="py-0.5 pr-3">{eng(d.size)}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
       {params.length ? (
         <p className="tabular text-stone-700" data-slot="param-sensitivities">
           per param: {params.map(([k, x]) => `∂Q/∂${k} = ${eng(x)}`).join(" · ")}
@@ -97,31 +99,33 @@ export function SensitivityPanel({ runId }: { runId: string }) {
               ? ` · Monte Carlo σ ${eng(p.budget.monte_carlo.sigma)} ± ${eng(p.budget.monte_carlo.standard_error)} over ${p.budget.monte_carlo.samples} samples`
               : ""}
           </p>
-          <table className="max-w-xl text-left" aria-label="Share of the variance">
-            <thead className="text-xs text-stone-500">
-              <tr>
-                <th className="py-1 pr-3 font-normal">device or group</th>
-                <th className="py-1 pr-3 font-normal">share of σ²</th>
-                <th className="py-1 pr-3 font-normal">σ part</th>
-              </tr>
-            </thead>
-            <tbody className="tabular">
-              {[
-                ...p.budget.groups.map((g) => ({
-                  name: `${g.pattern} (${g.devices})`,
-                  share: g.share,
-                  sigma: g.sigma,
-                })),
-                ...p.budget.devices,
-              ].map((d) => (
-                <tr key={d.name} className="border-t border-stone-100">
-                  <td className="py-0.5 pr-3 font-mono">{d.name}</td>
-                  <td className="py-0.5 pr-3">{pct(d.share)}</td>
-                  <td className="py-0.5 pr-3">{eng(d.sigma)}</td>
+          <div className="overflow-x-auto">
+            <table className="max-w-xl text-left" aria-label="Share of the variance">
+              <thead className="text-xs text-stone-500">
+                <tr>
+                  <th className="py-1 pr-3 font-normal">device or group</th>
+                  <th className="py-1 pr-3 font-normal">share of σ²</th>
+                  <th className="py-1 pr-3 font-normal">σ part</th>
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody className="tabular">
+                {[
+                  ...p.budget.groups.map((g) => ({
+                    name: `${g.pattern} (${g.devices})`,
+                    share: g.share,
+                    sigma: g.sigma,
+                  })),
+                  ...p.budget.devices,
+                ].map((d) => (
+                  <tr key={d.name} className="border-t border-stone-100">
+                    <td className="py-0.5 pr-3 font-mono">{d.name}</td>
+                    <td className="py-0.5 pr-3">{pct(d.share)}</td>
+                    <td className="py-0.5 pr-3">{eng(d.sigma)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
         </div>
       ) : (
         <p className="text-stone-500">No mismatch budget: the file states no `mismatch` (its avt).</p>

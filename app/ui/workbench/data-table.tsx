@@ -26,6 +26,11 @@ export interface DataTableProps<T> {
   pageSize?: number;
   /** Row class (e.g. to flag a device outside weak inversion). */
   rowClass?(row: T): string;
+  /** The filter text, when the caller controls it (e.g. a warning's link filters the devices); else the table keeps its own. */
+  filter?: string;
+  onFilterChange?(text: string): void;
+  /** Whether a row passes the filter text; default: its first column contains the text (ignoring case). */
+  matches?(row: T, text: string): boolean;
 }
 
 export function DataTable<T>({
@@ -35,9 +40,14 @@ export function DataTable<T>({
   filterPlaceholder = "Filter by name",
   pageSize = 25,
   rowClass,
+  filter: controlled,
+  onFilterChange,
+  matches,
 }: DataTableProps<T>) {
   const [sorting, setSorting] = useState<SortingState>([]);
-  const [filter, setFilter] = useState("");
+  const [own, setOwn] = useState("");
+  const filter = controlled ?? own;
+  const setFilter = (text: string) => (onFilterChange ? onFilterChange(text) : setOwn(text));
   const table = useReactTable({
     data: rows,
     columns,
@@ -45,9 +55,11 @@ export function DataTable<T>({
     onSortingChange: setSorting,
     onGlobalFilterChange: setFilter,
     globalFilterFn: (row, _id, value: string) =>
-      String(row.getValue(columns[0].id ?? "name"))
-        .toLowerCase()
-        .includes(value.toLowerCase()),
+      matches
+        ? matches(row.original, value)
+        : String(row.getValue(columns[0].id ?? "name"))
+            .toLowerCase()
+            .includes(value.toLowerCase()),
     getCoreRowModel: getCoreRowModel(),
     getSortedRowModel: getSortedRowModel(),
     getFilteredRowModel: getFilteredRowModel(),

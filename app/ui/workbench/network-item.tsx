@@ -6,6 +6,7 @@ import type { NetworkSummary } from "@/app/lib/networks";
 import { sendJson } from "@/app/ui/fetch";
 import { RunStateBadge } from "@/app/ui/run/run-state-badge";
 import { HeadReview } from "./head-review";
+import { RunValidity } from "./run-validity";
 
 /** One network in the workspace list: rename, archive, head commit, diagnostics and newest run. */
 
@@ -127,17 +128,18 @@ export function NetworkItem({
           )
         ) : null}
       </div>
-      <div className="w-28 text-right">
+      <div className="w-full text-xs sm:w-auto sm:min-w-40 sm:text-right">
         {n.lastRun ? (
           <Link
             href={`/runs/${n.lastRun.id}`}
-            className="inline-flex items-center gap-1 text-xs text-stone-600 hover:text-moss-700"
+            className="inline-flex flex-wrap items-center gap-1 text-stone-600 hover:text-moss-700 sm:justify-end"
             aria-label={`Newest run of ${n.name}: ${n.lastRun.state}`}
           >
             run <RunStateBadge state={n.lastRun.state} />
+            <RunValidity run={n.lastRun} />
           </Link>
         ) : (
-          <span className="text-xs text-stone-400">no runs</span>
+          <span className="text-stone-400">no runs</span>
         )}
       </div>
     </li>

@@ -296,8 +296,8 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
         <NetworkEditor
           value={shown}
           onChange={onChange}
-          onSave={() => void commit()}
-          onRun={() => void run()}
+          onSave={canWrite ? () => void commit() : undefined}
+          onRun={canRun ? () => void run() : undefined}
           readOnly={readOnly}
           onDiagnostics={setDiagnostics}
           className="h-[60vh] min-h-80 overflow-hidden rounded border border-stone-300 bg-white"

@@ -33,43 +33,45 @@ export default async function MembersPage({ params }: { params: Promise<{ slug: 
         </p>
       </header>
 
-      <table className="w-full text-left text-sm" aria-label="Members">
-        <thead className="text-xs text-stone-500">
-          <tr>
-            <th className="py-1 font-normal">name</th>
-            <th className="py-1 font-normal">e-mail</th>
-            <th className="py-1 font-normal">role</th>
-            <th className="py-1 font-normal">since</th>
-            <th />
-          </tr>
-        </thead>
-        <tbody>
-          {members.map((m) => (
-            <tr key={m.userId} className="border-t border-stone-200 align-top">
-              <td className="py-2">
-                {m.name}
-                {m.userId === actor.userId ? <span className="text-stone-500"> (you)</span> : null}
-              </td>
-              <td className="py-2 font-mono">{m.email}</td>
-              <td className="py-2">
-                {manage ? (
-                  <MemberRoleForm slug={workspace.slug} userId={m.userId} name={m.name} role={m.role} />
-                ) : (
-                  m.role
-                )}
-              </td>
-              <td className="py-2 tabular">{day(m.since)}</td>
-              <td className="py-2 text-right">
-                {m.userId === actor.userId ? (
-                  <LeaveButton slug={workspace.slug} />
-                ) : manage ? (
-                  <RemoveMemberButton slug={workspace.slug} userId={m.userId} name={m.name} />
-                ) : null}
-              </td>
+      <div className="overflow-x-auto">
+        <table className="w-full text-left text-sm" aria-label="Members">
+          <thead className="text-xs text-stone-500">
+            <tr>
+              <th className="py-1 font-normal">name</th>
+              <th className="py-1 font-normal">e-mail</th>
+              <th className="py-1 font-normal">role</th>
+              <th className="py-1 font-normal">since</th>
+              <th />
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {members.map((m) => (
+              <tr key={m.userId} className="border-t border-stone-200 align-top">
+                <td className="py-2">
+                  {m.name}
+                  {m.userId === actor.userId ? <span className="text-stone-500"> (you)</span> : null}
+                </td>
+                <td className="py-2 font-mono">{m.email}</td>
+                <td className="py-2">
+                  {manage ? (
+                    <MemberRoleForm slug={workspace.slug} userId={m.userId} name={m.name} role={m.role} />
+                  ) : (
+                    m.role
+                  )}
+                </td>
+                <td className="py-2 tabular">{day(m.since)}</td>
+                <td className="py-2 text-right">
+                  {m.userId === actor.userId ? (
+                    <LeaveButton slug={workspace.slug} />
+                  ) : manage ? (
+                    <RemoveMemberButton slug={workspace.slug} userId={m.userId} name={m.name} />
+                  ) : null}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
 
       {manage ? (
         <>

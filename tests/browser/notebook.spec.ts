@@ -1,0 +1,132 @@
+import { expect, test, type Page } from "@playwright/test";
+
+/**
+ * Results a designer reads at a glance: a 14-decade current on a log axis
+ * that answers and draws its decades, axis titles with quantity and unit, the
+ * legend at the last point, the Map's labelled axes and legend, the notation
+ * toggle, and no page wider than a phone. Screenshots go to
+ * test-results/browser/notebook-*.png.
+ */
+
+const DECADES = `network decades
+param iin = 1n
+rail vdd = 1.8
+rail gnd = 0
+rail gv = 0.5
+inject src from=x0 to=gnd value=iin
+nfet m gate=gv source=x0 drain=vdd
+probe vx = voltage(x0)
+probe iout = current(m)
+sweep iin from 8.7e-25 to 4.9e-11 points 300 log
+`;
+
+const shot = (page: Page, name: string) =>
+  page.screenshot({ path: `test-results/browser/notebook-${name}.png`, fullPage: true });
+
+async function signIn(page: Page, email = "designer@larkspur.example") {
+  await page.goto("/signin");
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill("larkspur-demo");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page).not.toHaveURL(/\/signin/);
+}
+
+test("a current over 14 decades opens on a log axis that answers, with decades and units on its axes", async ({
+  page,
+}) => {
+  test.setTimeout(120_000);
+  const errors: string[] = [];
+  page.on("pageerror", (e) => errors.push(e.message));
+  await signIn(page);
+  await page.goto("/w/lm64-edge-row");
+  await page.getByLabel("Upload a .runnel file").setInputFiles({
+    name: "decades.runnel",
+    mimeType: "text/plain",
+    buffer: Buffer.from(DECADES),
+  });
+  await expect(page).toHaveURL(/\/w\/lm64-edge-row\/n\/decades(-\d+)?$/);
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  const runs = page.getByRole("list", { name: "Runs" });
+  await expect(runs.locator('[data-state="done"]')).toBeVisible({ timeout: 60_000 });
+  await runs.getByRole("link").first().click();
+  await expect(page).toHaveURL(/\/runs\/r_[a-z2-7]+$/);
+
+  // the probe that varies most (iout, 14 decades) opens first, on a log axis, because it is a current
+  const panel = page.getByRole("tabpanel", { name: "Probes" });
+  await expect(panel.getByLabel("Probe to plot")).toHaveValue("1");
+  await expect(panel.getByLabel("log iout")).toBeChecked();
+  const plot = panel.locator("[data-slot=plot]").first();
+  await expect(plot.locator("canvas").first()).toBeVisible();
+  // axis titles carry quantity and unit; ticks are decades with SI prefixes
+  await expect(plot).toHaveAttribute("data-y-title", "current iout (A)");
+  await expect(plot).toHaveAttribute("data-x-title", "iin (A)");
+  await expect(plot).toHaveAttribute("data-y-ticks", /yA.*aA.*fA.*pA/);
+  // the legend shows the last point's values, not dashes, until hovered
+  await expect(page.locator(".u-legend").first()).toContainText("pA");
+  await shot(page, "decades");
+
+  // the page still answers: linear and back to log, the ticks redraw each time
+  const log = panel.getByLabel("log iout");
+  await log.uncheck();
+  await expect(plot).not.toHaveAttribute("data-y-ticks", /yA/);
+  await log.check();
+  await expect(plot).toHaveAttribute("data-y-ticks", /yA/);
+
+  // the notation toggle writes the same values in scientific notation, and back
+  await page.getByTestId("notation-toggle").first().click();
+  await expect(plot).toHaveAttribute("data-y-ticks", /e-2\d A/);
+  await page.getByTestId("notation-toggle").first().click();
+  await expect(plot).toHaveAttribute("data-y-ticks", /yA/);
+  expect(errors).toEqual([]);
+});
+
+test("the Map of a grid has labelled axes, square cells and a legend in the value's unit", async ({ page }) => {
+  await signIn(page);
+  await page.goto("/w/lm64-edge-row");
+  await page.getByRole("link", { name: /Newest run of Smoothing grid .*: done/ }).click();
+  await page.getByRole("tab", { name: "Map" }).click();
+  const map = page.locator("[data-slot=heat-map]");
+  await expect(map).toBeVisible();
+  const box = (await map.boundingBox())!;
+  expect(Math.abs(box.width - box.height)).toBeLessThan(4); // 32 × 32 cells, square
+  await expect(page.locator("[data-slot=map-row-axis]")).toContainText("31");
+  await expect(page.locator("[data-slot=map-col-axis]")).toContainText("16");
+  await expect(page.locator("[data-slot=map-legend]")).toContainText("(A)");
+  await expect(page.locator("[data-slot=map-legend]")).toContainText("pA");
+  await map.hover();
+  await expect(page.locator("[data-slot=map-readout]")).toContainText(/A$/);
+  await shot(page, "map");
+});
+
+test("at phone width no main page scrolls sideways, and the header is a menu", async ({ browser }) => {
+  test.setTimeout(180_000);
+  const context = await browser.newContext({ viewport: { width: 390, height: 844 } });
+  const page = await context.newPage();
+  await signIn(page);
+  const widths: Record<string, number> = {};
+  const measure = async (url: string) => {
+    await page.goto(url);
+    await page.waitForLoadState("networkidle");
+    widths[url] = await page.evaluate(() => document.documentElement.scrollWidth);
+  };
+  await page.goto("/w/lm64-edge-row");
+  await expect(page.locator("[data-slot=header-menu] summary")).toBeVisible();
+  const runs = await page
+    .getByRole("link", { name: /Newest run of/ })
+    .evaluateAll((as) => as.map((a) => a.getAttribute("href")!));
+  const pages = [
+    "/",
+    "/w/lm64-edge-row",
+    "/w/lm64-edge-row/n/lm-64-edge-row",
+    "/w/lm64-edge-row/members",
+    "/settings",
+    "/inbox",
+    ...runs.slice(0, 4),
+    "/w/lm64-edge-row/n/lm-64-edge-row/compare",
+  ];
+  for (const url of pages) await measure(url);
+  await page.goto(runs[0]);
+  await shot(page, "phone-run");
+  await context.close();
+  expect(Object.entries(widths).filter(([, w]) => w > 390)).toEqual([]);
+});
