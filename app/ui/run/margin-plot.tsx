@@ -17,7 +17,13 @@ export function MarginPlot({ series, expectation, unit }: { series: SeriesView; 
     const xs = sweeps[xSweep];
     const perGrid = worstPerGrid(series.margins[expectation] ?? [], samples);
     const name = samples > 1 ? "worst margin over the samples" : "margin";
-    const curves = curvesAlong(sweeps, xSweep, perGrid, name, (p, v) => `${p} = ${formatValue(v, paramUnit(series, p), { digits: 3 })}`);
+    const curves = curvesAlong(
+      sweeps,
+      xSweep,
+      perGrid,
+      name,
+      (p, v) => `${p} = ${formatValue(v, paramUnit(series, p), { digits: 3 })}`,
+    );
     curves.push({ label: "bound (margin 0)", values: xs.values.map(() => 0) });
     return { x: xs.values, xLabel: xs.param, xUnit: paramUnit(series, xs.param), log: xs.log, curves };
   }, [series, expectation, samples, xSweep]);
