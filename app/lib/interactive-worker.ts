@@ -15,6 +15,7 @@ import { comparisonCore, type ComparisonCore } from "./review/comparison-core";
 import { parseMeasurementCsv, type CsvError, type ParseResult } from "./review/measurements";
 import { checkNetworkText, planNetworkText, type PlanText, type TextCheck } from "./text-check";
 import { seekView, sensitivityView, type SeekSpec, type SeekView, type SensitivityView } from "./sensitivity-view";
+import { commitStructure, type StructureView } from "./structure";
 import { releaseWhenIdle } from "./worker-memory";
 
 export type InteractiveTask =
@@ -24,7 +25,8 @@ export type InteractiveTask =
   | { kind: "store-csv"; bytes: Uint8Array; dbFile: string; measurement: MeasurementFields }
   | { kind: "compare"; dbFile: string; fromRunId: string; toRunId: string; tolerance: Tolerance }
   | { kind: "sensitivity"; text: string }
-  | { kind: "seek"; text: string; spec?: SeekSpec };
+  | { kind: "seek"; text: string; spec?: SeekSpec }
+  | { kind: "structure"; commitId: string; text: string; query: string };
 
 export type { ComparisonCore };
 
@@ -51,7 +53,9 @@ export type InteractiveResult<T extends InteractiveTask> = T extends { kind: "ch
           ? SensitivityView
           : T extends { kind: "seek" }
             ? SeekView
-            : ComparisonCore | null;
+            : T extends { kind: "structure" }
+              ? StructureView | null
+              : ComparisonCore | null;
 
 let connection: { file: string; db: DB } | null = null;
 /** The thread's connection to `file` (opened once; it waits up to 5 s for a lock, off the request thread). */
@@ -84,7 +88,16 @@ function compare(task: Extract<InteractiveTask, { kind: "compare" }>): Compariso
 
 export default function interactiveTask(
   task: InteractiveTask,
-): TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | SeekView | null {
+):
+  | TextCheck
+  | PlanText
+  | ParseResult
+  | StoreCsvResult
+  | ComparisonCore
+  | SensitivityView
+  | SeekView
+  | StructureView
+  | null {
   try {
     switch (task.kind) {
       case "check":
@@ -101,6 +114,8 @@ export default function interactiveTask(
         return sensitivityView(task.text);
       case "seek":
         return seekView(task.text, task.spec);
+      case "structure":
+        return commitStructure(task.commitId, task.text, task.query);
     }
   } finally {
     // The kept thread gives back what the task left (a large network's elaboration) once it is idle.

@@ -32,6 +32,7 @@ import type { Tolerance } from "./review/results-diff";
 import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
 import type { SeekSpec, SeekView, SensitivityView } from "./sensitivity-view";
+import type { StructureView } from "./structure";
 import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
@@ -92,6 +93,7 @@ const WHAT: Record<InteractiveTask["kind"], string> = {
   compare: "comparing the two runs",
   sensitivity: "computing the sensitivities",
   seek: "seeking the param's value",
+  structure: "reading the network's structure",
 };
 
 /** Runs `task` in the interactive pool, under its time limit, cancelled when `signal` aborts. */
@@ -165,6 +167,19 @@ export function sensitivityInWorker(text: string, signal?: AbortSignal): Promise
 /** Goal-seeks of a network text (the file's `seek` statements, or `spec`), computed in the interactive pool. */
 export function seekInWorker(text: string, spec?: SeekSpec, signal?: AbortSignal): Promise<SeekView> {
   return runInteractive({ kind: "seek", text, ...(spec ? { spec } : {}) }, signal);
+}
+
+/**
+ * A commit's structure (app/lib/structure.ts): its devices and nodes matching `query`, and the graph of a small
+ * network; null when the text does not elaborate. The pool thread keeps the last few small networks it elaborated.
+ */
+export function structureInWorker(
+  commitId: string,
+  text: string,
+  query: string,
+  signal?: AbortSignal,
+): Promise<StructureView | null> {
+  return runInteractive({ kind: "structure", commitId, text, query }, signal);
 }
 
 /** Ends the pool's threads (tests and scripts that must exit). */

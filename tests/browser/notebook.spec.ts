@@ -111,6 +111,7 @@ test("at phone width no main page scrolls sideways, and the header is a menu", a
   };
   await page.goto("/w/lm64-edge-row");
   await expect(page.locator("[data-slot=header-menu] summary")).toBeVisible();
+  await expect(page.getByRole("link", { name: /Newest run of/ }).first()).toBeVisible();
   const runs = await page
     .getByRole("link", { name: /Newest run of/ })
     .evaluateAll((as) => as.map((a) => a.getAttribute("href")!));
@@ -129,4 +130,24 @@ test("at phone width no main page scrolls sideways, and the header is a menu", a
   await shot(page, "phone-run");
   await context.close();
   expect(Object.entries(widths).filter(([, w]) => w > 390)).toEqual([]);
+});
+
+test("the structure view lists a node's devices and draws a small network", async ({ page }) => {
+  await signIn(page);
+  await page.goto("/w/lm64-edge-row/n/lm-64-edge-row");
+  await page.getByRole("tab", { name: "Structure" }).click();
+  const structure = page.getByRole("region", { name: "Structure" });
+  await expect(structure.locator("[data-slot=structure-graph]")).toBeVisible();
+  await expect(structure.locator("[data-device=lat0]")).toHaveCount(1);
+  await structure.getByLabel("Search the structure").fill("x5");
+  const nodes = page.getByRole("table", { name: "Nodes and their devices" });
+  const x5 = nodes.locator("tbody tr", { hasText: /^x5/ }).first();
+  await expect(x5).toContainText("lat4");
+  await expect(x5).toContainText("lat5");
+  await expect(x5).toContainText("out5");
+  await expect(page.getByRole("table", { name: "Devices and their nodes" }).locator("tbody")).toContainText("lat5");
+  await shot(page, "structure");
+  // back to the text: the editor kept its place
+  await page.getByRole("tab", { name: "Text" }).click();
+  await expect(page.locator(".cm-content")).toContainText("network");
 });

@@ -14,6 +14,7 @@ import type { RunRow } from "@/app/lib/runs";
 import { NetworkEditor } from "@/app/ui/network-editor";
 import { getJson, sendJson } from "@/app/ui/fetch";
 import type { Diagnostic } from "@/src/lang/network";
+import { StructurePanel } from "@/app/ui/structure/structure-panel";
 import { HistoryPanel } from "./history-panel";
 import { RunsPanel } from "./runs-panel";
 import { isLive } from "@/db/run-states";
@@ -60,6 +61,8 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
   const [message, setMessage] = useState("");
   const [notice, setNotice] = useState<{ kind: "ok" | "problem"; text: string } | null>(null);
   const [busy, setBusy] = useState(false);
+  /** The editor, or the structure of the selected commit. */
+  const [view, setView] = useState<"text" | "structure">("text");
   const messageInput = useRef<HTMLInputElement>(null);
 
   // Show the selected commit's text when it arrives (a read-only view unless it is the head).
@@ -293,40 +296,59 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
         {selected.error ? (
           <p className="text-sm text-ember-500">Could not load the commit: {(selected.error as Error).message}</p>
         ) : null}
-        <NetworkEditor
-          value={shown}
-          onChange={onChange}
-          onSave={canWrite ? () => void commit() : undefined}
-          onRun={canRun ? () => void run() : undefined}
-          readOnly={readOnly}
-          onDiagnostics={setDiagnostics}
-          className="h-[60vh] min-h-80 overflow-hidden rounded border border-stone-300 bg-white"
-        />
-        <div className="flex flex-wrap items-center gap-4 text-xs" aria-live="polite">
-          <span
-            data-slot="diagnostic-count"
-            className={errors ? "text-ember-500" : warnings ? "text-amber-700" : "text-moss-700"}
-          >
-            {errors || warnings
-              ? `${errors} error${errors === 1 ? "" : "s"}, ${warnings} warning${warnings === 1 ? "" : "s"}`
-              : "no problems"}
-          </span>
-          {dirty ? (
-            <span className="text-amber-700" data-slot="dirty">
-              uncommitted edits
-            </span>
-          ) : null}
-          {keyHints ? <span className="text-stone-500">{keyHints}</span> : null}
+        <div role="tablist" aria-label="Network views" className="flex gap-1 border-b border-stone-300 text-sm">
+          {(["text", "structure"] as const).map((v) => (
+            <button
+              key={v}
+              type="button"
+              role="tab"
+              aria-selected={view === v}
+              onClick={() => setView(v)}
+              disabled={v === "structure" && !selectedId}
+              className={`-mb-px rounded-t border px-3 py-1 ${view === v ? "border-stone-300 border-b-white bg-white font-medium text-moss-700" : "border-transparent text-stone-600 hover:text-moss-700 disabled:opacity-50"}`}
+            >
+              {v === "text" ? "Text" : "Structure"}
+            </button>
+          ))}
         </div>
-        {diagnostics.length ? (
-          <ul aria-label="Diagnostics" className="max-h-40 space-y-0.5 overflow-auto text-xs">
-            {diagnostics.slice(0, 50).map((d, i) => (
-              <li key={i} className={d.severity === "error" ? "text-ember-500" : "text-amber-700"}>
-                line {d.line}:{d.column} {d.severity}: {d.message}
-              </li>
-            ))}
-          </ul>
-        ) : null}
+        {view === "structure" && selectedId ? <StructurePanel commitId={selectedId} title={network.name} /> : null}
+        {/* The editor stays mounted (its undo history and cursor) while the structure is shown. */}
+        <div className={view === "text" ? "space-y-3" : "hidden"}>
+          <NetworkEditor
+            value={shown}
+            onChange={onChange}
+            onSave={canWrite ? () => void commit() : undefined}
+            onRun={canRun ? () => void run() : undefined}
+            readOnly={readOnly}
+            onDiagnostics={setDiagnostics}
+            className="h-[60vh] min-h-80 overflow-hidden rounded border border-stone-300 bg-white"
+          />
+          <div className="flex flex-wrap items-center gap-4 text-xs" aria-live="polite">
+            <span
+              data-slot="diagnostic-count"
+              className={errors ? "text-ember-500" : warnings ? "text-amber-700" : "text-moss-700"}
+            >
+              {errors || warnings
+                ? `${errors} error${errors === 1 ? "" : "s"}, ${warnings} warning${warnings === 1 ? "" : "s"}`
+                : "no problems"}
+            </span>
+            {dirty ? (
+              <span className="text-amber-700" data-slot="dirty">
+                uncommitted edits
+              </span>
+            ) : null}
+            {keyHints ? <span className="text-stone-500">{keyHints}</span> : null}
+          </div>
+          {diagnostics.length ? (
+            <ul aria-label="Diagnostics" className="max-h-40 space-y-0.5 overflow-auto text-xs">
+              {diagnostics.slice(0, 50).map((d, i) => (
+                <li key={i} className={d.severity === "error" ? "text-ember-500" : "text-amber-700"}>
+                  line {d.line}:{d.column} {d.severity}: {d.message}
+                </li>
+              ))}
+            </ul>
+          ) : null}
+        </div>
         {notice ? (
           <p
             role={notice.kind === "problem" ? "alert" : "status"}
