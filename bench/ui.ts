@@ -7,7 +7,8 @@
  *   (the page opened, then its Map tab clicked).
  * Each page is opened `--reps` times (default 5) in a fresh browser context with the cache off, as a first
  * visit: time from navigation to the plot drawn, and bytes received (all, and the API's answers) in that time,
- * from Chromium's own network accounting (encodedDataLength, i.e. on the wire). Medians reported.
+ * from Chromium's own network accounting (encodedDataLength, i.e. on the wire); then visited again in the same
+ * browser with its cache (a designer's tab). Medians reported.
  * Goal: first plot < 1 s.
  *
  * Needs `npm run build` first and Debian's Chromium. Options: --reps N, --port N (default 3312), --json.
@@ -72,10 +73,16 @@ interface Sample {
   apiBytes: number;
 }
 
-async function measure(page: Page, url: string, ready: string, tab?: string): Promise<Sample> {
+async function measure(
+  page: Page,
+  url: string,
+  ready: string,
+  tab: string | undefined,
+  cold: boolean,
+): Promise<Sample> {
   const cdp = await page.context().newCDPSession(page);
   await cdp.send("Network.enable");
-  await cdp.send("Network.setCacheDisabled", { cacheDisabled: true });
+  await cdp.send("Network.setCacheDisabled", { cacheDisabled: cold });
   const api = new Set<string>();
   let bytes = 0;
   let apiBytes = 0;
@@ -112,13 +119,19 @@ const results: {
   firstPlotMs: number;
   bytes: number;
   apiBytes: number;
+  /** The same page visited again in the same browser (its cache kept, as a designer's open tab has it). */
+  againMs: number;
+  againBytes: number;
   samples: Sample[];
 }[] = [];
 for (const p of pages) {
   const samples: Sample[] = [];
+  const again: Sample[] = [];
   for (let i = 0; i < REPS; i++) {
     const { context, page } = await signedIn();
-    samples.push(await measure(page, p.url, p.ready, p.tab));
+    samples.push(await measure(page, p.url, p.ready, p.tab, true));
+    await page.goto(`${base}/`);
+    again.push(await measure(page, p.url, p.ready, p.tab, false));
     await context.close();
   }
   results.push({
@@ -127,6 +140,8 @@ for (const p of pages) {
     firstPlotMs: median(samples.map((s) => s.ms)),
     bytes: median(samples.map((s) => s.bytes)),
     apiBytes: median(samples.map((s) => s.apiBytes)),
+    againMs: median(again.map((s) => s.ms)),
+    againBytes: median(again.map((s) => s.bytes)),
     samples,
   });
 }
@@ -135,10 +150,11 @@ await browser.close();
 if (JSON_OUT) console.log(JSON.stringify(results, null, 2));
 else {
   console.log(`run page in Chromium, first visit, cache off; medians of ${REPS} (${machineLine()})`);
-  console.log("page                    first plot   bytes (all)   bytes (API)");
+  console.log("page                    first plot   bytes (all)   bytes (API)   visit again   bytes again");
+  const kib = (b: number) => `${(b / 1024).toFixed(0)} KiB`;
   for (const r of results)
     console.log(
-      `${r.name.padEnd(22)}  ${`${Math.round(r.firstPlotMs)} ms`.padStart(10)}   ${`${(r.bytes / 1024).toFixed(0)} KiB`.padStart(11)}   ${`${(r.apiBytes / 1024).toFixed(0)} KiB`.padStart(11)}`,
+      `${r.name.padEnd(22)}  ${`${Math.round(r.firstPlotMs)} ms`.padStart(10)}   ${kib(r.bytes).padStart(11)}   ${kib(r.apiBytes).padStart(11)}   ${`${Math.round(r.againMs)} ms`.padStart(11)}   ${kib(r.againBytes).padStart(11)}`,
     );
 }
 process.exit(0);

@@ -51,7 +51,7 @@ export default async function RunPage({ params }: Props) {
           </a>
         </p>
       </header>
-      <RunView runId={run.id} canRun={roleAllows(role, "run.start")} />
+      <RunView runId={run.id} canRun={roleAllows(role, "run.start")} hadResults={run.pointsDone > 0} />
     </div>
   );
 }

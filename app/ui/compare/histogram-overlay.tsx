@@ -3,6 +3,7 @@
 /** Two samples' counts on shared bins, drawn over each other (uPlot bars, translucent), before and after. */
 import { useEffect, useRef } from "react";
 import type uPlotType from "uplot";
+import { loadUplot } from "@/app/ui/plots/load-uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatTick } from "@/app/lib/format";
 import { curveColour, withAlpha } from "@/app/ui/theme";
@@ -24,7 +25,7 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
     if (!el || before.length === 0) return;
     let plot: uPlotType | null = null;
     let gone = false;
-    void import("uplot").then(({ default: uPlot }) => {
+    void loadUplot().then((uPlot) => {
       if (gone) return;
       const centres = before.map((_, i) => (edges[i] + edges[i + 1]) / 2);
       const bars = (i: number, offset: number) => ({

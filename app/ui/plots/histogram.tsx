@@ -8,6 +8,7 @@
  */
 import { useEffect, useMemo, useRef } from "react";
 import type uPlotType from "uplot";
+import { loadUplot } from "@/app/ui/plots/load-uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatValue } from "@/app/lib/format";
 import { useNotation } from "@/app/ui/notation";
@@ -47,7 +48,7 @@ export function Histogram({ title, values, axis, markers = NO_MARKERS, height = 
     const lo = bins.edges[0];
     const hi = bins.edges[bins.edges.length - 1];
     const pad = hi > lo ? 0 : Math.abs(lo || 1) * 0.05;
-    void import("uplot").then(({ default: uPlot }) => {
+    void loadUplot().then((uPlot) => {
       if (gone) return;
       plot = new uPlot(
         {

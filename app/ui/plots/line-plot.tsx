@@ -12,6 +12,7 @@
  */
 import { useEffect, useMemo, useRef } from "react";
 import type uPlotType from "uplot";
+import { loadUplot } from "@/app/ui/plots/load-uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatValue } from "@/app/lib/format";
 import { useNotation } from "@/app/ui/notation";
@@ -82,7 +83,7 @@ export function LinePlot({
     const fmtX = (v: number | null) => formatValue(v, xAxis.unit, { notation });
     const fmtY = (v: number | null) => formatValue(v, yAxis.unit, { notation });
     const width = () => Math.max(240, el.clientWidth);
-    void import("uplot").then(({ default: uPlot }) => {
+    void loadUplot().then((uPlot) => {
       if (gone) return;
       const scale = (a: AxisSpec): uPlotType.Scale =>
         a.log ? { distr: 3, log: 10, range: (_u, min, max) => logRange(min, max) } : { distr: 1 };

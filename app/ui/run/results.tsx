@@ -16,6 +16,7 @@ import { useBenchData } from "./bench-data";
 import { DevicesPanel } from "./devices-panel";
 import { LoadingNote } from "./loading-note";
 import { PointWarnings } from "./point-warnings";
+import { layoutKey, pointKey } from "./result-keys";
 import { MapPanel } from "./map-panel";
 import { OperatingPanel } from "./operating-panel";
 import { ProbesPanel } from "./probes-panel";
@@ -48,10 +49,10 @@ export function Results({
   const [tab, setTab] = useState<Tab>(series.sweeps.length ? "probes" : "operating");
   const [deviceFilter, setDeviceFilter] = useState("");
   const [onlyFlagged, setOnlyFlagged] = useState(false);
-  const layout = useSWR<{ layout: RunLayout }>(`/api/runs/${runId}/results?view=layout`, getJson, {
+  const layout = useSWR<{ layout: RunLayout }>(layoutKey(runId), getJson, {
     revalidateOnFocus: false,
   });
-  const bytes = useSWR<ArrayBuffer>(`/api/runs/${runId}/results?view=point&point=${point}&format=binary`, getBytes, {
+  const bytes = useSWR<ArrayBuffer>(pointKey(runId, point), getBytes, {
     keepPreviousData: true,
     revalidateOnFocus: false,
   });

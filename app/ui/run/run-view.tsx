@@ -6,18 +6,19 @@
  * devices and probes, spatial profiles, maps and mismatch spreads — with
  * exports. Every value comes from /api/runs/[id]… through SWR.
  */
-import { useState } from "react";
-import useSWR from "swr";
+import { useEffect, useState } from "react";
+import useSWR, { preload } from "swr";
 import { formatDuration } from "@/app/lib/format";
 import type { SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
-import { getJson, sendJson } from "@/app/ui/fetch";
+import { getBytes, getJson, sendJson } from "@/app/ui/fetch";
 import type { ExpectationSummary } from "@/src/solver/expectation-summary";
 import { ExpectationsPanel } from "./expectations-panel";
 import { ExportLinks } from "./export-links";
 import { ModelCaution } from "./model-caution";
 import { ModelPanel } from "./model-panel";
 import { ProgressBar } from "./progress-bar";
+import { layoutKey, pointKey } from "./result-keys";
 import { Results } from "./results";
 import { RunStateBadge } from "./run-state-badge";
 import { isLive } from "@/db/run-states";
@@ -25,9 +26,11 @@ import { isLive } from "@/db/run-states";
 export interface RunViewProps {
   runId: string;
   canRun: boolean;
+  /** The run had stored points when the page was rendered: its results are asked for at once. */
+  hadResults?: boolean;
 }
 
-export function RunView({ runId, canRun }: RunViewProps) {
+export function RunView({ runId, canRun, hadResults = false }: RunViewProps) {
   const { data, error, mutate } = useSWR<{ run: RunRow; expectations: ExpectationSummary[] | null }>(
     `/api/runs/${runId}`,
     getJson,
@@ -36,7 +39,14 @@ export function RunView({ runId, canRun }: RunViewProps) {
     },
   );
   const run = data?.run;
-  const hasResults = !!run && run.pointsDone > 0;
+  // Before the run's own answer arrives, the page's word decides: the series, the layout and the first point go
+  // out together with it (on a first visit they used to wait for it, then for the series).
+  const hasResults = run ? run.pointsDone > 0 : hadResults;
+  useEffect(() => {
+    if (!hasResults) return;
+    void preload(layoutKey(runId), getJson);
+    void preload(pointKey(runId, 0), getBytes);
+  }, [hasResults, runId]);
   const series = useSWR<{ series: SeriesView }>(hasResults ? `/api/runs/${runId}/results?view=series` : null, getJson, {
     refreshInterval: run && isLive(run.state) ? 2000 : 0,
   });

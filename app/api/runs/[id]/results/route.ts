@@ -53,8 +53,10 @@ export function GET(request: Request, ctx: Ctx) {
         throw new RequestError(400, `from: must not be after to (from=${q.from}, to=${q.to})`);
       const head = { run: { id: run.id, state: run.state } };
       if (q.from === undefined && q.to === undefined) {
+        // A done run's series never changes again: the browser may keep it (a second visit sends nothing).
+        const cache = run.state === "done" ? "private, max-age=86400" : "no-store";
         return new Response(seriesJson(run.id, layout, head), {
-          headers: { "content-type": "application/json", "cache-control": "no-store" },
+          headers: { "content-type": "application/json", "cache-control": cache },
         });
       }
       return fresh({ ...head, series: seriesView(run.id, layout, q.from, q.to) });
