@@ -15,6 +15,13 @@ export interface ComparisonFormProps {
 
 const short = (id: string) => id.slice(0, 10);
 
+/** The tolerance fields: query name (a key of the default tolerance) and label. */
+const TOLERANCES = [
+  ["rel", "relative tolerance"],
+  ["absCurrent", "absolute, currents (A)"],
+  ["absVoltage", "absolute, voltages (V)"],
+] as const;
+
 export function ComparisonForm({ action, history, fromId, toId, query, view }: ComparisonFormProps) {
   return (
     <form
@@ -23,53 +30,38 @@ export function ComparisonForm({ action, history, fromId, toId, query, view }: C
       className="flex flex-wrap items-end gap-3 rounded border border-stone-300 bg-white p-3 text-sm"
       aria-label="Comparison"
     >
-      <label className="flex flex-col">
-        <span className="text-xs text-stone-500">from (older)</span>
-        <select name="from" defaultValue={fromId ?? ""} className="rounded border border-stone-300 px-2 py-1 font-mono">
-          {history.map((c) => (
-            <option key={c.id} value={c.id}>
-              {short(c.id)} {c.message.slice(0, 40)}
-            </option>
-          ))}
-        </select>
-      </label>
-      <label className="flex flex-col">
-        <span className="text-xs text-stone-500">to (newer)</span>
-        <select name="to" defaultValue={toId ?? ""} className="rounded border border-stone-300 px-2 py-1 font-mono">
-          {history.map((c) => (
-            <option key={c.id} value={c.id}>
-              {short(c.id)} {c.message.slice(0, 40)}
-            </option>
-          ))}
-        </select>
-      </label>
-      <label className="flex flex-col">
-        <span className="text-xs text-stone-500">relative tolerance</span>
-        <input
-          name="rel"
-          defaultValue={query.rel ?? ""}
-          placeholder={String(DEFAULT_TOLERANCE.rel)}
-          className="w-24 rounded border border-stone-300 px-2 py-1 font-mono"
-        />
-      </label>
-      <label className="flex flex-col">
-        <span className="text-xs text-stone-500">absolute, currents (A)</span>
-        <input
-          name="absCurrent"
-          defaultValue={query.absCurrent ?? ""}
-          placeholder={String(DEFAULT_TOLERANCE.absCurrent)}
-          className="w-24 rounded border border-stone-300 px-2 py-1 font-mono"
-        />
-      </label>
-      <label className="flex flex-col">
-        <span className="text-xs text-stone-500">absolute, voltages (V)</span>
-        <input
-          name="absVoltage"
-          defaultValue={query.absVoltage ?? ""}
-          placeholder={String(DEFAULT_TOLERANCE.absVoltage)}
-          className="w-24 rounded border border-stone-300 px-2 py-1 font-mono"
-        />
-      </label>
+      {(
+        [
+          ["from", "from (older)", fromId],
+          ["to", "to (newer)", toId],
+        ] as const
+      ).map(([name, label, value]) => (
+        <label key={name} className="flex flex-col">
+          <span className="text-xs text-stone-500">{label}</span>
+          <select
+            name={name}
+            defaultValue={value ?? ""}
+            className="rounded border border-stone-300 px-2 py-1 font-mono"
+          >
+            {history.map((c) => (
+              <option key={c.id} value={c.id}>
+                {short(c.id)} {c.message.slice(0, 40)}
+              </option>
+            ))}
+          </select>
+        </label>
+      ))}
+      {TOLERANCES.map(([name, label]) => (
+        <label key={name} className="flex flex-col">
+          <span className="text-xs text-stone-500">{label}</span>
+          <input
+            name={name}
+            defaultValue={query[name] ?? ""}
+            placeholder={String(DEFAULT_TOLERANCE[name])}
+            className="w-24 rounded border border-stone-300 px-2 py-1 font-mono"
+          />
+        </label>
+      ))}
       <input type="hidden" name="view" value={view} />
       <button type="submit" className="rounded bg-moss-600 px-3 py-1 text-white hover:bg-moss-700">
         Compare

@@ -12,7 +12,6 @@ import { formatValue } from "@/app/lib/format";
 import { useNotation } from "@/app/ui/notation";
 import { themeColour } from "@/app/ui/theme";
 import { axisTitle } from "./axis";
-import { downloadBlob, downloadText, fileStem, svgToPng } from "./download";
 import { heatMapSvg } from "./heat-map-svg";
 import { labelEvery, mapColour, mapPosition, mapStops } from "./map-colour";
 import { PlotDownloads } from "./plot-downloads";
@@ -120,7 +119,6 @@ export function HeatMap({ title, values, rows, cols, value }: HeatMapProps) {
       ink: themeColour("stone-ink"),
       unknown: themeColour("stone-200"),
     });
-  const stem = fileStem(title);
   const csv = () => {
     const quote = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
     const head = [`${rows.label} \\ ${cols.label}`, ...cols.ticks].map(quote).join(",");
@@ -129,7 +127,7 @@ export function HeatMap({ title, values, rows, cols, value }: HeatMapProps) {
         ",",
       ),
     );
-    downloadText(`${stem}.csv`, "text/csv", [`# ${axisTitle(value)}`, head, ...lines].join("\n") + "\n");
+    return [`# ${axisTitle(value)}`, head, ...lines].join("\n") + "\n";
   };
 
   return (
@@ -227,15 +225,7 @@ export function HeatMap({ title, values, rows, cols, value }: HeatMapProps) {
       <p className="tabular h-4 text-xs text-stone-700" data-slot="map-readout">
         {readout}
       </p>
-      <PlotDownloads
-        title={title}
-        svg={() => downloadText(`${stem}.svg`, "image/svg+xml", svgOf().svg)}
-        png={async () => {
-          const s = svgOf();
-          downloadBlob(`${stem}.png`, await svgToPng(s.svg, s.width, s.height));
-        }}
-        csv={csv}
-      />
+      <PlotDownloads title={title} picture={svgOf} csv={csv} />
     </figure>
   );
 }

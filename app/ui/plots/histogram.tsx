@@ -14,7 +14,6 @@ import { formatValue } from "@/app/lib/format";
 import { useNotation } from "@/app/ui/notation";
 import { curveColour, themeColour, withAlpha } from "@/app/ui/theme";
 import { axisTitle, tickLabels } from "./axis";
-import { downloadBlob, downloadText, fileStem, svgToPng } from "./download";
 import { histogramBins } from "./histogram-bins";
 import { plotCsv } from "./plot-data";
 import { PlotDownloads } from "./plot-downloads";
@@ -121,7 +120,6 @@ export function Histogram({ title, values, axis, markers = NO_MARKERS, height = 
       ink: themeColour("stone-ink"),
       grid: themeColour("stone-300"),
     });
-  const stem = fileStem(title);
   return (
     <figure className="space-y-1" data-slot="histogram">
       <figcaption className="text-sm font-medium text-stone-800">{title}</figcaption>
@@ -133,14 +131,9 @@ export function Histogram({ title, values, axis, markers = NO_MARKERS, height = 
       ) : null}
       <PlotDownloads
         title={title}
-        svg={() => downloadText(`${stem}.svg`, "image/svg+xml", svgOf())}
-        png={async () => downloadBlob(`${stem}.png`, await svgToPng(svgOf(), 900, 420))}
+        picture={() => ({ svg: svgOf(), width: 900, height: 420 })}
         csv={() =>
-          downloadText(
-            `${stem}.csv`,
-            "text/csv",
-            plotCsv("bin from", ["bin to", "samples"], bins.edges.slice(0, -1), [bins.edges.slice(1), bins.counts]),
-          )
+          plotCsv("bin from", ["bin to", "samples"], bins.edges.slice(0, -1), [bins.edges.slice(1), bins.counts])
         }
       />
     </figure>

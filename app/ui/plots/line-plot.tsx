@@ -19,7 +19,6 @@ import { useNotation } from "@/app/ui/notation";
 import { curveColour, themeColour, withAlpha } from "@/app/ui/theme";
 import { alignMarks } from "./align-marks";
 import { axisTitle, INTEGER_INCREMENTS, tickLabels } from "./axis";
-import { downloadBlob, downloadText, fileStem, svgToPng } from "./download";
 import { isDecade, logRange, logSplits } from "./log-ticks";
 import { plotColumns, plotCsv, type Cell } from "./plot-data";
 import { PlotDownloads } from "./plot-downloads";
@@ -179,18 +178,11 @@ export function LinePlot({
       grid: themeColour("stone-300"),
     });
   };
-  const stem = fileStem(title);
   const csv = () => {
     const raw = alignMarks(x, curves, marks);
     const unitOf = (label: string) => (yAxis.unit ? `${label} (${yAxis.unit})` : label);
-    downloadText(
-      `${stem}.csv`,
-      "text/csv",
-      plotCsv(axisTitle(xAxis), [...curves.map((c) => unitOf(c.label)), ...marks.map((m) => unitOf(m.label))], raw.x, [
-        ...raw.curves,
-        ...raw.marks,
-      ] as Cell[][]),
-    );
+    const labels = [...curves.map((c) => unitOf(c.label)), ...marks.map((m) => unitOf(m.label))];
+    return plotCsv(axisTitle(xAxis), labels, raw.x, [...raw.curves, ...raw.marks] as Cell[][]);
   };
 
   return (
@@ -215,12 +207,7 @@ export function LinePlot({
             : ""}
         </p>
       ) : null}
-      <PlotDownloads
-        title={title}
-        svg={() => downloadText(`${stem}.svg`, "image/svg+xml", svgOf())}
-        png={async () => downloadBlob(`${stem}.png`, await svgToPng(svgOf(), 900, 420))}
-        csv={csv}
-      />
+      <PlotDownloads title={title} picture={() => ({ svg: svgOf(), width: 900, height: 420 })} csv={csv} />
     </figure>
   );
 }

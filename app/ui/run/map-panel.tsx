@@ -14,6 +14,7 @@ import { useFormat } from "@/app/ui/notation";
 import { quantityLabel } from "@/app/ui/plots/axis";
 import { HeatMap, type MapAxis } from "@/app/ui/plots/heat-map";
 import { meanOverSamples, paramUnit, probeUnit } from "./sweep-values";
+import { OptionSelect } from "./option-select";
 
 interface MapSpec {
   key: string;
@@ -91,21 +92,13 @@ export function MapPanel({ point, series }: { point: PointData; series: SeriesVi
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
-        <label className="flex min-w-0 items-center gap-2">
-          map of
-          <select
-            value={m.key}
-            onChange={(e) => setKey(e.target.value)}
-            className="min-w-0 max-w-full rounded border border-stone-300 bg-white px-1 py-0.5"
-            aria-label="Map of"
-          >
-            {maps.map((x) => (
-              <option key={x.key} value={x.key}>
-                {x.label}
-              </option>
-            ))}
-          </select>
-        </label>
+        <OptionSelect
+          word="map of"
+          label="Map of"
+          value={m.key}
+          options={maps.map((x) => ({ value: x.key, text: x.label }))}
+          onChange={setKey}
+        />
         <label className="flex items-center gap-1">
           <input
             type="checkbox"

@@ -1,3 +1,5 @@
+import { OptionSelect } from "./option-select";
+
 /** "probe [select]": which of the run's probes a view shows. */
 export function ProbeSelect({
   probes,
@@ -11,20 +13,12 @@ export function ProbeSelect({
   label: string;
 }) {
   return (
-    <label className="flex items-center gap-2">
-      probe
-      <select
-        value={value}
-        onChange={(e) => onChange(Number(e.target.value))}
-        className="rounded border border-stone-300 bg-white px-1 py-0.5"
-        aria-label={label}
-      >
-        {probes.map((p, i) => (
-          <option key={p} value={i}>
-            {p}
-          </option>
-        ))}
-      </select>
-    </label>
+    <OptionSelect
+      word="probe"
+      label={label}
+      value={String(value)}
+      options={probes.map((p, i) => ({ value: String(i), text: p }))}
+      onChange={(v) => onChange(Number(v))}
+    />
   );
 }

@@ -16,6 +16,7 @@ import { measuredMarks, type BenchData } from "./bench-data";
 import { BenchDataSelect } from "./bench-data-select";
 import { BenchFigures } from "./bench-figures";
 import { ProbeSelect } from "./probe-select";
+import { OptionSelect } from "./option-select";
 import {
   defaultLog,
   meanOverSamples,
@@ -148,21 +149,13 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
           <div className="flex flex-wrap items-center gap-4 text-sm">
             <ProbeSelect probes={series.probes} value={probe} onChange={setProbe} label="Probe to plot" />
             {series.sweeps.length > 1 ? (
-              <label className="flex items-center gap-2">
-                along
-                <select
-                  value={xSweep}
-                  onChange={(e) => setXSweep(Number(e.target.value))}
-                  className="rounded border border-stone-300 bg-white px-1 py-0.5"
-                  aria-label="Sweep along the x axis"
-                >
-                  {series.sweeps.map((sw, k) => (
-                    <option key={sw.param} value={k}>
-                      {sw.param}
-                    </option>
-                  ))}
-                </select>
-              </label>
+              <OptionSelect
+                word="along"
+                label="Sweep along the x axis"
+                value={String(xSweep)}
+                options={series.sweeps.map((sw, k) => ({ value: String(k), text: sw.param }))}
+                onChange={(v) => setXSweep(Number(v))}
+              />
             ) : null}
             <label className="flex items-center gap-1">
               <input type="checkbox" checked={logX} onChange={(e) => setLogX(e.target.checked)} /> log {plot.xLabel}

@@ -9,6 +9,7 @@ import type { Curve } from "@/app/ui/plots/plot-types";
 import { measuredMarks, siUnit, type BenchData } from "./bench-data";
 import { BenchDataSelect } from "./bench-data-select";
 import { BenchFigures } from "./bench-figures";
+import { OptionSelect } from "./option-select";
 
 /** The probe stem of a profile overlay's `against` ("i{k}" → "i"), else null. */
 function profileStem(against: string): string | null {
@@ -92,21 +93,13 @@ export function ProfilePanel({ point, bench, probeUnits }: ProfilePanelProps) {
   return (
     <div className="space-y-2">
       <div className="flex flex-wrap items-center gap-4 text-sm">
-        <label className="flex items-center gap-2">
-          profile of
-          <select
-            value={g.key}
-            onChange={(e) => setKey(e.target.value)}
-            className="rounded border border-stone-300 bg-white px-1 py-0.5"
-            aria-label="Profile of"
-          >
-            {groups.map((x) => (
-              <option key={x.key} value={x.key}>
-                {x.label} ({x.index.length})
-              </option>
-            ))}
-          </select>
-        </label>
+        <OptionSelect
+          word="profile of"
+          label="Profile of"
+          value={g.key}
+          options={groups.map((x) => ({ value: x.key, text: `${x.label} (${x.index.length})` }))}
+          onChange={setKey}
+        />
         <label className="flex items-center gap-1">
           <input type="checkbox" checked={log} onChange={(e) => setLog(e.target.checked)} /> log axis
         </label>
