@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { formatDuration, formatEng, formatNumber } from "@/app/lib/format";
+import { formatDuration, formatEng, formatNumber, formatValue, plotPrecision } from "@/app/lib/format";
 
 describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th ed. 2019, prefix table)", () => {
   it.each([
@@ -33,5 +33,18 @@ describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th
     expect(formatDuration(850)).toBe("850 ms");
     expect(formatDuration(12_400)).toBe("12.4 s");
     expect(formatDuration(185_000)).toBe("3 min 5 s");
+  });
+});
+
+describe("plotPrecision (values sent for plots)", () => {
+  it("keeps 7 significant digits of fractions, leaves integers and non-finite values, and reads the same at 4", () => {
+    const values = [1.2345678912345e-21, -0.7213456789, 12345.678901, 3, 0, -42];
+    const sent = JSON.parse(JSON.stringify({ values, nan: NaN }, plotPrecision)) as { values: number[] };
+    expect(sent.values).toEqual([1.234568e-21, -0.7213457, 12345.68, 3, 0, -42]);
+    for (let i = 0; i < values.length; i++)
+      expect(formatValue(sent.values[i], "A")).toBe(formatValue(values[i], "A"));
+    // what a solver writes: 16-17 significant digits
+    const solved = Array.from({ length: 1000 }, (_, k) => Math.exp(-k / 37) * 1e-9);
+    expect(JSON.stringify(solved, plotPrecision).length).toBeLessThan(JSON.stringify(solved).length * 0.6);
   });
 });
