@@ -151,3 +151,14 @@ test("the structure view lists a node's devices and draws a small network", asyn
   await page.getByRole("tab", { name: "Text" }).click();
   await expect(page.locator(".cm-content")).toContainText("network");
 });
+
+test("the compare page sets two commits' mismatch budgets side by side", async ({ page }) => {
+  await signIn(page, "reviewer@larkspur.example");
+  await page.goto("/w/lm64-edge-row/n/divider-mismatch-study/compare");
+  const section = page.locator("[data-slot=sensitivity-changes]");
+  await section.getByRole("button", { name: "Compare the mismatch budgets" }).click();
+  const table = section.getByRole("table", { name: "Sensitivity changes" });
+  await expect(table.locator("tr[data-probe=lnratio]")).toContainText(/m[12]/);
+  await expect(section).toContainText("First-order model estimates");
+  await section.screenshot({ path: "test-results/browser/notebook-sensitivity-changes.png" });
+});

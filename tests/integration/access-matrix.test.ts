@@ -267,6 +267,7 @@ const ROUTES: RouteRow[] = [
   { file: "app/api/networks/[id]/commits/route.ts",     method: "POST",   url: "/api/networks/{networkId}/commits", params: { id: "{networkId}" }, setup: withRun,
                                                         body: { parent: "{commitId}", text: `${DIVIDER}# wider tail next\n`, message: "note" },   expect: [401, 404, 403, 403, 201, 201] },
   { file: "app/api/commits/[id]/route.ts",              method: "GET",    url: "/api/commits/{commitId}", params: { id: "{commitId}" }, setup: withRun, expect: [401, 404, 200, 200, 200, 200] },
+  { file: "app/api/commits/[id]/sensitivity/route.ts",  method: "GET",    url: "/api/commits/{commitId}/sensitivity", params: { id: "{commitId}" }, setup: withRun, expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/commits/[id]/structure/route.ts",    method: "GET",    url: "/api/commits/{commitId}/structure?q=x", params: { id: "{commitId}" }, setup: withRun, expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/runs/route.ts",                      method: "GET",    url: "/api/runs?commit={commitId}", setup: withRun,                 expect: [401, 404, 200, 200, 200, 200] },
   { file: "app/api/runs/route.ts",                      method: "POST",   url: "/api/runs", body: { commit: "{commitId}" }, setup: withRun,   expect: [401, 404, 403, 201, 201, 201] },

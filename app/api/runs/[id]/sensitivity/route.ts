@@ -1,17 +1,13 @@
 import { z } from "zod";
 import { commitAccess, requestActor, runAccess } from "@/app/lib/access";
 import { handle, parseInput, queryOf } from "@/app/lib/http";
-import { sensitivityInWorker } from "@/app/lib/interactive";
-import { sensitivityCsv, type SensitivityView } from "@/app/lib/sensitivity-view";
+import { commitSensitivity } from "@/app/lib/sensitivity-cache";
+import { sensitivityCsv } from "@/app/lib/sensitivity-view";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
 
 const Query = z.object({ format: z.enum(["json", "csv"]).default("json") });
-
-/** Views by commit (a commit's text never changes), the newest few kept. */
-const CACHE_SIZE = 16;
-const cache = new Map<string, Promise<SensitivityView>>();
 
 /**
  * GET /api/runs/[id]/sensitivity[?format=json|csv] (workspace.read): the adjoint sensitivities of every probe of
@@ -24,14 +20,7 @@ export function GET(request: Request, ctx: Ctx) {
     const { run } = runAccess(actor, "workspace.read", (await ctx.params).id);
     const q = parseInput(Query, queryOf(request));
     const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
-    let view = cache.get(commit.id);
-    if (!view) {
-      view = sensitivityInWorker(commit.text);
-      view.catch(() => cache.delete(commit.id));
-      if (cache.size >= CACHE_SIZE) cache.delete(cache.keys().next().value!);
-      cache.set(commit.id, view);
-    }
-    const v = await view;
+    const v = await commitSensitivity(commit);
     if (q.format === "csv")
       return new Response(sensitivityCsv(v), {
         headers: {

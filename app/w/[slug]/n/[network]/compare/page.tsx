@@ -10,6 +10,7 @@ import { runsOfCommit } from "@/app/lib/review/run-tables";
 import { handleOf, listThreads } from "@/app/lib/review/threads";
 import { listMembers } from "@/app/lib/members";
 import { CommitHistory } from "@/app/ui/compare/commit-history";
+import { SensitivityChanges } from "@/app/ui/compare/sensitivity-changes";
 import { CommitThreads } from "@/app/ui/compare/commit-threads";
 import { ComparisonForm } from "@/app/ui/compare/comparison-form";
 import { ExpectationsSection } from "@/app/ui/compare/expectations-section";
@@ -135,6 +136,7 @@ export default async function ComparePage({ params, searchParams }: Props) {
             changes={cmp.expectations}
             labels={[`before · ${short(cmp.from.id)}`, `after · ${short(cmp.to.id)}`]}
           />
+          <SensitivityChanges fromId={cmp.from.id} toId={cmp.to.id} />
           <ResultsDiffSection
             comparison={cmp}
             analyses={analyses}
