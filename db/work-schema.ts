@@ -16,6 +16,7 @@
  *   node, device, rail, probe and param names, fixed when the run starts).
  */
 import { blob, index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import type { SeekJson } from "../src/solver/design-json";
 import type { ExpectationSummary } from "../src/solver/expectation-summary";
 import { createdAt, nowMs, timestamp, users, workspaceRef } from "./base-schema";
 import { RUN_STATES } from "./run-states";
@@ -291,4 +292,31 @@ export const workerTokens = sqliteTable(
     // a workspace's token list
     index("worker_tokens_workspace_idx").on(t.workspaceId),
   ],
+);
+
+/**
+ * A goal-seek a member asked for on a finished run's network (POST /api/runs/[id]/seek): what was asked and
+ * what Brent's method found, kept with the run so the review sees the same answer. Never changed.
+ */
+export const runSeeks = sqliteTable(
+  "run_seeks",
+  {
+    id: text("id").primaryKey(),
+    runId: text("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    createdBy: text("created_by")
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    /** JSON: `{ param, low, high, probe, target }` in SI units. */
+    spec: text("spec", { mode: "json" })
+      .notNull()
+      .$type<{ param: string; low: number; high: number; probe: string; target: number }>(),
+    /** JSON: the searches, one per point of the other sweeps (src/solver/design-json.ts SeekJson). */
+    seeks: text("seeks", { mode: "json" }).notNull().$type<SeekJson[]>(),
+    /** Why nothing was searched (the network does not elaborate, too many searches…); null when searched. */
+    error: text("error"),
+  },
+  (t) => [index("run_seeks_run_idx").on(t.runId, t.createdAt)],
 );

@@ -205,6 +205,12 @@ test("the Goal-seek view of the demo's spreading row: the file's seek found, and
   await page.getByRole("button", { name: "Seek", exact: true }).click();
   await expect(page.getByTestId("goal-seek")).toContainText("vh giving lambda = 5: found", { timeout: 30_000 });
   await shot(page, "goal-seek");
+  // kept with the run: after a reload it is still listed, with who asked
+  await page.reload();
+  await page.getByRole("tab", { name: "Goal-seek" }).click();
+  const asked = page.getByRole("region", { name: "Seeks asked on this run" });
+  await expect(asked).toContainText("vh giving lambda = 5: found", { timeout: 30_000 });
+  await expect(asked).toContainText("by Teo Brandt");
 });
 
 test("an owner archives a network, finds it under Archived networks and restores it", async ({ page }) => {

@@ -102,7 +102,7 @@ describe("the Goal-seek view's route", () => {
     const net = elaborate(text).network!;
     const s = net.seeks[0];
     const direct = seekJson(net, { param: s.param, low: s.from, high: s.to, probe: s.probe, target: s.target });
-    expect(r.json).toEqual(JSON.parse(JSON.stringify({ ok: true, seeks: [direct] })));
+    expect(r.json).toEqual(JSON.parse(JSON.stringify({ ok: true, seeks: [direct], asked: [] })));
     expect(direct.points[0]).toMatchObject({ ok: true });
   });
 
@@ -123,6 +123,14 @@ describe("the Goal-seek view's route", () => {
     const seek = (r.json as { seeks: { points: { ok: boolean; reason?: string; range?: unknown }[] }[] }).seeks[0];
     expect(seek.points[0]).toMatchObject({ ok: false, reason: "no-sign-change" });
     expect(seek.points[0].range).toBeDefined();
+    // kept with the run: a viewer reads it, with who asked
+    const listed = await call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
+    const asked = (listed.json as { asked: { id: string; createdByName: string; spec: unknown; view: unknown }[] })
+      .asked;
+    expect(asked.map((a) => a.id)).toEqual([(r.json as { id: string }).id]);
+    expect(asked[0].spec).toEqual(spec);
+    expect(asked[0].view).toEqual({ ok: true, seeks: (r.json as { seeks: unknown[] }).seeks });
+    expect(asked[0].createdByName).toBeTruthy();
     const bad = await call(
       "designer",
       "runs/[id]/seek/route",
@@ -135,6 +143,9 @@ describe("the Goal-seek view's route", () => {
       },
     );
     expect(bad.status).toBe(400);
+    // a refused request stores nothing
+    const again = await call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
+    expect((again.json as { asked: unknown[] }).asked).toHaveLength(1);
   });
 
   it("refuses a seek that would run more searches than the view allows, naming the command line", () => {

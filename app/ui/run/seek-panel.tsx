@@ -8,6 +8,7 @@
 import { useState } from "react";
 import useSWR from "swr";
 import { formatEng } from "@/app/lib/format";
+import type { StoredSeek } from "@/app/lib/run-seeks";
 import type { SeekView } from "@/app/lib/sensitivity-view";
 import type { SeekJson } from "@/src/solver/design-json";
 import { getJson, sendJson } from "@/app/ui/fetch";
@@ -75,9 +76,10 @@ function SeekResult({ view }: { view: SeekView }) {
 }
 
 export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean }) {
-  const stated = useSWR<SeekView>(`/api/runs/${runId}/seek`, getJson, { revalidateOnFocus: false });
+  const stated = useSWR<SeekView & { asked: StoredSeek[] }>(`/api/runs/${runId}/seek`, getJson, {
+    revalidateOnFocus: false,
+  });
   const [form, setForm] = useState({ param: "", low: "", high: "", probe: "", target: "" });
-  const [asked, setAsked] = useState<SeekView | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
   async function seek() {
@@ -88,7 +90,19 @@ export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean })
       const spec = { ...form, low: num(form.low), high: num(form.high), target: num(form.target) };
       if (![spec.low, spec.high, spec.target].every(Number.isFinite))
         throw new Error("low, high and target must be numbers in SI units (e.g. 0.65, 2e-9)");
-      setAsked(await sendJson<SeekView>("POST", `/api/runs/${runId}/seek`, spec));
+      const answer = await sendJson<SeekView & { id: string }>("POST", `/api/runs/${runId}/seek`, spec);
+      // Kept with the run: it heads the list every member sees.
+      await stated.mutate(
+        (d) =>
+          d && {
+            ...d,
+            asked: [
+              { id: answer.id, createdAt: Date.now(), createdByName: "you", spec, view: answer },
+              ...d.asked.filter((a) => a.id !== answer.id),
+            ],
+          },
+        { revalidate: false },
+      );
     } catch (e) {
       setProblem((e as Error).message);
     } finally {
@@ -142,7 +156,20 @@ export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean })
         </form>
       ) : null}
       {problem ? <p className="text-ember-500">{problem}</p> : null}
-      {asked ? <SeekResult view={asked} /> : null}
+      {stated.data?.asked.length ? (
+        <section aria-label="Seeks asked on this run" className="space-y-3">
+          <h3 className="font-medium text-stone-800">Asked on this run</h3>
+          {stated.data.asked.map((a) => (
+            <div key={a.id} className="space-y-1 border-t border-stone-100 pt-2" data-seek={a.id}>
+              <p className="text-xs text-stone-500">
+                by {a.createdByName} · {new Date(a.createdAt).toLocaleString("en-GB")} · {a.spec.param} in [{a.spec.low}
+                , {a.spec.high}]
+              </p>
+              <SeekResult view={a.view} />
+            </div>
+          ))}
+        </section>
+      ) : null}
     </div>
   );
 }
