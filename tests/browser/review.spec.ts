@@ -163,3 +163,16 @@ test("a designer sees the bench data against the run, and a bad CSV is refused w
   await expect(page.getByRole("tabpanel", { name: "Probes" }).getByLabel("Bench data", { exact: true })).toHaveCount(0);
   expect(errors).toEqual([]);
 });
+
+test("the demo's seeded sweep review: its compare page overlays both runs along the sweep", async ({ page }) => {
+  await signIn(page, "reviewer@larkspur.example");
+  await page.goto("/w/lm64-edge-row/n/bias-sweep/compare");
+  const sweep = page.locator("article[data-analysis]").first();
+  await expect(sweep).toContainText("values");
+  const overlay = sweep.locator("figure[data-overlay]").first();
+  await expect(overlay.locator("[data-slot=plot] canvas").first()).toBeVisible({ timeout: 30_000 });
+  // the overlay draws both runs: before and after in its legend
+  await expect(overlay.locator(".u-legend").first()).toContainText("before");
+  await expect(overlay.locator(".u-legend").first()).toContainText("after");
+  await shot(page, "seeded-sweep-overlay");
+});
