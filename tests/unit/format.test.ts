@@ -41,8 +41,7 @@ describe("plotPrecision (values sent for plots)", () => {
     const values = [1.2345678912345e-21, -0.7213456789, 12345.678901, 3, 0, -42];
     const sent = JSON.parse(JSON.stringify({ values, nan: NaN }, plotPrecision)) as { values: number[] };
     expect(sent.values).toEqual([1.234568e-21, -0.7213457, 12345.68, 3, 0, -42]);
-    for (let i = 0; i < values.length; i++)
-      expect(formatValue(sent.values[i], "A")).toBe(formatValue(values[i], "A"));
+    for (let i = 0; i < values.length; i++) expect(formatValue(sent.values[i], "A")).toBe(formatValue(values[i], "A"));
     // what a solver writes: 16-17 significant digits
     const solved = Array.from({ length: 1000 }, (_, k) => Math.exp(-k / 37) * 1e-9);
     expect(JSON.stringify(solved, plotPrecision).length).toBeLessThan(JSON.stringify(solved).length * 0.6);

@@ -6,7 +6,6 @@ import { comparisonSeries, prepareComparisons } from "@/app/lib/review/compare-d
 
 export const dynamic = "force-dynamic";
 
-
 const Query = z.object({
   from: z.string().min(1, "name the older commit"),
   to: z.string().min(1, "name the newer commit"),
