@@ -162,3 +162,46 @@ test("the compare page sets two commits' mismatch budgets side by side", async (
   await expect(section).toContainText("First-order model estimates");
   await section.screenshot({ path: "test-results/browser/notebook-sensitivity-changes.png" });
 });
+
+test("in the editor Enter breaks the line, } steps over, and current( offers the devices", async ({ page }) => {
+  await signIn(page);
+  await page.goto("/w/lm64-edge-row");
+  await page.getByLabel("Upload a .runnel file").setInputFiles({
+    name: "keys.runnel",
+    mimeType: "text/plain",
+    buffer: Buffer.from("network keys\nrail vdd = 1.8\nrail gnd = 0\nnfet m1 gate=vdd source=x drain=gnd\n"),
+  });
+  await expect(page).toHaveURL(/\/w\/lm64-edge-row\/n\/keys(-\d+)?$/);
+  const editor = page.locator(".cm-content");
+  await expect(editor).toContainText("network keys");
+  await editor.click();
+  await page.keyboard.press("ControlOrMeta+End");
+  // a completion list is open after "probe v = volt"; Enter breaks the line instead of accepting
+  await page.keyboard.type("probe v = volt");
+  await expect(page.locator(".cm-tooltip-autocomplete")).toBeVisible();
+  await page.waitForTimeout(200); // a person reads the list first (the editor ignores keys just after it opens)
+  await page.keyboard.press("Enter");
+  await page.keyboard.type("# next");
+  const text = () => editor.evaluate((el) => (el as HTMLElement).innerText);
+  expect(await text()).toMatch(/probe v = volt\n# next/);
+  // Tab accepts the first option, and current( opens the list of devices, injects and rails
+  await page.keyboard.press("Enter");
+  await page.keyboard.type("probe w = curr");
+  await expect(page.locator(".cm-tooltip-autocomplete")).toBeVisible();
+  await page.waitForTimeout(200);
+  await page.keyboard.press("Tab");
+  await expect(page.locator(".cm-tooltip-autocomplete")).toContainText("m1");
+  await page.keyboard.press("Escape");
+  expect(await text()).toMatch(/probe w = current\(\)/);
+  // a typed } after the inserted one: one brace, on its own line
+  await page.keyboard.press("ControlOrMeta+End");
+  await page.keyboard.press("Enter");
+  await page.keyboard.type("for k in 0..2 {");
+  await page.keyboard.press("Enter");
+  await page.keyboard.type("nfet a{k} gate=vdd source=y{k} drain=gnd");
+  await page.keyboard.press("Enter");
+  await page.keyboard.type("}");
+  const after = await text();
+  expect(after.match(/\}/g)?.length).toBe(3); // a{k}, y{k} and the block's one brace
+  expect(after.trimEnd()).toMatch(/drain=gnd\n\}$/);
+});
