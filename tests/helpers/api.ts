@@ -2,7 +2,10 @@
  * Calls route handlers in-process as one of the fixture's actors (session
  * cookie), JSON in and out, as a browser on the site's own origin would.
  */
-import type { AccountsFixture, Who } from "./accounts";
+import { afterAll, beforeAll } from "vitest";
+import type { DB } from "@/db";
+import { closeInteractivePool } from "@/app/lib/interactive";
+import { buildAccountsFixture, type AccountsFixture, type Who } from "./accounts";
 import { SITE } from "./request-context";
 
 type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
@@ -40,5 +43,41 @@ export function apiCaller(fixture: AccountsFixture) {
       json = { text };
     }
     return { status: res.status, json, text, headers: res.headers };
+  };
+}
+
+/**
+ * A test file's demo database and its callers: the accounts fixture built and copied before the file's tests, the
+ * interactive pool closed and the fixture removed after them. Call it at the file's top level (it registers the
+ * hooks); read `db` and `call` inside tests. The file still mocks next/headers and next/cache itself (vi.mock is
+ * hoisted per file).
+ */
+export function apiFixtureForFile(): {
+  readonly db: DB;
+  readonly call: ReturnType<typeof apiCaller>;
+  readonly fixture: AccountsFixture;
+} {
+  let fixture: AccountsFixture | undefined;
+  let d: DB | undefined;
+  let call: ReturnType<typeof apiCaller> | undefined;
+  beforeAll(() => {
+    fixture = buildAccountsFixture();
+    d = fixture.useCopy();
+    call = apiCaller(fixture);
+  });
+  afterAll(async () => {
+    await closeInteractivePool();
+    fixture?.dispose();
+  });
+  return {
+    get db() {
+      return d!;
+    },
+    get call() {
+      return call!;
+    },
+    get fixture() {
+      return fixture!;
+    },
   };
 }

@@ -6,12 +6,10 @@
  * its size limit with a clear message instead of computing it.
  */
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import type { DB } from "@/db";
+import { describe, expect, it, vi } from "vitest";
 import { commits, networks, runs } from "@/db/schema";
 import { elaborate } from "@/src/lang/index";
 import { seekJson, sensitivityJson } from "@/src/solver/design-json";
-import { closeInteractivePool } from "@/app/lib/interactive";
 import {
   SEEK_MAX_SEARCHES,
   SENSITIVITY_MAX_DEVICES,
@@ -20,29 +18,16 @@ import {
   sensitivityView,
 } from "@/app/lib/sensitivity-view";
 import { chainText } from "@/bench/workloads";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
-import { apiCaller } from "../helpers/api";
+import { apiFixtureForFile } from "../helpers/api";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-let fixture: AccountsFixture;
-let db: DB;
-let call: ReturnType<typeof apiCaller>;
-
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-  call = apiCaller(fixture);
-});
-afterAll(async () => {
-  await closeInteractivePool();
-  fixture.dispose();
-});
+const t = apiFixtureForFile();
 
 /** The newest seeded run of the demo network `name`, with its commit's text. */
 function demoRun(name: string): { runId: string; text: string } {
-  const row = db
+  const row = t.db
     .select({ runId: runs.id, text: commits.text })
     .from(runs)
     .innerJoin(commits, eq(commits.id, runs.commitId))
@@ -54,7 +39,7 @@ function demoRun(name: string): { runId: string; text: string } {
 }
 
 const get = (runId: string, query = "") =>
-  call("viewer", "runs/[id]/sensitivity/route", "GET", `/api/runs/${runId}/sensitivity${query}`, { id: runId });
+  t.call("viewer", "runs/[id]/sensitivity/route", "GET", `/api/runs/${runId}/sensitivity${query}`, { id: runId });
 
 describe("the Sensitivity view's route", () => {
   it("gives the core's sensitivities and budget of the run's network, with the Monte Carlo σ beside it", async () => {
@@ -75,9 +60,15 @@ describe("the Sensitivity view's route", () => {
 
   it("downloads the same as CSV: one row per probe and listed device, then the budget", async () => {
     const { runId } = demoRun("Divider mismatch study");
-    const r = await call("viewer", "runs/[id]/sensitivity/route", "GET", `/api/runs/${runId}/sensitivity?format=csv`, {
-      id: runId,
-    });
+    const r = await t.call(
+      "viewer",
+      "runs/[id]/sensitivity/route",
+      "GET",
+      `/api/runs/${runId}/sensitivity?format=csv`,
+      {
+        id: runId,
+      },
+    );
     expect(r.status).toBe(200);
     const csv = r.text;
     expect(csv.split("\n")[0]).toBe("probe,kind,name,vt_per_mv,size,budget_share,budget_sigma");
@@ -97,7 +88,7 @@ describe("the Sensitivity view's route", () => {
 describe("the Goal-seek view's route", () => {
   it("gives the file's seek statements as the core finds them: the demo spreading row's lateral gate for 6 taps", async () => {
     const { runId, text } = demoRun("LM-64 spreading row");
-    const r = await call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
+    const r = await t.call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
     expect(r.status).toBe(200);
     const net = elaborate(text).network!;
     const s = net.seeks[0];
@@ -109,7 +100,7 @@ describe("the Goal-seek view's route", () => {
   it("runs a seek a member asks for; a viewer may not, and a bracket without a crossing says the probe's range", async () => {
     const { runId } = demoRun("LM-64 spreading row");
     const spec = { param: "vh", low: 0.65, high: 0.7, probe: "lambda", target: 6 };
-    const asViewer = await call(
+    const asViewer = await t.call(
       "viewer",
       "runs/[id]/seek/route",
       "POST",
@@ -118,20 +109,20 @@ describe("the Goal-seek view's route", () => {
       spec,
     );
     expect(asViewer.status).toBe(403);
-    const r = await call("designer", "runs/[id]/seek/route", "POST", `/api/runs/${runId}/seek`, { id: runId }, spec);
+    const r = await t.call("designer", "runs/[id]/seek/route", "POST", `/api/runs/${runId}/seek`, { id: runId }, spec);
     expect(r.status).toBe(200);
     const seek = (r.json as { seeks: { points: { ok: boolean; reason?: string; range?: unknown }[] }[] }).seeks[0];
     expect(seek.points[0]).toMatchObject({ ok: false, reason: "no-sign-change" });
     expect(seek.points[0].range).toBeDefined();
     // kept with the run: a viewer reads it, with who asked
-    const listed = await call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
+    const listed = await t.call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
     const asked = (listed.json as { asked: { id: string; createdByName: string; spec: unknown; view: unknown }[] })
       .asked;
     expect(asked.map((a) => a.id)).toEqual([(r.json as { id: string }).id]);
     expect(asked[0].spec).toEqual(spec);
     expect(asked[0].view).toEqual({ ok: true, seeks: (r.json as { seeks: unknown[] }).seeks });
     expect(asked[0].createdByName).toBeTruthy();
-    const bad = await call(
+    const bad = await t.call(
       "designer",
       "runs/[id]/seek/route",
       "POST",
@@ -144,7 +135,7 @@ describe("the Goal-seek view's route", () => {
     );
     expect(bad.status).toBe(400);
     // a refused request stores nothing
-    const again = await call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
+    const again = await t.call("viewer", "runs/[id]/seek/route", "GET", `/api/runs/${runId}/seek`, { id: runId });
     expect((again.json as { asked: unknown[] }).asked).toHaveLength(1);
   });
 

@@ -7,34 +7,19 @@
  * (κ/U_T)·√2·A_VT/√(WL) before.
  */
 import fs from "node:fs";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import type { DB } from "@/db";
-import { closeInteractivePool } from "@/app/lib/interactive";
+import { describe, expect, it, vi } from "vitest";
 import { commitText, createNetwork } from "@/app/lib/networks";
 import { compareSensitivities } from "@/app/lib/review/sensitivity-compare";
 import type { SensitivityJson } from "@/src/solver/design-json";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
-import { apiCaller } from "../helpers/api";
+import { apiFixtureForFile } from "../helpers/api";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-let fixture: AccountsFixture;
-let db: DB;
-let call: ReturnType<typeof apiCaller>;
-
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-  call = apiCaller(fixture);
-});
-afterAll(async () => {
-  await closeInteractivePool();
-  fixture.dispose();
-});
+const t = apiFixtureForFile();
 
 const get = async (commitId: string) => {
-  const r = await call("viewer", "commits/[id]/sensitivity/route", "GET", `/api/commits/${commitId}/sensitivity`, {
+  const r = await t.call("viewer", "commits/[id]/sensitivity/route", "GET", `/api/commits/${commitId}/sensitivity`, {
     id: commitId,
   });
   expect(r.status).toBe(200);
@@ -46,7 +31,7 @@ describe("sensitivity changes between two commits", () => {
     const text = fs.readFileSync("examples/mismatch.runnel", "utf8");
     const { network, commit } = createNetwork(
       { workspaceId: demoWorkspace(), name: "Pair sizes", text, authorId: "u_designer1" },
-      db,
+      t.db,
     );
     const wider = commitText(
       {
@@ -56,7 +41,7 @@ describe("sensitivity changes between two commits", () => {
         message: "twice as wide and long",
         authorId: "u_designer1",
       },
-      db,
+      t.db,
     );
     const [before, after] = [await get(commit!.id), await get(wider.id)];
     const cmp = compareSensitivities(before, after);
@@ -76,6 +61,6 @@ describe("sensitivity changes between two commits", () => {
 });
 
 function demoWorkspace(): string {
-  const row = db.$client.prepare("select id from workspaces limit 1").get() as { id: string };
+  const row = t.db.$client.prepare("select id from workspaces limit 1").get() as { id: string };
   return row.id;
 }

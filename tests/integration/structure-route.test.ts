@@ -5,40 +5,25 @@
  * counted rows and no drawing; a text with errors is a 422 that says so.
  */
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import type { DB } from "@/db";
+import { describe, expect, it, vi } from "vitest";
 import { commits, networks } from "@/db/schema";
-import { closeInteractivePool } from "@/app/lib/interactive";
 import { createNetwork } from "@/app/lib/networks";
 import { GRAPH_LIMIT, ROW_LIMIT, type StructureView } from "@/app/lib/structure";
 import { chainText } from "@/bench/workloads";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
-import { apiCaller } from "../helpers/api";
+import { apiFixtureForFile } from "../helpers/api";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-let fixture: AccountsFixture;
-let db: DB;
-let call: ReturnType<typeof apiCaller>;
-
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-  call = apiCaller(fixture);
-});
-afterAll(async () => {
-  await closeInteractivePool();
-  fixture.dispose();
-});
+const t = apiFixtureForFile();
 
 const get = (commitId: string, q: string) =>
-  call("viewer", "commits/[id]/structure/route", "GET", `/api/commits/${commitId}/structure?q=${q}`, {
+  t.call("viewer", "commits/[id]/structure/route", "GET", `/api/commits/${commitId}/structure?q=${q}`, {
     id: commitId,
   });
 
 function headOf(name: string): { commitId: string; workspaceId: string } {
-  const n = db.select().from(networks).where(eq(networks.name, name)).get()!;
+  const n = t.db.select().from(networks).where(eq(networks.name, name)).get()!;
   return { commitId: n.headCommitId!, workspaceId: n.workspaceId };
 }
 
@@ -59,8 +44,8 @@ describe("the Structure view's route", () => {
 
   it("answers a 200,000-device chain with capped, counted rows and no drawing", async () => {
     const { workspaceId } = headOf("LM-64 edge row");
-    const authorId = fixture.actors.designer!.userId;
-    const { commit } = createNetwork({ workspaceId, name: "Long chain", text: chainText(100_000), authorId }, db);
+    const authorId = t.fixture.actors.designer!.userId;
+    const { commit } = createNetwork({ workspaceId, name: "Long chain", text: chainText(100_000), authorId }, t.db);
     const r = await get(commit!.id, "n9999");
     expect(r.status).toBe(200);
     const s = (r.json as unknown as { structure: StructureView }).structure;
@@ -78,14 +63,14 @@ describe("the Structure view's route", () => {
 
   it("refuses a text with errors with a 422 that says so", async () => {
     const { workspaceId } = headOf("LM-64 edge row");
-    const authorId = fixture.actors.designer!.userId;
+    const authorId = t.fixture.actors.designer!.userId;
     const { commit } = createNetwork(
       { workspaceId, name: "Broken", text: "network broken\nnfet m gate=nowhere\n", authorId },
-      db,
+      t.db,
     );
     const r = await get(commit!.id, "");
     expect(r.status).toBe(422);
     expect(JSON.stringify(r.json)).toContain("has errors");
-    expect(db.select().from(commits).where(eq(commits.id, commit!.id)).get()).toBeDefined();
+    expect(t.db.select().from(commits).where(eq(commits.id, commit!.id)).get()).toBeDefined();
   });
 });
