@@ -11,10 +11,10 @@
  * Arreguit 1993, docs/physics.md §3 Pseudo-voltages [confirmed]); here it checks that stored values
  * come back from the API unchanged, not the solver, which has its own tests.
  */
-import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { eq, isNotNull } from "drizzle-orm";
+import { afterAll, beforeAll, describe, expect, it, onTestFinished, vi } from "vitest";
 import type { DB } from "@/db";
-import { runs } from "@/db/schema";
+import { networks, runs } from "@/db/schema";
 import { decodePoint } from "@/app/lib/point-codec";
 import { buildAccountsFixture, type AccountsFixture, type Who } from "../helpers/accounts";
 import { apiCaller } from "../helpers/api";
@@ -90,6 +90,35 @@ async function until(id: string, done: (r: RunJson) => boolean, ms = 30_000): Pr
 const ended = (r: RunJson) => !["queued", "running"].includes(r.state);
 
 describe("runs through the API", () => {
+  it("runs every demo network again in-process with no Redis configured (the default: no extra service)", async () => {
+    // as a fresh clone's demo has it, whatever this shell says
+    const saved = { queue: process.env.RUNNEL_QUEUE, url: process.env.REDIS_URL };
+    delete process.env.RUNNEL_QUEUE;
+    delete process.env.REDIS_URL;
+    onTestFinished(() => {
+      if (saved.queue !== undefined) process.env.RUNNEL_QUEUE = saved.queue;
+      if (saved.url !== undefined) process.env.REDIS_URL = saved.url;
+    });
+    expect(runsLib.queueMode()).toBe("local");
+    const heads = db
+      .select({ name: networks.name, head: networks.headCommitId })
+      .from(networks)
+      .where(isNotNull(networks.headCommitId))
+      .all();
+    expect(heads.length).toBeGreaterThanOrEqual(7);
+    const started = await Promise.all(
+      heads.map(async (n) => {
+        const r = await startRun("designer", { commit: n.head });
+        expect(r.status, `${n.name}: ${r.text}`).toBe(201);
+        return { name: n.name, id: (r.json as { run: { id: string } }).run.id };
+      }),
+    );
+    for (const s of started) {
+      const r = await until(s.id, ended, 120_000);
+      expect([s.name, r.state, r.pointsDone]).toEqual([s.name, "done", r.pointsTotal]);
+    }
+  }, 180_000);
+
   it("commit → run → results, as each role", async () => {
     const { networkId, commitId } = await newNetwork("Split sweep", SWEEP);
     // commit a second version as the owner; a reviewer and a viewer cannot commit
