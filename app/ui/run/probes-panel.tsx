@@ -30,6 +30,9 @@ import {
 /** A column header with its unit: "iout (A)", "split" for a ratio or an unknown unit. */
 const withUnit = (name: string, unit: string | null) => (unit ? `${name} (${unit})` : name);
 
+/** Probe columns the table opens with (a 64-tap row has 66 probes). */
+const PROBE_COLUMNS = 12;
+
 export function ProbesPanel({ series, bench }: { series: SeriesView; bench: BenchData }) {
   const fmt = useFormat();
   // null: follow the probe the chosen bench data is matched to (else the probe that varies most).
@@ -103,6 +106,14 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
     [series],
   );
   type Row = (typeof rows)[number];
+  // A row of many taps has a probe per tap: the table opens on the first few and the plotted one, the rest on request.
+  const [allProbes, setAllProbes] = useState(false);
+  const shownProbes = useMemo(() => {
+    const all = series.probes.map((_, j) => j);
+    if (allProbes || all.length <= PROBE_COLUMNS) return all;
+    const first = all.slice(0, PROBE_COLUMNS);
+    return first.includes(probe) ? first : [...first, probe].sort((a, b) => a - b);
+  }, [series.probes, allProbes, probe]);
   const columns = useMemo<ColumnDef<Row>[]>(
     () => [
       { id: "name", header: "point", accessorFn: (r) => Number(r.name), cell: (c) => c.getValue<number>() },
@@ -118,11 +129,11 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
             cell: (c: { getValue: () => unknown }) => fmt(c.getValue() as number, paramUnit(series, s.param)),
           }) as ColumnDef<Row>,
       ),
-      ...series.probes.map(
-        (name, j) =>
+      ...shownProbes.map(
+        (j) =>
           ({
-            id: `probe-${name}`,
-            header: withUnit(name, probeUnit(series, j)),
+            id: `probe-${series.probes[j]}`,
+            header: withUnit(series.probes[j], probeUnit(series, j)),
             accessorFn: (r: Row) => r.probes[j] ?? NaN,
             cell: (c: { getValue: () => unknown }) => fmt(c.getValue() as number, probeUnit(series, j)),
           }) as ColumnDef<Row>,
@@ -134,7 +145,7 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
         cell: (c) => fmt(c.getValue<number>(), "A"),
       },
     ],
-    [series, fmt],
+    [series, fmt, shownProbes],
   );
   if (series.probes.length === 0)
     return (
@@ -181,6 +192,21 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
           />
           <BenchFigures bench={bench} shown={(s) => onPlot.includes(s)} />
         </div>
+      ) : null}
+      {series.probes.length > PROBE_COLUMNS ? (
+        <p className="text-xs text-stone-500">
+          {allProbes
+            ? `all ${series.probes.length} probes as columns`
+            : `${shownProbes.length} of ${series.probes.length} probes as columns (the first ${PROBE_COLUMNS} and the plotted one)`}{" "}
+          <button
+            type="button"
+            onClick={() => setAllProbes(!allProbes)}
+            className="text-moss-700 underline hover:text-moss-600"
+          >
+            {allProbes ? "show fewer" : `show all ${series.probes.length}`}
+          </button>{" "}
+          · every probe is in the CSV export
+        </p>
       ) : null}
       <DataTable label="Probes by point" rows={rows} columns={columns} filterPlaceholder="Filter by point" />
     </div>
