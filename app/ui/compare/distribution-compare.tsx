@@ -5,6 +5,7 @@
  * before and after, the two histograms on shared bins, and the two-sample
  * Kolmogorov–Smirnov test (N. Smirnov, Ann. Math. Stat. 19, 1948) with its p-value.
  */
+import { useNotation } from "@/app/ui/notation";
 import type { ProbeDistribution } from "@/app/lib/review/compare-data";
 import { QUANTILE_LEVELS } from "@/app/lib/review/stats";
 import { HistogramOverlay } from "./histogram-overlay";
@@ -23,6 +24,7 @@ function ksVerdict(d: ProbeDistribution): string {
 }
 
 export function DistributionCompare({ d, labels }: { d: ProbeDistribution; labels: [string, string] }) {
+  const { notation } = useNotation();
   const rows: [string, number, number][] = [
     ["mean", d.from.mean, d.to.mean],
     ["σ", d.from.sd, d.to.sd],
@@ -51,9 +53,9 @@ export function DistributionCompare({ d, labels }: { d: ProbeDistribution; label
                   <th scope="row" className="px-2 py-0.5 text-left font-sans font-normal">
                     {label}
                   </th>
-                  <td className="px-2 py-0.5 text-right">{formatWithUnit(a, d.unit)}</td>
-                  <td className="px-2 py-0.5 text-right">{formatWithUnit(b, d.unit)}</td>
-                  <td className="px-2 py-0.5 text-right">{formatChange(b - a, d.unit)}</td>
+                  <td className="px-2 py-0.5 text-right">{formatWithUnit(a, d.unit, 4, notation)}</td>
+                  <td className="px-2 py-0.5 text-right">{formatWithUnit(b, d.unit, 4, notation)}</td>
+                  <td className="px-2 py-0.5 text-right">{formatChange(b - a, d.unit, notation)}</td>
                 </tr>
               ))}
             </tbody>

@@ -6,6 +6,7 @@
  * sorts by |Δ| (or relative Δ, count beyond tolerance, name) and pages, so a
  * network of 10^5 devices never sends a wall of rows.
  */
+import { useNotation } from "@/app/ui/notation";
 import { useState } from "react";
 import useSWR from "swr";
 import type { EntityPage, EntitySort } from "@/app/lib/review/sweep-compare";
@@ -25,6 +26,7 @@ export interface EntityTableProps {
 const PAGE = 25;
 
 export function EntityTable({ query, analysis, kind, quantity, label, total }: EntityTableProps) {
+  const { notation } = useNotation();
   const [page, setPage] = useState(0);
   const [sort, setSort] = useState<EntitySort>("abs");
   const [only, setOnly] = useState(true);
@@ -135,10 +137,10 @@ export function EntityTable({ query, analysis, kind, quantity, label, total }: E
               <tr key={r.name} data-entity={r.name} data-abs={r.maxAbs ?? ""} className="border-b border-stone-100">
                 <td className="px-2 py-0.5">{r.name}</td>
                 <td className="px-2 py-0.5 text-right text-stone-600">
-                  {formatWithUnit(r.fromAtAbs, r.unit)} → {formatWithUnit(r.toAtAbs, r.unit)}
+                  {formatWithUnit(r.fromAtAbs, r.unit, 4, notation)} → {formatWithUnit(r.toAtAbs, r.unit, 4, notation)}
                 </td>
-                <td className="px-2 py-0.5 text-right">{formatChange(r.maxAbs, r.unit)}</td>
-                <td className="px-2 py-0.5 font-sans text-stone-600">{formatPointRef(r.absAt)}</td>
+                <td className="px-2 py-0.5 text-right">{formatChange(r.maxAbs, r.unit, notation)}</td>
+                <td className="px-2 py-0.5 font-sans text-stone-600">{formatPointRef(r.absAt, notation)}</td>
                 <td className="px-2 py-0.5 text-right">{formatRelative(r.maxRel)}</td>
                 <td className="px-2 py-0.5 text-right">{r.beyond.toLocaleString("en-US")}</td>
               </tr>

@@ -1,6 +1,7 @@
 "use client";
 
 /** Two samples' counts on shared bins, drawn over each other (uPlot bars, translucent), before and after. */
+import { useNotation } from "@/app/ui/notation";
 import { useEffect, useRef } from "react";
 import type uPlotType from "uplot";
 import { loadUplot } from "@/app/ui/plots/load-uplot";
@@ -19,6 +20,7 @@ export interface HistogramOverlayProps {
 }
 
 export function HistogramOverlay({ title, edges, before, after, unit, labels }: HistogramOverlayProps) {
+  const { notation } = useNotation();
   const host = useRef<HTMLDivElement>(null);
   useEffect(() => {
     const el = host.current;
@@ -43,11 +45,11 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
           height: 220,
           scales: { x: { time: false }, y: { range: (_u, _min, max) => [0, Math.max(1, max) * 1.1] } },
           axes: [
-            { values: (_u, splits) => splits.map((v) => (v == null ? "" : formatTick(v, unit, "si"))), size: 40 },
+            { values: (_u, splits) => splits.map((v) => (v == null ? "" : formatTick(v, unit, notation))), size: 40 },
             { label: "samples", size: 50 },
           ],
           series: [
-            { label: title, value: (_u, v) => (v == null ? "—" : formatWithUnit(v, unit)) },
+            { label: title, value: (_u, v) => (v == null ? "—" : formatWithUnit(v, unit, 4, notation)) },
             bars(0, 0),
             bars(1, 0),
           ],
@@ -60,6 +62,6 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
       gone = true;
       plot?.destroy();
     };
-  }, [title, edges, before, after, unit, labels]);
+  }, [title, edges, before, after, unit, labels, notation]);
   return <div ref={host} role="img" aria-label={title} data-slot="plot" className="w-full overflow-hidden" />;
 }

@@ -7,6 +7,7 @@
  * plots. Monte Carlo analyses show the distributions instead. Currents and
  * positive values spanning more than two decades get a log axis.
  */
+import { useNotation } from "@/app/ui/notation";
 import { useMemo, useState } from "react";
 import useSWR from "swr";
 import type { SeriesAnswer, SideSeries } from "@/app/lib/review/compare-data";
@@ -104,6 +105,7 @@ function GridPicker({
   onChange(v: number[]): void;
   skipOuter: boolean;
 }) {
+  const { notation } = useNotation();
   const shown = sweeps.map((s, i) => ({ s, i })).filter(({ i }) => !skipOuter || i > 0);
   if (shown.length === 0) return null;
   return (
@@ -123,7 +125,7 @@ function GridPicker({
           >
             {s.values.map((v, k) => (
               <option key={k} value={k}>
-                {formatWithUnit(v, s.unit)}
+                {formatWithUnit(v, s.unit, 4, notation)}
               </option>
             ))}
           </select>

@@ -1,6 +1,7 @@
 "use client";
 
 /** Per-probe summary of one analysis: largest change, largest relative change, where, how many points moved. Sortable. */
+import { useNotation } from "@/app/ui/notation";
 import { useState } from "react";
 import type { EntityRow } from "@/app/lib/review/sweep-compare";
 import { formatChange, formatPointRef, formatRelative, formatWithUnit } from "./value-format";
@@ -11,6 +12,7 @@ const FIRST = 12;
 const mag = (v: number | null) => (v === null || Number.isNaN(v) ? -1 : Math.abs(v));
 
 export function ProbeSummaryTable({ rows, caption }: { rows: EntityRow[]; caption: string }) {
+  const { notation } = useNotation();
   const [sort, setSort] = useState<Key>("abs");
   const [all, setAll] = useState(false);
   const sorted = [...rows].sort((a, b) =>
@@ -64,11 +66,11 @@ export function ProbeSummaryTable({ rows, caption }: { rows: EntityRow[]; captio
                 {r.name}
               </th>
               <td className="px-2 py-1 text-right text-stone-600">
-                {formatWithUnit(r.fromAtAbs, r.unit)} → {formatWithUnit(r.toAtAbs, r.unit)}
+                {formatWithUnit(r.fromAtAbs, r.unit, 4, notation)} → {formatWithUnit(r.toAtAbs, r.unit, 4, notation)}
               </td>
-              <td className="px-2 py-1 text-right">{formatChange(r.maxAbs, r.unit)}</td>
+              <td className="px-2 py-1 text-right">{formatChange(r.maxAbs, r.unit, notation)}</td>
               <td className="px-2 py-1 text-right">{formatRelative(r.maxRel)}</td>
-              <td className="px-2 py-1 font-sans text-stone-600">{formatPointRef(r.absAt)}</td>
+              <td className="px-2 py-1 font-sans text-stone-600">{formatPointRef(r.absAt, notation)}</td>
               <td className="px-2 py-1 text-right">
                 {r.beyond.toLocaleString("en-US")} / {r.compared.toLocaleString("en-US")}
               </td>

@@ -23,9 +23,13 @@ export function formatDiffValue(v: number, quantity: Quantity, notation: Notatio
 }
 
 /** A signed change with its unit ("+10.48 mV", "−16.67 nA"). */
-export function formatChange(v: number | null | undefined, unit: string | null | undefined): string {
+export function formatChange(
+  v: number | null | undefined,
+  unit: string | null | undefined,
+  notation: Notation = "si",
+): string {
   if (v === null || v === undefined || Number.isNaN(v)) return "—";
-  const s = formatWithUnit(Math.abs(v), unit);
+  const s = formatWithUnit(Math.abs(v), unit, 4, notation);
   return v === 0 ? s : `${v > 0 ? "+" : "−"}${s}`;
 }
 
@@ -37,9 +41,9 @@ export function formatRelative(r: number | null | undefined): string {
 }
 
 /** Where a value was found: the swept values with units, then the mismatch sample ("iin = 100 nA · sample 12"). */
-export function formatPointRef(at: PointRef | null | undefined): string {
+export function formatPointRef(at: PointRef | null | undefined, notation: Notation = "si"): string {
   if (!at) return "—";
-  const parts = at.params.map((p) => `${p.name} = ${formatWithUnit(p.value, p.unit)}`);
+  const parts = at.params.map((p) => `${p.name} = ${formatWithUnit(p.value, p.unit, 4, notation)}`);
   if (at.sample !== null) parts.push(`sample ${at.sample}`);
   return parts.length ? parts.join(" · ") : "the operating point";
 }

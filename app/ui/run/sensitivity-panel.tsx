@@ -8,15 +8,17 @@
  */
 import { useState } from "react";
 import useSWR from "swr";
-import { formatEng } from "@/app/lib/format";
+import { useFormat } from "@/app/ui/notation";
 import type { SensitivityView } from "@/app/lib/sensitivity-view";
 import { getJson } from "@/app/ui/fetch";
 import { LoadingNote } from "./loading-note";
 
 const pct = (x: number) => `${(100 * x).toFixed(1)} %`;
-const eng = (x: number | null) => (x === null ? "—" : formatEng(x, "", 4));
 
 export function SensitivityPanel({ runId }: { runId: string }) {
+  const fmt = useFormat();
+  // Sensitivities are in the probe's unit per mV or per unit of a param: plain numbers by the one rule.
+  const eng = (x: number | null) => fmt(x, null);
   const view = useSWR<SensitivityView>(`/api/runs/${runId}/sensitivity`, getJson, { revalidateOnFocus: false });
   const [chosen, setChosen] = useState<string | null>(null);
   if (view.error) return <p className="text-sm text-ember-500">Could not compute: {(view.error as Error).message}</p>;
