@@ -193,7 +193,7 @@ test("the Goal-seek view of the demo's spreading row: the file's seek found, and
   await page.getByRole("list", { name: "Runs" }).getByRole("link").first().click();
   await page.getByRole("tab", { name: "Goal-seek" }).click();
   const stated = page.getByRole("table", { name: "Goal-seek of vh" }).first();
-  await expect(stated.locator("tbody tr").first()).toContainText(/the file's point\s*8\d\d(\.\d)?m/, {
+  await expect(stated.locator("tbody tr").first()).toContainText(/the file's point\s*8\d\d(\.\d)? mV/, {
     timeout: 30_000,
   });
   await expect(page.getByTestId("goal-seek")).toContainText("vh giving lambda = 6: found");

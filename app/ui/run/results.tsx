@@ -170,7 +170,7 @@ export function Results({
         {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <LoadingNote /> : null}
         {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
         {tab === "sensitivity" ? <SensitivityPanel runId={runId} /> : null}
-        {tab === "seek" ? <SeekPanel runId={runId} canRun={canRun} /> : null}
+        {tab === "seek" ? <SeekPanel runId={runId} canRun={canRun} units={series} /> : null}
       </div>
       {current?.error ? <p className="text-sm text-ember-500">This point was not solved: {current.error}</p> : null}
       <p className="text-xs text-stone-500">

@@ -7,7 +7,8 @@
  */
 import { useState } from "react";
 import useSWR from "swr";
-import { formatEng } from "@/app/lib/format";
+import type { SeriesView } from "@/app/lib/results";
+import { useFormat } from "@/app/ui/notation";
 import type { StoredSeek } from "@/app/lib/run-seeks";
 import type { SeekView } from "@/app/lib/sensitivity-view";
 import type { SeekJson } from "@/src/solver/design-json";
@@ -15,16 +16,17 @@ import { getJson, sendJson } from "@/app/ui/fetch";
 import { LoadingNote } from "./loading-note";
 import { paramUnit } from "./sweep-values";
 
-const eng = (x: number, unit = "") => formatEng(x, unit, 4);
-/** A seek names its params without units; temp is known to be in kelvin. */
-const NO_UNITS = { params: [], paramUnits: [] };
+/** Where a seek's units are read: the run's series (a seek's JSON names params and probes without units). */
+export type SeekUnits = Pick<SeriesView, "params" | "paramUnits" | "probes" | "probeUnits">;
 
-function SeekTable({ seek }: { seek: SeekJson }) {
-  const unit = paramUnit(NO_UNITS, seek.param) ?? "";
+function SeekTable({ seek, units }: { seek: SeekJson; units: SeekUnits }) {
+  const fmt = useFormat();
+  const unit = paramUnit(units, seek.param);
+  const probeUnit = units.probeUnits?.[units.probes.indexOf(seek.probe)] ?? null;
   return (
     <div className="space-y-1">
       <p className="font-medium text-stone-800">
-        {seek.param} giving {seek.probe} = {eng(seek.target)}: {seek.ok ? "found" : "not found everywhere"}
+        {seek.param} giving {seek.probe} = {fmt(seek.target, probeUnit)}: {seek.ok ? "found" : "not found everywhere"}
       </p>
       <div className="overflow-x-auto">
         <table className="text-left" aria-label={`Goal-seek of ${seek.param}`}>
@@ -41,13 +43,13 @@ function SeekTable({ seek }: { seek: SeekJson }) {
               <tr key={k} className="border-t border-stone-100">
                 <td className="py-0.5 pr-3">
                   {Object.entries(p.at)
-                    .map(([n, x]) => `${n} = ${eng(x, paramUnit(NO_UNITS, n) ?? "")}`)
+                    .map(([n, x]) => `${n} = ${fmt(x, paramUnit(units, n))}`)
                     .join(", ") || "the file's point"}
                 </td>
                 {p.ok ? (
                   <>
-                    <td className="py-0.5 pr-3">{eng(p.value, unit)}</td>
-                    <td className="py-0.5 pr-3">{eng(p.achieved)}</td>
+                    <td className="py-0.5 pr-3">{fmt(p.value, unit)}</td>
+                    <td className="py-0.5 pr-3">{fmt(p.achieved, probeUnit)}</td>
                   </>
                 ) : (
                   <td colSpan={2} className="py-0.5 pr-3 text-ember-500">
@@ -64,18 +66,18 @@ function SeekTable({ seek }: { seek: SeekJson }) {
   );
 }
 
-function SeekResult({ view }: { view: SeekView }) {
+function SeekResult({ view, units }: { view: SeekView; units: SeekUnits }) {
   if (!view.ok) return <p className="text-ember-500">{view.error}</p>;
   return (
     <>
       {view.seeks.map((s, k) => (
-        <SeekTable key={k} seek={s} />
+        <SeekTable key={k} seek={s} units={units} />
       ))}
     </>
   );
 }
 
-export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean }) {
+export function SeekPanel({ runId, canRun, units }: { runId: string; canRun: boolean; units: SeekUnits }) {
   const stated = useSWR<SeekView & { asked: StoredSeek[] }>(`/api/runs/${runId}/seek`, getJson, {
     revalidateOnFocus: false,
   });
@@ -131,7 +133,7 @@ export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean })
       {stated.data?.ok && stated.data.seeks.length === 0 ? (
         <p className="text-stone-500">The file states no `seek`.</p>
       ) : null}
-      {stated.data ? <SeekResult view={stated.data} /> : null}
+      {stated.data ? <SeekResult view={stated.data} units={units} /> : null}
       {canRun ? (
         <form
           className="flex flex-wrap items-center gap-2 rounded border border-stone-200 bg-white p-3"
@@ -165,7 +167,7 @@ export function SeekPanel({ runId, canRun }: { runId: string; canRun: boolean })
                 by {a.createdByName} · {new Date(a.createdAt).toLocaleString("en-GB")} · {a.spec.param} in [{a.spec.low}
                 , {a.spec.high}]
               </p>
-              <SeekResult view={a.view} />
+              <SeekResult view={a.view} units={units} />
             </div>
           ))}
         </section>
