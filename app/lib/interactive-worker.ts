@@ -119,6 +119,6 @@ export default function interactiveTask(
     }
   } finally {
     // The kept thread gives back what the task left (a large network's elaboration) once it is idle.
-    releaseWhenIdle();
+    releaseWhenIdle(undefined, { pool: "interactive" });
   }
 }

@@ -14,6 +14,8 @@
  * - One thread stays (started with the server, `warmInteractivePool`), so a
  *   commit never waits for a thread to load the worker bundle; threads beyond
  *   it end after IDLE_MS without work, so their memory goes back to the system.
+ *   The kept thread, when it still holds a large task's memory once idle, is
+ *   replaced with its pool (`replaceHeavyPool`).
  * - The pool lives on globalThis, so every route bundle shares one.
  */
 import os from "node:os";
@@ -33,7 +35,7 @@ import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
 import type { SeekSpec, SeekView, SensitivityView } from "./sensitivity-view";
 import type { StructureView } from "./structure";
-import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
+import { POOL_ATOMICS, watchHeavyThreads, workerExecArgv, type HeavyThread } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
   path.join(/*turbopackIgnore: true*/ process.cwd(), ".build", "interactive-worker.mjs");
@@ -70,7 +72,9 @@ async function poolWith(minThreads: number): Promise<Pool> {
   const g = globalThis as unknown as Record<symbol, Pool | undefined>;
   if (!g[KEY]) {
     const { Piscina } = await import("piscina");
-    g[KEY] = new Piscina<
+    watchHeavyThreads("interactive", replaceHeavyPool);
+    // `??=`: a caller that awaited the import beside this one may have made the pool already
+    g[KEY] ??= new Piscina<
       InteractiveTask,
       TextCheck | PlanText | ParseResult | StoreCsvResult | ComparisonCore | SensitivityView | SeekView | null
     >({
@@ -83,6 +87,27 @@ async function poolWith(minThreads: number): Promise<Pool> {
     });
   }
   return g[KEY];
+}
+
+const BUSY = Symbol.for("runnel.interactive.busy");
+
+/** Tasks handed to the pool and not ended (on globalThis with the pool: every route bundle counts in one place). */
+function busy(delta = 0): number {
+  const g = globalThis as unknown as Record<symbol, number | undefined>;
+  return (g[BUSY] = (g[BUSY] ?? 0) + delta);
+}
+
+/**
+ * A thread that still holds much after its idle collection (app/lib/worker-memory.ts: a 2,000,000-device
+ * elaboration, a million-row CSV) ends with its pool, replaced by a new warm one, when no task is in it.
+ */
+function replaceHeavyPool(t: HeavyThread): void {
+  const g = globalThis as unknown as Record<symbol, Pool | undefined>;
+  const old = g[KEY];
+  if (!old || busy() > 0 || !old.threads.some((w) => w.threadId === t.threadId)) return;
+  g[KEY] = undefined;
+  void old.destroy();
+  void warmInteractivePool().catch(() => {});
 }
 
 const WHAT: Record<InteractiveTask["kind"], string> = {
@@ -104,6 +129,7 @@ export async function runInteractive<T extends InteractiveTask>(
   const limit = interactiveTimeLimitMs();
   const timeout = AbortSignal.timeout(limit);
   const both = signal ? AbortSignal.any([signal, timeout]) : timeout;
+  busy(1);
   try {
     return (await (await pool()).run(task, { signal: both })) as InteractiveResult<T>;
   } catch (e) {
@@ -114,6 +140,8 @@ export async function runInteractive<T extends InteractiveTask>(
       );
     if (signal?.aborted) throw new RequestError(400, "the request was cancelled by the client");
     throw e;
+  } finally {
+    busy(-1);
   }
 }
 
@@ -180,6 +208,12 @@ export function structureInWorker(
   signal?: AbortSignal,
 ): Promise<StructureView | null> {
   return runInteractive({ kind: "structure", commitId, text, query }, signal);
+}
+
+/** The thread ids of the pool's threads now (none before it starts). */
+export function interactiveThreadIds(): number[] {
+  const g = globalThis as unknown as Record<symbol, Pool | undefined>;
+  return (g[KEY]?.threads ?? []).map((w) => w.threadId);
 }
 
 /** Ends the pool's threads (tests and scripts that must exit). */

@@ -36,7 +36,7 @@ import type { StopKind, TestFault } from "./run-chunk";
 import type { ComparisonCore } from "./review/comparison-core";
 import type { Tolerance } from "./review/results-diff";
 import { finishRun, runDispatchInfo } from "./runs";
-import { POOL_ATOMICS, workerExecArgv } from "./worker-memory";
+import { POOL_ATOMICS, watchHeavyThreads, workerExecArgv, type HeavyThread } from "./worker-memory";
 
 /** How long a chunk may take to honour a stop request before it is terminated. */
 export const STOP_GRACE_MS = 5_000;
@@ -75,6 +75,8 @@ interface Pool {
   queue: FairQueue;
   live: Map<string, LiveRun>;
   executing: number;
+  /** Tasks of any kind handed to piscina and not ended (chunks, finalizing, comparisons). */
+  inPool: number;
   faults: Map<string, TestFault>;
   idleWaiters: (() => void)[];
 }
@@ -87,6 +89,7 @@ function state(): Pool {
     queue: new FairQueue(runsPerWorkspace),
     live: new Map(),
     executing: 0,
+    inPool: 0,
     faults: new Map(),
     idleWaiters: [],
   });
@@ -96,7 +99,9 @@ async function piscina(minThreads = 0): Promise<Piscina<RunTask, ChunkResult | R
   const s = state();
   if (!s.piscina) {
     const { Piscina } = await import("piscina");
-    s.piscina = new Piscina<RunTask, ChunkResult | RunTaskResult | ComparisonCore | null>({
+    watchHeavyThreads("run", replaceHeavyPool);
+    // `??=`: a caller that awaited the import beside this one may have made the pool already
+    s.piscina ??= new Piscina<RunTask, ChunkResult | RunTaskResult | ComparisonCore | null>({
       filename: WORKER_FILE(),
       execArgv: workerExecArgv(),
       maxThreads: concurrency(),
@@ -108,6 +113,34 @@ async function piscina(minThreads = 0): Promise<Piscina<RunTask, ChunkResult | R
     });
   }
   return s.piscina;
+}
+
+/**
+ * A thread that still holds a large run's memory once idle (app/lib/worker-memory.ts) is ended by replacing the
+ * whole pool, when nothing runs in it: the old pool's threads end (all they held goes back to the system), a new
+ * one is warmed. While tasks run, the thread reports again after its next task.
+ */
+function replaceHeavyPool(t: HeavyThread): void {
+  const s = state();
+  const old = s.piscina;
+  if (!old || s.inPool > 0 || s.queue.size > 0 || !old.threads.some((w) => w.threadId === t.threadId)) return;
+  s.piscina = null;
+  void old.destroy();
+  void piscina(1);
+}
+
+/** One task in the pool, counted while it is there (a pool with tasks in it is never replaced). */
+async function inPool(
+  task: RunTask,
+  signal?: AbortSignal,
+): Promise<ChunkResult | RunTaskResult | ComparisonCore | null> {
+  const s = state();
+  s.inPool++;
+  try {
+    return await (await piscina()).run(task, signal ? { signal } : {});
+  } finally {
+    s.inPool--;
+  }
 }
 
 /** Starts one thread ahead of the first run, so the first chunk does not wait for a thread to load the bundle. */
@@ -171,7 +204,7 @@ async function dispatch(): Promise<void> {
     };
     let p: Promise<ChunkResult>;
     try {
-      p = (await piscina()).run(task, { signal: abort.signal }) as Promise<ChunkResult>;
+      p = inPool(task, abort.signal) as Promise<ChunkResult>;
     } catch (e) {
       p = Promise.reject(e);
     }
@@ -283,7 +316,7 @@ export async function finalizeInPool(
 ): Promise<RunTaskResult | null> {
   const task: RunTask = { kind: "finalize", runId, dbFile: databasePath() };
   if (forced) task.forced = forced;
-  const r = (await (await piscina()).run(task)) as RunTaskResult | null;
+  const r = (await inPool(task)) as RunTaskResult | null;
   if (r?.state === "done" && process.env.RUNNEL_PRECOMPUTE_COMPARISONS !== "0")
     void import("./review/compare-data")
       .then((m) => m.precomputeForRun(runId))
@@ -298,7 +331,7 @@ export async function compareInRunPool(
   tolerance: Tolerance,
 ): Promise<ComparisonCore | null> {
   const task: RunTask = { kind: "compare", fromRunId, toRunId, tolerance, dbFile: databasePath() };
-  return (await (await piscina()).run(task)) as ComparisonCore | null;
+  return (await inPool(task)) as ComparisonCore | null;
 }
 
 export function workerMessage(e: unknown): string {

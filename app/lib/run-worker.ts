@@ -38,6 +38,6 @@ export default function runTask(task: RunTask): ChunkResult | RunTaskResult | Co
   } finally {
     // The elaborated network stays for the run's next chunk; a thread left idle gives it back
     // (app/lib/worker-memory.ts).
-    releaseWhenIdle(dropNetworkCache);
+    releaseWhenIdle(dropNetworkCache, { pool: "run" });
   }
 }

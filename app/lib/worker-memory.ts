@@ -11,11 +11,28 @@
  * The collection function comes from V8's `--expose-gc` set at run time and a
  * fresh context (the way test runners reach it without a command-line flag);
  * it only ever runs in a worker thread, never on the request thread.
+ *
+ * A collection gives back only what nothing points at. A thread that still holds more than RECYCLE_ABOVE_MB
+ * after it (its heap and the buffers it owns: measured after the stall workload of `npm run bench:api`, the run
+ * thread that solved the 2,000,000-device run kept 250 MB of buffers) says so on MEMORY_CHANNEL, and its pool
+ * replaces itself once it has nothing to do (`watchHeavyThreads`): ending a thread gives back all it had.
  */
 import v8 from "node:v8";
 import vm from "node:vm";
+import { BroadcastChannel, threadId } from "node:worker_threads";
 
 export const RELEASE_AFTER_MS = 2_000;
+
+/** A pool thread holding more than this after its idle collection asks to be replaced (an idle thread: ~25 MB). */
+export const RECYCLE_ABOVE_MB = 64;
+export const MEMORY_CHANNEL = "runnel.worker-memory";
+
+export type PoolName = "run" | "interactive";
+export interface HeavyThread {
+  pool: PoolName;
+  threadId: number;
+  heldMb: number;
+}
 
 /**
  * How the pools' threads wait for their next task: on their event loop, not in `Atomics.wait`. Piscina's default
@@ -36,15 +53,114 @@ function fullCollection(): void {
   collect();
 }
 
-/** After RELEASE_AFTER_MS without another call: `drop()` (the thread's caches), then a full collection. */
-export function releaseWhenIdle(drop: () => void = () => {}, afterMs = RELEASE_AFTER_MS): void {
+/** What this thread's isolate holds, in MB: its heap and the memory outside it that its objects own (buffers). */
+export function heldMb(): number {
+  const m = process.memoryUsage();
+  return (m.heapTotal + m.external) / 1e6;
+}
+
+let channel: BroadcastChannel | null = null;
+
+export interface ReleaseOptions {
+  afterMs?: number;
+  /** The pool the thread belongs to: given, a thread still holding more than `recycleAboveMb` asks to be replaced. */
+  pool?: PoolName;
+  recycleAboveMb?: number;
+}
+
+/**
+ * After RELEASE_AFTER_MS without another call: `drop()` (the thread's caches), then a full collection; a thread of
+ * `pool` that still holds more than RECYCLE_ABOVE_MB then asks its pool to replace it.
+ */
+export function releaseWhenIdle(
+  drop: () => void = () => {},
+  { afterMs = RELEASE_AFTER_MS, pool, recycleAboveMb = RECYCLE_ABOVE_MB }: ReleaseOptions = {},
+): void {
   if (timer) clearTimeout(timer);
   timer = setTimeout(() => {
     timer = null;
     drop();
     fullCollection();
+    const held = heldMb();
+    if (pool && held > recycleAboveMb) {
+      if (!channel) {
+        channel = new BroadcastChannel(MEMORY_CHANNEL);
+        channel.unref();
+      }
+      channel.postMessage({ pool, threadId, heldMb: Math.round(held) } satisfies HeavyThread);
+    }
   }, afterMs);
   timer.unref?.();
+}
+
+export interface QuietOptions {
+  /** How long the server must have had no request before it collects. */
+  quietMs?: number;
+  /** How much the heap must have grown since the last collection (MB). */
+  growthMb?: number;
+  checkMs?: number;
+}
+
+/**
+ * The request thread's share: once the server has had no request in flight and none for `quietMs`, and its heap
+ * grew by `growthMb` since it last collected, a full collection gives the pages of a large answer back (after the
+ * stall workload the request thread's heap stayed 26 MB above idle, its old space half empty). It never runs
+ * while a request is in flight; a request that comes during it waits for it (tens of milliseconds).
+ */
+export function collectWhenQuiet(
+  server: {
+    on(event: "request", f: (req: unknown, res: { once(e: "close", f: () => void): unknown }) => void): unknown;
+  },
+  { quietMs = 10_000, growthMb = 16, checkMs = 2_500 }: QuietOptions = {},
+): () => void {
+  let inFlight = 0;
+  let last = Date.now();
+  let after = v8.getHeapStatistics().total_heap_size;
+  server.on("request", (_req, res) => {
+    inFlight++;
+    last = Date.now();
+    res.once("close", () => {
+      inFlight--;
+      last = Date.now();
+    });
+  });
+  const t = setInterval(() => {
+    if (inFlight > 0 || Date.now() - last < quietMs) return;
+    if (v8.getHeapStatistics().total_heap_size < after + growthMb * 1e6) return;
+    // compacting: a plain full collection frees the objects but leaves the old space's half-empty pages mapped
+    v8.setFlagsFromString("--compact-on-every-full-gc");
+    try {
+      fullCollection();
+    } finally {
+      v8.setFlagsFromString("--no-compact-on-every-full-gc");
+    }
+    after = v8.getHeapStatistics().total_heap_size;
+  }, checkMs);
+  t.unref();
+  return () => clearInterval(t);
+}
+
+const WATCH = Symbol.for("runnel.worker-memory.watch");
+
+/**
+ * Calls `replace` when a thread of `pool` reports that it holds too much after its idle collection (on the request
+ * thread; one channel per process, however many route bundles load this module). `replace` decides whether the
+ * pool can be replaced now (nothing running in it) and whether the thread is still one of its own.
+ */
+export function watchHeavyThreads(pool: PoolName, replace: (t: HeavyThread) => void): void {
+  const g = globalThis as unknown as Record<symbol, Map<PoolName, (t: HeavyThread) => void> | undefined>;
+  let handlers = g[WATCH];
+  if (!handlers) {
+    handlers = g[WATCH] = new Map();
+    const listen = new BroadcastChannel(MEMORY_CHANNEL);
+    listen.unref();
+    const h = handlers;
+    listen.onmessage = (e) => {
+      const t = (e as { data: HeavyThread }).data;
+      h.get(t.pool)?.(t);
+    };
+  }
+  handlers.set(pool, replace);
 }
 
 const LOADER_FLAGS = new Set(["--import", "--require", "-r", "--loader", "--experimental-loader"]);

@@ -25,6 +25,7 @@ import {
   originAllowed,
   SOCKET_ADDRESS_HEADER,
 } from "../../app/lib/request-edge";
+import { collectWhenQuiet } from "../../app/lib/worker-memory";
 
 const args = process.argv.slice(2);
 const dev = args.includes("--dev");
@@ -69,6 +70,8 @@ const server = http.createServer((req, res) => {
   }
   void handle(req, res);
 });
+// the request thread gives a large answer's memory back once the server is quiet (app/lib/worker-memory.ts)
+collectWhenQuiet(server);
 server.listen(port, host, () => console.log(`runnel: serving http://${host}:${port}/${dev ? " (development)" : ""}`));
 const stop = () => {
   server.close(() => process.exit(0));
