@@ -1,4 +1,5 @@
 import type { NextConfig } from "next";
+import { SECURITY_HEADERS } from "./app/lib/security-headers";
 
 const config: NextConfig = {
   // Worker-thread pools must load from node_modules at run time, not from the bundle.
@@ -14,18 +15,12 @@ const config: NextConfig = {
   poweredByHeader: false,
   typescript: { ignoreBuildErrors: false },
   turbopack: { root: import.meta.dirname },
-  // On every answer, pages and API alike (the Content-Security-Policy itself comes from scripts/lib/next-server.ts,
-  // which makes a nonce per page).
+  // On every answer, pages and API alike (app/lib/security-headers.ts).
   async headers() {
     return [
       {
         source: "/:path*",
-        headers: [
-          { key: "X-Content-Type-Options", value: "nosniff" },
-          { key: "X-Frame-Options", value: "DENY" },
-          { key: "Referrer-Policy", value: "same-origin" },
-          { key: "Cross-Origin-Opener-Policy", value: "same-origin" },
-        ],
+        headers: [...SECURITY_HEADERS],
       },
     ];
   },

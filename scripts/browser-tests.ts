@@ -21,7 +21,8 @@ fs.rmSync("test-results/e2e", { recursive: true, force: true });
 fs.mkdirSync("test-results/e2e", { recursive: true });
 if (
   run(process.execPath, ["scripts/build-worker.mjs"]) !== 0 ||
-  run(process.execPath, ["node_modules/next/dist/bin/next", "build"]) !== 0
+  run(process.execPath, ["node_modules/next/dist/bin/next", "build"]) !== 0 ||
+  run(process.execPath, ["scripts/precompress.mjs"]) !== 0
 ) {
   console.error("browser tests: the build failed");
   process.exit(1);

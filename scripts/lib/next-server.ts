@@ -15,9 +15,12 @@
  *   and on the response; other answers get a policy that allows nothing.
  * - A form post or server-action call to a page from another origin is
  *   answered 403 here (Next would answer it 500).
+ * - The build's static scripts and stylesheets go out brotli-compressed from
+ *   files written at build time (./static-brotli.ts); Next sends the rest.
  */
 import { randomBytes } from "node:crypto";
 import http from "node:http";
+import path from "node:path";
 import next from "next";
 import {
   contentSecurityPolicy,
@@ -26,6 +29,7 @@ import {
   SOCKET_ADDRESS_HEADER,
 } from "../../app/lib/request-edge";
 import { collectWhenQuiet } from "../../app/lib/worker-memory";
+import { serveBrotli } from "./static-brotli";
 
 const args = process.argv.slice(2);
 const dev = args.includes("--dev");
@@ -50,7 +54,11 @@ const app = next({ dev, hostname: host, port, dir: process.cwd() });
 await app.prepare();
 const handle = app.getRequestHandler();
 
+const staticDir = path.join(process.cwd(), ".next", "static");
+
 const server = http.createServer((req, res) => {
+  // the build's scripts and stylesheets, brotli-compressed ahead of time (./static-brotli.ts)
+  if (!dev && serveBrotli(req, res, staticDir)) return;
   delete req.headers[SOCKET_ADDRESS_HEADER];
   req.headers[SOCKET_ADDRESS_HEADER] = req.socket.remoteAddress ?? "unknown";
   const pathname = (req.url ?? "/").split("?")[0];
