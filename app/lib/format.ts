@@ -153,10 +153,15 @@ export function parseNotation(value: string | null | undefined): Notation {
   return value === "sci" ? "sci" : "si";
 }
 
+/** `v` rounded to `digits` significant digits (integers, ±∞ and NaN unchanged). */
+export function roundTo(v: number, digits: number): number {
+  return Number.isFinite(v) && !Number.isInteger(v) ? Number(v.toPrecision(digits)) : v;
+}
+
 /**
  * A JSON.stringify replacer for values sent only to be plotted and read at 4 significant digits: a fractional
  * number keeps 7 (about half the characters of the 17 JavaScript writes); integers, ±∞ and NaN are left alone.
  */
 export function plotPrecision(_key: string, v: unknown): unknown {
-  return typeof v === "number" && Number.isFinite(v) && !Number.isInteger(v) ? Number(v.toPrecision(7)) : v;
+  return typeof v === "number" ? roundTo(v, 7) : v;
 }

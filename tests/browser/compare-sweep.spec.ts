@@ -150,6 +150,17 @@ test("a 1,000-point sweep compared, then reviewed through a thread, the inbox an
   expect(series.at(-1)).toEqual({ names: 66, probes: 5 });
   await shot(page, "compare");
 
+  // the header's notation toggle rewrites the values the server wrote too: the tolerances, the changes by kind
+  const moved = page.getByTestId("moved-summary");
+  const kinds = analysis.getByTestId("kind-summary");
+  await expect(moved).toContainText(/currents [\d.]+ [afpnµm]?A, voltages [\d.]+ [afpnµm]?V/);
+  await expect(kinds).toContainText(/[+−][\d.]+ [µm]?V/);
+  await page.getByTestId("notation-toggle").first().click();
+  await expect(moved).toContainText(/currents [\d.]+e-\d+ A, voltages [\d.]+e-\d+ V/);
+  await expect(kinds).toContainText(/[+−][\d.]+e-\d+ V/);
+  await page.getByTestId("notation-toggle").first().click();
+  await expect(moved).toContainText(/currents [\d.]+ [afpnµm]?A/);
+
   // node voltages a page at a time, sorted on the server by |Δ|
   await analysis.getByRole("button", { name: /node voltages: [\d,]+ of [\d,]+ moved/ }).click();
   const nodes = analysis.getByRole("table", { name: "node voltages" });

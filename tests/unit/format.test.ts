@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { formatDuration, formatEng, formatNumber, formatValue, plotPrecision } from "@/app/lib/format";
+import { formatDuration, formatEng, formatNumber, formatValue, plotPrecision, roundTo } from "@/app/lib/format";
 
 describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th ed. 2019, prefix table)", () => {
   it.each([
@@ -33,6 +33,17 @@ describe("formatEng (engineering notation with SI prefixes, BIPM SI Brochure 9th
     expect(formatDuration(850)).toBe("850 ms");
     expect(formatDuration(12_400)).toBe("12.4 s");
     expect(formatDuration(185_000)).toBe("3 min 5 s");
+  });
+});
+
+describe("roundTo (the compare page's relative changes are sent at 4 digits)", () => {
+  it("rounds to significant digits, not decimals, and leaves integers and non-finite values", () => {
+    expect(roundTo(-0.0123456789, 4)).toBe(-0.01235);
+    expect(roundTo(1.23456789e-9, 4)).toBe(1.235e-9);
+    expect(roundTo(98765.4321, 4)).toBe(98770);
+    expect(roundTo(3, 4)).toBe(3);
+    expect(roundTo(Number.NaN, 4)).toBeNaN();
+    expect(roundTo(Number.POSITIVE_INFINITY, 4)).toBe(Number.POSITIVE_INFINITY);
   });
 });
 

@@ -3,6 +3,7 @@
  * the per-probe summary (sortable), the overlay plots or distributions, and
  * nodes, devices and rails by kind with their paged tables.
  */
+import type { Notation } from "@/app/lib/format";
 import Link from "next/link";
 import type { AnalysisSummary } from "@/app/lib/review/compare-data";
 import { EntityDrawer } from "./entity-table";
@@ -15,12 +16,13 @@ export interface AnalysisComparisonProps {
   /** from, to and the tolerance fields given. */
   query: Record<string, string>;
   labels: [string, string];
+  notation?: Notation;
 }
 
 const short = (id: string) => id.slice(0, 10);
 const mag = (v: number) => (Number.isNaN(v) ? -1 : Math.abs(v));
 
-export function AnalysisComparison({ summary: a, query, labels }: AnalysisComparisonProps) {
+export function AnalysisComparison({ summary: a, query, labels, notation = "si" }: AnalysisComparisonProps) {
   const runLink = (id: string | null) =>
     id ? (
       <Link href={`/runs/${id}`} className="font-mono text-moss-700 hover:underline">
@@ -61,7 +63,7 @@ export function AnalysisComparison({ summary: a, query, labels }: AnalysisCompar
       {a.fromRunId && a.toRunId && a.matchedPoints + a.addedPoints > 0 ? (
         <ProbeOverlays from={query.from} to={query.to} analysis={a.analysis} order={order} labels={labels} />
       ) : null}
-      <KindSummaries kinds={a.kinds} />
+      <KindSummaries kinds={a.kinds} notation={notation} />
       {a.kinds
         .filter((k) => k.kind !== "probe")
         .map((k) => (

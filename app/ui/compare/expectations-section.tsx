@@ -2,7 +2,7 @@
  * The compare page's Expectations section: each expectation's status before → after (from the runs' stored
  * summaries), newly failing first, with the margin on each side.
  */
-import { formatEng, formatNumber } from "@/app/lib/format";
+import { formatValue, type Notation } from "@/app/lib/format";
 import type { ExpectationChange, ExpectationSide } from "@/app/lib/review/expectation-compare";
 
 const CHANGE_STYLE: Record<ExpectationChange["change"], string> = {
@@ -14,14 +14,22 @@ const CHANGE_STYLE: Record<ExpectationChange["change"], string> = {
   "still passing": "text-moss-700",
 };
 
-function status(s: ExpectationSide | null): string {
+function status(s: ExpectationSide | null, notation: Notation): string {
   if (!s) return "—";
-  const margin =
-    s.margin === null ? "" : `, margin ${s.unit ? formatEng(s.margin, s.unit, 3) : formatNumber(s.margin, 3)}`;
+  const margin = s.margin === null ? "" : `, margin ${formatValue(s.margin, s.unit, { notation, digits: 3 })}`;
   return `${s.passed ? "pass" : "fail"} (${s.pointsPassed.toLocaleString("en-US")}/${s.points.toLocaleString("en-US")}${margin})`;
 }
 
-export function ExpectationsSection({ changes, labels }: { changes: ExpectationChange[]; labels: [string, string] }) {
+export function ExpectationsSection({
+  changes,
+  labels,
+  notation = "si",
+}: {
+  changes: ExpectationChange[];
+  labels: [string, string];
+  /** The reader's notation (its cookie, read by the page). */
+  notation?: Notation;
+}) {
   const newlyFailing = changes.filter((c) => c.change === "newly failing").length;
   const changed = changes.filter((c) => c.change !== "still passing" && c.change !== "still failing").length;
   return (
@@ -58,8 +66,8 @@ export function ExpectationsSection({ changes, labels }: { changes: ExpectationC
                 >
                   <td className="py-1 pr-3 font-mono">{c.name}</td>
                   <td className="py-1 pr-3 text-stone-600">{c.analysis}</td>
-                  <td className="tabular py-1 pr-3">{status(c.from)}</td>
-                  <td className="tabular py-1 pr-3">{status(c.to)}</td>
+                  <td className="tabular py-1 pr-3">{status(c.from, notation)}</td>
+                  <td className="tabular py-1 pr-3">{status(c.to, notation)}</td>
                   <td className={`py-1 pr-3 ${CHANGE_STYLE[c.change]}`}>{c.change}</td>
                 </tr>
               ))}

@@ -1,4 +1,5 @@
 /** Nodes, devices and rails of one analysis, a row per kind: how many moved, and which moved most. */
+import type { Notation } from "@/app/lib/format";
 import type { KindSummary } from "@/app/lib/review/sweep-compare";
 import { formatChange, formatPointRef, formatRelative } from "./value-format";
 
@@ -10,7 +11,7 @@ export const KIND_LABEL: Record<string, string> = {
   "probe/value": "probes",
 };
 
-export function KindSummaries({ kinds }: { kinds: KindSummary[] }) {
+export function KindSummaries({ kinds, notation = "si" }: { kinds: KindSummary[]; notation?: Notation }) {
   const rows = kinds.filter((k) => k.kind !== "probe");
   if (rows.length === 0) return null;
   return (
@@ -45,9 +46,11 @@ export function KindSummaries({ kinds }: { kinds: KindSummary[] }) {
               </td>
               <td className="px-2 py-1 font-mono">{k.top && k.moved ? k.top.name : "—"}</td>
               <td className="px-2 py-1 text-right font-mono">
-                {k.top && k.moved ? formatChange(k.top.maxAbs, k.unit) : "—"}
+                {k.top && k.moved ? formatChange(k.top.maxAbs, k.unit, notation) : "—"}
               </td>
-              <td className="px-2 py-1 text-stone-600">{k.top && k.moved ? formatPointRef(k.top.absAt) : ""}</td>
+              <td className="px-2 py-1 text-stone-600">
+                {k.top && k.moved ? formatPointRef(k.top.absAt, notation) : ""}
+              </td>
               <td className="px-2 py-1 font-mono">
                 {k.topRel && k.moved ? `${k.topRel.name} ${formatRelative(k.topRel.maxRel)}` : "—"}
               </td>

@@ -1,5 +1,5 @@
 /** The compare page's results: per matched analysis, what moved (summaries, overlays, tables by kind). */
-import { formatEng } from "@/app/lib/format";
+import { formatValue, type Notation } from "@/app/lib/format";
 import type { AnalysisSummary } from "@/app/lib/review/compare-data";
 import type { Comparison } from "@/app/lib/review/diffs";
 import { AddedRemoved } from "./added-removed";
@@ -9,9 +9,11 @@ export interface ResultsDiffSectionProps {
   comparison: Comparison;
   analyses: AnalysisSummary[];
   query: Record<string, string>;
+  /** The reader's notation (its cookie, read by the page) for the values written on the server. */
+  notation?: Notation;
 }
 
-export function ResultsDiffSection({ comparison, analyses, query }: ResultsDiffSectionProps) {
+export function ResultsDiffSection({ comparison, analyses, query, notation = "si" }: ResultsDiffSectionProps) {
   const results = comparison.results;
   const labels: [string, string] = [
     `before ${comparison.from.id.slice(0, 7)}`,
@@ -25,12 +27,13 @@ export function ResultsDiffSection({ comparison, analyses, query }: ResultsDiffS
       <p className="text-sm" data-testid="moved-summary">
         <strong>{results.beyond.toLocaleString("en-US")}</strong> of {results.compared.toLocaleString("en-US")} values
         moved beyond tolerance (relative {results.tolerance.rel}, currents{" "}
-        {formatEng(results.tolerance.absCurrent, "A")}, voltages {formatEng(results.tolerance.absVoltage, "V")}).
+        {formatValue(results.tolerance.absCurrent, "A", { notation })}, voltages{" "}
+        {formatValue(results.tolerance.absVoltage, "V", { notation })}).
       </p>
       <AddedRemoved results={results} />
       {analyses.length === 0 ? <p className="text-sm text-stone-600">Neither commit has a finished run.</p> : null}
       {analyses.map((a) => (
-        <AnalysisComparison key={a.analysis} summary={a} query={query} labels={labels} />
+        <AnalysisComparison key={a.analysis} summary={a} query={query} labels={labels} notation={notation} />
       ))}
       <p role="note" className="text-xs text-stone-500">
         Results are model estimates: silicon must be verified by measurement, and a foundry&apos;s models and design

@@ -1,3 +1,4 @@
+import { requestNotation } from "@/app/lib/notation";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
@@ -34,6 +35,7 @@ export default async function ComparePage({ params, searchParams }: Props) {
   const q = await searchParams;
   const path = `/w/${slug}/n/${netSlug}/compare`;
   const { workspace, can } = await workspacePage(slug, path);
+  const notation = await requestNotation();
   const net = networkBySlug(workspace.id, netSlug);
   if (!net) notFound();
   const history = listCommits(net.id);
@@ -133,11 +135,13 @@ export default async function ComparePage({ params, searchParams }: Props) {
             labels={[`before · ${short(cmp.from.id)}`, `after · ${short(cmp.to.id)}`]}
           />
           <ExpectationsSection
+            notation={notation}
             changes={cmp.expectations}
             labels={[`before · ${short(cmp.from.id)}`, `after · ${short(cmp.to.id)}`]}
           />
           <SensitivityChanges fromId={cmp.from.id} toId={cmp.to.id} />
           <ResultsDiffSection
+            notation={notation}
             comparison={cmp}
             analyses={analyses}
             query={{
