@@ -34,6 +34,7 @@ import {
   layoutTexts,
   parseStoredLayout,
 } from "./run-layouts";
+import { processShared } from "./process-shared";
 
 /** Names of everything a point stores, in the order of the blob columns. */
 export interface RunLayout extends PointNames {
@@ -324,8 +325,8 @@ export function jsonNumbers(a: ArrayLike<number>): (number | null)[] {
   return out;
 }
 
-const layoutCache = new LayoutCache<FullLayout>();
-const headCache = new LayoutCache<LayoutHead>();
+const layoutCache = processShared("results.layout", () => new LayoutCache<FullLayout>());
+const headCache = processShared("results.head", () => new LayoutCache<LayoutHead>());
 
 /**
  * A run's whole layout (immutable once written), with its names; null before the run started. Parsing a large
@@ -509,7 +510,10 @@ export function pointBinary(
  * point order; points are stored in order) and re-serialises. The run page's
  * readers poll this every few seconds while a run is live.
  */
-const seriesCache = new Map<string, { columns: SeriesColumns; /** The SeriesView as JSON. */ json: string }>();
+const seriesCache = processShared(
+  "results.series",
+  () => new Map<string, { columns: SeriesColumns; /** The SeriesView as JSON. */ json: string }>(),
+);
 const SERIES_CACHE_SIZE = 16;
 
 export function seriesJson(
@@ -567,7 +571,7 @@ export function seriesJson(
   return wrap(entry.json);
 }
 
-const layoutJsonCache = new LayoutCache<string>();
+const layoutJsonCache = processShared("results.layout-json", () => new LayoutCache<string>());
 
 /** `{ "layout": … }` as JSON text, joined from the stored texts without parsing them; null before the run started. */
 export function layoutJson(runId: string, d: Q = db()): string | null {

@@ -5,9 +5,10 @@
  */
 import { sensitivityInWorker } from "./interactive";
 import type { SensitivityView } from "./sensitivity-view";
+import { processShared } from "./process-shared";
 
 const CACHE_SIZE = 16;
-const cache = new Map<string, Promise<SensitivityView>>();
+const cache = processShared("sensitivity.cache", () => new Map<string, Promise<SensitivityView>>());
 
 export function commitSensitivity(commit: { id: string; text: string }): Promise<SensitivityView> {
   let view = cache.get(commit.id);

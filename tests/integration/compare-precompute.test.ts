@@ -80,5 +80,12 @@ describe("a comparison computed when the run ends", () => {
     const r = await call("viewer", "compare/route", "GET", `/api/compare?from=${commit.id}&to=${child}`, {}, undefined);
     expect(r.status).toBe(200);
     expect(JSON.stringify(r.json)).toContain(toRun);
+
+    // Next bundles the compare page apart from the runs' code, each with its own copy of compare-data.ts: a fresh
+    // copy of the module (as the page's bundle loads it) sees the comparison computed ahead, and the results diff
+    vi.resetModules();
+    const pageCopy = await import("@/app/lib/review/compare-data");
+    expect(pageCopy).not.toBe(compareData);
+    expect(pageCopy.comparisonReady(fromRun, toRun)).toBe(true);
   });
 });

@@ -41,9 +41,10 @@ import {
   type EntitySort,
   type KindSummary,
 } from "./sweep-compare";
+import { processShared } from "../process-shared";
 
 const CACHE_SIZE = 8;
-const cache = new Map<string, AnalysisComparison>();
+const cache = processShared("compare-data.cache", () => new Map<string, AnalysisComparison>());
 
 function cacheKey(fromRunId: string, toRunId: string, tol: Tolerance): string {
   return `${fromRunId}>${toRunId}|${tol.rel},${tol.absCurrent},${tol.absVoltage},${tol.absProbe},${tol.absIc}`;
@@ -55,7 +56,7 @@ function remember(key: string, c: AnalysisComparison): void {
 }
 
 /** Comparisons being computed in the pool, by cache key (two visitors of a new pair share one computation). */
-const pending = new Map<string, Promise<void>>();
+const pending = processShared("compare-data.pending", () => new Map<string, Promise<void>>());
 
 /**
  * Computes, off the request thread, the comparison of every analysis of two commits that the cache lacks under

@@ -15,6 +15,7 @@ import { latestDoneRuns, runTable, analysisName } from "./run-tables";
 import { layoutHead } from "../run-layouts";
 import { expectationBadges, NOT_RUN, type ExpectationBadge } from "./expectation-status";
 import { compareExpectations, type ExpectationChange } from "./expectation-compare";
+import { processShared } from "../process-shared";
 
 /** Beyond-tolerance rows kept in a stored diff. */
 export const STORED_ROWS = 200;
@@ -167,7 +168,7 @@ export function commitBadge(commitId: string, d: Q = db()): CommitBadge {
 
 /** Results diffs of finished runs (they never change, so an entry never goes stale), newest use last. */
 const RESULTS_CACHE_SIZE = 8;
-const resultsCache = new Map<string, ResultsDiff>();
+const resultsCache = processShared("diffs.results", () => new Map<string, ResultsDiff>());
 
 function cachedResults(key: string, compute: () => ResultsDiff): ResultsDiff {
   const hit = resultsCache.get(key);
