@@ -180,6 +180,32 @@ describe("runs through the API", () => {
       ).json,
     ).toEqual(series.json);
     expect((series.json as { run: { state: string } }).run.state).toBe("done");
+    // what the run page asks for: the same series with its numbers at 7 significant digits, whole or in part
+    const round7 = (x: unknown): unknown =>
+      typeof x === "number"
+        ? Number.isFinite(x) && !Number.isInteger(x)
+          ? Number(x.toPrecision(7))
+          : x
+        : Array.isArray(x)
+          ? x.map(round7)
+          : x && typeof x === "object"
+            ? Object.fromEntries(Object.entries(x).map(([k, v]) => [k, round7(v)]))
+            : x;
+    for (const range of ["", "&from=2&to=6"]) {
+      const url = `/api/runs/${run.id}/results?view=series${range}`;
+      const full = await call("viewer", "runs/[id]/results/route", "GET", url, { id: run.id });
+      const seven = await call("viewer", "runs/[id]/results/route", "GET", `${url}&digits=7`, { id: run.id });
+      expect(seven.status).toBe(200);
+      expect(seven.json).toEqual(round7(full.json));
+      expect(seven.json).not.toEqual(full.json);
+    }
+    expect(
+      (
+        await call("viewer", "runs/[id]/results/route", "GET", `/api/runs/${run.id}/results?view=series&digits=2`, {
+          id: run.id,
+        })
+      ).status,
+    ).toBe(400);
     // a range that ends before it starts is a bad request, not an empty answer
     const backwards = await call(
       "viewer",

@@ -18,7 +18,7 @@ import { ExportLinks } from "./export-links";
 import { ModelCaution } from "./model-caution";
 import { ModelPanel } from "./model-panel";
 import { ProgressBar } from "./progress-bar";
-import { layoutKey, pointKey } from "./result-keys";
+import { layoutKey, pointKey, seriesKey } from "./result-keys";
 import { Results } from "./results";
 import { RunStateBadge } from "./run-state-badge";
 import { isLive } from "@/db/run-states";
@@ -47,7 +47,7 @@ export function RunView({ runId, canRun, hadResults = false }: RunViewProps) {
     void preload(layoutKey(runId), getJson);
     void preload(pointKey(runId, 0), getBytes);
   }, [hasResults, runId]);
-  const series = useSWR<{ series: SeriesView }>(hasResults ? `/api/runs/${runId}/results?view=series` : null, getJson, {
+  const series = useSWR<{ series: SeriesView }>(hasResults ? seriesKey(runId) : null, getJson, {
     refreshInterval: run && isLive(run.state) ? 2000 : 0,
   });
   const [cancelError, setCancelError] = useState<string | null>(null);

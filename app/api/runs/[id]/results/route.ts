@@ -11,6 +11,7 @@ import {
   seriesJson,
   seriesView,
 } from "@/app/lib/results";
+import { roundTo } from "@/app/lib/format";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -20,6 +21,8 @@ const Query = z.discriminatedUnion("view", [
     view: z.literal("series"),
     from: z.coerce.number().int().min(0).optional(),
     to: z.coerce.number().int().min(0).optional(),
+    /** Numbers at this many significant digits (default: as stored, 17). */
+    digits: z.coerce.number().int().min(4).max(17).optional(),
   }),
   z.object({
     view: z.literal("point"),
@@ -34,7 +37,8 @@ const Query = z.discriminatedUnion("view", [
 
 /**
  * GET /api/runs/[id]/results (workspace.read)
- * - `?view=series[&from=A&to=B]`: params, probes and solver figures of every stored point, column by column;
+ * - `?view=series[&from=A&to=B][&digits=D]`: params, probes and solver figures of every stored point, column by
+ *   column; `digits` rounds the numbers to D (4–17) significant digits (the run page asks for 7);
  * - `?view=point&point=K[&offset=O&limit=L]`: point K's rails and probes, and its nodes and devices from O, at most
  *   L (default and largest POINT_VIEW_LIMIT) of each, names included; `page` says what was left out;
  *   `&format=binary`: the same numbers without names as stored (app/lib/point-codec.ts), what the run page reads;
@@ -55,11 +59,15 @@ export function GET(request: Request, ctx: Ctx) {
       if (q.from === undefined && q.to === undefined) {
         // A done run's series never changes again: the browser may keep it (a second visit sends nothing).
         const cache = run.state === "done" ? "private, max-age=86400" : "no-store";
-        return new Response(seriesJson(run.id, layout, head), {
+        return new Response(seriesJson(run.id, layout, head, undefined, q.digits), {
           headers: { "content-type": "application/json", "cache-control": cache },
         });
       }
-      return fresh({ ...head, series: seriesView(run.id, layout, q.from, q.to) });
+      const part = { ...head, series: seriesView(run.id, layout, q.from, q.to) };
+      const digits = q.digits;
+      if (digits === undefined) return fresh(part);
+      const text = JSON.stringify(part, (_k, v: unknown) => (typeof v === "number" ? roundTo(v, digits) : v));
+      return new Response(text, { headers: { "content-type": "application/json", "cache-control": "no-store" } });
     }
     // The layout and a stored point never change: the browser may keep them.
     const keep = { "cache-control": "private, max-age=86400" };
