@@ -11,7 +11,11 @@ export async function AccountSlot({ inMenu = false }: { inMenu?: boolean }) {
   const actor = await getActor();
   if (!actor) {
     return (
-      <Link href="/signin" className="rounded border border-moss-600 px-3 py-1 text-moss-700 hover:bg-moss-50">
+      <Link
+        prefetch={false}
+        href="/signin"
+        className="rounded border border-moss-600 px-3 py-1 text-moss-700 hover:bg-moss-50"
+      >
         Sign in
       </Link>
     );
@@ -20,6 +24,7 @@ export async function AccountSlot({ inMenu = false }: { inMenu?: boolean }) {
   return (
     <div className={inMenu ? "flex flex-col items-start gap-2" : "flex items-center gap-3"}>
       <Link
+        prefetch={false}
         href="/inbox"
         data-testid={inMenu ? undefined : "inbox-badge"}
         aria-label={unread ? `Inbox, ${unread} unread` : "Inbox"}
@@ -32,7 +37,7 @@ export async function AccountSlot({ inMenu = false }: { inMenu?: boolean }) {
           </span>
         ) : null}
       </Link>
-      <Link href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
+      <Link prefetch={false} href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
         <span data-testid={inMenu ? undefined : "signed-in-as"}>{actor.name}</span>
       </Link>
       <form action={signOut}>

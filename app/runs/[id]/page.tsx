@@ -24,11 +24,11 @@ export default async function RunPage({ params }: Props) {
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
-        <Link href={`/w/${ws.slug}`} className="hover:text-moss-700">
+        <Link prefetch={false} href={`/w/${ws.slug}`} className="hover:text-moss-700">
           {ws.name}
         </Link>{" "}
         /{" "}
-        <Link href={`/w/${ws.slug}/n/${network.slug}`} className="hover:text-moss-700">
+        <Link prefetch={false} href={`/w/${ws.slug}/n/${network.slug}`} className="hover:text-moss-700">
           {network.name}
         </Link>{" "}
         / run
@@ -40,6 +40,7 @@ export default async function RunPage({ params }: Props) {
         <p className="text-sm text-stone-600">
           of commit{" "}
           <Link
+            prefetch={false}
             href={`/w/${ws.slug}/n/${network.slug}?commit=${commit.id}`}
             className="font-mono text-moss-700 hover:underline"
           >
