@@ -143,6 +143,11 @@ async function inPool(
   }
 }
 
+/** The thread ids of the pool's threads now (none before it starts). */
+export function localPoolThreadIds(): number[] {
+  return (state().piscina?.threads ?? []).map((w) => w.threadId);
+}
+
 /** Starts one thread ahead of the first run, so the first chunk does not wait for a thread to load the bundle. */
 export async function warmLocalPool(): Promise<void> {
   await piscina(1);

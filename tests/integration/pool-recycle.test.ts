@@ -1,10 +1,13 @@
 /**
- * A pool thread that still holds a large task's memory once idle reports it (app/lib/worker-memory.ts), and the
- * interactive pool then replaces itself, which ends the thread (all it held goes back to the system): only when no
- * task is in it, only for one of its own threads, and the new pool serves the next task.
+ * A pool thread that still holds a large task's memory once idle reports it (app/lib/worker-memory.ts), and its
+ * pool (interactive, or the runs') then replaces itself, which ends the thread (all it held goes back to the
+ * system): only when no task is in it, only for one of its own threads, and the new pool serves the next task.
  */
 import { BroadcastChannel } from "node:worker_threads";
-import { afterAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
+import { apiCaller } from "../helpers/api";
+import { pairSweep } from "../helpers/pair-sweep";
 import {
   checkTextInWorker,
   closeInteractivePool,
@@ -13,10 +16,26 @@ import {
 } from "@/app/lib/interactive";
 import { MEMORY_CHANNEL, type HeavyThread } from "@/app/lib/worker-memory";
 
+vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
+vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
+
 const pause = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const channel = new BroadcastChannel(MEMORY_CHANNEL);
-const report = (threadId: number) =>
-  channel.postMessage({ pool: "interactive", threadId, heldMb: 500 } satisfies HeavyThread);
+const report = (threadId: number, pool: HeavyThread["pool"] = "interactive") =>
+  channel.postMessage({ pool, threadId, heldMb: 500 } satisfies HeavyThread);
+
+let fixture: AccountsFixture;
+let call: ReturnType<typeof apiCaller>;
+let supervisor: typeof import("@/app/lib/run-supervisor");
+let runPool: typeof import("@/app/lib/run-pool");
+
+beforeAll(async () => {
+  fixture = buildAccountsFixture();
+  fixture.useCopy();
+  call = apiCaller(fixture);
+  supervisor = await import("@/app/lib/run-supervisor");
+  runPool = await import("@/app/lib/run-pool");
+});
 
 /** A chain of `n` devices: elaborating it keeps a pool thread busy for a while. */
 function chain(n: number): string {
@@ -26,7 +45,31 @@ function chain(n: number): string {
 afterAll(async () => {
   channel.close();
   await closeInteractivePool();
+  await supervisor.whenIdle();
+  await supervisor.closePool();
+  fixture.dispose();
 });
+
+async function startRun(points: number): Promise<string> {
+  const made = await call(
+    "designer",
+    "w/[slug]/networks/route",
+    "POST",
+    "/api/w/lm64-edge-row/networks",
+    { slug: "lm64-edge-row" },
+    { name: `Recycle ${points}`, text: pairSweep(points), message: "first" },
+  );
+  expect(made.status).toBe(201);
+  const commit = (made.json as { commit: { id: string } }).commit.id;
+  const r = await call("designer", "runs/route", "POST", "/api/runs", {}, { commit });
+  expect(r.status).toBe(201);
+  return (r.json as { run: { id: string } }).run.id;
+}
+
+async function stateOf(id: string): Promise<string> {
+  const r = await call("viewer", "runs/[id]/route", "GET", `/api/runs/${id}`, { id });
+  return (r.json as { run: { state: string } }).run.state;
+}
 
 describe("the interactive pool replaces a thread that holds too much", () => {
   it("not while a task is in it, nor for a thread that is not its own; once idle, yes, and it still serves", async () => {
@@ -53,4 +96,27 @@ describe("the interactive pool replaces a thread that holds too much", () => {
     expect(again.ok).toBe(true);
     expect(interactiveThreadIds().length).toBeGreaterThan(0);
   }, 60_000);
+});
+
+describe("the run pool replaces a thread that holds too much", () => {
+  it("not while a run's chunk is in it; once idle, yes, and the next run is solved", async () => {
+    await supervisor.warmPool();
+    const [first] = runPool.localPoolThreadIds();
+    expect(first).toBeGreaterThan(0);
+
+    const busy = await startRun(20_000);
+    for (let k = 0; k < 100 && (await stateOf(busy)) !== "running"; k++) await pause(20);
+    report(first, "run");
+    await pause(150);
+    expect(runPool.localPoolThreadIds()).toContain(first);
+    await supervisor.whenIdle();
+    expect(await stateOf(busy)).toBe("done");
+
+    report(first, "run");
+    for (let k = 0; k < 80 && runPool.localPoolThreadIds().includes(first); k++) await pause(25);
+    expect(runPool.localPoolThreadIds()).not.toContain(first);
+    const next = await startRun(9);
+    await supervisor.whenIdle();
+    expect(await stateOf(next)).toBe("done");
+  }, 120_000);
 });
