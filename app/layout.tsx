@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { connection } from "next/server";
 import type { ReactNode } from "react";
 import { inter, jetbrains } from "./fonts";
@@ -15,21 +15,16 @@ export const metadata: Metadata = {
   description: "Workbench for weak-inversion transistor networks: write, check, solve, sweep, compare and sign off.",
 };
 
-/*
- * The header's links (and the run page's breadcrumbs) are not prefetched: every page view made the server render
- * each of them (eight payloads on a run page, twice) while the page's own data was loading, on the same two cores.
- * A click on one costs one request instead.
- */
 function NavLinks() {
   return (
     <>
-      <Link prefetch={false} href="/" className="hover:text-moss-700">
+      <HoverLink href="/" className="hover:text-moss-700">
         Workspaces
-      </Link>
+      </HoverLink>
       {mailboxEnabled() ? (
-        <Link prefetch={false} href="/dev/mailbox" className="hover:text-moss-700 sm:ml-4">
+        <HoverLink href="/dev/mailbox" className="hover:text-moss-700 sm:ml-4">
           Mailbox (dev)
-        </Link>
+        </HoverLink>
       ) : null}
     </>
   );
@@ -45,10 +40,10 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
         <NotationProvider initial={notation}>
           <header className="border-b border-stone-300 bg-white">
             <div className="mx-auto flex h-14 max-w-6xl items-center gap-6 px-4">
-              <Link prefetch={false} href="/" className="flex items-baseline gap-2" aria-label="Runnel home">
+              <HoverLink href="/" className="flex items-baseline gap-2" aria-label="Runnel home">
                 <span className="font-mono text-xl font-bold tracking-tight text-moss-700">runnel</span>
                 <span className="hidden text-xs text-stone-500 sm:inline">weak-inversion network workbench</span>
-              </Link>
+              </HoverLink>
               <nav className="hidden flex-1 text-sm text-stone-600 sm:block">
                 <NavLinks />
               </nav>

@@ -1,4 +1,4 @@
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { getActor } from "@/app/lib/auth";
 import { listWorkspacesFor } from "@/app/lib/workspaces";
 import { DemoAccounts } from "./ui/demo-accounts";
@@ -18,15 +18,18 @@ export default async function HomePage() {
             threads. Sign in to see the workspaces you are a member of.
           </p>
           <p className="flex gap-3 pt-2">
-            <Link
+            <HoverLink
               href="/signin"
               className="rounded bg-moss-600 px-3 py-1.5 text-sm font-medium text-white hover:bg-moss-700"
             >
               Sign in
-            </Link>
-            <Link href="/signup" className="rounded border border-stone-300 px-3 py-1.5 text-sm hover:bg-stone-100">
+            </HoverLink>
+            <HoverLink
+              href="/signup"
+              className="rounded border border-stone-300 px-3 py-1.5 text-sm hover:bg-stone-100"
+            >
               Create an account
-            </Link>
+            </HoverLink>
           </p>
         </section>
         <DemoAccounts />
@@ -52,9 +55,9 @@ export default async function HomePage() {
           {workspaces.map((w) => (
             <li key={w.id} className="rounded border border-stone-300 bg-white p-4 shadow-sm">
               <div className="flex items-baseline justify-between gap-2">
-                <Link href={`/w/${w.slug}`} className="font-medium text-moss-700 hover:underline">
+                <HoverLink href={`/w/${w.slug}`} className="font-medium text-moss-700 hover:underline">
                   {w.name}
-                </Link>
+                </HoverLink>
                 <span className="text-xs text-stone-500">{w.role}</span>
               </div>
               <p className="mt-1 text-sm text-stone-600">{w.description}</p>

@@ -1,4 +1,4 @@
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { signOut } from "@/app/(account)/actions";
 import { getActor } from "@/app/lib/auth";
 import { unreadCount } from "@/app/lib/inbox";
@@ -11,20 +11,15 @@ export async function AccountSlot({ inMenu = false }: { inMenu?: boolean }) {
   const actor = await getActor();
   if (!actor) {
     return (
-      <Link
-        prefetch={false}
-        href="/signin"
-        className="rounded border border-moss-600 px-3 py-1 text-moss-700 hover:bg-moss-50"
-      >
+      <HoverLink href="/signin" className="rounded border border-moss-600 px-3 py-1 text-moss-700 hover:bg-moss-50">
         Sign in
-      </Link>
+      </HoverLink>
     );
   }
   const unread = unreadCount(actor.userId);
   return (
     <div className={inMenu ? "flex flex-col items-start gap-2" : "flex items-center gap-3"}>
-      <Link
-        prefetch={false}
+      <HoverLink
         href="/inbox"
         data-testid={inMenu ? undefined : "inbox-badge"}
         aria-label={unread ? `Inbox, ${unread} unread` : "Inbox"}
@@ -36,10 +31,10 @@ export async function AccountSlot({ inMenu = false }: { inMenu?: boolean }) {
             {unread > 99 ? "99+" : unread}
           </span>
         ) : null}
-      </Link>
-      <Link prefetch={false} href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
+      </HoverLink>
+      <HoverLink href="/settings" className="text-stone-700 hover:text-moss-700" title={actor.email}>
         <span data-testid={inMenu ? undefined : "signed-in-as"}>{actor.name}</span>
-      </Link>
+      </HoverLink>
       <form action={signOut}>
         <button type="submit" className="rounded border border-stone-300 px-3 py-1 text-stone-700 hover:bg-stone-100">
           Sign out

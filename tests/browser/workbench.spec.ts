@@ -234,3 +234,22 @@ test("an owner archives a network, finds it under Archived networks and restores
   await archived.getByRole("button", { name: `Restore ${name}` }).click();
   await expect(list.getByRole("link", { name, exact: true })).toBeVisible();
 });
+
+test("links are fetched ahead on hover, not on arrival: the workspace page asks the server for nothing more", async ({
+  page,
+}) => {
+  await signIn(page);
+  const ahead: string[] = [];
+  page.on("request", (r) => {
+    if (r.url().includes("_rsc=")) ahead.push(new URL(r.url()).pathname);
+  });
+  await page.goto("/w/lm64-edge-row");
+  await expect(page.getByRole("heading", { level: 1 })).toBeVisible();
+  // every network and run of the list, and the header's links, used to be fetched ahead (29 payloads on this page)
+  await page.waitForTimeout(1000);
+  expect(ahead).toEqual([]);
+  await page.getByTestId("inbox-badge").hover();
+  await expect.poll(() => ahead).toContain("/inbox");
+  await page.getByTestId("inbox-badge").click();
+  await expect(page).toHaveURL(/\/inbox$/);
+});

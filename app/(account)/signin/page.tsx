@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { redirect } from "next/navigation";
 import { getActor, safeNext } from "@/app/lib/auth";
 import { DemoAccounts } from "@/app/ui/demo-accounts";
@@ -16,12 +16,12 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       <SignInForm next={next} />
       <p className="text-sm text-stone-600">
         No account yet?{" "}
-        <Link
+        <HoverLink
           href={`/signup${next !== "/" ? `?next=${encodeURIComponent(next)}` : ""}`}
           className="text-moss-700 underline"
         >
           Create one
-        </Link>
+        </HoverLink>
         . To join a team&apos;s workspace, use the link in your invitation e-mail.
       </p>
       <DemoAccounts />

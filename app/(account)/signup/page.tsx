@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { redirect } from "next/navigation";
 import { getActor, safeNext } from "@/app/lib/auth";
 import { PASSWORD_MIN } from "@/app/lib/passwords";
@@ -16,9 +16,9 @@ export default async function SignUpPage({ searchParams }: { searchParams: Promi
       <SignUpForm next={next} minLength={PASSWORD_MIN} />
       <p className="text-sm text-stone-600">
         Have an account?{" "}
-        <Link href="/signin" className="text-moss-700 underline">
+        <HoverLink href="/signin" className="text-moss-700 underline">
           Sign in
-        </Link>
+        </HoverLink>
         .
       </p>
     </div>

@@ -1,6 +1,6 @@
 "use client";
 import { useActionState } from "react";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { Field, FormMessage, Submit } from "@/app/ui/form";
 import { signUp } from "../actions";
 
@@ -11,12 +11,12 @@ export function SignUpForm({ next, minLength }: { next: string; minLength: numbe
     return (
       <div className="space-y-4 rounded border border-stone-300 bg-white p-5">
         <FormMessage state={state} />
-        <Link
+        <HoverLink
           href={`/signin?next=${encodeURIComponent(next)}`}
           className="inline-block rounded bg-moss-600 px-3 py-1.5 text-sm text-white hover:bg-moss-700"
         >
           Sign in
-        </Link>
+        </HoverLink>
       </div>
     );
   }

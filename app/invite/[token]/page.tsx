@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { getActor } from "@/app/lib/auth";
 import { INVITATION_PROBLEMS, lookupInvitation } from "@/app/lib/invitations";
 import { PASSWORD_MIN } from "@/app/lib/passwords";
@@ -40,9 +40,9 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
           </p>
         ) : null}
         <p className="text-sm">
-          <Link href="/signin" className="text-moss-700 underline">
+          <HoverLink href="/signin" className="text-moss-700 underline">
             Sign in
-          </Link>
+          </HoverLink>
         </p>
       </div>
     );

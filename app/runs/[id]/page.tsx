@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { commitAccess, found, runAccess } from "@/app/lib/access";
 import { pageAccess } from "@/app/lib/pages";
 import { roleAllows } from "@/app/lib/policy";
@@ -24,13 +24,13 @@ export default async function RunPage({ params }: Props) {
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
-        <Link prefetch={false} href={`/w/${ws.slug}`} className="hover:text-moss-700">
+        <HoverLink href={`/w/${ws.slug}`} className="hover:text-moss-700">
           {ws.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         /{" "}
-        <Link prefetch={false} href={`/w/${ws.slug}/n/${network.slug}`} className="hover:text-moss-700">
+        <HoverLink href={`/w/${ws.slug}/n/${network.slug}`} className="hover:text-moss-700">
           {network.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         / run
       </nav>
       <header className="space-y-1">
@@ -39,13 +39,12 @@ export default async function RunPage({ params }: Props) {
         </h1>
         <p className="text-sm text-stone-600">
           of commit{" "}
-          <Link
-            prefetch={false}
+          <HoverLink
             href={`/w/${ws.slug}/n/${network.slug}?commit=${commit.id}`}
             className="font-mono text-moss-700 hover:underline"
           >
             {commit.id.slice(0, 12)}
-          </Link>{" "}
+          </HoverLink>{" "}
           “{commit.message}” by {commit.authorName} ·{" "}
           <a href={`/api/commits/${commit.id}?download`} className="text-moss-700 hover:underline">
             download its text

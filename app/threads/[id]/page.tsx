@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { found, threadAccess } from "@/app/lib/access";
 import { listCommits } from "@/app/lib/networks";
 import { pageAccess } from "@/app/lib/pages";
@@ -47,13 +47,13 @@ export default async function ThreadPage({ params }: Props) {
   return (
     <div className="space-y-6">
       <nav className="text-sm text-stone-600" aria-label="Breadcrumb">
-        <Link href={`/w/${t.workspace.slug}`} className="hover:underline">
+        <HoverLink href={`/w/${t.workspace.slug}`} className="hover:underline">
           {t.workspace.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         /{" "}
-        <Link href={netPath} className="hover:underline">
+        <HoverLink href={netPath} className="hover:underline">
           {t.network.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         / thread
       </nav>
       <header className="space-y-2 border-b border-stone-200 pb-4">
@@ -65,12 +65,12 @@ export default async function ThreadPage({ params }: Props) {
           </span>
           <ReviewStateBadge state={t.review} />
           {t.commit.parentId ? (
-            <Link
+            <HoverLink
               href={`${netPath}/compare?from=${t.commit.parentId}&to=${t.commit.id}`}
               className="text-moss-700 hover:underline"
             >
               Compare with parent
-            </Link>
+            </HoverLink>
           ) : null}
         </p>
         {t.commitStates.length > 1 ? (
@@ -80,12 +80,12 @@ export default async function ThreadPage({ params }: Props) {
                 <span className="font-mono">{c.commitId.slice(0, 10)}</span> “{c.message}”{" "}
                 <ReviewStateBadge state={c.review} />
                 {c.commitId !== t.commit.id ? (
-                  <Link
+                  <HoverLink
                     href={`${netPath}/compare?from=${t.commit.id}&to=${c.commitId}`}
                     className="text-moss-700 hover:underline"
                   >
                     Compare {t.commit.id.slice(0, 10)} → {c.commitId.slice(0, 10)}
-                  </Link>
+                  </HoverLink>
                 ) : null}
               </li>
             ))}

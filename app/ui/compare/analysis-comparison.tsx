@@ -4,7 +4,7 @@
  * nodes, devices and rails by kind with their paged tables.
  */
 import type { Notation } from "@/app/lib/format";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import type { AnalysisSummary } from "@/app/lib/review/compare-data";
 import { EntityDrawer } from "./entity-table";
 import { KIND_LABEL, KindSummaries } from "./kind-summaries";
@@ -25,9 +25,9 @@ const mag = (v: number) => (Number.isNaN(v) ? -1 : Math.abs(v));
 export function AnalysisComparison({ summary: a, query, labels, notation = "si" }: AnalysisComparisonProps) {
   const runLink = (id: string | null) =>
     id ? (
-      <Link href={`/runs/${id}`} className="font-mono text-moss-700 hover:underline">
+      <HoverLink href={`/runs/${id}`} className="font-mono text-moss-700 hover:underline">
         {short(id)}
-      </Link>
+      </HoverLink>
     ) : (
       <span className="text-stone-500">none</span>
     );

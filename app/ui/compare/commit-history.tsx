@@ -1,5 +1,5 @@
 /** The network's commits, newest first, with review badges and a link comparing each with its parent. */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import type { CommitSummary } from "@/app/lib/networks";
 import type { CommitBadge } from "@/app/lib/review/diffs";
 import { CommitReviewBadges } from "@/app/ui/review/badges";
@@ -26,12 +26,12 @@ export function CommitHistory({ history, badges, comparePath }: CommitHistoryPro
             </span>
             <CommitReviewBadges badge={badges.get(c.id)} />
             {c.parentId ? (
-              <Link
+              <HoverLink
                 href={`${comparePath}?from=${c.parentId}&to=${c.id}`}
                 className="text-xs text-moss-700 hover:underline"
               >
                 compare with parent
-              </Link>
+              </HoverLink>
             ) : null}
           </li>
         ))}

@@ -3,7 +3,7 @@
  * state, its threads, and (for those who may comment) the form that opens a
  * thread, behind a toggle so the comparison stays in view.
  */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import type { ReviewState } from "@/app/lib/review/diffs";
 import { ReviewStateBadge } from "@/app/ui/review/badges";
 import { NewThreadForm } from "@/app/ui/review/comment-form";
@@ -45,9 +45,9 @@ export function CommitThreads({
         <ul className="space-y-1 text-sm">
           {threads.map((t) => (
             <li key={t.id}>
-              <Link href={`/threads/${t.id}`} className="text-moss-700 hover:underline">
+              <HoverLink href={`/threads/${t.id}`} className="text-moss-700 hover:underline">
                 {t.title}
-              </Link>{" "}
+              </HoverLink>{" "}
               <span className="text-stone-500">by {t.authorName}</span>
             </li>
           ))}

@@ -1,5 +1,5 @@
 /** The compare page's text section: how many lines went and came, a link to switch the view, and the diff. */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import type { TextDiff } from "@/app/lib/review/text-diff";
 import { SideBySideDiff } from "./side-by-side-diff";
 import { UnifiedDiff } from "./unified-diff";
@@ -26,9 +26,9 @@ export function TextDiffSection({ text, view, otherViewHref, labels }: TextDiffS
         <span className="flex-1" />
         <span className="text-sm text-stone-600">
           {view === "side" ? "facing columns" : "one column"} ·{" "}
-          <Link href={otherViewHref} className="text-moss-700 hover:underline">
+          <HoverLink href={otherViewHref} className="text-moss-700 hover:underline">
             {view === "side" ? "show in one column" : "show in facing columns"}
-          </Link>
+          </HoverLink>
         </span>
       </div>
       {!text.complete ? (

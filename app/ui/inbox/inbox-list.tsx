@@ -1,7 +1,7 @@
 "use client";
 
 /** The inbox's items, newest first: what happened, when, a link to its place; mark one or all read. */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import type { InboxItem } from "@/app/lib/inbox";
@@ -41,9 +41,9 @@ export function InboxList({
     <div className="space-y-3">
       <div className="flex flex-wrap items-center gap-3 text-sm">
         <span data-testid="inbox-unread">{unread.toLocaleString("en-US")} unread</span>
-        <Link href={unreadOnly ? "/inbox" : "/inbox?unread=1"} className="text-moss-700 hover:underline">
+        <HoverLink href={unreadOnly ? "/inbox" : "/inbox?unread=1"} className="text-moss-700 hover:underline">
           {unreadOnly ? "show everything" : "show unread only"}
-        </Link>
+        </HoverLink>
         <span className="flex-1" />
         {unread ? (
           <button
@@ -70,13 +70,13 @@ export function InboxList({
             className={`flex flex-wrap items-baseline gap-3 px-3 py-2 text-sm ${n.read ? "text-stone-500" : ""}`}
           >
             <span className="w-24 text-[11px] uppercase tracking-wider text-stone-500">{KIND[n.kind]}</span>
-            <Link
+            <HoverLink
               href={n.href}
               onClick={() => (n.read ? undefined : void sendJson("POST", "/api/inbox/read", { ids: [n.id] }))}
               className={`flex-1 hover:underline ${n.read ? "" : "font-medium text-stone-ink"}`}
             >
               {n.title}
-            </Link>
+            </HoverLink>
             <span className="text-xs text-stone-500">
               {new Date(n.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC
             </span>
@@ -93,12 +93,12 @@ export function InboxList({
         ))}
       </ol>
       {more ? (
-        <Link
+        <HoverLink
           href={`/inbox?${new URLSearchParams({ ...(unreadOnly ? { unread: "1" } : {}), before: items[items.length - 1].id })}`}
           className="text-sm text-moss-700 hover:underline"
         >
           older ›
-        </Link>
+        </HoverLink>
       ) : null}
     </div>
   );

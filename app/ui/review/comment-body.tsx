@@ -5,7 +5,7 @@
  * (app/lib/review/markdown.ts); each run placeholder `span.run-ref[data-run]`
  * in it is replaced, after mount, by a card for that run.
  */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useEffect, useRef, useState } from "react";
 import { createPortal } from "react-dom";
 import type { RunCard as RunCardData } from "@/app/lib/review/threads";
@@ -22,7 +22,7 @@ export function RunCard({ card }: { card: RunCardData | undefined }) {
     );
   }
   return (
-    <Link
+    <HoverLink
       href={`/runs/${card.id}`}
       data-run-card={card.id}
       aria-label={`Run ${card.id}`}
@@ -42,7 +42,7 @@ export function RunCard({ card }: { card: RunCardData | undefined }) {
         </span>
       ))}
       {card.commitMessage ? <span className="truncate text-stone-500">on “{card.commitMessage}”</span> : null}
-    </Link>
+    </HoverLink>
   );
 }
 

@@ -3,7 +3,7 @@
  * history's review state and moved values, a link to compare, and the
  * measurements panel.
  */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { listCommits } from "@/app/lib/networks";
 import { commitBadges } from "@/app/lib/review/diffs";
 import { runsOfCommit } from "@/app/lib/review/run-tables";
@@ -39,18 +39,18 @@ export function ReviewPanel({
             Review
           </h2>
           {commits.length > 1 ? (
-            <Link href={compare} className="text-sm text-moss-700 hover:underline">
+            <HoverLink href={compare} className="text-sm text-moss-700 hover:underline">
               Compare commits
-            </Link>
+            </HoverLink>
           ) : null}
         </div>
         {threads.length ? (
           <ul className="space-y-1 text-sm" aria-label="Threads">
             {threads.map((t) => (
               <li key={t.id} className="flex flex-wrap items-center gap-2">
-                <Link href={`/threads/${t.id}`} className="text-moss-700 hover:underline">
+                <HoverLink href={`/threads/${t.id}`} className="text-moss-700 hover:underline">
                   {t.title}
-                </Link>
+                </HoverLink>
                 <span className="text-stone-500">
                   on {short(t.commitId)} “{message.get(t.commitId)}”, by {t.authorName}
                 </span>
@@ -71,12 +71,12 @@ export function ReviewPanel({
               <span className="flex-1 truncate">{c.message}</span>
               <CommitReviewBadges badge={badges.get(c.id)} />
               {c.parentId ? (
-                <Link
+                <HoverLink
                   href={`${compare}?from=${c.parentId}&to=${c.id}`}
                   className="text-xs text-moss-700 hover:underline"
                 >
                   diff
-                </Link>
+                </HoverLink>
               ) : null}
             </li>
           ))}

@@ -5,7 +5,7 @@
  * tabs of result views, fed by the series (all points' probes) and the chosen
  * point's binary record.
  */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useMemo, useState } from "react";
 import useSWR from "swr";
 import { decodePoint, pointData } from "@/app/lib/point-codec";
@@ -174,7 +174,7 @@ export function Results({
       </div>
       {current?.error ? <p className="text-sm text-ember-500">This point was not solved: {current.error}</p> : null}
       <p className="text-xs text-stone-500">
-        Permalink: <Link href={`/runs/${runId}`}>/runs/{runId}</Link>
+        Permalink: <HoverLink href={`/runs/${runId}`}>/runs/{runId}</HoverLink>
       </p>
     </section>
   );

@@ -4,7 +4,7 @@
  * The workspace's archived networks, for an owner: folded under the list,
  * each with a button that brings it back (PATCH archived: false).
  */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useState } from "react";
 import useSWR from "swr";
 import type { NetworkSummary } from "@/app/lib/networks";
@@ -43,9 +43,9 @@ export function ArchivedNetworks({ slug, onRestored }: { slug: string; onRestore
         >
           {list.map((n) => (
             <li key={n.id} className="flex flex-wrap items-center gap-3 px-4 py-2">
-              <Link href={`/w/${slug}/n/${n.slug}`} className="flex-1 text-stone-700 hover:text-moss-700">
+              <HoverLink href={`/w/${slug}/n/${n.slug}`} className="flex-1 text-stone-700 hover:text-moss-700">
                 {n.name}
-              </Link>
+              </HoverLink>
               <span className="text-xs text-stone-500">{n.commitCount} commits kept</span>
               <button
                 type="button"

@@ -1,6 +1,6 @@
 "use client";
 
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useState } from "react";
 import type { NetworkSummary } from "@/app/lib/networks";
 import { sendJson } from "@/app/ui/fetch";
@@ -79,9 +79,9 @@ export function NetworkItem({
           </form>
         ) : (
           <div className="flex items-baseline gap-3">
-            <Link href={`/w/${slug}/n/${n.slug}`} className="font-medium text-moss-700 hover:underline">
+            <HoverLink href={`/w/${slug}/n/${n.slug}`} className="font-medium text-moss-700 hover:underline">
               {n.name}
-            </Link>
+            </HoverLink>
             {n.headCommitId ? <HeadReview commitId={n.headCommitId} /> : null}
             {canWrite ? (
               <button
@@ -130,14 +130,14 @@ export function NetworkItem({
       </div>
       <div className="w-full text-xs sm:w-auto sm:min-w-40 sm:text-right">
         {n.lastRun ? (
-          <Link
+          <HoverLink
             href={`/runs/${n.lastRun.id}`}
             className="inline-flex flex-wrap items-center gap-1 text-stone-600 hover:text-moss-700 sm:justify-end"
             aria-label={`Newest run of ${n.name}: ${n.lastRun.state}`}
           >
             run <RunStateBadge state={n.lastRun.state} />
             <RunValidity run={n.lastRun} />
-          </Link>
+          </HoverLink>
         ) : (
           <span className="text-stone-400">no runs</span>
         )}

@@ -6,7 +6,7 @@
  * selected commit with their progress. Leaving with uncommitted edits asks
  * first. Data from /api/networks/…, /api/commits/…, /api/runs… through SWR.
  */
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useCallback, useEffect, useRef, useState } from "react";
 import useSWR from "swr";
 import type { CommitRow, CommitSummary, NetworkRow } from "@/app/lib/networks";
@@ -368,12 +368,12 @@ export function NetworkWorkbench({ workspaceSlug, network, initialCommitId, canW
         />
         <RunsPanel runs={runs.data?.runs} commitId={selectedId} onCanceled={() => void runs.mutate()} canRun={canRun} />
         {commits.length > 1 ? (
-          <Link
+          <HoverLink
             href={`/w/${workspaceSlug}/n/${network.slug}/compare`}
             className="block text-sm text-moss-700 hover:underline"
           >
             Compare commits →
-          </Link>
+          </HoverLink>
         ) : null}
       </aside>
     </div>

@@ -1,6 +1,6 @@
 "use client";
 
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { useMemo } from "react";
 import type { RunRow } from "@/app/lib/runs";
 import { sendJson } from "@/app/ui/fetch";
@@ -34,9 +34,9 @@ export function RunsPanel({
           {list.map((r) => (
             <li key={r.id} className="space-y-1 px-3 py-2 text-sm">
               <div className="flex items-center justify-between gap-2">
-                <Link href={`/runs/${r.id}`} className="font-mono text-xs text-moss-700 hover:underline">
+                <HoverLink href={`/runs/${r.id}`} className="font-mono text-xs text-moss-700 hover:underline">
                   {r.id}
-                </Link>
+                </HoverLink>
                 <RunStateBadge state={r.state} />
               </div>
               {isLive(r.state) ? (

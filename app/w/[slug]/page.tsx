@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { workspacePage } from "@/app/lib/pages";
 import { NetworkList } from "@/app/ui/workbench/network-list";
 
@@ -26,9 +26,9 @@ export default async function WorkspacePageView({ params }: Props) {
           <span className="rounded bg-stone-100 px-2 py-0.5 text-stone-600" title="Your role in this workspace">
             {role}
           </span>
-          <Link href={`/w/${workspace.slug}/members`} className="text-moss-700 hover:underline">
+          <HoverLink href={`/w/${workspace.slug}/members`} className="text-moss-700 hover:underline">
             Members
-          </Link>
+          </HoverLink>
         </nav>
       </header>
       <NetworkList slug={workspace.slug} canWrite={can("network.write")} canManage={can("workspace.manage")} />

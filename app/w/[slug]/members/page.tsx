@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { listPendingInvitations } from "@/app/lib/invitations";
 import { listMembers } from "@/app/lib/members";
 import { workspacePage } from "@/app/lib/pages";
@@ -22,9 +22,9 @@ export default async function MembersPage({ params }: { params: Promise<{ slug: 
     <div className="max-w-4xl space-y-8">
       <header className="space-y-1 border-b border-stone-200 pb-4">
         <p className="text-sm">
-          <Link href={`/w/${workspace.slug}`} className="text-moss-700 hover:underline">
+          <HoverLink href={`/w/${workspace.slug}`} className="text-moss-700 hover:underline">
             {workspace.name}
-          </Link>
+          </HoverLink>
         </p>
         <h1 className="text-2xl font-semibold">Members</h1>
         <p className="text-sm text-stone-600">

@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { notFound } from "next/navigation";
 import { getCommit, networkBySlug } from "@/app/lib/networks";
 import { workspacePage } from "@/app/lib/pages";
@@ -26,9 +26,9 @@ export default async function NetworkPage({ params, searchParams }: Props) {
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
-        <Link href={`/w/${workspace.slug}`} className="hover:text-moss-700">
+        <HoverLink href={`/w/${workspace.slug}`} className="hover:text-moss-700">
           {workspace.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         / network
       </nav>
       <h1 className="text-2xl font-semibold">{network.name}</h1>

@@ -1,6 +1,6 @@
 import { requestNotation } from "@/app/lib/notation";
 import type { Metadata } from "next";
-import Link from "next/link";
+import { HoverLink } from "@/app/ui/hover-link";
 import { notFound } from "next/navigation";
 import { RequestError } from "@/app/lib/http";
 import { getCommit, listCommits, networkBySlug } from "@/app/lib/networks";
@@ -82,13 +82,13 @@ export default async function ComparePage({ params, searchParams }: Props) {
   return (
     <div className="space-y-8">
       <nav className="text-sm text-stone-600" aria-label="Breadcrumb">
-        <Link href={`/w/${workspace.slug}`} className="hover:underline">
+        <HoverLink href={`/w/${workspace.slug}`} className="hover:underline">
           {workspace.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         /{" "}
-        <Link href={netPath} className="hover:underline">
+        <HoverLink href={netPath} className="hover:underline">
           {net.name}
-        </Link>{" "}
+        </HoverLink>{" "}
         / compare
       </nav>
       <h1 className="text-2xl font-semibold">Compare commits of {net.name}</h1>
