@@ -10,24 +10,33 @@ import Link from "next/link";
 import { useRouter } from "next/navigation";
 import type { ComponentProps } from "react";
 
+/** The app router, or null where none is mounted (a page rendered to a string): there is nothing to fetch into. */
+function useMountedRouter(): ReturnType<typeof useRouter> | null {
+  try {
+    return useRouter();
+  } catch {
+    return null;
+  }
+}
+
 export function HoverLink({
   href,
   onMouseEnter,
   onFocus,
   ...rest
 }: Omit<ComponentProps<typeof Link>, "href" | "prefetch"> & { href: string }) {
-  const router = useRouter();
+  const router = useMountedRouter();
   return (
     <Link
       {...rest}
       href={href}
       prefetch={false}
       onMouseEnter={(e) => {
-        router.prefetch(href);
+        router?.prefetch(href);
         onMouseEnter?.(e);
       }}
       onFocus={(e) => {
-        router.prefetch(href);
+        router?.prefetch(href);
         onFocus?.(e);
       }}
     />
