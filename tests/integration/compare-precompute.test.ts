@@ -4,31 +4,18 @@
  * the pair is ready without a visit, and the compare API then answers from it. Runs go through the route and the
  * real pool. The values themselves are checked in review-compare.test.ts.
  */
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
-import { apiCaller } from "../helpers/api";
+import { beforeAll, describe, expect, it, vi } from "vitest";
+import { newNetwork, withRunFixture } from "../helpers/run-fixture";
 import { pairSweep } from "../helpers/pair-sweep";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
 
-let fixture: AccountsFixture;
-let call: ReturnType<typeof apiCaller>;
-let supervisor: typeof import("@/app/lib/run-supervisor");
+const t = withRunFixture();
 let compareData: typeof import("@/app/lib/review/compare-data");
 
 beforeAll(async () => {
-  fixture = buildAccountsFixture();
-  fixture.useCopy();
-  call = apiCaller(fixture);
-  supervisor = await import("@/app/lib/run-supervisor");
   compareData = await import("@/app/lib/review/compare-data");
-});
-
-afterAll(async () => {
-  await supervisor.whenIdle();
-  await supervisor.closePool();
-  fixture.dispose();
 });
 
 async function until(what: string, ok: () => boolean, ms = 30_000): Promise<void> {
@@ -40,27 +27,20 @@ async function until(what: string, ok: () => boolean, ms = 30_000): Promise<void
 }
 
 async function run(commit: string): Promise<string> {
-  const r = await call("designer", "runs/route", "POST", "/api/runs", {}, { commit });
+  const r = await t.call("designer", "runs/route", "POST", "/api/runs", {}, { commit });
   expect(r.status).toBe(201);
   const id = (r.json as { run: { id: string } }).run.id;
-  await supervisor.whenIdle();
+  await t.supervisor.whenIdle();
   return id;
 }
 
 describe("a comparison computed when the run ends", () => {
   it("is ready for the parent → child pair before any visit, and the compare API answers from it", async () => {
-    const made = await call(
-      "designer",
-      "w/[slug]/networks/route",
-      "POST",
-      "/api/w/lm64-edge-row/networks",
-      { slug: "lm64-edge-row" },
-      { name: "Precompute pair", text: pairSweep(9), message: "first" },
-    );
-    expect(made.status).toBe(201);
-    const { network, commit } = made.json as { network: { id: string }; commit: { id: string } };
+    const made = await newNetwork(t, "Precompute pair", pairSweep(9));
+    const network = { id: made.network };
+    const commit = { id: made.commit };
     const fromRun = await run(commit.id);
-    const next = await call(
+    const next = await t.call(
       "designer",
       "networks/[id]/commits/route",
       "POST",
@@ -77,7 +57,14 @@ describe("a comparison computed when the run ends", () => {
     expect(compareData.comparisonReady(fromRun, fromRun)).toBe(false);
     const toRun = await run(child);
     await until("the pair's comparison", () => compareData.comparisonReady(fromRun, toRun));
-    const r = await call("viewer", "compare/route", "GET", `/api/compare?from=${commit.id}&to=${child}`, {}, undefined);
+    const r = await t.call(
+      "viewer",
+      "compare/route",
+      "GET",
+      `/api/compare?from=${commit.id}&to=${child}`,
+      {},
+      undefined,
+    );
     expect(r.status).toBe(200);
     expect(JSON.stringify(r.json)).toContain(toRun);
 

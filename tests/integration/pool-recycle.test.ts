@@ -5,8 +5,7 @@
  */
 import { BroadcastChannel } from "node:worker_threads";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
-import { apiCaller } from "../helpers/api";
+import { newNetwork, withRunFixture } from "../helpers/run-fixture";
 import { pairSweep } from "../helpers/pair-sweep";
 import {
   checkTextInWorker,
@@ -24,16 +23,10 @@ const channel = new BroadcastChannel(MEMORY_CHANNEL);
 const report = (threadId: number, pool: HeavyThread["pool"] = "interactive") =>
   channel.postMessage({ pool, threadId, heldMb: 500 } satisfies HeavyThread);
 
-let fixture: AccountsFixture;
-let call: ReturnType<typeof apiCaller>;
-let supervisor: typeof import("@/app/lib/run-supervisor");
+const t = withRunFixture();
 let runPool: typeof import("@/app/lib/run-pool");
 
 beforeAll(async () => {
-  fixture = buildAccountsFixture();
-  fixture.useCopy();
-  call = apiCaller(fixture);
-  supervisor = await import("@/app/lib/run-supervisor");
   runPool = await import("@/app/lib/run-pool");
 });
 
@@ -45,29 +38,17 @@ function chain(n: number): string {
 afterAll(async () => {
   channel.close();
   await closeInteractivePool();
-  await supervisor.whenIdle();
-  await supervisor.closePool();
-  fixture.dispose();
 });
 
 async function startRun(points: number): Promise<string> {
-  const made = await call(
-    "designer",
-    "w/[slug]/networks/route",
-    "POST",
-    "/api/w/lm64-edge-row/networks",
-    { slug: "lm64-edge-row" },
-    { name: `Recycle ${points}`, text: pairSweep(points), message: "first" },
-  );
-  expect(made.status).toBe(201);
-  const commit = (made.json as { commit: { id: string } }).commit.id;
-  const r = await call("designer", "runs/route", "POST", "/api/runs", {}, { commit });
+  const { commit } = await newNetwork(t, `Recycle ${points}`, pairSweep(points));
+  const r = await t.call("designer", "runs/route", "POST", "/api/runs", {}, { commit });
   expect(r.status).toBe(201);
   return (r.json as { run: { id: string } }).run.id;
 }
 
 async function stateOf(id: string): Promise<string> {
-  const r = await call("viewer", "runs/[id]/route", "GET", `/api/runs/${id}`, { id });
+  const r = await t.call("viewer", "runs/[id]/route", "GET", `/api/runs/${id}`, { id });
   return (r.json as { run: { state: string } }).run.state;
 }
 
@@ -100,7 +81,7 @@ describe("the interactive pool replaces a thread that holds too much", () => {
 
 describe("the run pool replaces a thread that holds too much", () => {
   it("not while a run's chunk is in it; once idle, yes, and the next run is solved", async () => {
-    await supervisor.warmPool();
+    await t.supervisor.warmPool();
     const [first] = runPool.localPoolThreadIds();
     expect(first).toBeGreaterThan(0);
 
@@ -109,14 +90,14 @@ describe("the run pool replaces a thread that holds too much", () => {
     report(first, "run");
     await pause(150);
     expect(runPool.localPoolThreadIds()).toContain(first);
-    await supervisor.whenIdle();
+    await t.supervisor.whenIdle();
     expect(await stateOf(busy)).toBe("done");
 
     report(first, "run");
     for (let k = 0; k < 80 && runPool.localPoolThreadIds().includes(first); k++) await pause(25);
     expect(runPool.localPoolThreadIds()).not.toContain(first);
     const next = await startRun(9);
-    await supervisor.whenIdle();
+    await t.supervisor.whenIdle();
     expect(await stateOf(next)).toBe("done");
   }, 120_000);
 });
