@@ -149,7 +149,9 @@ describe("runs through the API", () => {
     const asDesigner = await startRun("designer", { commit: commit2.id });
     expect(asDesigner.status).toBe(201);
     const run = (asDesigner.json as { run: RunJson }).run;
-    expect(run).toMatchObject({ state: "queued", pointsTotal: 9 });
+    expect(run.pointsTotal).toBe(9);
+    // a free pool thread may have claimed it before the answer was written
+    expect(["queued", "running"]).toContain(run.state);
     const done = await until(run.id, ended);
     expect(done).toMatchObject({ state: "done", pointsDone: 9, reason: null });
     expect((await until((asReviewer.json as { run: RunJson }).run.id, ended)).state).toBe("done");
