@@ -158,10 +158,13 @@ export function roundTo(v: number, digits: number): number {
   return Number.isFinite(v) && !Number.isInteger(v) ? Number(v.toPrecision(digits)) : v;
 }
 
+/** A JSON.stringify replacer writing every number at `digits` significant digits (`roundTo`). */
+export function roundingReplacer(digits: number): (key: string, v: unknown) => unknown {
+  return (_key, v) => (typeof v === "number" ? roundTo(v, digits) : v);
+}
+
 /**
  * A JSON.stringify replacer for values sent only to be plotted and read at 4 significant digits: a fractional
  * number keeps 7 (about half the characters of the 17 JavaScript writes); integers, ±∞ and NaN are left alone.
  */
-export function plotPrecision(_key: string, v: unknown): unknown {
-  return typeof v === "number" ? roundTo(v, 7) : v;
-}
+export const plotPrecision = roundingReplacer(7);

@@ -35,6 +35,7 @@ import type { ParseResult } from "./review/measurements";
 import type { PlanText, TextCheck } from "./text-check";
 import type { SeekSpec, SeekView, SensitivityView } from "./sensitivity-view";
 import type { StructureView } from "./structure";
+import { processShared } from "./process-shared";
 import { POOL_ATOMICS, watchHeavyThreads, workerExecArgv, type HeavyThread } from "./worker-memory";
 
 export const INTERACTIVE_WORKER_FILE = () =>
@@ -89,12 +90,10 @@ async function poolWith(minThreads: number): Promise<Pool> {
   return g[KEY];
 }
 
-const BUSY = Symbol.for("runnel.interactive.busy");
-
-/** Tasks handed to the pool and not ended (on globalThis with the pool: every route bundle counts in one place). */
+/** Tasks handed to the pool and not ended (one count per process, however many route bundles load this module). */
+const inFlight = processShared("interactive.busy", () => ({ n: 0 }));
 function busy(delta = 0): number {
-  const g = globalThis as unknown as Record<symbol, number | undefined>;
-  return (g[BUSY] = (g[BUSY] ?? 0) + delta);
+  return (inFlight.n += delta);
 }
 
 /**

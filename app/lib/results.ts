@@ -35,7 +35,7 @@ import {
   parseStoredLayout,
 } from "./run-layouts";
 import { processShared } from "./process-shared";
-import { roundTo } from "./format";
+import { roundingReplacer } from "./format";
 
 /** Names of everything a point stores, in the order of the blob columns. */
 export interface RunLayout extends PointNames {
@@ -518,10 +518,8 @@ const seriesCache = processShared(
       string,
       {
         columns: SeriesColumns;
-        /** The SeriesView as JSON. */
-        json: string;
-        /** The same with numbers at `digits` significant digits, for `count` points. */
-        rounded?: { digits: number; count: number; json: string };
+        /** The SeriesView as JSON, by significant digits asked for (17: as stored), until the next new point. */
+        texts: Map<number, string>;
       }
     >(),
 );
@@ -536,26 +534,12 @@ export function seriesJson(
 ): string {
   let entry = seriesCache.get(runId);
   const next = readSeries(runId, layout, entry ? entry.columns.point.length : 0, Number.MAX_SAFE_INTEGER, d);
-  const wrap = (series: string) => `${JSON.stringify(head).slice(0, -1)},"series":${series}}`;
-  // Numbers at `digits` significant digits (the run page's plots and tables show 4 and ask for 7: 0.6 of the bytes),
-  // kept beside the full text while the run has no new point.
-  const shown = (e: NonNullable<typeof entry>): string => {
-    if (digits === undefined || digits >= 17) return e.json;
-    const count = e.columns.point.length;
-    if (e.rounded?.digits !== digits || e.rounded.count !== count)
-      e.rounded = {
-        digits,
-        count,
-        json: JSON.stringify(JSON.parse(e.json), (_k, v: unknown) => (typeof v === "number" ? roundTo(v, digits) : v)),
-      };
-    return e.rounded.json;
-  };
-  if (entry && next.point.length === 0) return wrap(shown(entry));
   if (!entry) {
     if (seriesCache.size >= SERIES_CACHE_SIZE) seriesCache.delete(seriesCache.keys().next().value!);
-    entry = { columns: next, json: "" };
+    entry = { columns: next, texts: new Map() };
     seriesCache.set(runId, entry);
-  } else {
+  } else if (next.point.length > 0) {
+    entry.texts.clear();
     const c = entry.columns;
     c.point.push(...next.point);
     c.sample.push(...next.sample);
@@ -572,8 +556,18 @@ export function seriesJson(
       for (const x of next.margins[j]) col.push(x);
     });
   }
-  const c = entry.columns;
-  const view: SeriesView = {
+  // Numbers at `digits` significant digits: the run page's plots and tables show 4 and ask for 7 (0.4 of the bytes).
+  const key = digits === undefined ? 17 : Math.min(digits, 17);
+  let text = entry.texts.get(key);
+  if (text === undefined) {
+    text = JSON.stringify(seriesViewOf(layout, entry.columns), key < 17 ? roundingReplacer(key) : undefined);
+    entry.texts.set(key, text);
+  }
+  return `${JSON.stringify(head).slice(0, -1)},"series":${text}}`;
+}
+
+function seriesViewOf(layout: LayoutHead | RunLayout, c: SeriesColumns): SeriesView {
+  return {
     params: layout.params,
     probes: layout.probes,
     probeUnits: layout.probeUnits ?? layout.probes.map(() => null),
@@ -592,8 +586,6 @@ export function seriesJson(
     passed: c.passed,
     margins: c.margins.map(jsonNumbers),
   };
-  entry.json = JSON.stringify(view);
-  return wrap(shown(entry));
 }
 
 const layoutJsonCache = processShared("results.layout-json", () => new LayoutCache<string>());

@@ -20,6 +20,7 @@
 import v8 from "node:v8";
 import vm from "node:vm";
 import { BroadcastChannel, threadId } from "node:worker_threads";
+import { processShared } from "./process-shared";
 
 export const RELEASE_AFTER_MS = 2_000;
 
@@ -54,7 +55,7 @@ function fullCollection(): void {
 }
 
 /** What this thread's isolate holds, in MB: its heap and the memory outside it that its objects own (buffers). */
-export function heldMb(): number {
+function heldMb(): number {
   const m = process.memoryUsage();
   return (m.heapTotal + m.external) / 1e6;
 }
@@ -140,26 +141,22 @@ export function collectWhenQuiet(
   return () => clearInterval(t);
 }
 
-const WATCH = Symbol.for("runnel.worker-memory.watch");
-
 /**
  * Calls `replace` when a thread of `pool` reports that it holds too much after its idle collection (on the request
  * thread; one channel per process, however many route bundles load this module). `replace` decides whether the
  * pool can be replaced now (nothing running in it) and whether the thread is still one of its own.
  */
 export function watchHeavyThreads(pool: PoolName, replace: (t: HeavyThread) => void): void {
-  const g = globalThis as unknown as Record<symbol, Map<PoolName, (t: HeavyThread) => void> | undefined>;
-  let handlers = g[WATCH];
-  if (!handlers) {
-    handlers = g[WATCH] = new Map();
+  const handlers = processShared("worker-memory.watch", () => {
+    const h = new Map<PoolName, (t: HeavyThread) => void>();
     const listen = new BroadcastChannel(MEMORY_CHANNEL);
     listen.unref();
-    const h = handlers;
     listen.onmessage = (e) => {
       const t = (e as { data: HeavyThread }).data;
       h.get(t.pool)?.(t);
     };
-  }
+    return h;
+  });
   handlers.set(pool, replace);
 }
 

@@ -11,7 +11,7 @@ import {
   seriesJson,
   seriesView,
 } from "@/app/lib/results";
-import { roundTo } from "@/app/lib/format";
+import { roundingReplacer } from "@/app/lib/format";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ id: string }> };
@@ -64,10 +64,10 @@ export function GET(request: Request, ctx: Ctx) {
         });
       }
       const part = { ...head, series: seriesView(run.id, layout, q.from, q.to) };
-      const digits = q.digits;
-      if (digits === undefined) return fresh(part);
-      const text = JSON.stringify(part, (_k, v: unknown) => (typeof v === "number" ? roundTo(v, digits) : v));
-      return new Response(text, { headers: { "content-type": "application/json", "cache-control": "no-store" } });
+      if (q.digits === undefined) return fresh(part);
+      return new Response(JSON.stringify(part, roundingReplacer(q.digits)), {
+        headers: { "content-type": "application/json", "cache-control": "no-store" },
+      });
     }
     // The layout and a stored point never change: the browser may keep them.
     const keep = { "cache-control": "private, max-age=86400" };
