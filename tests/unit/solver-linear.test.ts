@@ -343,13 +343,24 @@ describe("properties of random linear-class networks (fast-check)", () => {
         const pa = solveOne(a);
         const pb = solveOne(b);
         const gross = grossCurrents(a, pa);
+        // No solve in double precision resolves a current below the rounding of the currents that cancel at its
+        // nodes (a few ε of their sum): seen once in CI, a 3.7 nA channel out of a cluster whose channels carry
+        // 28 mA each way, differing by 4.7e-18 A (0.6 ε of the node's gross sum) between the two orders.
+        const { source, drain } = a.devices;
+        const atNode = new Float64Array(a.nodes.railValue.length);
+        for (let d = 0; d < a.devices.count; d++) {
+          atNode[source[d]] += gross[d];
+          atNode[drain[d]] += gross[d];
+        }
+        const internal = (n: number) => (Number.isFinite(a.nodes.railValue[n]) ? 0 : atNode[n]);
         for (let d = 0; d < a.devices.count; d++) {
           const other = b.devices.index.get(rename(a.devices.names[d])) as number;
-          if (!(Math.abs(pa.currents[d] - pb.currents[other]) <= 1e-9 * gross[d])) return false;
+          const floor = 16 * Number.EPSILON * Math.max(internal(source[d]), internal(drain[d]));
+          if (!(Math.abs(pa.currents[d] - pb.currents[other]) <= 1e-9 * gross[d] + floor)) return false;
         }
         return true;
       }),
-      { numRuns: 40 },
+      { numRuns: 40, examples: [[352321342, 1]] },
     );
   });
 });
