@@ -525,13 +525,8 @@ const seriesCache = processShared(
 );
 const SERIES_CACHE_SIZE = 16;
 
-export function seriesJson(
-  runId: string,
-  layout: LayoutHead | RunLayout,
-  head: Record<string, unknown>,
-  d: Q = db(),
-  digits?: number,
-): string {
+/** A run's series columns, read once and kept (the points stored since the last read appended). */
+function cachedSeries(runId: string, layout: LayoutHead | RunLayout, d: Q) {
   let entry = seriesCache.get(runId);
   const next = readSeries(runId, layout, entry ? entry.columns.point.length : 0, Number.MAX_SAFE_INTEGER, d);
   if (!entry) {
@@ -556,6 +551,22 @@ export function seriesJson(
       for (const x of next.margins[j]) col.push(x);
     });
   }
+  return entry;
+}
+
+/** A run's series (what `seriesJson` writes), from the same kept columns: the run page draws its first plot from it. */
+export function cachedSeriesView(runId: string, layout: LayoutHead | RunLayout, d: Q = db()): SeriesView {
+  return seriesViewOf(layout, cachedSeries(runId, layout, d).columns);
+}
+
+export function seriesJson(
+  runId: string,
+  layout: LayoutHead | RunLayout,
+  head: Record<string, unknown>,
+  d: Q = db(),
+  digits?: number,
+): string {
+  const entry = cachedSeries(runId, layout, d);
   // Numbers at `digits` significant digits: the run page's plots and tables show 4 and ask for 7 (0.4 of the bytes).
   const key = digits === undefined ? 17 : Math.min(digits, 17);
   let text = entry.texts.get(key);

@@ -37,6 +37,10 @@ test("a current over 14 decades opens on a log axis that answers, with decades a
   test.setTimeout(120_000);
   const errors: string[] = [];
   page.on("pageerror", (e) => errors.push(e.message));
+  // what the server drew must be what the browser draws first: no hydration mismatch
+  page.on("console", (m) => {
+    if (m.type() === "error" && /hydrat/i.test(m.text())) errors.push(m.text());
+  });
   await signIn(page);
   await page.goto("/w/lm64-edge-row");
   await page.getByLabel("Upload a .runnel file").setInputFiles({
@@ -63,7 +67,29 @@ test("a current over 14 decades opens on a log axis that answers, with decades a
   await expect(plot).toHaveAttribute("data-y-ticks", /yA.*aA.*fA.*pA/);
   // the legend shows the last point's values, not dashes, until hovered
   await expect(page.locator(".u-legend").first()).toContainText("pA");
+  // the server's drawing of the same plot has given way to the interactive one
+  await expect(page.locator("[data-slot=first-look]")).toHaveCount(0);
   await shot(page, "decades");
+
+  // without scripts the page still shows that plot, drawn by the server: title, axis titles with units, decades
+  const still = await page
+    .context()
+    .browser()!
+    .newContext({
+      javaScriptEnabled: false,
+      storageState: await page.context().storageState(),
+    });
+  const bare = await still.newPage();
+  await bare.goto(page.url());
+  const look = bare.locator("[data-slot=first-look] svg");
+  await expect(look).toBeVisible();
+  await expect(look).toContainText("iout over iin");
+  await expect(look).toContainText("current iout (A)");
+  await expect(look).toContainText("iin (A)");
+  await expect(look).toContainText("fA");
+  await expect(look.locator("path")).toHaveCount(1);
+  await bare.screenshot({ path: "test-results/browser/notebook-first-look.png", fullPage: true });
+  await still.close();
 
   // the page still answers: linear and back to log, the ticks redraw each time
   const log = panel.getByLabel("log iout");

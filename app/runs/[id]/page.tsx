@@ -5,8 +5,16 @@ import { pageAccess } from "@/app/lib/pages";
 import { roleAllows } from "@/app/lib/policy";
 import { getWorkspace } from "@/app/lib/workspaces";
 import { RunView } from "@/app/ui/run/run-view";
+import { firstLook } from "@/app/ui/run/first-look";
+import { requestNotation } from "@/app/lib/notation";
+import { cachedSeriesView, runLayoutHead } from "@/app/lib/results";
+import { storedExpectations } from "@/app/lib/run-expectations";
+import { serverPalette } from "@/app/lib/theme-tokens";
 
 export const dynamic = "force-dynamic";
+
+/** Largest done run whose Probes plot the server draws into the page (its series is read once and kept anyway). */
+const FIRST_LOOK_POINTS = 20_000;
 type Props = { params: Promise<{ id: string }> };
 
 export async function generateMetadata({ params }: Props): Promise<Metadata> {
@@ -21,6 +29,13 @@ export default async function RunPage({ params }: Props) {
     const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
     return { run, role, commit, network, ws: found(getWorkspace(run.workspaceId)) };
   });
+  // A done sweep's plot is drawn here, so the page shows it before its scripts have run (they then take over).
+  let look = null;
+  if (run.state === "done" && run.pointsDone > 0 && run.pointsDone <= FIRST_LOOK_POINTS) {
+    const layout = runLayoutHead(run.id);
+    if (layout?.sweeps.length)
+      look = firstLook(cachedSeriesView(run.id, layout), await requestNotation(), serverPalette());
+  }
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">
@@ -51,7 +66,13 @@ export default async function RunPage({ params }: Props) {
           </a>
         </p>
       </header>
-      <RunView runId={run.id} canRun={roleAllows(role, "run.start")} hadResults={run.pointsDone > 0} />
+      <RunView
+        runId={run.id}
+        canRun={roleAllows(role, "run.start")}
+        hadResults={run.pointsDone > 0}
+        initial={{ run, expectations: storedExpectations(run.id) }}
+        firstLook={look}
+      />
     </div>
   );
 }

@@ -72,7 +72,7 @@ export function plotSvg(p: SvgPlot): string {
   const W = p.width ?? 900;
   const H = p.height ?? 420;
   const left = 84;
-  const right = 16;
+  const right = 32;
   const legendRows = Math.ceil(p.series.length / 3);
   const top = 34 + legendRows * 16;
   const bottom = 52;
@@ -86,8 +86,10 @@ export function plotSvg(p: SvgPlot): string {
     : axisRange(p.columns.flat(), p.yAxis);
   const tx = p.xAxis.log ? Math.log10 : (v: number) => v;
   const ty = p.yAxis.log ? Math.log10 : (v: number) => v;
-  const sx = (v: number) => left + ((tx(v) - tx(x0)) / (tx(x1) - tx(x0) || 1)) * pw;
-  const sy = (v: number) => top + ph - ((ty(v) - ty(y0)) / (ty(y1) - ty(y0) || 1)) * ph;
+  // coordinates to a tenth of a pixel (the drawing's text stays short)
+  const tenth = (v: number) => Math.round(v * 10) / 10;
+  const sx = (v: number) => tenth(left + ((tx(v) - tx(x0)) / (tx(x1) - tx(x0) || 1)) * pw);
+  const sy = (v: number) => tenth(top + ph - ((ty(v) - ty(y0)) / (ty(y1) - ty(y0) || 1)) * ph);
   const xt = p.xAxis.log ? logSplits(x0, x1) : linearTicks(x0, x1, 7, p.xAxis.integer);
   const yt = p.yAxis.log ? logSplits(y0, y1) : linearTicks(y0, y1, 6, p.yAxis.integer);
   const xl = tickLabels(p.xAxis, xt, p.notation);
@@ -121,7 +123,7 @@ export function plotSvg(p: SvgPlot): string {
   });
   yt.forEach((v, i) => {
     out.push(`<line x1="${left - (yl[i] ? 5 : 3)}" y1="${sy(v)}" x2="${left}" y2="${sy(v)}" stroke="${p.ink}"/>`);
-    if (yl[i]) out.push(`<text x="${left - 8}" y="${sy(v) + 4}" text-anchor="end">${esc(yl[i])}</text>`);
+    if (yl[i]) out.push(`<text x="${left - 8}" y="${tenth(sy(v) + 4)}" text-anchor="end">${esc(yl[i])}</text>`);
   });
   out.push(
     `<text x="${left + pw / 2}" y="${H - 12}" text-anchor="middle">${esc(axisTitle(p.xAxis))}</text>`,

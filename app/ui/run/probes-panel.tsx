@@ -10,22 +10,14 @@ import { useMemo, useState } from "react";
 import type { SeriesView } from "@/app/lib/results";
 import { useFormat } from "@/app/ui/notation";
 import { LinePlot } from "@/app/ui/plots/line-plot";
-import type { Curve } from "@/app/ui/plots/plot-types";
 import { DataTable } from "@/app/ui/workbench/data-table";
 import { measuredMarks, type BenchData } from "./bench-data";
 import { BenchDataSelect } from "./bench-data-select";
 import { BenchFigures } from "./bench-figures";
 import { ProbeSelect } from "./probe-select";
 import { OptionSelect } from "./option-select";
-import {
-  defaultLog,
-  meanOverSamples,
-  mostVaryingProbe,
-  paramUnit,
-  probeAxis,
-  probeUnit,
-  sweepAxis,
-} from "./sweep-values";
+import { defaultXSweep, probeCurves, probeDefaultLog, probeXAxis } from "./probe-plot";
+import { mostVaryingProbe, paramUnit, probeAxis, probeUnit } from "./sweep-values";
 
 /** A column header with its unit: "iout (A)", "split" for a ratio or an unknown unit. */
 const withUnit = (name: string, unit: string | null) => (unit ? `${name} (${unit})` : name);
@@ -44,45 +36,13 @@ export function ProbesPanel({ series, bench }: { series: SeriesView; bench: Benc
   const [logChoiceX, setLogX] = useState<boolean | null>(null);
   // Per probe: the reader's choice, else currents and wide positive ranges on a log axis.
   const [logChoice, setLogChoice] = useState<Record<number, boolean>>({});
-  const logY = logChoice[probe] ?? defaultLog(series.probeValues[probe] ?? [], probeUnit(series, probe));
+  const logY = logChoice[probe] ?? probeDefaultLog(series, probe);
   const samples = series.mismatch?.runs ?? 1;
   // Along the sweep with the most values (the last on a tie): the richest curve.
-  const [xSweep, setXSweep] = useState(() =>
-    series.sweeps.reduce((best, s, k) => (s.values.length >= series.sweeps[best].values.length ? k : best), 0),
-  );
-  const plot = useMemo(() => {
-    if (series.sweeps.length === 0 || series.probes.length === 0) return null;
-    const sweeps = series.sweeps;
-    const xs = sweeps[xSweep];
-    const values = meanOverSamples(series.probeValues[probe] ?? [], samples);
-    // One curve per combination of the other sweeps' values (outer sweep slowest in the grid order).
-    const curves = new Map<string, Curve>();
-    for (let g = 0; g < values.length; g++) {
-      let rest = g;
-      const idx = new Array<number>(sweeps.length);
-      for (let k = sweeps.length - 1; k >= 0; k--) {
-        idx[k] = rest % sweeps[k].values.length;
-        rest = Math.floor(rest / sweeps[k].values.length);
-      }
-      const others = sweeps
-        .map((sw, k) => (k === xSweep ? null : `${sw.param} = ${fmt(sw.values[idx[k]], paramUnit(series, sw.param))}`))
-        .filter((x): x is string => x !== null);
-      const key = others.join(", ") || series.probes[probe];
-      let c = curves.get(key);
-      if (!c) {
-        if (curves.size >= 12) continue;
-        c = { label: key, values: new Array<number | null>(xs.values.length).fill(null) };
-        curves.set(key, c);
-      }
-      c.values[idx[xSweep]] = values[g];
-    }
-    return { x: xs.values, xLabel: xs.param, curves: [...curves.values()] };
-  }, [series, probe, samples, xSweep, fmt]);
+  const [xSweep, setXSweep] = useState(() => defaultXSweep(series));
+  const plot = useMemo(() => probeCurves(series, probe, xSweep, fmt), [series, probe, xSweep, fmt]);
   const logX = logChoiceX ?? series.sweeps[xSweep]?.log ?? false;
-  const xAxis = useMemo(
-    () => (series.sweeps.length ? sweepAxis(series, xSweep, logX) : { label: "point", unit: null, integer: true }),
-    [series, xSweep, logX],
-  );
+  const xAxis = useMemo(() => probeXAxis(series, xSweep, logX), [series, xSweep, logX]);
   const yAxis = useMemo(() => probeAxis(series, probe, logY), [series, probe, logY]);
   // Bench data is drawn on the probe it is matched to; the overlay route only answers for a run of one sweep.
   const onPlot = useMemo(

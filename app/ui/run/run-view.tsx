@@ -13,7 +13,9 @@ import type { SeriesView } from "@/app/lib/results";
 import type { RunRow } from "@/app/lib/runs";
 import { getBytes, getJson, sendJson } from "@/app/ui/fetch";
 import type { ExpectationSummary } from "@/src/solver/expectation-summary";
+import { LocalTime } from "@/app/ui/local-time";
 import { ExpectationsPanel } from "./expectations-panel";
+import type { FirstLook } from "./first-look";
 import { ExportLinks } from "./export-links";
 import { ModelCaution } from "./model-caution";
 import { ModelPanel } from "./model-panel";
@@ -23,21 +25,28 @@ import { Results } from "./results";
 import { RunStateBadge } from "./run-state-badge";
 import { isLive } from "@/db/run-states";
 
+/** What GET /api/runs/[id] answers. */
+export interface RunState {
+  run: RunRow;
+  expectations: ExpectationSummary[] | null;
+}
+
 export interface RunViewProps {
   runId: string;
   canRun: boolean;
   /** The run had stored points when the page was rendered: its results are asked for at once. */
   hadResults?: boolean;
+  /** The run as the server rendered the page: the page is drawn from it before the first poll answers. */
+  initial?: RunState;
+  /** The Probes plot drawn on the server (first-look.ts), shown until the run's series has arrived. */
+  firstLook?: FirstLook | null;
 }
 
-export function RunView({ runId, canRun, hadResults = false }: RunViewProps) {
-  const { data, error, mutate } = useSWR<{ run: RunRow; expectations: ExpectationSummary[] | null }>(
-    `/api/runs/${runId}`,
-    getJson,
-    {
-      refreshInterval: (d) => (d && !isLive(d.run.state) ? 0 : 1000),
-    },
-  );
+export function RunView({ runId, canRun, hadResults = false, initial, firstLook }: RunViewProps) {
+  const { data, error, mutate } = useSWR<RunState>(`/api/runs/${runId}`, getJson, {
+    fallbackData: initial,
+    refreshInterval: (d) => (d && !isLive(d.run.state) ? 0 : 1000),
+  });
   const run = data?.run;
   // Before the run's own answer arrives, the page's word decides: the series, the layout and the first point go
   // out together with it (on a first visit they used to wait for it, then for the series).
@@ -72,7 +81,7 @@ export function RunView({ runId, canRun, hadResults = false }: RunViewProps) {
         <div className="flex flex-wrap items-center gap-3">
           <RunStateBadge state={run.state} />
           <span className="text-sm text-stone-600">
-            started by {run.createdByName} · {new Date(run.createdAt).toLocaleString("en-GB")}
+            started by {run.createdByName} · <LocalTime ms={run.createdAt} />
             {run.startedAt && run.finishedAt ? ` · took ${formatDuration(run.finishedAt - run.startedAt)}` : ""}
           </span>
           {live && canRun ? (
@@ -107,6 +116,8 @@ export function RunView({ runId, canRun, hadResults = false }: RunViewProps) {
           <ExportLinks runId={runId} />
           {series.data ? (
             <Results runId={runId} run={run} series={series.data.series} canRun={canRun} />
+          ) : firstLook ? (
+            <FirstLookFigure look={firstLook} />
           ) : (
             <p className="text-stone-500">Loading results…</p>
           )}
@@ -115,5 +126,22 @@ export function RunView({ runId, canRun, hadResults = false }: RunViewProps) {
         <p className="text-stone-600">This run stored no results.</p>
       ) : null}
     </div>
+  );
+}
+
+/** The server's drawing of the Probes plot, in the place the results will take, until they have loaded. */
+function FirstLookFigure({ look }: { look: FirstLook }) {
+  return (
+    <figure className="space-y-1 rounded border border-stone-200 bg-white p-3" data-slot="first-look">
+      <figcaption className="text-sm text-stone-600">
+        {look.title} · <span className="text-stone-500">loading the interactive results…</span>
+      </figcaption>
+      <div
+        role="img"
+        aria-label={look.title}
+        className="w-full [&>svg]:h-auto [&>svg]:w-full"
+        dangerouslySetInnerHTML={{ __html: look.svg }}
+      />
+    </figure>
   );
 }
