@@ -23,11 +23,12 @@ export function themeToken(name: string): string {
   return tokens.get(name) ?? `var(--color-${name})`;
 }
 
-/** The palette of a plot drawn on the server: text, grid, the six curve colours. */
+/** The palette of a plot drawn on the server: text, grid, a map's unknown cells, the six curve colours. */
 export function serverPalette(): Palette {
   return {
     ink: themeToken("stone-ink"),
     grid: themeToken("stone-300"),
+    unknown: themeToken("stone-200"),
     curves: [1, 2, 3, 4, 5, 6].map((i) => themeToken(`curve-${i}`)),
   };
 }

@@ -110,6 +110,8 @@ test("the Map of a grid has labelled axes, square cells and a legend in the valu
   await signIn(page);
   await page.goto("/w/lm64-edge-row");
   await page.getByRole("link", { name: /Newest run of Smoothing grid .*: done/ }).click();
+  // one point of a grid opens on its Map
+  await expect(page.getByRole("tab", { name: "Map" })).toHaveAttribute("aria-selected", "true");
   await page.getByRole("tab", { name: "Map" }).click();
   const map = page.locator("[data-slot=heat-map]");
   await expect(map).toBeVisible();
@@ -122,6 +124,24 @@ test("the Map of a grid has labelled axes, square cells and a legend in the valu
   await map.hover();
   await expect(page.locator("[data-slot=map-readout]")).toContainText(/A$/);
   await shot(page, "map");
+
+  // without scripts the page shows the same map, drawn by the server, with its axes and legend
+  const still = await page
+    .context()
+    .browser()!
+    .newContext({
+      javaScriptEnabled: false,
+      storageState: await page.context().storageState(),
+    });
+  const bare = await still.newPage();
+  await bare.goto(page.url());
+  const look = bare.locator("[data-slot=first-look] svg");
+  await expect(look).toBeVisible();
+  await expect(look).toContainText("|current");
+  await expect(look).toContainText("31");
+  await expect(look).toContainText("pA");
+  await bare.screenshot({ path: "test-results/browser/notebook-first-look-map.png", fullPage: true });
+  await still.close();
 });
 
 test("at phone width no main page scrolls sideways, and the header is a menu", async ({ browser }) => {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { SeriesView } from "../../app/lib/results";
 import { serverPalette, themeToken } from "../../app/lib/theme-tokens";
-import { firstLook } from "../../app/ui/run/first-look";
+import { firstLook, firstLookMap } from "../../app/ui/run/first-look";
 import { MAX_CURVES, openingView } from "../../app/ui/run/probe-plot";
 import { formatValue } from "../../app/lib/format";
 
@@ -88,5 +88,39 @@ describe("the run page's first look", () => {
     expect(themeToken("curve-1")).toMatch(/^#[0-9a-f]{6}$/i);
     expect(serverPalette().curves).toHaveLength(6);
     expect(themeToken("no-such-token")).toBe("var(--color-no-such-token)");
+  });
+});
+
+describe("the run page's first look of a grid", () => {
+  // a 4 × 3 grid of nodes g{i}_{j} with a channel m{i}_{j} at each, currents 10^-(i+j) pA (made up for the drawing)
+  const nodes: string[] = [];
+  const voltage: number[] = [];
+  const devices: string[] = [];
+  const current: number[] = [];
+  for (let i = 0; i < 4; i++)
+    for (let j = 0; j < 3; j++) {
+      nodes.push(`g${i}_${j}`);
+      voltage.push(0.1 * i + 0.01 * j);
+      devices.push(`m${i}_${j}`);
+      current.push(-1e-12 * 10 ** -(i + j));
+    }
+  nodes.push("vdd");
+  voltage.push(1.8);
+  const point = { nodes: { names: nodes, voltage }, devices: { names: devices, current } };
+
+  it("opens on the devices' current magnitudes on a log scale, with the grid's indices on its axes", () => {
+    const look = firstLookMap(point, series([], {}), "si", serverPalette())!;
+    expect(look.view).toBe("map");
+    expect(look.title).toBe("|current m·_·|");
+    // 12 cells coloured, row and column indices, the legend in amperes from 1 pA down to 1 zA (10^-(3+2) pA)
+    expect(look.svg.match(/<rect x=/g)!.length).toBeGreaterThanOrEqual(12);
+    expect(look.svg).toContain("i of mi_j");
+    expect(look.svg).toContain("1 pA");
+    expect(look.svg).toContain("10 aA");
+  });
+
+  it("has nothing to draw when no names form a grid", () => {
+    const flat = { nodes: { names: ["a", "b"], voltage: [0, 1] }, devices: { names: ["m1"], current: [1e-9] } };
+    expect(firstLookMap(flat, series([], {}), "si", serverPalette())).toBeNull();
   });
 });

@@ -5,16 +5,12 @@ import { pageAccess } from "@/app/lib/pages";
 import { roleAllows } from "@/app/lib/policy";
 import { getWorkspace } from "@/app/lib/workspaces";
 import { RunView } from "@/app/ui/run/run-view";
-import { firstLook } from "@/app/ui/run/first-look";
 import { requestNotation } from "@/app/lib/notation";
-import { cachedSeriesView, runLayoutHead } from "@/app/lib/results";
 import { storedExpectations } from "@/app/lib/run-expectations";
-import { serverPalette } from "@/app/lib/theme-tokens";
+import { runFirstLook } from "@/app/lib/run-first-look";
 
 export const dynamic = "force-dynamic";
 
-/** Largest done run whose Probes plot the server draws into the page (its series is read once and kept anyway). */
-const FIRST_LOOK_POINTS = 20_000;
 type Props = { params: Promise<{ id: string }> };
 
 export async function generateMetadata({ params }: Props): Promise<Metadata> {
@@ -29,13 +25,8 @@ export default async function RunPage({ params }: Props) {
     const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
     return { run, role, commit, network, ws: found(getWorkspace(run.workspaceId)) };
   });
-  // A done sweep's plot is drawn here, so the page shows it before its scripts have run (they then take over).
-  let look = null;
-  if (run.state === "done" && run.pointsDone > 0 && run.pointsDone <= FIRST_LOOK_POINTS) {
-    const layout = runLayoutHead(run.id);
-    if (layout?.sweeps.length)
-      look = firstLook(cachedSeriesView(run.id, layout), await requestNotation(), serverPalette());
-  }
+  // A done run's first plot is drawn here, so the page shows it before its scripts have run (they then take over).
+  const look = runFirstLook(run, await requestNotation());
   return (
     <div className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-stone-600">

@@ -13,17 +13,11 @@ import { useNotation } from "@/app/ui/notation";
 import { themeColour } from "@/app/ui/theme";
 import { axisTitle } from "./axis";
 import { heatMapSvg } from "./heat-map-svg";
-import { labelEvery, mapColour, mapPosition, mapStops } from "./map-colour";
+import { labelEvery, mapColour, mapPosition, mapRange, mapStops } from "./map-colour";
 import { PlotDownloads } from "./plot-downloads";
-import type { AxisSpec } from "./plot-types";
+import type { AxisSpec, MapAxis } from "./plot-types";
 
-export interface MapAxis {
-  /** What runs along the axis: "row", "column", a sweep's param. */
-  label: string;
-  unit?: string | null;
-  /** One label per row (or column): the index in node names, or the sweep value. */
-  ticks: string[];
-}
+export type { MapAxis };
 
 export interface HeatMapProps {
   title: string;
@@ -48,22 +42,7 @@ export function HeatMap({ title, values, rows, cols, value }: HeatMapProps) {
   const nr = values.length;
   const nc = nr ? Math.max(...values.map((r) => r.length)) : 0;
   const log = !!value.log;
-  const { lo, hi, skipped } = useMemo(() => {
-    let lo = Infinity;
-    let hi = -Infinity;
-    let skipped = 0;
-    for (const row of values)
-      for (const v of row) {
-        if (v === null || !Number.isFinite(v)) continue;
-        if (log && !(v > 0)) {
-          skipped++;
-          continue;
-        }
-        if (v < lo) lo = v;
-        if (v > hi) hi = v;
-      }
-    return Number.isFinite(lo) ? { lo, hi, skipped } : { lo: 0, hi: 1, skipped };
-  }, [values, log]);
+  const { lo, hi, skipped } = useMemo(() => mapRange(values, log), [values, log]);
   // Square cells as large as the width allows, the whole map at most MAX_HEIGHT tall.
   const cell =
     nr && nc ? Math.max(2, Math.min(48, Math.floor((avail - LEFT - LEGEND) / nc), Math.floor(MAX_HEIGHT / nr))) : 0;

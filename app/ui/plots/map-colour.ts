@@ -27,3 +27,22 @@ export function mapPosition(v: number, lo: number, hi: number, log: boolean): nu
 export function labelEvery(n: number, max: number): number {
   return Math.max(1, Math.ceil(n / Math.max(1, max)));
 }
+
+/** The range a map's colours span: the finite values' least and greatest (positive ones only on a log scale, the
+ * others counted as skipped); 0…1 when there is none. */
+export function mapRange(values: (number | null)[][], log: boolean): { lo: number; hi: number; skipped: number } {
+  let lo = Infinity;
+  let hi = -Infinity;
+  let skipped = 0;
+  for (const row of values)
+    for (const v of row) {
+      if (v === null || !Number.isFinite(v)) continue;
+      if (log && !(v > 0)) {
+        skipped++;
+        continue;
+      }
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+  return Number.isFinite(lo) ? { lo, hi, skipped } : { lo: 0, hi: 1, skipped };
+}

@@ -38,3 +38,11 @@ export interface AxisSpec {
   /** The axis counts (an index, a sample): integer ticks only. */
   integer?: boolean;
 }
+
+export interface MapAxis {
+  /** What runs along the axis: "row", "column", a sweep's param. */
+  label: string;
+  unit?: string | null;
+  /** One label per row (or column): the index in node names, or the sweep value. */
+  ticks: string[];
+}

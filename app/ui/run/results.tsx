@@ -14,6 +14,8 @@ import type { RunRow } from "@/app/lib/runs";
 import { getBytes, getJson } from "@/app/ui/fetch";
 import { useBenchData } from "./bench-data";
 import { DevicesPanel } from "./devices-panel";
+import type { FirstLook } from "./first-look";
+import { FirstLookFigure } from "./first-look-figure";
 import { LoadingNote } from "./loading-note";
 import { PointWarnings } from "./point-warnings";
 import { layoutKey, pointKey } from "./result-keys";
@@ -34,11 +36,14 @@ export function Results({
   run,
   series,
   canRun,
+  firstLook,
 }: {
   runId: string;
   run: RunRow;
   series: SeriesView;
   canRun: boolean;
+  /** The server's drawing of the view the page opens on: a map opens the Map view, and stands in until it draws. */
+  firstLook?: FirstLook | null;
 }) {
   const fmt = useFormat();
   const samples = series.mismatch?.runs ?? 1;
@@ -46,7 +51,9 @@ export function Results({
   const [gridPoint, setGridPoint] = useState(0);
   const [sample, setSample] = useState(0);
   const point = Math.min(gridPoint * samples + sample, Math.max(0, series.point.length - 1));
-  const [tab, setTab] = useState<Tab>(series.sweeps.length ? "probes" : "operating");
+  const [tab, setTab] = useState<Tab>(
+    series.sweeps.length ? "probes" : firstLook?.view === "map" ? "map" : "operating",
+  );
   const [deviceFilter, setDeviceFilter] = useState("");
   const [onlyFlagged, setOnlyFlagged] = useState(false);
   const layout = useSWR<{ layout: RunLayout }>(layoutKey(runId), getJson, {
@@ -167,7 +174,15 @@ export function Results({
             <LoadingNote />
           )
         ) : null}
-        {tab === "map" ? current ? <MapPanel point={current} series={series} /> : <LoadingNote /> : null}
+        {tab === "map" ? (
+          current ? (
+            <MapPanel point={current} series={series} />
+          ) : firstLook?.view === "map" ? (
+            <FirstLookFigure look={firstLook} />
+          ) : (
+            <LoadingNote />
+          )
+        ) : null}
         {tab === "spread" ? <SpreadPanel series={series} gridPoint={gridPoint} /> : null}
         {tab === "sensitivity" ? <SensitivityPanel runId={runId} /> : null}
         {tab === "seek" ? <SeekPanel runId={runId} canRun={canRun} units={series} /> : null}

@@ -16,6 +16,7 @@ import type { ExpectationSummary } from "@/src/solver/expectation-summary";
 import { LocalTime } from "@/app/ui/local-time";
 import { ExpectationsPanel } from "./expectations-panel";
 import type { FirstLook } from "./first-look";
+import { FirstLookFigure } from "./first-look-figure";
 import { ExportLinks } from "./export-links";
 import { ModelCaution } from "./model-caution";
 import { ModelPanel } from "./model-panel";
@@ -38,7 +39,7 @@ export interface RunViewProps {
   hadResults?: boolean;
   /** The run as the server rendered the page: the page is drawn from it before the first poll answers. */
   initial?: RunState;
-  /** The Probes plot drawn on the server (first-look.ts), shown until the run's series has arrived. */
+  /** The first plot drawn on the server (first-look.ts), shown until the view it stands for can draw. */
   firstLook?: FirstLook | null;
 }
 
@@ -115,7 +116,7 @@ export function RunView({ runId, canRun, hadResults = false, initial, firstLook 
         <>
           <ExportLinks runId={runId} />
           {series.data ? (
-            <Results runId={runId} run={run} series={series.data.series} canRun={canRun} />
+            <Results runId={runId} run={run} series={series.data.series} canRun={canRun} firstLook={firstLook} />
           ) : firstLook ? (
             <FirstLookFigure look={firstLook} />
           ) : (
@@ -126,22 +127,5 @@ export function RunView({ runId, canRun, hadResults = false, initial, firstLook 
         <p className="text-stone-600">This run stored no results.</p>
       ) : null}
     </div>
-  );
-}
-
-/** The server's drawing of the Probes plot, in the place the results will take, until they have loaded. */
-function FirstLookFigure({ look }: { look: FirstLook }) {
-  return (
-    <figure className="space-y-1 rounded border border-stone-200 bg-white p-3" data-slot="first-look">
-      <figcaption className="text-sm text-stone-600">
-        {look.title} · <span className="text-stone-500">loading the interactive results…</span>
-      </figcaption>
-      <div
-        role="img"
-        aria-label={look.title}
-        className="w-full [&>svg]:h-auto [&>svg]:w-full"
-        dangerouslySetInnerHTML={{ __html: look.svg }}
-      />
-    </figure>
   );
 }
