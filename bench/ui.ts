@@ -127,7 +127,13 @@ const pages = [
     ready: "[data-slot=plot] canvas",
     first: "[data-slot=first-look] svg",
   },
-  { name: "grid32-map", url: `${base}/runs/${gridRun}`, ready: "[data-slot=heat-map]", tab: "Map", first: undefined },
+  {
+    name: "grid32-map",
+    url: `${base}/runs/${gridRun}`,
+    ready: "[data-slot=heat-map]",
+    tab: "Map",
+    first: "[data-slot=first-look] svg",
+  },
 ];
 const results: {
   name: string;
