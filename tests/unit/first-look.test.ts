@@ -113,7 +113,7 @@ describe("the run page's first look of a grid", () => {
     expect(look.view).toBe("map");
     expect(look.title).toBe("|current m·_·|");
     // 12 cells coloured, row and column indices, the legend in amperes from 1 pA down to 1 zA (10^-(3+2) pA)
-    expect(look.svg.match(/<rect x=/g)!.length).toBeGreaterThanOrEqual(12);
+    expect(look.svg.match(/M\d+ \d+h1v1h-1z/g)).toHaveLength(12);
     expect(look.svg).toContain("i of mi_j");
     expect(look.svg).toContain("1 pA");
     expect(look.svg).toContain("10 aA");
