@@ -31,6 +31,26 @@ async function signIn(page: Page, email = "designer@larkspur.example") {
   await expect(page).not.toHaveURL(/\/signin/);
 }
 
+/**
+ * The page `page` shows, opened signed in the same but with scripts off (what the server alone sends): its first
+ * look's drawing, checked visible, with a screenshot. The caller closes its context when done with it.
+ */
+async function withoutScripts(page: Page, name: string) {
+  const still = await page
+    .context()
+    .browser()!
+    .newContext({
+      javaScriptEnabled: false,
+      storageState: await page.context().storageState(),
+    });
+  const bare = await still.newPage();
+  await bare.goto(page.url());
+  const look = bare.locator("[data-slot=first-look] svg");
+  await expect(look).toBeVisible();
+  await bare.screenshot({ path: `test-results/browser/notebook-${name}.png`, fullPage: true });
+  return look;
+}
+
 test("a current over 14 decades opens on a log axis that answers, with decades and units on its axes", async ({
   page,
 }) => {
@@ -72,24 +92,13 @@ test("a current over 14 decades opens on a log axis that answers, with decades a
   await shot(page, "decades");
 
   // without scripts the page still shows that plot, drawn by the server: title, axis titles with units, decades
-  const still = await page
-    .context()
-    .browser()!
-    .newContext({
-      javaScriptEnabled: false,
-      storageState: await page.context().storageState(),
-    });
-  const bare = await still.newPage();
-  await bare.goto(page.url());
-  const look = bare.locator("[data-slot=first-look] svg");
-  await expect(look).toBeVisible();
+  const look = await withoutScripts(page, "first-look");
   await expect(look).toContainText("iout over iin");
   await expect(look).toContainText("current iout (A)");
   await expect(look).toContainText("iin (A)");
   await expect(look).toContainText("fA");
   await expect(look.locator("path")).toHaveCount(1);
-  await bare.screenshot({ path: "test-results/browser/notebook-first-look.png", fullPage: true });
-  await still.close();
+  await look.page().context().close();
 
   // the page still answers: linear and back to log, the ticks redraw each time
   const log = panel.getByLabel("log iout");
@@ -126,22 +135,11 @@ test("the Map of a grid has labelled axes, square cells and a legend in the valu
   await shot(page, "map");
 
   // without scripts the page shows the same map, drawn by the server, with its axes and legend
-  const still = await page
-    .context()
-    .browser()!
-    .newContext({
-      javaScriptEnabled: false,
-      storageState: await page.context().storageState(),
-    });
-  const bare = await still.newPage();
-  await bare.goto(page.url());
-  const look = bare.locator("[data-slot=first-look] svg");
-  await expect(look).toBeVisible();
+  const look = await withoutScripts(page, "first-look-map");
   await expect(look).toContainText("|current");
   await expect(look).toContainText("31");
   await expect(look).toContainText("pA");
-  await bare.screenshot({ path: "test-results/browser/notebook-first-look-map.png", fullPage: true });
-  await still.close();
+  await look.page().context().close();
 });
 
 test("at phone width no main page scrolls sideways, and the header is a menu", async ({ browser }) => {

@@ -11,6 +11,7 @@ import { DEMO_PASSWORD, seedDemo } from "@/scripts/seed/index";
 import { apiTokens, sessions, users } from "@/db/schema";
 import { hashPasswordSync } from "@/app/lib/passwords";
 import { secretHash } from "@/app/lib/secrets";
+import { afterAll, beforeAll } from "vitest";
 
 export const WHO = ["anonymous", "outsider", "viewer", "reviewer", "designer", "owner"] as const;
 export type Who = (typeof WHO)[number];
@@ -96,4 +97,17 @@ export function buildAccountsFixture(): AccountsFixture {
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };
+}
+
+/**
+ * For a whole test file: the accounts fixture on a copy of its database, handed to `use` before the tests (with
+ * the copy's connection), and removed after them.
+ */
+export function accountsCopy(use: (fixture: AccountsFixture, db: DB) => void): void {
+  let made: AccountsFixture | undefined;
+  beforeAll(() => {
+    made = buildAccountsFixture();
+    use(made, made.useCopy());
+  });
+  afterAll(() => made?.dispose());
 }

@@ -8,7 +8,7 @@
  * gives about 0.34 and 2.9, outside 0.9…1.1 at both ends and inside 0.2…5 everywhere.
  */
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { runs } from "@/db/schema";
 import { commitBadge, compareCommits } from "@/app/lib/review/diffs";
@@ -16,16 +16,11 @@ import { commitText } from "@/app/lib/networks";
 import { expectationBadges } from "@/app/lib/review/expectation-status";
 import { runCards } from "@/app/lib/review/threads";
 import { commitNetwork, executeStoredRun, storeRun } from "../helpers/runs";
-import { buildAccountsFixture, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
+import { accountsCopy, WORKSPACE } from "../helpers/accounts";
 import { pairSweep } from "../helpers/pair-sweep";
 
-let fixture: AccountsFixture;
 let db: DB;
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-});
-afterAll(() => fixture.dispose());
+accountsCopy((_fixture, d) => (db = d));
 
 const BAND = (low: number, high: number) =>
   `expect ratio_band = ${low} <= ratio <= ${high}\nexpect pair_saturated = saturated devices=m*\n`;

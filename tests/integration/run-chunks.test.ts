@@ -14,20 +14,15 @@
  */
 import fs from "node:fs";
 import { and, asc, eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { runPoints, runs } from "@/db/schema";
 import { commitAndRun } from "../helpers/runs";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
+import { accountsCopy } from "../helpers/accounts";
 
-let fixture: AccountsFixture;
 let db: DB;
 
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-});
-afterAll(() => fixture.dispose());
+accountsCopy((_fixture, d) => (db = d));
 
 /** A gate-bias sweep of a 12 × 12 diffuser grid: linear, a new factorisation at every point. */
 const GRID = `network grid12

@@ -6,23 +6,18 @@
  */
 import fs from "node:fs";
 import { asc, eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { DB } from "@/db";
 import { runPointExpectations, runs } from "@/db/schema";
 import { readSeries, runLayout } from "@/app/lib/results";
 import { elaborate } from "@/src/lang/index";
 import { solveNetwork, summarizeExpectations } from "@/src/solver/index";
 import { commitAndRun, type Chunk } from "../helpers/runs";
-import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts";
+import { accountsCopy } from "../helpers/accounts";
 
-let fixture: AccountsFixture;
 let db: DB;
 
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-});
-afterAll(() => fixture.dispose());
+accountsCopy((_fixture, d) => (db = d));
 
 function execute(text: string, name: string, chunks: Chunk[], total: number): string {
   return commitAndRun(db, name, text, total, chunks, 120_000).runId;

@@ -8,13 +8,13 @@
  * κ ≈ 0.7 and U_T ≈ 25.9 mV a ±40 mV split gives ratios of about 0.34 and 2.9, outside 0.9…1.1 at both ends.
  */
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { describe, expect, it, vi } from "vitest";
 import type { DB } from "@/db";
 import { comments, reviews, runs, threads } from "@/db/schema";
 import { getThread } from "@/app/lib/review/threads";
 import { signOffSummaries } from "@/app/lib/review/sign-off";
 import { commitAndRun } from "../helpers/runs";
-import { buildAccountsFixture, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
+import { accountsCopy, WORKSPACE, type AccountsFixture } from "../helpers/accounts";
 import { SITE } from "../helpers/request-context";
 import { pairSweep } from "../helpers/pair-sweep";
 
@@ -22,11 +22,7 @@ vi.mock("next/headers", async () => (await import("../helpers/request-context"))
 
 let fixture: AccountsFixture;
 let db: DB;
-beforeAll(() => {
-  fixture = buildAccountsFixture();
-  db = fixture.useCopy();
-});
-afterAll(() => fixture.dispose());
+accountsCopy((f, d) => ((fixture = f), (db = d)));
 
 const EXPECT = "expect ratio_band = 0.9 <= ratio <= 1.1\nexpect pair_saturated = saturated devices=m*\n";
 

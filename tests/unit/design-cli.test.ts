@@ -4,11 +4,8 @@
  * and Neural Systems, 1989), Pelgrom's first-order σ (docs/physics.md §7; Pelgrom et al., IEEE JSSC 24, 1989) and a
  * goal-seek of the pair's 90/10 split, ΔV = U_T·ln 9/κ (docs/physics.md §5), one per temperature of a sweep.
  */
-import { mkdtempSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { main } from "../../scripts/runnel";
+import { networkFile, runCli } from "../helpers/cli";
 import { elaborate } from "../../src/lang/index";
 import { thermalVoltage } from "../../src/lang/point";
 import type { SeekJson, SensitivityJson } from "../../src/solver/design-json";
@@ -28,19 +25,8 @@ probe lnratio = log(current(m1) / current(m2))
 probe share = current(m1) / ib
 `;
 
-function file(text: string): string {
-  const dir = mkdtempSync(join(tmpdir(), "runnel-design-"));
-  const f = join(dir, "net.runnel");
-  writeFileSync(f, text);
-  return f;
-}
-
-function run(args: string[]): { code: number; out: string; err: string } {
-  let out = "";
-  let err = "";
-  const code = main(args, { out: (t) => (out += t), err: (t) => (err += t) });
-  return { code, out, err };
-}
+const file = (text: string) => networkFile(text);
+const run = runCli;
 
 describe("runnel sensitivity", () => {
   it("--json: thresholds per mV, normalised sizes, params and the first-order budget with groups", () => {

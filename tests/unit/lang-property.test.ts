@@ -4,6 +4,7 @@ import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { elaborate, LineIndex } from "../../src/lang/index";
 import type { ElaborateOptions } from "../../src/lang/index";
+import { STATEMENT_WORDS } from "../../src/lang/syntax";
 
 /**
  * Elaboration never throws and always ends: random text and random mutations
@@ -36,17 +37,8 @@ function checkInvariants(text: string): void {
 }
 
 const TOKENS = [
-  "network",
-  "set",
-  "param",
-  "rail",
-  "nfet",
-  "pfet",
-  "inject",
-  "probe",
-  "for",
+  ...STATEMENT_WORDS,
   "in",
-  "sweep",
   "from",
   "to",
   "step",

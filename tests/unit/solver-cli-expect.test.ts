@@ -3,27 +3,12 @@
  * point's verdicts, printed a point at a time exactly as JSON.stringify prints the whole, and `--strict`'s exit
  * status: 0 when every expectation holds, 3 when one fails, 1 and 2 as without it.
  */
-import { mkdtempSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { main } from "../../scripts/runnel";
+import { networkFile, runCli } from "../helpers/cli";
 import type { SolveJson } from "../../src/solver/json";
 
-const dir = mkdtempSync(join(tmpdir(), "runnel-expect-"));
-
-function file(name: string, text: string): string {
-  const f = join(dir, name);
-  writeFileSync(f, text);
-  return f;
-}
-
-function run(args: string[]): { code: number; out: string; err: string } {
-  let out = "";
-  let err = "";
-  const code = main(args, { out: (t) => (out += t), err: (t) => (err += t) });
-  return { code, out, err };
-}
+const file = (name: string, text: string) => networkFile(text, name);
+const run = runCli;
 
 // A pair swept over its input difference: the ratio exp(κΔV/U_T) is 1, 1.31, 1.72, 2.25 (Mead 1989 [derived]).
 const PAIR = `network pair
