@@ -1,24 +1,10 @@
 /**
- * Bundles a bench script with esbuild into one plain-JavaScript ES module, as
- * the run worker is bundled (scripts/build-worker.mjs), so the solver is timed
- * as the server runs it (bench/all.ts: bench/run.ts; bench/api-sweep.ts:
- * bench/sweep-direct.ts).
+ * Bundles a bench script into one plain-JavaScript ES module, as the run worker is bundled
+ * (scripts/lib/bundle.mjs, the same esbuild settings), so the solver is timed as the server runs it
+ * (bench/all.ts: bench/run.ts; bench/api-sweep.ts: bench/sweep-direct.ts). `outfile` is relative to the repository.
  */
-import { build } from "esbuild";
+import { bundle } from "../scripts/lib/bundle.mjs";
 
 export async function bundleScript(entry: string, outfile: string): Promise<void> {
-  await build({
-    entryPoints: [entry],
-    outfile,
-    bundle: true,
-    platform: "node",
-    format: "esm",
-    target: "node20",
-    tsconfig: "tsconfig.json",
-    // ESM output still meets CommonJS dependencies that call require().
-    banner: {
-      js: "import { createRequire as __runnelRequire } from 'node:module'; const require = __runnelRequire(import.meta.url);",
-    },
-    logLevel: "warning",
-  });
+  await bundle(entry, outfile);
 }

@@ -444,26 +444,7 @@ export function seriesView(
   to = Number.MAX_SAFE_INTEGER,
   d: Q = db(),
 ): SeriesView {
-  const s = readSeries(runId, layout, from, to, d);
-  return {
-    params: layout.params,
-    probes: layout.probes,
-    probeUnits: layout.probeUnits ?? layout.probes.map(() => null),
-    paramUnits: layout.paramUnits ?? layout.params.map((p) => (p === "temp" ? "K" : null)),
-    sweeps: layout.sweeps,
-    mismatch: layout.mismatch,
-    point: s.point,
-    sample: s.sample,
-    paramValues: s.params.map(jsonNumbers),
-    probeValues: s.probes.map(jsonNumbers),
-    method: s.method,
-    iterations: s.iterations,
-    residual: jsonNumbers(s.residual),
-    error: s.error,
-    expectations: layout.expectations ?? [],
-    passed: s.passed,
-    margins: s.margins.map(jsonNumbers),
-  };
+  return seriesViewOf(layout, readSeries(runId, layout, from, to, d));
 }
 
 /** Stored points of a run, in order (export). */

@@ -90,12 +90,7 @@ export function claimChunk(
   if (run.state !== "running") refuse(worker, runId, chunk, 409, `the run is ${run.state}`);
   const stop = stopOf(run, d);
   if (stop !== STOP_NONE) refuse(worker, runId, chunk, 409, `the run is stopping (${STOP_NAMES[stop]})`);
-  const c = d
-    .select()
-    .from(runChunks)
-    .where(and(eq(runChunks.runId, runId), eq(runChunks.chunk, chunk)))
-    .get();
-  if (!c) refuse(worker, runId, chunk, 404, "no such chunk");
+  const c = chunkRow(worker, runId, chunk, d);
   if (c.state === "done" || c.state === "failed") refuse(worker, runId, chunk, 409, `the chunk is already ${c.state}`);
   const attempt = c.attempts + 1;
   writeBusy(() =>
@@ -127,15 +122,21 @@ const STOP_NAMES: Record<StopKind, string> = {
   [STOP_FAILED]: "another chunk failed",
 };
 
-/** The chunk as handed out to `worker` at `attempt`, or a refusal (409) naming why not. */
-function heldChunk(worker: WorkerIdentity, runId: string, chunk: number, attempt: number, d: Q) {
-  const run = runFor(worker, runId, chunk, d);
+/** The chunk's row, or a refusal (404). */
+function chunkRow(worker: WorkerIdentity, runId: string, chunk: number, d: Q) {
   const c = d
     .select()
     .from(runChunks)
     .where(and(eq(runChunks.runId, runId), eq(runChunks.chunk, chunk)))
     .get();
   if (!c) refuse(worker, runId, chunk, 404, "no such chunk");
+  return c;
+}
+
+/** The chunk as handed out to `worker` at `attempt`, or a refusal (409) naming why not. */
+function heldChunk(worker: WorkerIdentity, runId: string, chunk: number, attempt: number, d: Q) {
+  const run = runFor(worker, runId, chunk, d);
+  const c = chunkRow(worker, runId, chunk, d);
   if (c.workerTokenId !== worker.id || c.attempts !== attempt)
     refuse(worker, runId, chunk, 409, `the chunk is not handed out to this worker at attempt ${attempt}`);
   if (c.state !== "running") refuse(worker, runId, chunk, 409, `the chunk is ${c.state}`);

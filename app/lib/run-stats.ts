@@ -47,12 +47,9 @@ export interface ChunkStats {
 }
 
 /** Collects a chunk's figures point by point. */
-export class ChunkCollector {
-  /** Bit k of the first half: device k outside weak inversion at some solved point; second half: not saturated. */
-  readonly flags: Uint8Array;
-  private readonly half: number;
-  private readonly warnings = new Map<string, RunWarning & { key: string }>();
-  readonly stats: ChunkStats = {
+/** A chunk's figures before it has solved a point. */
+export function emptyChunkStats(): ChunkStats {
+  return {
     points: 0,
     newtonPoints: 0,
     maxResidual: 0,
@@ -62,6 +59,14 @@ export class ChunkCollector {
     failureCount: 0,
     structural: null,
   };
+}
+
+export class ChunkCollector {
+  /** Bit k of the first half: device k outside weak inversion at some solved point; second half: not saturated. */
+  readonly flags: Uint8Array;
+  private readonly half: number;
+  private readonly warnings = new Map<string, RunWarning & { key: string }>();
+  readonly stats: ChunkStats = emptyChunkStats();
 
   constructor(private readonly devices: number) {
     this.half = flagBytes(devices);
@@ -139,18 +144,7 @@ export function mergeChunks(
   const half = flagBytes(devices);
   const flags = new Uint8Array(2 * half);
   const warnings = new Map<string, RunWarning>();
-  const out: RunFigures = {
-    points: 0,
-    newtonPoints: 0,
-    devicesNotWeak: 0,
-    devicesNotSaturated: 0,
-    maxResidual: 0,
-    solverReason: null,
-    warnings: [],
-    failures: [],
-    failureCount: 0,
-    structural: null,
-  };
+  const out: RunFigures = { ...emptyChunkStats(), devicesNotWeak: 0, devicesNotSaturated: 0 };
   for (const { stats, flags: f } of chunks) {
     if (out.solverReason === null && stats.points > 0) out.solverReason = stats.solverReason;
     out.points += stats.points;

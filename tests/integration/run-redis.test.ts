@@ -24,6 +24,7 @@ import { buildAccountsFixture, type AccountsFixture } from "../helpers/accounts"
 import { apiCaller } from "../helpers/api";
 import { startRouteServer, WORKER_ROUTES } from "../helpers/route-server";
 import { pairSweep } from "../helpers/pair-sweep";
+import { emptyChunkStats } from "@/app/lib/run-stats";
 
 vi.mock("next/headers", async () => (await import("../helpers/request-context")).nextHeadersMock);
 vi.mock("next/cache", async () => (await import("../helpers/request-context")).nextCacheMock);
@@ -494,16 +495,7 @@ describe.skipIf(!hasRedis)("the worker API refuses", () => {
     const end = await json(TOKENS.b, `/api/worker/chunks/${id}/0/end`, {
       outcome: "done",
       attempt: 2,
-      stats: {
-        points: 5,
-        newtonPoints: 0,
-        maxResidual: 0,
-        solverReason: null,
-        warnings: [],
-        failures: [],
-        failureCount: 0,
-        structural: null,
-      },
+      stats: { ...emptyChunkStats(), points: 5 },
       flags: Buffer.alloc(2).toString("base64"),
     });
     expect(end.status).toBe(409);

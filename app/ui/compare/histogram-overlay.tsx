@@ -3,8 +3,7 @@
 /** Two samples' counts on shared bins, drawn over each other (uPlot bars, translucent), before and after. */
 import { useNotation } from "@/app/ui/notation";
 import { useEffect, useRef } from "react";
-import type uPlotType from "uplot";
-import { loadUplot } from "@/app/ui/plots/load-uplot";
+import { mountUplot } from "@/app/ui/plots/load-uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatTick } from "@/app/lib/format";
 import { curveColour, withAlpha } from "@/app/ui/theme";
@@ -25,10 +24,7 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
   useEffect(() => {
     const el = host.current;
     if (!el || before.length === 0) return;
-    let plot: uPlotType | null = null;
-    let gone = false;
-    void loadUplot().then((uPlot) => {
-      if (gone) return;
+    return mountUplot(el, (uPlot) => {
       const centres = before.map((_, i) => (edges[i] + edges[i + 1]) / 2);
       const bars = (i: number, offset: number) => ({
         label: labels[i],
@@ -38,7 +34,7 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
         paths: uPlot.paths.bars!({ size: [0.9, Infinity], align: offset as 0 }),
         points: { show: false },
       });
-      plot = new uPlot(
+      return new uPlot(
         {
           title,
           width: Math.max(320, el.clientWidth),
@@ -58,10 +54,6 @@ export function HistogramOverlay({ title, edges, before, after, unit, labels }: 
         el,
       );
     });
-    return () => {
-      gone = true;
-      plot?.destroy();
-    };
   }, [title, edges, before, after, unit, labels, notation]);
   return <div ref={host} role="img" aria-label={title} data-slot="plot" className="w-full overflow-hidden" />;
 }

@@ -7,8 +7,7 @@
  * lines. Downloads as PNG, SVG and the bins as CSV.
  */
 import { useEffect, useMemo, useRef } from "react";
-import type uPlotType from "uplot";
-import { loadUplot } from "@/app/ui/plots/load-uplot";
+import { mountUplot } from "@/app/ui/plots/load-uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatValue } from "@/app/lib/format";
 import { useNotation } from "@/app/ui/notation";
@@ -41,71 +40,64 @@ export function Histogram({ title, values, axis, markers = NO_MARKERS, height = 
   useEffect(() => {
     const el = host.current;
     if (!el || bins.counts.length === 0) return;
-    let plot: uPlotType | null = null;
-    let gone = false;
     const width = () => Math.max(240, el.clientWidth);
     const lo = bins.edges[0];
     const hi = bins.edges[bins.edges.length - 1];
     const pad = hi > lo ? 0 : Math.abs(lo || 1) * 0.05;
-    void loadUplot().then((uPlot) => {
-      if (gone) return;
-      plot = new uPlot(
-        {
-          width: width(),
-          height,
-          scales: {
-            x: { time: false, range: () => [lo - pad, hi + pad] },
-            y: { range: (_u, _min, max) => [0, Math.max(1, max) * 1.1] },
-          },
-          axes: [
-            { label: axisTitle(axis), values: (_u, s) => tickLabels(axis, s, notation), size: 48 },
-            { label: "samples", values: (_u, s) => tickLabels(COUNT_AXIS, s, notation), size: 56 },
-          ],
-          series: [
-            {
-              label: axisTitle(axis),
-              value: (_u, v) => formatValue(v, axis.unit, { notation }),
+    return mountUplot(
+      el,
+      (uPlot) =>
+        new uPlot(
+          {
+            width: width(),
+            height,
+            scales: {
+              x: { time: false, range: () => [lo - pad, hi + pad] },
+              y: { range: (_u, _min, max) => [0, Math.max(1, max) * 1.1] },
             },
-            {
-              label: "samples",
-              fill: withAlpha(curveColour(0), 0.55),
-              stroke: curveColour(0),
-              width: 1,
-              paths: uPlot.paths.bars!({ size: [1, Infinity], align: 0 }),
-              points: { show: false },
-            },
-          ],
-          hooks: {
-            draw: [
-              (u) => {
-                const g = u.ctx;
-                g.save();
-                g.strokeStyle = themeColour("ember-500");
-                g.setLineDash([4, 3]);
-                g.lineWidth = devicePixelRatio;
-                for (const m of markers) {
-                  const px = u.valToPos(m.x, "x", true);
-                  g.beginPath();
-                  g.moveTo(px, u.bbox.top);
-                  g.lineTo(px, u.bbox.top + u.bbox.height);
-                  g.stroke();
-                }
-                g.restore();
+            axes: [
+              { label: axisTitle(axis), values: (_u, s) => tickLabels(axis, s, notation), size: 48 },
+              { label: "samples", values: (_u, s) => tickLabels(COUNT_AXIS, s, notation), size: 56 },
+            ],
+            series: [
+              {
+                label: axisTitle(axis),
+                value: (_u, v) => formatValue(v, axis.unit, { notation }),
+              },
+              {
+                label: "samples",
+                fill: withAlpha(curveColour(0), 0.55),
+                stroke: curveColour(0),
+                width: 1,
+                paths: uPlot.paths.bars!({ size: [1, Infinity], align: 0 }),
+                points: { show: false },
               },
             ],
+            hooks: {
+              draw: [
+                (u) => {
+                  const g = u.ctx;
+                  g.save();
+                  g.strokeStyle = themeColour("ember-500");
+                  g.setLineDash([4, 3]);
+                  g.lineWidth = devicePixelRatio;
+                  for (const m of markers) {
+                    const px = u.valToPos(m.x, "x", true);
+                    g.beginPath();
+                    g.moveTo(px, u.bbox.top);
+                    g.lineTo(px, u.bbox.top + u.bbox.height);
+                    g.stroke();
+                  }
+                  g.restore();
+                },
+              ],
+            },
           },
-        },
-        [centres, bins.counts],
-        el,
-      );
-    });
-    const observer = new ResizeObserver(() => plot?.setSize({ width: width(), height }));
-    observer.observe(el);
-    return () => {
-      gone = true;
-      observer.disconnect();
-      plot?.destroy();
-    };
+          [centres, bins.counts],
+          el,
+        ),
+      { width, height },
+    );
   }, [bins, centres, axis, markers, height, notation]);
 
   const svgOf = () =>

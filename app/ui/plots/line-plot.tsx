@@ -12,7 +12,7 @@
  */
 import { useEffect, useMemo, useRef } from "react";
 import type uPlotType from "uplot";
-import { loadUplot } from "@/app/ui/plots/load-uplot";
+import { mountUplot } from "@/app/ui/plots/load-uplot";
 import "uplot/dist/uPlot.min.css";
 import { formatValue } from "@/app/lib/format";
 import { useNotation } from "@/app/ui/notation";
@@ -77,78 +77,72 @@ export function LinePlot({
   useEffect(() => {
     const el = host.current;
     if (!el || x.length === 0) return;
-    let plot: uPlotType | null = null;
-    let gone = false;
     const fmtX = (v: number | null) => formatValue(v, xAxis.unit, { notation });
     const fmtY = (v: number | null) => formatValue(v, yAxis.unit, { notation });
     const width = () => Math.max(240, el.clientWidth);
-    void loadUplot().then((uPlot) => {
-      if (gone) return;
-      const scale = (a: AxisSpec): uPlotType.Scale =>
-        a.log ? { distr: 3, log: 10, range: (_u, min, max) => logRange(min, max) } : { distr: 1 };
-      // The drawn tick labels are also kept on the host (data-x-ticks, data-y-ticks) for tests and tools.
-      const axis = (a: AxisSpec, size: number, key: "xTicks" | "yTicks"): uPlotType.Axis => ({
-        label: axisTitle(a),
-        size,
-        values: (_u, splits) => {
-          const labels = tickLabels(a, splits, notation);
-          el.dataset[key] = labels.filter(Boolean).join("|");
-          return labels;
-        },
-        ...(a.log
-          ? {
-              splits: (_u: uPlotType, _i: number, min: number, max: number) => logSplits(min, max),
-              // every split reaches `values`, which labels the decades it keeps (uPlot's own thinning drops more)
-              filter: (_u: uPlotType, splits: number[]) => splits,
-              grid: { filter: (_u: uPlotType, splits: number[]) => splits.map((v) => (isDecade(v) ? v : null)) },
-            }
-          : {}),
-        ...(a.integer ? { incrs: INTEGER_INCREMENTS } : {}),
-      });
-      const legendValue =
-        (fmt: (v: number | null) => string) => (u: uPlotType, v: number | null, s: number, i: number | null) =>
-          i == null ? fmt(lastValue(u.data[s] as ArrayLike<number | null>)) : fmt(v);
-      const opts: uPlotType.Options = {
-        width: width(),
-        height,
-        scales: { x: { time: false, ...scale(xAxis) }, y: scale(yAxis) },
-        axes: [axis(xAxis, 48, "xTicks"), axis(yAxis, 84, "yTicks")],
-        series: [
-          { label: axisTitle(xAxis), value: legendValue(fmtX) },
-          ...curves.map((c, i) => {
-            const colour = curveColour(c.colour ?? i);
-            return {
-              label: labels[i],
-              stroke: colour,
-              width: points ? 0 : 1.75,
-              dash: c.dash ? [5, 3] : undefined,
-              points: { show: points || x.length < 40, size: points ? 4 : 5, fill: colour },
+    return mountUplot(
+      el,
+      (uPlot) => {
+        const scale = (a: AxisSpec): uPlotType.Scale =>
+          a.log ? { distr: 3, log: 10, range: (_u, min, max) => logRange(min, max) } : { distr: 1 };
+        // The drawn tick labels are also kept on the host (data-x-ticks, data-y-ticks) for tests and tools.
+        const axis = (a: AxisSpec, size: number, key: "xTicks" | "yTicks"): uPlotType.Axis => ({
+          label: axisTitle(a),
+          size,
+          values: (_u, splits) => {
+            const labels = tickLabels(a, splits, notation);
+            el.dataset[key] = labels.filter(Boolean).join("|");
+            return labels;
+          },
+          ...(a.log
+            ? {
+                splits: (_u: uPlotType, _i: number, min: number, max: number) => logSplits(min, max),
+                // every split reaches `values`, which labels the decades it keeps (uPlot's own thinning drops more)
+                filter: (_u: uPlotType, splits: number[]) => splits,
+                grid: { filter: (_u: uPlotType, splits: number[]) => splits.map((v) => (isDecade(v) ? v : null)) },
+              }
+            : {}),
+          ...(a.integer ? { incrs: INTEGER_INCREMENTS } : {}),
+        });
+        const legendValue =
+          (fmt: (v: number | null) => string) => (u: uPlotType, v: number | null, s: number, i: number | null) =>
+            i == null ? fmt(lastValue(u.data[s] as ArrayLike<number | null>)) : fmt(v);
+        const opts: uPlotType.Options = {
+          width: width(),
+          height,
+          scales: { x: { time: false, ...scale(xAxis) }, y: scale(yAxis) },
+          axes: [axis(xAxis, 48, "xTicks"), axis(yAxis, 84, "yTicks")],
+          series: [
+            { label: axisTitle(xAxis), value: legendValue(fmtX) },
+            ...curves.map((c, i) => {
+              const colour = curveColour(c.colour ?? i);
+              return {
+                label: labels[i],
+                stroke: colour,
+                width: points ? 0 : 1.75,
+                dash: c.dash ? [5, 3] : undefined,
+                points: { show: points || x.length < 40, size: points ? 4 : 5, fill: colour },
+                value: legendValue(fmtY),
+              };
+            }),
+            ...marks.map((m, k) => ({
+              label: labels[curves.length + k],
+              stroke: themeColour(m.colour),
+              width: 0,
+              points: { show: true, size: 7, width: 1.5, stroke: themeColour(m.colour), fill: "#ffffff" },
               value: legendValue(fmtY),
-            };
-          }),
-          ...marks.map((m, k) => ({
-            label: labels[curves.length + k],
-            stroke: themeColour(m.colour),
-            width: 0,
-            points: { show: true, size: 7, width: 1.5, stroke: themeColour(m.colour), fill: "#ffffff" },
-            value: legendValue(fmtY),
+            })),
+          ],
+          bands: bands.map((b) => ({
+            series: [b.upper + 1, b.lower + 1] as [number, number],
+            fill: withAlpha(curveColour(curves[b.upper]?.colour ?? b.upper), 0.15),
           })),
-        ],
-        bands: bands.map((b) => ({
-          series: [b.upper + 1, b.lower + 1] as [number, number],
-          fill: withAlpha(curveColour(curves[b.upper]?.colour ?? b.upper), 0.15),
-        })),
-        legend: { live: true },
-      };
-      plot = new uPlot(opts, [data.x, ...data.columns] as uPlotType.AlignedData, el);
-    });
-    const observer = new ResizeObserver(() => plot?.setSize({ width: width(), height }));
-    observer.observe(el);
-    return () => {
-      gone = true;
-      observer.disconnect();
-      plot?.destroy();
-    };
+          legend: { live: true },
+        };
+        return new uPlot(opts, [data.x, ...data.columns] as uPlotType.AlignedData, el);
+      },
+      { width, height },
+    );
   }, [x, xAxis, yAxis, curves, marks, bands, points, height, data, labels, notation]);
 
   const svgOf = () => {

@@ -14,3 +14,27 @@ export function loadUplot(): Promise<typeof uPlotType> {
 }
 
 if (typeof window !== "undefined") void loadUplot();
+
+/**
+ * A uPlot on `el`, for a plot component's effect: `build` makes it once uPlot has loaded (not if the effect was
+ * cleaned up first); with `fit`, the plot follows the element's width (`fit()` gives it) at `height`. Returns the
+ * effect's cleanup, which destroys the plot.
+ */
+export function mountUplot(
+  el: HTMLElement,
+  build: (uPlot: typeof uPlotType) => uPlotType,
+  fit?: { width: () => number; height: number },
+): () => void {
+  let plot: uPlotType | null = null;
+  let gone = false;
+  void loadUplot().then((uPlot) => {
+    if (!gone) plot = build(uPlot);
+  });
+  const observer = fit ? new ResizeObserver(() => plot?.setSize({ width: fit.width(), height: fit.height })) : null;
+  observer?.observe(el);
+  return () => {
+    gone = true;
+    observer?.disconnect();
+    plot?.destroy();
+  };
+}
