@@ -47,6 +47,31 @@ export function Field(props: {
   );
 }
 
+/** A new password and its repetition (sign-up, accepting an invitation); `hint` says what makes a good one. */
+export function NewPasswordFields({ state, hint, required }: { state?: FormState; hint: string; required?: boolean }) {
+  return (
+    <>
+      <Field
+        label="Password"
+        name="password"
+        type="password"
+        autoComplete="new-password"
+        state={state}
+        hint={hint}
+        required={required}
+      />
+      <Field
+        label="Repeat password"
+        name="confirm"
+        type="password"
+        autoComplete="new-password"
+        state={state}
+        required={required}
+      />
+    </>
+  );
+}
+
 export function RoleSelect(props: { name?: string; defaultValue?: string; label?: string; id?: string }) {
   return (
     <select
@@ -99,5 +124,23 @@ export function Submit({ children, tone = "primary" }: { children: ReactNode; to
     >
       {children}
     </button>
+  );
+}
+
+/** A control's outcome below it: an error (role=alert) and a confirmation (role=status), each only when there is one. */
+export function InlineMessage({ error, note }: { error?: string | null; note?: string | null }) {
+  return (
+    <>
+      {error ? (
+        <p role="alert" className="text-sm text-ember-500">
+          {error}
+        </p>
+      ) : null}
+      {note ? (
+        <p role="status" className="text-sm text-moss-700">
+          {note}
+        </p>
+      ) : null}
+    </>
   );
 }

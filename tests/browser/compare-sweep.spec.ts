@@ -1,5 +1,6 @@
 import fs from "node:fs";
 import { expect, test, type APIRequestContext, type Browser, type Page } from "@playwright/test";
+import { signIn } from "./sign-in";
 
 /**
  * Compare and review at the size of real work: the LM-64 edge row (64 taps, 66
@@ -17,14 +18,6 @@ const WS = "lm64-edge-row";
 test.use({ actionTimeout: 20_000 });
 const shot = (page: Page, name: string) =>
   page.screenshot({ path: `test-results/browser/compare-sweep-${name}.png`, fullPage: true });
-
-async function signIn(page: Page, email: string) {
-  await page.goto("/signin");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("larkspur-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
-}
 
 async function reviewerPage(browser: Browser, baseURL: string): Promise<Page> {
   const page = await (await browser.newContext({ baseURL, viewport: { width: 1280, height: 900 } })).newPage();

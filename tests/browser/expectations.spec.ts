@@ -1,4 +1,5 @@
 import { expect, test, type Page } from "@playwright/test";
+import { signIn } from "./sign-in";
 
 /**
  * Expectations in the browser, on the seeded demo (scripts/seed): the run page opens with its Expectations panel
@@ -8,14 +9,6 @@ import { expect, test, type Page } from "@playwright/test";
  */
 const shot = (page: Page, name: string) =>
   page.screenshot({ path: `test-results/browser/expectations-${name}.png`, fullPage: true });
-
-async function signIn(page: Page, email: string) {
-  await page.goto("/signin");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("larkspur-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
-}
 
 test("the run page shows the expectations first: status, margin, where it fails, margin and yield plots", async ({
   page,

@@ -1,4 +1,5 @@
 import { expect, test, type Page } from "@playwright/test";
+import { signIn } from "./sign-in";
 
 /**
  * Results a designer reads at a glance: a 14-decade current on a log axis
@@ -22,14 +23,6 @@ sweep iin from 8.7e-25 to 4.9e-11 points 300 log
 
 const shot = (page: Page, name: string) =>
   page.screenshot({ path: `test-results/browser/notebook-${name}.png`, fullPage: true });
-
-async function signIn(page: Page, email = "designer@larkspur.example") {
-  await page.goto("/signin");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("larkspur-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page).not.toHaveURL(/\/signin/);
-}
 
 /**
  * The page `page` shows, opened signed in the same but with scripts off (what the server alone sends): its first

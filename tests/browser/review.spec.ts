@@ -1,4 +1,5 @@
 import { expect, test, type Page } from "@playwright/test";
+import { signIn as signInTo } from "./sign-in";
 
 /**
  * Review in the browser, on the seeded demo thread (scripts/seed/review.ts): the
@@ -7,16 +8,11 @@ import { expect, test, type Page } from "@playwright/test";
  * without the sign-off buttons. Screenshots go to test-results/browser/review-*.png.
  */
 const THREAD = "/threads/t_demo_divider_ratio";
+
+/** Signs in, then on to the thread. */
+const signIn = (page: Page, email: string) => signInTo(page, email, THREAD);
 const shot = (page: Page, name: string) =>
   page.screenshot({ path: `test-results/browser/review-${name}.png`, fullPage: true });
-
-async function signIn(page: Page, email: string) {
-  await page.goto(`/signin?next=${encodeURIComponent(THREAD)}`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("larkspur-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
-}
 
 test("a reviewer opens a thread from its link, follows the run card, compares two commits, signs off", async ({
   page,

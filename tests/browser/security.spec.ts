@@ -1,4 +1,8 @@
 import { expect, test, type Page } from "@playwright/test";
+import { signIn as signInTo } from "./sign-in";
+
+/** Signs in, then on to `next` (else the home page). */
+const signIn = (page: Page, email: string, next = "/") => signInTo(page, email, next);
 
 /**
  * What a browser sees of Runnel's protections: the security headers on pages
@@ -7,14 +11,6 @@ import { expect, test, type Page } from "@playwright/test";
  * and a cross-site form post answered 403 (not 500).
  */
 const PORT = Number(process.env.RUNNEL_E2E_PORT ?? 3100);
-
-async function signIn(page: Page, email: string, next = "/") {
-  await page.goto(`/signin?next=${encodeURIComponent(next)}`);
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill("larkspur-demo");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
-}
 
 /** Collects the browser's reports of anything the page's policy blocked. */
 function cspViolations(page: Page): string[] {

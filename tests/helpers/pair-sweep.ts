@@ -14,3 +14,21 @@ inject tail_sink from=tail to=gnd value=20n
 probe ratio = current(m1) / current(m2)
 sweep dv from -40m to 40m points ${points}
 `;
+
+/**
+ * A differential pair with a biased tail device, swept over its gates' difference `dv` at `steps` (volts): the ratio
+ * current(m1)/current(m2) is exp(κ·dv/U_T) while both stay saturated (C. Mead, Analog VLSI and Neural Systems, 1989).
+ */
+export const tailPair = (steps: number[]) => `network pair
+param dv = 0
+rail vdd = 1
+rail gnd = 0
+rail vb = 0.45
+rail v1 = 0.6 + dv
+rail v2 = 0.6
+nfet tail gate=vb source=gnd drain=t
+nfet m1 gate=v1 source=t drain=vdd
+nfet m2 gate=v2 source=t drain=vdd
+probe ratio = current(m1)/current(m2)
+sweep dv values [${steps.join(", ")}]
+`;

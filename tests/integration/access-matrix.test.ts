@@ -96,14 +96,12 @@ const withInvitation: Setup = (db) => {
 /** A network with one commit and one finished run (solved in-process), for the workbench rows. */
 const DIVIDER =
   "rail vdd = 1.8\nrail gnd = 0\nrail g1 = 0.71\nrail g2 = 0.69\nnfet m1 gate=g1 source=tail drain=vdd\nnfet m2 gate=g2 source=tail drain=vdd\ninject tailsink from=tail to=gnd value=20n\nprobe ratio = current(m1) / current(m2)\n";
-const withRun: Setup = (db) => {
-  const { network, commit } = createNetwork(
-    { workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" },
-    db,
-  );
+/** A network of `text` committed by a designer, and a queued run `id` of it. */
+function queuedRun(db: DB, id: string, name: string, text: string) {
+  const { network, commit } = createNetwork({ workspaceId: WORKSPACE.id, name, text, authorId: "u_designer1" }, db);
   db.insert(runs)
     .values({
-      id: "r_case",
+      id,
       commitId: commit!.id,
       networkId: network.id,
       workspaceId: WORKSPACE.id,
@@ -112,27 +110,18 @@ const withRun: Setup = (db) => {
       timeLimitMs: 60_000,
     })
     .run();
-  executeRun("r_case", {}, db);
-  return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
-};
-/** As withRun, but the run is still queued (cancel rows). */
+  return { network, commit: commit! };
+}
+/** The divider committed and a queued run of it (cancel rows). */
 const withQueuedRun: Setup = (db) => {
-  const { network, commit } = createNetwork(
-    { workspaceId: WORKSPACE.id, name: "Matrix divider", text: DIVIDER, authorId: "u_designer1" },
-    db,
-  );
-  db.insert(runs)
-    .values({
-      id: "r_case",
-      commitId: commit!.id,
-      networkId: network.id,
-      workspaceId: WORKSPACE.id,
-      createdBy: "u_designer1",
-      pointsTotal: 1,
-      timeLimitMs: 60_000,
-    })
-    .run();
-  return { networkId: network.id, commitId: commit!.id, runId: "r_case" };
+  const { network, commit } = queuedRun(db, "r_case", "Matrix divider", DIVIDER);
+  return { networkId: network.id, commitId: commit.id, runId: "r_case" };
+};
+/** As withQueuedRun, with the run finished. */
+const withRun: Setup = (db) => {
+  const made = withQueuedRun(db);
+  executeRun("r_case", {}, db);
+  return made;
 };
 
 /** Review rows: the divider with two commits and a done sweep run of each, a thread on the newer commit, a measurement. */
@@ -178,26 +167,12 @@ const withReview: Setup = (db) => {
 };
 /** A thread on a commit whose done run fails an expectation (a sign-off needs a written reason). */
 const withFailingExpectation: Setup = (db) => {
-  const { network, commit } = createNetwork(
-    {
-      workspaceId: WORKSPACE.id,
-      name: "Matrix failing divider",
-      text: `${DIVIDER}expect impossible_power = power() <= 1p\n`,
-      authorId: "u_designer1",
-    },
+  const { network, commit } = queuedRun(
     db,
+    "r_fail",
+    "Matrix failing divider",
+    `${DIVIDER}expect impossible_power = power() <= 1p\n`,
   );
-  db.insert(runs)
-    .values({
-      id: "r_fail",
-      commitId: commit!.id,
-      networkId: network.id,
-      workspaceId: WORKSPACE.id,
-      createdBy: "u_designer1",
-      pointsTotal: 1,
-      timeLimitMs: 60_000,
-    })
-    .run();
   executeRun("r_fail", {}, db);
   db.insert(threads)
     .values({

@@ -124,6 +124,18 @@ const chunksOf = (id: string) =>
   db.select().from(runChunks).where(eq(runChunks.runId, id)).orderBy(asc(runChunks.chunk)).all();
 const storedPoints = (id: string) => db.select({ n: count() }).from(runPoints).where(eq(runPoints.runId, id)).get()!.n;
 
+/** A slowed run of a new network `name` (a SWEEP of `points`), once more than `after` of its points are stored: its id. */
+async function slowRunUnderWay(name: string, points: number, after = 20): Promise<string> {
+  const r = await startRun({ commit: await newCommit(name, SWEEP(points)), fault: "slow" });
+  const id = (r.json as { run: RunJson }).run.id;
+  await until(
+    "points",
+    () => storedPoints(id),
+    (n) => n > after,
+  );
+  return id;
+}
+
 async function until<T>(what: string, get: () => T, ok: (x: T) => boolean, ms = 60_000): Promise<T> {
   const end = Date.now() + ms;
   for (;;) {
@@ -246,14 +258,7 @@ describe.skipIf(!hasRedis)("runs on the Redis queue with two worker processes", 
   });
 
   it("cancel stops the running chunks and drops the waiting ones", async () => {
-    const commit = await newCommit("Cancel on the queue", SWEEP(400));
-    const r = await startRun({ commit, fault: "slow" });
-    const id = (r.json as { run: RunJson }).run.id;
-    await until(
-      "points",
-      () => storedPoints(id),
-      (n) => n > 20,
-    );
+    const id = await slowRunUnderWay("Cancel on the queue", 400);
     const c = await call("designer", "runs/[id]/cancel/route", "POST", `/api/runs/${id}/cancel`, { id });
     expect(c.status).toBe(200);
     const t0 = Date.now();
@@ -329,17 +334,10 @@ describe.skipIf(!hasRedis)("runs on the Redis queue with two worker processes", 
 
   it("with Redis stopped: a new run answers 503 at once, finished runs read, and the running run resumes when it is back", async () => {
     const done = db.select({ id: runs.id }).from(runs).where(eq(runs.state, "done")).get()!;
-    const commit = await newCommit("Redis goes away", SWEEP(300));
-    const r = await startRun({ commit, fault: "slow" });
-    const id = (r.json as { run: RunJson }).run.id;
-    await until(
-      "points",
-      () => storedPoints(id),
-      (n) => n > 20,
-    );
+    const id = await slowRunUnderWay("Redis goes away", 300);
     await redis.stop();
     const t0 = Date.now();
-    const refused = await startRun({ commit });
+    const refused = await startRun({ commit: runRow(id).commitId });
     expect(refused.status).toBe(503);
     expect(refused.json.error).toMatch(/the run queue \(Redis\) is not reachable/);
     expect(Date.now() - t0).toBeLessThan(1_500);

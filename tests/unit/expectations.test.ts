@@ -10,6 +10,7 @@ import type { Network } from "../../src/lang/network";
 import { thermalVoltage } from "../../src/lang/point";
 import { ExpectationTally, summarizeExpectations, solveNetwork, wilsonInterval } from "../../src/solver/index";
 import { Z95 } from "../../src/solver/expectation-summary";
+import { tailPair } from "../helpers/pair-sweep";
 
 function net(text: string): Network {
   const r = elaborate(text);
@@ -31,19 +32,7 @@ describe("a differential pair's current ratio against Mead 1989", () => {
   // I1/I2 = exp(κ(V1 − V2)/U_T) with both devices saturated and a common source (C. Mead, Analog VLSI and Neural
   // Systems, 1989, the transconductance amplifier [confirmed record; formula derived from the weak-inversion law]).
   const steps = [0, 0.01, 0.02, 0.03, 0.04, 0.05];
-  const text = `network pair
-param dv = 0
-rail vdd = 1
-rail gnd = 0
-rail vb = 0.45
-rail v1 = 0.6 + dv
-rail v2 = 0.6
-nfet tail gate=vb source=gnd drain=t
-nfet m1 gate=v1 source=t drain=vdd
-nfet m2 gate=v2 source=t drain=vdd
-probe ratio = current(m1)/current(m2)
-sweep dv values [${steps.join(", ")}]
-expect band = 1.2 <= ratio <= 2.5
+  const text = `${tailPair(steps)}expect band = 1.2 <= ratio <= 2.5
 expect direct = 1.2 <= current(m1)/current(m2) <= 2.5
 `;
   const ratio = (dv: number) => Math.exp((KAPPA * dv) / UT);

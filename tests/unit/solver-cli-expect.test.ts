@@ -6,24 +6,13 @@
 import { describe, expect, it } from "vitest";
 import { networkFile, runCli } from "../helpers/cli";
 import type { SolveJson } from "../../src/solver/json";
+import { tailPair } from "../helpers/pair-sweep";
 
 const file = (name: string, text: string) => networkFile(text, name);
 const run = runCli;
 
 // A pair swept over its input difference: the ratio exp(κΔV/U_T) is 1, 1.31, 1.72, 2.25 (Mead 1989 [derived]).
-const PAIR = `network pair
-param dv = 0
-rail vdd = 1
-rail gnd = 0
-rail vb = 0.45
-rail v1 = 0.6 + dv
-rail v2 = 0.6
-nfet tail gate=vb source=gnd drain=t
-nfet m1 gate=v1 source=t drain=vdd
-nfet m2 gate=v2 source=t drain=vdd
-probe ratio = current(m1)/current(m2)
-sweep dv values [0, 0.01, 0.02, 0.03]
-expect sat = saturated devices=m*
+const PAIR = `${tailPair([0, 0.01, 0.02, 0.03])}expect sat = saturated devices=m*
 `;
 const passing = file("pass.runnel", PAIR + "expect ratio_ok = ratio <= 2.5\n");
 const failing = file("fail.runnel", PAIR + "expect ratio_ok = ratio <= 2\n");

@@ -1,7 +1,7 @@
 "use client";
 import { useActionState } from "react";
 import { HoverLink } from "@/app/ui/hover-link";
-import { Field, FormMessage, Submit } from "@/app/ui/form";
+import { Field, FormMessage, NewPasswordFields, Submit } from "@/app/ui/form";
 import { signUp } from "../actions";
 
 export function SignUpForm({ next, minLength }: { next: string; minLength: number }) {
@@ -26,21 +26,9 @@ export function SignUpForm({ next, minLength }: { next: string; minLength: numbe
       <FormMessage state={state} />
       <Field label="Name" name="name" autoComplete="name" state={state} required />
       <Field label="E-mail" name="email" type="email" autoComplete="email" state={state} required />
-      <Field
-        label="Password"
-        name="password"
-        type="password"
-        autoComplete="new-password"
+      <NewPasswordFields
         state={state}
         hint={`At least ${minLength} characters, not easy to guess: a phrase of several unrelated words works well.`}
-        required
-      />
-      <Field
-        label="Repeat password"
-        name="confirm"
-        type="password"
-        autoComplete="new-password"
-        state={state}
         required
       />
       <Submit>Create account</Submit>

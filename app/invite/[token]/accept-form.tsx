@@ -1,6 +1,6 @@
 "use client";
 import { useActionState } from "react";
-import { Field, FormMessage, Submit } from "@/app/ui/form";
+import { Field, FormMessage, NewPasswordFields, Submit } from "@/app/ui/form";
 import { acceptInvitation } from "./actions";
 
 /**
@@ -31,15 +31,7 @@ export function AcceptForm(props: {
             Create your account for <span className="font-mono">{props.email}</span>.
           </p>
           <Field label="Name" name="name" autoComplete="name" state={state} />
-          <Field
-            label="Password"
-            name="password"
-            type="password"
-            autoComplete="new-password"
-            state={state}
-            hint={`At least ${props.minLength} characters.`}
-          />
-          <Field label="Repeat password" name="confirm" type="password" autoComplete="new-password" state={state} />
+          <NewPasswordFields state={state} hint={`At least ${props.minLength} characters.`} />
         </>
       ) : null}
       <Submit>Accept invitation</Submit>

@@ -6,6 +6,7 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import type { InboxItem } from "@/app/lib/inbox";
 import { sendJson } from "@/app/ui/fetch";
+import { InlineMessage } from "@/app/ui/form";
 
 const KIND: Record<InboxItem["kind"], string> = {
   mention: "mention",
@@ -55,11 +56,7 @@ export function InboxList({
           </button>
         ) : null}
       </div>
-      {error ? (
-        <p role="alert" className="text-sm text-ember-500">
-          {error}
-        </p>
-      ) : null}
+      <InlineMessage error={error} />
       {items.length === 0 ? <p className="text-sm text-stone-500">Nothing here.</p> : null}
       <ol aria-label="Inbox items" className="divide-y divide-stone-200 rounded border border-stone-300 bg-white">
         {items.map((n) => (

@@ -5,6 +5,7 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { sendJson } from "@/app/ui/fetch";
 import { CommentComposer, type MemberHandle } from "./comment-composer";
+import { InlineMessage } from "@/app/ui/form";
 
 export function CommentForm({
   threadId,
@@ -85,16 +86,7 @@ export function CommentForm({
           Comment
         </button>
       </div>
-      {error ? (
-        <p role="alert" className="text-sm text-ember-500">
-          {error}
-        </p>
-      ) : null}
-      {note ? (
-        <p role="status" className="text-sm text-moss-700">
-          {note}
-        </p>
-      ) : null}
+      <InlineMessage error={error} note={note} />
     </form>
   );
 }
@@ -179,11 +171,7 @@ export function NewThreadForm({
           Open thread
         </button>
       </div>
-      {error ? (
-        <p role="alert" className="text-sm text-ember-500">
-          {error}
-        </p>
-      ) : null}
+      <InlineMessage error={error} />
     </form>
   );
 }

@@ -13,6 +13,7 @@ import type { NetworkSummary } from "@/app/lib/networks";
 import { getJson, sendJson } from "@/app/ui/fetch";
 import { ArchivedNetworks } from "./archived-networks";
 import { NetworkItem } from "./network-item";
+import { InlineMessage } from "@/app/ui/form";
 
 /** Largest file accepted for upload (the language's own limit is 2 MiB of text). */
 const MAX_UPLOAD_BYTES = 2 * 1024 * 1024;
@@ -109,11 +110,7 @@ export function NetworkList({
           </form>
         ) : null}
       </div>
-      {problem ? (
-        <p role="alert" className="text-sm text-ember-500">
-          {problem}
-        </p>
-      ) : null}
+      <InlineMessage error={problem} />
       {error ? <p className="text-sm text-ember-500">Could not load the networks: {(error as Error).message}</p> : null}
       {!data ? (
         !error ? (
