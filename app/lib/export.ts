@@ -82,6 +82,21 @@ export interface ExportRun extends RunStatus {
   solverReason: string | null;
 }
 
+/** What an export says of the run, in the order the JSON export writes it (its id first, then the commit's). */
+export function exportRunOf(run: ExportRun): ExportRun {
+  return {
+    id: run.id,
+    state: run.state,
+    reason: run.reason,
+    pointsDone: run.pointsDone,
+    pointsTotal: run.pointsTotal,
+    model: run.model,
+    solverReason: run.solverReason,
+  };
+}
+
+const withoutId = ({ id: _id, ...rest }: ExportRun) => rest;
+
 /** What the JSON export says about the commit. */
 export interface ExportCommit {
   id: string;
@@ -281,16 +296,7 @@ export function* jsonChunks(run: ExportRun, commit: ExportCommit, layout: RunLay
   const head = {
     network: layout.network,
     ok: commit.ok,
-    run: {
-      id: run.id,
-      commit: commit.id,
-      state: run.state,
-      reason: run.reason,
-      pointsDone: run.pointsDone,
-      pointsTotal: run.pointsTotal,
-      model: run.model,
-      solverReason: run.solverReason,
-    },
+    run: { id: run.id, commit: commit.id, ...withoutId(exportRunOf(run)) },
     diagnostics,
     // A run that did not end `done` holds only some of its points: say so in the file.
     ...(partialNote(run) ? { partial: partialNote(run) } : {}),

@@ -15,6 +15,15 @@ import { pointKey, type AnalysisTable, type ResultColumn } from "./results-diff"
 import type { RunSource } from "./sweep-compare";
 import { layoutHeads, layoutTexts, parseStoredLayout } from "../run-layouts";
 
+/** The stored arrays of a point that the tables compare. */
+const POINT_ARRAYS = {
+  nodes: runPoints.nodes,
+  rails: runPoints.rails,
+  current: runPoints.current,
+  ic: runPoints.ic,
+  probes: runPoints.probes,
+};
+
 /** The parts of a run's layout (app/lib/results.ts RunLayout) this module reads. */
 export interface LayoutNames {
   nodes: string[];
@@ -70,14 +79,7 @@ export function runTable(runId: string, d: Q = db()): AnalysisTable | null {
   const layout = runLayout(runId, d);
   if (!layout) return null;
   const rows = d
-    .select({
-      point: runPoints.point,
-      nodes: runPoints.nodes,
-      rails: runPoints.rails,
-      current: runPoints.current,
-      ic: runPoints.ic,
-      probes: runPoints.probes,
-    })
+    .select({ point: runPoints.point, ...POINT_ARRAYS })
     .from(runPoints)
     .where(eq(runPoints.runId, runId))
     .orderBy(asc(runPoints.point))
@@ -227,13 +229,7 @@ export function runSource(runId: string, d: Q = db()): RunSource | null {
     columns,
     read(i) {
       const r = d
-        .select({
-          nodes: runPoints.nodes,
-          rails: runPoints.rails,
-          current: runPoints.current,
-          ic: runPoints.ic,
-          probes: runPoints.probes,
-        })
+        .select(POINT_ARRAYS)
         .from(runPoints)
         .where(and(eq(runPoints.runId, runId), eq(runPoints.point, stored[i])))
         .get();

@@ -6,6 +6,7 @@ import { useState } from "react";
 import { sendJson } from "@/app/ui/fetch";
 import { CommentComposer, type MemberHandle } from "./comment-composer";
 import { InlineMessage } from "@/app/ui/form";
+import { RunOptions, type RunChoice } from "./run-options";
 
 export function CommentForm({
   threadId,
@@ -13,7 +14,7 @@ export function CommentForm({
   members = [],
 }: {
   threadId: string;
-  runs: { id: string; label: string }[];
+  runs: RunChoice[];
   members?: MemberHandle[];
 }) {
   const router = useRouter();
@@ -70,11 +71,7 @@ export function CommentForm({
             }}
           >
             <option value="">Link a run…</option>
-            {runs.map((r) => (
-              <option key={r.id} value={r.id}>
-                {r.label}
-              </option>
-            ))}
+            <RunOptions runs={runs} />
           </select>
         ) : null}
         <span className="flex-1" />
@@ -98,7 +95,7 @@ export function NewThreadForm({
   members = [],
 }: {
   commitId: string;
-  runs: { id: string; label: string }[];
+  runs: RunChoice[];
   /** Members who may be mentioned (handle and name). */
   members?: { handle: string; name: string }[];
 }) {
@@ -155,11 +152,7 @@ export function NewThreadForm({
             className="rounded border border-stone-300 px-2 py-1 text-sm"
           >
             <option value="">Not pinned to a run</option>
-            {runs.map((r) => (
-              <option key={r.id} value={r.id}>
-                {r.label}
-              </option>
-            ))}
+            <RunOptions runs={runs} />
           </select>
         ) : null}
         <span className="flex-1" />

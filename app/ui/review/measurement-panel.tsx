@@ -10,6 +10,7 @@ import useSWR from "swr";
 import type { Overlay } from "@/app/lib/review/measurement-store";
 import { ApiError, getJson, sendForm } from "@/app/ui/fetch";
 import { OverlayView } from "./overlay-view";
+import { RunOptions, type RunChoice } from "./run-options";
 
 interface Listed {
   id: string;
@@ -29,7 +30,7 @@ export function MeasurementPanel({
   canWrite,
 }: {
   networkId: string;
-  runs: { id: string; label: string }[];
+  runs: RunChoice[];
   commits: { id: string; label: string }[];
   canWrite: boolean;
 }) {
@@ -142,11 +143,7 @@ export function MeasurementPanel({
               onChange={(e) => setRunId(e.target.value)}
               className="rounded border border-stone-300 px-2 py-1 font-mono"
             >
-              {runs.map((r) => (
-                <option key={r.id} value={r.id}>
-                  {r.label}
-                </option>
-              ))}
+              <RunOptions runs={runs} />
             </select>
           ) : (
             <span className="text-stone-500">no finished run to compare with</span>

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { commitAccess, requestActor, runAccess } from "@/app/lib/access";
-import { exportInWorker } from "@/app/lib/export";
+import { exportInWorker, exportRunOf } from "@/app/lib/export";
 import { handle, parseInput, queryOf, RequestError } from "@/app/lib/http";
 import { hasLayout } from "@/app/lib/run-layouts";
 import { CSV_TABLES } from "@/src/solver/csv";
@@ -31,15 +31,7 @@ export function GET(request: Request, ctx: Ctx) {
     const { commit, network } = commitAccess(actor, "workspace.read", run.commitId);
     const base = `${network.slug}-${run.id}`;
     const task = {
-      run: {
-        id: run.id,
-        state: run.state,
-        reason: run.reason,
-        pointsDone: run.pointsDone,
-        pointsTotal: run.pointsTotal,
-        model: run.model,
-        solverReason: run.solverReason,
-      },
+      run: exportRunOf(run),
       commit: { id: commit.id, ok: commit.ok, diagnostics: commit.diagnostics },
     };
     if (q.format === "json") {
