@@ -3,6 +3,7 @@ import { HoverLink } from "@/app/ui/hover-link";
 import type { CommitSummary } from "@/app/lib/networks";
 import type { CommitBadge } from "@/app/lib/review/diffs";
 import { CommitReviewBadges } from "@/app/ui/review/badges";
+import { CompareSection } from "./compare-section";
 
 export interface CommitHistoryProps {
   history: CommitSummary[];
@@ -13,10 +14,7 @@ export interface CommitHistoryProps {
 
 export function CommitHistory({ history, badges, comparePath }: CommitHistoryProps) {
   return (
-    <section aria-labelledby="history" className="space-y-2">
-      <h2 id="history" className="text-lg font-semibold">
-        History
-      </h2>
+    <CompareSection id="history" title="History">
       <ol className="divide-y divide-stone-200 rounded border border-stone-300 bg-white text-sm" aria-label="History">
         {history.map((c) => (
           <li key={c.id} className="flex flex-wrap items-center gap-2 px-3 py-2" data-commit={c.id}>
@@ -36,6 +34,6 @@ export function CommitHistory({ history, badges, comparePath }: CommitHistoryPro
           </li>
         ))}
       </ol>
-    </section>
+    </CompareSection>
   );
 }

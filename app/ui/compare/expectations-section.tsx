@@ -4,6 +4,7 @@
  */
 import { formatValue, type Notation } from "@/app/lib/format";
 import type { ExpectationChange, ExpectationSide } from "@/app/lib/review/expectation-compare";
+import { CompareSection } from "./compare-section";
 
 const CHANGE_STYLE: Record<ExpectationChange["change"], string> = {
   "newly failing": "font-semibold text-ember-500",
@@ -33,17 +34,19 @@ export function ExpectationsSection({
   const newlyFailing = changes.filter((c) => c.change === "newly failing").length;
   const changed = changes.filter((c) => c.change !== "still passing" && c.change !== "still failing").length;
   return (
-    <section aria-labelledby="expectations-diff" className="space-y-2">
-      <div className="flex items-baseline gap-4">
-        <h2 id="expectations-diff" className="text-lg font-semibold">
-          Expectations
-        </h2>
-        <span className="text-sm text-stone-600" data-testid="expectation-counts">
-          {changes.length === 0
-            ? "neither commit's newest finished runs state any"
-            : `${changed} changed status${newlyFailing ? `, ${newlyFailing} newly failing` : ""}`}
-        </span>
-      </div>
+    <CompareSection
+      id="expectations-diff"
+      title="Expectations"
+      beside={
+        <>
+          <span className="text-sm text-stone-600" data-testid="expectation-counts">
+            {changes.length === 0
+              ? "neither commit's newest finished runs state any"
+              : `${changed} changed status${newlyFailing ? `, ${newlyFailing} newly failing` : ""}`}
+          </span>
+        </>
+      }
+    >
       {changes.length ? (
         <div className="overflow-x-auto">
           <table className="w-full text-left text-sm">
@@ -75,6 +78,6 @@ export function ExpectationsSection({
           </table>
         </div>
       ) : null}
-    </section>
+    </CompareSection>
   );
 }

@@ -4,6 +4,7 @@ import type { AnalysisSummary } from "@/app/lib/review/compare-data";
 import type { Comparison } from "@/app/lib/review/diffs";
 import { AddedRemoved } from "./added-removed";
 import { AnalysisComparison } from "./analysis-comparison";
+import { CompareSection } from "./compare-section";
 
 export interface ResultsDiffSectionProps {
   comparison: Comparison;
@@ -20,10 +21,7 @@ export function ResultsDiffSection({ comparison, analyses, query, notation = "si
     `after ${comparison.to.id.slice(0, 7)}`,
   ];
   return (
-    <section aria-labelledby="results-diff" className="space-y-3">
-      <h2 id="results-diff" className="text-lg font-semibold">
-        Results
-      </h2>
+    <CompareSection id="results-diff" title="Results" className="space-y-3">
       <p className="text-sm" data-testid="moved-summary">
         <strong>{results.beyond.toLocaleString("en-US")}</strong> of {results.compared.toLocaleString("en-US")} values
         moved beyond tolerance (relative {results.tolerance.rel}, currents{" "}
@@ -39,6 +37,6 @@ export function ResultsDiffSection({ comparison, analyses, query, notation = "si
         Results are model estimates: silicon must be verified by measurement, and a foundry&apos;s models and design
         rules take precedence.
       </p>
-    </section>
+    </CompareSection>
   );
 }

@@ -13,6 +13,7 @@ import type { SensitivityJson } from "@/src/solver/design-json";
 import { getJson } from "@/app/ui/fetch";
 import { useFormat } from "@/app/ui/notation";
 import { formatRelative } from "./value-format";
+import { CompareSection } from "./compare-section";
 
 type Answer = SensitivityJson & { commitId: string };
 
@@ -24,25 +25,28 @@ export function SensitivityChanges({ fromId, toId }: { fromId: string; toId: str
   const cmp = before.data && after.data ? compareSensitivities(before.data, after.data) : null;
   const error = before.error ?? after.error;
   return (
-    <section aria-labelledby="sensitivity-diff" className="space-y-2" data-slot="sensitivity-changes">
-      <div className="flex items-baseline gap-4">
-        <h2 id="sensitivity-diff" className="text-lg font-semibold">
-          Sensitivities
-        </h2>
-        {!open ? (
-          <button
-            type="button"
-            onClick={() => setOpen(true)}
-            className="rounded border border-stone-300 px-2 py-0.5 text-sm text-stone-700 hover:border-moss-500"
-          >
-            Compare the mismatch budgets
-          </button>
-        ) : (
-          <span className="text-sm text-stone-600">
-            first-order σ from threshold mismatch, each commit at its file&apos;s own point
-          </span>
-        )}
-      </div>
+    <CompareSection
+      id="sensitivity-diff"
+      title="Sensitivities"
+      slot="sensitivity-changes"
+      beside={
+        <>
+          {!open ? (
+            <button
+              type="button"
+              onClick={() => setOpen(true)}
+              className="rounded border border-stone-300 px-2 py-0.5 text-sm text-stone-700 hover:border-moss-500"
+            >
+              Compare the mismatch budgets
+            </button>
+          ) : (
+            <span className="text-sm text-stone-600">
+              first-order σ from threshold mismatch, each commit at its file&apos;s own point
+            </span>
+          )}
+        </>
+      }
+    >
       {error ? <p className="text-sm text-ember-500">{(error as Error).message}</p> : null}
       {open && !cmp && !error ? (
         <p className="text-sm text-stone-500">Computing both commits&apos; sensitivities…</p>
@@ -94,6 +98,6 @@ export function SensitivityChanges({ fromId, toId }: { fromId: string; toId: str
         First-order model estimates (Pelgrom&apos;s σ per device through the adjoint threshold sensitivities): foundry
         models and bench measurements take precedence.
       </p>
-    </section>
+    </CompareSection>
   );
 }

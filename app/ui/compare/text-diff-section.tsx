@@ -3,6 +3,7 @@ import { HoverLink } from "@/app/ui/hover-link";
 import type { TextDiff } from "@/app/lib/review/text-diff";
 import { SideBySideDiff } from "./side-by-side-diff";
 import { UnifiedDiff } from "./unified-diff";
+import { CompareSection } from "./compare-section";
 
 export interface TextDiffSectionProps {
   text: TextDiff;
@@ -15,22 +16,24 @@ export interface TextDiffSectionProps {
 
 export function TextDiffSection({ text, view, otherViewHref, labels }: TextDiffSectionProps) {
   return (
-    <section aria-labelledby="text-diff" className="space-y-2">
-      <div className="flex items-baseline gap-4">
-        <h2 id="text-diff" className="text-lg font-semibold">
-          Text
-        </h2>
-        <span className="text-sm text-stone-600" data-testid="text-counts">
-          {text.removed} {text.removed === 1 ? "line" : "lines"} went, {text.added} came
-        </span>
-        <span className="flex-1" />
-        <span className="text-sm text-stone-600">
-          {view === "side" ? "facing columns" : "one column"} ·{" "}
-          <HoverLink href={otherViewHref} className="text-moss-700 hover:underline">
-            {view === "side" ? "show in one column" : "show in facing columns"}
-          </HoverLink>
-        </span>
-      </div>
+    <CompareSection
+      id="text-diff"
+      title="Text"
+      beside={
+        <>
+          <span className="text-sm text-stone-600" data-testid="text-counts">
+            {text.removed} {text.removed === 1 ? "line" : "lines"} went, {text.added} came
+          </span>
+          <span className="flex-1" />
+          <span className="text-sm text-stone-600">
+            {view === "side" ? "facing columns" : "one column"} ·{" "}
+            <HoverLink href={otherViewHref} className="text-moss-700 hover:underline">
+              {view === "side" ? "show in one column" : "show in facing columns"}
+            </HoverLink>
+          </span>
+        </>
+      }
+    >
       {!text.complete ? (
         <p className="text-sm text-amber-800">The texts differ too much to pair lines; shown as a whole replacement.</p>
       ) : null}
@@ -41,6 +44,6 @@ export function TextDiffSection({ text, view, otherViewHref, labels }: TextDiffS
           <SideBySideDiff rows={text.sideBySide} labels={labels} />
         )}
       </div>
-    </section>
+    </CompareSection>
   );
 }
