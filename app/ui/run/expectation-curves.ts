@@ -34,7 +34,7 @@ export const MAX_CURVES = 12;
 
 /**
  * Values per grid point as curves along sweep `xSweep`: one curve per combination of the other sweeps' values
- * (labelled by `label(param, value)`), at most MAX_CURVES.
+ * (labelled by `label(param, value)`, a curve's label made by `keyOf` from those), at most MAX_CURVES.
  */
 export function curvesAlong(
   sweeps: readonly SweepAxis[],
@@ -42,13 +42,14 @@ export function curvesAlong(
   perGrid: readonly (number | null)[],
   name: string,
   label: (param: string, value: number) => string,
+  keyOf: (others: string[]) => string = (others) => (others.length ? `${name} at ${others.join(", ")}` : name),
 ): Curve[] {
   const xs = sweeps[xSweep];
   const curves = new Map<string, Curve>();
   for (let g = 0; g < perGrid.length; g++) {
     const idx = gridIndices(sweeps, g);
     const others = sweeps.flatMap((s, k) => (k === xSweep ? [] : [label(s.param, s.values[idx[k]])]));
-    const key = others.length ? `${name} at ${others.join(", ")}` : name;
+    const key = keyOf(others);
     let c = curves.get(key);
     if (!c) {
       if (curves.size >= MAX_CURVES) continue;

@@ -6,6 +6,7 @@
  */
 import type { SeriesView } from "@/app/lib/results";
 import type { AxisSpec, Curve } from "@/app/ui/plots/plot-types";
+import { curvesAlong, MAX_CURVES } from "./expectation-curves";
 import {
   defaultLog,
   meanOverSamples,
@@ -19,8 +20,7 @@ import {
 /** Formats a swept value with its unit (the reader's notation). */
 export type ParamFormatter = (value: number, unit: string | null) => string;
 
-/** At most this many curves on one plot (the first combinations of the other sweeps). */
-export const MAX_CURVES = 12;
+export { MAX_CURVES };
 
 /** The sweep plotted along x when the reader has not chosen: the one with the most values (the last on a tie). */
 export function defaultXSweep(series: SeriesView): number {
@@ -47,27 +47,16 @@ export function probeCurves(
   const sweeps = series.sweeps;
   const xs = sweeps[xSweep];
   const values = meanOverSamples(series.probeValues[probe] ?? [], series.mismatch?.runs ?? 1);
-  const curves = new Map<string, Curve>();
-  for (let g = 0; g < values.length; g++) {
-    let rest = g;
-    const idx = new Array<number>(sweeps.length);
-    for (let k = sweeps.length - 1; k >= 0; k--) {
-      idx[k] = rest % sweeps[k].values.length;
-      rest = Math.floor(rest / sweeps[k].values.length);
-    }
-    const others = sweeps
-      .map((sw, k) => (k === xSweep ? null : `${sw.param} = ${fmt(sw.values[idx[k]], paramUnit(series, sw.param))}`))
-      .filter((x): x is string => x !== null);
-    const key = others.join(", ") || series.probes[probe];
-    let c = curves.get(key);
-    if (!c) {
-      if (curves.size >= MAX_CURVES) continue;
-      c = { label: key, values: new Array<number | null>(xs.values.length).fill(null) };
-      curves.set(key, c);
-    }
-    c.values[idx[xSweep]] = values[g];
-  }
-  return { x: xs.values, xLabel: xs.param, curves: [...curves.values()] };
+  const name = series.probes[probe];
+  const curves = curvesAlong(
+    sweeps,
+    xSweep,
+    values,
+    name,
+    (param, v) => `${param} = ${fmt(v, paramUnit(series, param))}`,
+    (others) => others.join(", ") || name,
+  );
+  return { x: xs.values, xLabel: xs.param, curves };
 }
 
 /** The x axis of the plot: the sweep's param, or the point index without sweeps. */
