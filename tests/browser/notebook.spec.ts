@@ -105,6 +105,11 @@ test("a current over 14 decades opens on a log axis that answers, with decades a
   await expect(plot).toHaveAttribute("data-y-ticks", /e-2\d A/);
   await page.getByTestId("notation-toggle").first().click();
   await expect(plot).toHaveAttribute("data-y-ticks", /yA/);
+
+  // at phone width the 14-decade x axis labels only the decades it has room for (2 to 5), so they never overlap
+  await expect(plot).toHaveAttribute("data-x-ticks", /^([^|]+\|){5,}[^|]+$/);
+  await page.setViewportSize({ width: 390, height: 844 });
+  await expect(plot).toHaveAttribute("data-x-ticks", /^([^|]+\|){1,4}[^|]+$/);
   expect(errors).toEqual([]);
 });
 

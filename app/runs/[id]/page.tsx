@@ -60,7 +60,6 @@ export default async function RunPage({ params }: Props) {
       <RunView
         runId={run.id}
         canRun={roleAllows(role, "run.start")}
-        hadResults={run.pointsDone > 0}
         initial={{ run, expectations: storedExpectations(run.id) }}
         firstLook={look}
       />

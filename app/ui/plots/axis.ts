@@ -5,7 +5,7 @@
  * integers on a counting axis, only labelled decades on a long log axis).
  */
 import { formatTick, type Notation } from "@/app/lib/format";
-import { decadeStep, labelledDecade } from "./log-ticks";
+import { decadeStep, labelledDecade, MAX_LABELLED_DECADES } from "./log-ticks";
 import type { AxisSpec } from "./plot-types";
 
 /** The quantity a unit measures, as a word for labels ("A" → "current"); "" when there is no single word. */
@@ -39,13 +39,18 @@ export function axisTitle(a: AxisSpec): string {
 
 /**
  * Tick labels for `splits` on axis `a`: a log axis labels decades only (every
- * k-th on a long one, so labels never collide), a counting axis integers only.
+ * k-th on a long one, at most `maxLabels`, so labels never collide), a counting axis integers only.
  */
-export function tickLabels(a: AxisSpec, splits: number[], notation: Notation): string[] {
+export function tickLabels(
+  a: AxisSpec,
+  splits: number[],
+  notation: Notation,
+  maxLabels = MAX_LABELLED_DECADES,
+): string[] {
   if (a.log) {
     const pos = splits.filter((v) => v > 0);
     const decades = pos.length ? Math.log10(pos[pos.length - 1] / pos[0]) : 0;
-    const step = decadeStep(decades);
+    const step = decadeStep(decades, maxLabels);
     return splits.map((v) => (labelledDecade(v, step) ? formatTick(v, a.unit, notation) : ""));
   }
   return splits.map((v) => (v == null ? "" : formatTick(v, a.unit, notation, a.integer)));

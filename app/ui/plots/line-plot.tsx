@@ -19,7 +19,7 @@ import { useNotation } from "@/app/ui/notation";
 import { curveColour, themeColour, withAlpha } from "@/app/ui/theme";
 import { alignMarks } from "./align-marks";
 import { axisTitle, INTEGER_INCREMENTS, tickLabels } from "./axis";
-import { isDecade, logRange, logSplits } from "./log-ticks";
+import { isDecade, logRange, logSplits, MAX_LABELLED_DECADES } from "./log-ticks";
 import { plotColumns, plotCsv, type Cell } from "./plot-data";
 import { PlotDownloads } from "./plot-downloads";
 import { plotSvg, type SvgSeries } from "./plot-svg";
@@ -89,8 +89,11 @@ export function LinePlot({
         const axis = (a: AxisSpec, size: number, key: "xTicks" | "yTicks"): uPlotType.Axis => ({
           label: axisTitle(a),
           size,
-          values: (_u, splits) => {
-            const labels = tickLabels(a, splits, notation);
+          values: (u, splits) => {
+            // As many decade labels as the axis has room for (a phone's plot is ~270 px wide).
+            const px = (key === "xTicks" ? u.bbox.width : u.bbox.height) / (window.devicePixelRatio || 1);
+            const room = Math.floor(px / (key === "xTicks" ? 56 : 22));
+            const labels = tickLabels(a, splits, notation, Math.max(2, Math.min(MAX_LABELLED_DECADES, room)));
             el.dataset[key] = labels.filter(Boolean).join("|");
             return labels;
           },

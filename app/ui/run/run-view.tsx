@@ -35,15 +35,13 @@ export interface RunState {
 export interface RunViewProps {
   runId: string;
   canRun: boolean;
-  /** The run had stored points when the page was rendered: its results are asked for at once. */
-  hadResults?: boolean;
-  /** The run as the server rendered the page: the page is drawn from it before the first poll answers. */
-  initial?: RunState;
+  /** The run as the server rendered the page: the page is drawn from it, and its results asked for, at once. */
+  initial: RunState;
   /** The first plot drawn on the server (first-look.ts), shown until the view it stands for can draw. */
   firstLook?: FirstLook | null;
 }
 
-export function RunView({ runId, canRun, hadResults = false, initial, firstLook }: RunViewProps) {
+export function RunView({ runId, canRun, initial, firstLook }: RunViewProps) {
   const { data, error, mutate } = useSWR<RunState>(`/api/runs/${runId}`, getJson, {
     fallbackData: initial,
     refreshInterval: (d) => (d && !isLive(d.run.state) ? 0 : 1000),
@@ -51,7 +49,7 @@ export function RunView({ runId, canRun, hadResults = false, initial, firstLook 
   const run = data?.run;
   // Before the run's own answer arrives, the page's word decides: the series, the layout and the first point go
   // out together with it (on a first visit they used to wait for it, then for the series).
-  const hasResults = run ? run.pointsDone > 0 : hadResults;
+  const hasResults = (run ?? initial.run).pointsDone > 0;
   useEffect(() => {
     if (!hasResults) return;
     void preload(layoutKey(runId), getJson);
